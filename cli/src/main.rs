@@ -1,0 +1,2 @@
+//! boreflux command-line entry point.
+fn main() {}

@@ -1,0 +1,1 @@
+//! Verification set: runs the solver on analytic reference cases.
