@@ -1,8 +1,32 @@
 //! boreflux-solver: transient radial flow through screen, filter pack, wall cake,
 //! invaded zone and formation under a cyclic development drive.
+//!
+//! Data flow: a checked [`Model`] (SI units) → [`grid::Grid`] and
+//! [`system::Discretization`] → [`stepper::Stepper`] (θ-scheme, Newton for nonlinear
+//! losses) driven by [`run::run`], which streams [`diagnostics::StepView`]s to a
+//! [`diagnostics::StepObserver`] and returns a [`run::RunSummary`]. Nothing here reads or
+//! writes files. Sign convention: positive flow is outward (well → formation); heads are
+//! relative to the static level, m.
 #![deny(missing_docs)]
 
+pub mod cake;
+pub mod diagnostics;
+pub mod drive;
+pub mod error;
+pub mod faces;
+pub mod grid;
 pub mod media;
+pub mod model;
+pub mod run;
 pub mod safety;
 pub mod skin;
+pub mod stepper;
+pub mod system;
+pub mod tridiag;
 pub mod water;
+
+pub use diagnostics::{CycleView, StepObserver, StepView};
+pub use drive::Drive;
+pub use error::SolverError;
+pub use model::Model;
+pub use run::{run, Reporting, RunSummary};

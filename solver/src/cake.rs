@@ -1,0 +1,71 @@
+//! The wall cake: its interface resistance, its skin and its erosion.
+//!
+//! Interface (PHYSICS.md §2.1): a layer of thickness δ on the wall r_b, storage neglected.
+//! A patchy cake covers a fraction c of the wall; the uncovered fraction conducts through a
+//! layer of the same thickness as pack material. The interface conductance is the
+//! area-weighted sum of the two paths:
+//!
+//! ```text
+//! C_i = 2π r_b b (c K_c + (1−c) K_p) / δ        m²/s
+//! R_i = 1 / C_i                                  s/m²
+//! s_cake = 2π K_f b R_i = K_f δ / (r_b (c K_c + (1−c) K_p))      (c = 1: PHYSICS.md §2.3)
+//! ```
+//! The model has no lateral (convergence) resistance toward the holes in the cake, so a
+//! small uncovered fraction already short-circuits a tight cake; treat results for
+//! coverage below 1 as a lower bound on the cake's effect.
+//!
+//! Erosion law (an assumption of this model, calibrate before use):
+//! ```text
+//! dδ/dt = −E · max(0, w τ − τ_c)       w = w_in for inward flow, w_out for outward flow
+//! c     = c₀ (δ/δ₀)                    patches detach in proportion to the thickness lost
+//! ```
+//! with τ the pack-side shear proxy at the wall (Pa), τ_c the critical shear (Pa) and E the
+//! erodibility (m/(s·Pa)). It is integrated explicitly once per time step.
+
+use crate::model::{Cake, Model};
+use crate::system::CakeState;
+use std::f64::consts::PI;
+
+/// Interface resistance of the cake in state `st`, s/m².
+pub fn interface_resistance(model: &Model, cake: &Cake, st: CakeState) -> f64 {
+    let rb = model.borehole_radius_m();
+    let b = model.well.screen_length_m;
+    let k = st.coverage * cake.conductivity_m_s
+        + (1.0 - st.coverage) * model.pack.medium.conductivity_m_s;
+    st.thickness_m / (2.0 * PI * rb * b * k)
+}
+
+/// Skin of the cake in state `st`, referred to the formation conductivity.
+pub fn skin(model: &Model, cake: &Cake, st: CakeState) -> f64 {
+    2.0 * PI
+        * model.formation.medium.conductivity_m_s
+        * model.well.screen_length_m
+        * interface_resistance(model, cake, st)
+}
+
+/// Thinning rate of the cake for shear `shear_pa` and face flux `flux_m_s` (sign gives the
+/// direction), m/s (≥ 0).
+pub fn erosion_rate(cake: &Cake, shear_pa: f64, flux_m_s: f64) -> f64 {
+    match &cake.erosion {
+        None => 0.0,
+        Some(e) => {
+            let w = if flux_m_s < 0.0 {
+                e.inward_weight
+            } else {
+                e.outward_weight
+            };
+            e.erodibility_m_s_pa * (w * shear_pa - e.critical_shear_pa).max(0.0)
+        }
+    }
+}
+
+/// Advances the cake over `dt_s`; returns true when it changed.
+pub fn erode(cake: &Cake, st: &mut CakeState, shear_pa: f64, flux_m_s: f64, dt_s: f64) -> bool {
+    let rate = erosion_rate(cake, shear_pa, flux_m_s);
+    if rate <= 0.0 || st.thickness_m <= 0.0 {
+        return false;
+    }
+    st.thickness_m = (st.thickness_m - rate * dt_s).max(0.0);
+    st.coverage = cake.coverage * st.thickness_m / cake.thickness_m;
+    true
+}

@@ -1,0 +1,256 @@
+//! Diagnostics of a run: what is reported at each step and each cycle, and the observer
+//! trait through which they leave the solver (the solver itself writes nothing).
+//!
+//! Borehole-face quantities (PHYSICS.md §6, §7):
+//! ```text
+//! face Darcy flux      q_b = Q_b / (2π r_b b)                     m/s, positive outward
+//! face pore velocity   v_b = q_b / n_pack                         m/s
+//! face gradient        i_b = q_b/K + β q_b|q_b|   (formation side of the wall, −dh/dr)
+//! shear proxy          τ = ρ g |i_p| R_h          (pack side: pack K, β; Kozeny
+//!                      hydraulic radius R_h = n d/(6(1−n)), or sqrt(5k/n) from K when the
+//!                      grain size is unknown, which is the same model with Kozeny–Carman k)
+//! power of a zone      P = ρ g Σ_segments Q·Δh_segment            W
+//! ```
+
+use crate::grid::{Grid, Zone, ZONE_COUNT};
+use crate::model::{Medium, Model};
+use crate::stepper::Stepper;
+use crate::water::GRAVITY_M_S2;
+use std::f64::consts::PI;
+
+/// What the observer sees after each reported step. Instantaneous values are at the end
+/// of the step; work and residuals accumulate the θ-point values that close the balances.
+#[derive(Debug, Clone, Copy)]
+pub struct StepView<'a> {
+    /// Step counter (1 = first step).
+    pub step: u64,
+    /// Time at the end of the step, s.
+    pub time_s: f64,
+    /// Step length, s.
+    pub dt_s: f64,
+    /// In-well head, m.
+    pub well_head_m: f64,
+    /// Head on the pack side of the screen, m.
+    pub screen_outer_head_m: f64,
+    /// Flow through the screen, m³/s, positive outward.
+    pub screen_flow_m3_s: f64,
+    /// Darcy flux at the borehole wall r_b, m/s.
+    pub face_flux_m_s: f64,
+    /// Pore velocity at the borehole wall (flux / pack porosity), m/s.
+    pub face_pore_velocity_m_s: f64,
+    /// Gradient −dh/dr on the formation side of the wall, –.
+    pub face_gradient: f64,
+    /// Shear proxy on the pack side of the wall, Pa.
+    pub shear_proxy_pa: f64,
+    /// Cake thickness, m (0 without a cake).
+    pub cake_thickness_m: f64,
+    /// Covered fraction of the wall, –.
+    pub cake_coverage: f64,
+    /// Total skin referred to the formation (Hawkins), –.
+    pub skin: f64,
+    /// Power dissipated per zone, W (index by [`Zone`]).
+    pub power_w: [f64; ZONE_COUNT],
+    /// Cumulative work dissipated per zone, J.
+    pub work_j: [f64; ZONE_COUNT],
+    /// Relative volume-balance residual of the step.
+    pub mass_residual: f64,
+    /// Relative energy-balance residual of the step.
+    pub energy_residual: f64,
+    /// Newton iterations of the step.
+    pub newton_iterations: usize,
+    /// Cell heads, m (N values, inner to outer).
+    pub heads: &'a [f64],
+    /// The grid.
+    pub grid: &'a Grid,
+}
+
+/// Aggregates of one cycle of a periodic drive.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct CycleView {
+    /// Cycle number, from 0.
+    pub index: u64,
+    /// Start time, s.
+    pub start_s: f64,
+    /// End time, s.
+    pub end_s: f64,
+    /// Largest outward face flux, m/s (≥ 0).
+    pub peak_outward_flux_m_s: f64,
+    /// Largest inward face flux, m/s (≥ 0, magnitude).
+    pub peak_inward_flux_m_s: f64,
+    /// Root-mean-square face flux over the cycle, m/s.
+    pub rms_face_flux_m_s: f64,
+    /// Largest shear proxy, Pa.
+    pub peak_shear_pa: f64,
+    /// Work dissipated per zone in the cycle, J.
+    pub work_j: [f64; ZONE_COUNT],
+    /// Cake thickness removed in the cycle, m.
+    pub cake_removed_m: f64,
+}
+
+/// Receives results from the time loop. The solver never formats or writes them.
+pub trait StepObserver {
+    /// Called after each reported step. Return `false` to stop the run early.
+    fn on_step(&mut self, step: &StepView<'_>) -> bool;
+    /// Called at the end of each cycle of a periodic drive.
+    fn on_cycle(&mut self, _cycle: &CycleView) {}
+}
+
+/// An observer that ignores everything.
+#[derive(Debug, Default)]
+pub struct NullObserver;
+
+impl StepObserver for NullObserver {
+    fn on_step(&mut self, _step: &StepView<'_>) -> bool {
+        true
+    }
+}
+
+/// Kozeny hydraulic radius of a medium, m (PHYSICS.md §6.1): n d/(6(1−n)) from the grain
+/// size, or sqrt(5k/n) from K through Kozeny–Carman (k = n R_h²/5) when it is unknown.
+pub fn hydraulic_radius_m(m: &Medium, rho: f64, mu: f64) -> f64 {
+    match m.grain_diameter_m {
+        Some(d) => m.porosity * d / (6.0 * (1.0 - m.porosity)),
+        None => {
+            let k = m.conductivity_m_s * mu / (rho * GRAVITY_M_S2);
+            (5.0 * k / m.porosity).sqrt()
+        }
+    }
+}
+
+/// Head gradient −dh/dr for flux q in a Forchheimer medium.
+pub fn gradient(m: &Medium, q: f64) -> f64 {
+    q / m.conductivity_m_s + m.forchheimer_beta_s2_m2 * q * q.abs()
+}
+
+/// Instantaneous borehole-face state at the end of the last step.
+#[derive(Debug, Clone, Copy, Default, PartialEq)]
+pub struct FaceState {
+    /// Flow through the screen, m³/s.
+    pub screen_flow_m3_s: f64,
+    /// Head on the pack side of the screen, m.
+    pub screen_outer_head_m: f64,
+    /// Flow across the borehole wall, m³/s.
+    pub wall_flow_m3_s: f64,
+    /// Darcy flux at r_b, m/s.
+    pub flux_m_s: f64,
+    /// Gradient on the formation side, –.
+    pub gradient: f64,
+    /// Shear proxy on the pack side, Pa.
+    pub shear_pa: f64,
+}
+
+/// Computes the face state from the heads at the end of the step.
+pub fn face_state(model: &Model, st: &Stepper) -> FaceState {
+    let d = &st.disc;
+    let h = st.heads();
+    let g = &d.grid;
+    let b = model.well.screen_length_m;
+    let (q_screen, _) = d.faces[0].flow(h[0] - h[1]);
+    let screen = d.faces[0].segments()[0];
+    let screen_drop = crate::faces::Face::segment_drop(&screen, q_screen);
+    let kb = g.borehole_face;
+    let (q_wall, _) = d.faces[kb].flow(h[kb] - h[kb + 1]);
+    let rb = g.r_face[kb];
+    let q = q_wall / (2.0 * PI * rb * b);
+    let outer = &d.media[kb];
+    let pack = &model.pack.medium;
+    let rho = model.fluid.density_kg_m3;
+    let r_h = hydraulic_radius_m(pack, rho, model.fluid.viscosity_pa_s);
+    FaceState {
+        screen_flow_m3_s: q_screen,
+        screen_outer_head_m: h[0] - screen_drop,
+        wall_flow_m3_s: q_wall,
+        flux_m_s: q,
+        gradient: gradient(outer, q),
+        shear_pa: rho * GRAVITY_M_S2 * gradient(pack, q).abs() * r_h,
+    }
+}
+
+/// Instantaneous power per zone at the end of the step, W.
+pub fn power_now(model: &Model, st: &Stepper) -> [f64; ZONE_COUNT] {
+    let d = &st.disc;
+    let h = st.heads();
+    let mut p = [0.0; ZONE_COUNT];
+    let last = h.len() - 1;
+    for j in 0..last {
+        d.faces[j].add_dissipation(h[j] - h[j + 1], &mut p);
+    }
+    if d.outer_open {
+        d.faces[last].add_dissipation(h[last], &mut p);
+    }
+    let rho_g = model.fluid.density_kg_m3 * GRAVITY_M_S2;
+    p.map(|x| x * rho_g)
+}
+
+/// Accumulates per-cycle aggregates from per-step values.
+#[derive(Debug, Clone)]
+pub struct CycleAccumulator {
+    period_s: f64,
+    index: u64,
+    start_s: f64,
+    peak_out: f64,
+    peak_in: f64,
+    sum_q2_dt: f64,
+    peak_shear: f64,
+    work_start: [f64; ZONE_COUNT],
+    cake_start: f64,
+}
+
+impl CycleAccumulator {
+    /// A new accumulator for cycles of length `period_s` starting at t = 0.
+    pub fn new(period_s: f64, cake_thickness_m: f64) -> Self {
+        CycleAccumulator {
+            period_s,
+            index: 0,
+            start_s: 0.0,
+            peak_out: 0.0,
+            peak_in: 0.0,
+            sum_q2_dt: 0.0,
+            peak_shear: 0.0,
+            work_start: [0.0; ZONE_COUNT],
+            cake_start: cake_thickness_m,
+        }
+    }
+
+    /// Adds a step; returns the finished cycle when the step ends one. The stepper lands on
+    /// every cycle boundary, so a step never straddles two cycles.
+    pub fn add(&mut self, v: &StepView<'_>) -> Option<CycleView> {
+        let q = v.face_flux_m_s;
+        self.peak_out = self.peak_out.max(q);
+        self.peak_in = self.peak_in.max(-q);
+        self.peak_shear = self.peak_shear.max(v.shear_proxy_pa);
+        self.sum_q2_dt += q * q * v.dt_s;
+        let end = self.start_s + self.period_s;
+        if v.time_s < end - 1e-9 * self.period_s {
+            return None;
+        }
+        let mut work = [0.0; ZONE_COUNT];
+        for (k, w) in work.iter_mut().enumerate() {
+            *w = v.work_j[k] - self.work_start[k];
+        }
+        let cycle = CycleView {
+            index: self.index,
+            start_s: self.start_s,
+            end_s: v.time_s,
+            peak_outward_flux_m_s: self.peak_out,
+            peak_inward_flux_m_s: self.peak_in,
+            rms_face_flux_m_s: (self.sum_q2_dt / (v.time_s - self.start_s)).sqrt(),
+            peak_shear_pa: self.peak_shear,
+            work_j: work,
+            cake_removed_m: self.cake_start - v.cake_thickness_m,
+        };
+        *self = CycleAccumulator {
+            index: self.index + 1,
+            start_s: v.time_s,
+            work_start: v.work_j,
+            cake_start: v.cake_thickness_m,
+            ..CycleAccumulator::new(self.period_s, 0.0)
+        };
+        Some(cycle)
+    }
+}
+
+/// Names of the zones, in index order (for writers).
+pub fn zone_names() -> [&'static str; ZONE_COUNT] {
+    Zone::ALL.map(Zone::name)
+}

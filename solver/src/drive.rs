@@ -1,0 +1,357 @@
+//! Drives: what the development device does to the well, as a function of time.
+//!
+//! A drive either prescribes the in-well head (`Control::Head`) or adds a volume rate to
+//! the well's water column (`Control::Flow`), which then moves under well-bore storage.
+//! Sign convention: positive flow is outward, from the well into the formation, so a
+//! pumping (withdrawal) rate enters as a negative device flow.
+
+use crate::error::SolverError;
+use std::f64::consts::PI;
+
+/// How the drive acts on the well node.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Control {
+    /// The in-well head is prescribed.
+    Head,
+    /// A volume rate is added to the well's water column, which has storage.
+    Flow,
+}
+
+/// Sinusoidal in-well head `h_w = offset + A(t)·sin(2πft)`, from rest.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct SineHead {
+    /// Amplitude A, m.
+    pub amplitude_m: f64,
+    /// Frequency f, Hz.
+    pub frequency_hz: f64,
+    /// Mean offset, m.
+    pub offset_m: f64,
+    /// The amplitude grows linearly from 0 over this many cycles (0 = full from the start).
+    pub ramp_cycles: f64,
+}
+
+/// What a table drive prescribes.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum TableQuantity {
+    /// In-well head, m.
+    Head,
+    /// Pumping rate, m³/s, positive = withdrawal.
+    PumpingRate,
+}
+
+/// Piecewise-linear time series; a repeated time gives a jump.
+#[derive(Debug, Clone, PartialEq)]
+pub struct TableDrive {
+    /// Times, s, non-decreasing, starting at 0.
+    pub times_s: Vec<f64>,
+    /// Values at those times (head in m, or pumping rate in m³/s).
+    pub values: Vec<f64>,
+    /// What the values are.
+    pub quantity: TableQuantity,
+    /// Repeat the table with period equal to its last time.
+    pub repeat: bool,
+}
+
+/// A development or test drive.
+#[derive(Debug, Clone, PartialEq)]
+pub enum Drive {
+    /// Sinusoidal in-well head.
+    SineHead(SineHead),
+    /// Constant pumping rate from t = 0, m³/s, positive = withdrawal; the well level moves
+    /// under well-bore storage.
+    ConstantRate {
+        /// Pumping rate, m³/s, positive = withdrawal.
+        pumping_rate_m3_s: f64,
+    },
+    /// Instantaneous change of the well level at t = 0, then recovery with no pumping.
+    Slug {
+        /// In-well head at t = 0, m.
+        initial_head_m: f64,
+    },
+    /// Tabulated head or pumping rate.
+    Table(TableDrive),
+}
+
+impl TableDrive {
+    fn local_time(&self, t: f64) -> f64 {
+        let last = *self.times_s.last().unwrap_or(&0.0);
+        if self.repeat && last > 0.0 && t > last {
+            let k = (t / last).floor();
+            let tl = t - k * last;
+            // At an exact multiple the end of the previous period applies.
+            if tl == 0.0 {
+                last
+            } else {
+                tl
+            }
+        } else {
+            t
+        }
+    }
+
+    /// Value at time t: linear between points, held constant after the last point.
+    /// At a repeated time (a jump) the later value applies from that time on.
+    pub fn value_at(&self, t: f64) -> f64 {
+        let tl = self.local_time(t);
+        let ts = &self.times_s;
+        let vs = &self.values;
+        if tl <= ts[0] {
+            return vs[0];
+        }
+        // First index with ts[i] > tl.
+        let i = ts.partition_point(|&x| x <= tl);
+        if i >= ts.len() {
+            return vs[vs.len() - 1];
+        }
+        let (t0, t1) = (ts[i - 1], ts[i]);
+        let (v0, v1) = (vs[i - 1], vs[i]);
+        v0 + (v1 - v0) * (tl - t0) / (t1 - t0)
+    }
+
+    /// Next breakpoint strictly after t, and whether the value jumps there.
+    fn next_event(&self, t: f64) -> Option<(f64, bool)> {
+        let last = *self.times_s.last()?;
+        let (base, tl) = if self.repeat && last > 0.0 {
+            let k = (t / last).floor();
+            (k * last, t - k * last)
+        } else {
+            (0.0, t)
+        };
+        let tol = 1e-12 * last.max(1.0);
+        for (i, &ti) in self.times_s.iter().enumerate() {
+            if ti > tl + tol {
+                let jump = i + 1 < self.times_s.len() && self.times_s[i + 1] == ti;
+                return Some((base + ti, jump));
+            }
+        }
+        if self.repeat && last > 0.0 {
+            // Wrap: does the value jump from the end of one period to the start of the next?
+            let jump = self.values[0] != self.values[self.values.len() - 1];
+            Some((base + last, jump))
+                .filter(|&(te, _)| te > t + tol)
+                .or(Some((base + 2.0 * last, jump)))
+        } else {
+            None
+        }
+    }
+}
+
+impl Drive {
+    /// Whether the drive prescribes head or adds flow.
+    pub fn control(&self) -> Control {
+        match self {
+            Drive::SineHead(_) => Control::Head,
+            Drive::Table(t) if t.quantity == TableQuantity::Head => Control::Head,
+            _ => Control::Flow,
+        }
+    }
+
+    /// Prescribed in-well head at time t, m (head-controlled drives; 0 otherwise).
+    pub fn head_m(&self, t: f64) -> f64 {
+        match self {
+            Drive::SineHead(s) => {
+                let period = 1.0 / s.frequency_hz;
+                let ramp = if s.ramp_cycles > 0.0 {
+                    (t / (s.ramp_cycles * period)).min(1.0)
+                } else {
+                    1.0
+                };
+                s.offset_m + ramp * s.amplitude_m * (2.0 * PI * s.frequency_hz * t).sin()
+            }
+            Drive::Table(tab) if tab.quantity == TableQuantity::Head => tab.value_at(t),
+            _ => 0.0,
+        }
+    }
+
+    /// Volume rate the device adds to the well's water column at time t with in-well head
+    /// `h_well_m`, m³/s (positive = outward), and its derivative with respect to the
+    /// in-well head, m²/s.
+    pub fn device_flow(&self, t: f64, _h_well_m: f64) -> (f64, f64) {
+        match self {
+            Drive::ConstantRate { pumping_rate_m3_s } => (-pumping_rate_m3_s, 0.0),
+            Drive::Table(tab) if tab.quantity == TableQuantity::PumpingRate => {
+                (-tab.value_at(t), 0.0)
+            }
+            _ => (0.0, 0.0),
+        }
+    }
+
+    /// True when the device flow depends on the in-well head (then every step iterates).
+    pub fn is_head_dependent(&self) -> bool {
+        false
+    }
+
+    /// In-well head at t = 0, m.
+    pub fn initial_well_head_m(&self) -> f64 {
+        match self {
+            Drive::Slug { initial_head_m } => *initial_head_m,
+            _ => self.head_m(0.0),
+        }
+    }
+
+    /// Period of a periodic drive, s.
+    pub fn period_s(&self) -> Option<f64> {
+        match self {
+            Drive::SineHead(s) => Some(1.0 / s.frequency_hz),
+            Drive::Table(t) if t.repeat => t.times_s.last().copied(),
+            _ => None,
+        }
+    }
+
+    /// True when the drive oscillates about zero, so it sends no net volume into the
+    /// formation over a cycle (for the automatic outer radius).
+    pub fn is_zero_mean_periodic(&self) -> bool {
+        match self {
+            Drive::SineHead(s) => s.offset_m == 0.0,
+            _ => false,
+        }
+    }
+
+    /// Next time strictly after t at which the drive has a breakpoint the stepper must land
+    /// on, and whether the forcing jumps there (which restarts the backward-Euler steps).
+    pub fn next_event_s(&self, t: f64) -> Option<(f64, bool)> {
+        match self {
+            Drive::Table(tab) => tab.next_event(t),
+            Drive::SineHead(s) if s.ramp_cycles > 0.0 => {
+                let end = s.ramp_cycles / s.frequency_hz;
+                (end > t).then_some((end, false))
+            }
+            _ => None,
+        }
+    }
+
+    /// Checks the drive's parameters; errors name the case-file path.
+    pub fn validate(&self) -> Result<(), SolverError> {
+        let finite = |field: &str, v: f64| {
+            if v.is_finite() {
+                Ok(())
+            } else {
+                Err(SolverError::invalid(
+                    field,
+                    format!("must be a finite number, got {v}"),
+                ))
+            }
+        };
+        match self {
+            Drive::SineHead(s) => {
+                finite("drive.amplitude", s.amplitude_m)?;
+                finite("drive.offset", s.offset_m)?;
+                if !(s.frequency_hz.is_finite() && s.frequency_hz > 0.0) {
+                    return Err(SolverError::invalid(
+                        "drive.frequency",
+                        format!("must be positive, got {} Hz", s.frequency_hz),
+                    ));
+                }
+                if !(s.ramp_cycles.is_finite() && s.ramp_cycles >= 0.0) {
+                    return Err(SolverError::invalid(
+                        "drive.ramp_cycles",
+                        format!("must be zero or positive, got {}", s.ramp_cycles),
+                    ));
+                }
+            }
+            Drive::ConstantRate { pumping_rate_m3_s } => {
+                finite("drive.pumping_rate", *pumping_rate_m3_s)?
+            }
+            Drive::Slug { initial_head_m } => finite("drive.initial_head", *initial_head_m)?,
+            Drive::Table(t) => {
+                if t.times_s.len() < 2 || t.times_s.len() != t.values.len() {
+                    return Err(SolverError::invalid(
+                        "drive.file",
+                        format!(
+                            "needs at least two rows of time and value, got {} times and {} values",
+                            t.times_s.len(),
+                            t.values.len()
+                        ),
+                    ));
+                }
+                if t.times_s[0] != 0.0 {
+                    return Err(SolverError::invalid(
+                        "drive.file",
+                        format!("the first time must be 0 s, got {} s", t.times_s[0]),
+                    ));
+                }
+                for (i, w) in t.times_s.windows(2).enumerate() {
+                    if !(w[1] >= w[0])
+                        || (i + 2 < t.times_s.len() && w[1] == w[0] && t.times_s[i + 2] == w[1])
+                    {
+                        return Err(SolverError::invalid(
+                            "drive.file",
+                            format!("times must be non-decreasing (a time may repeat once for a jump); row {} has {} s after {} s", i + 2, w[1], w[0]),
+                        ));
+                    }
+                }
+                for (i, v) in t.values.iter().enumerate() {
+                    finite(&format!("drive.file row {}", i + 1), *v)?;
+                }
+                if *t.times_s.last().unwrap() <= 0.0 {
+                    return Err(SolverError::invalid(
+                        "drive.file",
+                        "the table must span a positive time",
+                    ));
+                }
+            }
+        }
+        Ok(())
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn table(repeat: bool) -> TableDrive {
+        TableDrive {
+            times_s: vec![0.0, 10.0, 10.0, 20.0],
+            values: vec![1.0, 1.0, -1.0, -1.0],
+            quantity: TableQuantity::Head,
+            repeat,
+        }
+    }
+
+    #[test]
+    fn table_value_at_works() {
+        let t = table(false);
+        assert_eq!(t.value_at(5.0), 1.0);
+        assert_eq!(t.value_at(10.0), -1.0);
+        assert_eq!(t.value_at(25.0), -1.0);
+        let r = table(true);
+        assert_eq!(r.value_at(25.0), 1.0);
+        assert_eq!(r.value_at(35.0), -1.0);
+    }
+
+    #[test]
+    fn table_events_work() {
+        let d = Drive::Table(table(true));
+        assert_eq!(d.next_event_s(0.0), Some((10.0, true)));
+        assert_eq!(d.next_event_s(10.0), Some((20.0, true)));
+        assert_eq!(d.next_event_s(20.0), Some((30.0, true)));
+    }
+
+    #[test]
+    fn sine_ramp_works() {
+        let d = Drive::SineHead(SineHead {
+            amplitude_m: 2.0,
+            frequency_hz: 0.5,
+            offset_m: 0.0,
+            ramp_cycles: 2.0,
+        });
+        // Quarter period at t = 0.5 s, ramp at 0.5/4 of full.
+        assert!((d.head_m(0.5) - 2.0 * 0.125).abs() < 1e-12);
+        assert!((d.head_m(4.5) - 2.0).abs() < 1e-12);
+        assert_eq!(d.next_event_s(0.0), Some((4.0, false)));
+    }
+
+    #[test]
+    fn validate_captures_errors() {
+        let d = Drive::SineHead(SineHead {
+            amplitude_m: 1.0,
+            frequency_hz: 0.0,
+            offset_m: 0.0,
+            ramp_cycles: 0.0,
+        });
+        assert_eq!(
+            d.validate().unwrap_err().to_string(),
+            "drive.frequency: must be positive, got 0 Hz"
+        );
+    }
+}

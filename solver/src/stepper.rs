@@ -1,0 +1,410 @@
+//! The θ-scheme time step, with a Newton iteration for the nonlinear losses.
+//!
+//! Semi-discrete system (PHYSICS.md §1.2): `S dh/dt = −div F(h) + f`, with F the face laws
+//! of [`crate::faces`]. One step of length Δt solves for the θ-point head
+//! `y = θ h^{n+1} + (1−θ) h^n`:
+//!
+//! ```text
+//! S_j (y_j − h_j^n)/(θΔt) − F_{j−1}(y_{j−1} − y_j) + F_j(y_j − y_{j+1}) = f_j(t^n + θΔt, y)
+//! h^{n+1} = (y − (1−θ) h^n) / θ
+//! ```
+//! For linear faces this is exactly the θ-scheme of PHYSICS.md §1.3 (θ = ½: Crank–Nicolson,
+//! θ = 1: backward Euler). Evaluating the face laws at y (the midpoint form) makes the
+//! discrete energy identity of §1.5 exact for nonlinear faces too: multiplying the step by
+//! y gives storage-energy change + numerical dissipation (θ−½)Σ S Δh² = Δt (power in −
+//! dissipation), with no remainder.
+//!
+//! A linear system (Darcy faces, no head-dependent device flow) is eliminated once per step
+//! length and each step costs two sweeps; otherwise Newton's method runs on the tridiagonal
+//! Jacobian until the residual, relative to the largest flow term, falls below the
+//! tolerance. The step never allocates.
+
+use crate::drive::Control;
+use crate::error::SolverError;
+use crate::grid::ZONE_COUNT;
+use crate::model::Model;
+use crate::system::{CakeState, Discretization};
+use crate::tridiag::{self, Factored};
+
+/// Volumes and energies of the last step, from the θ-point heads (they close the balances).
+/// Energies are in m⁴ (multiply by ρg for joules), volumes in m³.
+#[derive(Debug, Clone, Copy, Default, PartialEq)]
+pub struct StepBalance {
+    /// Length of the step, s.
+    pub dt_s: f64,
+    /// θ used.
+    pub theta: f64,
+    /// Volume through the screen into the pack, m³.
+    pub volume_in_m3: f64,
+    /// Volume across the outer boundary, m³.
+    pub volume_out_m3: f64,
+    /// Change of aquifer storage Σ S Δh, m³.
+    pub storage_change_m3: f64,
+    /// Volume the device added to the well, m³.
+    pub device_volume_m3: f64,
+    /// Energy into the aquifer at the screen (in-well head × flow), m⁴.
+    pub energy_in: f64,
+    /// Energy dissipated per zone, m⁴.
+    pub dissipated: [f64; ZONE_COUNT],
+    /// Change of elastic storage energy ½ Σ S h², m⁴.
+    pub storage_energy_change: f64,
+    /// Numerical dissipation of the θ-scheme (θ−½) Σ S Δh², m⁴ (zero for Crank–Nicolson).
+    pub numerical_dissipation: f64,
+    /// Energy the device put into the well column (in-well head × device flow), m⁴.
+    pub device_energy: f64,
+    /// |volume residual| relative to the largest volume term.
+    pub mass_residual: f64,
+    /// |energy residual| relative to the largest energy term.
+    pub energy_residual: f64,
+    /// Newton iterations taken (0 for the direct linear solve).
+    pub newton_iterations: usize,
+}
+
+/// Time-stepping state of one run.
+#[derive(Debug, Clone)]
+pub struct Stepper {
+    /// Discrete system.
+    pub disc: Discretization,
+    control: Control,
+    /// Heads at the current time (index 0 = well), m.
+    h: Vec<f64>,
+    y: Vec<f64>,
+    lower: Vec<f64>,
+    diag: Vec<f64>,
+    upper: Vec<f64>,
+    rhs: Vec<f64>,
+    scratch: Vec<f64>,
+    factored: Factored,
+    factored_for: Option<f64>,
+    linear: bool,
+    newton_tolerance: f64,
+    newton_max_iterations: usize,
+    /// Current time, s.
+    pub time_s: f64,
+    /// Balance of the last step.
+    pub balance: StepBalance,
+}
+
+impl Stepper {
+    /// Sets up a run of a validated model at t = 0, at rest but for the initial well head.
+    pub fn new(model: &Model, cake: Option<CakeState>) -> Stepper {
+        let disc = Discretization::new(model, cake);
+        let n = disc.unknowns();
+        let mut h = vec![0.0; n];
+        h[0] = model.drive.initial_well_head_m();
+        let control = model.drive.control();
+        let linear = disc.is_linear() && !model.drive.is_head_dependent();
+        Stepper {
+            disc,
+            control,
+            y: h.clone(),
+            h,
+            lower: vec![0.0; n],
+            diag: vec![0.0; n],
+            upper: vec![0.0; n],
+            rhs: vec![0.0; n],
+            scratch: vec![0.0; n],
+            factored: Factored::with_size(n),
+            factored_for: None,
+            linear,
+            newton_tolerance: model.numerics.newton_tolerance,
+            newton_max_iterations: model.numerics.newton_max_iterations,
+            time_s: 0.0,
+            balance: StepBalance::default(),
+        }
+    }
+
+    /// Heads at the current time: index 0 is the in-well head, 1..=N the cells, m.
+    pub fn heads(&self) -> &[f64] {
+        &self.h
+    }
+
+    /// θ-point heads of the last step, m.
+    pub fn theta_heads(&self) -> &[f64] {
+        &self.y
+    }
+
+    /// Rebuilds the face laws after the cake changed.
+    pub fn set_cake(&mut self, model: &Model, cake: Option<CakeState>) {
+        self.disc.rebuild_faces(model, cake);
+        self.factored_for = None;
+    }
+
+    /// True when the step is solved directly (no Newton iteration).
+    pub fn is_linear(&self) -> bool {
+        self.linear
+    }
+
+    /// Advances by `dt` with the θ-scheme. On error the state is unchanged.
+    pub fn step(&mut self, model: &Model, dt: f64, theta: f64) -> Result<(), SolverError> {
+        let tdt = theta * dt;
+        let t_new = self.time_s + dt;
+        let t_theta = self.time_s + tdt;
+        let iterations = if self.linear {
+            self.solve_linear(model, tdt, theta, t_new, t_theta)?;
+            0
+        } else {
+            self.solve_newton(model, tdt, theta, t_new, t_theta)?
+        };
+        // Extrapolate to the end of the step and keep the balance.
+        let n = self.h.len();
+        let mut storage_change = 0.0;
+        let mut energy_change = 0.0;
+        let mut numerical = 0.0;
+        let mut vol_scale = 0.0f64;
+        for j in 0..n {
+            let h_new = (self.y[j] - (1.0 - theta) * self.h[j]) / theta;
+            if !h_new.is_finite() {
+                return Err(SolverError::NonFinite {
+                    time_s: t_new,
+                    index: j,
+                });
+            }
+            if j > 0 {
+                let s = self.disc.storage[j];
+                let dh = h_new - self.h[j];
+                storage_change += s * dh;
+                vol_scale = vol_scale.max((s * dh).abs());
+                energy_change += 0.5 * s * (h_new * h_new - self.h[j] * self.h[j]);
+                numerical += (theta - 0.5) * s * dh * dh;
+            }
+            self.scratch[j] = h_new;
+        }
+        let mut dissipated = [0.0; ZONE_COUNT];
+        let faces = &self.disc.faces;
+        let last = n - 1;
+        for (j, face) in faces.iter().enumerate().take(last) {
+            face.add_dissipation(self.y[j] - self.y[j + 1], &mut dissipated);
+        }
+        let mut q_out = 0.0;
+        if self.disc.outer_open {
+            q_out = faces[last].flow(self.y[last]).0;
+            faces[last].add_dissipation(self.y[last], &mut dissipated);
+        }
+        let q_in = faces[0].flow(self.y[0] - self.y[1]).0;
+        let (q_dev, _) = match self.control {
+            Control::Head => (0.0, 0.0),
+            Control::Flow => model.drive.device_flow(t_theta, self.y[0]),
+        };
+        for d in &mut dissipated {
+            *d *= dt;
+        }
+        let volume_in = dt * q_in;
+        let volume_out = dt * q_out;
+        let mass = storage_change - volume_in + volume_out;
+        let vscale = vol_scale
+            .max(volume_in.abs())
+            .max(volume_out.abs())
+            .max(storage_change.abs());
+        let energy_in = dt * self.y[0] * q_in;
+        let diss: f64 = dissipated.iter().sum();
+        let e_res = energy_change + numerical + diss - energy_in;
+        let escale = energy_change
+            .abs()
+            .max(numerical.abs())
+            .max(diss)
+            .max(energy_in.abs());
+        self.balance = StepBalance {
+            dt_s: dt,
+            theta,
+            volume_in_m3: volume_in,
+            volume_out_m3: volume_out,
+            storage_change_m3: storage_change,
+            device_volume_m3: dt * q_dev,
+            energy_in,
+            dissipated,
+            storage_energy_change: energy_change,
+            numerical_dissipation: numerical,
+            device_energy: dt * self.y[0] * q_dev,
+            mass_residual: if vscale > 0.0 {
+                mass.abs() / vscale
+            } else {
+                0.0
+            },
+            energy_residual: if escale > 0.0 {
+                e_res.abs() / escale
+            } else {
+                0.0
+            },
+            newton_iterations: iterations,
+        };
+        std::mem::swap(&mut self.h, &mut self.scratch);
+        self.time_s = t_new;
+        Ok(())
+    }
+
+    /// Right-hand side of the well row and its diagonal term from the device.
+    fn well_row(&self, model: &Model, tdt: f64, theta: f64, t_new: f64, t_theta: f64) -> WellRow {
+        match self.control {
+            Control::Head => {
+                WellRow::Fixed(theta * model.drive.head_m(t_new) + (1.0 - theta) * self.h[0])
+            }
+            Control::Flow => {
+                let (q, dq) = model.drive.device_flow(t_theta, self.y[0]);
+                WellRow::Storage {
+                    s_over_tdt: self.disc.storage[0] / tdt,
+                    q,
+                    dq,
+                }
+            }
+        }
+    }
+
+    fn solve_linear(
+        &mut self,
+        model: &Model,
+        tdt: f64,
+        theta: f64,
+        t_new: f64,
+        t_theta: f64,
+    ) -> Result<(), SolverError> {
+        let n = self.h.len();
+        let well = self.well_row(model, tdt, theta, t_new, t_theta);
+        if self.factored_for != Some(tdt) {
+            for j in 0..n {
+                self.lower[j] = 0.0;
+                self.upper[j] = 0.0;
+                self.diag[j] = if j == 0 {
+                    0.0
+                } else {
+                    self.disc.storage[j] / tdt
+                };
+            }
+            let last = n - 1;
+            for j in 0..last {
+                let c = self.disc.faces[j].conductance();
+                self.diag[j] += c;
+                self.upper[j] = -c;
+                self.diag[j + 1] += c;
+                self.lower[j + 1] = -c;
+            }
+            if self.disc.outer_open {
+                self.diag[last] += self.disc.faces[last].conductance();
+            }
+            match well {
+                WellRow::Fixed(_) => {
+                    self.diag[0] = 1.0;
+                    self.upper[0] = 0.0;
+                }
+                WellRow::Storage { s_over_tdt, .. } => self.diag[0] += s_over_tdt,
+            }
+            self.factored.factor(&self.lower, &self.diag, &self.upper)?;
+            self.factored_for = Some(tdt);
+        }
+        self.y[0] = match well {
+            WellRow::Fixed(v) => v,
+            WellRow::Storage { s_over_tdt, q, .. } => s_over_tdt * self.h[0] + q,
+        };
+        for j in 1..n {
+            self.y[j] = self.disc.storage[j] / tdt * self.h[j];
+        }
+        self.factored.solve(&mut self.y);
+        Ok(())
+    }
+
+    fn solve_newton(
+        &mut self,
+        model: &Model,
+        tdt: f64,
+        theta: f64,
+        t_new: f64,
+        t_theta: f64,
+    ) -> Result<usize, SolverError> {
+        let n = self.h.len();
+        let last = n - 1;
+        self.y.copy_from_slice(&self.h);
+        let mut residual = f64::INFINITY;
+        for iteration in 0..=self.newton_max_iterations {
+            let well = self.well_row(model, tdt, theta, t_new, t_theta);
+            // Residual R (in rhs) and Jacobian J (lower, diag, upper); scale in scratch.
+            for j in 0..n {
+                let s = if j == 0 {
+                    0.0
+                } else {
+                    self.disc.storage[j] / tdt
+                };
+                self.diag[j] = s;
+                self.lower[j] = 0.0;
+                self.upper[j] = 0.0;
+                let acc = s * (self.y[j] - self.h[j]);
+                self.rhs[j] = acc;
+                self.scratch[j] = acc.abs();
+            }
+            for j in 0..last {
+                let (q, g) = self.disc.faces[j].flow(self.y[j] - self.y[j + 1]);
+                self.rhs[j] += q;
+                self.rhs[j + 1] -= q;
+                self.scratch[j] += q.abs();
+                self.scratch[j + 1] += q.abs();
+                self.diag[j] += g;
+                self.diag[j + 1] += g;
+                self.upper[j] = -g;
+                self.lower[j + 1] = -g;
+            }
+            if self.disc.outer_open {
+                let (q, g) = self.disc.faces[last].flow(self.y[last]);
+                self.rhs[last] += q;
+                self.scratch[last] += q.abs();
+                self.diag[last] += g;
+            }
+            match well {
+                WellRow::Fixed(v) => {
+                    self.rhs[0] = self.y[0] - v;
+                    self.scratch[0] = 0.0;
+                    self.diag[0] = 1.0;
+                    self.upper[0] = 0.0;
+                }
+                WellRow::Storage { s_over_tdt, q, dq } => {
+                    let acc = s_over_tdt * (self.y[0] - self.h[0]);
+                    self.rhs[0] += acc - q;
+                    self.scratch[0] += acc.abs() + q.abs();
+                    self.diag[0] += s_over_tdt - dq;
+                }
+            }
+            let scale = self.scratch.iter().fold(0.0f64, |a, &b| a.max(b));
+            let worst = self
+                .rhs
+                .iter()
+                .skip(usize::from(matches!(well, WellRow::Fixed(_))))
+                .fold(0.0f64, |a, &b| a.max(b.abs()));
+            let fixed_ok = match well {
+                WellRow::Fixed(v) => self.y[0] == v,
+                WellRow::Storage { .. } => true,
+            };
+            residual = if scale > 0.0 { worst / scale } else { 0.0 };
+            if fixed_ok && residual <= self.newton_tolerance {
+                return Ok(iteration);
+            }
+            if iteration == self.newton_max_iterations {
+                break;
+            }
+            for r in &mut self.rhs {
+                *r = -*r;
+            }
+            tridiag::solve(
+                &self.lower,
+                &self.diag,
+                &self.upper,
+                &mut self.rhs,
+                &mut self.scratch,
+            )?;
+            for (y, d) in self.y.iter_mut().zip(&self.rhs) {
+                *y += d;
+            }
+            if let WellRow::Fixed(v) = well {
+                self.y[0] = v;
+            }
+        }
+        Err(SolverError::NewtonFailed {
+            time_s: t_new,
+            iterations: self.newton_max_iterations,
+            residual,
+        })
+    }
+}
+
+#[derive(Debug, Clone, Copy)]
+enum WellRow {
+    Fixed(f64),
+    Storage { s_over_tdt: f64, q: f64, dq: f64 },
+}

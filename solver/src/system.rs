@@ -1,0 +1,139 @@
+//! The discrete system: storage of every unknown and the flow law of every face.
+//!
+//! Unknown 0 is the in-well head, unknowns 1..=N the cells. Face j (0 ≤ j < N) joins unknown
+//! j to unknown j + 1; face N joins the last cell to the outer boundary (h = 0), and is not
+//! used with a no-flow boundary.
+//!
+//! ```text
+//! storage of cell i:  S_i = Ss_i π b (r_{i+1/2}² − r_{i−1/2}²)       m²   (PHYSICS.md §1.2)
+//! storage of the well: C = π r_c² (free surface) or as given          m²
+//! ```
+
+use crate::faces::{half_cell, Face, Segment};
+use crate::grid::{Grid, Zone};
+use crate::model::{Medium, Model, OuterBoundary};
+use crate::water::GRAVITY_M_S2;
+use std::f64::consts::PI;
+
+/// Current state of the wall cake (it may erode during a run).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct CakeState {
+    /// Thickness δ_c, m.
+    pub thickness_m: f64,
+    /// Covered fraction of the borehole face, –.
+    pub coverage: f64,
+}
+
+/// Grid, storage and face laws of a model.
+#[derive(Debug, Clone)]
+pub struct Discretization {
+    /// The radial grid.
+    pub grid: Grid,
+    /// Storage capacity of each unknown, m² (index 0 = well).
+    pub storage: Vec<f64>,
+    /// Flow law of each face (N + 1 faces).
+    pub faces: Vec<Face>,
+    /// Whether face N (to the outer boundary) carries flow.
+    pub outer_open: bool,
+    /// Medium of each cell.
+    pub media: Vec<Medium>,
+}
+
+fn medium_of(model: &Model, zone: Zone) -> Medium {
+    match zone {
+        Zone::Pack => model.pack.medium,
+        Zone::Invaded => model.invaded.map_or(model.formation.medium, |z| z.medium),
+        _ => model.formation.medium,
+    }
+}
+
+impl Discretization {
+    /// Builds the discrete system of a validated model with the cake in `cake` state.
+    pub fn new(model: &Model, cake: Option<CakeState>) -> Discretization {
+        let grid = Grid::build(model);
+        let n = grid.cells();
+        let b = model.well.screen_length_m;
+        let media: Vec<Medium> = grid.zone.iter().map(|&z| medium_of(model, z)).collect();
+        let mut storage = Vec::with_capacity(n + 1);
+        storage.push(model.well.storage_m2);
+        for (c, m) in media.iter().enumerate() {
+            let (r1, r2) = (grid.r_face[c], grid.r_face[c + 1]);
+            storage.push(m.specific_storage_per_m * PI * b * (r2 * r2 - r1 * r1));
+        }
+        let mut d = Discretization {
+            grid,
+            storage,
+            faces: Vec::with_capacity(n + 1),
+            outer_open: model.formation.outer_boundary == OuterBoundary::FixedHead,
+            media,
+        };
+        d.rebuild_faces(model, cake);
+        d
+    }
+
+    /// Recomputes the face laws (after the cake changed). Allocates nothing once built.
+    pub fn rebuild_faces(&mut self, model: &Model, cake: Option<CakeState>) {
+        let Discretization {
+            grid: g,
+            media,
+            faces,
+            ..
+        } = self;
+        let n = g.cells();
+        let b = model.well.screen_length_m;
+        let half = |c: usize, r1: f64, r2: f64| {
+            let m = &media[c];
+            half_cell(
+                g.zone[c],
+                r1,
+                r2,
+                b,
+                m.conductivity_m_s,
+                m.forchheimer_beta_s2_m2,
+            )
+        };
+        faces.clear();
+        // Face 0: screen, then the inner half of the first pack cell.
+        let w = &model.well;
+        let rs = w.screen_radius_m;
+        let r_nl_screen = w.discharge_coefficient.map_or(0.0, |cd| {
+            let a = 2.0 * PI * rs * w.screen_length_m * w.open_area * cd;
+            1.0 / (2.0 * GRAVITY_M_S2 * a * a)
+        });
+        let screen = Segment {
+            zone: Zone::Screen,
+            r_lin: w.linear_loss_s / (2.0 * PI * rs * b),
+            r_nl: r_nl_screen,
+        };
+        faces.push(Face::new(&[screen, half(0, rs, g.r_center[0])]));
+        for j in 1..n {
+            let rf = g.r_face[j];
+            let left = half(j - 1, g.r_center[j - 1], rf);
+            let right = half(j, rf, g.r_center[j]);
+            let face = match (cake, &model.cake) {
+                (Some(st), Some(c)) if j == g.borehole_face && st.thickness_m > 0.0 => {
+                    let seg = Segment {
+                        zone: Zone::Cake,
+                        r_lin: crate::cake::interface_resistance(model, c, st),
+                        r_nl: 0.0,
+                    };
+                    Face::new(&[left, seg, right])
+                }
+                _ => Face::new(&[left, right]),
+            };
+            faces.push(face);
+        }
+        let outer = half(n - 1, g.r_center[n - 1], g.outer_radius_m());
+        faces.push(Face::new(&[outer]));
+    }
+
+    /// Number of unknowns (N + 1).
+    pub fn unknowns(&self) -> usize {
+        self.storage.len()
+    }
+
+    /// True when every face law is linear.
+    pub fn is_linear(&self) -> bool {
+        self.faces.iter().all(Face::is_linear)
+    }
+}
