@@ -118,21 +118,21 @@ impl TableDrive {
             (0.0, t)
         };
         let tol = 1e-12 * last.max(1.0);
-        for (i, &ti) in self.times_s.iter().enumerate() {
-            if ti > tl + tol {
-                let jump = i + 1 < self.times_s.len() && self.times_s[i + 1] == ti;
-                return Some((base + ti, jump));
-            }
-        }
-        if self.repeat && last > 0.0 {
-            // Wrap: does the value jump from the end of one period to the start of the next?
-            let jump = self.values[0] != self.values[self.values.len() - 1];
-            Some((base + last, jump))
-                .filter(|&(te, _)| te > t + tol)
-                .or(Some((base + 2.0 * last, jump)))
-        } else {
-            None
-        }
+        let n = self.times_s.len();
+        // At the end of a repeating table the value wraps to the first row.
+        let wrap_jump = self.repeat && self.values[0] != self.values[n - 1];
+        self.times_s
+            .iter()
+            .enumerate()
+            .find(|&(_, &ti)| ti > tl + tol)
+            .map(|(i, &ti)| {
+                let jump = if i + 1 < n {
+                    self.times_s[i + 1] == ti
+                } else {
+                    wrap_jump
+                };
+                (base + ti, jump)
+            })
     }
 }
 
@@ -271,7 +271,7 @@ impl Drive {
                     ));
                 }
                 for (i, w) in t.times_s.windows(2).enumerate() {
-                    if !(w[1] >= w[0])
+                    if w[1].partial_cmp(&w[0]).is_none_or(|o| o.is_lt())
                         || (i + 2 < t.times_s.len() && w[1] == w[0] && t.times_s[i + 2] == w[1])
                     {
                         return Err(SolverError::invalid(

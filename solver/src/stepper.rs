@@ -26,6 +26,13 @@ use crate::model::Model;
 use crate::system::{CakeState, Discretization};
 use crate::tridiag::{self, Factored};
 
+/// Independent accumulators per running sum (lets the compiler vectorise reductions).
+const LANES: usize = 4;
+
+/// Step length of [`Stepper::solve_steady`], s: storage terms S/Δt vanish beside any
+/// conductance.
+const STEADY_STEP_S: f64 = 1e30;
+
 /// Volumes and energies of the last step, from the θ-point heads (they close the balances).
 /// Energies are in m⁴ (multiply by ρg for joules), volumes in m³.
 #[derive(Debug, Clone, Copy, Default, PartialEq)]
@@ -76,6 +83,8 @@ pub struct Stepper {
     scratch: Vec<f64>,
     factored: Factored,
     factored_for: Option<f64>,
+    /// S_j/(θΔt) of the factored matrix: the right-hand side is gain_j h_j (j ≥ 1).
+    gain: Vec<f64>,
     linear: bool,
     newton_tolerance: f64,
     newton_max_iterations: usize,
@@ -106,6 +115,7 @@ impl Stepper {
             scratch: vec![0.0; n],
             factored: Factored::with_size(n),
             factored_for: None,
+            gain: vec![0.0; n],
             linear,
             newton_tolerance: model.numerics.newton_tolerance,
             newton_max_iterations: model.numerics.newton_max_iterations,
@@ -135,6 +145,17 @@ impl Stepper {
         self.linear
     }
 
+    /// Replaces the state by the steady state under the drive's value at the current time:
+    /// a backward-Euler step so long (1e30 s) that storage drops out, then the clock is
+    /// put back. Only meaningful for a constant drive (constant rate or constant head).
+    pub fn solve_steady(&mut self, model: &Model) -> Result<(), SolverError> {
+        let t = self.time_s;
+        let r = self.step(model, STEADY_STEP_S, 1.0);
+        self.time_s = t;
+        self.factored_for = None;
+        r
+    }
+
     /// Advances by `dt` with the θ-scheme. On error the state is unchanged.
     pub fn step(&mut self, model: &Model, dt: f64, theta: f64) -> Result<(), SolverError> {
         let tdt = theta * dt;
@@ -146,41 +167,57 @@ impl Stepper {
         } else {
             self.solve_newton(model, tdt, theta, t_new, t_theta)?
         };
-        // Extrapolate to the end of the step and keep the balance.
+        // Extrapolate to the end of the step and keep the balance, in one pass.
         let n = self.h.len();
-        let mut storage_change = 0.0;
-        let mut energy_change = 0.0;
-        let mut numerical = 0.0;
-        let mut vol_scale = 0.0f64;
-        for j in 0..n {
-            let h_new = (self.y[j] - (1.0 - theta) * self.h[j]) / theta;
-            if !h_new.is_finite() {
-                return Err(SolverError::NonFinite {
-                    time_s: t_new,
-                    index: j,
-                });
+        let inv_theta = 1.0 / theta;
+        let carry = (1.0 - theta) / theta;
+        self.scratch[0] = self.y[0] * inv_theta - carry * self.h[0];
+        // Four independent lanes per sum so the loop vectorises.
+        let mut acc = [[0.0f64; LANES]; 4];
+        let out = &mut self.scratch[1..];
+        let (y, h, s) = (&self.y[1..], &self.h[1..], &self.disc.storage[1..]);
+        let body = |k: usize, lane: usize, acc: &mut [[f64; LANES]; 4], out: &mut [f64]| {
+            let h_new = y[k] * inv_theta - carry * h[k];
+            let sdh = s[k] * (h_new - h[k]);
+            acc[0][lane] += sdh;
+            acc[1][lane] += sdh * (h_new + h[k]);
+            acc[2][lane] += sdh * (h_new - h[k]);
+            acc[3][lane] += sdh.abs();
+            out[k] = h_new;
+        };
+        let full = out.len() / LANES * LANES;
+        for k0 in (0..full).step_by(LANES) {
+            for lane in 0..LANES {
+                body(k0 + lane, lane, &mut acc, out);
             }
-            if j > 0 {
-                let s = self.disc.storage[j];
-                let dh = h_new - self.h[j];
-                storage_change += s * dh;
-                vol_scale = vol_scale.max((s * dh).abs());
-                energy_change += 0.5 * s * (h_new * h_new - self.h[j] * self.h[j]);
-                numerical += (theta - 0.5) * s * dh * dh;
-            }
-            self.scratch[j] = h_new;
+        }
+        for k in full..out.len() {
+            body(k, 0, &mut acc, out);
+        }
+        let [storage_change, mut energy_change, dh2, vol_scale] =
+            acc.map(|a| a.iter().sum::<f64>());
+        energy_change *= 0.5;
+        let numerical = (theta - 0.5) * dh2;
+        if !(energy_change.is_finite() && self.scratch[0].is_finite()) {
+            let index = self
+                .scratch
+                .iter()
+                .position(|v| !v.is_finite())
+                .unwrap_or(0);
+            return Err(SolverError::NonFinite {
+                time_s: t_new,
+                index,
+            });
         }
         let mut dissipated = [0.0; ZONE_COUNT];
+        self.dissipation(&mut dissipated);
         let faces = &self.disc.faces;
         let last = n - 1;
-        for (j, face) in faces.iter().enumerate().take(last) {
-            face.add_dissipation(self.y[j] - self.y[j + 1], &mut dissipated);
-        }
-        let mut q_out = 0.0;
-        if self.disc.outer_open {
-            q_out = faces[last].flow(self.y[last]).0;
-            faces[last].add_dissipation(self.y[last], &mut dissipated);
-        }
+        let q_out = if self.disc.outer_open {
+            faces[last].flow(self.y[last]).0
+        } else {
+            0.0
+        };
         let q_in = faces[0].flow(self.y[0] - self.y[1]).0;
         let (q_dev, _) = match self.control {
             Control::Head => (0.0, 0.0),
@@ -231,6 +268,41 @@ impl Stepper {
         std::mem::swap(&mut self.h, &mut self.scratch);
         self.time_s = t_new;
         Ok(())
+    }
+
+    /// Dissipation per zone at the θ-point heads, m⁴/s (times ρg: watts).
+    fn dissipation(&self, out: &mut [f64; ZONE_COUNT]) {
+        let d = &self.disc;
+        let y = &self.y;
+        let n = y.len();
+        let dh = |f: usize| y[f] - if f + 1 < n { y[f + 1] } else { 0.0 };
+        if self.linear {
+            for (run, zone) in &d.pure_runs {
+                let end = run.end.min(n - 1);
+                let mut lanes = [0.0f64; LANES];
+                let (c, y0, y1) = (
+                    &d.conductance[run.start..end],
+                    &y[run.start..end],
+                    &y[run.start + 1..=end],
+                );
+                for (k, ((&c, &a), &b)) in c.iter().zip(y0).zip(y1).enumerate() {
+                    lanes[k % LANES] += c * (a - b) * (a - b);
+                }
+                let mut acc: f64 = lanes.iter().sum();
+                if run.end == n {
+                    acc += d.conductance[n - 1] * y[n - 1] * y[n - 1];
+                }
+                out[*zone as usize] += acc;
+            }
+            for &f in &d.mixed_faces {
+                d.faces[f].add_dissipation(dh(f), out);
+            }
+        } else {
+            let used = if d.outer_open { n } else { n - 1 };
+            for (f, face) in d.faces.iter().enumerate().take(used) {
+                face.add_dissipation(dh(f), out);
+            }
+        }
     }
 
     /// Right-hand side of the well row and its diagonal term from the device.
@@ -289,14 +361,22 @@ impl Stepper {
                 WellRow::Storage { s_over_tdt, .. } => self.diag[0] += s_over_tdt,
             }
             self.factored.factor(&self.lower, &self.diag, &self.upper)?;
+            for (g, &s) in self.gain.iter_mut().zip(&self.disc.storage) {
+                *g = s / tdt;
+            }
             self.factored_for = Some(tdt);
         }
-        self.y[0] = match well {
+        let d0 = match well {
             WellRow::Fixed(v) => v,
             WellRow::Storage { s_over_tdt, q, .. } => s_over_tdt * self.h[0] + q,
         };
-        for j in 1..n {
-            self.y[j] = self.disc.storage[j] / tdt * self.h[j];
+        self.y[0] = d0;
+        for ((y, &g), &h) in self.y[1..]
+            .iter_mut()
+            .zip(&self.gain[1..])
+            .zip(&self.h[1..])
+        {
+            *y = g * h;
         }
         self.factored.solve(&mut self.y);
         Ok(())

@@ -37,6 +37,13 @@ pub struct Discretization {
     pub outer_open: bool,
     /// Medium of each cell.
     pub media: Vec<Medium>,
+    /// Conductance of each face at Δh = 0, m²/s (the face law for linear faces).
+    pub conductance: Vec<f64>,
+    /// Runs of consecutive faces whose segments all lie in one zone (their dissipation is
+    /// C Δh² when linear), and the faces that straddle zones.
+    pub pure_runs: Vec<(std::ops::Range<usize>, Zone)>,
+    /// Faces whose segments lie in more than one zone.
+    pub mixed_faces: Vec<usize>,
 }
 
 fn medium_of(model: &Model, zone: Zone) -> Medium {
@@ -66,6 +73,9 @@ impl Discretization {
             faces: Vec::with_capacity(n + 1),
             outer_open: model.formation.outer_boundary == OuterBoundary::FixedHead,
             media,
+            conductance: Vec::with_capacity(n + 1),
+            pure_runs: Vec::new(),
+            mixed_faces: Vec::new(),
         };
         d.rebuild_faces(model, cake);
         d
@@ -125,6 +135,32 @@ impl Discretization {
         }
         let outer = half(n - 1, g.r_center[n - 1], g.outer_radius_m());
         faces.push(Face::new(&[outer]));
+        self.conductance.clear();
+        self.conductance
+            .extend(self.faces.iter().map(Face::conductance));
+        self.classify_faces();
+    }
+
+    fn classify_faces(&mut self) {
+        self.pure_runs.clear();
+        self.mixed_faces.clear();
+        let used = if self.outer_open {
+            self.faces.len()
+        } else {
+            self.faces.len() - 1
+        };
+        for (f, face) in self.faces.iter().enumerate().take(used) {
+            let segs = face.segments();
+            let zone = segs[0].zone;
+            if segs.iter().any(|s| s.zone != zone) {
+                self.mixed_faces.push(f);
+                continue;
+            }
+            match self.pure_runs.last_mut() {
+                Some((run, z)) if *z == zone && run.end == f => run.end = f + 1,
+                _ => self.pure_runs.push((f..f + 1, zone)),
+            }
+        }
     }
 
     /// Number of unknowns (N + 1).

@@ -49,7 +49,9 @@ pub fn solve(
 /// A tridiagonal matrix after the forward sweep, for repeated solves.
 #[derive(Debug, Clone, Default)]
 pub struct Factored {
-    lower: Vec<f64>,
+    /// a_i / m_i: the forward sweep is d'_i = d_i/m_i − (a_i/m_i) d'_{i−1}, one multiply-add
+    /// on the dependency chain.
+    lower_scaled: Vec<f64>,
     inv_pivot: Vec<f64>,
     upper_prime: Vec<f64>,
 }
@@ -58,7 +60,7 @@ impl Factored {
     /// Work memory for systems of size n.
     pub fn with_size(n: usize) -> Self {
         Factored {
-            lower: vec![0.0; n],
+            lower_scaled: vec![0.0; n],
             inv_pivot: vec![0.0; n],
             upper_prime: vec![0.0; n],
         }
@@ -81,7 +83,7 @@ impl Factored {
                 return Err(SolverError::TridiagSingular { row: i });
             }
             let inv = 1.0 / m;
-            self.lower[i] = a;
+            self.lower_scaled[i] = a * inv;
             self.inv_pivot[i] = inv;
             prev_up = upper[i] * inv;
             self.upper_prime[i] = prev_up;
@@ -95,8 +97,8 @@ impl Factored {
         let n = rhs.len();
         assert_eq!(n, self.inv_pivot.len());
         let mut prev = 0.0;
-        for ((d, &a), &inv) in rhs.iter_mut().zip(&self.lower).zip(&self.inv_pivot) {
-            prev = (*d - a * prev) * inv;
+        for ((d, &a), &inv) in rhs.iter_mut().zip(&self.lower_scaled).zip(&self.inv_pivot) {
+            prev = *d * inv - a * prev;
             *d = prev;
         }
         let mut next = 0.0;
@@ -130,8 +132,9 @@ mod tests {
             b.swap(k, p);
             for i in k + 1..n {
                 let f = a[i][k] / a[k][k];
-                for j in k..n {
-                    a[i][j] -= f * a[k][j];
+                let pivot_row = a[k].clone();
+                for (x, p) in a[i][k..].iter_mut().zip(&pivot_row[k..]) {
+                    *x -= f * p;
                 }
                 b[i] -= f * b[k];
             }

@@ -1,0 +1,63 @@
+//! Runs every verification group and fails on any check outside its tolerance.
+
+use boreflux_verify::{groups, CheckResult};
+
+fn assert_group(id: &str) {
+    let g = groups()
+        .into_iter()
+        .find(|g| g.id == id)
+        .expect("group exists");
+    let results: Vec<CheckResult> = (g.run)();
+    assert!(!results.is_empty(), "group {id} compared nothing");
+    for r in &results {
+        eprintln!(
+            "{:>9} {:<60} error {:.3e} (tol {:.1e} {})",
+            if r.passed { "ok" } else { "FAIL" },
+            r.name,
+            r.error,
+            r.tolerance,
+            r.metric
+        );
+    }
+    let failed: Vec<_> = results.iter().filter(|r| !r.passed).collect();
+    assert!(
+        failed.is_empty(),
+        "{} checks failed in {id}: {failed:#?}",
+        failed.len()
+    );
+}
+
+#[test]
+fn thiem_steady_composite() {
+    assert_group("thiem");
+}
+
+#[test]
+fn theis_constant_rate() {
+    assert_group("theis");
+}
+
+#[test]
+fn periodic_head_amplitude_and_phase() {
+    assert_group("periodic");
+}
+
+#[test]
+fn slug_cooper_bredehoeft_papadopulos() {
+    assert_group("slug");
+}
+
+#[test]
+fn pumping_with_wellbore_storage_and_skin() {
+    assert_group("storage");
+}
+
+#[test]
+fn mass_and_energy_balance() {
+    assert_group("balance");
+}
+
+#[test]
+fn crank_nicolson_second_order() {
+    assert_group("order");
+}
