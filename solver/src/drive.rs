@@ -5,6 +5,7 @@
 //! Sign convention: positive flow is outward, from the well into the formation, so a
 //! pumping (withdrawal) rate enters as a negative device flow.
 
+use crate::devices::{JetPulse, PumpBackwash, SurgeBlock, Swab};
 use crate::error::SolverError;
 use std::f64::consts::PI;
 
@@ -70,6 +71,44 @@ pub enum Drive {
     },
     /// Tabulated head or pumping rate.
     Table(TableDrive),
+    /// Surge block working in the casing.
+    SurgeBlock(SurgeBlock),
+    /// Swab lifting water out of the well.
+    Swab(Swab),
+    /// Pump-and-backwash surging.
+    PumpBackwash(PumpBackwash),
+    /// Rotating jet, as head pulses.
+    JetPulse(JetPulse),
+    /// Stages run back to back, state carried over.
+    Schedule(Vec<Stage>),
+}
+
+/// One stage of a schedule.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Stage {
+    /// What drives the well in this stage (not itself a schedule).
+    pub drive: Drive,
+    /// Length of the stage, s.
+    pub duration_s: f64,
+}
+
+/// Volume rates a device adds to the well node, m³/s (positive outward), and the derivative
+/// of their sum with respect to the in-well head, m²/s.
+#[derive(Debug, Clone, Copy, Default, PartialEq)]
+pub struct DeviceFlow {
+    /// Rate imposed by the device: displacement, pumping, lifting, backflow.
+    pub displacement_m3_s: f64,
+    /// Leakage that depends on the in-well head (clearance, valves).
+    pub bypass_m3_s: f64,
+    /// d(displacement + bypass)/dH.
+    pub d_dh_m2_s: f64,
+}
+
+impl DeviceFlow {
+    /// Total flow added to the well node, m³/s.
+    pub fn total(&self) -> f64 {
+        self.displacement_m3_s + self.bypass_m3_s
+    }
 }
 
 impl TableDrive {
@@ -137,10 +176,28 @@ impl TableDrive {
 }
 
 impl Drive {
-    /// Whether the drive prescribes head or adds flow.
-    pub fn control(&self) -> Control {
+    /// The stage active at time t and the time since it began (a drive that is not a
+    /// schedule is its own single stage).
+    fn stage_at(&self, t: f64) -> (&Drive, f64) {
         match self {
-            Drive::SineHead(_) => Control::Head,
+            Drive::Schedule(stages) => {
+                let mut start = 0.0;
+                for (k, s) in stages.iter().enumerate() {
+                    if t < start + s.duration_s || k + 1 == stages.len() {
+                        return (&s.drive, t - start);
+                    }
+                    start += s.duration_s;
+                }
+                unreachable!("a schedule has at least one stage")
+            }
+            d => (d, t),
+        }
+    }
+
+    /// Whether the drive prescribes head or adds flow at time t.
+    pub fn control_at(&self, t: f64) -> Control {
+        match self.stage_at(t).0 {
+            Drive::SineHead(_) | Drive::JetPulse(_) => Control::Head,
             Drive::Table(t) if t.quantity == TableQuantity::Head => Control::Head,
             _ => Control::Flow,
         }
@@ -148,7 +205,8 @@ impl Drive {
 
     /// Prescribed in-well head at time t, m (head-controlled drives; 0 otherwise).
     pub fn head_m(&self, t: f64) -> f64 {
-        match self {
+        let (d, t) = self.stage_at(t);
+        match d {
             Drive::SineHead(s) => {
                 let period = 1.0 / s.frequency_hz;
                 let ramp = if s.ramp_cycles > 0.0 {
@@ -159,41 +217,118 @@ impl Drive {
                 s.offset_m + ramp * s.amplitude_m * (2.0 * PI * s.frequency_hz * t).sin()
             }
             Drive::Table(tab) if tab.quantity == TableQuantity::Head => tab.value_at(t),
+            Drive::JetPulse(j) => j.head_m(t),
             _ => 0.0,
         }
     }
 
-    /// Volume rate the device adds to the well's water column at time t with in-well head
-    /// `h_well_m`, m³/s (positive = outward), and its derivative with respect to the
-    /// in-well head, m²/s.
-    pub fn device_flow(&self, t: f64, _h_well_m: f64) -> (f64, f64) {
-        match self {
-            Drive::ConstantRate { pumping_rate_m3_s } => (-pumping_rate_m3_s, 0.0),
+    /// Volume rates the device adds to the well's water column at time t with in-well head
+    /// `h_well_m` (flow-controlled drives).
+    pub fn device_flow(&self, t: f64, h_well_m: f64) -> DeviceFlow {
+        let (d, t) = self.stage_at(t);
+        let displacement = |q: f64| DeviceFlow {
+            displacement_m3_s: q,
+            ..DeviceFlow::default()
+        };
+        match d {
+            Drive::ConstantRate { pumping_rate_m3_s } => displacement(-pumping_rate_m3_s),
             Drive::Table(tab) if tab.quantity == TableQuantity::PumpingRate => {
-                (-tab.value_at(t), 0.0)
+                displacement(-tab.value_at(t))
             }
-            _ => (0.0, 0.0),
+            Drive::SurgeBlock(b) => {
+                let (q, bypass, d) = b.flows(t, h_well_m);
+                DeviceFlow {
+                    displacement_m3_s: q,
+                    bypass_m3_s: bypass,
+                    d_dh_m2_s: d,
+                }
+            }
+            Drive::Swab(s) => {
+                let (q, d) = s.flows(t, h_well_m);
+                DeviceFlow {
+                    displacement_m3_s: q,
+                    bypass_m3_s: 0.0,
+                    d_dh_m2_s: d,
+                }
+            }
+            Drive::PumpBackwash(p) => displacement(p.flow(t)),
+            _ => DeviceFlow::default(),
+        }
+    }
+
+    /// Storage of the well node at time t, m²: the sealed elastic storage below a surge
+    /// block, otherwise the well's own (`well_storage_m2`).
+    pub fn well_storage_m2(&self, t: f64, well_storage_m2: f64) -> f64 {
+        match self.stage_at(t).0 {
+            Drive::SurgeBlock(b) => b.sealed_storage_m2,
+            _ => well_storage_m2,
         }
     }
 
     /// True when the device flow depends on the in-well head (then every step iterates).
     pub fn is_head_dependent(&self) -> bool {
-        false
+        match self {
+            Drive::SurgeBlock(_) | Drive::Swab(_) => true,
+            Drive::Schedule(stages) => stages.iter().any(|s| s.drive.is_head_dependent()),
+            _ => false,
+        }
     }
 
     /// In-well head at t = 0, m.
     pub fn initial_well_head_m(&self) -> f64 {
-        match self {
+        match self.stage_at(0.0).0 {
             Drive::Slug { initial_head_m } => *initial_head_m,
             _ => self.head_m(0.0),
         }
     }
 
-    /// Period of a periodic drive, s.
+    /// Period of a periodic drive, s (a schedule is periodic when all its stages share one).
     pub fn period_s(&self) -> Option<f64> {
         match self {
             Drive::SineHead(s) => Some(1.0 / s.frequency_hz),
             Drive::Table(t) if t.repeat => t.times_s.last().copied(),
+            Drive::SurgeBlock(b) => Some(1.0 / b.frequency_hz),
+            Drive::Swab(s) => Some(s.period_s()),
+            Drive::PumpBackwash(p) => Some(p.period_s()),
+            Drive::JetPulse(j) => Some(j.period_s()),
+            Drive::Schedule(stages) => {
+                let p = stages[0].drive.period_s()?;
+                stages
+                    .iter()
+                    .all(|s| {
+                        s.drive.period_s() == Some(p)
+                            && (s.duration_s / p - (s.duration_s / p).round()).abs() < 1e-9
+                    })
+                    .then_some(p)
+            }
+            _ => None,
+        }
+    }
+
+    /// Period of the stage active at time t, s.
+    pub fn period_at(&self, t: f64) -> Option<f64> {
+        self.stage_at(t).0.period_s()
+    }
+
+    /// Slowest period among the stages, s (for the automatic outer radius).
+    pub fn slowest_period_s(&self) -> Option<f64> {
+        match self {
+            Drive::Schedule(stages) => stages
+                .iter()
+                .filter_map(|s| s.drive.period_s())
+                .reduce(f64::max),
+            d => d.period_s(),
+        }
+    }
+
+    /// Largest step that resolves the drive's shortest feature, s.
+    pub fn max_step_s(&self) -> Option<f64> {
+        match self {
+            Drive::JetPulse(j) => Some(j.pulse_s() / 20.0),
+            Drive::Schedule(stages) => stages
+                .iter()
+                .filter_map(|s| s.drive.max_step_s())
+                .reduce(f64::min),
             _ => None,
         }
     }
@@ -203,6 +338,8 @@ impl Drive {
     pub fn is_zero_mean_periodic(&self) -> bool {
         match self {
             Drive::SineHead(s) => s.offset_m == 0.0,
+            Drive::SurgeBlock(_) => true,
+            Drive::Schedule(stages) => stages.iter().all(|s| s.drive.is_zero_mean_periodic()),
             _ => false,
         }
     }
@@ -215,6 +352,27 @@ impl Drive {
             Drive::SineHead(s) if s.ramp_cycles > 0.0 => {
                 let end = s.ramp_cycles / s.frequency_hz;
                 (end > t).then_some((end, false))
+            }
+            Drive::Swab(s) => s.events(t),
+            Drive::PumpBackwash(p) => p.events(t),
+            Drive::JetPulse(j) => j.events(t),
+            Drive::Schedule(stages) => {
+                let mut start = 0.0;
+                for s in stages {
+                    let end = start + s.duration_s;
+                    if t < end - 1e-12 * end.max(1.0) {
+                        let inner = s
+                            .drive
+                            .next_event_s(t - start)
+                            .map(|(te, j)| (te + start, j));
+                        return Some(match inner {
+                            Some((te, j)) if te < end => (te, j),
+                            _ => (end, true),
+                        });
+                    }
+                    start = end;
+                }
+                None
             }
             _ => None,
         }
@@ -253,6 +411,39 @@ impl Drive {
                 finite("drive.pumping_rate", *pumping_rate_m3_s)?
             }
             Drive::Slug { initial_head_m } => finite("drive.initial_head", *initial_head_m)?,
+            Drive::SurgeBlock(b) => b.validate()?,
+            Drive::Swab(s) => s.validate()?,
+            Drive::PumpBackwash(p) => p.validate()?,
+            Drive::JetPulse(j) => j.validate()?,
+            Drive::Schedule(stages) => {
+                if stages.is_empty() {
+                    return Err(SolverError::invalid(
+                        "drive.stages",
+                        "needs at least one stage",
+                    ));
+                }
+                for (k, s) in stages.iter().enumerate() {
+                    if matches!(s.drive, Drive::Schedule(_)) {
+                        return Err(SolverError::invalid(
+                            format!("drive.stages[{k}]"),
+                            "a stage cannot itself be a schedule",
+                        ));
+                    }
+                    if !(s.duration_s.is_finite() && s.duration_s > 0.0) {
+                        return Err(SolverError::invalid(
+                            format!("drive.stages[{k}].duration"),
+                            format!("must be positive, got {}", s.duration_s),
+                        ));
+                    }
+                    s.drive.validate().map_err(|e| match e {
+                        SolverError::InvalidInput { field, reason } => SolverError::InvalidInput {
+                            field: field.replacen("drive", &format!("drive.stages[{k}]"), 1),
+                            reason,
+                        },
+                        other => other,
+                    })?;
+                }
+            }
             Drive::Table(t) => {
                 if t.times_s.len() < 2 || t.times_s.len() != t.values.len() {
                     return Err(SolverError::invalid(

@@ -94,7 +94,7 @@ pub fn auto_outer_radius(model: &Model) -> f64 {
     let r_d = model.invaded_outer_radius_m();
     let d = model.formation.medium.diffusivity_m2_s();
     let mut r = 10.0 * r_d;
-    if let Some(p) = model.drive.period_s() {
+    if let Some(p) = model.drive.slowest_period_s() {
         let delta = (d * p / std::f64::consts::PI).sqrt();
         r = r.max(r_d + 20.0 * delta);
     }

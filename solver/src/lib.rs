@@ -10,6 +10,7 @@
 #![deny(missing_docs)]
 
 pub mod cake;
+pub mod devices;
 pub mod diagnostics;
 pub mod drive;
 pub mod error;

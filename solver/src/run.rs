@@ -10,6 +10,7 @@
 
 use crate::cake;
 use crate::diagnostics::{face_state, power_now, CycleAccumulator, StepObserver, StepView};
+use crate::drive::Drive;
 use crate::error::SolverError;
 use crate::grid::ZONE_COUNT;
 use crate::model::{Model, TimeSpec};
@@ -65,6 +66,21 @@ pub struct RunSummary {
     pub cake_thickness_m: (f64, f64),
     /// Skin at the start and at the end, –.
     pub skin: (f64, f64),
+    /// Volume displaced into the well by the device (pumping, lifting, block), m³.
+    pub device_volume_m3: f64,
+    /// Volume leaked into the well node past the device, m³.
+    pub bypass_volume_m3: f64,
+    /// Net volume through the screen into the formation, m³.
+    pub screen_volume_m3: f64,
+    /// Change of water stored in the well node, m³.
+    pub well_storage_change_m3: f64,
+    /// Largest head by which the pack side of the screen exceeded the inside (the
+    /// collapse direction), m; 0 if never.
+    pub peak_collapse_head_m: f64,
+    /// Largest head by which the inside exceeded the pack side of the screen, m.
+    pub peak_burst_head_m: f64,
+    /// Lowest and highest in-well head, m.
+    pub well_head_range_m: (f64, f64),
     /// Whether the observer stopped the run early.
     pub stopped_early: bool,
     /// Warnings that did not stop the run.
@@ -84,10 +100,11 @@ impl Default for Reporting {
     }
 }
 
-/// Nominal step at time t.
-fn nominal_dt(model: &Model, t: f64) -> f64 {
-    let period = model.drive.period_s();
-    match (model.numerics.time, period) {
+/// Nominal step at time t; `since_jump` is the time since the last jump of the forcing
+/// (geometric steps restart from it).
+fn nominal_dt(model: &Model, t: f64, since_jump: f64) -> f64 {
+    let period = model.drive.period_at(t);
+    let dt = match (model.numerics.time, period) {
         (TimeSpec::Fixed(dt), _) => dt,
         (TimeSpec::StepsPerCycle(n), Some(p)) => p / n as f64,
         (TimeSpec::Auto, Some(p)) => p / DEFAULT_STEPS_PER_CYCLE as f64,
@@ -97,12 +114,13 @@ fn nominal_dt(model: &Model, t: f64) -> f64 {
                 first_step_s,
             },
             _,
-        ) => first_step_s.max(t * (10f64.powf(1.0 / per_decade) - 1.0)),
+        ) => first_step_s.max(since_jump * (10f64.powf(1.0 / per_decade) - 1.0)),
         (_, None) => {
             let first = default_first_step(model);
-            first.max(t * (10f64.powf(1.0 / DEFAULT_STEPS_PER_DECADE) - 1.0))
+            first.max(since_jump * (10f64.powf(1.0 / DEFAULT_STEPS_PER_DECADE) - 1.0))
         }
-    }
+    };
+    model.drive.max_step_s().map_or(dt, |m| dt.min(m))
 }
 
 /// First step of the geometric sequence: 1e−8 of the duration, at least 1e−5 s.
@@ -220,9 +238,18 @@ pub fn run(
         max_newton_iterations: 0,
         cake_thickness_m: (cake0, cake0),
         skin: (skin0, skin0),
+        device_volume_m3: 0.0,
+        bypass_volume_m3: 0.0,
+        screen_volume_m3: 0.0,
+        well_storage_change_m3: 0.0,
+        peak_collapse_head_m: 0.0,
+        peak_burst_head_m: 0.0,
+        well_head_range_m: (f64::INFINITY, f64::NEG_INFINITY),
         stopped_early: false,
         warnings: Vec::new(),
     };
+    let mut last_jump = 0.0;
+    let mut swab_limited = false;
     let mut cycles = model
         .drive
         .period_s()
@@ -236,7 +263,7 @@ pub fn run(
         let t = st.time_s;
         let (target, jump) = clock.next_target(model, t);
         let remaining = target - t;
-        let nominal = nominal_dt(model, t);
+        let nominal = nominal_dt(model, t, t - last_jump);
         let (dt, th) = if let Some(second) = second_half.take() {
             startup_left -= 1;
             (second.min(remaining), 1.0)
@@ -255,6 +282,7 @@ pub fn run(
         if landing {
             st.time_s = target;
             if jump {
+                last_jump = target;
                 startup_left = startup_halves;
             }
         }
@@ -269,12 +297,30 @@ pub fn run(
         summary.max_mass_residual = summary.max_mass_residual.max(b.mass_residual);
         summary.max_energy_residual = summary.max_energy_residual.max(b.energy_residual);
         summary.max_newton_iterations = summary.max_newton_iterations.max(b.newton_iterations);
+        summary.device_volume_m3 += b.device_volume_m3;
+        summary.bypass_volume_m3 += b.bypass_volume_m3;
+        summary.screen_volume_m3 += b.volume_in_m3;
+        summary.well_storage_change_m3 += b.well_storage_change_m3;
         let face = face_state(model, &st);
         if let (Some(c), Some(state)) = (&model.cake, cake_state.as_mut()) {
             if cake::erode(c, state, face.shear_pa, face.flux_m_s, b.dt_s) {
                 st.set_cake(model, cake_state);
                 skin_now = total_skin(model, cake_state);
             }
+        }
+        let h_well = st.heads()[0];
+        summary.peak_collapse_head_m = summary
+            .peak_collapse_head_m
+            .max(face.screen_outer_head_m - h_well);
+        summary.peak_burst_head_m = summary
+            .peak_burst_head_m
+            .max(h_well - face.screen_outer_head_m);
+        summary.well_head_range_m = (
+            summary.well_head_range_m.0.min(h_well),
+            summary.well_head_range_m.1.max(h_well),
+        );
+        if let Drive::Swab(s) = &model.drive {
+            swab_limited |= s.limited(h_well);
         }
         summary.peak_outward_flux_m_s = summary.peak_outward_flux_m_s.max(face.flux_m_s);
         summary.peak_inward_flux_m_s = summary.peak_inward_flux_m_s.max(-face.flux_m_s);
@@ -342,6 +388,13 @@ pub fn run(
         0.0
     };
     summary.cake_thickness_m.1 = cake_state.map_or(0.0, |c| c.thickness_m);
+    if swab_limited {
+        summary.warnings.push(
+            "the swab drew the well down to its submergence: the column parted and inflow was \
+             limited by what the formation could supply; lift more slowly or set the swab deeper"
+                .to_string(),
+        );
+    }
     summary.skin.1 = skin_now;
     Ok(summary)
 }

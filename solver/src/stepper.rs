@@ -47,8 +47,12 @@ pub struct StepBalance {
     pub volume_out_m3: f64,
     /// Change of aquifer storage Σ S Δh, m³.
     pub storage_change_m3: f64,
-    /// Volume the device added to the well, m³.
+    /// Volume the device displaced into the well (pumping, lifting, block), m³.
     pub device_volume_m3: f64,
+    /// Volume that leaked into the well node past the device (clearance, valves), m³.
+    pub bypass_volume_m3: f64,
+    /// Change of water stored in the well node S_w ΔH, m³.
+    pub well_storage_change_m3: f64,
     /// Energy into the aquifer at the screen (in-well head × flow), m⁴.
     pub energy_in: f64,
     /// Energy dissipated per zone, m⁴.
@@ -72,7 +76,6 @@ pub struct StepBalance {
 pub struct Stepper {
     /// Discrete system.
     pub disc: Discretization,
-    control: Control,
     /// Heads at the current time (index 0 = well), m.
     h: Vec<f64>,
     y: Vec<f64>,
@@ -82,7 +85,7 @@ pub struct Stepper {
     rhs: Vec<f64>,
     scratch: Vec<f64>,
     factored: Factored,
-    factored_for: Option<f64>,
+    factored_for: Option<(f64, Control, f64)>,
     /// S_j/(θΔt) of the factored matrix: the right-hand side is gain_j h_j (j ≥ 1).
     gain: Vec<f64>,
     linear: bool,
@@ -101,11 +104,9 @@ impl Stepper {
         let n = disc.unknowns();
         let mut h = vec![0.0; n];
         h[0] = model.drive.initial_well_head_m();
-        let control = model.drive.control();
         let linear = disc.is_linear() && !model.drive.is_head_dependent();
         Stepper {
             disc,
-            control,
             y: h.clone(),
             h,
             lower: vec![0.0; n],
@@ -219,10 +220,11 @@ impl Stepper {
             0.0
         };
         let q_in = faces[0].flow(self.y[0] - self.y[1]).0;
-        let (q_dev, _) = match self.control {
-            Control::Head => (0.0, 0.0),
+        let dev = match model.drive.control_at(t_theta) {
+            Control::Head => crate::drive::DeviceFlow::default(),
             Control::Flow => model.drive.device_flow(t_theta, self.y[0]),
         };
+        let well_storage = model.drive.well_storage_m2(t_theta, self.disc.storage[0]);
         for d in &mut dissipated {
             *d *= dt;
         }
@@ -247,12 +249,14 @@ impl Stepper {
             volume_in_m3: volume_in,
             volume_out_m3: volume_out,
             storage_change_m3: storage_change,
-            device_volume_m3: dt * q_dev,
+            device_volume_m3: dt * dev.displacement_m3_s,
+            bypass_volume_m3: dt * dev.bypass_m3_s,
+            well_storage_change_m3: well_storage * (self.scratch[0] - self.h[0]),
             energy_in,
             dissipated,
             storage_energy_change: energy_change,
             numerical_dissipation: numerical,
-            device_energy: dt * self.y[0] * q_dev,
+            device_energy: dt * self.y[0] * dev.total(),
             mass_residual: if vscale > 0.0 {
                 mass.abs() / vscale
             } else {
@@ -307,16 +311,17 @@ impl Stepper {
 
     /// Right-hand side of the well row and its diagonal term from the device.
     fn well_row(&self, model: &Model, tdt: f64, theta: f64, t_new: f64, t_theta: f64) -> WellRow {
-        match self.control {
+        match model.drive.control_at(t_theta) {
             Control::Head => {
                 WellRow::Fixed(theta * model.drive.head_m(t_new) + (1.0 - theta) * self.h[0])
             }
             Control::Flow => {
-                let (q, dq) = model.drive.device_flow(t_theta, self.y[0]);
+                let dev = model.drive.device_flow(t_theta, self.y[0]);
+                let storage = model.drive.well_storage_m2(t_theta, self.disc.storage[0]);
                 WellRow::Storage {
-                    s_over_tdt: self.disc.storage[0] / tdt,
-                    q,
-                    dq,
+                    s_over_tdt: storage / tdt,
+                    q: dev.total(),
+                    dq: dev.d_dh_m2_s,
                 }
             }
         }
@@ -332,7 +337,11 @@ impl Stepper {
     ) -> Result<(), SolverError> {
         let n = self.h.len();
         let well = self.well_row(model, tdt, theta, t_new, t_theta);
-        if self.factored_for != Some(tdt) {
+        let key = match well {
+            WellRow::Fixed(_) => (tdt, Control::Head, 0.0),
+            WellRow::Storage { s_over_tdt, .. } => (tdt, Control::Flow, s_over_tdt),
+        };
+        if self.factored_for != Some(key) {
             for j in 0..n {
                 self.lower[j] = 0.0;
                 self.upper[j] = 0.0;
@@ -364,7 +373,7 @@ impl Stepper {
             for (g, &s) in self.gain.iter_mut().zip(&self.disc.storage) {
                 *g = s / tdt;
             }
-            self.factored_for = Some(tdt);
+            self.factored_for = Some(key);
         }
         let d0 = match well {
             WellRow::Fixed(v) => v,

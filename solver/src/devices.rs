@@ -1,0 +1,472 @@
+//! Development devices: surge block, swab, pump-and-backwash and jetting pulses.
+//!
+//! Each device either adds a volume rate to the well node (flow control, with the well's
+//! storage) or prescribes the in-well head (the jet). Positive flow is outward (well →
+//! formation). The models are deliberately simple, one-dimensional idealisations; each
+//! states its assumptions.
+
+use crate::error::SolverError;
+use crate::water::GRAVITY_M_S2;
+use std::f64::consts::PI;
+
+/// Compressibility of water used for the sealed storage below a block, 1/Pa (about
+/// 4.6e-10 near 10–20 °C; from memory — verify).
+pub const WATER_COMPRESSIBILITY_PER_PA: f64 = 4.6e-10;
+
+/// Head difference below which the orifice laws are rounded off (keeps dQ/dΔh finite), m.
+const ORIFICE_ROUNDING_M: f64 = 1e-6;
+
+/// Orifice flow `Cd A sign(Δ) sqrt(2g|Δ|)` from the side with the higher head, rounded off
+/// below 1e−6 m of head, m³/s; and its derivative with respect to Δ, m²/s.
+pub fn orifice_flow(cd_area_m2: f64, dh_m: f64) -> (f64, f64) {
+    let root = (dh_m.abs() + ORIFICE_ROUNDING_M).sqrt();
+    let k = cd_area_m2 * (2.0 * GRAVITY_M_S2).sqrt();
+    let q = k * dh_m / root;
+    // d/dΔ [Δ (|Δ|+ε)^{-1/2}] = (|Δ|/2 + ε) (|Δ|+ε)^{-3/2}
+    let dq = k * (0.5 * dh_m.abs() + ORIFICE_ROUNDING_M) / (root * root * root);
+    (q, dq)
+}
+
+/// Amplitude factor of a ramp over the first `ramp_cycles` periods (linear from 0 to 1).
+fn ramp(t: f64, period: f64, ramp_cycles: f64) -> f64 {
+    if ramp_cycles > 0.0 {
+        (t / (ramp_cycles * period)).min(1.0)
+    } else {
+        1.0
+    }
+}
+
+/// How a surge block moves over a stroke.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum Kinematics {
+    /// Velocity π f s sin(2πft): the block starts at the bottom of its stroke.
+    Sinusoidal,
+    /// Constant speed with linear reversals of the given duration, s.
+    Trapezoidal {
+        /// Time to reverse at each end of the stroke, s.
+        reversal_s: f64,
+    },
+}
+
+/// A surge block moving in the casing above the screen.
+///
+/// Water below the block is a sealed volume whose head H is the well node. The block's
+/// displacement `−A_block v` (v > 0 upward) is balanced by flow through the screen, by
+/// leakage past the block through the annular clearance and, for a vented block, through
+/// flap valves that open only when the head below exceeds the head above, and by the
+/// elastic storage of the sealed water. The head above the block is the static level (0):
+///
+/// ```text
+/// C dH/dt = −A_block v(t) + Cd A_gap s(0 − H) sqrt(2g|H|) − [H > 0] Cd A_valve sqrt(2gH) − Q_screen
+/// A_block = π r_block²,  A_gap = π (r_c² − r_block²)
+/// ```
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct SurgeBlock {
+    /// Radius of the block (discs), m.
+    pub block_radius_m: f64,
+    /// Inside radius of the casing where the block works, m.
+    pub casing_radius_m: f64,
+    /// Stroke length (peak to peak), m.
+    pub stroke_m: f64,
+    /// Strokes (full up-and-down cycles) per second, Hz.
+    pub frequency_hz: f64,
+    /// Kinematics of the stroke.
+    pub kinematics: Kinematics,
+    /// Discharge coefficient of the clearance and valves, –.
+    pub discharge_coefficient: f64,
+    /// Open area of the flap valves of a vented block, m² (0 for a solid block).
+    pub valve_area_m2: f64,
+    /// Elastic storage of the sealed water below the block, m².
+    pub sealed_storage_m2: f64,
+    /// The stroke grows linearly from 0 over this many cycles.
+    pub ramp_cycles: f64,
+}
+
+impl SurgeBlock {
+    /// Elastic storage of a water column of radius r and length L, m²: π r² L c_w ρ g.
+    pub fn elastic_storage_m2(radius_m: f64, length_m: f64, density_kg_m3: f64) -> f64 {
+        PI * radius_m
+            * radius_m
+            * length_m
+            * WATER_COMPRESSIBILITY_PER_PA
+            * density_kg_m3
+            * GRAVITY_M_S2
+    }
+
+    /// Block velocity at time t, m/s, positive upward. The block starts at rest at the
+    /// bottom of its stroke: sinusoidal `v = π f s sin(2πft)`; trapezoidal: speed
+    /// `V = s/(P/2 − t_r/2)` with linear reversals taking t_r from +V to −V.
+    pub fn velocity_m_s(&self, t: f64) -> f64 {
+        let p = 1.0 / self.frequency_hz;
+        let scale = ramp(t, p, self.ramp_cycles);
+        let v = match self.kinematics {
+            Kinematics::Sinusoidal => {
+                PI * self.frequency_hz * self.stroke_m * (2.0 * PI * self.frequency_hz * t).sin()
+            }
+            Kinematics::Trapezoidal { reversal_s } => {
+                let half = 0.5 * p;
+                let speed = self.stroke_m / (half - 0.5 * reversal_s);
+                let tau = t.rem_euclid(p);
+                let ramp_to = |x: f64| (2.0 * x / reversal_s).min(1.0);
+                if tau < half {
+                    speed * ramp_to(tau).min(ramp_to(half - tau))
+                } else {
+                    -speed * ramp_to(tau - half).min(ramp_to(p - tau))
+                }
+            }
+        };
+        scale * v
+    }
+
+    /// Displacement flow, bypass flow and d(bypass)/dH at time t and head below H.
+    pub fn flows(&self, t: f64, h: f64) -> (f64, f64, f64) {
+        let a_block = PI * self.block_radius_m * self.block_radius_m;
+        let a_gap = PI * (self.casing_radius_m.powi(2) - self.block_radius_m.powi(2));
+        let displacement = -a_block * self.velocity_m_s(t);
+        let cd = self.discharge_coefficient;
+        // Leakage from above (head 0) to below (head H): Δ = 0 − H.
+        let (q_gap, dq_gap) = orifice_flow(cd * a_gap, -h);
+        let mut bypass = q_gap;
+        let mut d_bypass = -dq_gap;
+        if self.valve_area_m2 > 0.0 && h > 0.0 {
+            let (q_v, dq_v) = orifice_flow(cd * self.valve_area_m2, h);
+            bypass -= q_v;
+            d_bypass -= dq_v;
+        }
+        (displacement, bypass, d_bypass)
+    }
+
+    pub(crate) fn validate(&self) -> Result<(), SolverError> {
+        let pos = |f: &str, v: f64| {
+            if v.is_finite() && v > 0.0 {
+                Ok(())
+            } else {
+                Err(SolverError::invalid(
+                    f,
+                    format!("must be positive, got {v}"),
+                ))
+            }
+        };
+        pos("drive.block_radius", self.block_radius_m)?;
+        pos("drive.stroke", self.stroke_m)?;
+        pos("drive.frequency", self.frequency_hz)?;
+        pos("drive.discharge_coefficient", self.discharge_coefficient)?;
+        pos("drive.sealed_storage", self.sealed_storage_m2)?;
+        if self.block_radius_m > self.casing_radius_m {
+            return Err(SolverError::invalid(
+                "drive.block_radius",
+                format!(
+                    "must not exceed the casing radius ({} m), got {} m",
+                    self.casing_radius_m, self.block_radius_m
+                ),
+            ));
+        }
+        if !(self.valve_area_m2.is_finite() && self.valve_area_m2 >= 0.0) {
+            return Err(SolverError::invalid(
+                "drive.valve_area",
+                format!("must be zero or positive, got {}", self.valve_area_m2),
+            ));
+        }
+        if let Kinematics::Trapezoidal { reversal_s } = self.kinematics {
+            if !(reversal_s > 0.0 && reversal_s < 0.5 / self.frequency_hz) {
+                return Err(SolverError::invalid(
+                    "drive.reversal_time",
+                    format!("must be positive and shorter than half a stroke period ({} s), got {reversal_s} s", 0.5 / self.frequency_hz),
+                ));
+            }
+        }
+        Ok(())
+    }
+}
+
+/// A swab: cups lifted at a steady rate over a stroke, then lowered freely.
+///
+/// During the upstroke the swab lifts water out of the well at `A_cup U`; the well level
+/// then moves under its free-surface storage and the aquifer answers through the screen.
+/// The drawdown cannot exceed the submergence of the swab: as the in-well head approaches
+/// −submergence the column parts and the lifted rate falls smoothly to zero over the last
+/// 2 % of the submergence (`limited` reports it). On the downstroke nothing is lifted and
+/// the well recovers.
+///
+/// ```text
+/// Q_dev = −A_cup U φ(H)   (upstroke),  0 (downstroke);   φ = smoothstep((H + s_m)/w),  w = 0.02 s_m
+/// ```
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Swab {
+    /// Radius of the swab cups (≈ casing inside radius), m.
+    pub cup_radius_m: f64,
+    /// Lifting speed U, m/s.
+    pub lift_rate_m_s: f64,
+    /// Stroke length, m.
+    pub stroke_m: f64,
+    /// Time to lower the swab again, s.
+    pub lowering_time_s: f64,
+    /// Submergence of the swab below the static level at the start of the stroke, m.
+    pub submergence_m: f64,
+    /// Number of strokes; after them the well recovers (0 = strokes for the whole run).
+    pub strokes: u32,
+    /// The lifting speed grows linearly from 0 over this many strokes.
+    pub ramp_cycles: f64,
+}
+
+fn smoothstep(x: f64) -> (f64, f64) {
+    if x <= 0.0 {
+        (0.0, 0.0)
+    } else if x >= 1.0 {
+        (1.0, 0.0)
+    } else {
+        (x * x * (3.0 - 2.0 * x), 6.0 * x * (1.0 - x))
+    }
+}
+
+impl Swab {
+    /// Length of one stroke cycle (lift + lower), s.
+    pub fn period_s(&self) -> f64 {
+        self.stroke_m / self.lift_rate_m_s + self.lowering_time_s
+    }
+
+    fn lifting(&self, t: f64) -> bool {
+        let p = self.period_s();
+        let n = (t / p).floor();
+        (self.strokes == 0 || n < self.strokes as f64)
+            && t - n * p < self.stroke_m / self.lift_rate_m_s
+    }
+
+    /// Lifted flow (negative) at time t and in-well head h, and its derivative in h.
+    pub fn flows(&self, t: f64, h: f64) -> (f64, f64) {
+        if !self.lifting(t) {
+            return (0.0, 0.0);
+        }
+        let a = PI * self.cup_radius_m * self.cup_radius_m;
+        let rate = a * self.lift_rate_m_s * ramp(t, self.period_s(), self.ramp_cycles);
+        let w = 0.02 * self.submergence_m;
+        let (phi, dphi) = smoothstep((h + self.submergence_m) / w);
+        (-rate * phi, -rate * dphi / w)
+    }
+
+    /// True when the in-well head is inside the band where the column parts.
+    pub fn limited(&self, h: f64) -> bool {
+        h < -0.98 * self.submergence_m
+    }
+
+    pub(crate) fn events(&self, t: f64) -> Option<(f64, bool)> {
+        let p = self.period_s();
+        let lift = self.stroke_m / self.lift_rate_m_s;
+        let n = (t / p).floor();
+        if self.strokes > 0 && n >= self.strokes as f64 {
+            return None;
+        }
+        let tl = t - n * p;
+        let eps = 1e-12 * p;
+        Some(if tl < lift - eps {
+            (n * p + lift, true)
+        } else {
+            ((n + 1.0) * p, true)
+        })
+    }
+
+    pub(crate) fn validate(&self) -> Result<(), SolverError> {
+        for (f, v) in [
+            ("drive.cup_radius", self.cup_radius_m),
+            ("drive.lift_rate", self.lift_rate_m_s),
+            ("drive.stroke", self.stroke_m),
+            ("drive.submergence", self.submergence_m),
+        ] {
+            if !(v.is_finite() && v > 0.0) {
+                return Err(SolverError::invalid(
+                    f,
+                    format!("must be positive, got {v}"),
+                ));
+            }
+        }
+        if !(self.lowering_time_s.is_finite() && self.lowering_time_s >= 0.0) {
+            return Err(SolverError::invalid(
+                "drive.lowering_time",
+                format!("must be zero or positive, got {}", self.lowering_time_s),
+            ));
+        }
+        Ok(())
+    }
+}
+
+/// Pump-and-backwash surging: pump for an on-time, stop, and let the water standing in the
+/// pump column drain back into the well, pushing water outward; repeat.
+///
+/// ```text
+/// Q_dev = −Q_p                                   on
+/// Q_dev = (V_b/τ) exp(−(t − t_stop)/τ)           off (backflow of volume V_b, time constant τ)
+/// ```
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct PumpBackwash {
+    /// Pumping rate while on, m³/s (positive = withdrawal).
+    pub pumping_rate_m3_s: f64,
+    /// Pump running time per cycle, s.
+    pub on_time_s: f64,
+    /// Pump stopped time per cycle, s.
+    pub off_time_s: f64,
+    /// Volume that drains back from the pump column at each stop, m³.
+    pub backflow_volume_m3: f64,
+    /// Time constant of the drain-back, s.
+    pub drain_time_s: f64,
+    /// Number of cycles (0 = for the whole run).
+    pub cycles: u32,
+}
+
+impl PumpBackwash {
+    /// Cycle length, s.
+    pub fn period_s(&self) -> f64 {
+        self.on_time_s + self.off_time_s
+    }
+
+    /// Device flow at time t, m³/s (positive outward).
+    pub fn flow(&self, t: f64) -> f64 {
+        let p = self.period_s();
+        let n = (t / p).floor();
+        if self.cycles > 0 && n >= self.cycles as f64 {
+            return 0.0;
+        }
+        let tl = t - n * p;
+        if tl < self.on_time_s {
+            -self.pumping_rate_m3_s
+        } else {
+            let tau = self.drain_time_s;
+            self.backflow_volume_m3 / tau * (-(tl - self.on_time_s) / tau).exp()
+        }
+    }
+
+    pub(crate) fn events(&self, t: f64) -> Option<(f64, bool)> {
+        let p = self.period_s();
+        let n = (t / p).floor();
+        if self.cycles > 0 && n >= self.cycles as f64 {
+            return None;
+        }
+        let tl = t - n * p;
+        let eps = 1e-12 * p;
+        Some(if tl < self.on_time_s - eps {
+            (n * p + self.on_time_s, true)
+        } else {
+            ((n + 1.0) * p, true)
+        })
+    }
+
+    pub(crate) fn validate(&self) -> Result<(), SolverError> {
+        for (f, v) in [
+            ("drive.pumping_rate", self.pumping_rate_m3_s),
+            ("drive.on_time", self.on_time_s),
+            ("drive.off_time", self.off_time_s),
+            ("drive.drain_time", self.drain_time_s),
+        ] {
+            if !(v.is_finite() && v > 0.0) {
+                return Err(SolverError::invalid(
+                    f,
+                    format!("must be positive, got {v}"),
+                ));
+            }
+        }
+        if !(self.backflow_volume_m3.is_finite() && self.backflow_volume_m3 >= 0.0) {
+            return Err(SolverError::invalid(
+                "drive.backflow_volume",
+                format!("must be zero or positive, got {}", self.backflow_volume_m3),
+            ));
+        }
+        Ok(())
+    }
+}
+
+/// A rotating horizontal jet passing one point of the screen, as a train of head pulses.
+///
+/// A one-dimensional radial model cannot represent a jet: it spreads each pulse over the
+/// whole circumference and screen length. The pulse height is the jet's stagnation head
+/// `h_j = η v²/(2g)` and each pass lasts the time the jet (width w) takes to sweep past a
+/// point, `t_p = w/(2π r_s) · T_rot`; between passes the in-well head is the static level.
+///
+/// ```text
+/// H(t) = h_j sin²(π τ/t_p)   for 0 ≤ τ < t_p after the start of each pass, else 0
+/// ```
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct JetPulse {
+    /// Nozzle exit velocity, m/s.
+    pub nozzle_velocity_m_s: f64,
+    /// Fraction of the velocity head that reaches the screen, –.
+    pub efficiency: f64,
+    /// Time for one turn of the jetting tool, s.
+    pub rotation_period_s: f64,
+    /// Number of nozzles on the ring.
+    pub nozzles: u32,
+    /// Width of the jet where it meets the screen, m.
+    pub jet_width_m: f64,
+    /// Screen radius, m (for the sweep time).
+    pub screen_radius_m: f64,
+}
+
+impl JetPulse {
+    /// Stagnation head of the jet at the screen, m.
+    pub fn pulse_head_m(&self) -> f64 {
+        self.efficiency * self.nozzle_velocity_m_s * self.nozzle_velocity_m_s / (2.0 * GRAVITY_M_S2)
+    }
+
+    /// Time between passes over one point, s.
+    pub fn period_s(&self) -> f64 {
+        self.rotation_period_s / self.nozzles as f64
+    }
+
+    /// Duration of one pass, s.
+    pub fn pulse_s(&self) -> f64 {
+        self.jet_width_m / (2.0 * PI * self.screen_radius_m) * self.rotation_period_s
+    }
+
+    /// In-well head at time t, m.
+    pub fn head_m(&self, t: f64) -> f64 {
+        let tau = t.rem_euclid(self.period_s());
+        let tp = self.pulse_s();
+        if tau < tp {
+            self.pulse_head_m() * (PI * tau / tp).sin().powi(2)
+        } else {
+            0.0
+        }
+    }
+
+    pub(crate) fn events(&self, t: f64) -> Option<(f64, bool)> {
+        let p = self.period_s();
+        let n = (t / p).floor();
+        let tl = t - n * p;
+        let tp = self.pulse_s();
+        Some(if tl < tp - 1e-12 * p {
+            (n * p + tp, false)
+        } else {
+            ((n + 1.0) * p, false)
+        })
+    }
+
+    pub(crate) fn validate(&self) -> Result<(), SolverError> {
+        for (f, v) in [
+            ("drive.nozzle_velocity", self.nozzle_velocity_m_s),
+            ("drive.efficiency", self.efficiency),
+            ("drive.rotation_period", self.rotation_period_s),
+            ("drive.jet_width", self.jet_width_m),
+        ] {
+            if !(v.is_finite() && v > 0.0) {
+                return Err(SolverError::invalid(
+                    f,
+                    format!("must be positive, got {v}"),
+                ));
+            }
+        }
+        if self.efficiency > 1.0 {
+            return Err(SolverError::invalid(
+                "drive.efficiency",
+                format!("must not exceed 1, got {}", self.efficiency),
+            ));
+        }
+        if self.nozzles == 0 {
+            return Err(SolverError::invalid("drive.nozzles", "must be at least 1"));
+        }
+        if self.pulse_s() >= self.period_s() {
+            return Err(SolverError::invalid(
+                "drive.jet_width",
+                "the jet is so wide that passes overlap; reduce jet_width or add fewer nozzles",
+            ));
+        }
+        Ok(())
+    }
+}
