@@ -17,7 +17,18 @@
 //! Erosion law (an assumption of this model, calibrate before use):
 //! ```text
 //! dδ/dt = −E · max(0, w τ − τ_c)       w = w_in for inward flow, w_out for outward flow
-//! c     = c₀ (δ/δ₀)                    patches detach in proportion to the thickness lost
+//! c     = c₀ (δ/δ₀)^m                  m = 0: coverage kept until the cake is gone;
+//!                                      m = 1: patches detach in proportion to the thickness lost
+//! ```
+//! With m > 0 the first patches to open short-circuit a tight cake at once (see above).
+//!
+//! Closed form used by the verification (derived here): when the cake controls a
+//! quasi-steady flow under a constant head H₀ with other resistance R₀, coverage 1 and
+//! m = 0, then Q = H₀/(R₀ + aδ), a = 1/(2π r_b b K_c), τ = k_τ Q with
+//! k_τ = ρ g R_h/(2π r_b b K_p), and with u = R₀ + aδ, B = w k_τ H₀:
+//! ```text
+//! t(δ) = (1/(aE)) [ (u − u₀)/τ_c + (B/τ_c²) ln((B − τ_c u)/(B − τ_c u₀)) ]    (τ_c > 0)
+//! t(δ) = (u₀² − u²) / (2 a E B)                                          (τ_c = 0)
 //! ```
 //! with τ the pack-side shear proxy at the wall (Pa), τ_c the critical shear (Pa) and E the
 //! erodibility (m/(s·Pa)). It is integrated explicitly once per time step.
@@ -66,6 +77,11 @@ pub fn erode(cake: &Cake, st: &mut CakeState, shear_pa: f64, flux_m_s: f64, dt_s
         return false;
     }
     st.thickness_m = (st.thickness_m - rate * dt_s).max(0.0);
-    st.coverage = cake.coverage * st.thickness_m / cake.thickness_m;
+    let m = cake.erosion.map_or(0.0, |e| e.coverage_exponent);
+    st.coverage = if st.thickness_m > 0.0 {
+        cake.coverage * (st.thickness_m / cake.thickness_m).powf(m)
+    } else {
+        0.0
+    };
     true
 }

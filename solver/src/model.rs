@@ -104,6 +104,9 @@ pub struct Erosion {
     pub inward_weight: f64,
     /// Weight on the shear while flow goes outward, –.
     pub outward_weight: f64,
+    /// Exponent m of the coverage law c = c₀ (δ/δ₀)^m: 0 keeps the coverage until the cake
+    /// is gone, 1 lets patches detach in proportion to the thickness lost.
+    pub coverage_exponent: f64,
 }
 
 /// Wall cake left by the drilling fluid on the borehole wall at r_b.
@@ -354,6 +357,7 @@ impl Model {
                 non_negative("cake.erosion.erodibility", e.erodibility_m_s_pa)?;
                 non_negative("cake.erosion.inward_weight", e.inward_weight)?;
                 non_negative("cake.erosion.outward_weight", e.outward_weight)?;
+                non_negative("cake.erosion.coverage_exponent", e.coverage_exponent)?;
             }
         }
         if let Some(z) = &self.invaded {

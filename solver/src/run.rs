@@ -56,6 +56,10 @@ pub struct RunSummary {
     pub numerical_dissipation_j: f64,
     /// Largest per-step relative volume residual.
     pub max_mass_residual: f64,
+    /// Largest per-step relative volume residual of the well node.
+    pub max_well_residual: f64,
+    /// Gross volume the device moved (Σ|displacement| Δt), m³.
+    pub gross_device_volume_m3: f64,
     /// Largest per-step relative energy residual.
     pub max_energy_residual: f64,
     /// Energy identity over the whole run: |in − dissipated − stored − numerical| / in.
@@ -234,6 +238,8 @@ pub fn run(
         numerical_dissipation_j: 0.0,
         max_mass_residual: 0.0,
         max_energy_residual: 0.0,
+        max_well_residual: 0.0,
+        gross_device_volume_m3: 0.0,
         energy_closure: 0.0,
         max_newton_iterations: 0,
         cake_thickness_m: (cake0, cake0),
@@ -298,6 +304,8 @@ pub fn run(
         summary.max_energy_residual = summary.max_energy_residual.max(b.energy_residual);
         summary.max_newton_iterations = summary.max_newton_iterations.max(b.newton_iterations);
         summary.device_volume_m3 += b.device_volume_m3;
+        summary.gross_device_volume_m3 += b.device_volume_m3.abs();
+        summary.max_well_residual = summary.max_well_residual.max(b.well_residual);
         summary.bypass_volume_m3 += b.bypass_volume_m3;
         summary.screen_volume_m3 += b.volume_in_m3;
         summary.well_storage_change_m3 += b.well_storage_change_m3;

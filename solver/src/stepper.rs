@@ -26,6 +26,12 @@ use crate::model::Model;
 use crate::system::{CakeState, Discretization};
 use crate::tridiag::{self, Factored};
 
+/// A Newton update no larger than this times the largest head is at round-off.
+const ROUND_OFF_UPDATE: f64 = 1e-14;
+/// Largest relative residual accepted when the iteration has stalled at round-off (the
+/// residual bound of issue #4).
+const STALL_RESIDUAL: f64 = 1e-10;
+
 /// Independent accumulators per running sum (lets the compiler vectorise reductions).
 const LANES: usize = 4;
 
@@ -65,6 +71,8 @@ pub struct StepBalance {
     pub device_energy: f64,
     /// |volume residual| relative to the largest volume term.
     pub mass_residual: f64,
+    /// |volume residual of the well node| relative to its largest term (flow control).
+    pub well_residual: f64,
     /// |energy residual| relative to the largest energy term.
     pub energy_residual: f64,
     /// Newton iterations taken (0 for the direct linear solve).
@@ -252,6 +260,20 @@ impl Stepper {
             device_volume_m3: dt * dev.displacement_m3_s,
             bypass_volume_m3: dt * dev.bypass_m3_s,
             well_storage_change_m3: well_storage * (self.scratch[0] - self.h[0]),
+            well_residual: {
+                let stored = well_storage * (self.scratch[0] - self.h[0]);
+                let dev_vol = dt * dev.total();
+                let scale = stored
+                    .abs()
+                    .max(dev_vol.abs())
+                    .max(volume_in.abs())
+                    .max(dt * dev.displacement_m3_s.abs());
+                if scale > 0.0 && matches!(model.drive.control_at(t_theta), Control::Flow) {
+                    (stored - dev_vol + volume_in).abs() / scale
+                } else {
+                    0.0
+                }
+            },
             energy_in,
             dissipated,
             storage_energy_change: energy_change,
@@ -403,6 +425,7 @@ impl Stepper {
         let last = n - 1;
         self.y.copy_from_slice(&self.h);
         let mut residual = f64::INFINITY;
+        let (mut last_update, mut head_scale) = (f64::INFINITY, 1e-3);
         for iteration in 0..=self.newton_max_iterations {
             let well = self.well_row(model, tdt, theta, t_new, t_theta);
             // Residual R (in rhs) and Jacobian J (lower, diag, upper); scale in scratch.
@@ -461,7 +484,11 @@ impl Stepper {
                 WellRow::Storage { .. } => true,
             };
             residual = if scale > 0.0 { worst / scale } else { 0.0 };
-            if fixed_ok && residual <= self.newton_tolerance {
+            // Converged; or stalled at round-off: the last update moved no head by more than
+            // a few ulps and the residual is already within the accepted bound.
+            let stalled =
+                last_update <= ROUND_OFF_UPDATE * head_scale && residual <= STALL_RESIDUAL;
+            if fixed_ok && (residual <= self.newton_tolerance || stalled) {
                 return Ok(iteration);
             }
             if iteration == self.newton_max_iterations {
@@ -477,8 +504,12 @@ impl Stepper {
                 &mut self.rhs,
                 &mut self.scratch,
             )?;
+            last_update = 0.0;
+            head_scale = 1e-3;
             for (y, d) in self.y.iter_mut().zip(&self.rhs) {
                 *y += d;
+                last_update = last_update.max(d.abs());
+                head_scale = head_scale.max(y.abs());
             }
             if let WellRow::Fixed(v) = well {
                 self.y[0] = v;

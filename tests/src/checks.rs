@@ -49,6 +49,41 @@ pub fn all() -> Vec<Group> {
             title: "Second-order convergence of Crank–Nicolson",
             run: order,
         },
+        Group {
+            id: "forchheimer",
+            title: "Steady radial Forchheimer flow",
+            run: crate::development::forchheimer,
+        },
+        Group {
+            id: "grain",
+            title: "Ergun, Kozeny–Carman and Hazen estimates",
+            run: crate::development::grain_size,
+        },
+        Group {
+            id: "cake_skin",
+            title: "Thin-cake skin vs Hawkins (1956)",
+            run: crate::development::cake_skin,
+        },
+        Group {
+            id: "screen",
+            title: "Screen entrance (orifice) loss",
+            run: crate::development::screen_loss,
+        },
+        Group {
+            id: "erosion",
+            title: "Cake erosion vs closed form",
+            run: crate::development::erosion,
+        },
+        Group {
+            id: "nonlinear_energy",
+            title: "Energy identity with nonlinear losses",
+            run: crate::development::nonlinear_energy,
+        },
+        Group {
+            id: "annulus",
+            title: "Annulus width: planar limit and radial departure",
+            run: crate::development::annulus,
+        },
     ]
 }
 
@@ -100,7 +135,8 @@ impl StepObserver for Recorder {
     }
 }
 
-fn set_a(v: &serde_json::Value) -> Model {
+/// Parameter set A of PHYSICS.md §8a as a model (constant-rate pumping).
+pub fn set_a(v: &serde_json::Value) -> Model {
     let p = |k: &str| num(v, &format!("/params/{k}"));
     let mut m = homogeneous(
         p("K_formation"),
@@ -128,7 +164,8 @@ fn set_a(v: &serde_json::Value) -> Model {
     m
 }
 
-fn steady(model: &Model) -> Stepper {
+/// Steady state of a model under its drive.
+pub fn steady(model: &Model) -> Stepper {
     let cake = model.cake.map(|c| CakeState {
         thickness_m: c.thickness_m,
         coverage: c.coverage,

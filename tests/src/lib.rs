@@ -7,6 +7,7 @@
 //! (`boreflux verify`).
 
 pub mod checks;
+pub mod development;
 pub mod fit;
 pub mod models;
 pub mod reference;

@@ -61,3 +61,38 @@ fn mass_and_energy_balance() {
 fn crank_nicolson_second_order() {
     assert_group("order");
 }
+
+#[test]
+fn steady_forchheimer() {
+    assert_group("forchheimer");
+}
+
+#[test]
+fn grain_size_estimates() {
+    assert_group("grain");
+}
+
+#[test]
+fn thin_cake_skin_hawkins() {
+    assert_group("cake_skin");
+}
+
+#[test]
+fn screen_entrance_loss() {
+    assert_group("screen");
+}
+
+#[test]
+fn cake_erosion_closed_form() {
+    assert_group("erosion");
+}
+
+#[test]
+fn energy_identity_with_nonlinear_losses() {
+    assert_group("nonlinear_energy");
+}
+
+#[test]
+fn annulus_width_limit() {
+    assert_group("annulus");
+}
