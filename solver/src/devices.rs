@@ -9,10 +9,6 @@ use crate::error::SolverError;
 use crate::water::GRAVITY_M_S2;
 use std::f64::consts::PI;
 
-/// Compressibility of water used for the sealed storage below a block, 1/Pa (about
-/// 4.6e-10 near 10–20 °C; from memory — verify).
-pub const WATER_COMPRESSIBILITY_PER_PA: f64 = 4.6e-10;
-
 /// Head difference below which the orifice laws are rounded off (keeps dQ/dΔh finite), m.
 const ORIFICE_ROUNDING_M: f64 = 1e-6;
 
@@ -53,11 +49,13 @@ pub enum Kinematics {
 /// Water below the block is a sealed volume whose head H is the well node. The block's
 /// displacement `−A_block v` (v > 0 upward) is balanced by flow through the screen, by
 /// leakage past the block through the annular clearance and, for a vented block, through
-/// flap valves that open only when the head below exceeds the head above, and by the
-/// elastic storage of the sealed water. The head above the block is the static level (0):
+/// flap valves that open only when the head below exceeds the head above. The elastic
+/// storage of the sealed water (π r_c² L c_w ρ g, about 1e−6 m² for 10 m of 0.2 m casing)
+/// is negligible beside these flows, so the balance is algebraic and H is solved with the
+/// aquifer at every step. The head above the block is the static level (0):
 ///
 /// ```text
-/// C dH/dt = −A_block v(t) + Cd A_gap s(0 − H) sqrt(2g|H|) − [H > 0] Cd A_valve sqrt(2gH) − Q_screen
+/// 0 = −A_block v(t) + Cd A_gap s(0 − H) sqrt(2g|H|) − [H > 0] Cd A_valve sqrt(2gH) − Q_screen
 /// A_block = π r_block²,  A_gap = π (r_c² − r_block²)
 /// ```
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -76,23 +74,11 @@ pub struct SurgeBlock {
     pub discharge_coefficient: f64,
     /// Open area of the flap valves of a vented block, m² (0 for a solid block).
     pub valve_area_m2: f64,
-    /// Elastic storage of the sealed water below the block, m².
-    pub sealed_storage_m2: f64,
     /// The stroke grows linearly from 0 over this many cycles.
     pub ramp_cycles: f64,
 }
 
 impl SurgeBlock {
-    /// Elastic storage of a water column of radius r and length L, m²: π r² L c_w ρ g.
-    pub fn elastic_storage_m2(radius_m: f64, length_m: f64, density_kg_m3: f64) -> f64 {
-        PI * radius_m
-            * radius_m
-            * length_m
-            * WATER_COMPRESSIBILITY_PER_PA
-            * density_kg_m3
-            * GRAVITY_M_S2
-    }
-
     /// Block velocity at time t, m/s, positive upward. The block starts at rest at the
     /// bottom of its stroke: sinusoidal `v = π f s sin(2πft)`; trapezoidal: speed
     /// `V = s/(P/2 − t_r/2)` with linear reversals taking t_r from +V to −V.
@@ -151,7 +137,6 @@ impl SurgeBlock {
         pos("drive.stroke", self.stroke_m)?;
         pos("drive.frequency", self.frequency_hz)?;
         pos("drive.discharge_coefficient", self.discharge_coefficient)?;
-        pos("drive.sealed_storage", self.sealed_storage_m2)?;
         if self.block_radius_m > self.casing_radius_m {
             return Err(SolverError::invalid(
                 "drive.block_radius",

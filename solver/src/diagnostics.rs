@@ -52,6 +52,12 @@ pub struct StepView<'a> {
     pub power_w: [f64; ZONE_COUNT],
     /// Cumulative work dissipated per zone, J.
     pub work_j: [f64; ZONE_COUNT],
+    /// Volume through the screen during the step (θ-point flow × Δt), m³.
+    pub screen_volume_m3: f64,
+    /// Volume the device displaced into the well during the step, m³.
+    pub device_volume_m3: f64,
+    /// Volume that leaked past the device into the well node during the step, m³.
+    pub bypass_volume_m3: f64,
     /// Relative volume-balance residual of the step.
     pub mass_residual: f64,
     /// Relative energy-balance residual of the step.

@@ -256,11 +256,11 @@ impl Drive {
         }
     }
 
-    /// Storage of the well node at time t, m²: the sealed elastic storage below a surge
-    /// block, otherwise the well's own (`well_storage_m2`).
+    /// Storage of the well node at time t, m²: none below a surge block (sealed water, see
+    /// [`SurgeBlock`]), otherwise the well's own (`well_storage_m2`).
     pub fn well_storage_m2(&self, t: f64, well_storage_m2: f64) -> f64 {
         match self.stage_at(t).0 {
-            Drive::SurgeBlock(b) => b.sealed_storage_m2,
+            Drive::SurgeBlock(_) => 0.0,
             _ => well_storage_m2,
         }
     }
@@ -305,9 +305,16 @@ impl Drive {
         }
     }
 
-    /// Period of the stage active at time t, s.
+    /// Period of the stage active at time t, s; `None` once a swab or pump-and-backwash
+    /// drive has done its strokes (the well then recovers with geometric steps).
     pub fn period_at(&self, t: f64) -> Option<f64> {
-        self.stage_at(t).0.period_s()
+        let (d, tl) = self.stage_at(t);
+        let done = |n: u32, p: f64| n > 0 && tl >= n as f64 * p;
+        match d {
+            Drive::Swab(s) if done(s.strokes, s.period_s()) => None,
+            Drive::PumpBackwash(p) if done(p.cycles, p.period_s()) => None,
+            d => d.period_s(),
+        }
     }
 
     /// Slowest period among the stages, s (for the automatic outer radius).

@@ -26,11 +26,15 @@ use crate::model::Model;
 use crate::system::{CakeState, Discretization};
 use crate::tridiag::{self, Factored};
 
-/// A Newton update no larger than this times the largest head is at round-off.
+/// A Newton update (or a row's head correction) no larger than this times the largest
+/// head, or 1 mm, is at round-off.
 const ROUND_OFF_UPDATE: f64 = 1e-14;
 /// Largest relative residual accepted when the iteration has stalled at round-off (the
 /// residual bound of issue #4).
 const STALL_RESIDUAL: f64 = 1e-10;
+
+/// Iterations allowed for the in-well head of a well without storage.
+const ALGEBRAIC_MAX_ITERATIONS: usize = 50;
 
 /// Independent accumulators per running sum (lets the compiler vectorise reductions).
 const LANES: usize = 4;
@@ -293,6 +297,9 @@ impl Stepper {
         };
         std::mem::swap(&mut self.h, &mut self.scratch);
         self.time_s = t_new;
+        if model.drive.control_at(t_theta) == Control::Flow && well_storage <= 0.0 {
+            self.h[0] = self.algebraic_well_head(model, t_new)?;
+        }
         Ok(())
     }
 
@@ -331,7 +338,73 @@ impl Stepper {
         }
     }
 
+    /// In-well head of a well node without storage at the end of the step. Such a node holds
+    /// no water of its own: its head is not a state but the solution of the constraint
+    /// `F₀(H − h₁) = Q_device(t, H)` at the step's end time (extrapolating it like a state
+    /// would let Crank–Nicolson's −1 amplification ring). Scalar Newton from the
+    /// extrapolated value.
+    fn algebraic_well_head(&self, model: &Model, t: f64) -> Result<f64, SolverError> {
+        let face = &self.disc.faces[0];
+        let h1 = self.h[1];
+        // f(H) = F₀(H − h₁) − Q_device(t, H) increases strictly with H (the screen passes more
+        // and the leakage into the node falls), so a bracket plus safeguarded Newton always
+        // converges, even on the square-root orifice law where plain Newton cycles.
+        let f = |h: f64| {
+            let (q, g) = face.flow(h - h1);
+            let dev = model.drive.device_flow(t, h);
+            (
+                q - dev.total(),
+                g - dev.d_dh_m2_s,
+                q.abs() + dev.displacement_m3_s.abs() + dev.bypass_m3_s.abs(),
+            )
+        };
+        let mut h = self.h[0];
+        let (mut lo, mut hi) = (h, h);
+        let mut width = 1e-3f64.max(h.abs());
+        while f(lo).0 > 0.0 {
+            lo -= width;
+            width *= 2.0;
+            if !lo.is_finite() {
+                return Err(SolverError::NonFinite {
+                    time_s: t,
+                    index: 0,
+                });
+            }
+        }
+        width = 1e-3f64.max(h.abs());
+        while f(hi).0 < 0.0 {
+            hi += width;
+            width *= 2.0;
+            if !hi.is_finite() {
+                return Err(SolverError::NonFinite {
+                    time_s: t,
+                    index: 0,
+                });
+            }
+        }
+        for _ in 0..ALGEBRAIC_MAX_ITERATIONS {
+            let (v, d, scale) = f(h);
+            if v.abs() <= 1e-14 * scale || hi - lo <= ROUND_OFF_UPDATE * h.abs().max(1e-3) {
+                return Ok(h);
+            }
+            if v < 0.0 {
+                lo = h;
+            } else {
+                hi = h;
+            }
+            let newton = h - v / d;
+            h = if newton > lo && newton < hi {
+                newton
+            } else {
+                0.5 * (lo + hi)
+            };
+        }
+        Ok(h)
+    }
+
     /// Right-hand side of the well row and its diagonal term from the device.
+    /// The well row: the prescribed head (θ-point value) or the storage balance of the well
+    /// water with the device's flow.
     fn well_row(&self, model: &Model, tdt: f64, theta: f64, t_new: f64, t_theta: f64) -> WellRow {
         match model.drive.control_at(t_theta) {
             Control::Head => {
@@ -484,10 +557,15 @@ impl Stepper {
                 WellRow::Storage { .. } => true,
             };
             residual = if scale > 0.0 { worst / scale } else { 0.0 };
-            // Converged; or stalled at round-off: the last update moved no head by more than
-            // a few ulps and the residual is already within the accepted bound.
-            let stalled =
-                last_update <= ROUND_OFF_UPDATE * head_scale && residual <= STALL_RESIDUAL;
+            // Converged; or stalled at round-off: the correction each row asks for (residual
+            // over diagonal) is a few ulps of the largest head, and so was the last update.
+            let head_residual = self
+                .rhs
+                .iter()
+                .zip(&self.diag)
+                .fold(0.0f64, |a, (r, d)| a.max((r / d).abs()));
+            let stalled = last_update <= ROUND_OFF_UPDATE * head_scale
+                && (residual <= STALL_RESIDUAL || head_residual <= ROUND_OFF_UPDATE * head_scale);
             if fixed_ok && (residual <= self.newton_tolerance || stalled) {
                 return Ok(iteration);
             }

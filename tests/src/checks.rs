@@ -80,6 +80,31 @@ pub fn all() -> Vec<Group> {
             run: crate::development::nonlinear_energy,
         },
         Group {
+            id: "drives_volume",
+            title: "Volume balance of the development drives",
+            run: crate::drives::volume_balance,
+        },
+        Group {
+            id: "surge_limits",
+            title: "Surge block: flow-controlled and sealed-formation limits",
+            run: crate::drives::surge_limits,
+        },
+        Group {
+            id: "swab",
+            title: "Swab stroke and recovery vs slug solution",
+            run: crate::drives::swab_recovery,
+        },
+        Group {
+            id: "schedule",
+            title: "Pumping stage of a schedule vs Papadopulos–Cooper",
+            run: crate::drives::pumping_stage,
+        },
+        Group {
+            id: "collapse",
+            title: "Thin-ring collapse pressure",
+            run: crate::drives::collapse,
+        },
+        Group {
             id: "annulus",
             title: "Annulus width: planar limit and radial departure",
             run: crate::development::annulus,

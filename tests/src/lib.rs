@@ -8,6 +8,7 @@
 
 pub mod checks;
 pub mod development;
+pub mod drives;
 pub mod fit;
 pub mod models;
 pub mod reference;

@@ -96,3 +96,28 @@ fn energy_identity_with_nonlinear_losses() {
 fn annulus_width_limit() {
     assert_group("annulus");
 }
+
+#[test]
+fn drives_volume_balance() {
+    assert_group("drives_volume");
+}
+
+#[test]
+fn surge_block_limits() {
+    assert_group("surge_limits");
+}
+
+#[test]
+fn swab_stroke_and_recovery() {
+    assert_group("swab");
+}
+
+#[test]
+fn schedule_pumping_stage() {
+    assert_group("schedule");
+}
+
+#[test]
+fn collapse_pressure() {
+    assert_group("collapse");
+}

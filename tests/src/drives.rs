@@ -1,0 +1,318 @@
+//! Checks of the development drives: volume balance, limiting cases, swab recovery,
+//! pumping stage in a schedule, collapse formula.
+
+use crate::checks::Recorder;
+use crate::models::homogeneous;
+use crate::reference::{data, load, nums, source};
+use crate::CheckResult;
+use boreflux_solver::devices::{Kinematics, PumpBackwash, SurgeBlock, Swab};
+use boreflux_solver::drive::{Drive, Stage};
+use boreflux_solver::model::{Model, Well};
+use boreflux_solver::safety::thin_ring_collapse_pa;
+use boreflux_solver::water::GRAVITY_M_S2;
+use boreflux_solver::{run, Reporting, RunSummary, StepObserver, StepView};
+use std::f64::consts::PI;
+
+const RW: f64 = 0.1;
+
+fn surge(clearance: f64, valve: f64) -> SurgeBlock {
+    SurgeBlock {
+        block_radius_m: RW - clearance,
+        casing_radius_m: RW,
+        stroke_m: 0.8,
+        frequency_hz: 0.5,
+        kinematics: Kinematics::Sinusoidal,
+        discharge_coefficient: 0.6,
+        valve_area_m2: valve,
+        ramp_cycles: 2.0,
+    }
+}
+
+fn aquifer(drive: Drive, duration: f64) -> Model {
+    let mut m = homogeneous(2e-4, 1e-5, 6.0, RW, drive, duration);
+    m.well.storage_m2 = Well::free_surface_storage(RW);
+    m
+}
+
+fn volume_check(name: &str, s: &RunSummary) -> CheckResult {
+    // Σ device + Σ bypass − Σ screen − Σ well storage change, relative to the gross volume
+    // the device moved. Each step closes to the Newton tolerance.
+    let imbalance =
+        s.device_volume_m3 + s.bypass_volume_m3 - s.screen_volume_m3 - s.well_storage_change_m3;
+    CheckResult::new(
+        "drives",
+        format!("volume balance over the run: {name}"),
+        "volume balance of the well node (conservation, exact for the scheme)",
+        imbalance.abs() / s.gross_device_volume_m3,
+        1e-9,
+        "relative",
+    )
+}
+
+/// Volume balance for surge block, swab and pump-and-backwash (issue #5 check 1).
+pub fn volume_balance() -> Vec<CheckResult> {
+    let mut out = Vec::new();
+    let block = aquifer(Drive::SurgeBlock(surge(0.01, 2e-3)), 20.0);
+    out.push(volume_check(
+        "vented surge block",
+        &run(&block, &mut Recorder::at(&[]), Reporting::default()).expect("run"),
+    ));
+    let swab = aquifer(
+        Drive::Swab(Swab {
+            cup_radius_m: RW,
+            lift_rate_m_s: 0.5,
+            stroke_m: 1.5,
+            lowering_time_s: 3.0,
+            submergence_m: 20.0,
+            strokes: 0,
+            ramp_cycles: 0.0,
+        }),
+        30.0,
+    );
+    out.push(volume_check(
+        "swab",
+        &run(&swab, &mut Recorder::at(&[]), Reporting::default()).expect("run"),
+    ));
+    let pump = aquifer(
+        Drive::PumpBackwash(PumpBackwash {
+            pumping_rate_m3_s: 0.01,
+            on_time_s: 60.0,
+            off_time_s: 60.0,
+            backflow_volume_m3: 0.2,
+            drain_time_s: 5.0,
+            cycles: 0,
+        }),
+        360.0,
+    );
+    out.push(volume_check(
+        "pump and backwash",
+        &run(&pump, &mut Recorder::at(&[]), Reporting::default()).expect("run"),
+    ));
+    out
+}
+
+/// Records the screen flow and in-well head against the block's displacement.
+struct BlockRecorder {
+    block: SurgeBlock,
+    worst_flow: f64,
+    worst_orifice: f64,
+    peak_disp: f64,
+    area_gap: f64,
+}
+
+impl StepObserver for BlockRecorder {
+    fn on_step(&mut self, s: &StepView<'_>) -> bool {
+        // Step volumes use the θ-point flows that the scheme balances.
+        self.peak_disp = self.peak_disp.max(s.device_volume_m3.abs());
+        self.worst_flow = self
+            .worst_flow
+            .max((s.screen_volume_m3 - s.device_volume_m3).abs());
+        let (disp, _, _) = self.block.flows(s.time_s, s.well_head_m);
+        let ramped = s.time_s > self.block.ramp_cycles / self.block.frequency_hz;
+        if self.area_gap > 0.0 && ramped && s.well_head_m.abs() > 0.01 {
+            // Sealed formation: the displacement leaves through the clearance, so
+            // |H| = (Q/(Cd A_gap))²/(2g). Heads above 1 cm keep the law's rounding (below
+            // 1e-6 m) and the step's storage term under 1e-4.
+            let want = (disp / (self.block.discharge_coefficient * self.area_gap)).powi(2)
+                / (2.0 * GRAVITY_M_S2);
+            self.worst_orifice = self
+                .worst_orifice
+                .max((s.well_head_m.abs() / want - 1.0).abs());
+        }
+        true
+    }
+}
+
+/// Surge block limits (issue #5 check 2).
+pub fn surge_limits() -> Vec<CheckResult> {
+    // Zero clearance, negligible storage: the screen carries exactly the displacement.
+    let b = surge(0.0, 0.0);
+    let model = aquifer(Drive::SurgeBlock(b), 10.0);
+    let mut rec = BlockRecorder {
+        block: b,
+        worst_flow: 0.0,
+        worst_orifice: 0.0,
+        peak_disp: 0.0,
+        area_gap: 0.0,
+    };
+    run(&model, &mut rec, Reporting::default()).expect("run");
+    let flow = CheckResult::new(
+        "drives",
+        "zero clearance: screen volume = displaced volume, per step",
+        "flow-controlled limit (conservation; no storage below the block, so round-off only)",
+        rec.worst_flow / rec.peak_disp,
+        1e-12,
+        "relative",
+    );
+    // Sealed formation (K = 1e-12 m/s): the bypass obeys the orifice law.
+    let b = surge(0.01, 0.0);
+    let mut model = aquifer(Drive::SurgeBlock(b), 10.0);
+    model.pack.medium.conductivity_m_s = 1e-12;
+    model.formation.medium.conductivity_m_s = 1e-12;
+    let gap = PI * (RW * RW - (RW - 0.01).powi(2));
+    let mut rec = BlockRecorder {
+        block: b,
+        worst_flow: 0.0,
+        worst_orifice: 0.0,
+        peak_disp: 0.0,
+        area_gap: gap,
+    };
+    run(&model, &mut rec, Reporting::default()).expect("run");
+    let orifice = CheckResult::new(
+        "drives",
+        "sealed formation: clearance flow vs the orifice formula",
+        "orifice equation, Q = Cd A sqrt(2g Δh) (PHYSICS.md §3)",
+        rec.worst_orifice,
+        1e-3,
+        "relative",
+    );
+    vec![flow, orifice]
+}
+
+/// A fast single swab stroke, then recovery, against the slug solution (issue #5 check 3).
+pub fn swab_recovery() -> Vec<CheckResult> {
+    let v = load(data::SLUG);
+    let src = source(&v);
+    let case = &v["cases"][0];
+    let alpha = case["alpha"].as_f64().unwrap();
+    let betas = nums(case, "/beta");
+    let want = nums(case, "/h_over_h0");
+    let (b, k) = (10.0, 1e-4);
+    let t_m = k * b;
+    let lift = 0.05; // s: the stroke is short against the aquifer's response (β = 0.005)
+    let stroke = 1.0;
+    let swab = Swab {
+        cup_radius_m: RW,
+        lift_rate_m_s: stroke / lift,
+        stroke_m: stroke,
+        lowering_time_s: 1.0,
+        submergence_m: 50.0,
+        strokes: 1,
+        ramp_cycles: 0.0,
+    };
+    // Times measured from the middle of the stroke (superposition of a short extraction).
+    let times: Vec<f64> = betas
+        .iter()
+        .map(|bb| 0.5 * lift + bb * RW * RW / t_m)
+        .filter(|&t| t > 2.0 * lift)
+        .collect();
+    let mut model = homogeneous(
+        k,
+        alpha / b,
+        b,
+        RW,
+        Drive::Swab(swab),
+        *times.last().unwrap(),
+    );
+    model.well.storage_m2 = Well::free_surface_storage(RW);
+    model.numerics.sync_times_s = times.clone();
+    let mut rec = Recorder::at(&[]);
+    run(&model, &mut rec, Reporting::default()).expect("run");
+    let skip = betas.len() - times.len();
+    let worst = times
+        .iter()
+        .zip(&want[skip..])
+        .map(|(&t, &w)| (rec.well_head[rec.index_of(t).unwrap()] / -stroke - w).abs())
+        .fold(0.0, f64::max);
+    vec![CheckResult::new(
+        "drives",
+        format!("swab stroke then recovery vs slug solution, alpha = {alpha:e}"),
+        src,
+        worst,
+        5e-3,
+        "absolute",
+    )]
+}
+
+/// A constant-rate stage after a short rest stage in a schedule (issue #5 check 4).
+pub fn pumping_stage() -> Vec<CheckResult> {
+    let v = load(data::STORAGE_SKIN);
+    let src = source(&v);
+    let case = v["cases"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|c| c["C_D"].as_f64() == Some(5000.0) && c["skin"].as_f64() == Some(0.0))
+        .unwrap();
+    let (b, k, ss, q) = (10.0, 1e-4, 1e-5, 0.01);
+    let (t_m, s) = (k * b, ss * b);
+    let tds = nums(case, "/tD");
+    let want = nums(case, "/pwD");
+    let rest = 5.0;
+    let times: Vec<f64> = tds.iter().map(|td| rest + td * s * RW * RW / t_m).collect();
+    let stages = vec![
+        Stage {
+            drive: Drive::ConstantRate {
+                pumping_rate_m3_s: 0.0,
+            },
+            duration_s: rest,
+        },
+        Stage {
+            drive: Drive::ConstantRate {
+                pumping_rate_m3_s: q,
+            },
+            duration_s: times.last().unwrap() - rest,
+        },
+    ];
+    let mut model = homogeneous(
+        k,
+        ss,
+        b,
+        RW,
+        Drive::Schedule(stages),
+        *times.last().unwrap(),
+    );
+    model.well.storage_m2 = Well::free_surface_storage(RW);
+    model.numerics.sync_times_s = times.clone();
+    let mut rec = Recorder::at(&[]);
+    run(&model, &mut rec, Reporting::default()).expect("run");
+    let mut worst: f64 = 0.0;
+    for ((&t, &td), &w) in times.iter().zip(&tds).zip(&want) {
+        if td < 1e3 {
+            continue;
+        }
+        let pwd = -rec.well_head[rec.index_of(t).unwrap()] * 2.0 * PI * t_m / q;
+        worst = worst.max(((pwd - w) / w).abs());
+    }
+    vec![CheckResult::new(
+        "drives",
+        "pumping stage of a schedule vs Papadopulos–Cooper, C_D = 5000, tD ≥ 1e3",
+        src,
+        worst,
+        1e-2,
+        "relative",
+    )]
+}
+
+/// Thin-ring collapse formula against the reference script (issue #5 check 5).
+pub fn collapse() -> Vec<CheckResult> {
+    let v = load(include_str!("../data/collapse.json"));
+    let src = source(&v);
+    let rows = v
+        .pointer("/collapse")
+        .and_then(|r| r.as_array())
+        .expect("collapse rows");
+    let e = v.pointer("/params/E").and_then(|x| x.as_f64()).expect("E");
+    let nu = v
+        .pointer("/params/nu")
+        .and_then(|x| x.as_f64())
+        .expect("nu");
+    let worst = rows
+        .iter()
+        .map(|r| {
+            let dr = r["DR"].as_f64().unwrap();
+            (thin_ring_collapse_pa(e, nu, dr) / r["Pc_pa"].as_f64().unwrap() - 1.0).abs()
+        })
+        .fold(0.0, f64::max);
+    vec![CheckResult::new(
+        "drives",
+        format!(
+            "thin-ring collapse pressure, {} dimension ratios",
+            rows.len()
+        ),
+        src,
+        worst,
+        1e-9,
+        "relative",
+    )]
+}
