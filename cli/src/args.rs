@@ -1,0 +1,141 @@
+//! Command-line arguments (clap derive). Exit codes: 0 success, 1 runtime failure,
+//! 2 bad input (usage, case file).
+
+use clap::{Parser, Subcommand};
+use std::path::PathBuf;
+
+const AFTER_HELP: &str = "\
+Exit codes: 0 success, 1 runtime failure, 2 bad input (usage or case file).
+Sign convention: positive flow is outward, from the well into the formation; heads are
+relative to the static water level.
+
+CAUTION: results are estimates from a model with uncertain inputs. Development can
+collapse a screen or casing, stick tools and damage the pack or formation. The judgement
+of a licensed driller or engineer, the manufacturer's ratings and the local well
+construction code govern.";
+
+/// Simulates water-well development: oscillating radial flow through screen, filter pack,
+/// wall cake, invaded zone and formation, and what reaches the borehole face.
+#[derive(Debug, Parser)]
+#[command(name = "boreflux", version, about, after_help = AFTER_HELP, propagate_version = true)]
+pub struct Cli {
+    /// What to do.
+    #[command(subcommand)]
+    pub command: Command,
+}
+
+/// The subcommands.
+#[derive(Debug, Subcommand)]
+pub enum Command {
+    /// Simulate one case and write its results to HDF5.
+    #[command(
+        after_help = "Example:\n  boreflux run cases/municipal-sand-gravel.json -o out/municipal.h5 --csv"
+    )]
+    Run(RunArgs),
+    /// Validate a case and print derived properties without simulating.
+    #[command(
+        after_help = "Examples:\n  boreflux check cases/domestic-fine-sand-pvc.json\n  boreflux check cases/municipal-sand-gravel.json --annulus 60mm,80mm,100mm"
+    )]
+    Check(CheckArgs),
+    /// Write a self-contained HTML report (SVG figures) from one or more result files.
+    #[command(
+        after_help = "Example:\n  boreflux report out/slow.h5 out/fast.h5 -o out/compare.html"
+    )]
+    Report(ReportArgs),
+    /// Run the built-in verification against analytic and published solutions.
+    #[command(after_help = "Example:\n  boreflux verify --json > verification.json")]
+    Verify(VerifyArgs),
+    /// Print a starter case file.
+    #[command(
+        after_help = "Examples:\n  boreflux new > my-case.json\n  boreflux new --scenario domestic-fine-sand-pvc > domestic.json\n  boreflux new --list"
+    )]
+    New(NewArgs),
+    /// Print the JSON Schema of the case file.
+    #[command(after_help = "Example:\n  boreflux schema > boreflux.schema.json")]
+    Schema,
+    /// Print shell completions.
+    #[command(
+        after_help = "Example:\n  boreflux completions bash > ~/.local/share/bash-completion/completions/boreflux"
+    )]
+    Completions {
+        /// The shell.
+        shell: clap_complete::Shell,
+    },
+}
+
+/// Arguments of `run`.
+#[derive(Debug, clap::Args)]
+pub struct RunArgs {
+    /// Case file (JSON).
+    pub case: PathBuf,
+    /// Output HDF5 file; written to a temporary file and renamed when complete.
+    #[arg(short, long)]
+    pub output: PathBuf,
+    /// Also write the time series as CSV beside the HDF5 file (same name, .csv).
+    #[arg(long)]
+    pub csv: bool,
+    /// Print the summary as JSON instead of a table.
+    #[arg(long)]
+    pub json: bool,
+    /// No progress bar.
+    #[arg(short, long)]
+    pub quiet: bool,
+    /// Store a head profile every N steps (0 = about 200 over the run).
+    #[arg(long, default_value_t = 0)]
+    pub snapshot_every: u64,
+}
+
+/// Arguments of `check`.
+#[derive(Debug, clap::Args)]
+pub struct CheckArgs {
+    /// Case file (JSON).
+    pub case: PathBuf,
+    /// Compare annulus widths (pack thickness), e.g. `60mm,80mm,100mm`: runs the case for
+    /// each (at most 5 cycles) and prints face flux and cake work per cycle.
+    #[arg(long, value_delimiter = ',')]
+    pub annulus: Vec<String>,
+    /// Print the derived properties as JSON.
+    #[arg(long)]
+    pub json: bool,
+}
+
+/// Arguments of `report`.
+#[derive(Debug, clap::Args)]
+pub struct ReportArgs {
+    /// Result files written by `boreflux run`.
+    #[arg(required = true)]
+    pub inputs: Vec<PathBuf>,
+    /// Output HTML file.
+    #[arg(short, long)]
+    pub output: PathBuf,
+}
+
+/// Arguments of `verify`.
+#[derive(Debug, clap::Args)]
+pub struct VerifyArgs {
+    /// Print the results as JSON.
+    #[arg(long)]
+    pub json: bool,
+}
+
+/// Arguments of `new`.
+#[derive(Debug, clap::Args)]
+pub struct NewArgs {
+    /// Shipped scenario to start from (see --list).
+    #[arg(long, default_value = "municipal-sand-gravel")]
+    pub scenario: String,
+    /// List the scenarios.
+    #[arg(long)]
+    pub list: bool,
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use clap::CommandFactory;
+
+    #[test]
+    fn cli_definition_is_consistent() {
+        Cli::command().debug_assert();
+    }
+}

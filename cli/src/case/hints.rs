@@ -1,0 +1,87 @@
+//! "Did you mean …?" hints for misspelt keys and names, by edit distance.
+
+/// Levenshtein distance between `a` and `b`, counted in characters, letter case ignored.
+pub fn edit_distance(a: &str, b: &str) -> usize {
+    let a: Vec<char> = a.to_lowercase().chars().collect();
+    let b: Vec<char> = b.to_lowercase().chars().collect();
+    let mut prev: Vec<usize> = (0..=b.len()).collect();
+    let mut cur = vec![0; b.len() + 1];
+    for (i, ca) in a.iter().enumerate() {
+        cur[0] = i + 1;
+        for (j, cb) in b.iter().enumerate() {
+            let substitute = prev[j] + usize::from(ca != cb);
+            cur[j + 1] = substitute.min(prev[j + 1] + 1).min(cur[j] + 1);
+        }
+        std::mem::swap(&mut prev, &mut cur);
+    }
+    prev[b.len()]
+}
+
+/// The candidate closest to `word`, if it is close enough to be a likely misspelling: at
+/// most one edit per three characters (at least one, at most three), or `word` is a
+/// prefix of it of three or more characters (`freq` → `frequency`).
+pub fn closest<'a>(word: &str, candidates: &[&'a str]) -> Option<&'a str> {
+    let limit = (word.chars().count() / 3).clamp(1, 3);
+    let best = candidates
+        .iter()
+        .map(|c| (edit_distance(word, c), *c))
+        .min_by_key(|&(d, _)| d);
+    match best {
+        Some((d, c)) if d <= limit => Some(c),
+        _ => {
+            let lower = word.to_lowercase();
+            candidates
+                .iter()
+                .copied()
+                .find(|c| lower.chars().count() >= 3 && c.starts_with(&lower))
+        }
+    }
+}
+
+/// Names between backticks in a serde message: "unknown field `x`, expected `a` or `b`"
+/// gives `["x", "a", "b"]`.
+pub fn backticked(message: &str) -> Vec<&str> {
+    message.split('`').skip(1).step_by(2).collect()
+}
+
+/// `did you mean `x`?` for `word` among `candidates`, or the list of candidates when none
+/// is close.
+pub fn suggestion(word: &str, candidates: &[&str]) -> String {
+    match closest(word, candidates) {
+        Some(c) => format!("did you mean `{c}`?"),
+        None if candidates.is_empty() => "this section takes no keys".to_owned(),
+        None => format!("expected one of: {}", candidates.join(", ")),
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn edit_distance_works() {
+        // Textbook example: kitten → sitting takes 3 edits (common practice, no source).
+        assert_eq!(edit_distance("kitten", "sitting"), 3);
+        assert_eq!(edit_distance("", "abc"), 3);
+        assert_eq!(edit_distance("Porosity", "porosity"), 0);
+        assert_eq!(edit_distance("porosty", "porosity"), 1);
+    }
+
+    #[test]
+    fn closest_works() {
+        let keys = ["outer_radius", "porosity", "conductivity", "d50"];
+        assert_eq!(closest("porosty", &keys), Some("porosity"));
+        assert_eq!(closest("conductivty", &keys), Some("conductivity"));
+        assert_eq!(closest("d5", &keys), Some("d50"));
+        assert_eq!(closest("cond", &keys), Some("conductivity"));
+        assert_eq!(closest("zzzzzz", &keys), None);
+    }
+
+    #[test]
+    fn backticked_works() {
+        assert_eq!(
+            backticked("unknown field `x`, expected `a` or `b`"),
+            ["x", "a", "b"]
+        );
+    }
+}

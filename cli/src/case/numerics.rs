@@ -1,0 +1,253 @@
+//! The `duration` and `numerics` sections: simulated time, grid and time-step choice.
+//!
+//! Time steps are resolved here so that the model and the resolved case say exactly what
+//! will run: a periodic drive gets `steps_per_cycle` (auto = the solver's default), any
+//! other drive geometric steps (`steps_per_decade`, `first_step`, defaults from the
+//! solver), unless a fixed `time_step` is given.
+
+use super::error::CaseError;
+use super::quantity::{DurationValue, Kind, Time};
+use super::raw::{MethodName, RawNumerics};
+use crate::units::parse_quantity;
+use boreflux_solver::model::{GridSpec, Numerics, TimeSpec};
+use boreflux_solver::run::{DEFAULT_STEPS_PER_CYCLE, DEFAULT_STEPS_PER_DECADE};
+use serde_json::{json, Map, Value};
+
+/// Default backward-Euler start-up steps (DESIGN.md default).
+pub const DEFAULT_STARTUP_STEPS: u64 = 2;
+/// Default θ: Crank–Nicolson.
+pub const DEFAULT_THETA: f64 = 0.5;
+
+/// Simulated time in s: a time, or `"<n> cycles"` of the drive's period.
+pub fn duration(v: &DurationValue, period_s: Option<f64>) -> Result<f64, CaseError> {
+    let field = "duration";
+    let cycles = match &v.0 {
+        Value::String(s) => {
+            let t = s.trim();
+            t.strip_suffix("cycles")
+                .or_else(|| t.strip_suffix("cycle"))
+                .map(|n| (n.trim().to_owned(), s.clone()))
+        }
+        _ => None,
+    };
+    let seconds = match cycles {
+        Some((n, written)) => {
+            let n: f64 = n
+                .parse()
+                .ok()
+                .filter(|x: &f64| x.is_finite())
+                .ok_or_else(|| {
+                    CaseError::new(
+                        field,
+                        format!("expected \"<number> cycles\", got \"{written}\""),
+                    )
+                })?;
+            let p = period_s.ok_or_else(|| {
+                CaseError::new(
+                    field,
+                    format!(
+                        "\"{written}\" needs a periodic drive (sine_head, or a table with \
+                         repeat); give a time instead"
+                    ),
+                )
+            })?;
+            n * p
+        }
+        None => parse_quantity(&v.0, Time::Q).map_err(|e| CaseError::new(field, e.to_string()))?,
+    };
+    if seconds <= 0.0 {
+        return Err(CaseError::new(
+            field,
+            format!("must be positive, got {seconds} s"),
+        ));
+    }
+    Ok(seconds)
+}
+
+/// Numerics as read, before the default first step (which needs the model) is known.
+#[derive(Debug, Clone, PartialEq)]
+pub struct NumericsOut {
+    /// Settings for the model.
+    pub numerics: Numerics,
+    /// Geometric steps with the solver's default first step still to fill in.
+    pub needs_default_first_step: bool,
+    /// Report every n-th step.
+    pub output_every: u64,
+}
+
+/// Reads `numerics` for a drive with period `period_s` (None: not periodic).
+pub fn numerics(raw: &RawNumerics, period_s: Option<f64>) -> Result<NumericsOut, CaseError> {
+    if raw.method == Some(MethodName::Harmonic) {
+        return Err(CaseError::new(
+            "numerics.method",
+            "\"harmonic\" is not available in this version; use \"time\"",
+        ));
+    }
+    let grid = cells(raw.cells.as_ref().map(|c| &c.0))?;
+    let spc = steps_per_cycle(raw.steps_per_cycle.as_ref().map(|c| &c.0))?;
+    let time_step = raw
+        .time_step
+        .as_ref()
+        .map(|q| q.si("numerics.time_step"))
+        .transpose()?;
+    let first_step = raw
+        .first_step
+        .as_ref()
+        .map(|q| q.si("numerics.first_step"))
+        .transpose()?;
+    let geometric = raw.steps_per_decade.is_some() || first_step.is_some();
+    let mut needs_default_first_step = false;
+    let time = match (time_step, spc, period_s) {
+        (Some(_), Some(_), _) => {
+            return Err(conflict("numerics.time_step", "steps_per_cycle"));
+        }
+        (Some(_), None, _) if geometric => {
+            return Err(conflict(
+                "numerics.time_step",
+                "steps_per_decade/first_step",
+            ));
+        }
+        (Some(dt), None, _) => TimeSpec::Fixed(dt),
+        (None, _, Some(_)) if geometric => {
+            let key = if raw.steps_per_decade.is_some() {
+                "numerics.steps_per_decade"
+            } else {
+                "numerics.first_step"
+            };
+            return Err(CaseError::new(
+                key,
+                "is for drives that are not periodic; use steps_per_cycle or time_step",
+            ));
+        }
+        (None, spc, Some(_)) => TimeSpec::StepsPerCycle(spc.unwrap_or(DEFAULT_STEPS_PER_CYCLE)),
+        (None, Some(n), None) => {
+            return Err(CaseError::new(
+                "numerics.steps_per_cycle",
+                format!(
+                    "is for periodic drives, got {n}; this drive is not periodic: use \
+                     steps_per_decade and first_step, or time_step"
+                ),
+            ))
+        }
+        (None, None, None) => {
+            needs_default_first_step = first_step.is_none();
+            TimeSpec::StepsPerDecade {
+                per_decade: raw.steps_per_decade.unwrap_or(DEFAULT_STEPS_PER_DECADE),
+                first_step_s: first_step.unwrap_or(0.0),
+            }
+        }
+    };
+    let startup = raw.startup_steps.unwrap_or(DEFAULT_STARTUP_STEPS);
+    let output_every = raw.output_every.unwrap_or(1);
+    if output_every == 0 {
+        return Err(CaseError::new(
+            "numerics.output_every",
+            "must be at least 1, got 0",
+        ));
+    }
+    Ok(NumericsOut {
+        numerics: Numerics {
+            grid,
+            time,
+            theta: raw.theta.unwrap_or(DEFAULT_THETA),
+            startup_steps: usize::try_from(startup).map_err(|_| {
+                CaseError::new(
+                    "numerics.startup_steps",
+                    format!("is too large, got {startup}"),
+                )
+            })?,
+            ..Numerics::default()
+        },
+        needs_default_first_step,
+        output_every,
+    })
+}
+
+fn conflict(field: &str, other: &str) -> CaseError {
+    CaseError::new(field, format!("give either time_step or {other}, not both"))
+}
+
+fn cells(v: Option<&Value>) -> Result<GridSpec, CaseError> {
+    let bad = |v: &Value| {
+        CaseError::new(
+            "numerics.cells",
+            format!("expected \"auto\", a whole number of cells or {{\"per_decade\": n}}, got {v}"),
+        )
+    };
+    match v {
+        None => Ok(GridSpec::Auto),
+        Some(Value::String(s)) if s == "auto" => Ok(GridSpec::Auto),
+        Some(v @ Value::Number(n)) => n
+            .as_u64()
+            .and_then(|c| usize::try_from(c).ok())
+            .map(GridSpec::Total)
+            .ok_or_else(|| bad(v)),
+        Some(v @ Value::Object(m)) => {
+            if let Some(k) = m.keys().find(|k| k.as_str() != "per_decade") {
+                return Err(CaseError::new(
+                    format!("numerics.cells.{k}"),
+                    format!(
+                        "unknown key `{k}`; {}",
+                        super::hints::suggestion(k, &["per_decade"])
+                    ),
+                ));
+            }
+            match m.get("per_decade").and_then(Value::as_f64) {
+                Some(d) => Ok(GridSpec::PerDecade(d)),
+                None => Err(bad(v)),
+            }
+        }
+        Some(v) => Err(bad(v)),
+    }
+}
+
+fn steps_per_cycle(v: Option<&Value>) -> Result<Option<usize>, CaseError> {
+    match v {
+        None => Ok(None),
+        Some(Value::String(s)) if s == "auto" => Ok(None),
+        Some(v) => v
+            .as_u64()
+            .and_then(|c| usize::try_from(c).ok())
+            .map(Some)
+            .ok_or_else(|| {
+                CaseError::new(
+                    "numerics.steps_per_cycle",
+                    format!("expected \"auto\" or a whole number, got {v}"),
+                )
+            }),
+    }
+}
+
+/// The resolved `numerics` section.
+pub fn resolved(n: &Numerics, output_every: u64) -> Value {
+    let mut m = Map::new();
+    m.insert("method".to_owned(), json!("time"));
+    m.insert(
+        "cells".to_owned(),
+        match n.grid {
+            GridSpec::Auto => json!("auto"),
+            GridSpec::Total(c) => json!(c),
+            GridSpec::PerDecade(d) => json!({ "per_decade": d }),
+        },
+    );
+    match n.time {
+        TimeSpec::Auto => {}
+        TimeSpec::StepsPerCycle(s) => {
+            m.insert("steps_per_cycle".to_owned(), json!(s));
+        }
+        TimeSpec::StepsPerDecade {
+            per_decade,
+            first_step_s,
+        } => {
+            m.insert("steps_per_decade".to_owned(), json!(per_decade));
+            m.insert("first_step".to_owned(), json!(first_step_s));
+        }
+        TimeSpec::Fixed(dt) => {
+            m.insert("time_step".to_owned(), json!(dt));
+        }
+    }
+    m.insert("theta".to_owned(), json!(n.theta));
+    m.insert("startup_steps".to_owned(), json!(n.startup_steps));
+    m.insert("output_every".to_owned(), json!(output_every));
+    Value::Object(m)
+}

@@ -1,0 +1,33 @@
+//! Shipped example cases for `boreflux new --scenario NAME`, compiled in from `cases/`.
+
+/// (name, JSON text) of every shipped scenario; the first is the default demo.
+pub fn scenarios() -> &'static [(&'static str, &'static str)] {
+    &[
+        (
+            "municipal-sand-gravel",
+            include_str!("../../../cases/municipal-sand-gravel.json"),
+        ),
+        (
+            "domestic-fine-sand-pvc",
+            include_str!("../../../cases/domestic-fine-sand-pvc.json"),
+        ),
+        (
+            "monitoring-silty-sand",
+            include_str!("../../../cases/monitoring-silty-sand.json"),
+        ),
+        (
+            "irrigation-pump-surge",
+            include_str!("../../../cases/irrigation-pump-surge.json"),
+        ),
+    ]
+}
+
+/// Files a scenario refers to, as (scenario, file name relative to the case, contents):
+/// `new` must write them beside the case for it to load.
+pub fn scenario_companions() -> &'static [(&'static str, &'static str, &'static str)] {
+    &[(
+        "irrigation-pump-surge",
+        "irrigation-pump-surge.csv",
+        include_str!("../../../cases/irrigation-pump-surge.csv"),
+    )]
+}

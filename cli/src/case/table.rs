@@ -1,0 +1,240 @@
+//! The `table` drive: a time series of in-well head or pumping rate, from a CSV file
+//! next to the case or from inline `points`.
+//!
+//! CSV layout: two comma-separated columns, time in s and value in SI (head in m, or
+//! pumping rate in m³/s, positive = withdrawal); an optional header row; blank lines and
+//! lines starting with `#` are skipped. A time written twice makes a jump. The resolved
+//! case carries the points themselves, so it reproduces the run without the file.
+
+use super::drives::{into_map, read_keys, DriveContext, ParsedDrive};
+use super::error::CaseError;
+use boreflux_solver::drive::{TableDrive, TableQuantity};
+use boreflux_solver::Drive;
+use schemars::JsonSchema;
+use serde::Deserialize;
+use serde_json::{json, Map, Value};
+
+/// What the table gives.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize, JsonSchema)]
+#[serde(rename_all = "snake_case")]
+pub enum TableQuantityName {
+    /// In-well head, m.
+    Head,
+    /// Pumping rate, m³/s, positive = withdrawal.
+    PumpingRate,
+}
+
+/// Keys of `table`: exactly one of `file` and `points`.
+#[derive(Debug, Deserialize, JsonSchema)]
+#[serde(deny_unknown_fields)]
+pub struct TableKeys {
+    /// CSV file relative to the case file: columns time (s), value (SI); header optional.
+    pub file: Option<String>,
+    /// Inline points [[time_s, value], …] in SI, instead of `file`.
+    pub points: Option<Vec<[f64; 2]>>,
+    /// What the values are.
+    pub quantity: TableQuantityName,
+    /// Repeat the table with a period equal to its last time [false].
+    pub repeat: Option<bool>,
+}
+
+/// Parser of the `table` drive (registered in [`super::drives::DRIVE_KINDS`]).
+pub fn table(map: Map<String, Value>, ctx: &DriveContext<'_>) -> Result<ParsedDrive, CaseError> {
+    let k: TableKeys = read_keys(map)?;
+    let (field, rows, source) = match (&k.file, &k.points) {
+        (Some(file), None) => {
+            let path = ctx.base_dir.join(file);
+            let text = std::fs::read_to_string(&path).map_err(|e| {
+                CaseError::new(
+                    "drive.file",
+                    format!("cannot read table file {}: {e}", path.display()),
+                )
+            })?;
+            let rows = read_csv(&text)
+                .map_err(|m| CaseError::new("drive.file", format!("{file}: {m}")))?;
+            ("drive.file", rows, format!("file {file}"))
+        }
+        (None, Some(points)) => {
+            let rows = points
+                .iter()
+                .enumerate()
+                .map(|(i, p)| (i + 1, p[0], p[1]))
+                .collect();
+            ("drive.points", rows, "inline points".to_owned())
+        }
+        (Some(_), Some(_)) => {
+            return Err(CaseError::new(
+                "drive.points",
+                "give either file or points, not both",
+            ))
+        }
+        (None, None) => {
+            return Err(CaseError::new(
+                "drive.file",
+                "required key is missing (or give `points`)",
+            ))
+        }
+    };
+    check_rows(&rows).map_err(|m| CaseError::new(field, m))?;
+    let repeat = k.repeat.unwrap_or(false);
+    let quantity = match k.quantity {
+        TableQuantityName::Head => TableQuantity::Head,
+        TableQuantityName::PumpingRate => TableQuantity::PumpingRate,
+    };
+    let (times_s, values): (Vec<f64>, Vec<f64>) = rows.iter().map(|&(_, t, v)| (t, v)).unzip();
+    let last = times_s.last().copied().unwrap_or(0.0);
+    let points: Vec<Value> = rows.iter().map(|&(_, t, v)| json!([t, v])).collect();
+    let what = match quantity {
+        TableQuantity::Head => "head (m)",
+        TableQuantity::PumpingRate => "pumping rate (m3/s)",
+    };
+    let note = format!(
+        "drive: table of {what} from {source}, {} rows over {last} s{}",
+        rows.len(),
+        if repeat {
+            format!(", repeated with period {last} s")
+        } else {
+            String::new()
+        }
+    );
+    Ok(ParsedDrive {
+        drive: Drive::Table(TableDrive {
+            times_s,
+            values,
+            quantity,
+            repeat,
+        }),
+        resolved: into_map(json!({
+            "points": points,
+            "quantity": match quantity {
+                TableQuantity::Head => "head",
+                TableQuantity::PumpingRate => "pumping_rate",
+            },
+            "repeat": repeat,
+        })),
+        notes: vec![note],
+    })
+}
+
+/// Rows `(line, time, value)` of a CSV table. Errors name the line.
+pub fn read_csv(text: &str) -> Result<Vec<(usize, f64, f64)>, String> {
+    let mut rows = Vec::new();
+    let mut header_allowed = true;
+    for (i, line) in text.lines().enumerate() {
+        let n = i + 1;
+        let line = line.trim().trim_start_matches('\u{feff}');
+        if line.is_empty() || line.starts_with('#') {
+            continue;
+        }
+        let cols: Vec<&str> = line.split(',').map(str::trim).collect();
+        if cols.len() != 2 {
+            return Err(format!(
+                "line {n}: expected two columns (time_s,value), got {}: \"{line}\"",
+                cols.len()
+            ));
+        }
+        let parsed: Result<Vec<f64>, _> = cols.iter().map(|c| c.parse::<f64>()).collect();
+        match parsed {
+            Ok(v) => {
+                if let Some(bad) = v.iter().find(|x| !x.is_finite()) {
+                    return Err(format!("line {n}: expected finite numbers, got {bad}"));
+                }
+                rows.push((n, v[0], v[1]));
+            }
+            Err(_) if header_allowed => {}
+            Err(_) => {
+                return Err(format!(
+                    "line {n}: expected two numbers (time_s,value), got \"{line}\""
+                ))
+            }
+        }
+        header_allowed = false;
+    }
+    Ok(rows)
+}
+
+/// Checks the shape of a time series: at least two rows, starting at 0 s, times
+/// non-decreasing, a time repeated at most once (a jump), spanning a positive time.
+pub fn check_rows(rows: &[(usize, f64, f64)]) -> Result<(), String> {
+    if rows.len() < 2 {
+        return Err(format!(
+            "needs at least two rows of time and value, got {}",
+            rows.len()
+        ));
+    }
+    if rows[0].1 != 0.0 {
+        return Err(format!(
+            "row at line {}: the first time must be 0 s, got {} s",
+            rows[0].0, rows[0].1
+        ));
+    }
+    for (i, w) in rows.windows(2).enumerate() {
+        let ((_, t0, _), (n1, t1, _)) = (w[0], w[1]);
+        if t1 < t0 {
+            return Err(format!(
+                "row at line {n1}: times must not decrease, got {t1} s after {t0} s"
+            ));
+        }
+        if t1 == t0 && i > 0 && rows[i - 1].1 == t0 {
+            return Err(format!(
+                "row at line {n1}: time {t1} s appears three times (a jump needs two)"
+            ));
+        }
+    }
+    let last = rows[rows.len() - 1].1;
+    if last <= 0.0 {
+        return Err(format!("the table must span a positive time, got {last} s"));
+    }
+    Ok(())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn read_csv_works() {
+        let rows = read_csv("time_s,rate\n# comment\n0,0.05\n\n180, 0.05\n180,0\n").unwrap();
+        assert_eq!(
+            rows,
+            vec![(3, 0.0, 0.05), (5, 180.0, 0.05), (6, 180.0, 0.0)]
+        );
+        // No header.
+        assert_eq!(read_csv("0,1\n1,2").unwrap().len(), 2);
+    }
+
+    #[test]
+    fn read_csv_captures_errors() {
+        assert_eq!(
+            read_csv("t,v\n0,1\nx,2\n").unwrap_err(),
+            "line 3: expected two numbers (time_s,value), got \"x,2\""
+        );
+        assert_eq!(
+            read_csv("0,1\n1,NaN\n").unwrap_err(),
+            "line 2: expected finite numbers, got NaN"
+        );
+        assert!(read_csv("0,1,2\n").unwrap_err().contains("two columns"));
+    }
+
+    #[test]
+    fn check_rows_captures_errors() {
+        assert!(check_rows(&[(1, 0.0, 1.0)])
+            .unwrap_err()
+            .contains("two rows"));
+        assert!(check_rows(&[(1, 1.0, 1.0), (2, 2.0, 1.0)])
+            .unwrap_err()
+            .contains("first time must be 0 s, got 1 s"));
+        assert!(check_rows(&[(1, 0.0, 1.0), (2, 5.0, 1.0), (3, 4.0, 1.0)])
+            .unwrap_err()
+            .contains("got 4 s after 5 s"));
+        assert!(
+            check_rows(&[(1, 0.0, 1.0), (2, 5.0, 1.0), (3, 5.0, 1.0), (4, 5.0, 2.0)])
+                .unwrap_err()
+                .contains("three times")
+        );
+        assert!(check_rows(&[(1, 0.0, 1.0), (2, 0.0, 1.0)])
+            .unwrap_err()
+            .contains("positive time"));
+        assert!(check_rows(&[(1, 0.0, 1.0), (2, 3.0, 1.0), (3, 3.0, 0.0)]).is_ok());
+    }
+}

@@ -1,0 +1,431 @@
+//! Well, pack, cake, invaded zone and formation: raw sections to solver types in SI, each
+//! with its resolved JSON (every default filled) and the notes worth showing.
+
+use super::checks::{fraction, non_negative, open_fraction, positive};
+use super::error::CaseError;
+use super::grains::{check_grains, forchheimer_beta, grain_shape, pack_conductivity, Grains};
+use super::quantity::{Kind, Length, Q};
+use super::raw::{OuterBoundaryName, RawCake, RawFormation, RawInvaded, RawPack, RawWell};
+use super::{Log, SafetyInputs};
+use crate::units::parse_quantity;
+use boreflux_solver::media::GrainShape;
+use boreflux_solver::model::{
+    Cake, Erosion, Formation, Invaded, Medium, OuterBoundary, Pack, Well,
+};
+use boreflux_solver::water::Water;
+use serde_json::{json, Value};
+
+/// Orifice discharge coefficient used when the case gives none: sharp-edged slots
+/// (PHYSICS.md §3, typical value from memory — verify).
+pub const DEFAULT_DISCHARGE_COEFFICIENT: f64 = 0.6;
+/// Formation porosity when the case gives none (DESIGN.md default).
+pub const DEFAULT_FORMATION_POROSITY: f64 = 0.3;
+/// Grain specific gravity of quartz sand when the case gives none (common practice, no
+/// source).
+pub const DEFAULT_SPECIFIC_GRAVITY: f64 = 2.65;
+/// Safety factor on the collapse pressure when the case gives none (DESIGN.md brief; the
+/// upper end of the 1.5–2 usually quoted, common practice, no source).
+pub const DEFAULT_SAFETY_FACTOR: f64 = 2.0;
+/// Weight on the shear during inward flow when the case gives none.
+pub const DEFAULT_INWARD_WEIGHT: f64 = 1.0;
+/// Weight on the shear during outward flow when the case gives none.
+pub const DEFAULT_OUTWARD_WEIGHT: f64 = 0.5;
+/// Coverage-law exponent when the case gives none: 0, the cake keeps covering the wall
+/// until it is gone. With m > 0 the first openings short-circuit a tight cake at once
+/// (solver cake.rs), so 0 is the choice that does not overstate development.
+pub const DEFAULT_COVERAGE_EXPONENT: f64 = 0.0;
+
+fn opt<K: Kind>(q: &Option<Q<K>>, field: &str) -> Result<Option<f64>, CaseError> {
+    q.as_ref().map(|q| q.si(field)).transpose()
+}
+
+/// The formation, its resolved keys and its grain specific gravity.
+pub fn formation(r: &RawFormation, log: &mut Log) -> Result<(Formation, f64, Value), CaseError> {
+    let k = positive(
+        "formation.conductivity",
+        r.conductivity.si("formation.conductivity")?,
+        "m/s",
+    )?;
+    let ss = positive(
+        "formation.specific_storage",
+        r.specific_storage.si("formation.specific_storage")?,
+        "1/m",
+    )?;
+    let n = match &r.porosity {
+        Some(q) => open_fraction("formation.porosity", q.si("formation.porosity")?)?,
+        None => DEFAULT_FORMATION_POROSITY,
+    };
+    let d50 = opt(&r.d50, "formation.d50")?;
+    check_grains(
+        "formation",
+        &Grains {
+            d50,
+            ..Grains::default()
+        },
+    )?;
+    let beta_given = opt(&r.forchheimer_beta, "formation.forchheimer_beta")?
+        .map(|b| non_negative("formation.forchheimer_beta", b, "s2/m2"))
+        .transpose()?;
+    let (beta, note) = forchheimer_beta("formation", beta_given, d50, n, GrainShape::Spheres);
+    log.note(note);
+    let outer_radius_m = match r.outer_radius.as_ref().map(|v| &v.0) {
+        None => None,
+        Some(Value::String(s)) if s == "auto" => None,
+        Some(v) => Some(
+            parse_quantity(v, Length::Q)
+                .map_err(|e| CaseError::new("formation.outer_radius", e.to_string()))?,
+        ),
+    };
+    let gs = r.specific_gravity.unwrap_or(DEFAULT_SPECIFIC_GRAVITY);
+    if gs <= 1.0 {
+        return Err(CaseError::new(
+            "formation.specific_gravity",
+            format!("must be greater than 1 (grains heavier than water), got {gs}"),
+        ));
+    }
+    let boundary = match r.outer_boundary.unwrap_or(OuterBoundaryName::FixedHead) {
+        OuterBoundaryName::FixedHead => OuterBoundary::FixedHead,
+        OuterBoundaryName::NoFlow => OuterBoundary::NoFlow,
+    };
+    let resolved = json!({
+        "conductivity": k,
+        "specific_storage": ss,
+        "outer_radius": outer_radius_m.map_or(json!("auto"), |r| json!(r)),
+        "outer_boundary": match boundary {
+            OuterBoundary::FixedHead => "fixed_head",
+            OuterBoundary::NoFlow => "no_flow",
+        },
+        "porosity": n,
+        "d50": d50,
+        "forchheimer_beta": beta,
+        "specific_gravity": gs,
+    });
+    let formation = Formation {
+        medium: Medium {
+            conductivity_m_s: k,
+            specific_storage_per_m: ss,
+            porosity: n,
+            forchheimer_beta_s2_m2: beta,
+            grain_diameter_m: d50,
+        },
+        outer_radius_m,
+        outer_boundary: boundary,
+    };
+    Ok((formation, gs, drop_nulls(resolved)))
+}
+
+/// The well, the collapse-check inputs and the resolved keys.
+pub fn well(r: &RawWell, log: &mut Log) -> Result<(Well, SafetyInputs, Value), CaseError> {
+    let rs = r.screen_radius.si("well.screen_radius")?;
+    let length = r.screen_length.si("well.screen_length")?;
+    let open_area = fraction("well.open_area", r.open_area.si("well.open_area")?)?;
+    let rc = opt(&r.casing_radius, "well.casing_radius")?.unwrap_or(rs);
+    let slot = opt(&r.slot_width, "well.slot_width")?
+        .map(|w| positive("well.slot_width", w, "m"))
+        .transpose()?;
+    let linear = opt(&r.screen_loss, "well.screen_loss")?.unwrap_or(0.0);
+    let cd = match r.discharge_coefficient.as_ref().map(|v| &v.0) {
+        None => Some(DEFAULT_DISCHARGE_COEFFICIENT),
+        Some(Value::String(s)) if s == "none" => None,
+        Some(Value::Number(n)) => n.as_f64(),
+        Some(other) => {
+            return Err(CaseError::new(
+                "well.discharge_coefficient",
+                format!("expected a number in (0, 1] or \"none\", got {other}"),
+            ))
+        }
+    };
+    let storage = match opt(&r.storage, "well.storage")? {
+        Some(s) => s,
+        None => {
+            let s = Well::free_surface_storage(rc);
+            log.note(format!(
+                "well-bore storage: pi x casing_radius^2 = {s:.4e} m2 (free water surface)"
+            ));
+            s
+        }
+    };
+    match cd {
+        Some(cd) => log.note(format!(
+            "screen entrance loss: orifice law with discharge coefficient {cd} on open area \
+             {open_area}; open_area should be the effective open area (the part the pack \
+             grains leave open)"
+        )),
+        None => log.note("screen entrance loss: off (discharge_coefficient \"none\")"),
+    }
+    let safety = safety_inputs(r)?;
+    if safety.material.as_deref() == Some("pvc")
+        && safety.dimension_ratio.is_none()
+        && safety.collapse_rating_pa.is_none()
+    {
+        log.warn(
+            "well.material is pvc but neither dimension_ratio nor collapse_rating is given; \
+             the collapse check cannot be made",
+        );
+    }
+    if let Some(m) = safety.material.as_deref() {
+        if !["pvc", "steel", "stainless"].contains(&m) {
+            log.warn(format!(
+                "well.material \"{m}\" has no built-in properties; give collapse_rating, or \
+                 youngs_modulus and poisson_ratio, for the collapse check"
+            ));
+        }
+    }
+    let well = Well {
+        screen_radius_m: rs,
+        screen_length_m: length,
+        open_area,
+        casing_radius_m: rc,
+        linear_loss_s: linear,
+        discharge_coefficient: cd,
+        storage_m2: storage,
+    };
+    let resolved = json!({
+        "screen_radius": rs,
+        "screen_length": length,
+        "open_area": open_area,
+        "casing_radius": rc,
+        "slot_width": slot,
+        "screen_loss": linear,
+        "discharge_coefficient": cd.map_or(json!("none"), |c| json!(c)),
+        "storage": storage,
+        "material": safety.material,
+        "dimension_ratio": safety.dimension_ratio,
+        "collapse_rating": safety.collapse_rating_pa,
+        "youngs_modulus": safety.youngs_modulus_pa,
+        "poisson_ratio": safety.poisson_ratio,
+        "safety_factor": safety.safety_factor,
+    });
+    Ok((well, safety, drop_nulls(resolved)))
+}
+
+fn safety_inputs(r: &RawWell) -> Result<SafetyInputs, CaseError> {
+    let material = r.material.as_ref().map(|m| m.trim().to_lowercase());
+    if material.as_deref() == Some("") {
+        return Err(CaseError::new("well.material", "must not be empty"));
+    }
+    if let Some(dr) = r.dimension_ratio {
+        if dr <= 2.0 {
+            return Err(CaseError::new(
+                "well.dimension_ratio",
+                format!("must be greater than 2 (outside diameter / wall thickness), got {dr}"),
+            ));
+        }
+    }
+    let collapse = opt(&r.collapse_rating, "well.collapse_rating")?
+        .map(|p| positive("well.collapse_rating", p, "Pa"))
+        .transpose()?;
+    let e = opt(&r.youngs_modulus, "well.youngs_modulus")?
+        .map(|p| positive("well.youngs_modulus", p, "Pa"))
+        .transpose()?;
+    if let Some(nu) = r.poisson_ratio {
+        if !(nu > 0.0 && nu < 0.5) {
+            return Err(CaseError::new(
+                "well.poisson_ratio",
+                format!("must be between 0 and 0.5, got {nu}"),
+            ));
+        }
+    }
+    let sf = r.safety_factor.unwrap_or(DEFAULT_SAFETY_FACTOR);
+    if sf < 1.0 {
+        return Err(CaseError::new(
+            "well.safety_factor",
+            format!("must be at least 1, got {sf}"),
+        ));
+    }
+    Ok(SafetyInputs {
+        collapse_rating_pa: collapse,
+        material,
+        dimension_ratio: r.dimension_ratio,
+        youngs_modulus_pa: e,
+        poisson_ratio: r.poisson_ratio,
+        safety_factor: sf,
+        formation_specific_gravity: DEFAULT_SPECIFIC_GRAVITY,
+    })
+}
+
+/// The filter pack; `formation` supplies the default specific storage.
+pub fn pack(
+    r: &RawPack,
+    water: &Water,
+    formation: &Medium,
+    log: &mut Log,
+) -> Result<(Pack, Value), CaseError> {
+    let rb = r.outer_radius.si("pack.outer_radius")?;
+    let n = open_fraction("pack.porosity", r.porosity.si("pack.porosity")?)?;
+    let grains = Grains {
+        d10: opt(&r.d10, "pack.d10")?,
+        d50: opt(&r.d50, "pack.d50")?,
+        d60: opt(&r.d60, "pack.d60")?,
+    };
+    check_grains("pack", &grains)?;
+    let shape = grain_shape("pack", r.sphericity, r.grain_shape)?;
+    let given_k = opt(&r.conductivity, "pack.conductivity")?
+        .map(|k| positive("pack.conductivity", k, "m/s"))
+        .transpose()?;
+    let k = pack_conductivity(given_k, &grains, n, shape, water)?;
+    for s in k.notes {
+        log.note(s);
+    }
+    for s in k.warnings {
+        log.warn(s);
+    }
+    let ss = match opt(&r.specific_storage, "pack.specific_storage")? {
+        Some(s) => s,
+        None => formation.specific_storage_per_m,
+    };
+    let beta_given = opt(&r.forchheimer_beta, "pack.forchheimer_beta")?
+        .map(|b| non_negative("pack.forchheimer_beta", b, "s2/m2"))
+        .transpose()?;
+    let (beta, note) = forchheimer_beta("pack", beta_given, grains.d50, n, shape);
+    log.note(note);
+    if k.conductivity_m_s < formation.conductivity_m_s {
+        log.warn(format!(
+            "pack conductivity {:.3e} m/s is below the formation's {:.3e} m/s: the pack \
+             itself throttles the well",
+            k.conductivity_m_s, formation.conductivity_m_s
+        ));
+    }
+    let resolved = json!({
+        "outer_radius": rb,
+        "porosity": n,
+        "conductivity": k.conductivity_m_s,
+        "specific_storage": ss,
+        "d10": grains.d10,
+        "d50": grains.d50,
+        "d60": grains.d60,
+        "sphericity": shape.sphericity(),
+        "forchheimer_beta": beta,
+    });
+    let pack = Pack {
+        outer_radius_m: rb,
+        medium: Medium {
+            conductivity_m_s: k.conductivity_m_s,
+            specific_storage_per_m: ss,
+            porosity: n,
+            forchheimer_beta_s2_m2: beta,
+            grain_diameter_m: grains.d50,
+        },
+    };
+    Ok((pack, drop_nulls(resolved)))
+}
+
+/// The wall cake, if any.
+pub fn cake(r: &RawCake, log: &mut Log) -> Result<(Cake, Value), CaseError> {
+    let thickness = r.thickness.si("cake.thickness")?;
+    let k = r.conductivity.si("cake.conductivity")?;
+    let coverage = match &r.coverage {
+        Some(q) => q.si("cake.coverage")?,
+        None => 1.0,
+    };
+    let erosion = match &r.erosion {
+        None => None,
+        Some(e) => {
+            log.note(
+                "cake erosion law: its critical shear and erodibility are model assumptions; \
+                 calibrate them before relying on cake removal times",
+            );
+            Some(Erosion {
+                critical_shear_pa: e.critical_shear.si("cake.erosion.critical_shear")?,
+                erodibility_m_s_pa: e.erodibility.si("cake.erosion.erodibility")?,
+                inward_weight: e.inward_weight.unwrap_or(DEFAULT_INWARD_WEIGHT),
+                outward_weight: e.outward_weight.unwrap_or(DEFAULT_OUTWARD_WEIGHT),
+                coverage_exponent: e.coverage_exponent.unwrap_or(DEFAULT_COVERAGE_EXPONENT),
+            })
+        }
+    };
+    let resolved = json!({
+        "thickness": thickness,
+        "conductivity": k,
+        "coverage": coverage,
+        "erosion": erosion.map(|e| json!({
+            "critical_shear": e.critical_shear_pa,
+            "erodibility": e.erodibility_m_s_pa,
+            "inward_weight": e.inward_weight,
+            "outward_weight": e.outward_weight,
+            "coverage_exponent": e.coverage_exponent,
+        })),
+    });
+    let cake = Cake {
+        thickness_m: thickness,
+        conductivity_m_s: k,
+        coverage,
+        erosion,
+    };
+    Ok((cake, drop_nulls(resolved)))
+}
+
+/// The invaded zone; porosity, d50 and Forchheimer β are the formation's.
+pub fn invaded(
+    r: &RawInvaded,
+    formation: &Medium,
+    log: &mut Log,
+) -> Result<(Invaded, Value), CaseError> {
+    let thickness = r.thickness.si("invaded.thickness")?;
+    let kf = formation.conductivity_m_s;
+    let k = match (&r.conductivity_ratio, &r.conductivity) {
+        (Some(ratio), None) => {
+            let x = positive(
+                "invaded.conductivity_ratio",
+                ratio.si("invaded.conductivity_ratio")?,
+                "",
+            )?;
+            if x > 1.0 {
+                log.warn(format!(
+                    "invaded.conductivity_ratio {x} is above 1: the invaded zone is more \
+                     conductive than the formation"
+                ));
+            }
+            x * kf
+        }
+        (None, Some(k)) => k.si("invaded.conductivity")?,
+        (Some(_), Some(_)) => {
+            return Err(CaseError::new(
+                "invaded.conductivity",
+                "give either conductivity or conductivity_ratio, not both",
+            ))
+        }
+        (None, None) => {
+            return Err(CaseError::new(
+                "invaded.conductivity_ratio",
+                "required key is missing (give conductivity_ratio or conductivity)",
+            ))
+        }
+    };
+    let ss = match &r.specific_storage {
+        Some(q) => q.si("invaded.specific_storage")?,
+        None => formation.specific_storage_per_m,
+    };
+    log.note(format!(
+        "invaded zone: conductivity {k:.3e} m/s ({:.3} x formation); porosity, d50 and \
+         Forchheimer beta taken from the formation",
+        k / kf
+    ));
+    let resolved = json!({
+        "thickness": thickness,
+        "conductivity": k,
+        "specific_storage": ss,
+    });
+    let invaded = Invaded {
+        thickness_m: thickness,
+        medium: Medium {
+            conductivity_m_s: k,
+            specific_storage_per_m: ss,
+            ..*formation
+        },
+    };
+    Ok((invaded, resolved))
+}
+
+/// Removes keys whose value is null, so the resolved case stays loadable.
+pub fn drop_nulls(v: Value) -> Value {
+    match v {
+        Value::Object(m) => Value::Object(
+            m.into_iter()
+                .filter(|(_, v)| !v.is_null())
+                .map(|(k, v)| (k, drop_nulls(v)))
+                .collect(),
+        ),
+        other => other,
+    }
+}

@@ -1,0 +1,236 @@
+//! `boreflux check`: validate a case and print what the model derives from it, without
+//! simulating — zone geometry, resistance of each zone and its share, skins, diffusivity
+//! and penetration depth, grid and step — and, on request, how face flux and cake work
+//! change with the annulus width (each width is simulated).
+
+use super::{print_out, Failure};
+use crate::args::CheckArgs;
+use crate::case::{load_case, LoadedCase};
+use crate::summary::G;
+use anyhow::anyhow;
+use boreflux_solver::grid::{Zone, ZONE_COUNT};
+use boreflux_solver::model::Medium;
+use boreflux_solver::run::{default_first_step, total_skin, DEFAULT_STEPS_PER_CYCLE};
+use boreflux_solver::safety::CAUTION;
+use boreflux_solver::system::{CakeState, Discretization};
+use boreflux_solver::{run, Model, Reporting};
+use serde_json::json;
+use std::f64::consts::PI;
+
+/// Resistance of each zone to steady radial flow at vanishing flow, s/m².
+fn zone_resistances(d: &Discretization) -> [f64; ZONE_COUNT] {
+    let mut r = [0.0; ZONE_COUNT];
+    let used = if d.outer_open {
+        d.faces.len()
+    } else {
+        d.faces.len() - 1
+    };
+    for f in &d.faces[..used] {
+        for s in f.segments() {
+            r[s.zone as usize] += s.r_lin;
+        }
+    }
+    r
+}
+
+fn penetration_depth(m: &Medium, period: f64) -> f64 {
+    (m.diffusivity_m2_s() * period / PI).sqrt()
+}
+
+/// Peak face flux and cake work per cycle for the model with the pack outer radius set to
+/// r_s + width, over at most 5 cycles.
+fn annulus_run(model: &Model, width: f64) -> Result<(f64, f64, f64), Failure> {
+    let mut m = model.clone();
+    let period = m
+        .drive
+        .period_s()
+        .ok_or_else(|| Failure::Input(anyhow!("--annulus needs a periodic drive")))?;
+    let delta = m.pack.outer_radius_m - m.well.screen_radius_m;
+    m.pack.outer_radius_m = m.well.screen_radius_m + width;
+    let cycles = (m.duration_s / period).floor().clamp(1.0, 5.0);
+    m.duration_s = cycles * period;
+    if let Some(c) = m.cake.as_mut() {
+        c.erosion = None; // same cake in every variant
+    }
+    m.validate().map_err(|e| {
+        Failure::Input(anyhow!(
+            "annulus width {:.0} mm (was {:.0} mm): {e}",
+            width * 1e3,
+            delta * 1e3
+        ))
+    })?;
+    let s = run(
+        &m,
+        &mut boreflux_solver::diagnostics::NullObserver,
+        Reporting::default(),
+    )
+    .map_err(|e| Failure::Runtime(e.into()))?;
+    let peak = s.peak_outward_flux_m_s.max(s.peak_inward_flux_m_s);
+    Ok((
+        peak,
+        s.work_j[Zone::Cake as usize] / cycles,
+        s.work_j[Zone::Pack as usize] / cycles,
+    ))
+}
+
+fn parse_width(text: &str) -> Result<f64, Failure> {
+    crate::units::parse_quantity(
+        &serde_json::Value::String(text.trim().to_string()),
+        crate::units::Quantity::Length,
+    )
+    .map_err(|e| Failure::Input(anyhow!("--annulus: {text}: {e}")))
+}
+
+/// Runs the command.
+pub fn check(a: &CheckArgs) -> Result<(), Failure> {
+    let case: LoadedCase =
+        load_case(&a.case).map_err(|e| Failure::Input(anyhow!("{}: {e}", a.case.display())))?;
+    let m = &case.model;
+    let cake = m.cake.map(|c| CakeState {
+        thickness_m: c.thickness_m,
+        coverage: c.coverage,
+    });
+    let d = Discretization::new(m, cake);
+    let g = &d.grid;
+    let res = zone_resistances(&d);
+    let total: f64 = res.iter().sum();
+    let period = m.drive.slowest_period_s();
+    let rs = m.well.screen_radius_m;
+    let rb = m.borehole_radius_m();
+    let rd = m.invaded_outer_radius_m();
+    let kf = m.formation.medium.conductivity_m_s;
+    let skin_pack = boreflux_solver::skin::hawkins_skin(kf, m.pack.medium.conductivity_m_s, rs, rb);
+    let skin_inv = m.invaded.map_or(0.0, |z| {
+        boreflux_solver::skin::hawkins_skin(kf, z.medium.conductivity_m_s, rb, rd)
+    });
+    let skin_total = total_skin(m, cake);
+    let step = match (m.numerics.time, period) {
+        (boreflux_solver::model::TimeSpec::Fixed(dt), _) => format!("fixed {} s", G(dt, 4)),
+        (boreflux_solver::model::TimeSpec::StepsPerCycle(n), Some(p)) => {
+            format!("{n} per cycle ({} s)", G(p / n as f64, 4))
+        }
+        (_, Some(p)) => format!(
+            "{DEFAULT_STEPS_PER_CYCLE} per cycle ({} s)",
+            G(p / DEFAULT_STEPS_PER_CYCLE as f64, 4)
+        ),
+        _ => format!("geometric, first {} s", G(default_first_step(m), 3)),
+    };
+    let mut zones = vec![("pack", rs, rb, Some(m.pack.medium))];
+    if let Some(z) = m.invaded {
+        zones.push(("invaded", rb, rd, Some(z.medium)));
+    }
+    zones.push((
+        "formation",
+        rd,
+        g.outer_radius_m(),
+        Some(m.formation.medium),
+    ));
+    let mut widths = Vec::new();
+    for w in &a.annulus {
+        let width = parse_width(w)?;
+        let (q, wc, wp) = annulus_run(m, width)?;
+        widths.push((width, q, wc, wp));
+    }
+    if a.json {
+        let v = json!({
+            "title": case.title,
+            "zones": zones.iter().map(|(n, r1, r2, med)| json!({"zone": n, "inner_radius_m": r1, "outer_radius_m": r2,
+                "conductivity_m_s": med.map(|x| x.conductivity_m_s), "diffusivity_m2_s": med.map(|x| x.diffusivity_m2_s()),
+                "penetration_depth_m": period.and_then(|p| med.map(|x| penetration_depth(&x, p)))})).collect::<Vec<_>>(),
+            "resistance_s_m2": Zone::ALL.iter().map(|z| (z.name().to_string(), json!(res[*z as usize]))).collect::<serde_json::Map<_, _>>(),
+            "skin": {"pack": skin_pack, "cake": skin_total - skin_pack - skin_inv, "invaded": skin_inv, "total": skin_total},
+            "cells": g.cells(), "outer_radius_m": g.outer_radius_m(), "time_step": step,
+            "annulus": widths.iter().map(|(w, q, wc, wp)| json!({"width_m": w, "peak_face_flux_m_s": q, "cake_work_per_cycle_j": wc, "pack_work_per_cycle_j": wp})).collect::<Vec<_>>(),
+            "notes": case.notes, "warnings": case.warnings,
+        });
+        return print_out(
+            &(serde_json::to_string_pretty(&v).map_err(|e| Failure::Runtime(e.into()))? + "\n"),
+        );
+    }
+    let mut t = format!(
+        "{}\n",
+        if case.title.is_empty() {
+            a.case.display().to_string()
+        } else {
+            case.title.clone()
+        }
+    );
+    t += "\nZones (radius from the well axis):\n";
+    for (n, r1, r2, med) in &zones {
+        let med = med.expect("medium");
+        t += &format!(
+            "  {n:<10} {:>8.4} → {:<10.4} m  thickness {:>8.4} m  K {:.3e} m/s  D {:.3e} m²/s{}\n",
+            r1,
+            r2,
+            r2 - r1,
+            med.conductivity_m_s,
+            med.diffusivity_m2_s(),
+            period
+                .map(|p| format!("  penetration depth {:.3} m", penetration_depth(&med, p)))
+                .unwrap_or_default()
+        );
+    }
+    if let Some(c) = &m.cake {
+        t += &format!(
+            "  cake       {:.3} mm at r_b = {rb:.4} m, K {:.3e} m/s, coverage {:.2}\n",
+            c.thickness_m * 1e3,
+            c.conductivity_m_s,
+            c.coverage
+        );
+    }
+    t += "\nResistance to steady radial flow (Darcy part) and share of the total:\n";
+    for z in Zone::ALL {
+        let r = res[z as usize];
+        if r > 0.0 {
+            t += &format!(
+                "  {:<10} {:>12.4e} s/m²  {:>6.2} %\n",
+                z.name(),
+                r,
+                100.0 * r / total
+            );
+        }
+    }
+    let controls = Zone::ALL
+        .iter()
+        .max_by(|x, y| res[**x as usize].total_cmp(&res[**y as usize]))
+        .map(|z| z.name())
+        .unwrap_or("");
+    t += &format!("  → the {controls} controls the flow\n");
+    t += &format!("\nSkin (Hawkins, referred to the formation): pack {skin_pack:.3}, cake {:.3}, invaded {skin_inv:.3}, total {skin_total:.3}\n", skin_total - skin_pack - skin_inv);
+    t += &format!(
+        "\nGrid: {} cells, outer radius {} m ({}); time step: {step}\n",
+        g.cells(),
+        G(g.outer_radius_m(), 4),
+        if m.formation.outer_radius_m.is_some() {
+            "given"
+        } else {
+            "automatic"
+        }
+    );
+    if !widths.is_empty() {
+        t += "\nAnnulus width (simulated, cake erosion off, ≤ 5 cycles):\n  width (mm)   peak face flux (m/s)   cake work/cycle (J)   pack work/cycle (J)\n";
+        for (w, q, wc, wp) in &widths {
+            t += &format!(
+                "  {:>10.1}   {:>20.4e}   {:>19.4e}   {:>19.4e}\n",
+                w * 1e3,
+                q,
+                wc,
+                wp
+            );
+        }
+    }
+    if !case.notes.is_empty() {
+        t += "\nNotes:\n";
+        for n in &case.notes {
+            t += &format!("  - {n}\n");
+        }
+    }
+    if !case.warnings.is_empty() {
+        t += "\nWarnings:\n";
+        for w in &case.warnings {
+            t += &format!("  - {w}\n");
+        }
+    }
+    t += &format!("\nCaution: {CAUTION}\n");
+    print_out(&t)
+}

@@ -1,0 +1,90 @@
+//! The subcommands. Each takes its parsed arguments and returns `Result<(), Failure>`;
+//! `main` prints the failure and maps it to the exit code.
+
+mod check;
+mod new;
+mod run;
+mod verify;
+
+use crate::args::Command;
+use std::fmt;
+
+/// Why a command failed, which decides the exit code.
+#[derive(Debug)]
+pub enum Failure {
+    /// Bad input: usage or case file (exit 2).
+    Input(anyhow::Error),
+    /// Something went wrong while running (exit 1).
+    Runtime(anyhow::Error),
+    /// stdout was closed by the reader (`| head`); not an error.
+    BrokenPipe,
+}
+
+impl Failure {
+    /// Process exit code.
+    pub fn exit_code(&self) -> u8 {
+        match self {
+            Failure::Input(_) => 2,
+            Failure::Runtime(_) => 1,
+            Failure::BrokenPipe => 0,
+        }
+    }
+}
+
+impl fmt::Display for Failure {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
+            Failure::Input(e) | Failure::Runtime(e) => write!(f, "{e:#}"),
+            Failure::BrokenPipe => write!(f, "broken pipe"),
+        }
+    }
+}
+
+/// Writes to stdout, treating a closed pipe as a quiet stop.
+pub(crate) fn print_out(text: &str) -> Result<(), Failure> {
+    use std::io::Write;
+    let mut out = std::io::stdout().lock();
+    match out.write_all(text.as_bytes()).and_then(|_| out.flush()) {
+        Ok(()) => Ok(()),
+        Err(e) if e.kind() == std::io::ErrorKind::BrokenPipe => Err(Failure::BrokenPipe),
+        Err(e) => Err(Failure::Runtime(e.into())),
+    }
+}
+
+/// Runs one subcommand.
+pub fn dispatch(command: Command) -> Result<(), Failure> {
+    match command {
+        Command::Run(a) => run::run(&a),
+        Command::Check(a) => check::check(&a),
+        Command::Report(a) => {
+            if let Some(missing) = a.inputs.iter().find(|p| !p.is_file()) {
+                return Err(Failure::Input(anyhow::anyhow!(
+                    "cannot read result file {}",
+                    missing.display()
+                )));
+            }
+            crate::report::write_report(&a.inputs, &a.output)
+                .map_err(|e| Failure::Runtime(anyhow::anyhow!("{e:#}")))?;
+            eprintln!("report written to {}", a.output.display());
+            Ok(())
+        }
+        Command::Verify(a) => verify::verify(&a),
+        Command::New(a) => new::new(&a),
+        Command::Schema => {
+            let text = serde_json::to_string_pretty(&crate::case::schema())
+                .map_err(|e| Failure::Runtime(e.into()))?;
+            print_out(&(text + "\n"))
+        }
+        Command::Completions { shell } => {
+            use clap::CommandFactory;
+            let mut buf = Vec::new();
+            clap_complete::generate(
+                shell,
+                &mut crate::args::Cli::command(),
+                "boreflux",
+                &mut buf,
+            );
+            print_out(&String::from_utf8_lossy(&buf))
+        }
+    }
+}

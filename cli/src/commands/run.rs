@@ -1,0 +1,205 @@
+//! `boreflux run`: load, simulate with progress, stream results to HDF5 (and CSV), then
+//! write the summary and print it. Nothing partial is left under the output name.
+
+use super::{print_out, Failure};
+use crate::args::RunArgs;
+use crate::case::{load_case, LoadedCase};
+use crate::output::sink::ResultSink;
+use crate::summary::{headline, table, Headline, Tracker};
+use anyhow::{anyhow, Context};
+use boreflux_solver::grid::Grid;
+use boreflux_solver::safety::CAUTION;
+use boreflux_solver::system::Discretization;
+use boreflux_solver::{run as simulate, CycleView, Reporting, SolverError, StepObserver, StepView};
+use indicatif::{ProgressBar, ProgressDrawTarget, ProgressStyle};
+
+/// Steps between progress-bar updates.
+const PROGRESS_EVERY: u64 = 256;
+
+/// Everything the run observes, in one observer.
+struct Observers<'a> {
+    sink: &'a mut ResultSink,
+    tracker: &'a mut Tracker,
+    bar: &'a ProgressBar,
+    duration_s: f64,
+}
+
+impl StepObserver for Observers<'_> {
+    fn on_step(&mut self, s: &StepView<'_>) -> bool {
+        self.tracker.on_step(s);
+        if s.step % PROGRESS_EVERY == 0 {
+            self.bar
+                .set_position((1000.0 * s.time_s / self.duration_s) as u64);
+        }
+        self.sink.on_step(s)
+    }
+
+    fn on_cycle(&mut self, c: &CycleView) {
+        self.bar.set_message(format!("cycle {}", c.index + 1));
+        self.sink.on_cycle(c);
+    }
+}
+
+fn progress_bar(quiet: bool) -> ProgressBar {
+    let bar = ProgressBar::new(1000);
+    if quiet {
+        bar.set_draw_target(ProgressDrawTarget::hidden());
+    }
+    bar.set_style(
+        ProgressStyle::with_template("{spinner} simulated {percent:>3}% [{bar:30}] {msg} elapsed {elapsed_precise}, eta {eta}")
+            .expect("valid template")
+            .progress_chars("=> "),
+    );
+    bar
+}
+
+/// Writes the grid, the root attributes and the summary attributes.
+fn write_metadata(
+    sink: &mut ResultSink,
+    case: &LoadedCase,
+    args: &RunArgs,
+    grid: &Grid,
+) -> Result<(), crate::output::OutputError> {
+    let w = sink.writer();
+    w.set_root_attr_str("tool_version", env!("CARGO_PKG_VERSION"))?;
+    w.set_root_attr_str(
+        "created_utc",
+        &humantime::format_rfc3339_seconds(std::time::SystemTime::now()).to_string(),
+    )?;
+    w.set_root_attr_str("title", &case.title)?;
+    w.set_root_attr_str("description", &case.description)?;
+    w.set_root_attr_str("case_json", &case.resolved.to_string())?;
+    w.set_root_attr_str("case_file", &args.case.display().to_string())?;
+    w.write_vector(
+        "/grid/r_center",
+        &grid.r_center,
+        "m",
+        "node radii (geometric mean of the faces)",
+    )?;
+    w.write_vector(
+        "/grid/r_face",
+        &grid.r_face,
+        "m",
+        "face radii, screen to outer radius",
+    )?;
+    let zones: Vec<f64> = grid.zone.iter().map(|&z| z as u8 as f64).collect();
+    w.write_vector(
+        "/grid/zone",
+        &zones,
+        "1",
+        "zone of each cell: 1 pack, 3 invaded, 4 formation",
+    )?;
+    Ok(())
+}
+
+fn write_summary(sink: &mut ResultSink, h: &Headline) -> Result<(), crate::output::OutputError> {
+    let w = sink.writer();
+    w.group("/summary")?;
+    let json = serde_json::to_value(h).unwrap_or_default();
+    if let Some(map) = json.as_object() {
+        for (k, v) in map {
+            match (k.as_str(), v) {
+                ("work_j", serde_json::Value::Array(a)) => {
+                    for (z, x) in h.zones.iter().zip(a) {
+                        if let Some(x) = x.as_f64() {
+                            w.set_attr_f64("/summary", &format!("work_{z}_j"), x)?;
+                        }
+                    }
+                }
+                (_, serde_json::Value::Number(n)) => {
+                    w.set_attr_f64("/summary", k, n.as_f64().unwrap_or(f64::NAN))?
+                }
+                _ => {}
+            }
+        }
+    }
+    w.set_attr_str("/summary", "warnings", &h.warnings.join("\n"))?;
+    w.set_attr_str("/summary", "cautions", CAUTION)?;
+    w.set_attr_str("/summary", "efficiency_definition", h.efficiency_definition)?;
+    Ok(())
+}
+
+/// Runs the command.
+pub fn run(a: &RunArgs) -> Result<(), Failure> {
+    let case =
+        load_case(&a.case).map_err(|e| Failure::Input(anyhow!("{}: {e}", a.case.display())))?;
+    let model = &case.model;
+    let grid = Discretization::new(model, None).grid;
+    let snapshot_every = if a.snapshot_every > 0 {
+        a.snapshot_every
+    } else {
+        estimate_steps(model) / 200 + 1
+    };
+    let csv_path = a.csv.then(|| a.output.with_extension("csv"));
+    let mut sink = ResultSink::create(&a.output, csv_path.as_deref(), grid.cells(), snapshot_every)
+        .map_err(|e| Failure::Input(anyhow!("cannot write output {}: {e}", a.output.display())))?;
+    write_metadata(&mut sink, &case, a, &grid).map_err(|e| Failure::Runtime(e.into()))?;
+    let mut tracker = Tracker::new(model);
+    let bar = progress_bar(a.quiet);
+    let started = std::time::Instant::now();
+    let result = {
+        let mut obs = Observers {
+            sink: &mut sink,
+            tracker: &mut tracker,
+            bar: &bar,
+            duration_s: model.duration_s,
+        };
+        simulate(
+            model,
+            &mut obs,
+            Reporting {
+                every: case.output_every,
+            },
+        )
+    };
+    bar.finish_and_clear();
+    if let Some(e) = sink.error.take() {
+        return Err(Failure::Runtime(anyhow!(
+            "writing {}: {e}",
+            a.output.display()
+        )));
+    }
+    let summary = result.map_err(|e| match e {
+        SolverError::InvalidInput { .. } => Failure::Input(anyhow!("{}: {e}", a.case.display())),
+        e => Failure::Runtime(anyhow!("simulation failed: {e}")),
+    })?;
+    let h = headline(&case, &summary, &tracker);
+    write_summary(&mut sink, &h).map_err(|e| Failure::Runtime(e.into()))?;
+    sink.finish()
+        .with_context(|| format!("finishing {}", a.output.display()))
+        .map_err(Failure::Runtime)?;
+    let elapsed = started.elapsed().as_secs_f64();
+    if a.json {
+        let text = serde_json::to_string_pretty(&h).map_err(|e| Failure::Runtime(e.into()))?;
+        print_out(&(text + "\n"))
+    } else {
+        let head = format!(
+            "{}\n  results: {}{} ({:.2} s wall time)\n\n",
+            if case.title.is_empty() {
+                "boreflux run"
+            } else {
+                &case.title
+            },
+            a.output.display(),
+            csv_path
+                .map(|p| format!(", {}", p.display()))
+                .unwrap_or_default(),
+            elapsed
+        );
+        print_out(&(head + &table(&h) + "\nCaution: " + CAUTION + "\n"))
+    }
+}
+
+/// Rough number of steps, for the snapshot spacing.
+fn estimate_steps(model: &boreflux_solver::Model) -> u64 {
+    match (model.numerics.time, model.drive.period_s()) {
+        (boreflux_solver::model::TimeSpec::Fixed(dt), _) => (model.duration_s / dt) as u64,
+        (boreflux_solver::model::TimeSpec::StepsPerCycle(n), Some(p)) => {
+            (model.duration_s / p * n as f64) as u64
+        }
+        (_, Some(p)) => {
+            (model.duration_s / p * boreflux_solver::run::DEFAULT_STEPS_PER_CYCLE as f64) as u64
+        }
+        _ => 400,
+    }
+}

@@ -1,0 +1,10 @@
+//! boreflux command-line library: case files, output writers, reports and commands. The
+//! binary (`main.rs`) only parses arguments and dispatches here.
+
+pub mod args;
+pub mod case;
+pub mod commands;
+pub mod output;
+pub mod report;
+pub mod summary;
+pub mod units;

@@ -1,0 +1,718 @@
+//! Generic HDF5 writer: groups, attributes, fixed datasets and growable series.
+//!
+//! Knows nothing of the solver; the run and sweep code decide the layout (DESIGN.md,
+//! "HDF5 layout"). Every dataset gets `units` and `description` string attributes.
+//! Series that grow while a run proceeds buffer one chunk in memory and write it out when
+//! full, so memory stays flat however long the run is:
+//!
+//! ```text
+//! let mut w = H5Writer::create("out/run.h5")?;
+//! w.set_root_attr_str("tool_version", "0.1.0")?;
+//! let mut t = w.growable_series("series/time", "s", "simulated time", 4096)?;
+//! t.append(&[0.0, 0.1])?;
+//! w.finish()?;            // flush, close, rename .run.h5.tmp-<pid> → run.h5
+//! ```
+//!
+//! HDF5 holds one global lock for every call: compute in parallel, write from one thread.
+//! Paths are `/`-separated (`"series/power/cake"`; a leading `/` is optional); missing
+//! parent groups are created.
+
+use std::path::{Path, PathBuf};
+use std::str::FromStr;
+use std::sync::{Arc, Mutex, MutexGuard};
+
+use hdf5::file::FileCloseDegree;
+use hdf5::types::VarLenUnicode;
+use hdf5::{Dataset, File, Group, H5Type, Location, LocationType};
+use ndarray::{s, ArrayView2};
+
+use super::{OutputError, TempTarget};
+
+/// Upper bound on the bytes buffered for one growable matrix (one chunk).
+const MATRIX_CHUNK_BYTES: usize = 256 * 1024;
+
+type Result<T, E = OutputError> = std::result::Result<T, E>;
+
+/// An HDF5 file being written; appears at its final path only after [`H5Writer::finish`].
+pub struct H5Writer {
+    file: Option<File>,
+    target: TempTarget,
+    growing: Vec<Arc<Mutex<dyn Pending>>>,
+    deflate: Option<u8>,
+}
+
+/// A 1-D dataset that grows at the end; see [`H5Writer::growable_series`].
+pub struct SeriesHandle<T: H5Type + Copy = f64> {
+    inner: Arc<Mutex<Growable<T>>>,
+}
+
+/// A 2-D dataset with a fixed number of columns that grows by rows; see
+/// [`H5Writer::growable_matrix`].
+pub struct MatrixHandle {
+    inner: Arc<Mutex<Growable<f64>>>,
+}
+
+impl H5Writer {
+    /// Starts a new file that will be renamed to `final_path` by [`finish`](Self::finish).
+    /// Writes go to `.<name>.tmp-<pid>` in the same folder, which must exist.
+    pub fn create(final_path: impl AsRef<Path>) -> Result<Self> {
+        let target = TempTarget::new(final_path.as_ref())?;
+        // Strong close: closing the file also closes any object handle still open, so the
+        // file is complete on disk when it is renamed.
+        let file = File::with_options()
+            .with_fapl(|fapl| fapl.fclose_degree(FileCloseDegree::Strong))
+            .create(target.tmp())
+            .map_err(|source| OutputError::Hdf5File {
+                path: target.tmp().to_path_buf(),
+                source,
+            })?;
+        Ok(Self {
+            file: Some(file),
+            target,
+            growing: Vec::new(),
+            deflate: None,
+        })
+    }
+
+    /// The path the file will have once finished.
+    pub fn final_path(&self) -> &Path {
+        self.target.dest()
+    }
+
+    /// Compresses growable series and matrices created from now on with shuffle + deflate
+    /// at `level` (0–9), or not at all with `None`. Without a deflate filter in the HDF5
+    /// library, datasets are written uncompressed.
+    pub fn set_deflate(&mut self, level: Option<u8>) {
+        self.deflate = level
+            .map(|l| l.min(9))
+            .filter(|_| hdf5::filters::deflate_available());
+    }
+
+    /// Creates the group at `path` and any missing parents; an existing group is reused.
+    pub fn group(&self, path: &str) -> Result<Group> {
+        let parts = components(path);
+        self.group_of(&parts, path)
+    }
+
+    /// Sets a string attribute on the root group, replacing an earlier value.
+    pub fn set_root_attr_str(&self, name: &str, value: &str) -> Result<()> {
+        self.set_attr_str("/", name, value)
+    }
+
+    /// Sets a string attribute (variable-length UTF-8) on the group or dataset at `path`
+    /// (`"/"` for the root), replacing an earlier value.
+    pub fn set_attr_str(&self, path: &str, name: &str, value: &str) -> Result<()> {
+        let v = unicode(path, value)?;
+        self.with_object(path, |loc| {
+            remove_attr(loc, name)?;
+            loc.new_attr::<VarLenUnicode>()
+                .create(name)?
+                .write_scalar(&v)
+        })
+    }
+
+    /// Sets an `f64` attribute on the group or dataset at `path`, replacing an earlier value.
+    pub fn set_attr_f64(&self, path: &str, name: &str, value: f64) -> Result<()> {
+        self.with_object(path, |loc| {
+            remove_attr(loc, name)?;
+            loc.new_attr::<f64>().create(name)?.write_scalar(&value)
+        })
+    }
+
+    /// Writes a complete 1-D dataset (contiguous, not growable).
+    pub fn write_vector<T: H5Type>(
+        &self,
+        path: &str,
+        values: &[T],
+        units: &str,
+        description: &str,
+    ) -> Result<()> {
+        let (group, name) = self.parent_of(path)?;
+        let ds = group
+            .new_dataset_builder()
+            .with_data(values)
+            .create(name)
+            .map_err(hdf5_err(path))?;
+        describe(&ds, path, units, description)
+    }
+
+    /// Writes a scalar variable-length UTF-8 string dataset, e.g. the resolved case as JSON.
+    /// Its `units` attribute is empty.
+    pub fn write_scalar_string(&self, path: &str, value: &str, description: &str) -> Result<()> {
+        let v = unicode(path, value)?;
+        let (group, name) = self.parent_of(path)?;
+        let ds = group
+            .new_dataset::<VarLenUnicode>()
+            .shape(())
+            .create(name)
+            .and_then(|ds| ds.write_scalar(&v).map(|()| ds))
+            .map_err(hdf5_err(path))?;
+        describe(&ds, path, "", description)
+    }
+
+    /// Creates an empty 1-D `f64` dataset of unlimited length, stored in chunks of `chunk`
+    /// values, that the returned handle appends to.
+    pub fn growable_series(
+        &mut self,
+        path: &str,
+        units: &str,
+        description: &str,
+        chunk: usize,
+    ) -> Result<SeriesHandle> {
+        self.growable_series_of::<f64>(path, units, description, chunk)
+    }
+
+    /// As [`growable_series`](Self::growable_series) for any HDF5 element type (e.g. `u64`
+    /// for a cycle index).
+    pub fn growable_series_of<T: H5Type + Copy + Send + 'static>(
+        &mut self,
+        path: &str,
+        units: &str,
+        description: &str,
+        chunk: usize,
+    ) -> Result<SeriesHandle<T>> {
+        if chunk == 0 {
+            return Err(invalid(path, "chunk length must be at least 1"));
+        }
+        let (group, name) = self.parent_of(path)?;
+        let mut builder = group.new_dataset::<T>().chunk(chunk).shape(0..);
+        if let Some(level) = self.deflate {
+            builder = builder.shuffle().deflate(level);
+        }
+        let ds = builder.create(name).map_err(hdf5_err(path))?;
+        describe(&ds, path, units, description)?;
+        let inner = Arc::new(Mutex::new(Growable::new(ds, path, 1, false, chunk)));
+        self.growing.push(inner.clone());
+        Ok(SeriesHandle { inner })
+    }
+
+    /// Creates an empty `f64` dataset of shape (0, `ncols`), growable by rows (e.g. head
+    /// snapshots: time × cell). Chunks hold whole rows, about 256 KiB each.
+    pub fn growable_matrix(
+        &mut self,
+        path: &str,
+        ncols: usize,
+        units: &str,
+        description: &str,
+    ) -> Result<MatrixHandle> {
+        if ncols == 0 {
+            return Err(invalid(path, "a matrix needs at least one column"));
+        }
+        let rows = (MATRIX_CHUNK_BYTES / (8 * ncols)).max(1);
+        let (group, name) = self.parent_of(path)?;
+        let mut builder = group
+            .new_dataset::<f64>()
+            .chunk((rows, ncols))
+            .shape((0.., ncols));
+        if let Some(level) = self.deflate {
+            builder = builder.shuffle().deflate(level);
+        }
+        let ds = builder.create(name).map_err(hdf5_err(path))?;
+        describe(&ds, path, units, description)?;
+        let inner = Arc::new(Mutex::new(Growable::new(ds, path, ncols, true, rows)));
+        self.growing.push(inner.clone());
+        Ok(MatrixHandle { inner })
+    }
+
+    /// Writes out every buffered row, closes the file and renames it to its final path.
+    /// Handles still held afterwards refuse further appends.
+    pub fn finish(mut self) -> Result<PathBuf> {
+        for g in &self.growing {
+            let mut g = lock(g);
+            g.flush()?;
+            g.close();
+        }
+        let file = self
+            .file
+            .take()
+            .expect("file is present until finish or drop");
+        file.flush().map_err(hdf5_err("/"))?;
+        file.close().map_err(hdf5_err("/"))?;
+        self.target.commit()?;
+        Ok(self.target.dest().to_path_buf())
+    }
+
+    fn file(&self) -> &File {
+        self.file
+            .as_ref()
+            .expect("file is present until finish or drop")
+    }
+
+    fn group_of(&self, parts: &[&str], path: &str) -> Result<Group> {
+        let mut g: Group = (**self.file()).clone();
+        for part in parts {
+            g = if g.link_exists(part) {
+                g.group(part)
+            } else {
+                g.create_group(part)
+            }
+            .map_err(hdf5_err(path))?;
+        }
+        Ok(g)
+    }
+
+    /// The parent group of a new dataset at `path` (created if missing) and the dataset's
+    /// name in it, which must be free.
+    fn parent_of<'p>(&self, path: &'p str) -> Result<(Group, &'p str)> {
+        let parts = components(path);
+        let (name, parents) = parts
+            .split_last()
+            .ok_or_else(|| invalid(path, "empty name"))?;
+        let group = self.group_of(parents, path)?;
+        if group.link_exists(name) {
+            return Err(invalid(path, "already exists"));
+        }
+        Ok((group, name))
+    }
+
+    fn with_object(&self, path: &str, f: impl FnOnce(&Location) -> hdf5::Result<()>) -> Result<()> {
+        let file = self.file();
+        let parts = components(path);
+        if parts.is_empty() {
+            return f(file).map_err(hdf5_err("/"));
+        }
+        let p = parts.join("/");
+        match file.loc_type_by_name(&p).map_err(hdf5_err(path))? {
+            LocationType::Group => {
+                let g = file.group(&p).map_err(hdf5_err(path))?;
+                f(&g)
+            }
+            LocationType::Dataset => {
+                let d = file.dataset(&p).map_err(hdf5_err(path))?;
+                f(&d)
+            }
+            #[allow(unreachable_patterns)] // more variants with newer HDF5 features
+            _ => return Err(invalid(path, "not a group or dataset")),
+        }
+        .map_err(hdf5_err(path))
+    }
+}
+
+impl Drop for H5Writer {
+    fn drop(&mut self) {
+        // Not finished: close before the TempTarget field deletes the temporary file.
+        for g in &self.growing {
+            lock(g).close();
+        }
+        if let Some(file) = self.file.take() {
+            let _ = file.close();
+        }
+    }
+}
+
+impl<T: H5Type + Copy> SeriesHandle<T> {
+    /// Appends values; full chunks are written to the file as they fill.
+    pub fn append(&mut self, values: &[T]) -> Result<()> {
+        lock(&self.inner).push(values)
+    }
+
+    /// Number of values appended so far (written or buffered).
+    pub fn len(&self) -> usize {
+        lock(&self.inner).len_rows()
+    }
+
+    /// True when nothing was appended yet.
+    pub fn is_empty(&self) -> bool {
+        self.len() == 0
+    }
+
+    /// Writes the buffered values now (the file stays open).
+    pub fn flush(&mut self) -> Result<()> {
+        lock(&self.inner).flush()
+    }
+}
+
+impl MatrixHandle {
+    /// Appends one row of exactly `ncols` values.
+    pub fn append_row(&mut self, row: &[f64]) -> Result<()> {
+        let mut g = lock(&self.inner);
+        if row.len() != g.ncols {
+            return Err(OutputError::RowLength {
+                object: g.object.clone(),
+                expected: g.ncols,
+                got: row.len(),
+            });
+        }
+        g.push(row)
+    }
+
+    /// Number of rows appended so far (written or buffered).
+    pub fn rows(&self) -> usize {
+        lock(&self.inner).len_rows()
+    }
+
+    /// Writes the buffered rows now (the file stays open).
+    pub fn flush(&mut self) -> Result<()> {
+        lock(&self.inner).flush()
+    }
+}
+
+/// What the writer needs from every growable dataset at finish or drop.
+trait Pending: Send {
+    fn flush(&mut self) -> Result<()>;
+    fn close(&mut self);
+}
+
+/// Buffer of one chunk in front of a growable dataset.
+struct Growable<T> {
+    ds: Option<Dataset>,
+    object: String,
+    ncols: usize,
+    matrix: bool,
+    /// Preallocated to one chunk (`chunk_rows × ncols`); never grows.
+    buf: Vec<T>,
+    /// Rows already in the dataset.
+    rows: usize,
+}
+
+impl<T: H5Type + Copy> Growable<T> {
+    fn new(ds: Dataset, path: &str, ncols: usize, matrix: bool, chunk_rows: usize) -> Self {
+        Self {
+            ds: Some(ds),
+            object: absolute(path),
+            ncols,
+            matrix,
+            buf: Vec::with_capacity(chunk_rows * ncols),
+            rows: 0,
+        }
+    }
+
+    fn push(&mut self, mut values: &[T]) -> Result<()> {
+        if self.ds.is_none() {
+            return Err(OutputError::Finished {
+                object: self.object.clone(),
+            });
+        }
+        let cap = self.buf.capacity();
+        while !values.is_empty() {
+            let take = (cap - self.buf.len()).min(values.len());
+            let (head, rest) = values.split_at(take);
+            self.buf.extend_from_slice(head);
+            values = rest;
+            if self.buf.len() == cap {
+                self.flush()?;
+            }
+        }
+        Ok(())
+    }
+
+    fn len_rows(&self) -> usize {
+        self.rows + self.buf.len() / self.ncols
+    }
+
+    fn flush(&mut self) -> Result<()> {
+        if self.buf.is_empty() {
+            return Ok(());
+        }
+        let ds = self.ds.as_ref().ok_or_else(|| OutputError::Finished {
+            object: self.object.clone(),
+        })?;
+        let (start, end) = (self.rows, self.len_rows());
+        let result = if self.matrix {
+            let block = ArrayView2::from_shape((end - start, self.ncols), &self.buf)
+                .expect("buffer holds whole rows");
+            ds.resize((end, self.ncols))
+                .and_then(|()| ds.write_slice(block, s![start..end, ..]))
+        } else {
+            ds.resize(end)
+                .and_then(|()| ds.write_slice(&self.buf[..], start..end))
+        };
+        result.map_err(hdf5_err(&self.object))?;
+        self.rows = end;
+        self.buf.clear();
+        Ok(())
+    }
+}
+
+impl<T: H5Type + Copy + Send> Pending for Growable<T> {
+    fn flush(&mut self) -> Result<()> {
+        Growable::flush(self)
+    }
+
+    fn close(&mut self) {
+        self.ds = None;
+    }
+}
+
+fn lock<G: ?Sized>(m: &Mutex<G>) -> MutexGuard<'_, G> {
+    // A panic while appending leaves at worst a partly filled buffer; the file is then
+    // either finished with what was written or dropped and deleted.
+    m.lock().unwrap_or_else(|e| e.into_inner())
+}
+
+/// Sets the `units` and `description` attributes every dataset carries.
+fn describe(ds: &Dataset, path: &str, units: &str, description: &str) -> Result<()> {
+    for (name, value) in [("units", units), ("description", description)] {
+        let v = unicode(path, value)?;
+        ds.new_attr::<VarLenUnicode>()
+            .create(name)
+            .and_then(|a| a.write_scalar(&v))
+            .map_err(hdf5_err(path))?;
+    }
+    Ok(())
+}
+
+fn remove_attr(loc: &Location, name: &str) -> hdf5::Result<()> {
+    if loc.attr_names()?.iter().any(|n| n == name) {
+        loc.delete_attr(name)?;
+    }
+    Ok(())
+}
+
+fn unicode(path: &str, value: &str) -> Result<VarLenUnicode> {
+    VarLenUnicode::from_str(value)
+        .map_err(|e| invalid(path, &format!("string cannot be stored in HDF5: {e}")))
+}
+
+fn components(path: &str) -> Vec<&str> {
+    path.split('/').filter(|p| !p.is_empty()).collect()
+}
+
+fn absolute(path: &str) -> String {
+    format!("/{}", components(path).join("/"))
+}
+
+fn hdf5_err(path: &str) -> impl Fn(hdf5::Error) -> OutputError + '_ {
+    move |source| OutputError::Hdf5 {
+        object: absolute(path),
+        source,
+    }
+}
+
+fn invalid(path: &str, message: &str) -> OutputError {
+    OutputError::Invalid {
+        object: absolute(path),
+        message: message.to_owned(),
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn str_attr(loc: &Location, name: &str) -> String {
+        loc.attr(name)
+            .unwrap()
+            .read_scalar::<VarLenUnicode>()
+            .unwrap()
+            .as_str()
+            .to_owned()
+    }
+
+    fn dir_names(dir: &Path) -> Vec<String> {
+        let mut v: Vec<String> = std::fs::read_dir(dir)
+            .unwrap()
+            .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())
+            .collect();
+        v.sort();
+        v
+    }
+
+    #[test]
+    fn write_and_read_back_works() {
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("run.h5");
+        let mut w = H5Writer::create(&path).unwrap();
+        w.set_root_attr_str("tool_version", "0.1.0").unwrap();
+        w.set_root_attr_str("tool_version", "0.1.1").unwrap(); // replaced, not an error
+        w.set_attr_f64("/", "duration_s", 600.0).unwrap();
+        w.group("summary").unwrap();
+        w.set_attr_str("/summary", "warning", "débit élevé")
+            .unwrap();
+        w.write_vector("/grid/r_face", &[0.1, 0.15, 0.2], "m", "face radii")
+            .unwrap();
+        w.write_vector("grid/zone", &[0u8, 1, 1], "1", "zone index")
+            .unwrap();
+        w.write_vector::<f64>("summary/warnings_at", &[], "s", "none yet")
+            .unwrap();
+        w.set_attr_f64("grid/r_face", "scale", 2.0).unwrap();
+        w.write_scalar_string("case_json", r#"{"title":"t"}"#, "resolved case")
+            .unwrap();
+
+        let mut t = w
+            .growable_series("series/time", "s", "simulated time", 4)
+            .unwrap();
+        let mut cycle = w
+            .growable_series_of::<u64>("cycles/index", "1", "cycle", 3)
+            .unwrap();
+        let mut snap = w
+            .growable_matrix("snapshots/head", 3, "m", "head by cell")
+            .unwrap();
+        let times: Vec<f64> = (0..11).map(|i| f64::from(i) * 0.5).collect();
+        t.append(&times[..3]).unwrap();
+        t.append(&times[3..]).unwrap(); // spans two chunk boundaries
+        cycle.append(&[1, 2, 3, 4]).unwrap();
+        for i in 0..5 {
+            let x = f64::from(i);
+            snap.append_row(&[x, x + 0.25, x + 0.5]).unwrap();
+        }
+        assert_eq!((t.len(), cycle.len(), snap.rows()), (11, 4, 5));
+        drop(cycle); // a dropped handle is still flushed by finish
+        assert_eq!(w.finish().unwrap(), path);
+        assert_eq!(dir_names(dir.path()), ["run.h5"]);
+
+        let f = File::open(&path).unwrap();
+        assert_eq!(str_attr(&f, "tool_version"), "0.1.1");
+        assert_eq!(
+            f.attr("duration_s").unwrap().read_scalar::<f64>().unwrap(),
+            600.0
+        );
+        assert_eq!(
+            str_attr(&f.group("summary").unwrap(), "warning"),
+            "débit élevé"
+        );
+
+        let r = f.dataset("grid/r_face").unwrap();
+        assert_eq!(r.read_raw::<f64>().unwrap(), [0.1, 0.15, 0.2]);
+        assert_eq!(str_attr(&r, "units"), "m");
+        assert_eq!(str_attr(&r, "description"), "face radii");
+        assert_eq!(r.attr("scale").unwrap().read_scalar::<f64>().unwrap(), 2.0);
+        assert_eq!(
+            f.dataset("grid/zone").unwrap().read_raw::<u8>().unwrap(),
+            [0, 1, 1]
+        );
+        assert_eq!(f.dataset("summary/warnings_at").unwrap().shape(), [0]);
+
+        let j = f.dataset("case_json").unwrap();
+        assert_eq!(j.shape(), Vec::<usize>::new());
+        assert_eq!(
+            j.read_scalar::<VarLenUnicode>().unwrap().as_str(),
+            r#"{"title":"t"}"#
+        );
+        assert_eq!(str_attr(&j, "units"), "");
+
+        let ts = f.dataset("series/time").unwrap();
+        assert_eq!(ts.shape(), [11]);
+        assert_eq!(ts.chunk(), Some(vec![4]));
+        assert!(ts.is_resizable());
+        assert_eq!(ts.read_raw::<f64>().unwrap(), times);
+        assert_eq!(str_attr(&ts, "units"), "s");
+        assert_eq!(str_attr(&ts, "description"), "simulated time");
+
+        let c = f.dataset("cycles/index").unwrap();
+        assert_eq!(c.read_raw::<u64>().unwrap(), [1, 2, 3, 4]);
+
+        let h = f.dataset("snapshots/head").unwrap();
+        assert_eq!(h.shape(), [5, 3]);
+        let m = h.read_2d::<f64>().unwrap();
+        assert_eq!(m[[4, 2]], 4.5);
+        assert_eq!(m[[2, 1]], 2.25);
+        assert_eq!(str_attr(&h, "units"), "m");
+    }
+
+    #[test]
+    fn deflate_is_applied_and_reads_back() {
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("z.h5");
+        let mut w = H5Writer::create(&path).unwrap();
+        w.set_deflate(Some(4));
+        let mut s = w.growable_series("s", "m", "ramp", 256).unwrap();
+        let values: Vec<f64> = (0..1000).map(f64::from).collect();
+        s.append(&values).unwrap();
+        w.finish().unwrap();
+        let ds = File::open(&path).unwrap().dataset("s").unwrap();
+        assert_eq!(ds.read_raw::<f64>().unwrap(), values);
+        if hdf5::filters::deflate_available() {
+            assert!(
+                ds.filters().contains(&hdf5::filters::Filter::Deflate(4)),
+                "{:?}",
+                ds.filters()
+            );
+        }
+    }
+
+    #[test]
+    fn buffer_stays_one_chunk_long() {
+        let dir = tempfile::tempdir().unwrap();
+        let mut w = H5Writer::create(dir.path().join("b.h5")).unwrap();
+        let mut s = w.growable_series("s", "m", "", 64).unwrap();
+        let block = [1.0; 1000];
+        for _ in 0..50 {
+            s.append(&block).unwrap();
+        }
+        let g = lock(&s.inner);
+        assert_eq!(g.buf.capacity(), 64);
+        assert_eq!(g.rows, 50_000 / 64 * 64);
+        drop(g);
+        w.finish().unwrap();
+    }
+
+    #[test]
+    fn drop_without_finish_leaves_nothing() {
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("run.h5");
+        let mut w = H5Writer::create(&path).unwrap();
+        let mut s = w.growable_series("series/time", "s", "t", 8).unwrap();
+        s.append(&[1.0; 20]).unwrap();
+        assert_eq!(
+            dir_names(dir.path()).len(),
+            1,
+            "temporary file exists while writing"
+        );
+        drop(w);
+        assert!(dir_names(dir.path()).is_empty());
+        // The handle outlives the writer and refuses to append.
+        assert!(matches!(
+            s.append(&[1.0; 20]),
+            Err(OutputError::Finished { .. })
+        ));
+    }
+
+    #[test]
+    fn finish_replaces_existing_file() {
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("run.h5");
+        std::fs::write(&path, "old").unwrap();
+        let w = H5Writer::create(&path).unwrap();
+        w.write_vector("x", &[1.0], "m", "x").unwrap();
+        w.finish().unwrap();
+        assert_eq!(
+            File::open(&path)
+                .unwrap()
+                .dataset("x")
+                .unwrap()
+                .read_raw::<f64>()
+                .unwrap(),
+            [1.0]
+        );
+    }
+
+    #[test]
+    fn writer_captures_errors() {
+        let dir = tempfile::tempdir().unwrap();
+        assert!(matches!(
+            H5Writer::create(dir.path().join("missing/run.h5")),
+            Err(OutputError::Hdf5File { .. })
+        ));
+        let mut w = H5Writer::create(dir.path().join("e.h5")).unwrap();
+        let mut m = w.growable_matrix("m", 3, "m", "").unwrap();
+        assert_eq!(
+            m.append_row(&[1.0, 2.0]).unwrap_err().to_string(),
+            "/m: a row needs 3 values, got 2"
+        );
+        assert_eq!(
+            w.growable_series("s", "", "", 0).err().unwrap().to_string(),
+            "/s: chunk length must be at least 1"
+        );
+        assert!(matches!(
+            w.growable_matrix("m0", 0, "", ""),
+            Err(OutputError::Invalid { .. })
+        ));
+        assert!(matches!(
+            w.write_vector("/", &[1.0], "", ""),
+            Err(OutputError::Invalid { .. })
+        ));
+        assert!(matches!(
+            w.set_attr_str("/", "a", "nul\0byte"),
+            Err(OutputError::Invalid { .. })
+        ));
+        w.write_vector("v", &[1.0], "m", "").unwrap();
+        let e = w.write_vector("v", &[1.0], "m", "").unwrap_err();
+        assert_eq!(e.to_string(), "/v: already exists");
+        let e = w.growable_series("v", "m", "", 8).err().unwrap();
+        assert_eq!(e.to_string(), "/v: already exists");
+        // An attribute on a missing object is an HDF5 error naming the path.
+        let e = w.set_attr_f64("nowhere", "a", 1.0).unwrap_err();
+        assert!(e.to_string().starts_with("HDF5 object /nowhere: "), "{e}");
+    }
+}

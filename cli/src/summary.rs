@@ -1,0 +1,407 @@
+//! Headline figures of a run: what the summary table, `--json`, the HDF5 `/summary` group
+//! and the report show. Derived from the solver's run summary, the case and a tracker of
+//! per-step extremes; pure computation, no I/O.
+
+use crate::case::LoadedCase;
+use boreflux_solver::grid::{Zone, ZONE_COUNT};
+use boreflux_solver::model::Model;
+use boreflux_solver::safety::{self, ENTRANCE_VELOCITY_RULE_M_S};
+use boreflux_solver::skin::{efficiency, thiem_specific_capacity};
+use boreflux_solver::water::GRAVITY_M_S2;
+use boreflux_solver::{RunSummary, StepObserver, StepView};
+use serde::Serialize;
+
+/// Grain Reynolds number above which Darcy's law is doubtful (PHYSICS.md §4.4, Bear 1972;
+/// from memory — verify).
+pub const REYNOLDS_SOFT_LIMIT: f64 = 1.0;
+/// Grain Reynolds number above which the warning is strong.
+pub const REYNOLDS_HARD_LIMIT: f64 = 10.0;
+
+/// Definition of the efficiency reported (PHYSICS.md §2.4).
+pub const EFFICIENCY_DEFINITION: &str = "steady-state efficiency E = ln(R/r_s) / (ln(R/r_s) + s), \
+ideal formation drawdown over actual drawdown at the screen, screen losses excluded; R is the \
+model's outer radius (Thiem with Hawkins skin)";
+
+/// A number shown with N significant digits: fixed notation between 1e-3 and 1e5,
+/// scientific outside.
+pub struct G(pub f64, pub usize);
+
+impl std::fmt::Display for G {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        let (x, n) = (self.0, self.1.max(1));
+        if x == 0.0 || !x.is_finite() {
+            return write!(f, "{x}");
+        }
+        let mag = x.abs().log10().floor() as i32;
+        if (-3..5).contains(&mag) {
+            let decimals = (n as i32 - 1 - mag).max(0) as usize;
+            write!(f, "{x:.decimals$}")
+        } else {
+            write!(f, "{x:.prec$e}", prec = n - 1)
+        }
+    }
+}
+
+/// Per-step extremes the solver summary does not keep.
+#[derive(Debug, Clone, Default)]
+pub struct Tracker {
+    cake0: f64,
+    /// First time the cake was down to half its thickness, s.
+    pub half_cake_s: Option<f64>,
+    /// First time the cake was down to a tenth of its thickness, s.
+    pub tenth_cake_s: Option<f64>,
+    /// Largest |face gradient| on the formation side.
+    pub peak_face_gradient: f64,
+    /// Largest direction-weighted shear (what the erosion law compares with τ_c), Pa.
+    pub peak_weighted_shear_pa: f64,
+    weights: Option<(f64, f64)>,
+}
+
+impl Tracker {
+    /// A tracker for the case's cake.
+    pub fn new(model: &Model) -> Self {
+        Tracker {
+            cake0: model.cake.map_or(0.0, |c| c.thickness_m),
+            weights: model
+                .cake
+                .and_then(|c| c.erosion)
+                .map(|e| (e.inward_weight, e.outward_weight)),
+            ..Default::default()
+        }
+    }
+}
+
+impl StepObserver for Tracker {
+    fn on_step(&mut self, s: &StepView<'_>) -> bool {
+        if self.cake0 > 0.0 {
+            if self.half_cake_s.is_none() && s.cake_thickness_m <= 0.5 * self.cake0 {
+                self.half_cake_s = Some(s.time_s);
+            }
+            if self.tenth_cake_s.is_none() && s.cake_thickness_m <= 0.1 * self.cake0 {
+                self.tenth_cake_s = Some(s.time_s);
+            }
+        }
+        self.peak_face_gradient = self.peak_face_gradient.max(s.face_gradient.abs());
+        if let Some((w_in, w_out)) = self.weights {
+            let w = if s.face_flux_m_s < 0.0 { w_in } else { w_out };
+            self.peak_weighted_shear_pa = self.peak_weighted_shear_pa.max(w * s.shear_proxy_pa);
+        }
+        true
+    }
+}
+
+/// Headline figures of one run (SI units, named in the field).
+#[derive(Debug, Clone, Serialize)]
+pub struct Headline {
+    /// Case title.
+    pub title: String,
+    /// Steps taken.
+    pub steps: u64,
+    /// Complete cycles.
+    pub cycles: u64,
+    /// Grid cells.
+    pub cells: usize,
+    /// Outer radius, m.
+    pub outer_radius_m: f64,
+    /// End time, s.
+    pub end_time_s: f64,
+    /// Largest outward face flux, m/s.
+    pub peak_outward_flux_m_s: f64,
+    /// Largest inward face flux, m/s.
+    pub peak_inward_flux_m_s: f64,
+    /// Largest outward pore velocity at the wall, m/s.
+    pub peak_outward_pore_velocity_m_s: f64,
+    /// Largest inward pore velocity at the wall, m/s.
+    pub peak_inward_pore_velocity_m_s: f64,
+    /// RMS face flux, m/s.
+    pub rms_face_flux_m_s: f64,
+    /// Largest shear proxy at the wall, Pa.
+    pub peak_shear_pa: f64,
+    /// Work dissipated per zone, J.
+    pub work_j: [f64; ZONE_COUNT],
+    /// Zone names in the order of `work_j`.
+    pub zones: [&'static str; ZONE_COUNT],
+    /// Cake thickness at start and end, m.
+    pub cake_thickness_start_m: f64,
+    /// Cake thickness at the end, m.
+    pub cake_thickness_end_m: f64,
+    /// Time until half the cake was gone, s.
+    pub time_to_half_cake_s: Option<f64>,
+    /// Time until 90 % of the cake was gone, s.
+    pub time_to_90pct_cake_s: Option<f64>,
+    /// Skin at the start.
+    pub skin_start: f64,
+    /// Skin at the end.
+    pub skin_end: f64,
+    /// Efficiency at the start (see `efficiency_definition`).
+    pub efficiency_start: f64,
+    /// Efficiency at the end.
+    pub efficiency_end: f64,
+    /// Predicted specific capacity at the start, m²/s.
+    pub specific_capacity_start_m2_s: f64,
+    /// Predicted specific capacity at the end, m²/s.
+    pub specific_capacity_end_m2_s: f64,
+    /// Definition of the efficiency.
+    pub efficiency_definition: &'static str,
+    /// Largest slot velocity, m/s.
+    pub peak_slot_velocity_m_s: f64,
+    /// Largest grain Reynolds number at the wall (pack side, pack d50), when d50 is known.
+    pub peak_grain_reynolds: Option<f64>,
+    /// Largest gradient on the formation side of the wall over Terzaghi's critical gradient.
+    pub piping_ratio: Option<f64>,
+    /// Largest differential pressure pushing the screen inward (collapse direction), Pa.
+    pub peak_collapse_pressure_pa: f64,
+    /// Largest differential pressure pushing the screen outward, Pa.
+    pub peak_burst_pressure_pa: f64,
+    /// Rated or computed collapse pressure of the screen or casing, Pa.
+    pub collapse_rating_pa: Option<f64>,
+    /// Collapse rating / (safety factor × peak collapse pressure); below 1 is a warning.
+    pub collapse_margin: Option<f64>,
+    /// Largest per-step volume residual.
+    pub max_mass_residual: f64,
+    /// Energy identity over the run.
+    pub energy_closure: f64,
+    /// Most Newton iterations in a step.
+    pub max_newton_iterations: usize,
+    /// Warnings.
+    pub warnings: Vec<String>,
+}
+
+/// Computes the headline figures and the warnings.
+pub fn headline(case: &LoadedCase, s: &RunSummary, t: &Tracker) -> Headline {
+    let m = &case.model;
+    let rho_g = m.fluid.density_kg_m3 * GRAVITY_M_S2;
+    let rs = m.well.screen_radius_m;
+    let b = m.well.screen_length_m;
+    let r_out = s.outer_radius_m;
+    let transmissivity = m.formation.medium.conductivity_m_s * b;
+    let n_pack = m.pack.medium.porosity;
+    let mut warnings = case.warnings.clone();
+    warnings.extend(s.warnings.iter().cloned());
+    let slot = s.peak_screen_flow_m3_s / (2.0 * std::f64::consts::PI * rs * b * m.well.open_area);
+    if slot > ENTRANCE_VELOCITY_RULE_M_S {
+        warnings.push(format!(
+            "peak slot velocity {slot:.3} m/s exceeds the common 0.03 m/s (0.1 ft/s) rule of thumb; a rule of thumb, not a limit"
+        ));
+    }
+    let peak_q = s.peak_outward_flux_m_s.max(s.peak_inward_flux_m_s);
+    let reynolds = m
+        .pack
+        .medium
+        .grain_diameter_m
+        .map(|d| m.fluid.density_kg_m3 * peak_q * d / m.fluid.viscosity_pa_s);
+    if let Some(re) = reynolds {
+        if re > REYNOLDS_HARD_LIMIT {
+            warnings.push(format!("grain Reynolds number at the wall reaches {re:.1} (> 10): flow is well outside the Darcy range; non-Darcy losses dominate"));
+        } else if re > REYNOLDS_SOFT_LIMIT {
+            warnings.push(format!("grain Reynolds number at the wall reaches {re:.2} (> 1): Darcy's law is doubtful there"));
+        }
+    }
+    let outer = m.invaded.map_or(m.formation.medium, |z| z.medium);
+    let piping = (t.peak_face_gradient > 0.0).then(|| {
+        t.peak_face_gradient
+            / safety::terzaghi_critical_gradient(
+                case.safety.formation_specific_gravity,
+                outer.porosity,
+            )
+    });
+    if let Some(p) = piping.filter(|&p| p > 1.0) {
+        warnings.push(format!("gradient at the borehole wall reaches {p:.2} × Terzaghi's critical gradient: grains there may be mobilised (an indicator for horizontal flow, not a heave criterion)"));
+    }
+    let collapse_pa = s.peak_collapse_head_m * rho_g;
+    let sf = case.safety.safety_factor;
+    let rating = case.safety.collapse_rating_pa.or_else(|| {
+        let dr = case.safety.dimension_ratio?;
+        let pvc = case.safety.material.as_deref() == Some("pvc");
+        let e = case
+            .safety
+            .youngs_modulus_pa
+            .or(pvc.then_some(safety::PVC_YOUNGS_MODULUS_PA))?;
+        let nu = case
+            .safety
+            .poisson_ratio
+            .or(pvc.then_some(safety::PVC_POISSON_RATIO))?;
+        Some(safety::thin_ring_collapse_pa(e, nu, dr))
+    });
+    let margin = rating
+        .filter(|_| collapse_pa > 0.0)
+        .map(|r| r / (sf * collapse_pa));
+    if let (Some(r), Some(mg)) = (rating, margin) {
+        if mg < 1.0 {
+            warnings.push(format!(
+                "COLLAPSE RISK: peak inward differential pressure {:.0} kPa exceeds the collapse rating {:.0} kPa divided by the safety factor {sf}; reduce stroke or rate, establish free flow first, and check the manufacturer's rating and local code",
+                collapse_pa / 1e3,
+                r / 1e3
+            ));
+        }
+    }
+    if let Some(c) = &m.cake {
+        if let Some(e) = &c.erosion {
+            if s.cake_thickness_m.1 >= s.cake_thickness_m.0 {
+                warnings.push(format!("the cake was not eroded: the largest direction-weighted shear {} Pa stayed below the critical shear {} Pa (shortfall {} Pa)", G(t.peak_weighted_shear_pa, 3), G(e.critical_shear_pa, 3), G(e.critical_shear_pa - t.peak_weighted_shear_pa, 3)));
+            }
+        }
+    }
+    if s.max_mass_residual > 1e-8 || s.energy_closure > 1e-6 {
+        warnings.push(format!("numerical balance is poor (volume residual {:.1e}, energy closure {:.1e}); refine the time step", s.max_mass_residual, s.energy_closure));
+    }
+    Headline {
+        title: case.title.clone(),
+        steps: s.steps,
+        cycles: s.cycles,
+        cells: s.cells,
+        outer_radius_m: r_out,
+        end_time_s: s.end_time_s,
+        peak_outward_flux_m_s: s.peak_outward_flux_m_s,
+        peak_inward_flux_m_s: s.peak_inward_flux_m_s,
+        peak_outward_pore_velocity_m_s: s.peak_outward_flux_m_s / n_pack,
+        peak_inward_pore_velocity_m_s: s.peak_inward_flux_m_s / n_pack,
+        rms_face_flux_m_s: s.rms_face_flux_m_s,
+        peak_shear_pa: s.peak_shear_pa,
+        work_j: s.work_j,
+        zones: Zone::ALL.map(Zone::name),
+        cake_thickness_start_m: s.cake_thickness_m.0,
+        cake_thickness_end_m: s.cake_thickness_m.1,
+        time_to_half_cake_s: t.half_cake_s,
+        time_to_90pct_cake_s: t.tenth_cake_s,
+        skin_start: s.skin.0,
+        skin_end: s.skin.1,
+        efficiency_start: efficiency(r_out, rs, s.skin.0),
+        efficiency_end: efficiency(r_out, rs, s.skin.1),
+        specific_capacity_start_m2_s: thiem_specific_capacity(transmissivity, r_out, rs, s.skin.0),
+        specific_capacity_end_m2_s: thiem_specific_capacity(transmissivity, r_out, rs, s.skin.1),
+        efficiency_definition: EFFICIENCY_DEFINITION,
+        peak_slot_velocity_m_s: slot,
+        peak_grain_reynolds: reynolds,
+        piping_ratio: piping,
+        peak_collapse_pressure_pa: collapse_pa,
+        peak_burst_pressure_pa: s.peak_burst_head_m * rho_g,
+        collapse_rating_pa: rating,
+        collapse_margin: margin,
+        max_mass_residual: s.max_mass_residual,
+        energy_closure: s.energy_closure,
+        max_newton_iterations: s.max_newton_iterations,
+        warnings,
+    }
+}
+
+fn fmt_opt(v: Option<f64>, unit: &str) -> String {
+    v.map_or("—".to_string(), |x| format!("{} {unit}", G(x, 4)))
+}
+
+/// The summary table printed by `run`.
+pub fn table(h: &Headline) -> String {
+    let gpm = 15_850.323_141_489; // US gal/min per m³/s (exact by definition of the gallon)
+    let mut t = String::new();
+    let mut row = |k: &str, v: String| t.push_str(&format!("  {k:<44} {v}\n"));
+    row(
+        "steps / cycles / cells",
+        format!("{} / {} / {}", h.steps, h.cycles, h.cells),
+    );
+    row("simulated time", format!("{} s", G(h.end_time_s, 4)));
+    row(
+        "peak face flux out / in",
+        format!(
+            "{:.4e} / {:.4e} m/s",
+            h.peak_outward_flux_m_s, h.peak_inward_flux_m_s
+        ),
+    );
+    row(
+        "peak pore velocity out / in",
+        format!(
+            "{:.4e} / {:.4e} m/s",
+            h.peak_outward_pore_velocity_m_s, h.peak_inward_pore_velocity_m_s
+        ),
+    );
+    row("RMS face flux", format!("{:.4e} m/s", h.rms_face_flux_m_s));
+    row(
+        "peak shear proxy at the wall",
+        format!("{} Pa", G(h.peak_shear_pa, 4)),
+    );
+    for (z, w) in h.zones.iter().zip(h.work_j) {
+        row(&format!("work dissipated, {z}"), format!("{} J", G(w, 4)));
+    }
+    row(
+        "cake thickness start → end",
+        format!(
+            "{} → {} mm",
+            G(h.cake_thickness_start_m * 1e3, 4),
+            G(h.cake_thickness_end_m * 1e3, 4)
+        ),
+    );
+    row(
+        "time to remove 50 % / 90 % of the cake",
+        format!(
+            "{} / {}",
+            fmt_opt(h.time_to_half_cake_s, "s"),
+            fmt_opt(h.time_to_90pct_cake_s, "s")
+        ),
+    );
+    row(
+        "skin start → end",
+        format!("{} → {}", G(h.skin_start, 4), G(h.skin_end, 4)),
+    );
+    row(
+        "efficiency start → end (steady, see report)",
+        format!(
+            "{:.1} % → {:.1} %",
+            100.0 * h.efficiency_start,
+            100.0 * h.efficiency_end
+        ),
+    );
+    row(
+        "specific capacity start → end",
+        format!(
+            "{} → {} L/s/m ({} → {} gpm/ft)",
+            G(h.specific_capacity_start_m2_s * 1e3, 4),
+            G(h.specific_capacity_end_m2_s * 1e3, 4),
+            G(h.specific_capacity_start_m2_s * gpm * 0.3048, 3),
+            G(h.specific_capacity_end_m2_s * gpm * 0.3048, 3)
+        ),
+    );
+    row(
+        "peak slot velocity (rule of thumb 0.03 m/s)",
+        format!("{} m/s", G(h.peak_slot_velocity_m_s, 4)),
+    );
+    row(
+        "peak grain Reynolds number (pack d50)",
+        h.peak_grain_reynolds
+            .map_or("— (no d50)".into(), |r| format!("{}", G(r, 3))),
+    );
+    row(
+        "wall gradient / critical gradient",
+        h.piping_ratio
+            .map_or("—".into(), |r| format!("{}", G(r, 3))),
+    );
+    row(
+        "peak collapse-direction pressure",
+        format!(
+            "{} kPa ({} psi)",
+            G(h.peak_collapse_pressure_pa / 1e3, 4),
+            G(h.peak_collapse_pressure_pa / 6_894.757, 3)
+        ),
+    );
+    row(
+        "collapse rating / margin",
+        match (h.collapse_rating_pa, h.collapse_margin) {
+            (Some(r), Some(m)) => format!("{} kPa / {m:.2}", G(r / 1e3, 4)),
+            (Some(r), None) => format!("{} kPa / —", G(r / 1e3, 4)),
+            _ => "— (give well.material and dimension_ratio, or collapse_rating)".into(),
+        },
+    );
+    row(
+        "volume residual / energy closure",
+        format!("{:.1e} / {:.1e}", h.max_mass_residual, h.energy_closure),
+    );
+    row(
+        "most Newton iterations in a step",
+        format!("{}", h.max_newton_iterations),
+    );
+    if !h.warnings.is_empty() {
+        t.push_str("\nWarnings:\n");
+        for w in &h.warnings {
+            t.push_str(&format!("  - {w}\n"));
+        }
+    }
+    t
+}

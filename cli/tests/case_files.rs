@@ -1,0 +1,607 @@
+//! Case files, through the library: every shipped case loads and validates, unit
+//! conversions land on the solver in SI, defaults are filled, and every file in
+//! `bad_cases/` fails with the expected field path and a message naming the bad value.
+
+use boreflux::case::{load_case, parse_case, scenario_companions, scenarios, schema, LoadedCase};
+use boreflux_solver::drive::{Drive, TableQuantity};
+use boreflux_solver::model::{GridSpec, OuterBoundary, TimeSpec};
+use serde_json::Value;
+use std::f64::consts::PI;
+use std::path::{Path, PathBuf};
+
+fn cases_dir() -> PathBuf {
+    Path::new(env!("CARGO_MANIFEST_DIR")).join("../cases")
+}
+
+fn bad_dir() -> PathBuf {
+    Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/bad_cases")
+}
+
+fn rel(got: f64, want: f64) -> f64 {
+    (got - want).abs() / want.abs()
+}
+
+fn parse(text: &str) -> LoadedCase {
+    parse_case(text, &cases_dir()).unwrap_or_else(|e| panic!("{e}"))
+}
+
+/// Conversions multiply exact decimal constants; a handful of roundings of at most half an
+/// ulp each (1.1e-16) stay below this.
+const EXACT: f64 = 1e-15;
+
+/// JSON values equal, numbers to `EXACT` relative (serde_json's default float parser may
+/// be an ulp off on the way back in).
+fn json_close(a: &Value, b: &Value, path: &str) {
+    match (a, b) {
+        (Value::Number(x), Value::Number(y)) => {
+            let (x, y) = (x.as_f64().unwrap(), y.as_f64().unwrap());
+            assert!(x == y || rel(x, y) < EXACT, "{path}: {x} vs {y}");
+        }
+        (Value::Object(x), Value::Object(y)) => {
+            let kx: Vec<_> = x.keys().collect();
+            let ky: Vec<_> = y.keys().collect();
+            assert_eq!(kx, ky, "{path}");
+            for (k, v) in x {
+                json_close(v, &y[k], &format!("{path}.{k}"));
+            }
+        }
+        (Value::Array(x), Value::Array(y)) => {
+            assert_eq!(x.len(), y.len(), "{path}");
+            for (i, (u, v)) in x.iter().zip(y).enumerate() {
+                json_close(u, v, &format!("{path}[{i}]"));
+            }
+        }
+        _ => assert_eq!(a, b, "{path}"),
+    }
+}
+
+#[test]
+fn shipped_cases_load_and_validate() {
+    assert_eq!(
+        scenarios()[0].0,
+        "municipal-sand-gravel",
+        "the default demo comes first"
+    );
+    for (name, text) in scenarios() {
+        let path = cases_dir().join(format!("{name}.json"));
+        let on_disk = std::fs::read_to_string(&path).unwrap();
+        assert_eq!(
+            &on_disk, text,
+            "{name}: compiled-in text differs from the file"
+        );
+        let case = load_case(&path).unwrap_or_else(|e| panic!("{name}: {e}"));
+        case.model.validate().unwrap();
+        assert!(
+            case.description
+                .starts_with("Invented demo data, not from any source"),
+            "{name}: the description must say the data are invented"
+        );
+        assert!(!case.title.is_empty(), "{name}");
+        assert!(!case.notes.is_empty(), "{name}");
+        // Loaded from text with the cases folder as base: the same model.
+        let again = parse_case(text, &cases_dir()).unwrap();
+        assert_eq!(again.model, case.model, "{name}");
+        // The resolved case is itself a loadable case in SI that gives the same model.
+        let resolved_text = serde_json::to_string_pretty(&case.resolved).unwrap();
+        let reloaded = parse_case(&resolved_text, Path::new("/nonexistent"))
+            .unwrap_or_else(|e| panic!("{name} resolved: {e}"));
+        json_close(&reloaded.resolved, &case.resolved, name);
+        assert_eq!(reloaded.safety, case.safety, "{name}");
+    }
+}
+
+#[test]
+fn every_case_file_is_a_scenario() {
+    let names: Vec<&str> = scenarios().iter().map(|(n, _)| *n).collect();
+    let companions: Vec<&str> = scenario_companions().iter().map(|(_, f, _)| *f).collect();
+    for entry in std::fs::read_dir(cases_dir()).unwrap() {
+        let file = entry.unwrap().file_name().into_string().unwrap();
+        if let Some(stem) = file.strip_suffix(".json") {
+            assert!(names.contains(&stem), "{file} is not listed in scenarios()");
+        } else if file.ends_with(".csv") {
+            assert!(
+                companions.contains(&file.as_str()),
+                "{file} is not a companion"
+            );
+        }
+    }
+    for (scenario, file, text) in scenario_companions() {
+        assert!(names.contains(scenario));
+        let on_disk = std::fs::read_to_string(cases_dir().join(file)).unwrap();
+        assert_eq!(&on_disk, text);
+    }
+}
+
+/// A case written with non-SI units everywhere.
+const UNITS_CASE: &str = r#"{
+  "title": "units",
+  "fluid": { "temperature": "59 degF" },
+  "well": { "screen_radius": "4 in", "screen_length": "20 ft", "open_area": "12 %",
+            "casing_radius": "8 in", "screen_loss": "40 s",
+            "collapse_rating": "117 psi", "youngs_modulus": "400000 psi" },
+  "pack": { "outer_radius": "7 in", "porosity": "32 %", "conductivity": "700 m/d",
+            "specific_storage": "3e-6 1/ft" },
+  "cake": { "thickness": "2 mm", "conductivity": "1e-7 cm/s",
+            "erosion": { "critical_shear": "0.1 psi", "erodibility": "1e-6 m/s/Pa" } },
+  "invaded": { "thickness": "3 cm", "conductivity_ratio": "25 %" },
+  "formation": { "conductivity": "20 ft/d", "specific_storage": "1e-5 1/m",
+                 "outer_radius": "300 ft", "outer_boundary": "no_flow" },
+  "drive": { "kind": "sine_head", "amplitude": "1.5 psi", "frequency": "30 strokes/min",
+             "offset": "-6 in" },
+  "duration": "10 cycles",
+  "numerics": { "cells": { "per_decade": 25 }, "steps_per_cycle": 64, "theta": 0.6,
+                "startup_steps": 3, "output_every": 10 }
+}"#;
+
+#[test]
+fn units_land_on_the_solver_in_si() {
+    let c = parse(UNITS_CASE);
+    let m = &c.model;
+    // Lengths: 1 in = 0.0254 m, 1 ft = 0.3048 m, exact (NIST SP 811, Appendix B).
+    assert!(rel(m.well.screen_radius_m, 0.1016) < EXACT);
+    assert!(rel(m.well.screen_length_m, 6.096) < EXACT);
+    assert!(rel(m.well.casing_radius_m, 0.2032) < EXACT);
+    assert!(rel(m.pack.outer_radius_m, 0.1778) < EXACT);
+    assert!(rel(m.cake.unwrap().thickness_m, 0.002) < EXACT);
+    assert!(rel(m.invaded.unwrap().thickness_m, 0.03) < EXACT);
+    assert!(rel(m.formation.outer_radius_m.unwrap(), 91.44) < EXACT);
+    assert_eq!(m.formation.outer_boundary, OuterBoundary::NoFlow);
+    // Percent: 1 % = 0.01, exact by definition.
+    assert!(rel(m.well.open_area, 0.12) < EXACT);
+    assert!(rel(m.pack.medium.porosity, 0.32) < EXACT);
+    assert!(rel(m.well.linear_loss_s, 40.0) < EXACT);
+    // Conductivity: 700 m/d = 700/86400 m/s (1 d = 86400 s, exact); 20 ft/d =
+    // 20 × 0.3048/86400 m/s (NIST SP 811); 1e-7 cm/s = 1e-9 m/s (SI prefix).
+    assert!(rel(m.pack.medium.conductivity_m_s, 700.0 / 86_400.0) < EXACT);
+    assert!(
+        rel(
+            m.formation.medium.conductivity_m_s,
+            7.055_555_555_555_556e-5
+        ) < EXACT
+    );
+    assert!(rel(m.cake.unwrap().conductivity_m_s, 1e-9) < EXACT);
+    // Invaded zone: 25 % of the formation's conductivity.
+    let kf = m.formation.medium.conductivity_m_s;
+    assert!(rel(m.invaded.unwrap().medium.conductivity_m_s, 0.25 * kf) < EXACT);
+    // Specific storage: 3e-6 1/ft = 3e-6/0.3048 1/m (NIST SP 811).
+    assert!(
+        rel(
+            m.pack.medium.specific_storage_per_m,
+            9.842_519_685_039_37e-6
+        ) < EXACT
+    );
+    // Pressure: 1 psi = 6894.757293168362 Pa (NIST SP 811, lbf and in exact).
+    let psi = 6_894.757_293_168_362;
+    let e = m.cake.unwrap().erosion.unwrap();
+    assert!(rel(e.critical_shear_pa, 0.1 * psi) < EXACT);
+    assert!(rel(e.erodibility_m_s_pa, 1e-6) < EXACT);
+    assert!(rel(c.safety.collapse_rating_pa.unwrap(), 117.0 * psi) < EXACT);
+    assert!(rel(c.safety.youngs_modulus_pa.unwrap(), 400_000.0 * psi) < EXACT);
+    // Temperature: 59 degF = 15 degC (NIST SP 811). Water at 15 degC: ρ = 999.102621
+    // kg/m³, μ = 1.1375676e-3 Pa s (iapws.IAPWS95, PHYSICS.md §5.3). Tolerances: the
+    // density formula is within 1.1e-3 kg/m³ of IAPWS-95; the viscosity table node prints
+    // 6 digits (≤ 5e-9 Pa s).
+    assert!((m.fluid.density_kg_m3 - 999.102_621).abs() < 2e-3);
+    assert!((m.fluid.viscosity_pa_s - 1.137_567_6e-3).abs() < 5e-9);
+    let t = c.resolved["fluid"]["temperature"].as_f64().unwrap();
+    assert!((t - 288.15).abs() < 1e-12, "{t}");
+    // Head from pressure: 1.5 psi / (ρ g), ρ = 999.102621 (as above), g = 9.80665 exact:
+    // 1.5 × 6894.757293 / (999.102621 × 9.80665) = 1.055554 m. Tolerance 2e-6 relative
+    // from the density formula's 1.1e-3 kg/m³.
+    let Drive::SineHead(s) = &m.drive else {
+        panic!("not a sine drive: {:?}", m.drive)
+    };
+    let want = 1.5 * psi / (999.102_621 * 9.806_65);
+    assert!(
+        rel(s.amplitude_m, want) < 2e-6,
+        "{} vs {want}",
+        s.amplitude_m
+    );
+    assert!(rel(s.offset_m, -0.1524) < EXACT);
+    // 30 strokes/min = 0.5 Hz (1 min = 60 s); 10 cycles of 2 s = 20 s.
+    assert!(rel(s.frequency_hz, 0.5) < EXACT);
+    assert!(rel(m.duration_s, 20.0) < EXACT);
+    assert_eq!(m.numerics.grid, GridSpec::PerDecade(25.0));
+    assert_eq!(m.numerics.time, TimeSpec::StepsPerCycle(64));
+    assert_eq!(m.numerics.theta, 0.6);
+    assert_eq!(m.numerics.startup_steps, 3);
+    assert_eq!(c.output_every, 10);
+    // The resolved case carries the same SI numbers.
+    assert_eq!(
+        c.resolved["well"]["screen_radius"].as_f64(),
+        Some(m.well.screen_radius_m)
+    );
+    assert_eq!(c.resolved["duration"].as_f64(), Some(20.0));
+    assert_eq!(c.resolved["drive"]["kind"], "sine_head");
+}
+
+/// The smallest case: only required keys.
+const MINIMAL_CASE: &str = r#"{
+  "well": { "screen_radius": 0.1, "screen_length": 6, "open_area": 0.12 },
+  "pack": { "outer_radius": 0.2, "porosity": 0.32, "conductivity": 8e-3 },
+  "formation": { "conductivity": 2e-4, "specific_storage": 1e-5 },
+  "drive": { "kind": "sine_head", "amplitude": 1.5, "frequency": 0.5 },
+  "duration": 600
+}"#;
+
+#[test]
+fn defaults_are_filled() {
+    let c = parse(MINIMAL_CASE);
+    let m = &c.model;
+    let r = &c.resolved;
+    // DESIGN.md defaults: water at 15 degC (ρ from iapws.IAPWS95, PHYSICS.md §5.3, within
+    // the density formula's 1.1e-3 kg/m³).
+    assert!((m.fluid.density_kg_m3 - 999.102_621).abs() < 2e-3);
+    assert_eq!(r["fluid"]["temperature"], 288.15);
+    // casing_radius = screen_radius; storage = π r_c² (free water surface).
+    assert_eq!(m.well.casing_radius_m, 0.1);
+    assert!(rel(m.well.storage_m2, PI * 0.01) < EXACT);
+    assert_eq!(m.well.discharge_coefficient, Some(0.6));
+    assert_eq!(r["well"]["discharge_coefficient"], 0.6);
+    assert_eq!(m.well.linear_loss_s, 0.0);
+    // Pack storage is the formation's; formation porosity 0.3; Darcy without d50.
+    assert_eq!(m.pack.medium.specific_storage_per_m, 1e-5);
+    assert_eq!(m.formation.medium.porosity, 0.3);
+    assert_eq!(m.pack.medium.forchheimer_beta_s2_m2, 0.0);
+    assert_eq!(m.formation.outer_radius_m, None);
+    assert_eq!(r["formation"]["outer_radius"], "auto");
+    assert_eq!(r["formation"]["outer_boundary"], "fixed_head");
+    assert_eq!(m.formation.outer_boundary, OuterBoundary::FixedHead);
+    assert!(m.cake.is_none() && m.invaded.is_none());
+    assert!(r.get("cake").is_none());
+    // Numerics: 200 steps per cycle (the solver's default), θ 0.5, 2 start-up steps.
+    assert_eq!(
+        m.numerics.time,
+        TimeSpec::StepsPerCycle(boreflux_solver::run::DEFAULT_STEPS_PER_CYCLE)
+    );
+    assert_eq!(r["numerics"]["steps_per_cycle"], 200);
+    assert_eq!(r["numerics"]["method"], "time");
+    assert_eq!(r["numerics"]["cells"], "auto");
+    assert_eq!(m.numerics.theta, 0.5);
+    assert_eq!(m.numerics.startup_steps, 2);
+    assert_eq!(c.output_every, 1);
+    assert_eq!(r["drive"]["offset"], 0.0);
+    assert_eq!(r["drive"]["ramp_cycles"], 0.0);
+    // Collapse-check defaults.
+    assert_eq!(c.safety.safety_factor, 2.0);
+    assert_eq!(c.safety.formation_specific_gravity, 2.65);
+    assert_eq!(c.safety.material, None);
+    assert_eq!(c.title, "");
+}
+
+#[test]
+fn pack_conductivity_is_estimated_from_the_gradation() {
+    let text = MINIMAL_CASE.replace(
+        r#""pack": { "outer_radius": 0.2, "porosity": 0.32, "conductivity": 8e-3 }"#,
+        r#""pack": { "outer_radius": 0.2, "porosity": 0.35, "d10": "1.2 mm",
+                         "d50": "2 mm", "d60": "2.1 mm" },
+               "fluid": { "temperature": "20 degC" }"#,
+    );
+    let c = parse(&text);
+    let pack = c.model.pack.medium;
+    // Cu = 1.75 (well sorted): Kozeny–Carman on d50 = 2 mm, n = 0.35, water at 20 degC:
+    // 2.204010e-2 m/s (computed with numpy, PHYSICS.md §4.2). Tolerance 1e-5: the table's
+    // water is IAPWS at 20 degC; ours is within 1.1e-6 (density) and 5e-6 (viscosity).
+    assert!(
+        rel(pack.conductivity_m_s, 2.204_010e-2) < 1e-5,
+        "{}",
+        pack.conductivity_m_s
+    );
+    // Ergun β for d = 2 mm, n = 0.35: 1.352685e3 s²/m² (numpy, PHYSICS.md §4.2, 7 digits).
+    assert!(rel(pack.forchheimer_beta_s2_m2, 1.352_685e3) < 1e-6);
+    assert_eq!(pack.grain_diameter_m, Some(2e-3));
+    let all = c.notes.join("\n");
+    assert!(all.contains("estimated from the gradation"), "{all}");
+    assert!(all.contains("well sorted"), "{all}");
+    assert!(all.contains("Hazen"), "{all}");
+    // The resolved case keeps the estimate as the conductivity.
+    assert_eq!(
+        c.resolved["pack"]["conductivity"].as_f64(),
+        Some(pack.conductivity_m_s)
+    );
+
+    // Shape ψ = 0.73 (subangular class): ψ d replaces d (media.rs convention), so
+    // K scales by ψ² and β by 1/ψ from the same table row.
+    let angular = text.replace(
+        r#""d60": "2.1 mm""#,
+        r#""d60": "2.1 mm", "grain_shape": "subangular_sand""#,
+    );
+    let a = parse(&angular).model.pack.medium;
+    assert!(rel(a.conductivity_m_s, 2.204_010e-2 * 0.73 * 0.73) < 1e-5);
+    assert!(rel(a.forchheimer_beta_s2_m2, 1.352_685e3 / 0.73) < 1e-6);
+
+    // A given conductivity overrides; ten times the estimate draws a warning.
+    let given = text.replace(
+        r#""porosity": 0.35,"#,
+        r#""porosity": 0.35, "conductivity": "0.22 m/s","#,
+    );
+    let g = parse(&given);
+    assert_eq!(g.model.pack.medium.conductivity_m_s, 0.22);
+    assert!(
+        g.warnings.iter().any(|w| w.contains("factor of 10")),
+        "{:?}",
+        g.warnings
+    );
+}
+
+#[test]
+fn non_periodic_drives_get_geometric_steps() {
+    let text = MINIMAL_CASE
+        .replace(
+            r#""kind": "sine_head", "amplitude": 1.5, "frequency": 0.5"#,
+            r#""kind": "constant_rate", "pumping_rate": "25 gpm""#,
+        )
+        .replace(r#""duration": 600"#, r#""duration": "2 h""#);
+    let c = parse(&text);
+    // 25 gpm = 25 × 3.785411784e-3 / 60 m³/s (US gallon exact, NIST SP 811).
+    let Drive::ConstantRate { pumping_rate_m3_s } = c.model.drive else {
+        panic!("{:?}", c.model.drive)
+    };
+    assert!(rel(pumping_rate_m3_s, 25.0 * 3.785_411_784e-3 / 60.0) < EXACT);
+    assert!(rel(c.model.duration_s, 7200.0) < EXACT);
+    // Solver defaults: 40 steps per decade from max(1e-8 × duration, 1e-5 s) = 7.2e-5 s.
+    assert_eq!(
+        c.model.numerics.time,
+        TimeSpec::StepsPerDecade {
+            per_decade: 40.0,
+            first_step_s: 7200.0 * 1e-8
+        }
+    );
+    assert_eq!(c.resolved["numerics"]["steps_per_decade"], 40.0);
+
+    let slug = MINIMAL_CASE.replace(
+        r#""kind": "sine_head", "amplitude": 1.5, "frequency": 0.5"#,
+        r#""kind": "slug", "initial_head": "-2 ft""#,
+    );
+    let s = parse(&slug);
+    // -2 ft = -0.6096 m (NIST SP 811).
+    assert_eq!(
+        s.model.drive,
+        Drive::Slug {
+            initial_head_m: -0.6096
+        }
+    );
+}
+
+#[test]
+fn table_drive_reads_its_csv_beside_the_case() {
+    let c = load_case(&cases_dir().join("irrigation-pump-surge.json")).unwrap();
+    let Drive::Table(t) = &c.model.drive else {
+        panic!("{:?}", c.model.drive)
+    };
+    // cases/irrigation-pump-surge.csv: 50 L/s for 3 min, then off until 5 min.
+    assert_eq!(t.times_s, [0.0, 180.0, 180.0, 300.0]);
+    assert_eq!(t.values, [0.05, 0.05, 0.0, 0.0]);
+    assert_eq!(t.quantity, TableQuantity::PumpingRate);
+    assert!(t.repeat);
+    // "3 cycles" of the 300 s table period.
+    assert_eq!(c.model.duration_s, 900.0);
+    assert_eq!(
+        c.resolved["drive"]["points"][1],
+        serde_json::json!([180.0, 0.05])
+    );
+    assert!(c.resolved["drive"].get("file").is_none());
+    // 64.4 degF = 18 degC (NIST SP 811).
+    let t_k = c.resolved["fluid"]["temperature"].as_f64().unwrap();
+    assert!((t_k - 291.15).abs() < 1e-9, "{t_k}");
+}
+
+#[test]
+fn table_files_with_errors_name_the_line() {
+    let dir = tempfile::tempdir().unwrap();
+    let case = |csv: &str| {
+        std::fs::write(dir.path().join("t.csv"), csv).unwrap();
+        let text = MINIMAL_CASE.replace(
+            r#""kind": "sine_head", "amplitude": 1.5, "frequency": 0.5"#,
+            r#""kind": "table", "file": "t.csv", "quantity": "head""#,
+        );
+        parse_case(&text, dir.path())
+    };
+    let ok = case("0,0\n10,1\n20,0\n").unwrap();
+    assert_eq!(ok.model.drive.period_s(), None);
+    let e = case("time_s,head_m\n0,0\n10,abc\n").unwrap_err();
+    assert_eq!(e.field, "drive.file");
+    assert!(
+        e.message.contains("line 3") && e.message.contains("10,abc"),
+        "{e}"
+    );
+    let e = case("0,0\n10,inf\n").unwrap_err();
+    assert!(
+        e.message.contains("line 2") && e.message.contains("inf"),
+        "{e}"
+    );
+    let e = case("0,0\n10,1\n5,1\n").unwrap_err();
+    assert!(
+        e.message.contains("line 3") && e.message.contains("5 s after 10 s"),
+        "{e}"
+    );
+    let e = case("0;0\n").unwrap_err();
+    assert!(e.message.contains("two columns"), "{e}");
+}
+
+#[test]
+fn safety_inputs_are_read() {
+    let c = load_case(&cases_dir().join("domestic-fine-sand-pvc.json")).unwrap();
+    assert_eq!(c.safety.material.as_deref(), Some("pvc"));
+    assert_eq!(c.safety.dimension_ratio, Some(21.0));
+    assert_eq!(c.safety.safety_factor, 2.0);
+    let text = MINIMAL_CASE
+        .replace(
+            r#""open_area": 0.12 }"#,
+            r#""open_area": 0.12, "material": "PVC", "poisson_ratio": 0.38,
+                "safety_factor": 1.5 }"#,
+        )
+        .replace(
+            r#""specific_storage": 1e-5 }"#,
+            r#""specific_storage": 1e-5, "specific_gravity": 2.7 }"#,
+        );
+    let c = parse(&text);
+    assert_eq!(c.safety.material.as_deref(), Some("pvc"));
+    assert_eq!(c.safety.poisson_ratio, Some(0.38));
+    assert_eq!(c.safety.safety_factor, 1.5);
+    assert_eq!(c.safety.formation_specific_gravity, 2.7);
+    // pvc without dimension ratio or rating: the collapse check cannot be made.
+    assert!(
+        c.warnings.iter().any(|w| w.contains("collapse")),
+        "{:?}",
+        c.warnings
+    );
+}
+
+#[test]
+fn missing_file_is_reported() {
+    let e = load_case(Path::new("/nonexistent/case.json")).unwrap_err();
+    assert_eq!(e.field, "");
+    assert!(
+        e.to_string()
+            .starts_with("cannot read case file /nonexistent/case.json: "),
+        "{e}"
+    );
+}
+
+/// (file in bad_cases/, expected field, substrings the message must contain).
+#[rustfmt::skip]
+const BAD_CASES: &[(&str, &str, &[&str])] = &[
+    ("malformed_json", "", &["line 3 column 3", "invalid JSON", "expected `,` or `}`"]),
+    ("nan_literal", "", &["line 3 column 24", "invalid JSON"]),
+    ("unknown_key_hint", "pack.porosty", &["unknown key `porosty`", "did you mean `porosity`?"]),
+    ("unknown_section", "formaton", &["unknown key `formaton`", "did you mean `formation`?"]),
+    ("unknown_drive_key", "drive.amplitud", &["`amplitud`", "did you mean `amplitude`?"]),
+    ("missing_required_key", "well.screen_length", &["required key is missing"]),
+    ("missing_drive", "drive", &["required key is missing"]),
+    ("nan_as_string", "pack.porosity", &["\"NaN\""]),
+    ("negative_formation_k", "formation.conductivity", &["must be positive", "-0.0002 m/s"]),
+    ("negative_pack_k", "pack.conductivity", &["must be positive", "-0.008 m/s"]),
+    ("negative_cake_k", "cake.conductivity", &["must be a positive", "got -0.00000001"]),
+    ("zero_frequency", "drive.frequency", &["must be positive", "got 0 Hz"]),
+    ("frequency_and_period", "drive.period", &["either frequency or period"]),
+    ("duration_shorter_than_step", "duration", &["shorter than one time step (10 s)", "got 5 s"]),
+    ("negative_duration", "duration", &["must be positive", "got -300 s"]),
+    ("cake_thicker_than_annulus", "cake.thickness", &["thinner than the annulus (0.1 m)", "got 0.15 m"]),
+    ("pack_inside_screen", "pack.outer_radius", &["larger than well.screen_radius (0.1 m)", "got 0.08 m"]),
+    ("outer_radius_inside_borehole", "formation.outer_radius", &["well beyond the borehole", "got 0.2 m"]),
+    ("unknown_drive_kind", "drive.kind", &["unknown drive kind \"surge\"", "sine_head, constant_rate, slug, table"]),
+    ("harmonic_method", "numerics.method", &["\"harmonic\" is not available in this version; use \"time\""]),
+    ("conductivity_in_length_unit", "pack.conductivity", &["\"mm\" is a unit of length", "conductivity is expected"]),
+    ("unknown_unit", "well.screen_radius", &["unknown unit \"inchs\"", "m, cm, mm, in, ft"]),
+    ("unit_letter_case", "drive.frequency", &["unknown unit \"hz\"", "did you mean \"Hz\"?"]),
+    ("flow_rate_for_head", "drive.amplitude", &["\"L/s\" is a unit of flow rate", "head is expected"]),
+    ("porosity_above_one", "pack.porosity", &["must be between 0 and 1, got 1.3"]),
+    ("open_area_as_percent_number", "well.open_area", &["got 30", "\"30 %\""]),
+    ("open_area_zero", "well.open_area", &["must be in (0, 1], got 0"]),
+    ("temperature_bare_number", "fluid.temperature", &["got 12 K", "a bare number is kelvin"]),
+    ("temperature_below_freezing", "fluid.temperature", &["-5.00 degC"]),
+    ("cycles_without_period", "duration", &["\"10 cycles\" needs a periodic drive"]),
+    ("invaded_both_conductivities", "invaded.conductivity", &["not both"]),
+    ("pack_without_k_or_grains", "pack.conductivity", &["give a conductivity or grain sizes (d10, or d50)"]),
+    ("grain_sizes_out_of_order", "pack.d50", &["must not be smaller than d10 (0.0018 m)", "got 0.0012 m"]),
+    ("quantity_wrong_type", "well.screen_length", &["got true"]),
+    ("bad_outer_boundary", "formation.outer_boundary", &["unknown value \"fixed\"", "did you mean `fixed_head`?"]),
+    ("steps_per_cycle_not_periodic", "numerics.steps_per_cycle", &["periodic drives, got 100"]),
+    ("too_few_cells", "numerics.cells", &["at least 10, got 5"]),
+    ("per_decade_below_one", "numerics.cells.per_decade", &["at least 1, got 0.5"]),
+    ("theta_below_half", "numerics.theta", &["got 0.3"]),
+    ("table_file_missing", "drive.file", &["cannot read table file", "no-such-table.csv"]),
+    ("table_not_from_zero", "drive.points", &["first time must be 0 s, got 5 s"]),
+    ("dimension_ratio_too_small", "well.dimension_ratio", &["greater than 2", "got 1.5"]),
+    ("sphericity_and_shape", "pack.grain_shape", &["either sphericity or grain_shape"]),
+    ("erosion_missing_erodibility", "cake.erosion.erodibility", &["required key is missing"]),
+];
+
+#[test]
+fn bad_cases_name_the_field_and_the_value() {
+    assert!(BAD_CASES.len() >= 20);
+    let mut files: Vec<String> = std::fs::read_dir(bad_dir())
+        .unwrap()
+        .map(|e| e.unwrap().file_name().into_string().unwrap())
+        .collect();
+    files.sort();
+    for f in &files {
+        let stem = f
+            .strip_suffix(".json")
+            .expect("only .json files in bad_cases/");
+        assert!(
+            BAD_CASES.iter().any(|(n, ..)| *n == stem),
+            "{f} has no expectation in BAD_CASES"
+        );
+    }
+    for (name, field, parts) in BAD_CASES {
+        let err = load_case(&bad_dir().join(format!("{name}.json")))
+            .err()
+            .unwrap_or_else(|| panic!("{name} loaded without error"));
+        assert_eq!(err.field, *field, "{name}: {err}");
+        for p in *parts {
+            assert!(
+                err.message.contains(p),
+                "{name}: {p:?} not in {:?}",
+                err.message
+            );
+        }
+        let shown = err.to_string();
+        if field.is_empty() {
+            assert_eq!(shown, err.message);
+        } else {
+            assert_eq!(shown, format!("{field}: {}", err.message));
+        }
+    }
+}
+
+#[test]
+fn bad_cases_differ_from_a_valid_case_in_one_place() {
+    // The bad cases were written as this valid case plus one mistake, so each error above
+    // comes from that mistake and not from something else in the file.
+    let base = r#"{
+      "title": "bad case",
+      "well": {"screen_radius": "0.1 m", "screen_length": "6 m", "open_area": 0.12},
+      "pack": {"outer_radius": "0.2 m", "porosity": 0.32, "conductivity": "8e-3 m/s"},
+      "cake": {"thickness": "2 mm", "conductivity": "1e-8 m/s"},
+      "formation": {"conductivity": "2e-4 m/s", "specific_storage": "1e-5 1/m"},
+      "drive": {"kind": "sine_head", "amplitude": "1.5 m", "frequency": "0.5 Hz"},
+      "duration": "10 min"
+    }"#;
+    parse_case(base, &bad_dir()).unwrap();
+}
+
+#[test]
+fn schema_knows_every_key_of_the_shipped_cases() {
+    let s = schema();
+    let defs = &s["$defs"];
+    let resolve = |v: &Value| -> Value {
+        let mut v = v.clone();
+        // Optional sections are `anyOf [{$ref}, null]` or a plain `$ref`.
+        if let Some(alts) = v.get("anyOf").and_then(Value::as_array) {
+            if let Some(r) = alts.iter().find(|a| a.get("$ref").is_some()) {
+                v = r.clone();
+            }
+        }
+        match v.get("$ref").and_then(Value::as_str) {
+            Some(r) => defs[r.trim_start_matches("#/$defs/")].clone(),
+            None => v,
+        }
+    };
+    for (name, text) in scenarios() {
+        let case: Value = serde_json::from_str(text).unwrap();
+        for (section, body) in case.as_object().unwrap() {
+            let sec = resolve(&s["properties"][section]);
+            assert!(
+                !sec.is_null(),
+                "{name}: top-level key {section} not in the schema"
+            );
+            let Some(keys) = body.as_object() else {
+                continue;
+            };
+            for key in keys.keys() {
+                let known = if section == "drive" {
+                    sec["oneOf"]
+                        .as_array()
+                        .unwrap()
+                        .iter()
+                        .any(|alt| alt["properties"].get(key).is_some())
+                } else {
+                    sec["properties"].get(key).is_some()
+                };
+                assert!(known, "{name}: {section}.{key} not in the schema");
+            }
+        }
+    }
+}
