@@ -42,6 +42,8 @@ pub struct Face {
     len: usize,
     r_lin: f64,
     r_nl: f64,
+    /// 1/R_lin, the conductance at Δh = 0.
+    c_lin: f64,
 }
 
 impl Face {
@@ -53,11 +55,13 @@ impl Face {
         );
         let mut segs = [EMPTY; 3];
         segs[..segments.len()].copy_from_slice(segments);
+        let r_lin: f64 = segments.iter().map(|s| s.r_lin).sum();
         Face {
             segs,
             len: segments.len(),
-            r_lin: segments.iter().map(|s| s.r_lin).sum(),
+            r_lin,
             r_nl: segments.iter().map(|s| s.r_nl).sum(),
+            c_lin: 1.0 / r_lin,
         }
     }
 
@@ -73,7 +77,7 @@ impl Face {
 
     /// Conductance dQ/dΔh at Δh = 0, m²/s.
     pub fn conductance(&self) -> f64 {
-        1.0 / self.r_lin
+        self.c_lin
     }
 
     /// Flow Q (m³/s, positive from the inner to the outer unknown) for a head drop
@@ -81,12 +85,14 @@ impl Face {
     #[inline]
     pub fn flow(&self, dh: f64) -> (f64, f64) {
         if self.r_nl == 0.0 {
-            let c = 1.0 / self.r_lin;
-            (c * dh, c)
+            (self.c_lin * dh, self.c_lin)
         } else {
+            // With S = sqrt(R_lin² + 4 R_nl |Δh|): Q = 2|Δh|/(R_lin + S) and
+            // dΔh/dQ = R_lin + 2 R_nl |Q| = S.
             let a = dh.abs();
-            let q = 2.0 * a / (self.r_lin + (self.r_lin * self.r_lin + 4.0 * self.r_nl * a).sqrt());
-            (q.copysign(dh), 1.0 / (self.r_lin + 2.0 * self.r_nl * q))
+            let root = (self.r_lin * self.r_lin + 4.0 * self.r_nl * a).sqrt();
+            let q = 2.0 * a / (self.r_lin + root);
+            (q.copysign(dh), 1.0 / root)
         }
     }
 

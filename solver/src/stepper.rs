@@ -33,6 +33,12 @@ const ROUND_OFF_UPDATE: f64 = 1e-14;
 /// residual bound of issue #4).
 const STALL_RESIDUAL: f64 = 1e-10;
 
+/// Relative residual below which the backtracking stops comparing residuals.
+const BACKTRACK_ABOVE: f64 = 1e-8;
+
+/// Smallest fraction of a Newton update tried by the backtracking.
+const MIN_STEP_FRACTION: f64 = 1.0 / 64.0;
+
 /// Iterations allowed for the in-well head of a well without storage.
 const ALGEBRAIC_MAX_ITERATIONS: usize = 50;
 
@@ -98,6 +104,16 @@ pub struct Stepper {
     scratch: Vec<f64>,
     factored: Factored,
     factored_for: Option<(f64, Control, f64)>,
+    /// Whether the device flow depends on the in-well head.
+    head_dependent: bool,
+    /// Newton iterate before the last update, m.
+    y_prev: Vec<f64>,
+    /// Last Newton update, m.
+    delta: Vec<f64>,
+    /// Change of the heads over the last step (Newton's initial guess), m.
+    prev_change: Vec<f64>,
+    /// Length of the last step, s (0 before the first).
+    prev_dt: f64,
     /// S_j/(θΔt) of the factored matrix: the right-hand side is gain_j h_j (j ≥ 1).
     gain: Vec<f64>,
     linear: bool,
@@ -129,6 +145,11 @@ impl Stepper {
             factored: Factored::with_size(n),
             factored_for: None,
             gain: vec![0.0; n],
+            prev_change: vec![0.0; n],
+            y_prev: vec![0.0; n],
+            head_dependent: model.drive.is_head_dependent(),
+            delta: vec![0.0; n],
+            prev_dt: 0.0,
             linear,
             newton_tolerance: model.numerics.newton_tolerance,
             newton_max_iterations: model.numerics.newton_max_iterations,
@@ -295,6 +316,12 @@ impl Stepper {
             },
             newton_iterations: iterations,
         };
+        if !self.linear {
+            for ((d, &new), &old) in self.prev_change.iter_mut().zip(&self.scratch).zip(&self.h) {
+                *d = new - old;
+            }
+            self.prev_dt = dt;
+        }
         std::mem::swap(&mut self.h, &mut self.scratch);
         self.time_s = t_new;
         if model.drive.control_at(t_theta) == Control::Flow && well_storage <= 0.0 {
@@ -344,21 +371,35 @@ impl Stepper {
     /// would let Crank–Nicolson's −1 amplification ring). Scalar Newton from the
     /// extrapolated value.
     fn algebraic_well_head(&self, model: &Model, t: f64) -> Result<f64, SolverError> {
+        self.solve_well_row(model, t, self.h[0], 0.0, self.h[0], self.h[1])
+    }
+
+    /// Solves the well row `s (H − h₀) + F₀(H − h₁) − Q_device(t, H) = 0` for H, from the
+    /// guess `guess`. The left side increases strictly with H (storage, the screen passes
+    /// more, the device's leakage into the node falls), so a bracket plus safeguarded
+    /// Newton always converges, even on the square-root orifice law where plain Newton
+    /// cycles.
+    fn solve_well_row(
+        &self,
+        model: &Model,
+        t: f64,
+        guess: f64,
+        s: f64,
+        h0: f64,
+        h1: f64,
+    ) -> Result<f64, SolverError> {
         let face = &self.disc.faces[0];
-        let h1 = self.h[1];
-        // f(H) = F₀(H − h₁) − Q_device(t, H) increases strictly with H (the screen passes more
-        // and the leakage into the node falls), so a bracket plus safeguarded Newton always
-        // converges, even on the square-root orifice law where plain Newton cycles.
         let f = |h: f64| {
             let (q, g) = face.flow(h - h1);
             let dev = model.drive.device_flow(t, h);
+            let st = s * (h - h0);
             (
-                q - dev.total(),
-                g - dev.d_dh_m2_s,
-                q.abs() + dev.displacement_m3_s.abs() + dev.bypass_m3_s.abs(),
+                st + q - dev.total(),
+                s + g - dev.d_dh_m2_s,
+                st.abs() + q.abs() + dev.displacement_m3_s.abs() + dev.bypass_m3_s.abs(),
             )
         };
-        let mut h = self.h[0];
+        let mut h = guess;
         let (mut lo, mut hi) = (h, h);
         let mut width = 1e-3f64.max(h.abs());
         while f(lo).0 > 0.0 {
@@ -384,7 +425,7 @@ impl Stepper {
         }
         for _ in 0..ALGEBRAIC_MAX_ITERATIONS {
             let (v, d, scale) = f(h);
-            if v.abs() <= 1e-14 * scale || hi - lo <= ROUND_OFF_UPDATE * h.abs().max(1e-3) {
+            if v.abs() <= 1e-15 * scale || hi - lo <= ROUND_OFF_UPDATE * h.abs().max(1e-3) {
                 return Ok(h);
             }
             if v < 0.0 {
@@ -496,29 +537,37 @@ impl Stepper {
     ) -> Result<usize, SolverError> {
         let n = self.h.len();
         let last = n - 1;
-        self.y.copy_from_slice(&self.h);
+        // Initial guess: the last step's change, scaled to this step's θΔt.
+        let ratio = if self.prev_dt > 0.0 {
+            theta * (t_new - self.time_s) / self.prev_dt
+        } else {
+            0.0
+        };
+        for ((y, &h), &d) in self.y.iter_mut().zip(&self.h).zip(&self.prev_change) {
+            *y = h + ratio * d;
+        }
+        let inv_tdt = 1.0 / tdt;
         let mut residual = f64::INFINITY;
         let (mut last_update, mut head_scale) = (f64::INFINITY, 1e-3);
+        let (mut accepted_residual, mut lambda) = (f64::INFINITY, 1.0);
         for iteration in 0..=self.newton_max_iterations {
             let well = self.well_row(model, tdt, theta, t_new, t_theta);
-            // Residual R (in rhs) and Jacobian J (lower, diag, upper); scale in scratch.
-            for j in 0..n {
-                let s = if j == 0 {
-                    0.0
-                } else {
-                    self.disc.storage[j] / tdt
-                };
-                self.diag[j] = s;
-                self.lower[j] = 0.0;
-                self.upper[j] = 0.0;
+            // −R in rhs, Jacobian in (lower, diag, upper), the row's flow scale in scratch.
+            self.diag[0] = 0.0;
+            self.rhs[0] = 0.0;
+            self.scratch[0] = 0.0;
+            for j in 1..n {
+                let s = self.disc.storage[j] * inv_tdt;
                 let acc = s * (self.y[j] - self.h[j]);
-                self.rhs[j] = acc;
+                self.diag[j] = s;
+                self.rhs[j] = -acc;
                 self.scratch[j] = acc.abs();
             }
+            let faces = &self.disc.faces;
             for j in 0..last {
-                let (q, g) = self.disc.faces[j].flow(self.y[j] - self.y[j + 1]);
-                self.rhs[j] += q;
-                self.rhs[j + 1] -= q;
+                let (q, g) = faces[j].flow(self.y[j] - self.y[j + 1]);
+                self.rhs[j] -= q;
+                self.rhs[j + 1] += q;
                 self.scratch[j] += q.abs();
                 self.scratch[j + 1] += q.abs();
                 self.diag[j] += g;
@@ -527,54 +576,70 @@ impl Stepper {
                 self.lower[j + 1] = -g;
             }
             if self.disc.outer_open {
-                let (q, g) = self.disc.faces[last].flow(self.y[last]);
-                self.rhs[last] += q;
+                let (q, g) = faces[last].flow(self.y[last]);
+                self.rhs[last] -= q;
                 self.scratch[last] += q.abs();
                 self.diag[last] += g;
             }
-            match well {
+            let fixed_ok = match well {
                 WellRow::Fixed(v) => {
-                    self.rhs[0] = self.y[0] - v;
+                    self.rhs[0] = v - self.y[0];
                     self.scratch[0] = 0.0;
                     self.diag[0] = 1.0;
                     self.upper[0] = 0.0;
+                    self.y[0] == v
                 }
                 WellRow::Storage { s_over_tdt, q, dq } => {
                     let acc = s_over_tdt * (self.y[0] - self.h[0]);
-                    self.rhs[0] += acc - q;
+                    self.rhs[0] -= acc - q;
                     self.scratch[0] += acc.abs() + q.abs();
                     self.diag[0] += s_over_tdt - dq;
+                    true
                 }
-            }
-            let scale = self.scratch.iter().fold(0.0f64, |a, &b| a.max(b));
-            let worst = self
-                .rhs
-                .iter()
-                .skip(usize::from(matches!(well, WellRow::Fixed(_))))
-                .fold(0.0f64, |a, &b| a.max(b.abs()));
-            let fixed_ok = match well {
-                WellRow::Fixed(v) => self.y[0] == v,
-                WellRow::Storage { .. } => true,
             };
-            residual = if scale > 0.0 { worst / scale } else { 0.0 };
-            // Converged; or stalled at round-off: the correction each row asks for (residual
-            // over diagonal) is a few ulps of the largest head, and so was the last update.
-            let head_residual = self
-                .rhs
+            let first = usize::from(matches!(well, WellRow::Fixed(_)));
+            let scale = self.scratch.iter().fold(0.0f64, |a, &b| a.max(b));
+            let worst = self.rhs[first..]
                 .iter()
-                .zip(&self.diag)
-                .fold(0.0f64, |a, (r, d)| a.max((r / d).abs()));
-            let stalled = last_update <= ROUND_OFF_UPDATE * head_scale
-                && (residual <= STALL_RESIDUAL || head_residual <= ROUND_OFF_UPDATE * head_scale);
-            if fixed_ok && (residual <= self.newton_tolerance || stalled) {
+                .fold(0.0f64, |a, &b| a.max(b.abs()));
+            residual = if scale > 0.0 { worst / scale } else { 0.0 };
+            if fixed_ok && residual <= self.newton_tolerance {
                 return Ok(iteration);
+            }
+            // Stalled at round-off: the last update and the correction each row asks for
+            // (residual over diagonal) are a few ulps of the largest head.
+            if fixed_ok && last_update <= ROUND_OFF_UPDATE * head_scale {
+                let head_residual = self
+                    .rhs
+                    .iter()
+                    .zip(&self.diag)
+                    .fold(0.0f64, |a, (r, d)| a.max((r / d).abs()));
+                if residual <= STALL_RESIDUAL || head_residual <= ROUND_OFF_UPDATE * head_scale {
+                    return Ok(iteration);
+                }
             }
             if iteration == self.newton_max_iterations {
                 break;
             }
-            for r in &mut self.rhs {
-                *r = -*r;
+            // Backtracking: a full step that did not reduce the residual (Newton cycles on
+            // square-root laws such as an orifice near zero head) is halved, down to 1/64.
+            // Near convergence the residual is round-off noise and is not compared.
+            if residual >= accepted_residual
+                && residual > BACKTRACK_ABOVE
+                && lambda > MIN_STEP_FRACTION
+            {
+                lambda *= 0.5;
+                for ((y, &y0), &d) in self.y.iter_mut().zip(&self.y_prev).zip(&self.delta) {
+                    *y = y0 + lambda * d;
+                }
+                if let WellRow::Fixed(v) = well {
+                    self.y[0] = v;
+                }
+                continue;
             }
+            // Until the prescribed well head is in place the residual is not comparable.
+            accepted_residual = if fixed_ok { residual } else { f64::INFINITY };
+            lambda = 1.0;
             tridiag::solve(
                 &self.lower,
                 &self.diag,
@@ -584,13 +649,23 @@ impl Stepper {
             )?;
             last_update = 0.0;
             head_scale = 1e-3;
+            self.y_prev.copy_from_slice(&self.y);
+            self.delta.copy_from_slice(&self.rhs);
             for (y, d) in self.y.iter_mut().zip(&self.rhs) {
                 *y += d;
                 last_update = last_update.max(d.abs());
                 head_scale = head_scale.max(y.abs());
             }
-            if let WellRow::Fixed(v) = well {
-                self.y[0] = v;
+            match well {
+                WellRow::Fixed(v) => self.y[0] = v,
+                // The well row alone is solved exactly given the new y₁ (a nonlinear
+                // block Gauss–Seidel step), which keeps Newton off the orifice's cycle.
+                WellRow::Storage { s_over_tdt, .. } if self.head_dependent => {
+                    self.y[0] = self.solve_well_row(
+                        model, t_theta, self.y[0], s_over_tdt, self.h[0], self.y[1],
+                    )?;
+                }
+                WellRow::Storage { .. } => {}
             }
         }
         Err(SolverError::NewtonFailed {

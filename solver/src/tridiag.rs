@@ -26,19 +26,18 @@ pub fn solve(
     if n == 0 {
         return Ok(());
     }
-    let mut m = diag[0];
-    if m == 0.0 || !m.is_finite() {
-        return Err(SolverError::TridiagSingular { row: 0 });
-    }
-    scratch[0] = upper[0] / m;
-    rhs[0] /= m;
-    for i in 1..n {
-        m = diag[i] - lower[i] * scratch[i - 1];
+    let (mut c_prev, mut d_prev) = (0.0, 0.0);
+    for i in 0..n {
+        let a = if i == 0 { 0.0 } else { lower[i] };
+        let m = diag[i] - a * c_prev;
         if m == 0.0 || !m.is_finite() {
             return Err(SolverError::TridiagSingular { row: i });
         }
-        scratch[i] = upper[i] / m;
-        rhs[i] = (rhs[i] - lower[i] * rhs[i - 1]) / m;
+        let inv = 1.0 / m;
+        c_prev = upper[i] * inv;
+        d_prev = (rhs[i] - a * d_prev) * inv;
+        scratch[i] = c_prev;
+        rhs[i] = d_prev;
     }
     for i in (0..n - 1).rev() {
         rhs[i] -= scratch[i] * rhs[i + 1];
