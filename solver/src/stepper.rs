@@ -564,8 +564,8 @@ impl Stepper {
                 self.scratch[j] = acc.abs();
             }
             let faces = &self.disc.faces;
-            for j in 0..last {
-                let (q, g) = faces[j].flow(self.y[j] - self.y[j + 1]);
+            for (j, face) in faces.iter().enumerate().take(last) {
+                let (q, g) = face.flow(self.y[j] - self.y[j + 1]);
                 self.rhs[j] -= q;
                 self.rhs[j + 1] += q;
                 self.scratch[j] += q.abs();
