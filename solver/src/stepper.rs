@@ -24,7 +24,7 @@ use crate::error::SolverError;
 use crate::grid::ZONE_COUNT;
 use crate::model::Model;
 use crate::system::{CakeState, Discretization};
-use crate::tridiag::{self, Factored};
+use crate::tridiag::Factored;
 
 /// A Newton update (or a row's head correction) no larger than this times the largest
 /// head, or 1 mm, is at round-off.
@@ -32,6 +32,23 @@ const ROUND_OFF_UPDATE: f64 = 1e-14;
 /// Largest relative residual accepted when the iteration has stalled at round-off (the
 /// residual bound of issue #4).
 const STALL_RESIDUAL: f64 = 1e-10;
+
+/// Largest magnitude in a slice (0 for an empty one), in lanes so it vectorises.
+fn max_abs(v: &[f64]) -> f64 {
+    let mut lanes = [0.0f64; LANES];
+    let chunks = v.chunks_exact(LANES);
+    let rest = chunks.remainder();
+    for c in chunks {
+        for (l, x) in lanes.iter_mut().zip(c) {
+            let a = x.abs();
+            *l = if a > *l { a } else { *l };
+        }
+    }
+    for x in rest {
+        lanes[0] = lanes[0].max(x.abs());
+    }
+    lanes.iter().fold(0.0, |a, &b| a.max(b))
+}
 
 /// Relative residual below which the backtracking stops comparing residuals.
 const BACKTRACK_ABOVE: f64 = 1e-8;
@@ -106,6 +123,12 @@ pub struct Stepper {
     factored_for: Option<(f64, Control, f64)>,
     /// Whether the device flow depends on the in-well head.
     head_dependent: bool,
+    /// Head drop, flow and dQ/dΔh of every face at the current Newton iterate.
+    face_dh: Vec<f64>,
+    /// See `face_dh`.
+    face_q: Vec<f64>,
+    /// See `face_dh`.
+    face_g: Vec<f64>,
     /// Newton iterate before the last update, m.
     y_prev: Vec<f64>,
     /// Last Newton update, m.
@@ -114,6 +137,10 @@ pub struct Stepper {
     prev_change: Vec<f64>,
     /// Length of the last step, s (0 before the first).
     prev_dt: f64,
+    /// Change of the heads over the step before the last, m.
+    prev_change2: Vec<f64>,
+    /// Length of the step before the last, s.
+    prev_dt2: f64,
     /// S_j/(θΔt) of the factored matrix: the right-hand side is gain_j h_j (j ≥ 1).
     gain: Vec<f64>,
     linear: bool,
@@ -147,9 +174,14 @@ impl Stepper {
             gain: vec![0.0; n],
             prev_change: vec![0.0; n],
             y_prev: vec![0.0; n],
+            face_dh: vec![0.0; n],
+            face_q: vec![0.0; n],
+            face_g: vec![0.0; n],
             head_dependent: model.drive.is_head_dependent(),
             delta: vec![0.0; n],
             prev_dt: 0.0,
+            prev_change2: vec![0.0; n],
+            prev_dt2: 0.0,
             linear,
             newton_tolerance: model.numerics.newton_tolerance,
             newton_max_iterations: model.numerics.newton_max_iterations,
@@ -317,9 +349,11 @@ impl Stepper {
             newton_iterations: iterations,
         };
         if !self.linear {
+            std::mem::swap(&mut self.prev_change, &mut self.prev_change2);
             for ((d, &new), &old) in self.prev_change.iter_mut().zip(&self.scratch).zip(&self.h) {
                 *d = new - old;
             }
+            self.prev_dt2 = self.prev_dt;
             self.prev_dt = dt;
         }
         std::mem::swap(&mut self.h, &mut self.scratch);
@@ -335,11 +369,10 @@ impl Stepper {
         let d = &self.disc;
         let y = &self.y;
         let n = y.len();
-        let dh = |f: usize| y[f] - if f + 1 < n { y[f + 1] } else { 0.0 };
-        if self.linear {
-            for (run, zone) in &d.pure_runs {
+        for (run, zone) in &d.pure_runs {
+            let mut lanes = [0.0f64; LANES];
+            if self.linear {
                 let end = run.end.min(n - 1);
-                let mut lanes = [0.0f64; LANES];
                 let (c, y0, y1) = (
                     &d.conductance[run.start..end],
                     &y[run.start..end],
@@ -348,20 +381,21 @@ impl Stepper {
                 for (k, ((&c, &a), &b)) in c.iter().zip(y0).zip(y1).enumerate() {
                     lanes[k % LANES] += c * (a - b) * (a - b);
                 }
-                let mut acc: f64 = lanes.iter().sum();
                 if run.end == n {
-                    acc += d.conductance[n - 1] * y[n - 1] * y[n - 1];
+                    lanes[0] += d.conductance[n - 1] * y[n - 1] * y[n - 1];
                 }
-                out[*zone as usize] += acc;
+            } else {
+                // The Newton iteration left the flows of the converged heads in face_q.
+                let (q, dh) = (&self.face_q[run.clone()], &self.face_dh[run.clone()]);
+                for (k, (&q, &dh)) in q.iter().zip(dh).enumerate() {
+                    lanes[k % LANES] += q * dh;
+                }
             }
-            for &f in &d.mixed_faces {
-                d.faces[f].add_dissipation(dh(f), out);
-            }
-        } else {
-            let used = if d.outer_open { n } else { n - 1 };
-            for (f, face) in d.faces.iter().enumerate().take(used) {
-                face.add_dissipation(dh(f), out);
-            }
+            out[*zone as usize] += lanes.iter().sum::<f64>();
+        }
+        for &f in &d.mixed_faces {
+            let dh = y[f] - if f + 1 < n { y[f + 1] } else { 0.0 };
+            d.faces[f].add_dissipation(dh, out);
         }
     }
 
@@ -547,73 +581,97 @@ impl Stepper {
             *y = h + ratio * d;
         }
         let inv_tdt = 1.0 / tdt;
+        let open = usize::from(self.disc.outer_open);
         let mut residual = f64::INFINITY;
         let (mut last_update, mut head_scale) = (f64::INFINITY, 1e-3);
         let (mut accepted_residual, mut lambda) = (f64::INFINITY, 1.0);
+        // Chord iterations: the Jacobian is factored at the first iterate of the step and
+        // reused while the residual falls at least tenfold per iteration; otherwise it is
+        // refactored at the current iterate. (Reusing it across steps was tried: the
+        // entrance and Forchheimer laws change enough within a cycle that it costs more
+        // iterations than it saves.)
+        let mut factored = false;
         for iteration in 0..=self.newton_max_iterations {
             let well = self.well_row(model, tdt, theta, t_new, t_theta);
-            // −R in rhs, Jacobian in (lower, diag, upper), the row's flow scale in scratch.
-            self.diag[0] = 0.0;
-            self.rhs[0] = 0.0;
-            self.scratch[0] = 0.0;
-            for j in 1..n {
-                let s = self.disc.storage[j] * inv_tdt;
-                let acc = s * (self.y[j] - self.h[j]);
-                self.diag[j] = s;
-                self.rhs[j] = -acc;
-                self.scratch[j] = acc.abs();
+            // Face flows and derivatives, batched (faces 0..last, plus the outer one if open).
+            let nf = last + open;
+            for ((d, &a), &b) in self.face_dh[..last]
+                .iter_mut()
+                .zip(&self.y[..last])
+                .zip(&self.y[1..])
+            {
+                *d = a - b;
             }
-            let faces = &self.disc.faces;
-            for (j, face) in faces.iter().enumerate().take(last) {
-                let (q, g) = face.flow(self.y[j] - self.y[j + 1]);
-                self.rhs[j] -= q;
-                self.rhs[j + 1] += q;
-                self.scratch[j] += q.abs();
-                self.scratch[j + 1] += q.abs();
-                self.diag[j] += g;
-                self.diag[j + 1] += g;
-                self.upper[j] = -g;
-                self.lower[j + 1] = -g;
+            if open == 1 {
+                self.face_dh[last] = self.y[last];
+            } else {
+                self.face_q[last] = 0.0;
             }
-            if self.disc.outer_open {
-                let (q, g) = faces[last].flow(self.y[last]);
-                self.rhs[last] -= q;
-                self.scratch[last] += q.abs();
-                self.diag[last] += g;
+            crate::faces::flows(
+                &self.face_dh[..nf],
+                &self.disc.r_lin[..nf],
+                &self.disc.r_nl[..nf],
+                &mut self.face_q[..nf],
+                &mut self.face_g[..nf],
+            );
+            // −R in rhs and the row's flow scale in scratch, cells 1..n in one pass:
+            // R_j = S_j (y_j − h_j)/(θΔt) − Q_{j−1} + Q_j.
+            for (((((r, sc), &y), &h), &s), (&q_in, &q_out)) in self.rhs[1..]
+                .iter_mut()
+                .zip(self.scratch[1..].iter_mut())
+                .zip(&self.y[1..])
+                .zip(&self.h[1..])
+                .zip(&self.disc.storage[1..])
+                .zip(self.face_q[..last].iter().zip(&self.face_q[1..]))
+            {
+                let acc = s * inv_tdt * (y - h);
+                *r = q_in - q_out - acc;
+                *sc = acc.abs() + q_in.abs() + q_out.abs();
             }
+            self.rhs[0] = -self.face_q[0];
+            self.scratch[0] = self.face_q[0].abs();
             let fixed_ok = match well {
                 WellRow::Fixed(v) => {
                     self.rhs[0] = v - self.y[0];
                     self.scratch[0] = 0.0;
-                    self.diag[0] = 1.0;
-                    self.upper[0] = 0.0;
                     self.y[0] == v
                 }
-                WellRow::Storage { s_over_tdt, q, dq } => {
+                WellRow::Storage { s_over_tdt, q, .. } => {
                     let acc = s_over_tdt * (self.y[0] - self.h[0]);
                     self.rhs[0] -= acc - q;
                     self.scratch[0] += acc.abs() + q.abs();
-                    self.diag[0] += s_over_tdt - dq;
                     true
                 }
             };
             let first = usize::from(matches!(well, WellRow::Fixed(_)));
-            let scale = self.scratch.iter().fold(0.0f64, |a, &b| a.max(b));
-            let worst = self.rhs[first..]
-                .iter()
-                .fold(0.0f64, |a, &b| a.max(b.abs()));
+            let scale = max_abs(&self.scratch);
+            let worst = max_abs(&self.rhs[first..]);
             residual = if scale > 0.0 { worst / scale } else { 0.0 };
             if fixed_ok && residual <= self.newton_tolerance {
                 return Ok(iteration);
             }
-            // Stalled at round-off: the last update and the correction each row asks for
-            // (residual over diagonal) are a few ulps of the largest head.
+            // Stalled at round-off: the last update and the correction each row asks for are
+            // a few ulps of the largest head (the diagonal estimate uses the face derivatives).
             if fixed_ok && last_update <= ROUND_OFF_UPDATE * head_scale {
-                let head_residual = self
-                    .rhs
-                    .iter()
-                    .zip(&self.diag)
-                    .fold(0.0f64, |a, (r, d)| a.max((r / d).abs()));
+                let well_diag = match well {
+                    WellRow::Fixed(_) => 1.0,
+                    WellRow::Storage { s_over_tdt, dq, .. } => s_over_tdt - dq,
+                };
+                let mut head_residual = 0.0f64;
+                for j in 0..n {
+                    let mut d = if j == 0 {
+                        well_diag
+                    } else {
+                        self.disc.storage[j] * inv_tdt
+                    };
+                    if j > 0 {
+                        d += self.face_g[j - 1];
+                    }
+                    if j < last || open == 1 {
+                        d += self.face_g[j];
+                    }
+                    head_residual = head_residual.max((self.rhs[j] / d).abs());
+                }
                 if residual <= STALL_RESIDUAL || head_residual <= ROUND_OFF_UPDATE * head_scale {
                     return Ok(iteration);
                 }
@@ -635,18 +693,45 @@ impl Stepper {
                 if let WellRow::Fixed(v) = well {
                     self.y[0] = v;
                 }
+                factored = false;
                 continue;
+            }
+            // Refactor unless the chord iteration is contracting fast.
+            if !factored || residual > 0.1 * accepted_residual {
+                for j in 0..n {
+                    self.diag[j] = if j == 0 {
+                        0.0
+                    } else {
+                        self.disc.storage[j] * inv_tdt
+                    };
+                    self.lower[j] = 0.0;
+                    self.upper[j] = 0.0;
+                }
+                for j in 0..last {
+                    let g = self.face_g[j];
+                    self.diag[j] += g;
+                    self.diag[j + 1] += g;
+                    self.upper[j] = -g;
+                    self.lower[j + 1] = -g;
+                }
+                if open == 1 {
+                    self.diag[last] += self.face_g[last];
+                }
+                match well {
+                    WellRow::Fixed(_) => {
+                        self.diag[0] = 1.0;
+                        self.upper[0] = 0.0;
+                    }
+                    WellRow::Storage { s_over_tdt, dq, .. } => self.diag[0] += s_over_tdt - dq,
+                }
+                self.factored.factor(&self.lower, &self.diag, &self.upper)?;
+                self.factored_for = None;
+                factored = true;
             }
             // Until the prescribed well head is in place the residual is not comparable.
             accepted_residual = if fixed_ok { residual } else { f64::INFINITY };
             lambda = 1.0;
-            tridiag::solve(
-                &self.lower,
-                &self.diag,
-                &self.upper,
-                &mut self.rhs,
-                &mut self.scratch,
-            )?;
+            self.factored.solve(&mut self.rhs);
             last_update = 0.0;
             head_scale = 1e-3;
             self.y_prev.copy_from_slice(&self.y);

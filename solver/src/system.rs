@@ -39,6 +39,10 @@ pub struct Discretization {
     pub media: Vec<Medium>,
     /// Conductance of each face at Δh = 0, m²/s (the face law for linear faces).
     pub conductance: Vec<f64>,
+    /// Linear resistance of each face, s/m² (for batched flow evaluation).
+    pub r_lin: Vec<f64>,
+    /// Quadratic resistance of each face, s²/m⁵.
+    pub r_nl: Vec<f64>,
     /// Runs of consecutive faces whose segments all lie in one zone (their dissipation is
     /// C Δh² when linear), and the faces that straddle zones.
     pub pure_runs: Vec<(std::ops::Range<usize>, Zone)>,
@@ -74,6 +78,8 @@ impl Discretization {
             outer_open: model.formation.outer_boundary == OuterBoundary::FixedHead,
             media,
             conductance: Vec::with_capacity(n + 1),
+            r_lin: Vec::with_capacity(n + 1),
+            r_nl: Vec::with_capacity(n + 1),
             pure_runs: Vec::new(),
             mixed_faces: Vec::new(),
         };
@@ -135,6 +141,10 @@ impl Discretization {
         }
         let outer = half(n - 1, g.r_center[n - 1], g.outer_radius_m());
         faces.push(Face::new(&[outer]));
+        self.r_lin.clear();
+        self.r_lin.extend(self.faces.iter().map(Face::r_lin));
+        self.r_nl.clear();
+        self.r_nl.extend(self.faces.iter().map(Face::r_nl));
         self.conductance.clear();
         self.conductance
             .extend(self.faces.iter().map(Face::conductance));
