@@ -1,12 +1,18 @@
-//! Case files, through the library: every shipped case loads and validates, unit
-//! conversions land on the solver in SI, defaults are filled, and every file in
-//! `bad_cases/` fails with the expected field path and a message naming the bad value.
+//! Case files, through the library: every shipped case loads and validates, its resolved
+//! form reloads to the same model, unit conversions land on the solver in SI for every
+//! drive kind, defaults are filled, and every file in `bad_cases/` fails with the
+//! expected field path and a message naming the bad value.
 
 use boreflux::case::{load_case, parse_case, scenario_companions, scenarios, schema, LoadedCase};
+use boreflux_solver::devices::Kinematics;
+use boreflux_solver::diagnostics::NullObserver;
 use boreflux_solver::drive::{Drive, TableQuantity};
 use boreflux_solver::model::{GridSpec, OuterBoundary, TimeSpec};
+use boreflux_solver::run::DEFAULT_STEPS_PER_CYCLE;
+use boreflux_solver::{run, Reporting};
 use serde_json::Value;
 use std::f64::consts::PI;
+use std::fmt::Debug;
 use std::path::{Path, PathBuf};
 
 fn cases_dir() -> PathBuf {
@@ -55,6 +61,36 @@ fn json_close(a: &Value, b: &Value, path: &str) {
     }
 }
 
+/// Two values whose `Debug` texts agree token by token, numbers to `EXACT` relative: the
+/// whole model is compared this way, so a field the resolved case forgot shows up.
+fn debug_close(a: &impl Debug, b: &impl Debug, what: &str) {
+    let (sa, sb) = (format!("{a:?}"), format!("{b:?}"));
+    let tokens = |s: &str| -> Vec<String> {
+        s.split(|c: char| c.is_whitespace() || ",(){}[]:".contains(c))
+            .filter(|t| !t.is_empty())
+            .map(str::to_owned)
+            .collect()
+    };
+    let (ta, tb) = (tokens(&sa), tokens(&sb));
+    assert_eq!(ta.len(), tb.len(), "{what}:\n{sa}\nvs\n{sb}");
+    for (x, y) in ta.iter().zip(&tb) {
+        match (x.parse::<f64>(), y.parse::<f64>()) {
+            (Ok(u), Ok(v)) => assert!(u == v || rel(u, v) < EXACT, "{what}: {u} vs {v}"),
+            _ => assert_eq!(x, y, "{what}"),
+        }
+    }
+}
+
+/// The resolved case of `c`, loaded again: the same model and the same resolved case.
+fn reload(c: &LoadedCase, what: &str) -> LoadedCase {
+    let text = serde_json::to_string_pretty(&c.resolved).unwrap();
+    let again = parse_case(&text, Path::new("/nonexistent"))
+        .unwrap_or_else(|e| panic!("{what} resolved: {e}"));
+    debug_close(&again.model, &c.model, what);
+    json_close(&again.resolved, &c.resolved, what);
+    again
+}
+
 #[test]
 fn shipped_cases_load_and_validate() {
     assert_eq!(
@@ -82,10 +118,7 @@ fn shipped_cases_load_and_validate() {
         let again = parse_case(text, &cases_dir()).unwrap();
         assert_eq!(again.model, case.model, "{name}");
         // The resolved case is itself a loadable case in SI that gives the same model.
-        let resolved_text = serde_json::to_string_pretty(&case.resolved).unwrap();
-        let reloaded = parse_case(&resolved_text, Path::new("/nonexistent"))
-            .unwrap_or_else(|e| panic!("{name} resolved: {e}"));
-        json_close(&reloaded.resolved, &case.resolved, name);
+        let reloaded = reload(&case, name);
         assert_eq!(reloaded.safety, case.safety, "{name}");
     }
 }
@@ -365,11 +398,11 @@ fn non_periodic_drives_get_geometric_steps() {
 
 #[test]
 fn table_drive_reads_its_csv_beside_the_case() {
-    let c = load_case(&cases_dir().join("irrigation-pump-surge.json")).unwrap();
+    let c = load_case(&cases_dir().join("irrigation-table.json")).unwrap();
     let Drive::Table(t) = &c.model.drive else {
         panic!("{:?}", c.model.drive)
     };
-    // cases/irrigation-pump-surge.csv: 50 L/s for 3 min, then off until 5 min.
+    // cases/irrigation-table.csv: 50 L/s for 3 min, then off until 5 min.
     assert_eq!(t.times_s, [0.0, 180.0, 180.0, 300.0]);
     assert_eq!(t.values, [0.05, 0.05, 0.0, 0.0]);
     assert_eq!(t.quantity, TableQuantity::PumpingRate);
@@ -506,6 +539,22 @@ const BAD_CASES: &[(&str, &str, &[&str])] = &[
     ("dimension_ratio_too_small", "well.dimension_ratio", &["greater than 2", "got 1.5"]),
     ("sphericity_and_shape", "pack.grain_shape", &["either sphericity or grain_shape"]),
     ("erosion_missing_erodibility", "cake.erosion.erodibility", &["required key is missing"]),
+    ("block_radius_beyond_casing", "drive.block_radius", &["must not exceed the casing radius (0.1 m)", "got 0.12 m"]),
+    ("reversal_time_on_sinusoidal", "drive.reversal_time", &["\"trapezoidal\" only"]),
+    ("trapezoidal_without_reversal", "drive.reversal_time", &["required key is missing for kinematics \"trapezoidal\""]),
+    ("frequency_and_strokes_per_minute", "drive.strokes_per_minute", &["either frequency or strokes_per_minute"]),
+    ("backflow_volume_and_riser", "drive.backflow_volume", &["either backflow_volume or riser_radius with riser_length", "not both"]),
+    ("riser_length_missing", "drive.riser_length", &["required key is missing", "riser_radius is given"]),
+    ("zero_nozzles", "drive.nozzles", &["at least 1, got 0"]),
+    ("jet_passes_overlap", "drive.jet_width", &["passes overlap"]),
+    ("negative_lift_rate", "drive.lift_rate", &["must be positive", "got -0.5 m/s"]),
+    ("cup_radius_beyond_casing", "drive.cup_radius", &["must not exceed well.casing_radius (0.1 m)", "got 0.127 m"]),
+    ("nested_schedule", "drive.stages[1].drive.kind", &["stages cannot nest"]),
+    ("unknown_key_in_stage", "drive.stages[1].drive.strok", &["unknown key `strok`", "did you mean `stroke`?"]),
+    ("stage_duration_missing", "drive.stages[0].duration", &["required key is missing"]),
+    ("stage_reversal_too_long", "drive.stages[0].drive.reversal_time", &["shorter than half a stroke period (1.5 s)", "got 2 s"]),
+    ("schedule_duration_mismatch", "duration", &["must equal the sum of the stage durations (300 s)", "or be left out", "got 600 s"]),
+    ("duration_missing", "duration", &["required key is missing", "only a schedule may leave it out"]),
 ];
 
 #[test]
@@ -590,18 +639,521 @@ fn schema_knows_every_key_of_the_shipped_cases() {
             let Some(keys) = body.as_object() else {
                 continue;
             };
+            if section == "drive" {
+                check_drive_keys(&sec, body, defs, &format!("{name}: drive"));
+                continue;
+            }
             for key in keys.keys() {
-                let known = if section == "drive" {
-                    sec["oneOf"]
-                        .as_array()
-                        .unwrap()
-                        .iter()
-                        .any(|alt| alt["properties"].get(key).is_some())
-                } else {
-                    sec["properties"].get(key).is_some()
-                };
+                let known = sec["properties"].get(key).is_some();
                 assert!(known, "{name}: {section}.{key} not in the schema");
             }
         }
     }
+}
+
+/// Every key of `drive` is in the schema alternative of its own kind; the stages of a
+/// schedule are checked the same way against the stage schema.
+fn check_drive_keys(schema: &Value, drive: &Value, defs: &Value, at: &str) {
+    let kind = drive["kind"].as_str().unwrap();
+    let alt = schema["oneOf"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|a| a["properties"]["kind"]["const"] == kind)
+        .unwrap_or_else(|| panic!("{at}: kind {kind} not in the schema"));
+    for key in drive.as_object().unwrap().keys() {
+        assert!(
+            alt["properties"].get(key).is_some(),
+            "{at}.{key} not in the schema of {kind}"
+        );
+    }
+    if let Some(stages) = drive["stages"].as_array() {
+        let r = alt["properties"]["stages"]["items"]["$ref"]
+            .as_str()
+            .unwrap();
+        let stage = &defs[r.trim_start_matches("#/$defs/")];
+        for (i, st) in stages.iter().enumerate() {
+            for key in st.as_object().unwrap().keys() {
+                assert!(
+                    stage["properties"].get(key).is_some(),
+                    "{at}.stages[{i}].{key} not in the schema"
+                );
+            }
+            let inner = &stage["properties"]["drive"];
+            check_drive_keys(
+                inner,
+                &st["drive"],
+                defs,
+                &format!("{at}.stages[{i}].drive"),
+            );
+        }
+    }
+}
+
+/// Checks: every key of every drive kind, top level and in a stage, has a description in
+/// the schema (the defaults in brackets live there), and a stage cannot be a schedule.
+#[test]
+fn every_drive_key_is_documented() {
+    let s = schema();
+    let drive = &s["properties"]["drive"];
+    let stage = &s["$defs"]["StageKeys"]["properties"]["drive"];
+    for (what, alternatives) in [("drive", drive), ("stage drive", stage)] {
+        for alt in alternatives["oneOf"].as_array().unwrap() {
+            let kind = alt["properties"]["kind"]["const"].as_str().unwrap();
+            assert!(alt["description"].as_str().is_some_and(|d| !d.is_empty()));
+            for (key, v) in alt["properties"].as_object().unwrap() {
+                if key != "kind" {
+                    let d = v["description"].as_str().unwrap_or("");
+                    assert!(!d.is_empty(), "{what} {kind}.{key} has no description");
+                }
+            }
+        }
+    }
+    let stage_kinds: Vec<&str> = stage["oneOf"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|a| a["properties"]["kind"]["const"].as_str().unwrap())
+        .collect();
+    assert_eq!(
+        stage_kinds.len() + 1,
+        drive["oneOf"].as_array().unwrap().len()
+    );
+    assert!(!stage_kinds.contains(&"schedule"));
+    // Defaults the brief fixes are written in the descriptions.
+    let text = drive.to_string();
+    for d in [
+        "[0.6]",
+        "[0 = solid block]",
+        "[5 s",
+        "[0.5, an",
+        "[2]",
+        "[10 mm]",
+    ] {
+        assert!(text.contains(d), "no default {d} in the drive schema");
+    }
+}
+
+// ---------------------------------------------------------------------------------------
+// Development drives
+// ---------------------------------------------------------------------------------------
+
+/// `MINIMAL_CASE` with `drive`, `duration` (left out when `None`) and a 4-in casing radius.
+fn drive_case(drive: &str, duration: Option<&str>) -> String {
+    let text = MINIMAL_CASE
+        .replace(
+            r#""open_area": 0.12 }"#,
+            r#""open_area": 0.12, "casing_radius": "4 in" }"#,
+        )
+        .replace(
+            r#""drive": { "kind": "sine_head", "amplitude": 1.5, "frequency": 0.5 }"#,
+            &format!(r#""drive": {drive}"#),
+        );
+    match duration {
+        Some(d) => text.replace(r#""duration": 600"#, &format!(r#""duration": {d}"#)),
+        None => text.replace(",\n  \"duration\": 600", ""),
+    }
+}
+
+fn parse_drive_case(drive: &str, duration: Option<&str>) -> LoadedCase {
+    let c = parse(&drive_case(drive, duration));
+    reload(&c, drive);
+    c
+}
+
+/// 1 in = 0.0254 m, exact by definition (NIST SP 811, Appendix B); the 4-in casing radius.
+const CASING_M: f64 = 0.1016;
+
+#[test]
+fn surge_block_keys_land_in_si() {
+    let c = parse_drive_case(
+        r#"{ "kind": "surge_block", "block_radius": "3.5 in", "stroke": "3 ft",
+             "strokes_per_minute": 24, "kinematics": "trapezoidal", "reversal_time": "0.2 s",
+             "discharge_coefficient": 0.7, "valve_area": "2 in2", "ramp_cycles": 2 }"#,
+        Some(r#""10 cycles""#),
+    );
+    let Drive::SurgeBlock(b) = &c.model.drive else {
+        panic!("{:?}", c.model.drive)
+    };
+    // 3.5 in = 0.0889 m, 3 ft = 0.9144 m, 2 in² = 2 × 6.4516e-4 m² (NIST SP 811, exact).
+    assert!(rel(b.block_radius_m, 0.0889) < EXACT);
+    assert!(rel(b.casing_radius_m, CASING_M) < EXACT);
+    assert!(rel(b.stroke_m, 0.9144) < EXACT);
+    assert!(rel(b.valve_area_m2, 1.290_32e-3) < EXACT);
+    // 24 strokes per minute = 0.4 Hz (1 min = 60 s); 10 cycles of 2.5 s = 25 s.
+    assert!(rel(b.frequency_hz, 0.4) < EXACT);
+    assert!(rel(c.model.duration_s, 25.0) < EXACT);
+    assert_eq!(b.kinematics, Kinematics::Trapezoidal { reversal_s: 0.2 });
+    assert_eq!(b.discharge_coefficient, 0.7);
+    assert_eq!(b.ramp_cycles, 2.0);
+    let r = &c.resolved["drive"];
+    assert_eq!(r["kind"], "surge_block");
+    assert_eq!(r["kinematics"], "trapezoidal");
+    assert_eq!(r["reversal_time"], 0.2);
+    assert!(r.get("strokes_per_minute").is_none());
+    // A periodic drive: the solver's default steps per cycle.
+    assert_eq!(
+        c.model.numerics.time,
+        TimeSpec::StepsPerCycle(DEFAULT_STEPS_PER_CYCLE)
+    );
+
+    // Defaults: body about 25 mm smaller than the casing inside diameter (PRACTICE.md
+    // §1.2, common practice), so radius = casing radius − 12.5 mm; sinusoidal, Cd 0.6,
+    // solid (no valves), no ramp.
+    let d = parse_drive_case(
+        r#"{ "kind": "surge_block", "stroke": "0.6 m", "frequency": "0.5 Hz" }"#,
+        Some(r#""1 min""#),
+    );
+    let Drive::SurgeBlock(b) = &d.model.drive else {
+        panic!("{:?}", d.model.drive)
+    };
+    assert!(rel(b.block_radius_m, CASING_M - 0.0125) < EXACT);
+    assert_eq!(b.kinematics, Kinematics::Sinusoidal);
+    assert_eq!(b.discharge_coefficient, 0.6);
+    assert_eq!(b.valve_area_m2, 0.0);
+    assert_eq!(b.ramp_cycles, 0.0);
+    assert!(d.resolved["drive"].get("reversal_time").is_none());
+    let notes = d.notes.join("\n");
+    assert!(notes.contains("casing radius − 12.5 mm"), "{notes}");
+    assert!(notes.contains("solid surge block"), "{notes}");
+}
+
+#[test]
+fn swab_keys_land_in_si() {
+    let c = parse_drive_case(
+        r#"{ "kind": "swab", "lift_rate": "3 ft/s", "stroke": "10 ft", "lowering_time": "0.5 min",
+             "submergence": "50 ft", "strokes": 5, "ramp_cycles": 1 }"#,
+        Some(r#""5 min""#),
+    );
+    let Drive::Swab(s) = &c.model.drive else {
+        panic!("{:?}", c.model.drive)
+    };
+    // Cups default to the casing radius. 3 ft/s = 0.9144 m/s, 10 ft = 3.048 m, 50 ft =
+    // 15.24 m (NIST SP 811, exact); 0.5 min = 30 s.
+    assert!(rel(s.cup_radius_m, CASING_M) < EXACT);
+    assert!(rel(s.lift_rate_m_s, 0.9144) < EXACT);
+    assert!(rel(s.stroke_m, 3.048) < EXACT);
+    assert!(rel(s.lowering_time_s, 30.0) < EXACT);
+    assert!(rel(s.submergence_m, 15.24) < EXACT);
+    assert_eq!((s.strokes, s.ramp_cycles), (5, 1.0));
+    // Lift time 3.048/0.9144 = 10/3 s, plus 30 s of lowering.
+    assert!(rel(s.period_s(), 10.0 / 3.0 + 30.0) < EXACT);
+    // Cups as wide as the casing lift the level by one stroke when nothing flows in.
+    let notes = c.notes.join("\n");
+    assert!(
+        notes.contains("one lift would lower the level by 3.048 m"),
+        "{notes}"
+    );
+    // A swab that stops after its strokes still counts steps per cycle; the solver goes
+    // over to geometric steps once the strokes are done.
+    assert_eq!(
+        c.model.numerics.time,
+        TimeSpec::StepsPerCycle(DEFAULT_STEPS_PER_CYCLE)
+    );
+    assert_eq!(c.model.drive.period_at(200.0), None);
+
+    let narrow = parse_drive_case(
+        r#"{ "kind": "swab", "cup_radius": "3.5 in", "lift_rate": "1 m/s", "stroke": "2 m",
+             "lowering_time": 5, "submergence": "20 m" }"#,
+        Some(r#""1 min""#),
+    );
+    let Drive::Swab(s) = &narrow.model.drive else {
+        panic!("{:?}", narrow.model.drive)
+    };
+    assert!(rel(s.cup_radius_m, 0.0889) < EXACT);
+    assert_eq!((s.strokes, s.ramp_cycles), (0, 0.0));
+}
+
+#[test]
+fn pump_backwash_keys_land_in_si() {
+    let c = parse_drive_case(
+        r#"{ "kind": "pump_backwash", "pumping_rate": "800 gpm", "on_time": "3 min",
+             "off_time": "2 min", "backflow_volume": "100 gal", "cycles": 4 }"#,
+        Some(r#""20 min""#),
+    );
+    let Drive::PumpBackwash(p) = &c.model.drive else {
+        panic!("{:?}", c.model.drive)
+    };
+    // 1 US gal = 3.785411784e-3 m³ (NIST SP 811, exact); 1 min = 60 s.
+    assert!(rel(p.pumping_rate_m3_s, 800.0 * 3.785_411_784e-3 / 60.0) < EXACT);
+    assert!(rel(p.backflow_volume_m3, 0.378_541_178_4) < EXACT);
+    assert_eq!((p.on_time_s, p.off_time_s, p.cycles), (180.0, 120.0, 4));
+    // Drain time default: 5 s, an assumption the notes call one.
+    assert_eq!(p.drain_time_s, 5.0);
+    assert!(c.notes.iter().any(|n| n.contains("an assumption")));
+
+    // The back-flow as the riser's water: π r² L with r = 3 in = 0.0762 m and L = 95 ft
+    // = 28.956 m (NIST SP 811, exact).
+    let r = parse_drive_case(
+        r#"{ "kind": "pump_backwash", "pumping_rate": "50 L/s", "on_time": "3 min",
+             "off_time": "2 min", "riser_radius": "3 in", "riser_length": "95 ft",
+             "drain_time": "12 s" }"#,
+        Some(r#""3 cycles""#),
+    );
+    let Drive::PumpBackwash(p) = &r.model.drive else {
+        panic!("{:?}", r.model.drive)
+    };
+    assert!(rel(p.backflow_volume_m3, PI * 0.0762 * 0.0762 * 28.956) < EXACT);
+    assert_eq!((p.drain_time_s, p.cycles), (12.0, 0));
+    assert_eq!(r.model.duration_s, 900.0);
+    let d = &r.resolved["drive"];
+    assert!(d.get("riser_radius").is_none() && d.get("riser_length").is_none());
+    assert_eq!(d["backflow_volume"].as_f64(), Some(p.backflow_volume_m3));
+}
+
+#[test]
+fn jet_pulse_keys_land_in_si() {
+    let c = parse_drive_case(
+        r#"{ "kind": "jet_pulse", "nozzle_velocity": "150 ft/s", "rotation_period": "0.5 min",
+             "nozzles": 4, "jet_width": "0.5 in" }"#,
+        Some(r#""2 min""#),
+    );
+    let Drive::JetPulse(j) = &c.model.drive else {
+        panic!("{:?}", c.model.drive)
+    };
+    // 150 ft/s = 45.72 m/s, 0.5 in = 0.0127 m (NIST SP 811, exact); screen radius from
+    // well.screen_radius; efficiency default 0.5 (an assumption, noted).
+    assert!(rel(j.nozzle_velocity_m_s, 45.72) < EXACT);
+    assert!(rel(j.jet_width_m, 0.0127) < EXACT);
+    assert_eq!((j.rotation_period_s, j.nozzles), (30.0, 4));
+    assert_eq!(j.screen_radius_m, 0.1);
+    assert_eq!(j.efficiency, 0.5);
+    // Velocity head η v²/(2g), g = 9.80665 m/s² (exact by definition).
+    let head = 0.5 * 45.72 * 45.72 / (2.0 * 9.806_65);
+    assert!(rel(j.pulse_head_m(), head) < EXACT);
+    // Four nozzles: a pass every 30/4 s.
+    assert_eq!(c.model.drive.period_s(), Some(7.5));
+    let notes = c.notes.join("\n");
+    assert!(notes.contains("one-dimensional radial model"), "{notes}");
+    assert!(
+        notes.contains("whole circumference and screen length"),
+        "{notes}"
+    );
+    assert!(notes.contains("efficiency not given"), "{notes}");
+    // Defaults: two nozzles, a 10 mm jet.
+    let d = parse_drive_case(
+        r#"{ "kind": "jet_pulse", "nozzle_velocity": "45 m/s", "rotation_period": "30 s",
+             "efficiency": 0.4 }"#,
+        Some(r#""1 min""#),
+    );
+    let Drive::JetPulse(j) = &d.model.drive else {
+        panic!("{:?}", d.model.drive)
+    };
+    assert_eq!((j.nozzles, j.jet_width_m, j.efficiency), (2, 0.010, 0.4));
+}
+
+const SCHEDULE: &str = r#"{ "kind": "schedule", "stages": [
+      { "duration": "1 min",
+        "drive": { "kind": "surge_block", "stroke": "2 ft", "strokes_per_minute": 12,
+                   "ramp_cycles": 3 } },
+      { "duration": "5 cycles",
+        "drive": { "kind": "swab", "lift_rate": "1 m/s", "stroke": "2 m",
+                   "lowering_time": "8 s", "submergence": "20 m" } },
+      { "duration": "0.5 h",
+        "drive": { "kind": "table", "quantity": "pumping_rate",
+                   "points": [[0, 0.002], [600, 0.002], [600, 0], [1800, 0]] } }
+    ] }"#;
+
+#[test]
+fn schedule_stages_land_in_si() {
+    let c = parse_drive_case(SCHEDULE, None);
+    let Drive::Schedule(stages) = &c.model.drive else {
+        panic!("{:?}", c.model.drive)
+    };
+    assert_eq!(stages.len(), 3);
+    // 1 min = 60 s; 5 cycles of the swab's 2 s lift + 8 s lowering = 50 s; 0.5 h = 1800 s.
+    let durations: Vec<f64> = stages.iter().map(|s| s.duration_s).collect();
+    assert_eq!(durations, [60.0, 50.0, 1800.0]);
+    let Drive::SurgeBlock(b) = &stages[0].drive else {
+        panic!("{:?}", stages[0].drive)
+    };
+    // 2 ft = 0.6096 m (NIST SP 811); 12 strokes/min = 0.2 Hz; block radius defaults from
+    // the casing.
+    assert!(rel(b.stroke_m, 0.6096) < EXACT);
+    assert!(rel(b.frequency_hz, 0.2) < EXACT);
+    assert!(rel(b.block_radius_m, CASING_M - 0.0125) < EXACT);
+    assert!(matches!(stages[1].drive, Drive::Swab(_)));
+    let Drive::Table(t) = &stages[2].drive else {
+        panic!("{:?}", stages[2].drive)
+    };
+    assert_eq!(t.quantity, TableQuantity::PumpingRate);
+    // The top-level duration was left out: the sum of the stages.
+    assert_eq!(c.model.duration_s, 1910.0);
+    assert_eq!(c.resolved["duration"], 1910.0);
+    let r = &c.resolved["drive"];
+    assert_eq!(r["kind"], "schedule");
+    assert_eq!(r["stages"][1]["duration"], 50.0);
+    assert_eq!(r["stages"][2]["drive"]["kind"], "table");
+    // Periodic stages take steps per cycle of their own period; the solver picks it.
+    assert_eq!(
+        c.model.numerics.time,
+        TimeSpec::StepsPerCycle(DEFAULT_STEPS_PER_CYCLE)
+    );
+    assert_eq!(c.model.drive.period_at(30.0), Some(5.0));
+    assert_eq!(c.model.drive.period_at(80.0), Some(10.0));
+    assert_eq!(c.model.drive.period_at(500.0), None);
+    assert!(c
+        .notes
+        .iter()
+        .any(|n| n.starts_with("stages[1], 60 s to 110 s: ")));
+
+    // A given total must equal the sum; a mismatch names both.
+    assert_eq!(
+        parse_drive_case(SCHEDULE, Some("1910")).model.duration_s,
+        1910.0
+    );
+    let e = parse_case(&drive_case(SCHEDULE, Some(r#""31 min""#)), &cases_dir()).unwrap_err();
+    assert_eq!(e.field, "duration");
+    assert!(
+        e.message.contains("sum of the stage durations (1910 s)"),
+        "{e}"
+    );
+    assert!(e.message.contains("got 1860 s"), "{e}");
+
+    // "<n> cycles" needs a periodic stage; errors name the stage.
+    let e = parse_case(
+        &drive_case(
+            r#"{ "kind": "schedule", "stages": [ { "duration": "3 cycles",
+                 "drive": { "kind": "constant_rate", "pumping_rate": "2 L/s" } } ] }"#,
+            None,
+        ),
+        &cases_dir(),
+    )
+    .unwrap_err();
+    assert_eq!(e.field, "drive.stages[0].duration");
+    assert!(e.message.contains("needs a periodic drive"), "{e}");
+    let e = parse_case(
+        &drive_case(r#"{ "kind": "schedule", "stages": [] }"#, None),
+        &cases_dir(),
+    )
+    .unwrap_err();
+    assert_eq!(
+        e.to_string(),
+        "drive.stages: needs at least one stage, got none"
+    );
+    // A unit error inside a stage and a table file inside a stage keep the stage's path.
+    let e = parse_case(
+        &drive_case(&SCHEDULE.replace("2 ft", "2 fts"), None),
+        &cases_dir(),
+    )
+    .unwrap_err();
+    assert_eq!(e.field, "drive.stages[0].drive.stroke");
+    let e = parse_case(
+        &drive_case(
+            &SCHEDULE.replace(
+                r#""points": [[0, 0.002], [600, 0.002], [600, 0], [1800, 0]]"#,
+                r#""file": "no-such-table.csv""#,
+            ),
+            None,
+        ),
+        &cases_dir(),
+    )
+    .unwrap_err();
+    assert_eq!(e.field, "drive.stages[2].drive.file");
+
+    // Stages that are all not periodic get geometric steps.
+    let g = parse_drive_case(
+        r#"{ "kind": "schedule", "stages": [
+             { "duration": "10 min", "drive": { "kind": "constant_rate", "pumping_rate": "2 L/s" } },
+             { "duration": "20 min", "drive": { "kind": "constant_rate", "pumping_rate": 0 } } ] }"#,
+        None,
+    );
+    assert!(matches!(
+        g.model.numerics.time,
+        TimeSpec::StepsPerDecade { .. }
+    ));
+}
+
+#[test]
+fn pumping_table_runs_in_a_schedule_stage() {
+    // A rest, then a table of pumping rate: 2 L/s for 60 s, then off. The device volume
+    // of the run is the table's volume, 0.002 m³/s × 60 s = 0.12 m³ out of the well
+    // (the rate is constant on each piece and the steps land on the jump, so the sum of
+    // rate × step is exact to round-off; 1e-9 as the solver's volume checks use).
+    let c = parse_drive_case(
+        r#"{ "kind": "schedule", "stages": [
+             { "duration": "30 s", "drive": { "kind": "constant_rate", "pumping_rate": 0 } },
+             { "duration": "2 min", "drive": { "kind": "table", "quantity": "pumping_rate",
+               "points": [[0, 0.002], [60, 0.002], [60, 0], [120, 0]] } } ] }"#,
+        None,
+    );
+    assert_eq!(c.model.duration_s, 150.0);
+    let s = run(&c.model, &mut NullObserver, Reporting::default()).expect("run");
+    assert!(
+        rel(s.device_volume_m3, -0.12) < 1e-9,
+        "{}",
+        s.device_volume_m3
+    );
+    assert!(rel(s.end_time_s, 150.0) < EXACT);
+}
+
+#[test]
+fn scenarios_use_the_development_drives() {
+    let load = |name: &str| load_case(&cases_dir().join(format!("{name}.json"))).unwrap();
+    // Default demo: a solid block, 0.9 m at 20 strokes/min, ramp 5, 3 min; radius from the
+    // 381 mm casing ID less 12.5 mm.
+    let m = load("municipal-sand-gravel");
+    let Drive::SurgeBlock(b) = &m.model.drive else {
+        panic!("{:?}", m.model.drive)
+    };
+    assert_eq!(
+        (b.stroke_m, b.ramp_cycles, b.valve_area_m2),
+        (0.9, 5.0, 0.0)
+    );
+    assert!(rel(b.frequency_hz, 1.0 / 3.0) < EXACT);
+    assert!(rel(b.block_radius_m, 0.1905 - 0.0125) < EXACT);
+    assert_eq!(m.model.duration_s, 180.0);
+    // Domestic: a vented block in the 4-in PVC SDR 21 casing, collapse inputs kept.
+    let d = load("domestic-fine-sand-pvc");
+    let Drive::SurgeBlock(b) = &d.model.drive else {
+        panic!("{:?}", d.model.drive)
+    };
+    assert!(b.valve_area_m2 > 0.0);
+    assert_eq!(d.safety.material.as_deref(), Some("pvc"));
+    assert_eq!(d.safety.dimension_ratio, Some(21.0));
+    assert!(matches!(
+        load("irrigation-pump-surge").model.drive,
+        Drive::PumpBackwash(_)
+    ));
+    assert!(matches!(
+        load("jetting-wire-wrap").model.drive,
+        Drive::JetPulse(_)
+    ));
+    let s = load("staged-development");
+    let Drive::Schedule(stages) = &s.model.drive else {
+        panic!("{:?}", s.model.drive)
+    };
+    let kinds: Vec<&str> = stages
+        .iter()
+        .map(|st| match st.drive {
+            Drive::SurgeBlock(_) => "surge_block",
+            Drive::ConstantRate { .. } => "constant_rate",
+            _ => "other",
+        })
+        .collect();
+    assert_eq!(kinds, ["surge_block", "surge_block", "constant_rate"]);
+    assert_eq!(s.model.duration_s, 1200.0);
+    assert!(matches!(load("swab-deep").model.drive, Drive::Swab(_)));
+}
+
+/// Checks: `boreflux run` on the swab scenario prints the solver's warning that the
+/// column parted, and no warning of a poor numerical balance.
+#[test]
+fn swab_scenario_warns_that_the_column_parted() {
+    let dir = tempfile::tempdir().unwrap();
+    let out = std::process::Command::new(env!("CARGO_BIN_EXE_boreflux"))
+        .arg("run")
+        .arg(cases_dir().join("swab-deep.json"))
+        .arg("-o")
+        .arg(dir.path().join("swab.h5"))
+        .arg("-q")
+        .output()
+        .unwrap();
+    assert!(out.status.success(), "{out:?}");
+    let stdout = String::from_utf8(out.stdout).unwrap();
+    assert!(
+        stdout.contains("the swab drew the well down to its submergence"),
+        "{stdout}"
+    );
+    assert!(!stdout.contains("numerical balance is poor"), "{stdout}");
 }

@@ -3,9 +3,9 @@
 //! default to the formation's storage), then drive, duration and numerics, and finally
 //! `Model::validate`, whose field paths are mapped to the case-file keys.
 
-use super::drives::{parse_drive, DriveContext};
+use super::drives::{parse_drive, run_duration, stepping_period, DriveContext};
 use super::error::CaseError;
-use super::numerics::{duration, numerics, resolved as resolved_numerics};
+use super::numerics::{numerics, resolved as resolved_numerics};
 use super::raw::{RawCase, RawNumerics};
 use super::zones::{cake, formation, invaded, pack, well};
 use super::{LoadedCase, Log};
@@ -42,15 +42,15 @@ pub fn convert(raw: RawCase, base_dir: &Path) -> Result<LoadedCase, CaseError> {
     let ctx = DriveContext {
         base_dir,
         density_kg_m3: fluid.density_kg_m3,
+        well: &well,
     };
     let drive = parse_drive(raw.drive.clone(), &ctx)?;
     for n in &drive.notes {
         log.note(n.clone());
     }
-    let period = drive.drive.period_s();
-    let duration_s = duration(&raw.duration, period)?;
+    let duration_s = run_duration(raw.duration.as_ref(), &drive.drive)?;
     let raw_numerics = raw.numerics.unwrap_or_default();
-    let num = numerics(&raw_numerics, period)?;
+    let num = numerics(&raw_numerics, stepping_period(&drive.drive))?;
     let mut model = Model {
         fluid,
         well,

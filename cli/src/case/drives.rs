@@ -3,7 +3,21 @@
 //! Adding a drive kind: write a key struct (serde + schemars, `deny_unknown_fields`,
 //! without `kind`), a parse function `fn(Map, &DriveContext) -> Result<ParsedDrive, _>`
 //! that reads it into a [`Drive`] and its resolved SI keys, and one row of
-//! [`DRIVE_KINDS`]. The schema and the "unknown kind" message pick it up from the table.
+//! [`DRIVE_KINDS`]. The schema, the "unknown kind" message and the stages of a `schedule`
+//! pick it up from the table. Every parsed drive is checked by the solver's
+//! `Drive::validate` at once, so its errors name the key where it was written (inside a
+//! schedule: `drive.stages[2].drive.stroke`).
+//!
+//! The development devices live in [`devices`] (surge block and swab, tools in the
+//! casing) and [`pumped`] (pump-and-backwash, jet pulses). The staged drive is in
+//! [`schedule`], which also settles the run's duration (a schedule's is the sum of its
+//! stages) and the period the numerics settings are read against.
+
+mod devices;
+mod pumped;
+mod schedule;
+
+pub use schedule::{run_duration, stepping_period};
 
 use super::error::CaseError;
 use super::hints::suggestion;
@@ -11,6 +25,7 @@ use super::quantity::{FlowRate, Frequency, Head, Time, Q};
 use super::table;
 use crate::units::{format_si, Quantity};
 use boreflux_solver::drive::SineHead;
+use boreflux_solver::model::Well;
 use boreflux_solver::Drive;
 use schemars::{JsonSchema, Schema, SchemaGenerator};
 use serde::de::DeserializeOwned;
@@ -25,6 +40,9 @@ pub struct DriveContext<'a> {
     pub base_dir: &'a Path,
     /// Water density of the case, kg/m³, for heads given as pressures.
     pub density_kg_m3: f64,
+    /// The well as converted (casing radius for tools in the casing, screen radius for
+    /// jets, well-bore storage).
+    pub well: &'a Well,
 }
 
 /// A drive read from the case file.
@@ -79,6 +97,41 @@ pub const DRIVE_KINDS: &[DriveKind] = &[
         parse: table::table,
         schema: table::TableKeys::json_schema,
     },
+    DriveKind {
+        name: "surge_block",
+        about: "Surge block stroking in the casing above the screen: the sealed water below \
+                it is pushed out and drawn in through the screen, less what leaks past the \
+                block and, for a vented block, through its valves.",
+        parse: devices::surge_block,
+        schema: devices::SurgeBlockKeys::json_schema,
+    },
+    DriveKind {
+        name: "swab",
+        about: "Swab cups lifted through a stroke at a steady rate, then lowered: water is \
+                lifted out of the well and the formation answers.",
+        parse: devices::swab,
+        schema: devices::SwabKeys::json_schema,
+    },
+    DriveKind {
+        name: "pump_backwash",
+        about: "Pump-and-backwash surging: pump for an on-time, stop, and let the water in \
+                the pump column drain back into the well.",
+        parse: pumped::pump_backwash,
+        schema: pumped::PumpBackwashKeys::json_schema,
+    },
+    DriveKind {
+        name: "jet_pulse",
+        about: "Rotating horizontal jet, as a train of in-well head pulses (a one-dimensional \
+                approximation of a jet).",
+        parse: pumped::jet_pulse,
+        schema: pumped::JetPulseKeys::json_schema,
+    },
+    DriveKind {
+        name: "schedule",
+        about: "Stages of other drives run back to back, the state carried over.",
+        parse: schedule::schedule,
+        schema: schedule::ScheduleKeys::json_schema,
+    },
 ];
 
 /// Names of the drive kinds, comma separated.
@@ -90,8 +143,19 @@ pub fn kind_names() -> String {
         .join(", ")
 }
 
-/// Reads the `drive` section: dispatches on `kind`.
+/// Reads the `drive` section: dispatches on `kind`, then checks the drive with the solver.
 pub fn parse_drive(
+    map: Map<String, Value>,
+    ctx: &DriveContext<'_>,
+) -> Result<ParsedDrive, CaseError> {
+    let parsed = parse_kind(map, ctx)?;
+    parsed.drive.validate()?;
+    Ok(parsed)
+}
+
+/// Finds the kind named by `kind` and runs its parser; `kind` is put back into the
+/// resolved keys. Errors name `drive.…` (a schedule moves them under its stage).
+fn parse_kind(
     mut map: Map<String, Value>,
     ctx: &DriveContext<'_>,
 ) -> Result<ParsedDrive, CaseError> {
@@ -138,10 +202,12 @@ pub fn read_keys<T: DeserializeOwned>(map: Map<String, Value>) -> Result<T, Case
         .map_err(|e| CaseError::structure(e, "drive"))
 }
 
-/// JSON Schema of `drive`: one alternative per kind, each with its `kind` constant.
-pub fn drive_schema(generator: &mut SchemaGenerator) -> Schema {
-    let alternatives: Vec<Value> = DRIVE_KINDS
+/// One `oneOf` alternative per kind, each with its `kind` constant; `nested` leaves out
+/// the kinds a schedule stage cannot use.
+fn kind_alternatives(generator: &mut SchemaGenerator, nested: bool) -> Vec<Value> {
+    DRIVE_KINDS
         .iter()
+        .filter(|k| !(nested && k.name == schedule::KIND))
         .map(|k| {
             let mut s = (k.schema)(generator);
             let obj = s.ensure_object();
@@ -160,16 +226,34 @@ pub fn drive_schema(generator: &mut SchemaGenerator) -> Schema {
             required.insert(0, json!("kind"));
             s.to_value()
         })
-        .collect();
+        .collect()
+}
+
+fn one_of(description: String, alternatives: Vec<Value>) -> Schema {
     let mut schema = Schema::default();
     let obj = schema.ensure_object();
-    obj.insert(
-        "description".to_owned(),
-        json!(format!("The drive; `kind` is one of: {}.", kind_names())),
-    );
+    obj.insert("description".to_owned(), json!(description));
     obj.insert("type".to_owned(), json!("object"));
     obj.insert("oneOf".to_owned(), Value::Array(alternatives));
     schema
+}
+
+/// JSON Schema of `drive`: one alternative per kind, each with its `kind` constant.
+pub fn drive_schema(generator: &mut SchemaGenerator) -> Schema {
+    let alternatives = kind_alternatives(generator, false);
+    one_of(
+        format!("The drive; `kind` is one of: {}.", kind_names()),
+        alternatives,
+    )
+}
+
+/// JSON Schema of the drive of a schedule stage: any kind but `schedule`.
+pub fn stage_drive_schema(generator: &mut SchemaGenerator) -> Schema {
+    let alternatives = kind_alternatives(generator, true);
+    one_of(
+        "The drive of this stage: any drive kind except schedule (stages cannot nest).".to_owned(),
+        alternatives,
+    )
 }
 
 /// Keys of `sine_head`.

@@ -43,8 +43,9 @@ pub struct RawCase {
     /// What drives the flow; `kind` selects the drive and its keys.
     #[schemars(schema_with = "super::drives::drive_schema")]
     pub drive: Map<String, Value>,
-    /// Simulated time.
-    pub duration: DurationValue,
+    /// Simulated time [for a schedule: the sum of its stages; required for every other
+    /// drive].
+    pub duration: Option<DurationValue>,
     /// Numerical settings [all automatic].
     pub numerics: Option<RawNumerics>,
 }

@@ -19,6 +19,19 @@ pub fn scenarios() -> &'static [(&'static str, &'static str)] {
             "irrigation-pump-surge",
             include_str!("../../../cases/irrigation-pump-surge.json"),
         ),
+        (
+            "irrigation-table",
+            include_str!("../../../cases/irrigation-table.json"),
+        ),
+        (
+            "jetting-wire-wrap",
+            include_str!("../../../cases/jetting-wire-wrap.json"),
+        ),
+        (
+            "staged-development",
+            include_str!("../../../cases/staged-development.json"),
+        ),
+        ("swab-deep", include_str!("../../../cases/swab-deep.json")),
     ]
 }
 
@@ -26,8 +39,8 @@ pub fn scenarios() -> &'static [(&'static str, &'static str)] {
 /// `new` must write them beside the case for it to load.
 pub fn scenario_companions() -> &'static [(&'static str, &'static str, &'static str)] {
     &[(
-        "irrigation-pump-surge",
-        "irrigation-pump-surge.csv",
-        include_str!("../../../cases/irrigation-pump-surge.csv"),
+        "irrigation-table",
+        "irrigation-table.csv",
+        include_str!("../../../cases/irrigation-table.csv"),
     )]
 }

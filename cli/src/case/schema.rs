@@ -25,7 +25,8 @@ mod tests {
             .iter()
             .map(|v| v.as_str().unwrap())
             .collect();
-        assert_eq!(required, ["well", "pack", "formation", "drive", "duration"]);
+        // `duration` may be left out for a schedule (the sum of its stages).
+        assert_eq!(required, ["well", "pack", "formation", "drive"]);
         assert_eq!(s["additionalProperties"], false);
         let kinds: Vec<&str> = props["drive"]["oneOf"]
             .as_array()
@@ -33,7 +34,20 @@ mod tests {
             .iter()
             .map(|d| d["properties"]["kind"]["const"].as_str().unwrap())
             .collect();
-        assert_eq!(kinds, ["sine_head", "constant_rate", "slug", "table"]);
+        assert_eq!(
+            kinds,
+            [
+                "sine_head",
+                "constant_rate",
+                "slug",
+                "table",
+                "surge_block",
+                "swab",
+                "pump_backwash",
+                "jet_pulse",
+                "schedule"
+            ]
+        );
         let length = &s["$defs"]["Length"];
         assert!(length["description"]
             .as_str()

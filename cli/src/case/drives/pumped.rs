@@ -1,0 +1,282 @@
+//! Drives powered by a pump: the `pump_backwash` and `jet_pulse` drive kinds.
+//!
+//! Keys in user units resolve to the solver's [`PumpBackwash`] and [`JetPulse`] in SI.
+//! The back-flow volume of pump-and-backwash is given directly or as the water standing in
+//! the pump column (riser radius and length); the jet's screen radius comes from
+//! `well.screen_radius`. Assumed values (drain time, jet efficiency) are noted as such.
+
+use super::devices::{Velocity, Volume};
+use super::{into_map, read_keys, DriveContext, ParsedDrive};
+use crate::case::checks::{non_negative, positive};
+use crate::case::error::CaseError;
+use crate::case::quantity::{FlowRate, Length, Time, Q};
+use crate::units::{format_si, Quantity};
+use boreflux_solver::devices::{JetPulse, PumpBackwash};
+use boreflux_solver::water::GRAVITY_M_S2;
+use boreflux_solver::Drive;
+use schemars::JsonSchema;
+use serde::Deserialize;
+use serde_json::{json, Map, Value};
+use std::f64::consts::PI;
+
+/// Time constant of the drain-back when the case gives none, s. An assumption with no
+/// source: it depends on the pump, the column and any foot valve; time it in the field.
+pub const DEFAULT_DRAIN_TIME_S: f64 = 5.0;
+/// Fraction of the nozzle velocity head that reaches the screen when the case gives none.
+/// An assumption with no source (the jet spreads and slows over its standoff).
+pub const DEFAULT_JET_EFFICIENCY: f64 = 0.5;
+/// Nozzles on the jetting tool when the case gives none (2 or 4 are usual, PRACTICE.md
+/// §1.8).
+pub const DEFAULT_NOZZLES: u32 = 2;
+/// Width of the jet where it meets the screen when the case gives none, m: about a
+/// 7–10 mm nozzle held within 13 mm of the screen (PRACTICE.md §1.8), spread a little.
+pub const DEFAULT_JET_WIDTH_M: f64 = 0.010;
+
+/// Keys of `pump_backwash`: the back-flow as `backflow_volume`, or as `riser_radius`
+/// with `riser_length` (exactly one of the two ways).
+#[derive(Debug, Deserialize, JsonSchema)]
+#[serde(deny_unknown_fields)]
+pub struct PumpBackwashKeys {
+    /// Pumping rate while the pump runs, positive = withdrawal.
+    pub pumping_rate: Q<FlowRate>,
+    /// Pump running time per cycle.
+    pub on_time: Q<Time>,
+    /// Pump stopped time per cycle.
+    pub off_time: Q<Time>,
+    /// Volume that drains back from the pump column at each stop; or give
+    /// `riser_radius` and `riser_length`.
+    pub backflow_volume: Option<Q<Volume>>,
+    /// Inside radius of the pump column, with `riser_length`: back-flow π r² L.
+    pub riser_radius: Option<Q<Length>>,
+    /// Length of the water column standing in the riser when the pump stops, with
+    /// `riser_radius`.
+    pub riser_length: Option<Q<Length>>,
+    /// Time constant of the drain-back [5 s, an assumption: time it in the field].
+    pub drain_time: Option<Q<Time>>,
+    /// Number of cycles, after which the well recovers [0 = cycles for the whole run].
+    pub cycles: Option<u32>,
+}
+
+/// The back-flow volume, m³, and how it was found.
+fn backflow(k: &PumpBackwashKeys) -> Result<(f64, Option<String>), CaseError> {
+    match (&k.backflow_volume, &k.riser_radius, &k.riser_length) {
+        (Some(v), None, None) => Ok((
+            non_negative(
+                "drive.backflow_volume",
+                v.si("drive.backflow_volume")?,
+                "m3",
+            )?,
+            None,
+        )),
+        (None, Some(r), Some(l)) => {
+            let r = positive("drive.riser_radius", r.si("drive.riser_radius")?, "m")?;
+            let l = non_negative("drive.riser_length", l.si("drive.riser_length")?, "m")?;
+            let v = PI * r * r * l;
+            Ok((
+                v,
+                Some(format!(
+                    "back-flow volume from the riser: pi x ({})^2 x {} = {}",
+                    format_si(r, Quantity::Length),
+                    format_si(l, Quantity::Length),
+                    format_si(v, Quantity::Volume)
+                )),
+            ))
+        }
+        (Some(_), _, _) => Err(CaseError::new(
+            "drive.backflow_volume",
+            "give either backflow_volume or riser_radius with riser_length, not both",
+        )),
+        (None, Some(_), None) => Err(CaseError::new(
+            "drive.riser_length",
+            "required key is missing (riser_radius is given; or give backflow_volume instead)",
+        )),
+        (None, None, Some(_)) => Err(CaseError::new(
+            "drive.riser_radius",
+            "required key is missing (riser_length is given; or give backflow_volume instead)",
+        )),
+        (None, None, None) => Err(CaseError::new(
+            "drive.backflow_volume",
+            "required key is missing (or give riser_radius and riser_length)",
+        )),
+    }
+}
+
+/// Parser of the `pump_backwash` drive (registered in [`super::DRIVE_KINDS`]).
+pub fn pump_backwash(
+    map: Map<String, Value>,
+    _ctx: &DriveContext<'_>,
+) -> Result<ParsedDrive, CaseError> {
+    let k: PumpBackwashKeys = read_keys(map)?;
+    let (volume, riser_note) = backflow(&k)?;
+    let mut notes = Vec::new();
+    let drain_time_s = match &k.drain_time {
+        Some(q) => positive("drive.drain_time", q.si("drive.drain_time")?, "s")?,
+        None => {
+            notes.push(format!(
+                "drain time not given: {}, an assumption with no source; the drain-back rate \
+                 depends on the pump and column, time it in the field",
+                format_si(DEFAULT_DRAIN_TIME_S, Quantity::Time)
+            ));
+            DEFAULT_DRAIN_TIME_S
+        }
+    };
+    let p = PumpBackwash {
+        pumping_rate_m3_s: positive(
+            "drive.pumping_rate",
+            k.pumping_rate.si("drive.pumping_rate")?,
+            "m3/s",
+        )?,
+        on_time_s: positive("drive.on_time", k.on_time.si("drive.on_time")?, "s")?,
+        off_time_s: positive("drive.off_time", k.off_time.si("drive.off_time")?, "s")?,
+        backflow_volume_m3: volume,
+        drain_time_s,
+        cycles: k.cycles.unwrap_or(0),
+    };
+    let drained = 1.0 - (-p.off_time_s / p.drain_time_s).exp();
+    notes.insert(
+        0,
+        format!(
+            "drive: pump and backwash, pumping {} for {}, stopped for {} (a cycle every {}, \
+             {}); {} drains back at each stop with time constant {}, {:.1} % of it before the \
+             pump restarts",
+            format_si(p.pumping_rate_m3_s, Quantity::FlowRate),
+            format_si(p.on_time_s, Quantity::Time),
+            format_si(p.off_time_s, Quantity::Time),
+            format_si(p.period_s(), Quantity::Time),
+            match p.cycles {
+                0 => "for the whole run".to_owned(),
+                n => format!("{n} cycles, then recovery"),
+            },
+            format_si(p.backflow_volume_m3, Quantity::Volume),
+            format_si(p.drain_time_s, Quantity::Time),
+            100.0 * drained
+        ),
+    );
+    notes.extend(riser_note);
+    notes.push(
+        "pump and backwash: letting the column drain back through the pump is forbidden by \
+         some specifications; never restart a pump while its shaft still turns backwards, and \
+         follow the pump maker's limits on starts per hour"
+            .to_owned(),
+    );
+    Ok(ParsedDrive {
+        resolved: into_map(json!({
+            "pumping_rate": p.pumping_rate_m3_s,
+            "on_time": p.on_time_s,
+            "off_time": p.off_time_s,
+            "backflow_volume": p.backflow_volume_m3,
+            "drain_time": p.drain_time_s,
+            "cycles": p.cycles,
+        })),
+        drive: Drive::PumpBackwash(p),
+        notes,
+    })
+}
+
+/// Keys of `jet_pulse`.
+#[derive(Debug, Deserialize, JsonSchema)]
+#[serde(deny_unknown_fields)]
+pub struct JetPulseKeys {
+    /// Nozzle exit velocity (a velocity: "45 m/s", "150 ft/s").
+    pub nozzle_velocity: Q<Velocity>,
+    /// Fraction of the velocity head that reaches the screen, in (0, 1] [0.5, an
+    /// assumption with no source: calibrate it].
+    pub efficiency: Option<f64>,
+    /// Time for one turn of the jetting tool.
+    pub rotation_period: Q<Time>,
+    /// Number of nozzles on the ring, at least 1 [2].
+    pub nozzles: Option<u32>,
+    /// Width of the jet where it meets the screen [10 mm].
+    pub jet_width: Option<Q<Length>>,
+}
+
+/// Parser of the `jet_pulse` drive (registered in [`super::DRIVE_KINDS`]).
+pub fn jet_pulse(
+    map: Map<String, Value>,
+    ctx: &DriveContext<'_>,
+) -> Result<ParsedDrive, CaseError> {
+    let k: JetPulseKeys = read_keys(map)?;
+    let mut notes = Vec::new();
+    let efficiency = match k.efficiency {
+        Some(e) => e,
+        None => {
+            notes.push(format!(
+                "jet efficiency not given: {DEFAULT_JET_EFFICIENCY}, an assumption with no \
+                 source (the share of the nozzle's velocity head that reaches the screen); \
+                 calibrate it"
+            ));
+            DEFAULT_JET_EFFICIENCY
+        }
+    };
+    if !(efficiency > 0.0 && efficiency <= 1.0) {
+        return Err(CaseError::new(
+            "drive.efficiency",
+            format!("must be in (0, 1], got {efficiency}"),
+        ));
+    }
+    let nozzles = k.nozzles.unwrap_or(DEFAULT_NOZZLES);
+    if nozzles == 0 {
+        return Err(CaseError::new("drive.nozzles", "must be at least 1, got 0"));
+    }
+    let j = JetPulse {
+        nozzle_velocity_m_s: positive(
+            "drive.nozzle_velocity",
+            k.nozzle_velocity.si("drive.nozzle_velocity")?,
+            "m/s",
+        )?,
+        efficiency,
+        rotation_period_s: positive(
+            "drive.rotation_period",
+            k.rotation_period.si("drive.rotation_period")?,
+            "s",
+        )?,
+        nozzles,
+        jet_width_m: match &k.jet_width {
+            Some(q) => positive("drive.jet_width", q.si("drive.jet_width")?, "m")?,
+            None => DEFAULT_JET_WIDTH_M,
+        },
+        screen_radius_m: ctx.well.screen_radius_m,
+    };
+    let head = j.pulse_head_m();
+    notes.insert(
+        0,
+        format!(
+            "drive: jet pulses, nozzle velocity {}, efficiency {}: pulse head eta v^2/(2g) = \
+             {} ({}); {} nozzles turning once every {}: a pass every {} lasting {} (jet width \
+             {} on screen radius {})",
+            format_si(j.nozzle_velocity_m_s, Quantity::Velocity),
+            j.efficiency,
+            format_si(head, Quantity::Head),
+            format_si(head * ctx.density_kg_m3 * GRAVITY_M_S2, Quantity::Pressure),
+            j.nozzles,
+            format_si(j.rotation_period_s, Quantity::Time),
+            format_si(j.period_s(), Quantity::Time),
+            format_si(j.pulse_s(), Quantity::Time),
+            format_si(j.jet_width_m, Quantity::Length),
+            format_si(j.screen_radius_m, Quantity::Length),
+        ),
+    );
+    notes.push(
+        "jet_pulse: a one-dimensional radial model can only approximate a jet: it spreads each \
+         pass over the whole circumference and screen length, so the flow at the jet itself is \
+         understated and the whole screen is pulsed at once"
+            .to_owned(),
+    );
+    notes.push(
+        "jet_pulse: high-pressure jetting lines can injure; a jet held on one spot can cut a \
+         screen (thermoplastic above all) or wash out the pack; follow the specification, the \
+         pump and screen makers and site safety rules"
+            .to_owned(),
+    );
+    Ok(ParsedDrive {
+        resolved: into_map(json!({
+            "nozzle_velocity": j.nozzle_velocity_m_s,
+            "efficiency": j.efficiency,
+            "rotation_period": j.rotation_period_s,
+            "nozzles": j.nozzles,
+            "jet_width": j.jet_width_m,
+        })),
+        drive: Drive::JetPulse(j),
+        notes,
+    })
+}

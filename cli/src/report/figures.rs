@@ -1,0 +1,342 @@
+//! The report's figures: which quantities are plotted against what, in which units, with
+//! runs overlaid (one colour and dash pattern per run, the same in every figure).
+
+use super::format::{Shown, FLOW, FLUX, HEAD, NUMBER, SHEAR, SMALL_LENGTH};
+use super::read::{Run, Series as RunSeries};
+use super::svg::{render, Chart, Mark, Scale, SecondAxis, Series, Style};
+use super::{legend_name, run_letter};
+
+/// Head profiles drawn per run.
+const SNAPSHOTS_SHOWN: usize = 5;
+/// Cumulative work is drawn on a log axis when the zones' totals span more than this ratio.
+const WORK_LOG_RATIO: f64 = 1e3;
+/// Decades shown below the largest value on a log work axis.
+const WORK_LOG_DECADES: f64 = 10.0;
+
+/// Line styles of runs A, B, C, …: distinct colours and, for grey-scale prints, dashes.
+const RUN_STYLES: [Style; 6] = [
+    style("#1f5fa8", ""),
+    style("#c0392b", "8 4"),
+    style("#1e8449", "2 3"),
+    style("#7d3c98", "10 3 2 3"),
+    style("#b9770e", "5 2"),
+    style("#222222", "1 3"),
+];
+
+/// Line styles of the zones screen, pack, cake, invaded, formation.
+const ZONE_STYLES: [Style; 5] = [
+    style("#7f8c8d", "1 3"),
+    style("#b7950b", "8 4"),
+    style("#a04000", ""),
+    style("#7d3c98", "2 3"),
+    style("#1f5fa8", "10 3 2 3"),
+];
+
+const fn style(color: &'static str, dash: &'static str) -> Style {
+    Style {
+        color,
+        dash,
+        width: 1.6,
+    }
+}
+
+/// Style of run number `i` (from 0).
+pub fn run_style(i: usize) -> Style {
+    RUN_STYLES[i % RUN_STYLES.len()]
+}
+
+/// One figure: a title, a caption and one or more SVG charts.
+#[derive(Debug, Clone)]
+pub struct Figure {
+    /// Heading of the figure.
+    pub title: String,
+    /// What is shown and how to read it (plain text).
+    pub caption: String,
+    /// Rendered `<svg>` elements.
+    pub svgs: Vec<String>,
+}
+
+/// Time axis unit for runs ending at `end_s`: (label, factor from seconds).
+fn time_unit(end_s: f64) -> (&'static str, f64) {
+    if end_s > 3.0 * 3_600.0 {
+        ("h", 1.0 / 3_600.0)
+    } else if end_s > 600.0 {
+        ("min", 1.0 / 60.0)
+    } else {
+        ("s", 1.0)
+    }
+}
+
+/// Builds every figure the runs support.
+pub fn figures(runs: &[Run]) -> Vec<Figure> {
+    let end = runs
+        .iter()
+        .filter_map(|r| r.series.time.last().copied())
+        .fold(0.0, f64::max);
+    let (t_label, t_factor) = time_unit(end);
+    let time_axis = format!("Time [{t_label}]");
+    let mut ids = 0usize;
+    let mut next_id = || {
+        ids += 1;
+        format!("fig{ids}")
+    };
+    let mut time_chart =
+        |title: &str, quantity: &str, shown: Shown, get: fn(&RunSeries) -> &[f64]| {
+            let mut c = Chart::new(
+                &next_id(),
+                title,
+                &time_axis,
+                &axis_label(quantity, shown.si.label),
+            );
+            c.x_factor = t_factor;
+            c.y_factor = shown.si.per_si;
+            c.y2 = shown.us.map(|us| SecondAxis {
+                label: axis_label(quantity, us.label),
+                per_primary: us.per_si / shown.si.per_si,
+            });
+            for (i, run) in runs.iter().enumerate() {
+                c.series.push(Series {
+                    label: legend_name(i, run),
+                    x: &run.series.time,
+                    y: get(&run.series),
+                    style: run_style(i),
+                });
+            }
+            render(&c)
+        };
+    let decimated = "Long series are drawn from the lowest and highest value in each pixel \
+                     column, so peaks are kept.";
+    let mut out = vec![
+        Figure {
+            title: "In-well head and flow through the screen".into(),
+            caption: format!(
+                "Head in the well relative to the static level, and flow through the screen \
+                 (positive outward, from the well into the formation). {decimated}"
+            ),
+            svgs: vec![
+                time_chart("In-well head", "Head", HEAD, |s| &s.well_head),
+                time_chart("Flow through the screen (outward +)", "Flow", FLOW, |s| {
+                    &s.screen_flow
+                }),
+            ],
+        },
+        Figure {
+            title: "Darcy flux at the borehole wall".into(),
+            caption: "Darcy flux (flow per unit area) through the borehole wall r_b, positive \
+                      outward; the right axis gives the same flux as a loading rate."
+                .into(),
+            svgs: vec![time_chart(
+                "Darcy flux at the borehole wall (outward +)",
+                "Flux",
+                FLUX,
+                |s| &s.face_flux,
+            )],
+        },
+        Figure {
+            title: "Shear proxy at the borehole wall".into(),
+            caption: "Pore-scale shear proxy on the pack side of the wall, the quantity the \
+                      cake erosion law compares with its critical shear."
+                .into(),
+            svgs: vec![time_chart(
+                "Shear proxy, pack side of the wall",
+                "Shear",
+                SHEAR,
+                |s| &s.shear_proxy,
+            )],
+        },
+        Figure {
+            title: "Wall cake and skin".into(),
+            caption: "Cake thickness left on the borehole wall and the total skin referred to \
+                      the formation; both fall as development removes the cake."
+                .into(),
+            svgs: vec![
+                time_chart("Cake thickness", "Thickness", SMALL_LENGTH, |s| {
+                    &s.cake_thickness
+                }),
+                time_chart("Skin", "Skin", NUMBER, |s| &s.skin),
+            ],
+        },
+    ];
+    // Placed before "Wall cake and skin"; built here because `time_chart` holds `next_id`.
+    out.insert(
+        3,
+        Figure {
+            title: "Cumulative work dissipated per zone".into(),
+            caption: "Energy dissipated by flow in each zone since the start, one chart per \
+                      run. A logarithmic axis is used when the zones differ by more than a \
+                      factor of 1000."
+                .into(),
+            svgs: runs
+                .iter()
+                .enumerate()
+                .map(|(i, run)| work_chart(&next_id(), i, run, &time_axis, t_factor))
+                .collect(),
+        },
+    );
+    if runs.iter().any(|r| !r.cycles.index.is_empty()) {
+        out.push(cycle_figure(runs, &mut next_id));
+    }
+    if runs.iter().any(|r| !r.snapshots.time.is_empty()) {
+        out.push(Figure {
+            title: "Head against radius".into(),
+            caption: format!(
+                "Head profiles at up to {SNAPSHOTS_SHOWN} of the stored times, one chart per \
+                 run, on a logarithmic radius axis; dashed lines mark the screen r_s and the \
+                 borehole wall r_b."
+            ),
+            svgs: runs
+                .iter()
+                .enumerate()
+                .filter(|(_, r)| !r.snapshots.time.is_empty())
+                .map(|(i, run)| profile_chart(&next_id(), i, run))
+                .collect(),
+        });
+    }
+    out
+}
+
+fn axis_label(quantity: &str, unit: &str) -> String {
+    if unit.is_empty() {
+        format!("{quantity} [–]")
+    } else {
+        format!("{quantity} [{unit}]")
+    }
+}
+
+fn work_chart(id: &str, i: usize, run: &Run, time_axis: &str, t_factor: f64) -> String {
+    let title = format!("Cumulative work per zone, run {}", run_letter(i));
+    let mut c = Chart::new(id, &title, time_axis, "Work [J]");
+    c.x_factor = t_factor;
+    let finals: Vec<f64> = run
+        .series
+        .work
+        .iter()
+        .filter_map(|(_, w)| w.last().copied())
+        .filter(|&w| w > 0.0)
+        .collect();
+    let hi = finals.iter().copied().fold(0.0, f64::max);
+    let lo = finals.iter().copied().fold(f64::INFINITY, f64::min);
+    if hi > 0.0 && hi / lo > WORK_LOG_RATIO {
+        c.y_scale = Scale::Log;
+        c.y_min = Some(hi * 10f64.powf(-WORK_LOG_DECADES));
+        c.title.push_str(" (log scale)");
+    }
+    for (zone, w) in &run.series.work {
+        let k = super::read::ZONES
+            .iter()
+            .position(|z| z == zone)
+            .unwrap_or(0);
+        let last = w.last().copied().unwrap_or(0.0);
+        let label = match c.y_min {
+            Some(_) if last <= 0.0 => format!("{zone} (zero, not drawn)"),
+            Some(floor) if last < floor => format!("{zone} (below the axis)"),
+            _ => (*zone).to_owned(),
+        };
+        c.series.push(Series {
+            label,
+            x: &run.series.time,
+            y: w,
+            style: ZONE_STYLES[k],
+        });
+    }
+    render(&c)
+}
+
+fn cycle_figure(runs: &[Run], next_id: &mut impl FnMut() -> String) -> Figure {
+    // Cycle numbers from 1 for display (the file counts from 0).
+    let numbers: Vec<Vec<f64>> = runs
+        .iter()
+        .map(|r| r.cycles.index.iter().map(|k| k + 1.0).collect())
+        .collect();
+    let mut chart = |title: &str, quantity: &str, shown: Shown, get: fn(&Run) -> &[f64]| {
+        let mut c = Chart::new(
+            &next_id(),
+            title,
+            "Cycle number",
+            &axis_label(quantity, shown.si.label),
+        );
+        c.y_factor = shown.si.per_si;
+        c.y2 = shown.us.map(|us| SecondAxis {
+            label: axis_label(quantity, us.label),
+            per_primary: us.per_si / shown.si.per_si,
+        });
+        for (i, run) in runs.iter().enumerate() {
+            c.series.push(Series {
+                label: legend_name(i, run),
+                x: &numbers[i],
+                y: get(run),
+                style: run_style(i),
+            });
+        }
+        render(&c)
+    };
+    Figure {
+        title: "Per-cycle peaks and work".into(),
+        caption: "Largest outward and inward Darcy flux at the wall in each complete cycle \
+                  (inward as a magnitude), and the work dissipated in the cake per cycle."
+            .into(),
+        svgs: vec![
+            chart("Peak outward flux per cycle", "Flux", FLUX, |r| {
+                &r.cycles.peak_outward_flux
+            }),
+            chart(
+                "Peak inward flux per cycle (magnitude)",
+                "Flux",
+                FLUX,
+                |r| &r.cycles.peak_inward_flux,
+            ),
+            chart(
+                "Work dissipated in the cake per cycle",
+                "Work",
+                super::format::ENERGY,
+                |r| &r.cycles.work_cake,
+            ),
+        ],
+    }
+}
+
+fn profile_chart(id: &str, i: usize, run: &Run) -> String {
+    let title = format!("Head against radius, run {}", run_letter(i));
+    let mut c = Chart::new(
+        id,
+        &title,
+        "Radius from the well axis [m] (log scale)",
+        "Head [m]",
+    );
+    c.x_scale = Scale::Log;
+    c.y2 = HEAD.us.map(|us| SecondAxis {
+        label: format!("Head [{}]", us.label),
+        per_primary: us.per_si,
+    });
+    if let Some(rs) = run.screen_radius() {
+        c.marks.push(Mark {
+            x: rs,
+            label: "screen r_s".into(),
+        });
+    }
+    if let Some(rb) = run.borehole_radius() {
+        c.marks.push(Mark {
+            x: rb,
+            label: "borehole wall r_b".into(),
+        });
+    }
+    let s = run.snapshots.time.len();
+    let rows: Vec<usize> = if s <= SNAPSHOTS_SHOWN {
+        (0..s).collect()
+    } else {
+        let mut v: Vec<usize> = (0..SNAPSHOTS_SHOWN)
+            .map(|k| (k * (s - 1) + (SNAPSHOTS_SHOWN - 1) / 2) / (SNAPSHOTS_SHOWN - 1))
+            .collect();
+        v.dedup();
+        v
+    };
+    for (k, &row) in rows.iter().enumerate() {
+        c.series.push(Series {
+            label: format!("t = {}", super::format::duration(run.snapshots.time[row])),
+            x: &run.grid.r_center,
+            y: &run.snapshots.head[row],
+            style: RUN_STYLES[k % RUN_STYLES.len()],
+        });
+    }
+    render(&c)
+}

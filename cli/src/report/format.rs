@@ -1,0 +1,270 @@
+//! Numbers and units as the report shows them: SI first, the common US unit in brackets
+//! where practitioners use one (m³/s and gpm, m and ft, Pa and psi).
+//!
+//! The run file holds SI base units only; every conversion to a display unit happens here.
+//! US conversion factors are exact by definition (NIST SP 811, 2008 edition, Appendix B):
+//!
+//! ```text
+//! 1 ft = 0.3048 m            1 in = 0.0254 m
+//! 1 US gal = 3.785411784e-3 m³
+//! 1 psi = 1 lbf/in² = 0.45359237 kg × 9.80665 m/s² / (0.0254 m)² ≈ 6894.757 Pa
+//! ```
+
+/// Metres per foot.
+pub const FT_M: f64 = 0.3048;
+/// Metres per inch.
+pub const IN_M: f64 = 0.0254;
+/// Cubic metres per US gallon.
+pub const US_GAL_M3: f64 = 3.785_411_784e-3;
+/// Pascals per psi (pound-force per square inch).
+pub const PSI_PA: f64 = 0.453_592_37 * 9.806_65 / (IN_M * IN_M);
+/// Seconds per day.
+const DAY_S: f64 = 86_400.0;
+
+/// One display unit: its label and how many of it make one SI base unit.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Unit {
+    /// Label, e.g. `"mm/s"`.
+    pub label: &'static str,
+    /// Display value = SI value × `per_si`.
+    pub per_si: f64,
+}
+
+/// How a quantity is shown: an SI display unit and, optionally, a US unit in brackets.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Shown {
+    /// The SI (or SI-prefixed) unit shown first.
+    pub si: Unit,
+    /// The unit in brackets, when practitioners use one.
+    pub us: Option<Unit>,
+}
+
+const fn unit(label: &'static str, per_si: f64) -> Unit {
+    Unit { label, per_si }
+}
+
+const fn shown(si: Unit, us: Option<Unit>) -> Shown {
+    Shown { si, us }
+}
+
+/// Head and lengths of metres: m (ft).
+pub const HEAD: Shown = shown(unit("m", 1.0), Some(unit("ft", 1.0 / FT_M)));
+/// Small lengths (cake, grains, slots): mm (in).
+pub const SMALL_LENGTH: Shown = shown(unit("mm", 1e3), Some(unit("in", 1.0 / IN_M)));
+/// Volumetric flow: L/s (gpm, US gallons per minute).
+pub const FLOW: Shown = shown(unit("L/s", 1e3), Some(unit("gpm", 60.0 / US_GAL_M3)));
+/// Darcy flux through the borehole wall: mm/s (gpd/ft², US gallons per day per square foot).
+pub const FLUX: Shown = shown(
+    unit("mm/s", 1e3),
+    Some(unit("gpd/ft²", DAY_S * FT_M * FT_M / US_GAL_M3)),
+);
+/// Pore velocity: mm/s (ft/min).
+pub const PORE_VELOCITY: Shown = shown(unit("mm/s", 1e3), Some(unit("ft/min", 60.0 / FT_M)));
+/// Screen slot (entrance) velocity: m/s (ft/s).
+pub const SLOT_VELOCITY: Shown = shown(unit("m/s", 1.0), Some(unit("ft/s", 1.0 / FT_M)));
+/// Differential pressure on the screen: kPa (psi).
+pub const PRESSURE: Shown = shown(unit("kPa", 1e-3), Some(unit("psi", 1.0 / PSI_PA)));
+/// Shear proxy: Pa.
+pub const SHEAR: Shown = shown(unit("Pa", 1.0), None);
+/// Energy: J.
+pub const ENERGY: Shown = shown(unit("J", 1.0), None);
+/// Specific capacity: L/s per m of drawdown (gpm/ft).
+pub const SPECIFIC_CAPACITY: Shown = shown(
+    unit("L/s/m", 1e3),
+    Some(unit("gpm/ft", 60.0 / US_GAL_M3 * FT_M)),
+);
+/// Time: s.
+pub const TIME: Shown = shown(unit("s", 1.0), None);
+/// Hydraulic conductivity: m/s (ft/d).
+pub const CONDUCTIVITY: Shown = shown(unit("m/s", 1.0), Some(unit("ft/d", DAY_S / FT_M)));
+/// Specific storage: 1/m.
+pub const SPECIFIC_STORAGE: Shown = shown(unit("1/m", 1.0), None);
+/// Frequency: Hz (strokes per minute).
+pub const FREQUENCY: Shown = shown(unit("Hz", 1.0), Some(unit("/min", 60.0)));
+/// Area (well-bore storage): m² (ft²).
+pub const AREA: Shown = shown(unit("m²", 1.0), Some(unit("ft²", 1.0 / (FT_M * FT_M))));
+/// Cake erodibility: m/(s·Pa).
+pub const ERODIBILITY: Shown = shown(unit("m/(s·Pa)", 1.0), None);
+/// Forchheimer coefficient: s²/m².
+pub const FORCHHEIMER_BETA: Shown = shown(unit("s²/m²", 1.0), None);
+/// A dimensionless number.
+pub const NUMBER: Shown = shown(unit("", 1.0), None);
+
+/// `value` with about three significant digits: fixed notation from 0.001 to 10⁵,
+/// otherwise `1.23×10⁻⁵` (HTML-safe text).
+pub fn sig(value: f64) -> String {
+    if !value.is_finite() {
+        return if value.is_nan() {
+            "n/a".to_owned()
+        } else if value > 0.0 {
+            "∞".to_owned()
+        } else {
+            "−∞".to_owned()
+        };
+    }
+    if value == 0.0 {
+        return "0".to_owned();
+    }
+    let mag = value.abs().log10().floor() as i32;
+    if (-3..5).contains(&mag) {
+        let decimals = (2 - mag).max(0) as usize;
+        format!("{value:.decimals$}")
+    } else {
+        let s = format!("{value:.2e}");
+        let (mantissa, exp) = s.split_once('e').expect("exponent format");
+        format!("{mantissa}×10{}", superscript(exp))
+    }
+}
+
+/// A whole number, e.g. a count of cells or steps.
+pub fn count(value: f64) -> String {
+    if value.is_finite() && value.fract() == 0.0 {
+        format!("{value:.0}")
+    } else {
+        sig(value)
+    }
+}
+
+/// `value` (SI) in the SI display unit with the US unit in brackets:
+/// `1.20 mm/s (2540 gpd/ft²)`.
+pub fn with_units(value: f64, s: &Shown) -> String {
+    let mut out = join(sig(value * s.si.per_si), s.si.label);
+    if let Some(us) = s.us {
+        out.push_str(&format!(" ({})", join(sig(value * us.per_si), us.label)));
+    }
+    out
+}
+
+/// Start and end values (SI) as `3.00 → 2.39 mm (0.118 → 0.0941 in)`.
+pub fn change(start: f64, end: f64, s: &Shown) -> String {
+    let pair = |u: &Unit| {
+        join(
+            format!("{} → {}", sig(start * u.per_si), sig(end * u.per_si)),
+            u.label,
+        )
+    };
+    let mut out = pair(&s.si);
+    if let Some(us) = &s.us {
+        out.push_str(&format!(" ({})", pair(us)));
+    }
+    out
+}
+
+/// A time in seconds, with minutes or hours in brackets when long: `300 s (5.00 min)`.
+pub fn duration(seconds: f64) -> String {
+    let base = format!("{} s", sig(seconds));
+    if seconds.abs() >= 7_200.0 {
+        format!("{base} ({} h)", sig(seconds / 3_600.0))
+    } else if seconds.abs() >= 120.0 {
+        format!("{base} ({} min)", sig(seconds / 60.0))
+    } else {
+        base
+    }
+}
+
+/// Absolute temperature as `286 K (13.0 °C)`.
+pub fn temperature(kelvin: f64) -> String {
+    format!("{} K ({} °C)", sig(kelvin), sig(kelvin - 273.15))
+}
+
+/// The unit encoded in a `/summary` attribute name suffix (`peak_shear_pa` → Pa), and how
+/// the report shows it. `None`: dimensionless or unknown suffix.
+pub fn summary_unit(name: &str) -> Option<Shown> {
+    const SUFFIXES: [(&str, Shown); 9] = [
+        ("_m3_s", FLOW),
+        ("_m2_s", SPECIFIC_CAPACITY),
+        ("_m_s", FLUX),
+        ("_pa", PRESSURE),
+        ("_j", ENERGY),
+        ("_w", shown(unit("W", 1.0), None)),
+        (
+            "_m3",
+            shown(unit("m³", 1.0), Some(unit("US gal", 1.0 / US_GAL_M3))),
+        ),
+        ("_m", HEAD),
+        ("_s", TIME),
+    ];
+    SUFFIXES
+        .iter()
+        .find(|(suffix, _)| name.ends_with(suffix))
+        .map(|(_, s)| *s)
+}
+
+fn join(number: String, label: &str) -> String {
+    if label.is_empty() {
+        number
+    } else if label.starts_with('/') {
+        format!("{number}{label}")
+    } else {
+        format!("{number} {label}")
+    }
+}
+
+/// `-5` → `⁻⁵`.
+pub fn superscript(exp: &str) -> String {
+    exp.trim_start_matches('+')
+        .chars()
+        .map(|c| match c {
+            '-' => '⁻',
+            '0' => '⁰',
+            '1' => '¹',
+            '2' => '²',
+            '3' => '³',
+            '4' => '⁴',
+            '5' => '⁵',
+            '6' => '⁶',
+            '7' => '⁷',
+            '8' => '⁸',
+            '9' => '⁹',
+            other => other,
+        })
+        .collect()
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn sig_works() {
+        assert_eq!(sig(0.0), "0");
+        assert_eq!(sig(1.0), "1.00");
+        assert_eq!(sig(12.345), "12.3");
+        assert_eq!(sig(-0.012345), "-0.0123");
+        assert_eq!(sig(24_140.0), "24140");
+        assert_eq!(sig(4.1662e-7), "4.17×10⁻⁷");
+        assert_eq!(sig(3.2e12), "3.20×10¹²");
+        assert_eq!(sig(f64::NAN), "n/a");
+        assert_eq!(count(19_802.0), "19802");
+    }
+
+    #[test]
+    fn conversions_match_definitions() {
+        // NIST SP 811 (2008) Appendix B: 1 psi = 6.894 757 E+03 Pa (from memory).
+        assert!((PSI_PA - 6_894.757).abs() < 1e-3);
+        // Same appendix: 1 US gal/min = 6.309 020 E-05 m³/s (from memory).
+        assert!((FLOW.us.unwrap().per_si - 1.0 / 6.309_020e-5).abs() < 0.01);
+        assert_eq!(with_units(0.01, &FLOW), "10.0 L/s (159 gpm)");
+        assert_eq!(with_units(1.5, &HEAD), "1.50 m (4.92 ft)");
+        assert_eq!(
+            change(3e-3, 2e-3, &SMALL_LENGTH),
+            "3.00 → 2.00 mm (0.118 → 0.0787 in)"
+        );
+        assert_eq!(with_units(0.5, &FREQUENCY), "0.500 Hz (30.0/min)");
+        assert_eq!(duration(300.0), "300 s (5.00 min)");
+        assert_eq!(temperature(286.15), "286 K (13.0 °C)");
+    }
+
+    #[test]
+    fn summary_unit_works() {
+        assert_eq!(summary_unit("peak_outward_flux_m_s"), Some(FLUX));
+        assert_eq!(summary_unit("peak_screen_flow_m3_s"), Some(FLOW));
+        assert_eq!(
+            summary_unit("specific_capacity_end_m2_s"),
+            Some(SPECIFIC_CAPACITY)
+        );
+        assert_eq!(summary_unit("work_cake_j"), Some(ENERGY));
+        assert_eq!(summary_unit("outer_radius_m"), Some(HEAD));
+        assert_eq!(summary_unit("skin_end"), None);
+    }
+}

@@ -1,0 +1,143 @@
+//! `boreflux report`: a self-contained HTML report with inline SVG figures from one or more
+//! run files, compared side by side (one table column and one line style per run).
+//!
+//! The report reads only the HDF5 files that `boreflux run` writes (layout in DESIGN.md,
+//! "HDF5 layout"), never solver internals; the one thing taken from the solver crate is
+//! the caution text and the slot-velocity rule of thumb it quotes.
+//!
+//! ```text
+//! read.rs     run file → plain structs (Run), with errors naming the missing object
+//! format.rs   SI → display units, US units in brackets, number formatting
+//! svg.rs      line charts: axes with units, second axis, legend, reference lines
+//! ticks.rs    tick positions and labels, linear and log
+//! decimate.rs per-pixel-column reduction of long series
+//! figures.rs  which charts the report draws
+//! headline.rs the headline table (one column per run)
+//! tables.rs   cycle log, inputs
+//! html.rs     the page, escaping, the cautions box
+//! ```
+//!
+//! Nothing partial is left behind: the page is written to a hidden temporary file beside
+//! the destination and renamed over it only when complete.
+
+mod decimate;
+mod figures;
+mod format;
+mod headline;
+mod html;
+mod read;
+mod svg;
+mod tables;
+mod ticks;
+
+use std::path::{Path, PathBuf};
+
+use crate::output::{OutputError, TempTarget};
+use read::Run;
+
+/// Why a report could not be written.
+#[derive(Debug, thiserror::Error)]
+pub enum ReportError {
+    /// No run files were named.
+    #[error("no run files given; name one or more .h5 files written by `boreflux run`")]
+    NoInputs,
+    /// A run file is missing, not a boreflux result file, or lacks a dataset.
+    #[error("{}: {message}", path.display())]
+    Input {
+        /// The run file as given.
+        path: PathBuf,
+        /// What is wrong with it, naming the missing or bad object.
+        message: String,
+    },
+    /// The report file could not be written.
+    #[error("cannot write report {}: {source}", path.display())]
+    Write {
+        /// The report path.
+        path: PathBuf,
+        /// The underlying error.
+        #[source]
+        source: OutputError,
+    },
+}
+
+/// Reads every run file in `inputs` and writes the HTML report to `output`.
+///
+/// All inputs are read before anything is written; on any error no file appears at
+/// `output` (an existing file there is left as it was).
+pub fn write_report(inputs: &[PathBuf], output: &Path) -> Result<(), ReportError> {
+    if inputs.is_empty() {
+        return Err(ReportError::NoInputs);
+    }
+    let runs = inputs
+        .iter()
+        .map(|path| {
+            read::read_run(path).map_err(|message| ReportError::Input {
+                path: path.clone(),
+                message,
+            })
+        })
+        .collect::<Result<Vec<Run>, _>>()?;
+    let page = html::page(&runs);
+    let write_err = |source| ReportError::Write {
+        path: output.to_path_buf(),
+        source,
+    };
+    let mut target = TempTarget::new(output).map_err(write_err)?;
+    let tmp = target.tmp().to_path_buf();
+    std::fs::write(&tmp, page.as_bytes()).map_err(|source| {
+        write_err(OutputError::Io {
+            path: tmp.clone(),
+            source,
+        })
+    })?;
+    target.commit().map_err(write_err)
+}
+
+/// Letter naming run number `i` (from 0): A, B, …, Z, AA, AB, …
+pub(crate) fn run_letter(i: usize) -> String {
+    let mut n = i + 1;
+    let mut s = Vec::new();
+    while n > 0 {
+        let r = (n - 1) % 26;
+        s.push(b'A' + r as u8);
+        n = (n - 1) / 26;
+    }
+    s.reverse();
+    String::from_utf8(s).expect("ASCII letters")
+}
+
+/// The run's title, or its file name when the title is empty or missing.
+pub(crate) fn run_title(run: &Run) -> String {
+    match run.meta.title.as_deref().map(str::trim) {
+        Some(t) if !t.is_empty() => t.to_owned(),
+        _ => run.path.file_name().map_or_else(
+            || run.path.display().to_string(),
+            |n| n.to_string_lossy().into_owned(),
+        ),
+    }
+}
+
+/// Legend text of run `i`: `A: title`, shortened to fit a legend row.
+pub(crate) fn legend_name(i: usize, run: &Run) -> String {
+    const MAX_CHARS: usize = 48;
+    let title = run_title(run);
+    let short: String = if title.chars().count() > MAX_CHARS {
+        title.chars().take(MAX_CHARS - 1).chain(['…']).collect()
+    } else {
+        title
+    };
+    format!("{}: {short}", run_letter(i))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn run_letter_works() {
+        assert_eq!(run_letter(0), "A");
+        assert_eq!(run_letter(25), "Z");
+        assert_eq!(run_letter(26), "AA");
+        assert_eq!(run_letter(27), "AB");
+    }
+}

@@ -1,0 +1,429 @@
+//! Reads one run file (the HDF5 layout written by `boreflux run`) into plain structs.
+//!
+//! The report knows runs only through these files. A dataset the report draws from must
+//! exist with the documented shape and unit, or reading fails with a message naming the
+//! object (`missing dataset /series/face_flux`); `/summary` values may be absent one by one
+//! (the report then shows a dash). Series are read whole: one run of 10⁶ steps is about
+//! 8 MB per series.
+
+use std::collections::BTreeMap;
+use std::path::{Path, PathBuf};
+
+use hdf5::types::{TypeDescriptor, VarLenAscii, VarLenUnicode};
+use hdf5::{Attribute, File, Location};
+
+/// Zone names, inner to outer, as used in `/series/work/<zone>` and `/cycles/work_<zone>`.
+pub const ZONES: [&str; 5] = ["screen", "pack", "cake", "invaded", "formation"];
+
+/// Zone code of filter-pack cells in `/grid/zone`.
+pub const ZONE_CODE_PACK: i64 = 1;
+
+/// One run file, read.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Run {
+    /// The file as given on the command line.
+    pub path: PathBuf,
+    /// Root attributes.
+    pub meta: Meta,
+    /// The radial grid.
+    pub grid: Grid,
+    /// Per-step series.
+    pub series: Series,
+    /// Per-cycle values (empty for drives that are not periodic).
+    pub cycles: Cycles,
+    /// Head profiles.
+    pub snapshots: Snapshots,
+    /// The `/summary` group.
+    pub summary: Summary,
+}
+
+/// Root string attributes; `None` when absent.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct Meta {
+    /// `tool_version`.
+    pub tool_version: Option<String>,
+    /// `created_utc` (RFC 3339).
+    pub created_utc: Option<String>,
+    /// `title`.
+    pub title: Option<String>,
+    /// `description`.
+    pub description: Option<String>,
+    /// `case_json`: the resolved case in SI.
+    pub case_json: Option<String>,
+    /// `case_file`: the case path as given to `run`.
+    pub case_file: Option<String>,
+}
+
+/// `/grid`.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct Grid {
+    /// Node radii, m.
+    pub r_center: Vec<f64>,
+    /// Face radii, m (one more than nodes).
+    pub r_face: Vec<f64>,
+    /// Zone code per cell.
+    pub zone: Vec<i64>,
+}
+
+/// `/series`, all of the length of `time`.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct Series {
+    /// Time, s.
+    pub time: Vec<f64>,
+    /// In-well head, m.
+    pub well_head: Vec<f64>,
+    /// Flow through the screen, m³/s, outward positive.
+    pub screen_flow: Vec<f64>,
+    /// Darcy flux at the borehole wall, m/s, outward positive.
+    pub face_flux: Vec<f64>,
+    /// Shear proxy on the pack side of the wall, Pa.
+    pub shear_proxy: Vec<f64>,
+    /// Cake thickness, m.
+    pub cake_thickness: Vec<f64>,
+    /// Skin, –.
+    pub skin: Vec<f64>,
+    /// Cumulative work per zone present in the file, J, in [`ZONES`] order.
+    pub work: Vec<(&'static str, Vec<f64>)>,
+}
+
+/// `/cycles`, all of the length of `index`.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct Cycles {
+    /// Cycle number.
+    pub index: Vec<f64>,
+    /// Start, s.
+    pub start_time: Vec<f64>,
+    /// End, s.
+    pub end_time: Vec<f64>,
+    /// Peak outward face flux, m/s.
+    pub peak_outward_flux: Vec<f64>,
+    /// Peak inward face flux (magnitude), m/s.
+    pub peak_inward_flux: Vec<f64>,
+    /// RMS face flux, m/s.
+    pub rms_face_flux: Vec<f64>,
+    /// Peak shear proxy, Pa.
+    pub peak_shear: Vec<f64>,
+    /// Work dissipated in the cake during the cycle, J.
+    pub work_cake: Vec<f64>,
+    /// Cake thickness removed during the cycle, m.
+    pub cake_removed: Vec<f64>,
+}
+
+/// `/snapshots`.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct Snapshots {
+    /// Times, s.
+    pub time: Vec<f64>,
+    /// Cell heads, one row per time, m.
+    pub head: Vec<Vec<f64>>,
+}
+
+/// `/summary` attributes.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct Summary {
+    /// Numeric attributes by name (units in the name suffix).
+    pub values: BTreeMap<String, f64>,
+    /// `warnings`, one per line, blank lines dropped.
+    pub warnings: Vec<String>,
+    /// `cautions`.
+    pub cautions: Option<String>,
+    /// `efficiency_definition`.
+    pub efficiency_definition: Option<String>,
+}
+
+impl Summary {
+    /// A numeric summary value.
+    pub fn get(&self, name: &str) -> Option<f64> {
+        self.values.get(name).copied()
+    }
+}
+
+impl Run {
+    /// Borehole wall radius r_b, m: the outer face of the last filter-pack cell.
+    pub fn borehole_radius(&self) -> Option<f64> {
+        let last_pack = self.grid.zone.iter().rposition(|&z| z == ZONE_CODE_PACK)?;
+        self.grid.r_face.get(last_pack + 1).copied()
+    }
+
+    /// Screen radius r_s, m: the innermost face.
+    pub fn screen_radius(&self) -> Option<f64> {
+        self.grid.r_face.first().copied()
+    }
+}
+
+/// Reads the run file at `path`. The error text does not repeat the path.
+pub fn read_run(path: &Path) -> Result<Run, String> {
+    if !path.exists() {
+        return Err("no such file".to_owned());
+    }
+    let file = File::open(path)
+        .map_err(|e| format!("not a boreflux result file (cannot open it as HDF5: {e})"))?;
+    if !file.link_exists("series") || !file.link_exists("series/time") {
+        return Err("not a boreflux result file (no /series/time)".to_owned());
+    }
+    let series = read_series(&file)?;
+    Ok(Run {
+        path: path.to_path_buf(),
+        meta: read_meta(&file)?,
+        grid: read_grid(&file)?,
+        cycles: read_cycles(&file)?,
+        snapshots: read_snapshots(&file)?,
+        summary: read_summary(&file)?,
+        series,
+    })
+}
+
+fn read_meta(file: &File) -> Result<Meta, String> {
+    let s = |name: &str| string_attr(file, "/", name);
+    let mut case_json = s("case_json")?;
+    if case_json.is_none() && file.link_exists("case_json") {
+        // Older writers kept the case as a scalar string dataset.
+        let ds = file
+            .dataset("case_json")
+            .map_err(|e| format!("/case_json: {e}"))?;
+        case_json = Some(
+            ds.read_scalar::<VarLenUnicode>()
+                .map_err(|e| format!("/case_json: {e}"))?
+                .as_str()
+                .to_owned(),
+        );
+    }
+    Ok(Meta {
+        tool_version: s("tool_version")?,
+        created_utc: s("created_utc")?,
+        title: s("title")?,
+        description: s("description")?,
+        case_json,
+        case_file: s("case_file")?,
+    })
+}
+
+fn read_grid(file: &File) -> Result<Grid, String> {
+    let r_center = vector(file, "grid/r_center", "m")?;
+    let r_face = vector(file, "grid/r_face", "m")?;
+    let zone: Vec<i64> = vector(file, "grid/zone", "")?
+        .iter()
+        .map(|&z| z.round() as i64)
+        .collect();
+    if r_face.len() != r_center.len() + 1 {
+        return Err(format!(
+            "/grid/r_face has {} values, expected {} (one more than /grid/r_center)",
+            r_face.len(),
+            r_center.len() + 1
+        ));
+    }
+    same_length("/grid/zone", zone.len(), "/grid/r_center", r_center.len())?;
+    Ok(Grid {
+        r_center,
+        r_face,
+        zone,
+    })
+}
+
+fn read_series(file: &File) -> Result<Series, String> {
+    let time = vector(file, "series/time", "s")?;
+    let n = time.len();
+    let column = |name: &str, units: &str| -> Result<Vec<f64>, String> {
+        let path = format!("series/{name}");
+        let v = vector(file, &path, units)?;
+        same_length(&format!("/{path}"), v.len(), "/series/time", n)?;
+        Ok(v)
+    };
+    let mut work = Vec::new();
+    for zone in ZONES {
+        let path = format!("series/work/{zone}");
+        if file.link_exists("series/work") && file.link_exists(&path) {
+            work.push((zone, column(&format!("work/{zone}"), "J")?));
+        }
+    }
+    Ok(Series {
+        well_head: column("well_head", "m")?,
+        screen_flow: column("screen_flow", "m3/s")?,
+        face_flux: column("face_flux", "m/s")?,
+        shear_proxy: column("shear_proxy", "Pa")?,
+        cake_thickness: column("cake_thickness", "m")?,
+        skin: column("skin", "")?,
+        work,
+        time,
+    })
+}
+
+fn read_cycles(file: &File) -> Result<Cycles, String> {
+    let index = vector(file, "cycles/index", "")?;
+    let n = index.len();
+    let column = |name: &str, units: &str| -> Result<Vec<f64>, String> {
+        let path = format!("cycles/{name}");
+        let v = vector(file, &path, units)?;
+        same_length(&format!("/{path}"), v.len(), "/cycles/index", n)?;
+        Ok(v)
+    };
+    Ok(Cycles {
+        start_time: column("start_time", "s")?,
+        end_time: column("end_time", "s")?,
+        peak_outward_flux: column("peak_outward_flux", "m/s")?,
+        peak_inward_flux: column("peak_inward_flux", "m/s")?,
+        rms_face_flux: column("rms_face_flux", "m/s")?,
+        peak_shear: column("peak_shear", "Pa")?,
+        work_cake: column("work_cake", "J")?,
+        cake_removed: column("cake_removed", "m")?,
+        index,
+    })
+}
+
+fn read_snapshots(file: &File) -> Result<Snapshots, String> {
+    let time = vector(file, "snapshots/time", "s")?;
+    let path = "snapshots/head";
+    if !file.link_exists(path) {
+        return Err(format!("missing dataset /{path}"));
+    }
+    let ds = file.dataset(path).map_err(|e| format!("/{path}: {e}"))?;
+    let shape = ds.shape();
+    if shape.len() != 2 {
+        return Err(format!(
+            "/{path}: expected 2-D (time × cell), found shape {shape:?}"
+        ));
+    }
+    same_length(
+        "/snapshots/head rows",
+        shape[0],
+        "/snapshots/time",
+        time.len(),
+    )?;
+    check_units(&ds, path, "m")?;
+    let head = if shape[0] == 0 {
+        Vec::new()
+    } else {
+        let m = ds
+            .read_2d::<f64>()
+            .map_err(|e| format!("/{path}: cannot read: {e}"))?;
+        m.outer_iter().map(|row| row.to_vec()).collect()
+    };
+    Ok(Snapshots { time, head })
+}
+
+fn read_summary(file: &File) -> Result<Summary, String> {
+    if !file.link_exists("summary") {
+        return Err("missing group /summary (the run may not have finished)".to_owned());
+    }
+    let group = file
+        .group("summary")
+        .map_err(|e| format!("/summary: {e}"))?;
+    let names = group
+        .attr_names()
+        .map_err(|e| format!("/summary: cannot list attributes: {e}"))?;
+    let mut summary = Summary::default();
+    for name in names {
+        let attr = group
+            .attr(&name)
+            .map_err(|e| format!("/summary attribute {name}: {e}"))?;
+        let what = |e: hdf5::Error| format!("/summary attribute {name}: {e}");
+        match attr.dtype().and_then(|t| t.to_descriptor()).map_err(what)? {
+            TypeDescriptor::Float(_) | TypeDescriptor::Integer(_) | TypeDescriptor::Unsigned(_) => {
+                let v = attr.read_scalar::<f64>().map_err(what)?;
+                summary.values.insert(name, v);
+            }
+            TypeDescriptor::VarLenUnicode | TypeDescriptor::VarLenAscii => {
+                let text = read_string(&attr).map_err(what)?;
+                match name.as_str() {
+                    "warnings" => {
+                        summary.warnings = text
+                            .lines()
+                            .map(str::trim)
+                            .filter(|l| !l.is_empty())
+                            .map(str::to_owned)
+                            .collect();
+                    }
+                    "cautions" => summary.cautions = Some(text),
+                    "efficiency_definition" => summary.efficiency_definition = Some(text),
+                    _ => {}
+                }
+            }
+            _ => {}
+        }
+    }
+    Ok(summary)
+}
+
+/// A 1-D dataset as `f64`, with its `units` attribute checked against `units` ("" for a
+/// dimensionless quantity, which accepts "", "1" and "-").
+fn vector(file: &File, path: &str, units: &str) -> Result<Vec<f64>, String> {
+    let (group, _) = path.split_once('/').unwrap_or(("", path));
+    if (!group.is_empty() && !file.link_exists(group)) || !file.link_exists(path) {
+        return Err(format!("missing dataset /{path}"));
+    }
+    let ds = file.dataset(path).map_err(|e| format!("/{path}: {e}"))?;
+    let shape = ds.shape();
+    if shape.len() != 1 {
+        return Err(format!(
+            "/{path}: expected a 1-D dataset, found shape {shape:?}"
+        ));
+    }
+    check_units(&ds, path, units)?;
+    ds.read_raw::<f64>()
+        .map_err(|e| format!("/{path}: cannot read as numbers: {e}"))
+}
+
+/// Fails when the dataset's `units` attribute names another unit than the layout says
+/// (a wrong unit would scale every figure wrongly). A missing attribute is accepted.
+fn check_units(loc: &Location, path: &str, expected: &str) -> Result<(), String> {
+    let Some(found) = string_attr(loc, &format!("/{path}"), "units")? else {
+        return Ok(());
+    };
+    let norm = |u: &str| {
+        let u: String = u
+            .chars()
+            .filter(|c| !c.is_whitespace() && *c != '^')
+            .map(|c| match c {
+                '³' => '3',
+                '²' => '2',
+                c => c,
+            })
+            .collect();
+        if u == "1" || u == "-" {
+            String::new()
+        } else {
+            u
+        }
+    };
+    if norm(&found) == norm(expected) {
+        Ok(())
+    } else {
+        Err(format!(
+            "/{path} has units \"{found}\", the report expects \"{expected}\""
+        ))
+    }
+}
+
+fn same_length(what: &str, n: usize, reference: &str, expected: usize) -> Result<(), String> {
+    if n == expected {
+        Ok(())
+    } else {
+        Err(format!(
+            "{what} has {n} values but {reference} has {expected}"
+        ))
+    }
+}
+
+/// A string attribute of `loc`, or `None` when it does not exist.
+fn string_attr(loc: &Location, object: &str, name: &str) -> Result<Option<String>, String> {
+    let names = loc
+        .attr_names()
+        .map_err(|e| format!("{object}: cannot list attributes: {e}"))?;
+    if !names.iter().any(|n| n == name) {
+        return Ok(None);
+    }
+    let attr = loc
+        .attr(name)
+        .map_err(|e| format!("{object} attribute {name}: {e}"))?;
+    read_string(&attr)
+        .map(Some)
+        .map_err(|e| format!("{object} attribute {name}: {e}"))
+}
+
+fn read_string(attr: &Attribute) -> hdf5::Result<String> {
+    match attr.dtype()?.to_descriptor()? {
+        TypeDescriptor::VarLenUnicode => Ok(attr.read_scalar::<VarLenUnicode>()?.as_str().into()),
+        TypeDescriptor::VarLenAscii => Ok(attr.read_scalar::<VarLenAscii>()?.as_str().into()),
+        other => Err(format!("expected a string, found {other}").into()),
+    }
+}

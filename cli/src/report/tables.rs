@@ -1,0 +1,306 @@
+//! The per-cycle log and the inputs table (from `case_json`), as HTML with every
+//! file-derived text escaped.
+
+use std::fmt::Write;
+
+use serde_json::Value;
+
+use super::format::{
+    count, duration, sig, temperature, with_units, Shown, AREA, CONDUCTIVITY, ERODIBILITY, FLOW,
+    FORCHHEIMER_BETA, FREQUENCY, HEAD, NUMBER, PRESSURE, SHEAR, SMALL_LENGTH, SPECIFIC_STORAGE,
+};
+use super::html::esc;
+use super::read::Run;
+use super::run_letter;
+
+/// Cycle-log rows shown at the start and at the end of a long run.
+const CYCLE_ROWS_EACH_END: usize = 10;
+
+/// Opens a comparison table: a first header cell and one column per run.
+pub fn header_row(runs: &[Run], first: &str) -> String {
+    let mut t = format!(r#"<table class="compare"><thead><tr><th scope="col">{first}</th>"#);
+    for i in 0..runs.len() {
+        let _ = write!(t, r#"<th scope="col">Run {}</th>"#, run_letter(i));
+    }
+    t.push_str("</tr></thead><tbody>");
+    t
+}
+
+/// The per-cycle log of one run, or `None` without cycles. Long logs show the first and
+/// last cycles.
+pub fn cycle_log(run: &Run) -> Option<String> {
+    let c = &run.cycles;
+    let n = c.index.len();
+    if n == 0 {
+        return None;
+    }
+    let mut t = String::from(
+        r#"<table class="cycles"><thead><tr><th scope="col">Cycle</th><th scope="col">Start – end [s]</th><th scope="col">Peak outward flux [mm/s]</th><th scope="col">Peak inward flux [mm/s]</th><th scope="col">RMS flux [mm/s]</th><th scope="col">Peak shear [Pa]</th><th scope="col">Work in cake [J]</th><th scope="col">Cake removed [mm]</th></tr></thead><tbody>"#,
+    );
+    let rows: Vec<usize> = if n <= 2 * CYCLE_ROWS_EACH_END + 1 {
+        (0..n).collect()
+    } else {
+        (0..CYCLE_ROWS_EACH_END)
+            .chain(n - CYCLE_ROWS_EACH_END..n)
+            .collect()
+    };
+    for (k, &i) in rows.iter().enumerate() {
+        if k == CYCLE_ROWS_EACH_END && rows.len() < n {
+            let _ = write!(
+                t,
+                r#"<tr><td colspan="8" class="gap">… {} cycles not shown (all are in /cycles of the run file) …</td></tr>"#,
+                n - rows.len()
+            );
+        }
+        let _ = write!(
+            t,
+            "<tr><td>{}</td><td>{} – {}</td><td>{}</td><td>{}</td><td>{}</td><td>{}</td><td>{}</td><td>{}</td></tr>",
+            count(c.index[i] + 1.0),
+            sig(c.start_time[i]),
+            sig(c.end_time[i]),
+            sig(c.peak_outward_flux[i] * 1e3),
+            sig(c.peak_inward_flux[i] * 1e3),
+            sig(c.rms_face_flux[i] * 1e3),
+            sig(c.peak_shear[i]),
+            sig(c.work_cake[i]),
+            sig(c.cake_removed[i] * 1e3),
+        );
+    }
+    t.push_str("</tbody></table>");
+    Some(t)
+}
+
+/// Inputs of every run from `case_json`, one column per run, grouped by section.
+pub fn inputs(runs: &[Run]) -> String {
+    const ORDER: [&str; 9] = [
+        "fluid",
+        "well",
+        "pack",
+        "cake",
+        "invaded",
+        "formation",
+        "drive",
+        "duration",
+        "numerics",
+    ];
+    let cases: Vec<Option<Value>> = runs
+        .iter()
+        .map(|r| {
+            r.meta
+                .case_json
+                .as_deref()
+                .and_then(|j| serde_json::from_str(j).ok())
+        })
+        .collect();
+    let mut sections: Vec<String> = ORDER.iter().map(|s| (*s).to_owned()).collect();
+    for case in cases.iter().flatten() {
+        if let Some(map) = case.as_object() {
+            for k in map.keys() {
+                if !sections.contains(k) && k != "title" && k != "description" {
+                    sections.push(k.clone());
+                }
+            }
+        }
+    }
+    let mut t = header_row(runs, "Input (resolved, SI; US in brackets)");
+    let ncols = runs.len() + 1;
+    for section in &sections {
+        // Union of the flattened keys of this section over all runs, in first-seen order.
+        let mut keys: Vec<String> = Vec::new();
+        let flat: Vec<Vec<(String, Value)>> = cases
+            .iter()
+            .map(|c| {
+                let mut out = Vec::new();
+                if let Some(v) = c.as_ref().and_then(|c| c.get(section)) {
+                    flatten(section, v, &mut out);
+                }
+                out
+            })
+            .collect();
+        for (k, _) in flat.iter().flatten() {
+            if !keys.contains(k) {
+                keys.push(k.clone());
+            }
+        }
+        if keys.is_empty() {
+            continue;
+        }
+        let _ = write!(
+            t,
+            r#"<tr class="section"><th colspan="{ncols}">{}</th></tr>"#,
+            esc(section)
+        );
+        for key in &keys {
+            let _ = write!(t, r#"<tr><th scope="row"><code>{}</code></th>"#, esc(key));
+            for (run_flat, case) in flat.iter().zip(&cases) {
+                let cell = match run_flat.iter().find(|(k, _)| k == key) {
+                    Some((_, v)) => input_value(key, v),
+                    None if case.is_none() => "case not readable".to_owned(),
+                    None => "—".to_owned(),
+                };
+                let _ = write!(t, "<td>{}</td>", esc(&cell));
+            }
+            t.push_str("</tr>");
+        }
+    }
+    t.push_str("</tbody></table>");
+    t
+}
+
+/// Nested objects become dotted keys: `cake.erosion.critical_shear`.
+fn flatten(prefix: &str, v: &Value, out: &mut Vec<(String, Value)>) {
+    match v {
+        Value::Object(map) => {
+            for (k, v) in map {
+                flatten(&format!("{prefix}.{k}"), v, out);
+            }
+        }
+        other => out.push((prefix.to_owned(), other.clone())),
+    }
+}
+
+/// One input value with its unit, from the key name (the case holds SI numbers).
+fn input_value(key: &str, v: &Value) -> String {
+    match v {
+        Value::Number(n) => {
+            let x = n.as_f64().unwrap_or(f64::NAN);
+            let name = key.rsplit('.').next().unwrap_or(key);
+            match input_unit(name) {
+                Some(InputUnit::Fixed(s)) => with_units(x, &s),
+                Some(InputUnit::Length) if x != 0.0 && x.abs() < 0.1 => {
+                    with_units(x, &SMALL_LENGTH)
+                }
+                Some(InputUnit::Length) => with_units(x, &HEAD),
+                Some(InputUnit::Time) => duration(x),
+                Some(InputUnit::Temperature) => temperature(x),
+                Some(InputUnit::Count) => count(x),
+                None => format!("{} (SI)", sig(x)),
+            }
+        }
+        Value::String(s) => s.clone(),
+        Value::Bool(b) => if *b { "yes" } else { "no" }.to_owned(),
+        Value::Null => "—".to_owned(),
+        other => {
+            let s = other.to_string();
+            if s.chars().count() > 80 {
+                format!("{}…", s.chars().take(80).collect::<String>())
+            } else {
+                s
+            }
+        }
+    }
+}
+
+enum InputUnit {
+    Fixed(Shown),
+    Length,
+    Time,
+    Temperature,
+    Count,
+}
+
+fn input_unit(name: &str) -> Option<InputUnit> {
+    use InputUnit::*;
+    let dimensionless = [
+        "porosity",
+        "open_area",
+        "coverage",
+        "sphericity",
+        "theta",
+        "safety_factor",
+        "poisson_ratio",
+        "dimension_ratio",
+        "conductivity_ratio",
+        "specific_gravity",
+        "inward_weight",
+        "outward_weight",
+        "coverage_exponent",
+        "discharge_coefficient",
+        "efficiency",
+    ];
+    let counts = [
+        "cells",
+        "steps_per_cycle",
+        "steps_per_decade",
+        "per_decade",
+        "startup_steps",
+        "output_every",
+        "ramp_cycles",
+        "points",
+    ];
+    Some(match name {
+        n if dimensionless.contains(&n) => Fixed(NUMBER),
+        n if counts.contains(&n) => Count,
+        "temperature" => Temperature,
+        "conductivity" => Fixed(CONDUCTIVITY),
+        "specific_storage" => Fixed(SPECIFIC_STORAGE),
+        "frequency" => Fixed(FREQUENCY),
+        "pumping_rate" | "pump_rate" | "rate" => Fixed(FLOW),
+        "critical_shear" => Fixed(SHEAR),
+        "collapse_rating" | "youngs_modulus" => Fixed(PRESSURE),
+        "erodibility" => Fixed(ERODIBILITY),
+        "forchheimer_beta" => Fixed(FORCHHEIMER_BETA),
+        "storage" => Fixed(AREA),
+        "duration" | "period" | "time_step" | "first_step" | "screen_loss" => Time,
+        n if n.ends_with("_time") => Time,
+        n if n.ends_with("radius")
+            || n.ends_with("length")
+            || n.ends_with("thickness")
+            || n.ends_with("width")
+            || n.ends_with("head")
+            || (n.len() > 1
+                && n.starts_with('d')
+                && n[1..].chars().all(|c| c.is_ascii_digit()))
+            || ["amplitude", "offset", "stroke", "submergence", "clearance"].contains(&n) =>
+        {
+            Length
+        }
+        _ => return None,
+    })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use serde_json::json;
+
+    #[test]
+    fn input_value_works() {
+        assert_eq!(
+            input_value("well.screen_radius", &json!(0.203)),
+            "0.203 m (0.666 ft)"
+        );
+        assert_eq!(
+            input_value("pack.d50", &json!(0.0017)),
+            "1.70 mm (0.0669 in)"
+        );
+        assert_eq!(
+            input_value("fluid.temperature", &json!(286.15)),
+            "286 K (13.0 °C)"
+        );
+        assert_eq!(input_value("numerics.cells", &json!("auto")), "auto");
+        assert_eq!(input_value("numerics.cells", &json!(120)), "120");
+        assert_eq!(input_value("drive.kind", &json!("sine_head")), "sine_head");
+        assert_eq!(input_value("drive.unknown_key", &json!(2.5)), "2.50 (SI)");
+        assert_eq!(input_value("duration", &json!(300)), "300 s (5.00 min)");
+        assert_eq!(input_value("drive.offset", &json!(0.0)), "0 m (0 ft)");
+        assert_eq!(
+            input_value("well.storage", &json!(0.1295)),
+            "0.130 m² (1.39 ft²)"
+        );
+        assert_eq!(input_value("drive.ramp", &json!(true)), "yes");
+    }
+
+    #[test]
+    fn flatten_works() {
+        let mut out = Vec::new();
+        flatten(
+            "cake",
+            &json!({"thickness": 0.003, "erosion": {"critical_shear": 1e-5}}),
+            &mut out,
+        );
+        let mut keys: Vec<_> = out.iter().map(|(k, _)| k.as_str()).collect();
+        keys.sort_unstable();
+        assert_eq!(keys, ["cake.erosion.critical_shear", "cake.thickness"]);
+    }
+}
