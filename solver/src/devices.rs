@@ -9,8 +9,10 @@ use crate::error::SolverError;
 use crate::water::GRAVITY_M_S2;
 use std::f64::consts::PI;
 
-/// Head difference below which the orifice laws are rounded off (keeps dQ/dΔh finite), m.
-const ORIFICE_ROUNDING_M: f64 = 1e-6;
+/// Head difference below which the orifice laws are rounded off, m: below it the leakage
+/// turns smoothly linear in Δh (keeps dQ/dΔh finite and Newton well behaved); above it the
+/// law differs from the square root by a relative ε/(2|Δh|).
+const ORIFICE_ROUNDING_M: f64 = 1e-4;
 
 /// Orifice flow `Cd A sign(Δ) sqrt(2g|Δ|)` from the side with the higher head, rounded off
 /// below 1e−6 m of head, m³/s; and its derivative with respect to Δ, m²/s.
@@ -170,11 +172,12 @@ impl SurgeBlock {
 /// then moves under its free-surface storage and the aquifer answers through the screen.
 /// The drawdown cannot exceed the submergence of the swab: as the in-well head approaches
 /// −submergence the column parts and the lifted rate falls smoothly to zero over the last
-/// 2 % of the submergence (`limited` reports it). On the downstroke nothing is lifted and
+/// 10 % of the submergence (`limited` reports it; the band keeps the Newton iteration
+/// smooth: a sharper cut-off makes it stall on the corner). On the downstroke nothing is lifted and
 /// the well recovers.
 ///
 /// ```text
-/// Q_dev = −A_cup U φ(H)   (upstroke),  0 (downstroke);   φ = smoothstep((H + s_m)/w),  w = 0.02 s_m
+/// Q_dev = −A_cup U φ(H)   (upstroke),  0 (downstroke);   φ = smoothstep((H + s_m)/w),  w = 0.1 s_m
 /// ```
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct Swab {
@@ -193,6 +196,10 @@ pub struct Swab {
     /// The lifting speed grows linearly from 0 over this many strokes.
     pub ramp_cycles: f64,
 }
+
+/// Width of the band over which a swab's lifted rate falls to zero, as a fraction of its
+/// submergence.
+const PARTING_BAND: f64 = 0.1;
 
 fn smoothstep(x: f64) -> (f64, f64) {
     if x <= 0.0 {
@@ -224,14 +231,14 @@ impl Swab {
         }
         let a = PI * self.cup_radius_m * self.cup_radius_m;
         let rate = a * self.lift_rate_m_s * ramp(t, self.period_s(), self.ramp_cycles);
-        let w = 0.02 * self.submergence_m;
+        let w = PARTING_BAND * self.submergence_m;
         let (phi, dphi) = smoothstep((h + self.submergence_m) / w);
         (-rate * phi, -rate * dphi / w)
     }
 
     /// True when the in-well head is inside the band where the column parts.
     pub fn limited(&self, h: f64) -> bool {
-        h < -0.98 * self.submergence_m
+        h < -(1.0 - PARTING_BAND) * self.submergence_m
     }
 
     pub(crate) fn events(&self, t: f64) -> Option<(f64, bool)> {

@@ -207,7 +207,7 @@ impl Default for Numerics {
             time: TimeSpec::Auto,
             theta: 0.5,
             startup_steps: 2,
-            newton_tolerance: 1e-11,
+            newton_tolerance: 5e-11,
             newton_max_iterations: 30,
             sync_times_s: Vec::new(),
         }

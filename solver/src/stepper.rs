@@ -50,6 +50,15 @@ fn max_abs(v: &[f64]) -> f64 {
     lanes.iter().fold(0.0, |a, &b| a.max(b))
 }
 
+/// The chord (reused) Jacobian is kept only while each iteration cuts the residual by at
+/// least this factor; slower contraction means the Jacobian has changed, so it is refactored.
+const CHORD_CONTRACTION: f64 = 1e-3;
+
+/// A Newton step of fraction λ is accepted only if it cuts the residual by at least
+/// this × λ (Armijo's condition); full steps that barely reduce it are the signature of
+/// Newton's cycling on square-root laws, and are halved.
+const SUFFICIENT_DECREASE: f64 = 0.25;
+
 /// Relative residual below which the backtracking stops comparing residuals.
 const BACKTRACK_ABOVE: f64 = 1e-8;
 
@@ -457,9 +466,12 @@ impl Stepper {
                 });
             }
         }
+        // Stop when the Newton correction is at round-off of the head: the residual itself
+        // cannot be driven below the round-off of the steep screen and orifice laws.
+        let tiny = |h: f64| 1e-15 * h.abs().max(1e-3);
         for _ in 0..ALGEBRAIC_MAX_ITERATIONS {
             let (v, d, scale) = f(h);
-            if v.abs() <= 1e-15 * scale || hi - lo <= ROUND_OFF_UPDATE * h.abs().max(1e-3) {
+            if v == 0.0 || v.abs() <= 1e-15 * scale || hi - lo <= tiny(h) {
                 return Ok(h);
             }
             if v < 0.0 {
@@ -468,11 +480,14 @@ impl Stepper {
                 hi = h;
             }
             let newton = h - v / d;
-            h = if newton > lo && newton < hi {
-                newton
+            if newton > lo && newton < hi {
+                if (newton - h).abs() <= tiny(h) {
+                    return Ok(newton);
+                }
+                h = newton;
             } else {
-                0.5 * (lo + hi)
-            };
+                h = 0.5 * (lo + hi);
+            }
         }
         Ok(h)
     }
@@ -584,13 +599,24 @@ impl Stepper {
         let open = usize::from(self.disc.outer_open);
         let mut residual = f64::INFINITY;
         let (mut last_update, mut head_scale) = (f64::INFINITY, 1e-3);
-        let (mut accepted_residual, mut lambda) = (f64::INFINITY, 1.0);
+        let (mut accepted_residual, mut accepted_worst, mut lambda) = (f64::INFINITY, f64::INFINITY, 1.0);
         // Chord iterations: the Jacobian is factored at the first iterate of the step and
-        // reused while the residual falls at least tenfold per iteration; otherwise it is
+        // reused while the residual falls at least a thousandfold per iteration; otherwise it is
         // refactored at the current iterate. (Reusing it across steps was tried: the
         // entrance and Forchheimer laws change enough within a cycle that it costs more
         // iterations than it saves.)
         let mut factored = false;
+        // A head-dependent device (orifice leakage, a swab near its submergence) makes the
+        // well row stiff and non-smooth. That row is solved exactly for y₀ given y₁ at every
+        // iterate, and eliminated from the Newton system: cell 1 sees the screen face and
+        // the well in series, g_eff = g₀ (s − dq)/(s + g₀ − dq), the exact derivative of
+        // the reduced system.
+        let eliminate_well = self.head_dependent && model.drive.control_at(t_theta) == Control::Flow;
+        if eliminate_well {
+            if let WellRow::Storage { s_over_tdt, .. } = self.well_row(model, tdt, theta, t_new, t_theta) {
+                self.y[0] = self.solve_well_row(model, t_theta, self.y[0], s_over_tdt, self.h[0], self.y[1])?;
+            }
+        }
         for iteration in 0..=self.newton_max_iterations {
             let well = self.well_row(model, tdt, theta, t_new, t_theta);
             // Face flows and derivatives, batched (faces 0..last, plus the outer one if open).
@@ -643,7 +669,9 @@ impl Stepper {
                     true
                 }
             };
-            let first = usize::from(matches!(well, WellRow::Fixed(_)));
+            // The prescribed head row, and an eliminated well row (solved to round-off by its
+            // own bracketed iteration), are not part of the Newton residual.
+            let first = usize::from(matches!(well, WellRow::Fixed(_)) || eliminate_well);
             let scale = max_abs(&self.scratch);
             let worst = max_abs(&self.rhs[first..]);
             residual = if scale > 0.0 { worst / scale } else { 0.0 };
@@ -679,10 +707,12 @@ impl Stepper {
             if iteration == self.newton_max_iterations {
                 break;
             }
-            // Backtracking: a full step that did not reduce the residual (Newton cycles on
+            // Backtracking: a step that did not reduce the residual enough (Newton cycles on
             // square-root laws such as an orifice near zero head) is halved, down to 1/64.
             // Near convergence the residual is round-off noise and is not compared.
-            if residual >= accepted_residual
+            // (The comparison uses the absolute residual: the flow scale of the relative one
+            // moves with the iterate.)
+            if worst >= (1.0 - SUFFICIENT_DECREASE * lambda) * accepted_worst
                 && residual > BACKTRACK_ABOVE
                 && lambda > MIN_STEP_FRACTION
             {
@@ -690,14 +720,18 @@ impl Stepper {
                 for ((y, &y0), &d) in self.y.iter_mut().zip(&self.y_prev).zip(&self.delta) {
                     *y = y0 + lambda * d;
                 }
-                if let WellRow::Fixed(v) = well {
-                    self.y[0] = v;
+                match well {
+                    WellRow::Fixed(v) => self.y[0] = v,
+                    WellRow::Storage { s_over_tdt, .. } if eliminate_well => {
+                        self.y[0] = self.solve_well_row(model, t_theta, self.y[0], s_over_tdt, self.h[0], self.y[1])?;
+                    }
+                    WellRow::Storage { .. } => {}
                 }
                 factored = false;
                 continue;
             }
             // Refactor unless the chord iteration is contracting fast.
-            if !factored || residual > 0.1 * accepted_residual {
+            if !factored || residual > CHORD_CONTRACTION * accepted_residual {
                 for j in 0..n {
                     self.diag[j] = if j == 0 {
                         0.0
@@ -722,6 +756,15 @@ impl Stepper {
                         self.diag[0] = 1.0;
                         self.upper[0] = 0.0;
                     }
+                    WellRow::Storage { s_over_tdt, dq, .. } if eliminate_well => {
+                        let g0 = self.face_g[0];
+                        let sw = s_over_tdt - dq;
+                        let g_eff = if sw + g0 > 0.0 { g0 * sw / (sw + g0) } else { 0.0 };
+                        self.diag[0] = 1.0;
+                        self.upper[0] = 0.0;
+                        self.lower[1] = 0.0;
+                        self.diag[1] += g_eff - g0;
+                    }
                     WellRow::Storage { s_over_tdt, dq, .. } => self.diag[0] += s_over_tdt - dq,
                 }
                 self.factored.factor(&self.lower, &self.diag, &self.upper)?;
@@ -730,7 +773,11 @@ impl Stepper {
             }
             // Until the prescribed well head is in place the residual is not comparable.
             accepted_residual = if fixed_ok { residual } else { f64::INFINITY };
+            accepted_worst = if fixed_ok { worst } else { f64::INFINITY };
             lambda = 1.0;
+            if eliminate_well {
+                self.rhs[0] = 0.0;
+            }
             self.factored.solve(&mut self.rhs);
             last_update = 0.0;
             head_scale = 1e-3;
@@ -743,9 +790,8 @@ impl Stepper {
             }
             match well {
                 WellRow::Fixed(v) => self.y[0] = v,
-                // The well row alone is solved exactly given the new y₁ (a nonlinear
-                // block Gauss–Seidel step), which keeps Newton off the orifice's cycle.
-                WellRow::Storage { s_over_tdt, .. } if self.head_dependent => {
+                // The eliminated well row is solved exactly for the new y₁.
+                WellRow::Storage { s_over_tdt, .. } if eliminate_well => {
                     self.y[0] = self.solve_well_row(
                         model, t_theta, self.y[0], s_over_tdt, self.h[0], self.y[1],
                     )?;
