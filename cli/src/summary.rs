@@ -149,8 +149,13 @@ pub struct Headline {
     pub peak_grain_reynolds: Option<f64>,
     /// Largest gradient on the formation side of the wall over Terzaghi's critical gradient.
     pub piping_ratio: Option<f64>,
-    /// Largest differential pressure pushing the screen inward (collapse direction), Pa.
+    /// Largest collapse load, Pa: the larger of the differential across the screen and the
+    /// in-well drawdown against static formation pressure.
     pub peak_collapse_pressure_pa: f64,
+    /// Largest differential pushing the screen inward (pack side over inside), Pa.
+    pub peak_screen_differential_pa: f64,
+    /// Largest in-well drawdown below the static level, m.
+    pub peak_in_well_drawdown_m: f64,
     /// Largest differential pressure pushing the screen outward, Pa.
     pub peak_burst_pressure_pa: f64,
     /// Rated or computed collapse pressure of the screen or casing, Pa.
@@ -208,7 +213,11 @@ pub fn headline(case: &LoadedCase, s: &RunSummary, t: &Tracker) -> Headline {
     if let Some(p) = piping.filter(|&p| p > 1.0) {
         warnings.push(format!("gradient at the borehole wall reaches {p:.2} × Terzaghi's critical gradient: grains there may be mobilised (an indicator for horizontal flow, not a heave criterion)"));
     }
-    let collapse_pa = s.peak_collapse_head_m * rho_g;
+    // Collapse load: the larger of the differential across the screen (pack side over
+    // inside) and the in-well drawdown below static, which loads the blank casing against
+    // the formation's undisturbed pore pressure.
+    let drawdown_m = (-s.well_head_range_m.0).max(0.0);
+    let collapse_pa = s.peak_collapse_head_m.max(drawdown_m) * rho_g;
     let sf = case.safety.safety_factor;
     let rating = case.safety.collapse_rating_pa.or_else(|| {
         let dr = case.safety.dimension_ratio?;
@@ -275,6 +284,8 @@ pub fn headline(case: &LoadedCase, s: &RunSummary, t: &Tracker) -> Headline {
         peak_grain_reynolds: reynolds,
         piping_ratio: piping,
         peak_collapse_pressure_pa: collapse_pa,
+        peak_screen_differential_pa: s.peak_collapse_head_m * rho_g,
+        peak_in_well_drawdown_m: drawdown_m,
         peak_burst_pressure_pa: s.peak_burst_head_m * rho_g,
         collapse_rating_pa: rating,
         collapse_margin: margin,
@@ -374,7 +385,7 @@ pub fn table(h: &Headline) -> String {
             .map_or("—".into(), |r| format!("{}", G(r, 3))),
     );
     row(
-        "peak collapse-direction pressure",
+        "peak collapse load (screen or casing)",
         format!(
             "{} kPa ({} psi)",
             G(h.peak_collapse_pressure_pa / 1e3, 4),

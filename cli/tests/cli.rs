@@ -773,6 +773,129 @@ fn run_rejects_unwritable_output_paths() {
     assert_eq!(std::fs::read_to_string(&plain).unwrap(), "not a folder");
 }
 
+/// Checks: `run` refuses (exit 2, one error line naming the path and the option to change,
+/// nothing written) output names that are the case file or a file the case reads: `--csv`
+/// beside `-o <table>.h5` for a table drive, `-o` naming the case itself, and a table read
+/// by a schedule stage reached through `..` (compared by canonical path); and `-o x.csv
+/// --csv`, where both outputs would be one file. A name that clashes with nothing still
+/// runs (exit 0) and leaves the inputs as they were.
+#[test]
+fn run_refuses_to_overwrite_its_inputs() {
+    // The shipped table-drive case and its CSV table (cases/irrigation-table.*).
+    let dir = tempfile::tempdir().unwrap();
+    for f in ["irrigation-table.json", "irrigation-table.csv"] {
+        std::fs::copy(cases_dir().join(f), dir.path().join(f)).unwrap();
+    }
+    let case_text = std::fs::read(dir.path().join("irrigation-table.json")).unwrap();
+    let table_text = std::fs::read(dir.path().join("irrigation-table.csv")).unwrap();
+    let inputs_unchanged = |what: &str| {
+        assert_eq!(
+            std::fs::read(dir.path().join("irrigation-table.json")).unwrap(),
+            case_text,
+            "{what}: case file changed"
+        );
+        assert_eq!(
+            std::fs::read(dir.path().join("irrigation-table.csv")).unwrap(),
+            table_text,
+            "{what}: table file changed"
+        );
+    };
+    let refusals: [(&[&str], &str, &str); 3] = [
+        (
+            &["-o", "irrigation-table.h5", "--csv"],
+            "irrigation-table.csv",
+            "--csv",
+        ),
+        (
+            &["-o", "irrigation-table.json"],
+            "irrigation-table.json",
+            "-o/--output",
+        ),
+        // Both outputs would be one file: the CSV name is the -o name with .csv.
+        (&["-o", "results.csv", "--csv"], "results.csv", "--csv"),
+    ];
+    for (args, named, flag) in refusals {
+        let o = output(
+            boreflux()
+                .current_dir(dir.path())
+                .args(["run", "irrigation-table.json", "-q"])
+                .args(args),
+        );
+        assert_code(&o, 2, &format!("{args:?}"));
+        let stderr = stderr_of(&o);
+        assert_no_panic(&stderr, named);
+        let errs = error_lines(&stderr);
+        assert_eq!(errs.len(), 1, "{args:?}: {stderr}");
+        assert!(
+            errs[0].contains(named) && errs[0].contains(flag),
+            "{args:?}: {}",
+            errs[0]
+        );
+        assert_eq!(
+            dir_entries(dir.path()),
+            ["irrigation-table.csv", "irrigation-table.json"],
+            "{args:?}"
+        );
+        inputs_unchanged(&format!("{args:?}"));
+    }
+
+    // A schedule whose first stage reads a table in the case's folder, run from the parent
+    // folder with an output name that reaches the same folder through `..`.
+    let mut case: Value = serde_json::from_slice(&case_text).unwrap();
+    let mut stage = case["drive"].clone();
+    stage["file"] = Value::from("stage.csv");
+    case["drive"] = serde_json::json!({
+        "kind": "schedule",
+        "stages": [
+            { "duration": "1 cycle", "drive": stage },
+            { "duration": "1 min", "drive": { "kind": "constant_rate", "pumping_rate": "10 L/s" } }
+        ]
+    });
+    case.as_object_mut().unwrap().remove("duration");
+    let top = tempfile::tempdir().unwrap();
+    let sub = top.path().join("sub");
+    std::fs::create_dir(&sub).unwrap();
+    std::fs::write(sub.join("staged.json"), case.to_string()).unwrap();
+    std::fs::write(sub.join("stage.csv"), &table_text).unwrap();
+    let o = output(boreflux().current_dir(top.path()).args([
+        "run",
+        "sub/staged.json",
+        "-o",
+        "sub/../sub/stage.h5",
+        "--csv",
+        "-q",
+    ]));
+    assert_code(&o, 2, "schedule stage table");
+    let errs = error_lines(&stderr_of(&o)).join("\n");
+    assert!(
+        errs.contains("sub/../sub/stage.csv") && errs.contains("--csv"),
+        "{errs}"
+    );
+    assert_eq!(dir_entries(&sub), ["stage.csv", "staged.json"]);
+    assert_eq!(std::fs::read(sub.join("stage.csv")).unwrap(), table_text);
+
+    // Control: the same case with names that clash with nothing runs and writes them.
+    let o = output(boreflux().current_dir(dir.path()).args([
+        "run",
+        "irrigation-table.json",
+        "-o",
+        "results.h5",
+        "--csv",
+        "-q",
+    ]));
+    assert_code(&o, 0, "non-clashing output names");
+    assert_eq!(
+        dir_entries(dir.path()),
+        [
+            "irrigation-table.csv",
+            "irrigation-table.json",
+            "results.csv",
+            "results.h5"
+        ]
+    );
+    inputs_unchanged("non-clashing output names");
+}
+
 /// Checks: usage errors (unknown subcommand, unknown flag, missing required option) exit
 /// 2 naming the offending word, and write nothing.
 #[test]
@@ -810,18 +933,21 @@ fn usage_errors_exit_2() {
 // 4. verify
 // ---------------------------------------------------------------------------------------
 
-/// Checks: `verify --json` parses and every entry passed; `verify` exits 0, its table has
-/// one `pass` row per check of every group of `boreflux_verify::groups()`, in order, and
-/// ends with `N passed, 0 failed`; each group's title is announced on stderr.
+/// Checks: `verify --json` parses and every entry passed, with `group` the id of the group
+/// that produced it; `verify` exits 0, its table has one `pass` row per check of every
+/// group of `boreflux_verify::groups()`, in order, with the group id in its second column,
+/// and ends with `N passed, 0 failed`; each group's title is announced on stderr.
 #[test]
 fn verify_passes_and_lists_every_group() {
     // Source: the verification crate's groups, run in-process; each must contribute checks.
     let groups = boreflux_verify::groups();
     let mut names: Vec<String> = Vec::new();
+    let mut ids: Vec<&str> = Vec::new();
     for g in &groups {
         let before = names.len();
         names.extend((g.run)().into_iter().map(|r| r.name));
         assert!(names.len() > before, "group {} has no checks", g.id);
+        ids.resize(names.len(), g.id);
     }
 
     let o = output(boreflux().args(["verify", "--json"]));
@@ -839,6 +965,14 @@ fn verify_passes_and_lists_every_group() {
         json_names, names,
         "checks in verify --json vs boreflux_verify::groups()"
     );
+    let json_groups: Vec<&str> = entries
+        .iter()
+        .map(|e| e["group"].as_str().unwrap())
+        .collect();
+    assert_eq!(
+        json_groups, ids,
+        "group of each check in verify --json vs boreflux_verify::groups() ids"
+    );
 
     let o = output(boreflux().arg("verify"));
     assert_code(&o, 0, "verify");
@@ -848,10 +982,15 @@ fn verify_passes_and_lists_every_group() {
         .filter(|l| l.starts_with("pass ") || l.starts_with("FAIL "))
         .collect();
     assert_eq!(rows.len(), names.len(), "rows in the table vs checks");
-    for (row, name) in rows.iter().zip(&names) {
+    for ((row, name), id) in rows.iter().zip(&names).zip(&ids) {
         assert!(
             row.starts_with("pass ") && row.contains(name.as_str()),
             "{row:?} vs {name:?}"
+        );
+        assert_eq!(
+            row.split_whitespace().nth(1),
+            Some(*id),
+            "group column of {row:?}"
         );
     }
     let last = out.lines().rev().find(|l| !l.trim().is_empty()).unwrap();

@@ -265,6 +265,12 @@ impl Drive {
         }
     }
 
+    /// True when a swab active at time t has drawn the well down into the band where its
+    /// column parts.
+    pub fn swab_limited(&self, t: f64, h_well_m: f64) -> bool {
+        matches!(self.stage_at(t).0, Drive::Swab(s) if s.limited(h_well_m))
+    }
+
     /// True when the device flow depends on the in-well head (then every step iterates).
     pub fn is_head_dependent(&self) -> bool {
         match self {

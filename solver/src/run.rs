@@ -10,7 +10,6 @@
 
 use crate::cake;
 use crate::diagnostics::{face_state, power_now, CycleAccumulator, StepObserver, StepView};
-use crate::drive::Drive;
 use crate::error::SolverError;
 use crate::grid::ZONE_COUNT;
 use crate::model::{Model, TimeSpec};
@@ -183,7 +182,13 @@ impl Clock {
             .copied()
             .unwrap_or(model.duration_s);
         let mut target = (sync, false);
-        if let Some((te, jump)) = model.drive.next_event_s(t) {
+        // Events are asked for just after t and must lie beyond it: a device whose period
+        // is not exact in floating point could otherwise return t itself and stall the clock.
+        if let Some((te, jump)) = model
+            .drive
+            .next_event_s(t + eps)
+            .filter(|&(te, _)| te > t + eps)
+        {
             if te < target.0 - eps {
                 target = (te, jump);
             } else if (te - target.0).abs() <= eps {
@@ -327,9 +332,7 @@ pub fn run(
             summary.well_head_range_m.0.min(h_well),
             summary.well_head_range_m.1.max(h_well),
         );
-        if let Drive::Swab(s) = &model.drive {
-            swab_limited |= s.limited(h_well);
-        }
+        swab_limited |= model.drive.swab_limited(st.time_s, h_well);
         summary.peak_outward_flux_m_s = summary.peak_outward_flux_m_s.max(face.flux_m_s);
         summary.peak_inward_flux_m_s = summary.peak_inward_flux_m_s.max(-face.flux_m_s);
         summary.peak_shear_pa = summary.peak_shear_pa.max(face.shear_pa);

@@ -599,7 +599,8 @@ impl Stepper {
         let open = usize::from(self.disc.outer_open);
         let mut residual = f64::INFINITY;
         let (mut last_update, mut head_scale) = (f64::INFINITY, 1e-3);
-        let (mut accepted_residual, mut accepted_worst, mut lambda) = (f64::INFINITY, f64::INFINITY, 1.0);
+        let (mut accepted_residual, mut accepted_worst, mut lambda) =
+            (f64::INFINITY, f64::INFINITY, 1.0);
         // Chord iterations: the Jacobian is factored at the first iterate of the step and
         // reused while the residual falls at least a thousandfold per iteration; otherwise it is
         // refactored at the current iterate. (Reusing it across steps was tried: the
@@ -611,10 +612,14 @@ impl Stepper {
         // iterate, and eliminated from the Newton system: cell 1 sees the screen face and
         // the well in series, g_eff = g₀ (s − dq)/(s + g₀ − dq), the exact derivative of
         // the reduced system.
-        let eliminate_well = self.head_dependent && model.drive.control_at(t_theta) == Control::Flow;
+        let eliminate_well =
+            self.head_dependent && model.drive.control_at(t_theta) == Control::Flow;
         if eliminate_well {
-            if let WellRow::Storage { s_over_tdt, .. } = self.well_row(model, tdt, theta, t_new, t_theta) {
-                self.y[0] = self.solve_well_row(model, t_theta, self.y[0], s_over_tdt, self.h[0], self.y[1])?;
+            if let WellRow::Storage { s_over_tdt, .. } =
+                self.well_row(model, tdt, theta, t_new, t_theta)
+            {
+                self.y[0] = self
+                    .solve_well_row(model, t_theta, self.y[0], s_over_tdt, self.h[0], self.y[1])?;
             }
         }
         for iteration in 0..=self.newton_max_iterations {
@@ -723,7 +728,9 @@ impl Stepper {
                 match well {
                     WellRow::Fixed(v) => self.y[0] = v,
                     WellRow::Storage { s_over_tdt, .. } if eliminate_well => {
-                        self.y[0] = self.solve_well_row(model, t_theta, self.y[0], s_over_tdt, self.h[0], self.y[1])?;
+                        self.y[0] = self.solve_well_row(
+                            model, t_theta, self.y[0], s_over_tdt, self.h[0], self.y[1],
+                        )?;
                     }
                     WellRow::Storage { .. } => {}
                 }
@@ -759,7 +766,11 @@ impl Stepper {
                     WellRow::Storage { s_over_tdt, dq, .. } if eliminate_well => {
                         let g0 = self.face_g[0];
                         let sw = s_over_tdt - dq;
-                        let g_eff = if sw + g0 > 0.0 { g0 * sw / (sw + g0) } else { 0.0 };
+                        let g_eff = if sw + g0 > 0.0 {
+                            g0 * sw / (sw + g0)
+                        } else {
+                            0.0
+                        };
                         self.diag[0] = 1.0;
                         self.upper[0] = 0.0;
                         self.lower[1] = 0.0;

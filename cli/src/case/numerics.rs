@@ -18,6 +18,27 @@ pub const DEFAULT_STARTUP_STEPS: u64 = 2;
 /// Default θ: Crank–Nicolson.
 pub const DEFAULT_THETA: f64 = 0.5;
 
+/// The drive kinds that have a period (the solver's `Drive::period_s` is `Some`), as the
+/// case file names them; a table only when it repeats. A test parses every kind of
+/// [`super::drives::DRIVE_KINDS`] and checks this list against the parsed drive's period.
+const PERIODIC_KINDS: &[&str] = &[
+    "sine_head",
+    "surge_block",
+    "swab",
+    "pump_backwash",
+    "jet_pulse",
+    "table with repeat",
+];
+
+/// [`PERIODIC_KINDS`] as a phrase: `a, b, or c`.
+fn periodic_kinds() -> String {
+    match PERIODIC_KINDS.split_last() {
+        Some((last, [])) => (*last).to_owned(),
+        Some((last, rest)) => format!("{}, or {last}", rest.join(", ")),
+        None => String::new(),
+    }
+}
+
 /// Simulated time in s: a time, or `"<n> cycles"` of the drive's period.
 pub fn duration(v: &DurationValue, period_s: Option<f64>) -> Result<f64, CaseError> {
     let field = "duration";
@@ -46,8 +67,10 @@ pub fn duration(v: &DurationValue, period_s: Option<f64>) -> Result<f64, CaseErr
                 CaseError::new(
                     field,
                     format!(
-                        "\"{written}\" needs a periodic drive (sine_head, or a table with \
-                         repeat); give a time instead"
+                        "\"{written}\" needs a periodic drive ({}), and this drive has no \
+                         period; give a time instead (a schedule may leave `duration` out: \
+                         its stages set it)",
+                        periodic_kinds()
                     ),
                 )
             })?;
@@ -250,4 +273,104 @@ pub fn resolved(n: &Numerics, output_every: u64) -> Value {
     m.insert("startup_steps".to_owned(), json!(n.startup_steps));
     m.insert("output_every".to_owned(), json!(output_every));
     Value::Object(m)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::case::drives::DRIVE_KINDS;
+    use crate::case::{parse_case, scenarios};
+    use std::path::Path;
+
+    /// Keys of one small valid drive of every kind but `schedule` (whose period is that of
+    /// its stages), each with the name it has in [`PERIODIC_KINDS`] when periodic.
+    fn samples() -> Vec<(&'static str, Value)> {
+        vec![
+            (
+                "sine_head",
+                json!({ "kind": "sine_head", "amplitude": "1 m", "frequency": "0.1 Hz" }),
+            ),
+            (
+                "constant_rate",
+                json!({ "kind": "constant_rate", "pumping_rate": "2 L/s" }),
+            ),
+            ("slug", json!({ "kind": "slug", "initial_head": "1 m" })),
+            (
+                "table",
+                json!({ "kind": "table", "points": [[0, 0], [10, 1]], "quantity": "head" }),
+            ),
+            (
+                "table with repeat",
+                json!({ "kind": "table", "points": [[0, 0], [10, 1]], "quantity": "head",
+                        "repeat": true }),
+            ),
+            (
+                "surge_block",
+                json!({ "kind": "surge_block", "stroke": "0.5 m", "strokes_per_minute": 10 }),
+            ),
+            (
+                "swab",
+                json!({ "kind": "swab", "lift_rate": "1 m/s", "stroke": "5 m",
+                        "lowering_time": "5 s", "submergence": "20 m" }),
+            ),
+            (
+                "pump_backwash",
+                json!({ "kind": "pump_backwash", "pumping_rate": "10 L/s", "on_time": "60 s",
+                        "off_time": "30 s", "backflow_volume": "0.1 m3" }),
+            ),
+            (
+                "jet_pulse",
+                json!({ "kind": "jet_pulse", "nozzle_velocity": "30 m/s", "rotation_period": "10 s" }),
+            ),
+        ]
+    }
+
+    /// The default demo case with `drive` replaced, run for a plain time.
+    fn period_of(drive: &Value) -> Option<f64> {
+        let mut case: Value = serde_json::from_str(scenarios()[0].1).unwrap();
+        case["drive"] = drive.clone();
+        case["duration"] = json!("10 min");
+        case.as_object_mut().unwrap().remove("numerics");
+        let loaded = parse_case(&case.to_string(), Path::new("."))
+            .unwrap_or_else(|e| panic!("sample {drive}: {e}"));
+        loaded.model.drive.period_s()
+    }
+
+    #[test]
+    fn periodic_kinds_are_those_with_a_period() {
+        let samples = samples();
+        for k in DRIVE_KINDS.iter().filter(|k| k.name != "schedule") {
+            assert!(
+                samples.iter().any(|(_, d)| d["kind"] == k.name),
+                "drive kind {} has no sample here: add one",
+                k.name
+            );
+        }
+        for (label, drive) in &samples {
+            assert_eq!(
+                period_of(drive).is_some(),
+                PERIODIC_KINDS.contains(label),
+                "{label}: period of the parsed drive vs PERIODIC_KINDS"
+            );
+        }
+    }
+
+    #[test]
+    fn cycles_without_a_period_names_every_periodic_kind() {
+        let e = duration(&DurationValue(json!("10 cycles")), None).unwrap_err();
+        assert_eq!(e.field, "duration");
+        assert!(
+            e.message
+                .starts_with("\"10 cycles\" needs a periodic drive ("),
+            "{e}"
+        );
+        for k in PERIODIC_KINDS {
+            assert!(e.message.contains(k), "{k} missing: {e}");
+        }
+        // 10 cycles of a 3 s period: 30 s (arithmetic).
+        assert_eq!(
+            duration(&DurationValue(json!("10 cycles")), Some(3.0)).unwrap(),
+            30.0
+        );
+    }
 }

@@ -1,5 +1,12 @@
 //! `boreflux run`: load, simulate with progress, stream results to HDF5 (and CSV), then
 //! write the summary and print it. Nothing partial is left under the output name.
+//!
+//! Two guards keep the user's files safe. Before any output is created, the output names
+//! are compared with the case file and every file the case reads (a table drive's `file`,
+//! also inside schedule stages): a run never writes over its own input (exit 2). While the
+//! run goes, Ctrl-C (SIGINT) or SIGTERM stops it after the current step; the writers are
+//! then dropped unfinished, which deletes their temporary files, and the run fails with
+//! exit 1 (DESIGN.md: 0 success, 1 runtime failure, 2 bad input).
 
 use super::{print_out, Failure};
 use crate::args::RunArgs;
@@ -12,9 +19,38 @@ use boreflux_solver::safety::CAUTION;
 use boreflux_solver::system::Discretization;
 use boreflux_solver::{run as simulate, CycleView, Reporting, SolverError, StepObserver, StepView};
 use indicatif::{ProgressBar, ProgressDrawTarget, ProgressStyle};
+use serde_json::Value;
+use std::path::{Path, PathBuf};
+use std::sync::atomic::{AtomicBool, Ordering};
 
 /// Steps between progress-bar updates.
 const PROGRESS_EVERY: u64 = 256;
+
+/// Set by the SIGINT/SIGTERM handler; the run's observer stops the solver when it is set.
+static INTERRUPTED: AtomicBool = AtomicBool::new(false);
+
+/// Message of a run stopped by Ctrl-C or SIGTERM.
+const INTERRUPTED_MESSAGE: &str = "interrupted by the user; no output written";
+
+/// Clears the interrupt flag and installs the SIGINT/SIGTERM handler that sets it. The
+/// handler stays for the life of the process (the `ctrlc` crate allows one), so a second
+/// call finds it installed and only clears the flag. A repeated Ctrl-C sets the flag again
+/// and changes nothing else: the run still stops after the current step and cleans up.
+fn catch_interrupts() {
+    INTERRUPTED.store(false, Ordering::SeqCst);
+    match ctrlc::set_handler(|| INTERRUPTED.store(true, Ordering::SeqCst)) {
+        Ok(()) | Err(ctrlc::Error::MultipleHandlers) => {}
+        Err(e) => eprintln!(
+            "warning: cannot catch Ctrl-C ({e}); an interrupted run may leave a hidden \
+             temporary file beside the output"
+        ),
+    }
+}
+
+/// True once Ctrl-C or SIGTERM has been received.
+fn interrupted() -> bool {
+    INTERRUPTED.load(Ordering::SeqCst)
+}
 
 /// Everything the run observes, in one observer.
 struct Observers<'a> {
@@ -26,6 +62,9 @@ struct Observers<'a> {
 
 impl StepObserver for Observers<'_> {
     fn on_step(&mut self, s: &StepView<'_>) -> bool {
+        if interrupted() {
+            return false;
+        }
         self.tracker.on_step(s);
         if s.step % PROGRESS_EVERY == 0 {
             self.bar
@@ -131,6 +170,8 @@ pub fn run(a: &RunArgs) -> Result<(), Failure> {
         estimate_steps(model) / 200 + 1
     };
     let csv_path = a.csv.then(|| a.output.with_extension("csv"));
+    refuse_overwriting_inputs(&a.case, &a.output, csv_path.as_deref()).map_err(Failure::Input)?;
+    catch_interrupts();
     let mut sink = ResultSink::create(&a.output, csv_path.as_deref(), grid.cells(), snapshot_every)
         .map_err(|e| Failure::Input(anyhow!("cannot write output {}: {e}", a.output.display())))?;
     write_metadata(&mut sink, &case, a, &grid).map_err(|e| Failure::Runtime(e.into()))?;
@@ -153,6 +194,10 @@ pub fn run(a: &RunArgs) -> Result<(), Failure> {
         )
     };
     bar.finish_and_clear();
+    if interrupted() {
+        // Returning drops the unfinished sink, which deletes both temporary files.
+        return Err(Failure::Runtime(anyhow!(INTERRUPTED_MESSAGE)));
+    }
     if let Some(e) = sink.error.take() {
         return Err(Failure::Runtime(anyhow!(
             "writing {}: {e}",
@@ -165,6 +210,9 @@ pub fn run(a: &RunArgs) -> Result<(), Failure> {
     })?;
     let h = headline(&case, &summary, &tracker);
     write_summary(&mut sink, &h).map_err(|e| Failure::Runtime(e.into()))?;
+    if interrupted() {
+        return Err(Failure::Runtime(anyhow!(INTERRUPTED_MESSAGE)));
+    }
     sink.finish()
         .with_context(|| format!("finishing {}", a.output.display()))
         .map_err(Failure::Runtime)?;
@@ -188,6 +236,88 @@ pub fn run(a: &RunArgs) -> Result<(), Failure> {
         );
         print_out(&(head + &table(&h) + "\nCaution: " + CAUTION + "\n"))
     }
+}
+
+/// Refuses output names that are the case file or a file the case reads, before anything
+/// is created: `--csv` next to `-o table.h5` would otherwise replace `table.csv`. Also
+/// refuses `-o x.csv --csv`, where both writers would share one file.
+fn refuse_overwriting_inputs(
+    case: &Path,
+    output: &Path,
+    csv: Option<&Path>,
+) -> Result<(), anyhow::Error> {
+    let base = case
+        .parent()
+        .filter(|p| !p.as_os_str().is_empty())
+        .unwrap_or(Path::new("."));
+    let text = std::fs::read_to_string(case)
+        .with_context(|| format!("cannot read case file {}", case.display()))?;
+    let value: Value =
+        serde_json::from_str(&text).with_context(|| format!("{}: invalid JSON", case.display()))?;
+    let mut inputs = vec![(case.to_path_buf(), "the case file itself".to_owned())];
+    let mut files = Vec::new();
+    if let Some(drive) = value.get("drive") {
+        drive_files(drive, &mut files);
+    }
+    inputs.extend(files.into_iter().map(|f| {
+        let what = format!("a file the case reads (drive file \"{f}\")");
+        (base.join(f), what)
+    }));
+    let outputs = [
+        (
+            Some(output),
+            "-o/--output",
+            "is",
+            "choose another name with -o/--output",
+        ),
+        (
+            csv,
+            "--csv",
+            "would write",
+            "choose another -o/--output name (the CSV takes its name, with .csv) or leave out \
+             --csv",
+        ),
+    ];
+    if let Some(csv) = csv.filter(|c| same_file_key(c) == same_file_key(output)) {
+        return Err(anyhow!(
+            "--csv would write {}, the same file as -o/--output; give -o/--output a name that \
+             does not end in .csv (the CSV takes it, with .csv). Nothing was written",
+            csv.display()
+        ));
+    }
+    for (path, flag, verb, advice) in outputs {
+        let Some(path) = path else { continue };
+        let key = same_file_key(path);
+        if let Some((_, what)) = inputs.iter().find(|(p, _)| same_file_key(p) == key) {
+            return Err(anyhow!(
+                "{flag} {verb} {}, which is {what}; {advice}. Nothing was written",
+                path.display()
+            ));
+        }
+    }
+    Ok(())
+}
+
+/// Every string value of a `file` key in the `drive` section, at any depth (schedule
+/// stages hold drives of their own).
+fn drive_files(v: &Value, out: &mut Vec<String>) {
+    match v {
+        Value::Object(map) => {
+            for (k, x) in map {
+                match (k.as_str(), x) {
+                    ("file", Value::String(f)) => out.push(f.clone()),
+                    _ => drive_files(x, out),
+                }
+            }
+        }
+        Value::Array(items) => items.iter().for_each(|x| drive_files(x, out)),
+        _ => {}
+    }
+}
+
+/// A path to compare files by: canonical where the file exists, else absolute as written.
+fn same_file_key(p: &Path) -> PathBuf {
+    std::fs::canonicalize(p).unwrap_or_else(|_| std::path::absolute(p).unwrap_or(p.to_path_buf()))
 }
 
 /// Rough number of steps, for the snapshot spacing.

@@ -1,0 +1,92 @@
+//! Regressions found by running the shipped scenarios.
+
+use boreflux_solver::devices::Swab;
+use boreflux_solver::diagnostics::NullObserver;
+use boreflux_solver::drive::{Drive, Stage};
+use boreflux_solver::model::*;
+use boreflux_solver::{run, Reporting};
+
+fn model(drive: Drive, duration_s: f64) -> Model {
+    let m = Medium::darcy(2e-4, 1e-5);
+    Model {
+        fluid: Fluid::WATER_20C,
+        well: Well {
+            screen_radius_m: 0.084,
+            screen_length_m: 9.0,
+            open_area: 0.05,
+            casing_radius_m: 0.077,
+            linear_loss_s: 0.0,
+            discharge_coefficient: Some(0.6),
+            storage_m2: Well::free_surface_storage(0.077),
+        },
+        pack: Pack {
+            outer_radius_m: 0.15,
+            medium: Medium::darcy(2e-3, 1e-5),
+        },
+        cake: None,
+        invaded: None,
+        formation: Formation {
+            medium: m,
+            outer_radius_m: None,
+            outer_boundary: OuterBoundary::FixedHead,
+        },
+        drive,
+        duration_s,
+        numerics: Numerics::default(),
+    }
+}
+
+fn swab() -> Swab {
+    // A period (4/1.2 + 15 s) that is not exact in floating point.
+    Swab {
+        cup_radius_m: 0.077,
+        lift_rate_m_s: 1.2,
+        stroke_m: 4.0,
+        lowering_time_s: 15.0,
+        submergence_m: 3.0,
+        strokes: 10,
+        ramp_cycles: 0.0,
+    }
+}
+
+/// The clock once stalled at t ≈ 128.3 s when a device returned the current time as its
+/// next event; the run must finish in about 200 steps per stroke.
+#[test]
+fn inexact_device_period_does_not_stall_the_clock() {
+    let s = run(
+        &model(Drive::Swab(swab()), 300.0),
+        &mut NullObserver,
+        Reporting::default(),
+    )
+    .unwrap();
+    assert_eq!(s.end_time_s, 300.0);
+    assert!(s.steps < 10 * 260 + 2000, "{} steps", s.steps);
+}
+
+/// A swab that outruns its submergence inside a schedule is reported too.
+#[test]
+fn swab_parting_is_reported_inside_a_schedule() {
+    let stages = vec![
+        Stage {
+            drive: Drive::ConstantRate {
+                pumping_rate_m3_s: 0.0,
+            },
+            duration_s: 10.0,
+        },
+        Stage {
+            drive: Drive::Swab(swab()),
+            duration_s: 60.0,
+        },
+    ];
+    let s = run(
+        &model(Drive::Schedule(stages), 70.0),
+        &mut NullObserver,
+        Reporting::default(),
+    )
+    .unwrap();
+    assert!(
+        s.warnings.iter().any(|w| w.contains("submergence")),
+        "{:?}",
+        s.warnings
+    );
+}
