@@ -408,6 +408,26 @@ impl Stepper {
         }
     }
 
+    /// Puts the well head of a Newton iterate back on its row: the prescribed value, or,
+    /// for an eliminated well row, its exact solution for the current y₁.
+    fn reset_well_head(
+        &mut self,
+        model: &Model,
+        well: WellRow,
+        eliminate_well: bool,
+        t_theta: f64,
+    ) -> Result<(), SolverError> {
+        match well {
+            WellRow::Fixed(v) => self.y[0] = v,
+            WellRow::Storage { s_over_tdt, .. } if eliminate_well => {
+                self.y[0] = self
+                    .solve_well_row(model, t_theta, self.y[0], s_over_tdt, self.h[0], self.y[1])?;
+            }
+            WellRow::Storage { .. } => {}
+        }
+        Ok(())
+    }
+
     /// In-well head of a well node without storage at the end of the step. Such a node holds
     /// no water of its own: its head is not a state but the solution of the constraint
     /// `F₀(H − h₁) = Q_device(t, H)` at the step's end time (extrapolating it like a state
@@ -725,15 +745,7 @@ impl Stepper {
                 for ((y, &y0), &d) in self.y.iter_mut().zip(&self.y_prev).zip(&self.delta) {
                     *y = y0 + lambda * d;
                 }
-                match well {
-                    WellRow::Fixed(v) => self.y[0] = v,
-                    WellRow::Storage { s_over_tdt, .. } if eliminate_well => {
-                        self.y[0] = self.solve_well_row(
-                            model, t_theta, self.y[0], s_over_tdt, self.h[0], self.y[1],
-                        )?;
-                    }
-                    WellRow::Storage { .. } => {}
-                }
+                self.reset_well_head(model, well, eliminate_well, t_theta)?;
                 factored = false;
                 continue;
             }
@@ -799,16 +811,7 @@ impl Stepper {
                 last_update = last_update.max(d.abs());
                 head_scale = head_scale.max(y.abs());
             }
-            match well {
-                WellRow::Fixed(v) => self.y[0] = v,
-                // The eliminated well row is solved exactly for the new y₁.
-                WellRow::Storage { s_over_tdt, .. } if eliminate_well => {
-                    self.y[0] = self.solve_well_row(
-                        model, t_theta, self.y[0], s_over_tdt, self.h[0], self.y[1],
-                    )?;
-                }
-                WellRow::Storage { .. } => {}
-            }
+            self.reset_well_head(model, well, eliminate_well, t_theta)?;
         }
         Err(SolverError::NewtonFailed {
             time_s: t_new,

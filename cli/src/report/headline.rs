@@ -252,7 +252,7 @@ pub fn headline(runs: &[Run]) -> (String, BTreeSet<String>) {
     );
     row(
         &mut t,
-        "Peak inward (collapse-direction) pressure difference across the screen",
+        "Peak collapse load: inward difference across the screen, or in-well drawdown against the formation (larger)",
         &["peak_collapse_pressure_pa"],
         &one("peak_collapse_pressure_pa", PRESSURE),
     );
