@@ -129,6 +129,10 @@ pub struct Headline {
     pub time_to_half_cake_s: Option<f64>,
     /// Time until 90 % of the cake was gone, s.
     pub time_to_90pct_cake_s: Option<f64>,
+    /// Cycles of a periodic drive until half the cake was gone.
+    pub cycles_to_half_cake: Option<f64>,
+    /// Cycles of a periodic drive until 90 % of the cake was gone.
+    pub cycles_to_90pct_cake: Option<f64>,
     /// Skin at the start.
     pub skin_start: f64,
     /// Skin at the end.
@@ -170,6 +174,23 @@ pub struct Headline {
     pub max_newton_iterations: usize,
     /// Warnings.
     pub warnings: Vec<String>,
+}
+
+/// Collapse pressure of the screen or casing, Pa: the manufacturer's rating when given,
+/// otherwise the thin-ring formula (PHYSICS.md §9a) from the dimension ratio and the
+/// material's elastic constants (PVC defaults when the material is PVC).
+pub fn collapse_rating_pa(safety: &crate::case::SafetyInputs) -> Option<f64> {
+    safety.collapse_rating_pa.or_else(|| {
+        let dr = safety.dimension_ratio?;
+        let pvc = safety.material.as_deref() == Some("pvc");
+        let e = safety
+            .youngs_modulus_pa
+            .or(pvc.then_some(safety::PVC_YOUNGS_MODULUS_PA))?;
+        let nu = safety
+            .poisson_ratio
+            .or(pvc.then_some(safety::PVC_POISSON_RATIO))?;
+        Some(safety::thin_ring_collapse_pa(e, nu, dr))
+    })
 }
 
 /// Computes the headline figures and the warnings.
@@ -219,19 +240,7 @@ pub fn headline(case: &LoadedCase, s: &RunSummary, t: &Tracker) -> Headline {
     let drawdown_m = (-s.well_head_range_m.0).max(0.0);
     let collapse_pa = s.peak_collapse_head_m.max(drawdown_m) * rho_g;
     let sf = case.safety.safety_factor;
-    let rating = case.safety.collapse_rating_pa.or_else(|| {
-        let dr = case.safety.dimension_ratio?;
-        let pvc = case.safety.material.as_deref() == Some("pvc");
-        let e = case
-            .safety
-            .youngs_modulus_pa
-            .or(pvc.then_some(safety::PVC_YOUNGS_MODULUS_PA))?;
-        let nu = case
-            .safety
-            .poisson_ratio
-            .or(pvc.then_some(safety::PVC_POISSON_RATIO))?;
-        Some(safety::thin_ring_collapse_pa(e, nu, dr))
-    });
+    let rating = collapse_rating_pa(&case.safety);
     let margin = rating
         .filter(|_| collapse_pa > 0.0)
         .map(|r| r / (sf * collapse_pa));
@@ -273,6 +282,8 @@ pub fn headline(case: &LoadedCase, s: &RunSummary, t: &Tracker) -> Headline {
         cake_thickness_end_m: s.cake_thickness_m.1,
         time_to_half_cake_s: t.half_cake_s,
         time_to_90pct_cake_s: t.tenth_cake_s,
+        cycles_to_half_cake: t.half_cake_s.zip(m.drive.period_s()).map(|(x, p)| x / p),
+        cycles_to_90pct_cake: t.tenth_cake_s.zip(m.drive.period_s()).map(|(x, p)| x / p),
         skin_start: s.skin.0,
         skin_end: s.skin.1,
         efficiency_start: efficiency(r_out, rs, s.skin.0),
@@ -343,9 +354,14 @@ pub fn table(h: &Headline) -> String {
     row(
         "time to remove 50 % / 90 % of the cake",
         format!(
-            "{} / {}",
+            "{} / {}{}",
             fmt_opt(h.time_to_half_cake_s, "s"),
-            fmt_opt(h.time_to_90pct_cake_s, "s")
+            fmt_opt(h.time_to_90pct_cake_s, "s"),
+            match (h.cycles_to_half_cake, h.cycles_to_90pct_cake) {
+                (Some(a), Some(b)) => format!(" ({} / {} cycles)", G(a, 3), G(b, 3)),
+                (Some(a), None) => format!(" ({} cycles / —)", G(a, 3)),
+                _ => String::new(),
+            }
         ),
     );
     row(

@@ -302,6 +302,8 @@ pub struct PumpBackwash {
     pub drain_time_s: f64,
     /// Number of cycles (0 = for the whole run).
     pub cycles: u32,
+    /// The pumping rate (and so the back-flow) grows linearly from 0 over this many cycles.
+    pub ramp_cycles: f64,
 }
 
 impl PumpBackwash {
@@ -318,11 +320,14 @@ impl PumpBackwash {
             return 0.0;
         }
         let tl = t - n * p;
+        // The ramp is held over each cycle (evaluated at its start), so a stop drains back
+        // what that cycle pumped up.
+        let scale = ramp(n * p + p, p, self.ramp_cycles);
         if tl < self.on_time_s {
-            -self.pumping_rate_m3_s
+            -scale * self.pumping_rate_m3_s
         } else {
             let tau = self.drain_time_s;
-            self.backflow_volume_m3 / tau * (-(tl - self.on_time_s) / tau).exp()
+            scale * self.backflow_volume_m3 / tau * (-(tl - self.on_time_s) / tau).exp()
         }
     }
 
@@ -389,6 +394,8 @@ pub struct JetPulse {
     pub jet_width_m: f64,
     /// Screen radius, m (for the sweep time).
     pub screen_radius_m: f64,
+    /// The pulse head grows linearly from 0 over this many passes.
+    pub ramp_cycles: f64,
 }
 
 impl JetPulse {
@@ -412,7 +419,9 @@ impl JetPulse {
         let tau = t.rem_euclid(self.period_s());
         let tp = self.pulse_s();
         if tau < tp {
-            self.pulse_head_m() * (PI * tau / tp).sin().powi(2)
+            let p = self.period_s();
+            let scale = ramp(t - tau + p, p, self.ramp_cycles);
+            scale * self.pulse_head_m() * (PI * tau / tp).sin().powi(2)
         } else {
             0.0
         }

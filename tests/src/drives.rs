@@ -81,6 +81,7 @@ pub fn volume_balance() -> Vec<CheckResult> {
             backflow_volume_m3: 0.2,
             drain_time_s: 5.0,
             cycles: 0,
+            ramp_cycles: 2.0,
         }),
         360.0,
     );

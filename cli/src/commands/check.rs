@@ -219,6 +219,18 @@ pub fn check(a: &CheckArgs) -> Result<(), Failure> {
             );
         }
     }
+    let sf = case.safety.safety_factor;
+    let rho_g = m.fluid.density_kg_m3 * boreflux_solver::water::GRAVITY_M_S2;
+    t += &match crate::summary::collapse_rating_pa(&case.safety) {
+        Some(r) => format!(
+            "\nCollapse: rating {} kPa ({}); with safety factor {sf} the allowable load is {} kPa = {} m of water. `run` compares it with the peak load.\n",
+            G(r / 1e3, 4),
+            if case.safety.collapse_rating_pa.is_some() { "given" } else { "thin-ring formula from the dimension ratio; no safety factor in it" },
+            G(r / sf / 1e3, 4),
+            G(r / sf / rho_g, 4)
+        ),
+        None => "\nCollapse: no rating (give well.collapse_rating, or well.material and well.dimension_ratio); check the manufacturer's rating before surging.\n".to_string(),
+    };
     if !case.notes.is_empty() {
         t += "\nNotes:\n";
         for n in &case.notes {

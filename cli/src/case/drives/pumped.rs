@@ -55,6 +55,8 @@ pub struct PumpBackwashKeys {
     pub drain_time: Option<Q<Time>>,
     /// Number of cycles, after which the well recovers [0 = cycles for the whole run].
     pub cycles: Option<u32>,
+    /// The pumping rate grows linearly from 0 over this many cycles, a gentle start [0].
+    pub ramp_cycles: Option<f64>,
 }
 
 /// The back-flow volume, m³, and how it was found.
@@ -131,6 +133,7 @@ pub fn pump_backwash(
         backflow_volume_m3: volume,
         drain_time_s,
         cycles: k.cycles.unwrap_or(0),
+        ramp_cycles: non_negative_ramp(k.ramp_cycles)?,
     };
     let drained = 1.0 - (-p.off_time_s / p.drain_time_s).exp();
     notes.insert(
@@ -167,6 +170,7 @@ pub fn pump_backwash(
             "backflow_volume": p.backflow_volume_m3,
             "drain_time": p.drain_time_s,
             "cycles": p.cycles,
+            "ramp_cycles": p.ramp_cycles,
         })),
         drive: Drive::PumpBackwash(p),
         notes,
@@ -188,6 +192,8 @@ pub struct JetPulseKeys {
     pub nozzles: Option<u32>,
     /// Width of the jet where it meets the screen [10 mm].
     pub jet_width: Option<Q<Length>>,
+    /// The pulse head grows linearly from 0 over this many passes, a gentle start [0].
+    pub ramp_cycles: Option<f64>,
 }
 
 /// Parser of the `jet_pulse` drive (registered in [`super::DRIVE_KINDS`]).
@@ -236,6 +242,7 @@ pub fn jet_pulse(
             None => DEFAULT_JET_WIDTH_M,
         },
         screen_radius_m: ctx.well.screen_radius_m,
+        ramp_cycles: non_negative_ramp(k.ramp_cycles)?,
     };
     let head = j.pulse_head_m();
     notes.insert(
@@ -275,8 +282,21 @@ pub fn jet_pulse(
             "rotation_period": j.rotation_period_s,
             "nozzles": j.nozzles,
             "jet_width": j.jet_width_m,
+            "ramp_cycles": j.ramp_cycles,
         })),
         drive: Drive::JetPulse(j),
         notes,
     })
+}
+
+/// `drive.ramp_cycles` [0]: zero or positive.
+fn non_negative_ramp(v: Option<f64>) -> Result<f64, CaseError> {
+    match v {
+        None => Ok(0.0),
+        Some(x) if x.is_finite() && x >= 0.0 => Ok(x),
+        Some(x) => Err(CaseError::new(
+            "drive.ramp_cycles",
+            format!("must be zero or positive, got {x}"),
+        )),
+    }
 }
