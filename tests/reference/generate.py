@@ -16,7 +16,7 @@ Two kinds of checks run before anything is written:
   Stehfest, the Laplace inversion against the real-integral form, scipy against mpmath,
   closed form against numerical quadrature ...). The largest relative disagreement is
   stored as "cross_check_max_rel_diff"; above CROSS_CHECK_TOL the script exits non-zero.
-* Printed-table checks: where /work/shared/PHYSICS.md prints the same quantity, the value
+* Printed-table checks: where PHYSICS.md (the project physics reference) prints the same quantity, the value
   must round to the printed digits. Any mismatch makes the script exit non-zero.
 
 Nothing is written unless all checks pass. The output is deterministic: no random
