@@ -261,7 +261,7 @@ pub fn headline(case: &LoadedCase, s: &RunSummary, t: &Tracker) -> Headline {
         }
     }
     if s.max_mass_residual > 1e-8 || s.energy_closure > 1e-6 {
-        warnings.push(format!("numerical balance is poor (volume residual {:.1e}, energy closure {:.1e}); refine the time step", s.max_mass_residual, s.energy_closure));
+        warnings.push(format!("numerical balance is poor (volume residual {:.1e}, energy closure {:.1e}); the net flows may be tiny against round-off (e.g. a sealing cake), or the time step too long: compare with a run at half the step", s.max_mass_residual, s.energy_closure));
     }
     Headline {
         title: case.title.clone(),

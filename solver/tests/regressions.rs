@@ -90,3 +90,44 @@ fn swab_parting_is_reported_inside_a_schedule() {
         s.warnings
     );
 }
+
+/// A surge block against a sealing bentonite cake (K_c = 1e-9 m/s) once stopped with
+/// Newton stuck at round-off: the pack and screen are stiff and their heads nearly equal,
+/// so face flows carry ε g |h| errors larger than the tolerance times the net flow.
+#[test]
+fn surge_block_against_a_sealing_cake_runs() {
+    use boreflux_solver::devices::{Kinematics, SurgeBlock};
+    let block = SurgeBlock {
+        block_radius_m: 0.178,
+        casing_radius_m: 0.1905,
+        stroke_m: 0.9,
+        frequency_hz: 1.0 / 3.0,
+        kinematics: Kinematics::Sinusoidal,
+        discharge_coefficient: 0.6,
+        valve_area_m2: 0.0,
+        ramp_cycles: 5.0,
+    };
+    let mut m = model(Drive::SurgeBlock(block), 30.0);
+    m.well = Well {
+        screen_radius_m: 0.203,
+        screen_length_m: 24.0,
+        open_area: 0.15,
+        casing_radius_m: 0.1905,
+        linear_loss_s: 0.0,
+        discharge_coefficient: Some(0.6),
+        storage_m2: Well::free_surface_storage(0.1905),
+    };
+    m.pack = Pack {
+        outer_radius_m: 0.305,
+        medium: Medium::darcy(8e-3, 1e-5),
+    };
+    m.cake = Some(Cake {
+        thickness_m: 3e-3,
+        conductivity_m_s: 1e-9,
+        coverage: 1.0,
+        erosion: None,
+    });
+    m.formation.medium = Medium::darcy(4e-4, 5e-5);
+    let s = run(&m, &mut NullObserver, Reporting::default()).unwrap();
+    assert_eq!(s.end_time_s, 30.0);
+}
