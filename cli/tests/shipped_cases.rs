@@ -129,3 +129,39 @@ fn newton_converges_within_eight_iterations_on_every_shipped_case() {
     }
     assert!(worst.iter().all(|(_, n)| *n <= 8), "{worst:?}");
 }
+
+/// `check --annulus` simulates each width of the municipal case (it once stopped on a
+/// Newton stall); the peak face flux falls as the annulus widens, since the same in-well
+/// stroke then drives the flow through a longer pack path (a direction check, no value).
+#[test]
+fn annulus_widths_are_simulated_by_check() {
+    let case =
+        PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("../cases/municipal-sand-gravel.json");
+    let out = assert_cmd::Command::cargo_bin("boreflux")
+        .unwrap()
+        .args([
+            "check",
+            case.to_str().unwrap(),
+            "--annulus",
+            "60mm,150mm",
+            "--json",
+        ])
+        .output()
+        .unwrap();
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let rows = v["annulus"].as_array().unwrap();
+    assert_eq!(rows.len(), 2);
+    let q: Vec<f64> = rows
+        .iter()
+        .map(|r| r["peak_face_flux_m_s"].as_f64().unwrap())
+        .collect();
+    assert!(
+        q.iter().all(|x| x.is_finite() && *x > 0.0) && q[1] < q[0],
+        "{q:?}"
+    );
+}

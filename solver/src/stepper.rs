@@ -26,15 +26,15 @@ use crate::model::Model;
 use crate::system::{CakeState, Discretization};
 use crate::tridiag::Factored;
 
-/// A Newton update (or a row's head correction) no larger than this times the largest
-/// head, or 1 mm, is at round-off.
-const ROUND_OFF_UPDATE: f64 = 1e-14;
 /// A residual row within this many ulps of its face flows' round-off is converged.
 const ROUND_OFF_ULPS: f64 = 4.0;
 
-/// Largest relative residual accepted when the iteration has stalled at round-off (the
-/// residual bound of issue #4).
-const STALL_RESIDUAL: f64 = 1e-10;
+/// Largest relative residual accepted when the iteration has stalled at round-off.
+const STALL_RESIDUAL: f64 = 1e-9;
+/// A full Newton step that moves no head by more than this times the largest head (or
+/// 1 mm) means the iteration has stalled: the heads are settled to twelve digits and what
+/// is left of the residual is round-off of the face flows.
+const STALL_UPDATE: f64 = 1e-12;
 
 /// Largest magnitude in a slice (0 for an empty one), in lanes so it vectorises.
 fn max_abs(v: &[f64]) -> f64 {
@@ -737,7 +737,7 @@ impl Stepper {
             }
             // Stalled at round-off: the last update and the correction each row asks for are
             // a few ulps of the largest head (the diagonal estimate uses the face derivatives).
-            if fixed_ok && last_update <= ROUND_OFF_UPDATE * head_scale {
+            if fixed_ok && lambda == 1.0 && last_update <= STALL_UPDATE * head_scale {
                 let well_diag = match well {
                     WellRow::Fixed(_) => 1.0,
                     WellRow::Storage { s_over_tdt, dq, .. } => s_over_tdt - dq,
@@ -757,7 +757,7 @@ impl Stepper {
                     }
                     head_residual = head_residual.max((self.rhs[j] / d).abs());
                 }
-                if residual <= STALL_RESIDUAL || head_residual <= ROUND_OFF_UPDATE * head_scale {
+                if residual <= STALL_RESIDUAL || head_residual <= STALL_UPDATE * head_scale {
                     return Ok(iteration);
                 }
             }
