@@ -68,7 +68,7 @@ fn every_shipped_case_runs_cleanly() {
         let h = headline(&case, &summary, &obs.tracker);
         assert!(obs.finite, "{name}: non-finite values");
         // Newton converged in every step (a failure would have ended the run); the
-        // iteration count is checked against issue #4's limit in the ignored test below.
+        // iteration count is checked against issue #4's limit in the test below.
         assert!(
             summary.max_newton_iterations <= 30,
             "{name}: {} Newton iterations",
@@ -108,12 +108,10 @@ fn every_shipped_case_runs_cleanly() {
     }
 }
 
-/// Issue #4 asks for Newton convergence in at most 8 iterations on every shipped case. Not
-/// met yet: the surge-block cases need up to 9 (municipal) and 11 (staged) iterations at
-/// stroke reversals, where the in-well head crosses zero on the orifice law. Run with
-/// `cargo test -- --ignored` to see the counts.
+/// Issue #4 asks for Newton convergence in at most 8 iterations on every shipped case. The
+/// surge-block cases are the hard ones: at stroke reversals the in-well head crosses zero on
+/// the clearance and screen orifice laws (they once needed 9 and 11 iterations there).
 #[test]
-#[ignore = "issue #4 criterion not met yet: up to 11 Newton iterations at surge-block stroke reversals"]
 fn newton_converges_within_eight_iterations_on_every_shipped_case() {
     let mut worst = Vec::new();
     for path in cases() {

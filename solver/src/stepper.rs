@@ -18,6 +18,24 @@
 //! length and each step costs two sweeps; otherwise Newton's method runs on the tridiagonal
 //! Jacobian until the residual, relative to the largest flow term, falls below the
 //! tolerance. The step never allocates.
+//!
+//! A head-dependent device (surge-block leakage, swab parting) puts square-root laws in
+//! series at the well: the clearance orifice and the screen's entrance loss. As a function
+//! of the pack head y₁ the flow the well delivers, W(y₁), is then square-root-like, and
+//! Newton linearizing it overshoots across zero head at every stroke reversal. The well is
+//! therefore eliminated nonlinearly: each Newton step linearizes only the cells, whose
+//! response to the screen inflow Q₀ is affine, and meets the exact well law there
+//! (w = J_c⁻¹ e₁, the cells' head response to a unit inflow at cell 1, s/m²; nonlinear
+//! elimination in Newton's method, e.g. Lanzkron, Rose & Wilkes 1996, SIAM J. Sci. Comput.
+//! 17(2), cited from memory):
+//!
+//! ```text
+//! J_c δ_a = −R(y)        cells alone, screen inflow held at W(y₁)                 δ_a in m
+//! Q₀ = W(y₁ + δ_a,1 + (Q₀ − W(y₁)) w₁)    one increasing scalar equation         Q₀ in m³/s
+//! δ = δ_a + (Q₀ − W(y₁)) w                Newton update of the cells             m
+//! ```
+//! When the cells are linear (Darcy faces) the update is exact in one step, whatever the
+//! well's laws.
 
 use crate::drive::Control;
 use crate::error::SolverError;
@@ -70,6 +88,9 @@ const MIN_STEP_FRACTION: f64 = 1.0 / 64.0;
 
 /// Iterations allowed for the in-well head of a well without storage.
 const ALGEBRAIC_MAX_ITERATIONS: usize = 50;
+
+/// Head below which the round-off of an in-well head is taken as absolute, m.
+const HEAD_UNIT_M: f64 = 1e-3;
 
 /// Independent accumulators per running sum (lets the compiler vectorise reductions).
 const LANES: usize = 4;
@@ -145,6 +166,9 @@ pub struct Stepper {
     y_prev: Vec<f64>,
     /// Last Newton update, m.
     delta: Vec<f64>,
+    /// Head response of the linearized cells alone to a unit inflow into cell 1,
+    /// w = J_c⁻¹ e₁ (index 0 unused), s/m².
+    inflow_response: Vec<f64>,
     /// Change of the heads over the last step (Newton's initial guess), m.
     prev_change: Vec<f64>,
     /// Length of the last step, s (0 before the first).
@@ -191,6 +215,7 @@ impl Stepper {
             face_g: vec![0.0; n],
             head_dependent: model.drive.is_head_dependent(),
             delta: vec![0.0; n],
+            inflow_response: vec![0.0; n],
             prev_dt: 0.0,
             prev_change2: vec![0.0; n],
             prev_dt2: 0.0,
@@ -429,6 +454,67 @@ impl Stepper {
         })
     }
 
+    /// Factors the Jacobian assembled in `lower`, `diag`, `upper` (well row decoupled, cell 1
+    /// without the screen face) and stores the cells' response to a unit inflow into cell 1,
+    /// `inflow_response` = J_c⁻¹ e₁. False when the factorization fails or the response is
+    /// not positive and finite (J_c is an M-matrix, so w > 0 whenever it is regular).
+    fn factor_cells_alone(&mut self) -> bool {
+        if self
+            .factored
+            .factor(&self.lower, &self.diag, &self.upper)
+            .is_err()
+        {
+            return false;
+        }
+        self.inflow_response.fill(0.0);
+        self.inflow_response[1] = 1.0;
+        self.factored.solve(&mut self.inflow_response);
+        let w1 = self.inflow_response[1];
+        w1.is_finite() && w1 > 0.0
+    }
+
+    /// Screen inflow Q₀ at which the well's exact flow law meets the linearized cells.
+    /// With the cells' head at cell 1 `y1a` for the current inflow `q_now` and response w₁
+    /// (s/m²), the pack head, the in-well head through the screen law (face 0, resistances
+    /// in series) and the well row are
+    ///
+    /// ```text
+    /// y₁(Q) = y1a + (Q − q_now) w₁                                  m
+    /// H(Q)  = y₁(Q) + R_lin Q + R_nl Q|Q|                           m
+    /// φ(Q)  = s (H − h₀) + Q − Q_device(t, H) = 0                   m³/s
+    /// dφ/dQ = (s − dQ_device/dH)(w₁ + R_lin + 2 R_nl |Q|) + 1 ≥ 1
+    /// ```
+    /// φ increases strictly (storage, screen and leakage all resist), so the bracketed
+    /// iteration of [`bracketed_root`] finds the one root. The unknown is a flow: the head
+    /// laws of screen and cells are smooth in it, and the leakage's square root is met
+    /// exactly rather than linearized.
+    fn well_inflow(
+        &self,
+        model: &Model,
+        t: f64,
+        s: f64,
+        y1a: f64,
+        q_now: f64,
+        w1: f64,
+    ) -> Result<f64, SolverError> {
+        let (h0, face) = (self.h[0], &self.disc.faces[0]);
+        let (r_lin, r_nl) = (face.r_lin(), face.r_nl());
+        let f = |q: f64| {
+            let hw = y1a + (q - q_now) * w1 + r_lin * q + r_nl * q * q.abs();
+            let dev = model.drive.device_flow(t, hw);
+            let st = s * (hw - h0);
+            (
+                st + q - dev.total(),
+                (s - dev.d_dh_m2_s) * (w1 + r_lin + 2.0 * r_nl * q.abs()) + 1.0,
+                st.abs() + q.abs() + dev.displacement_m3_s.abs() + dev.bypass_m3_s.abs(),
+            )
+        };
+        // Flows below the current screen and device flows are round-off in absolute terms.
+        let unit = (q_now.abs() + model.drive.device_flow(t, self.y[0]).total().abs())
+            .max(f64::MIN_POSITIVE);
+        bracketed_root(t, q_now, unit, f)
+    }
+
     /// Puts the well head of a Newton iterate back on its row: the prescribed value, or,
     /// for an eliminated well row, its exact solution for the current y₁.
     fn reset_well_head(
@@ -483,54 +569,7 @@ impl Stepper {
                 st.abs() + q.abs() + dev.displacement_m3_s.abs() + dev.bypass_m3_s.abs(),
             )
         };
-        let mut h = guess;
-        let (mut lo, mut hi) = (h, h);
-        let mut width = 1e-3f64.max(h.abs());
-        while f(lo).0 > 0.0 {
-            lo -= width;
-            width *= 2.0;
-            if !lo.is_finite() {
-                return Err(SolverError::NonFinite {
-                    time_s: t,
-                    index: 0,
-                });
-            }
-        }
-        width = 1e-3f64.max(h.abs());
-        while f(hi).0 < 0.0 {
-            hi += width;
-            width *= 2.0;
-            if !hi.is_finite() {
-                return Err(SolverError::NonFinite {
-                    time_s: t,
-                    index: 0,
-                });
-            }
-        }
-        // Stop when the Newton correction is at round-off of the head: the residual itself
-        // cannot be driven below the round-off of the steep screen and orifice laws.
-        let tiny = |h: f64| 1e-15 * h.abs().max(1e-3);
-        for _ in 0..ALGEBRAIC_MAX_ITERATIONS {
-            let (v, d, scale) = f(h);
-            if v == 0.0 || v.abs() <= 1e-15 * scale || hi - lo <= tiny(h) {
-                return Ok(h);
-            }
-            if v < 0.0 {
-                lo = h;
-            } else {
-                hi = h;
-            }
-            let newton = h - v / d;
-            if newton > lo && newton < hi {
-                if (newton - h).abs() <= tiny(h) {
-                    return Ok(newton);
-                }
-                h = newton;
-            } else {
-                h = 0.5 * (lo + hi);
-            }
-        }
-        Ok(h)
+        bracketed_root(t, guess, HEAD_UNIT_M, f)
     }
 
     /// Right-hand side of the well row and its diagonal term from the device.
@@ -650,11 +689,14 @@ impl Stepper {
         let mut factored = false;
         // A head-dependent device (orifice leakage, a swab near its submergence) makes the
         // well row stiff and non-smooth. That row is solved exactly for y₀ given y₁ at every
-        // iterate, and eliminated from the Newton system: cell 1 sees the screen face and
-        // the well in series, g_eff = g₀ (s − dq)/(s + g₀ − dq), the exact derivative of
-        // the reduced system.
+        // iterate, and eliminated from the Newton system. Each update then meets the well's
+        // exact flow law on the cells' linear response (module doc). Should the cells alone
+        // give no usable response (a steady solve behind a closed boundary), the well is
+        // linearized instead: cell 1 sees the screen face and the well in series,
+        // g_eff = g₀ (s − dq)/(s + g₀ − dq), the exact derivative of the reduced system.
         let eliminate_well =
             self.head_dependent && model.drive.control_at(t_theta) == Control::Flow;
+        let mut exact_well = eliminate_well;
         if eliminate_well {
             if let WellRow::Storage { s_over_tdt, .. } =
                 self.well_row(model, tdt, theta, t_new, t_theta)
@@ -808,21 +850,26 @@ impl Stepper {
                         self.upper[0] = 0.0;
                     }
                     WellRow::Storage { s_over_tdt, dq, .. } if eliminate_well => {
+                        // The cells alone first (the screen face leaves cell 1's row).
                         let g0 = self.face_g[0];
-                        let sw = s_over_tdt - dq;
-                        let g_eff = if sw + g0 > 0.0 {
-                            g0 * sw / (sw + g0)
-                        } else {
-                            0.0
-                        };
                         self.diag[0] = 1.0;
                         self.upper[0] = 0.0;
                         self.lower[1] = 0.0;
-                        self.diag[1] += g_eff - g0;
+                        self.diag[1] -= g0;
+                        if exact_well && !self.factor_cells_alone() {
+                            exact_well = false;
+                        }
+                        // Linearized well: screen and well in series.
+                        let sw = s_over_tdt - dq;
+                        if !exact_well && sw + g0 > 0.0 {
+                            self.diag[1] += g0 * sw / (sw + g0);
+                        }
                     }
                     WellRow::Storage { s_over_tdt, dq, .. } => self.diag[0] += s_over_tdt - dq,
                 }
-                self.factored.factor(&self.lower, &self.diag, &self.upper)?;
+                if !exact_well {
+                    self.factored.factor(&self.lower, &self.diag, &self.upper)?;
+                }
                 self.factored_for = None;
                 factored = true;
             }
@@ -834,6 +881,24 @@ impl Stepper {
                 self.rhs[0] = 0.0;
             }
             self.factored.solve(&mut self.rhs);
+            // Exact well: the screen inflow where the well's law meets the cells' response,
+            // and the cells' update for that inflow, δ = δ_a + (Q₀ − W(y₁)) w.
+            if let (WellRow::Storage { s_over_tdt, .. }, true) = (well, exact_well) {
+                let w1 = self.inflow_response[1];
+                let q_now = self.face_q[0];
+                let q_new = self.well_inflow(
+                    model,
+                    t_theta,
+                    s_over_tdt,
+                    self.y[1] + self.rhs[1],
+                    q_now,
+                    w1,
+                )?;
+                let dq = q_new - q_now;
+                for (d, &w) in self.rhs[1..].iter_mut().zip(&self.inflow_response[1..]) {
+                    *d += dq * w;
+                }
+            }
             last_update = 0.0;
             head_scale = 1e-3;
             self.y_prev.copy_from_slice(&self.y);
@@ -851,6 +916,67 @@ impl Stepper {
             residual,
         })
     }
+}
+
+/// Root of a strictly increasing function `f` (returning value, derivative and the size of
+/// the terms the value sums, for the round-off test), from `guess`: the root is bracketed by
+/// widening steps from `unit` (or |guess|) and refined by Newton, bisecting whenever Newton
+/// leaves the bracket, so it converges even on square-root laws where plain Newton cycles.
+/// `unit` is the magnitude below which the variable's round-off is taken as absolute.
+fn bracketed_root(
+    t: f64,
+    guess: f64,
+    unit: f64,
+    f: impl Fn(f64) -> (f64, f64, f64),
+) -> Result<f64, SolverError> {
+    let mut h = guess;
+    let (mut lo, mut hi) = (h, h);
+    let mut width = unit.max(h.abs());
+    while f(lo).0 > 0.0 {
+        lo -= width;
+        width *= 2.0;
+        if !lo.is_finite() {
+            return Err(SolverError::NonFinite {
+                time_s: t,
+                index: 0,
+            });
+        }
+    }
+    width = unit.max(h.abs());
+    while f(hi).0 < 0.0 {
+        hi += width;
+        width *= 2.0;
+        if !hi.is_finite() {
+            return Err(SolverError::NonFinite {
+                time_s: t,
+                index: 0,
+            });
+        }
+    }
+    // Stop when the Newton correction is at round-off of the variable: the residual itself
+    // cannot be driven below the round-off of the steep screen and orifice laws.
+    let tiny = |h: f64| 1e-15 * h.abs().max(unit);
+    for _ in 0..ALGEBRAIC_MAX_ITERATIONS {
+        let (v, d, scale) = f(h);
+        if v == 0.0 || v.abs() <= 1e-15 * scale || hi - lo <= tiny(h) {
+            return Ok(h);
+        }
+        if v < 0.0 {
+            lo = h;
+        } else {
+            hi = h;
+        }
+        let newton = h - v / d;
+        if newton > lo && newton < hi {
+            if (newton - h).abs() <= tiny(h) {
+                return Ok(newton);
+            }
+            h = newton;
+        } else {
+            h = 0.5 * (lo + hi);
+        }
+    }
+    Ok(h)
 }
 
 #[derive(Debug, Clone, Copy)]
