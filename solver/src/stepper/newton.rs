@@ -1,0 +1,414 @@
+//! Newton's iteration for a step with nonlinear losses: residual and Jacobian of the
+//! θ-point system, chord reuse, Armijo backtracking, nonlinear elimination of a
+//! head-dependent well through the screen inflow, and the round-off-aware acceptance. See the
+//! parent module for the equations.
+
+use super::well::bracketed_root;
+use super::{Stepper, WellRow, LANES};
+use crate::drive::Control;
+use crate::error::SolverError;
+use crate::model::Model;
+
+/// A residual row within this many ulps of its face flows' round-off is converged.
+const ROUND_OFF_ULPS: f64 = 4.0;
+
+/// Largest relative residual accepted when the iteration has stalled at round-off.
+const STALL_RESIDUAL: f64 = 1e-9;
+/// A full Newton step that moves no head by more than this times the largest head (or
+/// 1 mm) means the iteration has stalled: the heads are settled to twelve digits and what
+/// is left of the residual is round-off of the face flows.
+const STALL_UPDATE: f64 = 1e-12;
+
+/// Largest magnitude in a slice (0 for an empty one), in lanes so it vectorises.
+fn max_abs(v: &[f64]) -> f64 {
+    let mut lanes = [0.0f64; LANES];
+    let chunks = v.chunks_exact(LANES);
+    let rest = chunks.remainder();
+    for c in chunks {
+        for (l, x) in lanes.iter_mut().zip(c) {
+            let a = x.abs();
+            *l = if a > *l { a } else { *l };
+        }
+    }
+    for x in rest {
+        lanes[0] = lanes[0].max(x.abs());
+    }
+    lanes.iter().fold(0.0, |a, &b| a.max(b))
+}
+
+/// The chord (reused) Jacobian is kept only while each iteration cuts the residual by at
+/// least this factor; slower contraction means the Jacobian has changed, so it is refactored.
+const CHORD_CONTRACTION: f64 = 1e-3;
+
+/// A Newton step of fraction λ is accepted only if it cuts the residual by at least
+/// this × λ (Armijo's condition); full steps that barely reduce it are the signature of
+/// Newton's cycling on square-root laws, and are halved.
+const SUFFICIENT_DECREASE: f64 = 0.25;
+
+/// Relative residual below which the backtracking stops comparing residuals.
+const BACKTRACK_ABOVE: f64 = 1e-8;
+
+/// Smallest fraction of a Newton update tried by the backtracking.
+const MIN_STEP_FRACTION: f64 = 1.0 / 64.0;
+
+impl Stepper {
+    /// True when every residual row from `first` on is within the Newton tolerance (relative
+    /// to `scale`) or within [`ROUND_OFF_ULPS`] ulps of the round-off of its face flows.
+    pub(super) fn rows_at_round_off(&self, first: usize, faces: usize, scale: f64) -> bool {
+        let n = self.y.len();
+        let bound = self.newton_tolerance * scale;
+        let g_y = |f: usize| {
+            if f >= faces {
+                return 0.0;
+            }
+            let y_next = if f + 1 < n { self.y[f + 1].abs() } else { 0.0 };
+            self.face_g[f] * self.y[f].abs().max(y_next)
+        };
+        (first..n).all(|j| {
+            let floor = if j > 0 { g_y(j - 1) } else { 0.0 } + g_y(j);
+            self.rhs[j].abs() <= bound.max(ROUND_OFF_ULPS * f64::EPSILON * floor)
+        })
+    }
+
+    /// Factors the Jacobian assembled in `lower`, `diag`, `upper` (well row decoupled, cell 1
+    /// without the screen face) and stores the cells' response to a unit inflow into cell 1,
+    /// `inflow_response` = J_c⁻¹ e₁. False when the factorization fails or the response is
+    /// not positive and finite (J_c is an M-matrix, so w > 0 whenever it is regular).
+    pub(super) fn factor_cells_alone(&mut self) -> bool {
+        if self
+            .factored
+            .factor(&self.lower, &self.diag, &self.upper)
+            .is_err()
+        {
+            return false;
+        }
+        self.inflow_response.fill(0.0);
+        self.inflow_response[1] = 1.0;
+        self.factored.solve(&mut self.inflow_response);
+        let w1 = self.inflow_response[1];
+        w1.is_finite() && w1 > 0.0
+    }
+
+    /// Screen inflow Q₀ at which the well's exact flow law meets the linearized cells.
+    /// With the cells' head at cell 1 `y1a` for the current inflow `q_now` and response w₁
+    /// (s/m²), the pack head, the in-well head through the screen law (face 0, resistances
+    /// in series) and the well row are
+    ///
+    /// ```text
+    /// y₁(Q) = y1a + (Q − q_now) w₁                                  m
+    /// H(Q)  = y₁(Q) + R_lin Q + R_nl Q|Q|                           m
+    /// φ(Q)  = s (H − h₀) + Q − Q_device(t, H) = 0                   m³/s
+    /// dφ/dQ = (s − dQ_device/dH)(w₁ + R_lin + 2 R_nl |Q|) + 1 ≥ 1
+    /// ```
+    /// φ increases strictly (storage, screen and leakage all resist), so the bracketed
+    /// iteration of [`bracketed_root`] finds the one root. The unknown is a flow: the head
+    /// laws of screen and cells are smooth in it, and the leakage's square root is met
+    /// exactly rather than linearized.
+    pub(super) fn well_inflow(
+        &self,
+        model: &Model,
+        t: f64,
+        s: f64,
+        y1a: f64,
+        q_now: f64,
+        w1: f64,
+    ) -> Result<f64, SolverError> {
+        let (h0, face) = (self.h[0], &self.disc.faces[0]);
+        let (r_lin, r_nl) = (face.r_lin(), face.r_nl());
+        let f = |q: f64| {
+            let hw = y1a + (q - q_now) * w1 + r_lin * q + r_nl * q * q.abs();
+            let dev = model.drive.device_flow(t, hw);
+            let st = s * (hw - h0);
+            (
+                st + q - dev.total(),
+                (s - dev.d_dh_m2_s) * (w1 + r_lin + 2.0 * r_nl * q.abs()) + 1.0,
+                st.abs() + q.abs() + dev.displacement_m3_s.abs() + dev.bypass_m3_s.abs(),
+            )
+        };
+        // Flows below the current screen and device flows are round-off in absolute terms.
+        let unit = (q_now.abs() + model.drive.device_flow(t, self.y[0]).total().abs())
+            .max(f64::MIN_POSITIVE);
+        bracketed_root(t, q_now, unit, f)
+    }
+
+    /// Puts the well head of a Newton iterate back on its row: the prescribed value, or,
+    /// for an eliminated well row, its exact solution for the current y₁.
+    pub(super) fn reset_well_head(
+        &mut self,
+        model: &Model,
+        well: WellRow,
+        eliminate_well: bool,
+        t_theta: f64,
+    ) -> Result<(), SolverError> {
+        match well {
+            WellRow::Fixed(v) => self.y[0] = v,
+            WellRow::Storage { s_over_tdt, .. } if eliminate_well => {
+                self.y[0] = self
+                    .solve_well_row(model, t_theta, self.y[0], s_over_tdt, self.h[0], self.y[1])?;
+            }
+            WellRow::Storage { .. } => {}
+        }
+        Ok(())
+    }
+
+    pub(super) fn solve_newton(
+        &mut self,
+        model: &Model,
+        tdt: f64,
+        theta: f64,
+        t_new: f64,
+        t_theta: f64,
+    ) -> Result<usize, SolverError> {
+        let n = self.h.len();
+        let last = n - 1;
+        // Initial guess: the last step's change, scaled to this step's θΔt.
+        let ratio = if self.prev_dt > 0.0 {
+            theta * (t_new - self.time_s) / self.prev_dt
+        } else {
+            0.0
+        };
+        for ((y, &h), &d) in self.y.iter_mut().zip(&self.h).zip(&self.prev_change) {
+            *y = h + ratio * d;
+        }
+        let inv_tdt = 1.0 / tdt;
+        let open = usize::from(self.disc.outer_open);
+        let mut residual = f64::INFINITY;
+        let (mut last_update, mut head_scale) = (f64::INFINITY, 1e-3);
+        let (mut accepted_residual, mut accepted_worst, mut lambda) =
+            (f64::INFINITY, f64::INFINITY, 1.0);
+        // Chord iterations: the Jacobian is factored at the first iterate of the step and
+        // reused while the residual falls at least a thousandfold per iteration; otherwise it is
+        // refactored at the current iterate. (Reusing it across steps was tried: the
+        // entrance and Forchheimer laws change enough within a cycle that it costs more
+        // iterations than it saves.)
+        let mut factored = false;
+        // A head-dependent device (orifice leakage, a swab near its submergence) makes the
+        // well row stiff and non-smooth. That row is solved exactly for y₀ given y₁ at every
+        // iterate, and eliminated from the Newton system. Each update then meets the well's
+        // exact flow law on the cells' linear response (module doc). Should the cells alone
+        // give no usable response (a steady solve behind a closed boundary), the well is
+        // linearized instead: cell 1 sees the screen face and the well in series,
+        // g_eff = g₀ (s − dq)/(s + g₀ − dq), the exact derivative of the reduced system.
+        let eliminate_well =
+            self.head_dependent && model.drive.control_at(t_theta) == Control::Flow;
+        let mut exact_well = eliminate_well;
+        if eliminate_well {
+            if let WellRow::Storage { s_over_tdt, .. } =
+                self.well_row(model, tdt, theta, t_new, t_theta)
+            {
+                self.y[0] = self
+                    .solve_well_row(model, t_theta, self.y[0], s_over_tdt, self.h[0], self.y[1])?;
+            }
+        }
+        for iteration in 0..=self.newton_max_iterations {
+            let well = self.well_row(model, tdt, theta, t_new, t_theta);
+            // Face flows and derivatives, batched (faces 0..last, plus the outer one if open).
+            let nf = last + open;
+            for ((d, &a), &b) in self.face_dh[..last]
+                .iter_mut()
+                .zip(&self.y[..last])
+                .zip(&self.y[1..])
+            {
+                *d = a - b;
+            }
+            if open == 1 {
+                self.face_dh[last] = self.y[last];
+            } else {
+                self.face_q[last] = 0.0;
+            }
+            crate::faces::flows(
+                &self.face_dh[..nf],
+                &self.disc.r_lin[..nf],
+                &self.disc.r_nl[..nf],
+                &mut self.face_q[..nf],
+                &mut self.face_g[..nf],
+            );
+            // −R in rhs and the row's flow scale in scratch, cells 1..n in one pass:
+            // R_j = S_j (y_j − h_j)/(θΔt) − Q_{j−1} + Q_j.
+            for (((((r, sc), &y), &h), &s), (&q_in, &q_out)) in self.rhs[1..]
+                .iter_mut()
+                .zip(self.scratch[1..].iter_mut())
+                .zip(&self.y[1..])
+                .zip(&self.h[1..])
+                .zip(&self.disc.storage[1..])
+                .zip(self.face_q[..last].iter().zip(&self.face_q[1..]))
+            {
+                let acc = s * inv_tdt * (y - h);
+                *r = q_in - q_out - acc;
+                *sc = acc.abs() + q_in.abs() + q_out.abs();
+            }
+            self.rhs[0] = -self.face_q[0];
+            self.scratch[0] = self.face_q[0].abs();
+            let fixed_ok = match well {
+                WellRow::Fixed(v) => {
+                    self.rhs[0] = v - self.y[0];
+                    self.scratch[0] = 0.0;
+                    self.y[0] == v
+                }
+                WellRow::Storage { s_over_tdt, q, .. } => {
+                    let acc = s_over_tdt * (self.y[0] - self.h[0]);
+                    self.rhs[0] -= acc - q;
+                    self.scratch[0] += acc.abs() + q.abs();
+                    true
+                }
+            };
+            // The prescribed head row, and an eliminated well row (solved to round-off by its
+            // own bracketed iteration), are not part of the Newton residual.
+            let first = usize::from(matches!(well, WellRow::Fixed(_)) || eliminate_well);
+            let scale = max_abs(&self.scratch);
+            let worst = max_abs(&self.rhs[first..]);
+            residual = if scale > 0.0 { worst / scale } else { 0.0 };
+            if fixed_ok && residual <= self.newton_tolerance {
+                return Ok(iteration);
+            }
+            // At round-off: a face flow is computed from a head difference, so its absolute
+            // error is about ε g max(|y_i|, |y_i+1|); with near-equal heads on a stiff face
+            // (a sealing cake behind a conductive pack and screen) that exceeds the tolerance
+            // times the net flows. Every row must then be within the tolerance or within a
+            // couple of ulps of its own floor.
+            if fixed_ok
+                && residual <= STALL_RESIDUAL * 10.0
+                && self.rows_at_round_off(first, last + open, scale)
+            {
+                return Ok(iteration);
+            }
+            // Stalled at round-off: the last update and the correction each row asks for are
+            // a few ulps of the largest head (the diagonal estimate uses the face derivatives).
+            if fixed_ok && lambda == 1.0 && last_update <= STALL_UPDATE * head_scale {
+                let well_diag = match well {
+                    WellRow::Fixed(_) => 1.0,
+                    WellRow::Storage { s_over_tdt, dq, .. } => s_over_tdt - dq,
+                };
+                let mut head_residual = 0.0f64;
+                for j in 0..n {
+                    let mut d = if j == 0 {
+                        well_diag
+                    } else {
+                        self.disc.storage[j] * inv_tdt
+                    };
+                    if j > 0 {
+                        d += self.face_g[j - 1];
+                    }
+                    if j < last || open == 1 {
+                        d += self.face_g[j];
+                    }
+                    head_residual = head_residual.max((self.rhs[j] / d).abs());
+                }
+                if residual <= STALL_RESIDUAL || head_residual <= STALL_UPDATE * head_scale {
+                    return Ok(iteration);
+                }
+            }
+            if iteration == self.newton_max_iterations {
+                break;
+            }
+            // Backtracking: a step that did not reduce the residual enough (Newton cycles on
+            // square-root laws such as an orifice near zero head) is halved, down to 1/64.
+            // Near convergence the residual is round-off noise and is not compared.
+            // (The comparison uses the absolute residual: the flow scale of the relative one
+            // moves with the iterate.)
+            if worst >= (1.0 - SUFFICIENT_DECREASE * lambda) * accepted_worst
+                && residual > BACKTRACK_ABOVE
+                && lambda > MIN_STEP_FRACTION
+            {
+                lambda *= 0.5;
+                for ((y, &y0), &d) in self.y.iter_mut().zip(&self.y_prev).zip(&self.delta) {
+                    *y = y0 + lambda * d;
+                }
+                self.reset_well_head(model, well, eliminate_well, t_theta)?;
+                factored = false;
+                continue;
+            }
+            // Refactor unless the chord iteration is contracting fast.
+            if !factored || residual > CHORD_CONTRACTION * accepted_residual {
+                for j in 0..n {
+                    self.diag[j] = if j == 0 {
+                        0.0
+                    } else {
+                        self.disc.storage[j] * inv_tdt
+                    };
+                    self.lower[j] = 0.0;
+                    self.upper[j] = 0.0;
+                }
+                for j in 0..last {
+                    let g = self.face_g[j];
+                    self.diag[j] += g;
+                    self.diag[j + 1] += g;
+                    self.upper[j] = -g;
+                    self.lower[j + 1] = -g;
+                }
+                if open == 1 {
+                    self.diag[last] += self.face_g[last];
+                }
+                match well {
+                    WellRow::Fixed(_) => {
+                        self.diag[0] = 1.0;
+                        self.upper[0] = 0.0;
+                    }
+                    WellRow::Storage { s_over_tdt, dq, .. } if eliminate_well => {
+                        // The cells alone first (the screen face leaves cell 1's row).
+                        let g0 = self.face_g[0];
+                        self.diag[0] = 1.0;
+                        self.upper[0] = 0.0;
+                        self.lower[1] = 0.0;
+                        self.diag[1] -= g0;
+                        if exact_well && !self.factor_cells_alone() {
+                            exact_well = false;
+                        }
+                        // Linearized well: screen and well in series.
+                        let sw = s_over_tdt - dq;
+                        if !exact_well && sw + g0 > 0.0 {
+                            self.diag[1] += g0 * sw / (sw + g0);
+                        }
+                    }
+                    WellRow::Storage { s_over_tdt, dq, .. } => self.diag[0] += s_over_tdt - dq,
+                }
+                if !exact_well {
+                    self.factored.factor(&self.lower, &self.diag, &self.upper)?;
+                }
+                self.factored_for = None;
+                factored = true;
+            }
+            // Until the prescribed well head is in place the residual is not comparable.
+            accepted_residual = if fixed_ok { residual } else { f64::INFINITY };
+            accepted_worst = if fixed_ok { worst } else { f64::INFINITY };
+            lambda = 1.0;
+            if eliminate_well {
+                self.rhs[0] = 0.0;
+            }
+            self.factored.solve(&mut self.rhs);
+            // Exact well: the screen inflow where the well's law meets the cells' response,
+            // and the cells' update for that inflow, δ = δ_a + (Q₀ − W(y₁)) w.
+            if let (WellRow::Storage { s_over_tdt, .. }, true) = (well, exact_well) {
+                let w1 = self.inflow_response[1];
+                let q_now = self.face_q[0];
+                let q_new = self.well_inflow(
+                    model,
+                    t_theta,
+                    s_over_tdt,
+                    self.y[1] + self.rhs[1],
+                    q_now,
+                    w1,
+                )?;
+                let dq = q_new - q_now;
+                for (d, &w) in self.rhs[1..].iter_mut().zip(&self.inflow_response[1..]) {
+                    *d += dq * w;
+                }
+            }
+            last_update = 0.0;
+            head_scale = 1e-3;
+            self.y_prev.copy_from_slice(&self.y);
+            self.delta.copy_from_slice(&self.rhs);
+            for (y, d) in self.y.iter_mut().zip(&self.rhs) {
+                *y += d;
+                last_update = last_update.max(d.abs());
+                head_scale = head_scale.max(y.abs());
+            }
+            self.reset_well_head(model, well, eliminate_well, t_theta)?;
+        }
+        Err(SolverError::NewtonFailed {
+            time_s: t_new,
+            iterations: self.newton_max_iterations,
+            residual,
+        })
+    }
+}
