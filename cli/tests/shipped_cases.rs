@@ -67,13 +67,8 @@ fn every_shipped_case_runs_cleanly() {
             .unwrap_or_else(|e| panic!("{name}: {e}"));
         let h = headline(&case, &summary, &obs.tracker);
         assert!(obs.finite, "{name}: non-finite values");
-        // Newton converged in every step (a failure would have ended the run); the
+        // Newton converged in every step (a failure would have ended the run above); the
         // iteration count is checked against issue #4's limit in the test below.
-        assert!(
-            summary.max_newton_iterations <= 30,
-            "{name}: {} Newton iterations",
-            summary.max_newton_iterations
-        );
         assert!(
             !h.warnings.iter().any(|w| w.contains("numerical")),
             "{name}: {:?}",
