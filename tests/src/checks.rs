@@ -505,16 +505,9 @@ fn storage() -> Vec<CheckResult> {
         model.numerics.sync_times_s = times.clone();
         let mut rec = Recorder::at(&[]);
         run(&model, &mut rec, Reporting::default()).expect("run");
-        let mut worst: f64 = 0.0;
-        for ((&t, &td), &w) in times.iter().zip(&tds).zip(&want) {
-            // Intermediate and late times (issue #2). Before tD ≈ 1e3 the cake standing in
-            // for the skin sits at 1.05 rw, not at rw, and its ring of storage shows.
-            if td < 1e3 {
-                continue;
-            }
-            let pwd = -rec.well_head[rec.index_of(t).unwrap()] * 2.0 * PI * t_m / q;
-            worst = worst.max(((pwd - w) / w).abs());
-        }
+        // Intermediate and late times (issue #2). Before tD ≈ 1e3 the cake standing in for
+        // the skin sits at 1.05 rw, not at rw, and its ring of storage shows.
+        let worst = worst_pwd_error(&rec, &times, &tds, &want, t_m / q);
         // PHYSICS.md §11: 2e-3 relative for storage plus skin (issue #2 accepts 1 %).
         out.push(CheckResult::new(
             "storage",
@@ -526,6 +519,27 @@ fn storage() -> Vec<CheckResult> {
         ));
     }
     out
+}
+
+/// Largest relative error of the dimensionless well drawdown pwD = −H 2πT/Q against `want`,
+/// over the sample times whose tD is at least 1e3. `t_over_q` is T/Q, 1/m.
+pub fn worst_pwd_error(
+    rec: &Recorder,
+    times: &[f64],
+    tds: &[f64],
+    want: &[f64],
+    t_over_q: f64,
+) -> f64 {
+    times
+        .iter()
+        .zip(tds)
+        .zip(want)
+        .filter(|((_, &td), _)| td >= 1e3)
+        .map(|((&t, _), &w)| {
+            let pwd = -rec.well_head[rec.index_of(t).unwrap()] * 2.0 * PI * t_over_q;
+            ((pwd - w) / w).abs()
+        })
+        .fold(0.0, f64::max)
 }
 
 /// Per-step mass balance and run energy identity on a composite case with a cake.

@@ -267,14 +267,7 @@ pub fn pumping_stage() -> Vec<CheckResult> {
     model.numerics.sync_times_s = times.clone();
     let mut rec = Recorder::at(&[]);
     run(&model, &mut rec, Reporting::default()).expect("run");
-    let mut worst: f64 = 0.0;
-    for ((&t, &td), &w) in times.iter().zip(&tds).zip(&want) {
-        if td < 1e3 {
-            continue;
-        }
-        let pwd = -rec.well_head[rec.index_of(t).unwrap()] * 2.0 * PI * t_m / q;
-        worst = worst.max(((pwd - w) / w).abs());
-    }
+    let worst = crate::checks::worst_pwd_error(&rec, &times, &tds, &want, t_m / q);
     vec![CheckResult::new(
         "drives",
         "pumping stage of a schedule vs Papadopulos–Cooper, C_D = 5000, tD ≥ 1e3",
