@@ -3,6 +3,7 @@
 //! per-step extremes; pure computation, no I/O.
 
 use crate::case::LoadedCase;
+use crate::units::{FT_M, PSI_PA, US_GAL_M3};
 use boreflux_solver::grid::{Zone, ZONE_COUNT};
 use boreflux_solver::model::Model;
 use boreflux_solver::safety::{self, ENTRANCE_VELOCITY_RULE_M_S};
@@ -313,7 +314,7 @@ fn fmt_opt(v: Option<f64>, unit: &str) -> String {
 
 /// The summary table printed by `run`.
 pub fn table(h: &Headline) -> String {
-    let gpm = 15_850.323_141_489; // US gal/min per m³/s (exact by definition of the gallon)
+    let gpm = 60.0 / US_GAL_M3; // US gal/min per m³/s
     let mut t = String::new();
     let mut row = |k: &str, v: String| t.push_str(&format!("  {k:<44} {v}\n"));
     row(
@@ -382,8 +383,8 @@ pub fn table(h: &Headline) -> String {
             "{} → {} L/s/m ({} → {} gpm/ft)",
             G(h.specific_capacity_start_m2_s * 1e3, 4),
             G(h.specific_capacity_end_m2_s * 1e3, 4),
-            G(h.specific_capacity_start_m2_s * gpm * 0.3048, 3),
-            G(h.specific_capacity_end_m2_s * gpm * 0.3048, 3)
+            G(h.specific_capacity_start_m2_s * gpm * FT_M, 3),
+            G(h.specific_capacity_end_m2_s * gpm * FT_M, 3)
         ),
     );
     row(
@@ -405,7 +406,7 @@ pub fn table(h: &Headline) -> String {
         format!(
             "{} kPa ({} psi)",
             G(h.peak_collapse_pressure_pa / 1e3, 4),
-            G(h.peak_collapse_pressure_pa / 6_894.757, 3)
+            G(h.peak_collapse_pressure_pa / PSI_PA, 3)
         ),
     );
     row(

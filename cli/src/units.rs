@@ -21,18 +21,21 @@
 
 use serde_json::Value;
 
-/// Standard acceleration of gravity [m/s²], exact by definition (3rd CGPM, 1901).
-pub const GRAVITY_M_S2: f64 = 9.806_65;
+pub use boreflux_solver::water::GRAVITY_M_S2;
 
 /// Water density [kg/m³] used for head ↔ pressure when the case gives none: water at
 /// 20 °C and 0.101325 MPa is 998.207 kg/m³ (Tanaka et al. 2001, Metrologia 38, 301–309).
 pub const DEFAULT_WATER_DENSITY_KG_M3: f64 = 998.2;
 
-const IN_M: f64 = 0.0254;
-const FT_M: f64 = 0.3048;
-const US_GAL_M3: f64 = 3.785_411_784e-3;
+/// Metres per inch (exact by definition, NIST SP 811).
+pub const IN_M: f64 = 0.0254;
+/// Metres per foot (exact by definition, NIST SP 811).
+pub const FT_M: f64 = 0.3048;
+/// Cubic metres per US gallon (231 in³, exact by definition, NIST SP 811).
+pub const US_GAL_M3: f64 = 3.785_411_784e-3;
 const LBF_N: f64 = 0.453_592_37 * GRAVITY_M_S2;
-const PSI_PA: f64 = LBF_N / (IN_M * IN_M);
+/// Pascals per psi (pound-force per square inch, exact by definition, NIST SP 811).
+pub const PSI_PA: f64 = LBF_N / (IN_M * IN_M);
 const MIN_S: f64 = 60.0;
 const HOUR_S: f64 = 3_600.0;
 const DAY_S: f64 = 86_400.0;

@@ -12,7 +12,7 @@
 //! power of a zone      P = ρ g Σ_segments Q·Δh_segment            W
 //! ```
 
-use crate::grid::{Grid, Zone, ZONE_COUNT};
+use crate::grid::{Grid, ZONE_COUNT};
 use crate::model::{Medium, Model};
 use crate::stepper::Stepper;
 use crate::water::GRAVITY_M_S2;
@@ -115,7 +115,7 @@ impl StepObserver for NullObserver {
 /// size, or sqrt(5k/n) from K through Kozeny–Carman (k = n R_h²/5) when it is unknown.
 pub fn hydraulic_radius_m(m: &Medium, rho: f64, mu: f64) -> f64 {
     match m.grain_diameter_m {
-        Some(d) => m.porosity * d / (6.0 * (1.0 - m.porosity)),
+        Some(d) => crate::media::hydraulic_radius(d, m.porosity),
         None => {
             let k = m.conductivity_m_s * mu / (rho * GRAVITY_M_S2);
             (5.0 * k / m.porosity).sqrt()
@@ -125,7 +125,7 @@ pub fn hydraulic_radius_m(m: &Medium, rho: f64, mu: f64) -> f64 {
 
 /// Head gradient −dh/dr for flux q in a Forchheimer medium.
 pub fn gradient(m: &Medium, q: f64) -> f64 {
-    q / m.conductivity_m_s + m.forchheimer_beta_s2_m2 * q * q.abs()
+    crate::media::forchheimer_gradient(q, m.conductivity_m_s, m.forchheimer_beta_s2_m2)
 }
 
 /// Instantaneous borehole-face state at the end of the last step.
@@ -254,9 +254,4 @@ impl CycleAccumulator {
         };
         Some(cycle)
     }
-}
-
-/// Names of the zones, in index order (for writers).
-pub fn zone_names() -> [&'static str; ZONE_COUNT] {
-    Zone::ALL.map(Zone::name)
 }

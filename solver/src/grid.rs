@@ -42,7 +42,7 @@ impl Zone {
     ];
 
     /// Lower-case name used in output paths (`/series/power/<name>`).
-    pub fn name(self) -> &'static str {
+    pub const fn name(self) -> &'static str {
         match self {
             Zone::Screen => "screen",
             Zone::Pack => "pack",

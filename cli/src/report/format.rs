@@ -10,14 +10,7 @@
 //! 1 psi = 1 lbf/in² = 0.45359237 kg × 9.80665 m/s² / (0.0254 m)² ≈ 6894.757 Pa
 //! ```
 
-/// Metres per foot.
-pub const FT_M: f64 = 0.3048;
-/// Metres per inch.
-pub const IN_M: f64 = 0.0254;
-/// Cubic metres per US gallon.
-pub const US_GAL_M3: f64 = 3.785_411_784e-3;
-/// Pascals per psi (pound-force per square inch).
-pub const PSI_PA: f64 = 0.453_592_37 * 9.806_65 / (IN_M * IN_M);
+pub use crate::units::{FT_M, IN_M, PSI_PA, US_GAL_M3};
 /// Seconds per day.
 const DAY_S: f64 = 86_400.0;
 

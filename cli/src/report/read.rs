@@ -9,11 +9,18 @@
 use std::collections::BTreeMap;
 use std::path::{Path, PathBuf};
 
+use boreflux_solver::grid::{Zone, ZONE_COUNT};
 use hdf5::types::{TypeDescriptor, VarLenAscii, VarLenUnicode};
 use hdf5::{Attribute, File, Location};
 
 /// Zone names, inner to outer, as used in `/series/work/<zone>` and `/cycles/work_<zone>`.
-pub const ZONES: [&str; 5] = ["screen", "pack", "cake", "invaded", "formation"];
+pub const ZONES: [&str; ZONE_COUNT] = [
+    Zone::Screen.name(),
+    Zone::Pack.name(),
+    Zone::Cake.name(),
+    Zone::Invaded.name(),
+    Zone::Formation.name(),
+];
 
 /// Zone code of filter-pack cells in `/grid/zone`.
 pub const ZONE_CODE_PACK: i64 = 1;
