@@ -295,6 +295,7 @@ pub fn run(
             if jump {
                 last_jump = target;
                 startup_left = startup_halves;
+                st.forget_history();
             }
         }
         summary.steps += 1;

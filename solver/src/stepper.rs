@@ -45,7 +45,10 @@ use crate::system::{CakeState, Discretization};
 use crate::tridiag::Factored;
 
 mod newton;
+mod predictor;
 mod well;
+
+use predictor::Predictor;
 
 /// Independent accumulators per running sum (lets the compiler vectorise reductions).
 const LANES: usize = 4;
@@ -124,14 +127,8 @@ pub struct Stepper {
     /// Head response of the linearized cells alone to a unit inflow into cell 1,
     /// w = J_c⁻¹ e₁ (index 0 unused), s/m².
     inflow_response: Vec<f64>,
-    /// Change of the heads over the last step (Newton's initial guess), m.
-    prev_change: Vec<f64>,
-    /// Length of the last step, s (0 before the first).
-    prev_dt: f64,
-    /// Change of the heads over the step before the last, m.
-    prev_change2: Vec<f64>,
-    /// Length of the step before the last, s.
-    prev_dt2: f64,
+    /// Recent step changes, extrapolated for Newton's initial guess.
+    predictor: Predictor,
     /// S_j/(θΔt) of the factored matrix: the right-hand side is gain_j h_j (j ≥ 1).
     gain: Vec<f64>,
     linear: bool,
@@ -163,7 +160,7 @@ impl Stepper {
             factored: Factored::with_size(n),
             factored_for: None,
             gain: vec![0.0; n],
-            prev_change: vec![0.0; n],
+            predictor: Predictor::new(n),
             y_prev: vec![0.0; n],
             face_dh: vec![0.0; n],
             face_q: vec![0.0; n],
@@ -171,9 +168,6 @@ impl Stepper {
             head_dependent: model.drive.is_head_dependent(),
             delta: vec![0.0; n],
             inflow_response: vec![0.0; n],
-            prev_dt: 0.0,
-            prev_change2: vec![0.0; n],
-            prev_dt2: 0.0,
             linear,
             newton_tolerance: model.numerics.newton_tolerance,
             newton_max_iterations: model.numerics.newton_max_iterations,
@@ -198,6 +192,12 @@ impl Stepper {
         self.factored_for = None;
     }
 
+    /// Forgets the recent steps Newton extrapolates its initial guess from: call it after a
+    /// jump of the forcing, across which the old trend predicts nothing.
+    pub fn forget_history(&mut self) {
+        self.predictor.forget();
+    }
+
     /// True when the step is solved directly (no Newton iteration).
     pub fn is_linear(&self) -> bool {
         self.linear
@@ -208,7 +208,11 @@ impl Stepper {
     /// put back. Only meaningful for a constant drive (constant rate or constant head).
     pub fn solve_steady(&mut self, model: &Model) -> Result<(), SolverError> {
         let t = self.time_s;
+        // The transient so far predicts nothing about the steady state, nor it about what
+        // follows.
+        self.predictor.forget();
         let r = self.step(model, STEADY_STEP_S, 1.0);
+        self.predictor.forget();
         self.time_s = t;
         self.factored_for = None;
         r
@@ -341,12 +345,7 @@ impl Stepper {
             newton_iterations: iterations,
         };
         if !self.linear {
-            std::mem::swap(&mut self.prev_change, &mut self.prev_change2);
-            for ((d, &new), &old) in self.prev_change.iter_mut().zip(&self.scratch).zip(&self.h) {
-                *d = new - old;
-            }
-            self.prev_dt2 = self.prev_dt;
-            self.prev_dt = dt;
+            self.predictor.push(&self.y, t_theta);
         }
         std::mem::swap(&mut self.h, &mut self.scratch);
         self.time_s = t_new;

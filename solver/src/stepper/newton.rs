@@ -161,15 +161,8 @@ impl Stepper {
     ) -> Result<usize, SolverError> {
         let n = self.h.len();
         let last = n - 1;
-        // Initial guess: the last step's change, scaled to this step's θΔt.
-        let ratio = if self.prev_dt > 0.0 {
-            theta * (t_new - self.time_s) / self.prev_dt
-        } else {
-            0.0
-        };
-        for ((y, &h), &d) in self.y.iter_mut().zip(&self.h).zip(&self.prev_change) {
-            *y = h + ratio * d;
-        }
+        // Initial guess: the recent θ-point heads extrapolated to this step's θ-point.
+        self.predictor.guess(&self.h, t_theta, &mut self.y);
         let inv_tdt = 1.0 / tdt;
         let open = usize::from(self.disc.outer_open);
         let mut residual = f64::INFINITY;
