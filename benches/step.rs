@@ -1,6 +1,6 @@
 //! Throughput of the time step: cell-steps per second for a linear (Darcy) Crank–Nicolson
 //! step on 300 cells, the same step with Forchheimer and screen entrance losses (Newton),
-//! and a whole run with diagnostics.
+//! and whole runs of both with diagnostics (startup steps, balances, dissipation per zone).
 //!
 //! Run with `cargo bench -p boreflux-solver --bench step`. Throughput is reported by
 //! criterion in elements (cell-steps) per second.
@@ -80,12 +80,17 @@ fn bench_steps(c: &mut Criterion) {
 
     let mut group = c.benchmark_group("run_10_cycles_300_cells");
     group.sample_size(20);
-    let m = model(300, false);
-    let cells = Stepper::new(&m, None).disc.unknowns() as u64 - 1;
-    group.throughput(Throughput::Elements(cells * 2002));
-    group.bench_function("darcy_with_diagnostics", |b| {
-        b.iter(|| run(black_box(&m), &mut NullObserver, Reporting::default()).unwrap())
-    });
+    for (name, nonlinear) in [
+        ("darcy_with_diagnostics", false),
+        ("forchheimer_with_diagnostics", true),
+    ] {
+        let m = model(300, nonlinear);
+        let cells = Stepper::new(&m, None).disc.unknowns() as u64 - 1;
+        group.throughput(Throughput::Elements(cells * 2002));
+        group.bench_function(name, |b| {
+            b.iter(|| run(black_box(&m), &mut NullObserver, Reporting::default()).unwrap())
+        });
+    }
     group.finish();
 }
 

@@ -369,8 +369,23 @@ impl Stepper {
                     &y[run.start..end],
                     &y[run.start + 1..=end],
                 );
-                for (k, ((&c, &a), &b)) in c.iter().zip(y0).zip(y1).enumerate() {
-                    lanes[k % LANES] += c * (a - b) * (a - b);
+                let (cc, c0, c1) = (
+                    c.chunks_exact(LANES),
+                    y0.chunks_exact(LANES),
+                    y1.chunks_exact(LANES),
+                );
+                for ((&c, &a), &b) in cc
+                    .remainder()
+                    .iter()
+                    .zip(c0.remainder())
+                    .zip(c1.remainder())
+                {
+                    lanes[0] += c * (a - b) * (a - b);
+                }
+                for ((c, a), b) in cc.zip(c0).zip(c1) {
+                    for l in 0..LANES {
+                        lanes[l] += c[l] * (a[l] - b[l]) * (a[l] - b[l]);
+                    }
                 }
                 if run.end == n {
                     lanes[0] += d.conductance[n - 1] * y[n - 1] * y[n - 1];
@@ -378,8 +393,14 @@ impl Stepper {
             } else {
                 // The Newton iteration left the flows of the converged heads in face_q.
                 let (q, dh) = (&self.face_q[run.clone()], &self.face_dh[run.clone()]);
-                for (k, (&q, &dh)) in q.iter().zip(dh).enumerate() {
-                    lanes[k % LANES] += q * dh;
+                let (qc, dc) = (q.chunks_exact(LANES), dh.chunks_exact(LANES));
+                for (&q, &dh) in qc.remainder().iter().zip(dc.remainder()) {
+                    lanes[0] += q * dh;
+                }
+                for (q, dh) in qc.zip(dc) {
+                    for l in 0..LANES {
+                        lanes[l] += q[l] * dh[l];
+                    }
                 }
             }
             out[*zone as usize] += lanes.iter().sum::<f64>();

@@ -19,21 +19,15 @@ const STALL_RESIDUAL: f64 = 1e-9;
 /// is left of the residual is round-off of the face flows.
 const STALL_UPDATE: f64 = 1e-12;
 
-/// Largest magnitude in a slice (0 for an empty one), in lanes so it vectorises.
-fn max_abs(v: &[f64]) -> f64 {
-    let mut lanes = [0.0f64; LANES];
-    let chunks = v.chunks_exact(LANES);
-    let rest = chunks.remainder();
-    for c in chunks {
-        for (l, x) in lanes.iter_mut().zip(c) {
-            let a = x.abs();
-            *l = if a > *l { a } else { *l };
-        }
+/// The larger of two numbers, written so that loops over it vectorise (no NaN handling:
+/// the iterates are finite, and a NaN is caught by the step's own check).
+#[inline(always)]
+fn max(a: f64, b: f64) -> f64 {
+    if b > a {
+        b
+    } else {
+        a
     }
-    for x in rest {
-        lanes[0] = lanes[0].max(x.abs());
-    }
-    lanes.iter().fold(0.0, |a, &b| a.max(b))
 }
 
 /// The chord (reused) Jacobian is kept only while each iteration cuts the residual by at
@@ -128,7 +122,7 @@ impl Stepper {
         // Flows below the current screen and device flows are round-off in absolute terms.
         let unit = (q_now.abs() + model.drive.device_flow(t, self.y[0]).total().abs())
             .max(f64::MIN_POSITIVE);
-        bracketed_root(t, q_now, unit, f)
+        bracketed_root(t, q_now, unit, 1e-15 * unit, f)
     }
 
     /// Puts the well head of a Newton iterate back on its row: the prescribed value, or,
@@ -149,6 +143,63 @@ impl Stepper {
             WellRow::Storage { .. } => {}
         }
         Ok(())
+    }
+
+    /// Writes −R_j of every cell row into `rhs[1..]` from the face flows in `face_q` and
+    /// returns the largest |R_j| and the largest flow term |S_j (y_j − h_j)/(θΔt)| + |Q_{j−1}|
+    /// + |Q_j| of a row, in m³/s (one pass, in lanes so it vectorises).
+    fn cell_residuals(&mut self, inv_tdt: f64) -> (f64, f64) {
+        let n = self.y.len();
+        let (rhs, y, h, s) = (
+            &mut self.rhs[1..n],
+            &self.y[1..n],
+            &self.h[1..n],
+            &self.disc.storage[1..n],
+        );
+        let (q_in, q_out) = (&self.face_q[..n - 1], &self.face_q[1..n]);
+        let mut lanes = [[0.0f64; LANES]; 2];
+        let body = |k: usize, lane: usize, lanes: &mut [[f64; LANES]; 2], rhs: &mut [f64]| {
+            let acc = s[k] * inv_tdt * (y[k] - h[k]);
+            let r = q_in[k] - q_out[k] - acc;
+            rhs[k] = r;
+            lanes[0][lane] = max(lanes[0][lane], r.abs());
+            lanes[1][lane] = max(lanes[1][lane], acc.abs() + q_in[k].abs() + q_out[k].abs());
+        };
+        let full = rhs.len() / LANES * LANES;
+        for k0 in (0..full).step_by(LANES) {
+            for lane in 0..LANES {
+                body(k0 + lane, lane, &mut lanes, rhs);
+            }
+        }
+        for k in full..rhs.len() {
+            body(k, 0, &mut lanes, rhs);
+        }
+        let fold = |l: &[f64; LANES]| l.iter().fold(0.0, |a, &b| max(a, b));
+        (fold(&lanes[0]), fold(&lanes[1]))
+    }
+
+    /// The Jacobian of the cell rows in `lower`, `diag`, `upper` from the face derivatives in
+    /// `face_g` (the outer face only when `outer_open`); row 0 gets the screen face alone,
+    /// and the caller completes it with the well's own terms.
+    fn assemble_jacobian(&mut self, inv_tdt: f64, outer_open: bool) {
+        let n = self.y.len();
+        let last = n - 1;
+        let g = &self.face_g[..n];
+        let s = &self.disc.storage[..n];
+        self.diag[0] = g[0];
+        self.upper[0] = -g[0];
+        self.lower[0] = 0.0;
+        for j in 1..last {
+            self.diag[j] = s[j] * inv_tdt + g[j - 1] + g[j];
+            self.lower[j] = -g[j - 1];
+            self.upper[j] = -g[j];
+        }
+        if last > 0 {
+            self.diag[last] =
+                s[last] * inv_tdt + g[last - 1] + if outer_open { g[last] } else { 0.0 };
+            self.lower[last] = -g[last - 1];
+            self.upper[last] = 0.0;
+        }
     }
 
     pub(super) fn solve_newton(
@@ -193,63 +244,61 @@ impl Stepper {
                     .solve_well_row(model, t_theta, self.y[0], s_over_tdt, self.h[0], self.y[1])?;
             }
         }
+        // Unless the device's flow depends on the in-well head, the well row is the same at
+        // every iterate of the step.
+        let step_well =
+            (!self.head_dependent).then(|| self.well_row(model, tdt, theta, t_new, t_theta));
         for iteration in 0..=self.newton_max_iterations {
-            let well = self.well_row(model, tdt, theta, t_new, t_theta);
+            let well = match step_well {
+                Some(w) => w,
+                None => self.well_row(model, tdt, theta, t_new, t_theta),
+            };
             // Face flows and derivatives, batched (faces 0..last, plus the outer one if open).
-            let nf = last + open;
-            for ((d, &a), &b) in self.face_dh[..last]
-                .iter_mut()
-                .zip(&self.y[..last])
-                .zip(&self.y[1..])
-            {
-                *d = a - b;
-            }
+            crate::faces::flows(
+                &self.y,
+                &self.disc.r_lin[..last],
+                &self.disc.r_nl[..last],
+                &mut self.face_dh[..last],
+                &mut self.face_q[..last],
+                &mut self.face_g[..last],
+            );
             if open == 1 {
                 self.face_dh[last] = self.y[last];
+                (self.face_q[last], self.face_g[last]) = crate::faces::quadratic_law(
+                    self.disc.r_lin[last],
+                    self.disc.r_nl[last],
+                    self.y[last],
+                );
             } else {
                 self.face_q[last] = 0.0;
             }
-            crate::faces::flows(
-                &self.face_dh[..nf],
-                &self.disc.r_lin[..nf],
-                &self.disc.r_nl[..nf],
-                &mut self.face_q[..nf],
-                &mut self.face_g[..nf],
-            );
-            // −R in rhs and the row's flow scale in scratch, cells 1..n in one pass:
-            // R_j = S_j (y_j − h_j)/(θΔt) − Q_{j−1} + Q_j.
-            for (((((r, sc), &y), &h), &s), (&q_in, &q_out)) in self.rhs[1..]
-                .iter_mut()
-                .zip(self.scratch[1..].iter_mut())
-                .zip(&self.y[1..])
-                .zip(&self.h[1..])
-                .zip(&self.disc.storage[1..])
-                .zip(self.face_q[..last].iter().zip(&self.face_q[1..]))
-            {
-                let acc = s * inv_tdt * (y - h);
-                *r = q_in - q_out - acc;
-                *sc = acc.abs() + q_in.abs() + q_out.abs();
-            }
+            // −R in rhs, cells 1..n in one pass, with the largest |R| and the largest flow
+            // term of a row: R_j = S_j (y_j − h_j)/(θΔt) − Q_{j−1} + Q_j.
+            let (cells_worst, cells_scale) = self.cell_residuals(inv_tdt);
             self.rhs[0] = -self.face_q[0];
-            self.scratch[0] = self.face_q[0].abs();
+            let mut well_scale = self.face_q[0].abs();
             let fixed_ok = match well {
                 WellRow::Fixed(v) => {
                     self.rhs[0] = v - self.y[0];
-                    self.scratch[0] = 0.0;
+                    well_scale = 0.0;
                     self.y[0] == v
                 }
                 WellRow::Storage { s_over_tdt, q, .. } => {
                     let acc = s_over_tdt * (self.y[0] - self.h[0]);
                     self.rhs[0] -= acc - q;
-                    self.scratch[0] += acc.abs() + q.abs();
+                    well_scale += acc.abs() + q.abs();
                     true
                 }
             };
             // The prescribed head row, and an eliminated well row (solved to round-off by its
             // own bracketed iteration), are not part of the Newton residual.
             let first = usize::from(matches!(well, WellRow::Fixed(_)) || eliminate_well);
-            let scale = max_abs(&self.scratch);
-            let worst = max_abs(&self.rhs[first..]);
+            let scale = cells_scale.max(well_scale);
+            let worst = if first == 0 {
+                cells_worst.max(self.rhs[0].abs())
+            } else {
+                cells_worst
+            };
             residual = if scale > 0.0 { worst / scale } else { 0.0 };
             if fixed_ok && residual <= self.newton_tolerance {
                 return Ok(iteration);
@@ -311,27 +360,14 @@ impl Stepper {
                 factored = false;
                 continue;
             }
+            // An eliminated well row takes no part in the cells' update.
+            if eliminate_well {
+                self.rhs[0] = 0.0;
+            }
             // Refactor unless the chord iteration is contracting fast.
+            let mut solved = false;
             if !factored || residual > CHORD_CONTRACTION * accepted_residual {
-                for j in 0..n {
-                    self.diag[j] = if j == 0 {
-                        0.0
-                    } else {
-                        self.disc.storage[j] * inv_tdt
-                    };
-                    self.lower[j] = 0.0;
-                    self.upper[j] = 0.0;
-                }
-                for j in 0..last {
-                    let g = self.face_g[j];
-                    self.diag[j] += g;
-                    self.diag[j + 1] += g;
-                    self.upper[j] = -g;
-                    self.lower[j + 1] = -g;
-                }
-                if open == 1 {
-                    self.diag[last] += self.face_g[last];
-                }
+                self.assemble_jacobian(inv_tdt, open == 1);
                 match well {
                     WellRow::Fixed(_) => {
                         self.diag[0] = 1.0;
@@ -356,7 +392,14 @@ impl Stepper {
                     WellRow::Storage { s_over_tdt, dq, .. } => self.diag[0] += s_over_tdt - dq,
                 }
                 if !exact_well {
-                    self.factored.factor(&self.lower, &self.diag, &self.upper)?;
+                    // Eliminated and swept in one pass.
+                    self.factored.factor_solve(
+                        &self.lower,
+                        &self.diag,
+                        &self.upper,
+                        &mut self.rhs,
+                    )?;
+                    solved = true;
                 }
                 self.factored_for = None;
                 factored = true;
@@ -365,10 +408,9 @@ impl Stepper {
             accepted_residual = if fixed_ok { residual } else { f64::INFINITY };
             accepted_worst = if fixed_ok { worst } else { f64::INFINITY };
             lambda = 1.0;
-            if eliminate_well {
-                self.rhs[0] = 0.0;
+            if !solved {
+                self.factored.solve(&mut self.rhs);
             }
-            self.factored.solve(&mut self.rhs);
             // Exact well: the screen inflow where the well's law meets the cells' response,
             // and the cells' update for that inflow, δ = δ_a + (Q₀ − W(y₁)) w.
             if let (WellRow::Storage { s_over_tdt, .. }, true) = (well, exact_well) {
@@ -387,15 +429,32 @@ impl Stepper {
                     *d += dq * w;
                 }
             }
-            last_update = 0.0;
-            head_scale = 1e-3;
-            self.y_prev.copy_from_slice(&self.y);
-            self.delta.copy_from_slice(&self.rhs);
-            for (y, d) in self.y.iter_mut().zip(&self.rhs) {
-                *y += d;
-                last_update = last_update.max(d.abs());
-                head_scale = head_scale.max(y.abs());
+            // Keep the iterate and the update for the backtracking, and apply it.
+            std::mem::swap(&mut self.y, &mut self.y_prev);
+            std::mem::swap(&mut self.rhs, &mut self.delta);
+            let mut lanes = [[0.0f64; LANES]; 2];
+            let mut apply = |y: &mut [f64], y0: &[f64], d: &[f64], lane_count: usize| {
+                for l in 0..lane_count {
+                    let v = y0[l] + d[l];
+                    y[l] = v;
+                    lanes[0][l] = max(lanes[0][l], d[l].abs());
+                    lanes[1][l] = max(lanes[1][l], v.abs());
+                }
+            };
+            let mut chunks = self.y.chunks_exact_mut(LANES);
+            let (c0, cd) = (
+                self.y_prev.chunks_exact(LANES),
+                self.delta.chunks_exact(LANES),
+            );
+            let (r0, rd) = (c0.remainder(), cd.remainder());
+            for ((y, y0), d) in (&mut chunks).zip(c0).zip(cd) {
+                apply(y, y0, d, LANES);
             }
+            let rest = chunks.into_remainder();
+            let k = rest.len();
+            apply(rest, r0, rd, k);
+            last_update = lanes[0].iter().fold(0.0, |a, &b| max(a, b));
+            head_scale = lanes[1].iter().fold(1e-3, |a, &b| max(a, b));
             self.reset_well_head(model, well, eliminate_well, t_theta)?;
         }
         Err(SolverError::NewtonFailed {

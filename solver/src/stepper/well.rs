@@ -8,7 +8,7 @@ use crate::model::Model;
 /// Iterations allowed for the in-well head of a well without storage.
 const ALGEBRAIC_MAX_ITERATIONS: usize = 50;
 
-/// Head below which the round-off of an in-well head is taken as absolute, m.
+/// First widening step of the bracket on an in-well head near zero, m.
 const HEAD_UNIT_M: f64 = 1e-3;
 
 impl Stepper {
@@ -46,7 +46,10 @@ impl Stepper {
                 st.abs() + q.abs() + dev.displacement_m3_s.abs() + dev.bypass_m3_s.abs(),
             )
         };
-        bracketed_root(t, guess, HEAD_UNIT_M, f)
+        // The screen face's flow is computed from H − h₁, whose round-off is ε max(|H|, |h₁|):
+        // the head is settled when it moves by less than that.
+        let settled = 1e-15 * h1.abs().max(h0.abs());
+        bracketed_root(t, guess, HEAD_UNIT_M, settled, f)
     }
 }
 
@@ -54,11 +57,13 @@ impl Stepper {
 /// the terms the value sums, for the round-off test), from `guess`: the root is bracketed by
 /// widening steps from `unit` (or |guess|) and refined by Newton, bisecting whenever Newton
 /// leaves the bracket, so it converges even on square-root laws where plain Newton cycles.
-/// `unit` is the magnitude below which the variable's round-off is taken as absolute.
+/// `unit` is the first widening step when |guess| is smaller; the iteration stops once the
+/// variable moves by less than 1e-15 of its magnitude or than `settled`, whichever is larger.
 pub(super) fn bracketed_root(
     t: f64,
     guess: f64,
     unit: f64,
+    settled: f64,
     f: impl Fn(f64) -> (f64, f64, f64),
 ) -> Result<f64, SolverError> {
     let mut h = guess;
@@ -87,7 +92,7 @@ pub(super) fn bracketed_root(
     }
     // Stop when the Newton correction is at round-off of the variable: the residual itself
     // cannot be driven below the round-off of the steep screen and orifice laws.
-    let tiny = |h: f64| 1e-15 * h.abs().max(unit);
+    let tiny = |h: f64| (1e-15 * h.abs()).max(settled).max(f64::MIN_POSITIVE);
     for _ in 0..ALGEBRAIC_MAX_ITERATIONS {
         let (v, d, scale) = f(h);
         if v == 0.0 || v.abs() <= 1e-15 * scale || hi - lo <= tiny(h) {
