@@ -147,9 +147,12 @@ pub fn flows(
 }
 
 /// [`flows`] compiled with AVX enabled.
+///
+/// # Safety
+/// The processor must support AVX.
 #[cfg(target_arch = "x86_64")]
 #[target_feature(enable = "avx")]
-fn flows_avx(
+unsafe fn flows_avx(
     heads: &[f64],
     r_lin: &[f64],
     r_nl: &[f64],

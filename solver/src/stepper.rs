@@ -46,6 +46,7 @@ use crate::tridiag::Factored;
 
 mod newton;
 mod predictor;
+mod residual;
 mod well;
 
 use predictor::Predictor;
@@ -236,25 +237,36 @@ impl Stepper {
         self.scratch[0] = self.y[0] * inv_theta - carry * self.h[0];
         // Four independent lanes per sum so the loop vectorises.
         let mut acc = [[0.0f64; LANES]; 4];
-        let out = &mut self.scratch[1..];
-        let (y, h, s) = (&self.y[1..], &self.h[1..], &self.disc.storage[1..]);
-        let body = |k: usize, lane: usize, acc: &mut [[f64; LANES]; 4], out: &mut [f64]| {
-            let h_new = y[k] * inv_theta - carry * h[k];
-            let sdh = s[k] * (h_new - h[k]);
+        let (out, y, h, s) = (
+            &mut self.scratch[1..n],
+            &self.y[1..n],
+            &self.h[1..n],
+            &self.disc.storage[1..n],
+        );
+        let body = |lane: usize, y: f64, h: f64, s: f64, acc: &mut [[f64; LANES]; 4]| {
+            let h_new = y * inv_theta - carry * h;
+            let sdh = s * (h_new - h);
             acc[0][lane] += sdh;
-            acc[1][lane] += sdh * (h_new + h[k]);
-            acc[2][lane] += sdh * (h_new - h[k]);
+            acc[1][lane] += sdh * (h_new + h);
+            acc[2][lane] += sdh * (h_new - h);
             acc[3][lane] += sdh.abs();
-            out[k] = h_new;
+            h_new
         };
-        let full = out.len() / LANES * LANES;
-        for k0 in (0..full).step_by(LANES) {
-            for lane in 0..LANES {
-                body(k0 + lane, lane, &mut acc, out);
+        let (out4, y4, h4, s4) = (
+            out.chunks_exact_mut(LANES),
+            y.chunks_exact(LANES),
+            h.chunks_exact(LANES),
+            s.chunks_exact(LANES),
+        );
+        let (y1, h1, s1) = (y4.remainder(), h4.remainder(), s4.remainder());
+        let full = y.len() - y1.len();
+        for (((o, y), h), s) in out4.zip(y4).zip(h4).zip(s4) {
+            for l in 0..LANES {
+                o[l] = body(l, y[l], h[l], s[l], &mut acc);
             }
         }
-        for k in full..out.len() {
-            body(k, 0, &mut acc, out);
+        for (((o, &y), &h), &s) in out[full..].iter_mut().zip(y1).zip(h1).zip(s1) {
+            *o = body(0, y, h, s, &mut acc);
         }
         let [storage_change, mut energy_change, dh2, vol_scale] =
             acc.map(|a| a.iter().sum::<f64>());

@@ -64,7 +64,31 @@ impl Factored {
         diag: &[f64],
         upper: &[f64],
     ) -> Result<(), SolverError> {
-        self.eliminate::<false>(lower, diag, upper, &mut [])
+        assert!(lower.len() == diag.len() && upper.len() == diag.len());
+        self.eliminate::<false>(|i| lower[i], diag, |i| upper[i], &mut [])
+    }
+
+    /// Eliminates the symmetric matrix with diagonal `diag` and −`off[i]` coupling rows i
+    /// and i + 1 (`off` has at least n − 1 entries; the form of a conductance matrix).
+    pub fn factor_symmetric(&mut self, diag: &[f64], off: &[f64]) -> Result<(), SolverError> {
+        let n = diag.len();
+        let off = &off[..n.saturating_sub(1)];
+        self.eliminate::<false>(|i| -off[i - 1], diag, |i| -off[i], &mut [])
+    }
+
+    /// [`Factored::factor_symmetric`] and the solve for `rhs` in the same pass: on return
+    /// `rhs` holds x.
+    pub fn factor_solve_symmetric(
+        &mut self,
+        diag: &[f64],
+        off: &[f64],
+        rhs: &mut [f64],
+    ) -> Result<(), SolverError> {
+        let n = diag.len();
+        let off = &off[..n.saturating_sub(1)];
+        self.eliminate::<true>(|i| -off[i - 1], diag, |i| -off[i], rhs)?;
+        self.substitute(rhs);
+        Ok(())
     }
 
     /// Eliminates the matrix and solves for `rhs` in the same pass: on return `rhs` holds x
@@ -76,7 +100,8 @@ impl Factored {
         upper: &[f64],
         rhs: &mut [f64],
     ) -> Result<(), SolverError> {
-        self.eliminate::<true>(lower, diag, upper, rhs)?;
+        assert!(lower.len() == diag.len() && upper.len() == diag.len());
+        self.eliminate::<true>(|i| lower[i], diag, |i| upper[i], rhs)?;
         self.substitute(rhs);
         Ok(())
     }
@@ -86,13 +111,13 @@ impl Factored {
     #[inline(always)]
     fn eliminate<const SWEEP: bool>(
         &mut self,
-        lower: &[f64],
+        lower: impl Fn(usize) -> f64,
         diag: &[f64],
-        upper: &[f64],
+        upper: impl Fn(usize) -> f64,
         rhs: &mut [f64],
     ) -> Result<(), SolverError> {
         let n = diag.len();
-        assert!(lower.len() == n && upper.len() == n && self.inv_pivot.len() == n);
+        assert!(self.inv_pivot.len() == n);
         assert!(!SWEEP || rhs.len() == n);
         if n == 0 {
             return Ok(());
@@ -107,11 +132,11 @@ impl Factored {
         for k in 0..bottom_rows {
             if k < p {
                 let i = k;
-                let a = if i == 0 { 0.0 } else { lower[i] };
+                let a = if i == 0 { 0.0 } else { lower(i) };
                 let inv = inverse(diag[i] - a * c_prime, i)?;
                 inv_pivot[i] = inv;
                 near[i] = a * inv;
-                c_prime = upper[i] * inv;
+                c_prime = upper(i) * inv;
                 far[i] = c_prime;
                 if SWEEP {
                     z_top = rhs[i] * inv - near[i] * z_top;
@@ -119,19 +144,19 @@ impl Factored {
                 }
             }
             let j = n - 1 - k;
-            let c = if j == n - 1 { 0.0 } else { upper[j] };
+            let c = if j == n - 1 { 0.0 } else { upper(j) };
             let inv = inverse(diag[j] - c * a_prime, j)?;
             inv_pivot[j] = inv;
             near[j] = c * inv;
-            a_prime = lower[j] * inv;
+            a_prime = lower(j) * inv;
             far[j] = a_prime;
             if SWEEP {
                 z_bottom = rhs[j] * inv - near[j] * z_bottom;
                 rhs[j] = z_bottom;
             }
         }
-        let a = if p == 0 { 0.0 } else { lower[p] };
-        let c = if p == n - 1 { 0.0 } else { upper[p] };
+        let a = if p == 0 { 0.0 } else { lower(p) };
+        let c = if p == n - 1 { 0.0 } else { upper(p) };
         let inv = inverse(diag[p] - a * c_prime - c * a_prime, p)?;
         inv_pivot[p] = inv;
         near[p] = a * inv;
@@ -270,6 +295,37 @@ mod tests {
                     );
                 }
             }
+        }
+    }
+
+    #[test]
+    fn symmetric_form_matches_the_general_one() {
+        let mut seed = 0x1234_5678_9abc_def1_u64;
+        for &n in &[1usize, 2, 3, 4, 9, 40, 41] {
+            let off: Vec<f64> = (0..n).map(|_| 0.1 + rng(&mut seed)).collect();
+            let diag: Vec<f64> = (0..n)
+                .map(|i| {
+                    let left = if i > 0 { off[i - 1] } else { 0.0 };
+                    let right = if i + 1 < n { off[i] } else { 0.0 };
+                    left + right + 1e-3 + rng(&mut seed)
+                })
+                .collect();
+            let lower: Vec<f64> = (0..n)
+                .map(|i| if i > 0 { -off[i - 1] } else { 0.0 })
+                .collect();
+            let upper: Vec<f64> = (0..n).map(|i| -off[i]).collect();
+            let rhs: Vec<f64> = (0..n).map(|_| rng(&mut seed) - 0.5).collect();
+            let (mut x, mut y, mut z) = (rhs.clone(), rhs.clone(), rhs.clone());
+            let mut f = Factored::with_size(n);
+            f.factor_solve(&lower, &diag, &upper, &mut x).unwrap();
+            let mut g = Factored::with_size(n);
+            g.factor_solve_symmetric(&diag, &off, &mut y).unwrap();
+            let mut h = Factored::with_size(n);
+            h.factor_symmetric(&diag, &off).unwrap();
+            h.solve(&mut z);
+            // The same operations in the same order: the same bits.
+            assert_eq!(x, y, "n={n}");
+            assert_eq!(x, z, "n={n}");
         }
     }
 

@@ -3,6 +3,7 @@
 //! head-dependent well through the screen inflow, and the round-off-aware acceptance. See the
 //! parent module for the equations.
 
+use super::residual::{max, residual_avx_or_rows};
 use super::well::bracketed_root;
 use super::{Stepper, WellRow, LANES};
 use crate::drive::Control;
@@ -18,17 +19,6 @@ const STALL_RESIDUAL: f64 = 1e-9;
 /// 1 mm) means the iteration has stalled: the heads are settled to twelve digits and what
 /// is left of the residual is round-off of the face flows.
 const STALL_UPDATE: f64 = 1e-12;
-
-/// The larger of two numbers, written so that loops over it vectorise (no NaN handling:
-/// the iterates are finite, and a NaN is caught by the step's own check).
-#[inline(always)]
-fn max(a: f64, b: f64) -> f64 {
-    if b > a {
-        b
-    } else {
-        a
-    }
-}
 
 /// The chord (reused) Jacobian is kept only while each iteration cuts the residual by at
 /// least this factor; slower contraction means the Jacobian has changed, so it is refactored.
@@ -64,14 +54,14 @@ impl Stepper {
         })
     }
 
-    /// Factors the Jacobian assembled in `lower`, `diag`, `upper` (well row decoupled, cell 1
+    /// Factors the Jacobian assembled in `diag` and `upper` (well row decoupled, cell 1
     /// without the screen face) and stores the cells' response to a unit inflow into cell 1,
     /// `inflow_response` = J_c⁻¹ e₁. False when the factorization fails or the response is
     /// not positive and finite (J_c is an M-matrix, so w > 0 whenever it is regular).
     pub(super) fn factor_cells_alone(&mut self) -> bool {
         if self
             .factored
-            .factor(&self.lower, &self.diag, &self.upper)
+            .factor_symmetric(&self.diag, &self.upper)
             .is_err()
         {
             return false;
@@ -147,7 +137,7 @@ impl Stepper {
 
     /// Writes −R_j of every cell row into `rhs[1..]` from the face flows in `face_q` and
     /// returns the largest |R_j| and the largest flow term |S_j (y_j − h_j)/(θΔt)| + |Q_{j−1}|
-    /// + |Q_j| of a row, in m³/s (one pass, in lanes so it vectorises).
+    /// + |Q_j| of a row, in m³/s.
     fn cell_residuals(&mut self, inv_tdt: f64) -> (f64, f64) {
         let n = self.y.len();
         let (rhs, y, h, s) = (
@@ -157,49 +147,32 @@ impl Stepper {
             &self.disc.storage[1..n],
         );
         let (q_in, q_out) = (&self.face_q[..n - 1], &self.face_q[1..n]);
-        let mut lanes = [[0.0f64; LANES]; 2];
-        let body = |k: usize, lane: usize, lanes: &mut [[f64; LANES]; 2], rhs: &mut [f64]| {
-            let acc = s[k] * inv_tdt * (y[k] - h[k]);
-            let r = q_in[k] - q_out[k] - acc;
-            rhs[k] = r;
-            lanes[0][lane] = max(lanes[0][lane], r.abs());
-            lanes[1][lane] = max(lanes[1][lane], acc.abs() + q_in[k].abs() + q_out[k].abs());
-        };
-        let full = rhs.len() / LANES * LANES;
-        for k0 in (0..full).step_by(LANES) {
-            for lane in 0..LANES {
-                body(k0 + lane, lane, &mut lanes, rhs);
-            }
-        }
-        for k in full..rhs.len() {
-            body(k, 0, &mut lanes, rhs);
-        }
-        let fold = |l: &[f64; LANES]| l.iter().fold(0.0, |a, &b| max(a, b));
-        (fold(&lanes[0]), fold(&lanes[1]))
+        residual_avx_or_rows(y, h, s, q_in, q_out, inv_tdt, rhs)
     }
 
-    /// The Jacobian of the cell rows in `lower`, `diag`, `upper` from the face derivatives in
-    /// `face_g` (the outer face only when `outer_open`); row 0 gets the screen face alone,
-    /// and the caller completes it with the well's own terms.
+    /// The Jacobian from the face derivatives in `face_g` (the outer face only when
+    /// `outer_open`): it is symmetric, −g_j coupling nodes j and j + 1, so `diag` gets the
+    /// diagonal and `upper` the couplings g_j. Row 0 gets the screen face alone; the caller
+    /// completes it with the well's own terms.
     fn assemble_jacobian(&mut self, inv_tdt: f64, outer_open: bool) {
         let n = self.y.len();
         let last = n - 1;
-        let g = &self.face_g[..n];
-        let s = &self.disc.storage[..n];
-        self.diag[0] = g[0];
-        self.upper[0] = -g[0];
-        self.lower[0] = 0.0;
-        for j in 1..last {
-            self.diag[j] = s[j] * inv_tdt + g[j - 1] + g[j];
-            self.lower[j] = -g[j - 1];
-            self.upper[j] = -g[j];
+        let (g, s, diag) = (
+            &self.face_g[..n],
+            &self.disc.storage[..n],
+            &mut self.diag[..n],
+        );
+        diag[0] = g[0];
+        for (((d, &s), &g0), &g1) in diag[1..last]
+            .iter_mut()
+            .zip(&s[1..last])
+            .zip(&g[..last - 1])
+            .zip(&g[1..last])
+        {
+            *d = s * inv_tdt + g0 + g1;
         }
-        if last > 0 {
-            self.diag[last] =
-                s[last] * inv_tdt + g[last - 1] + if outer_open { g[last] } else { 0.0 };
-            self.lower[last] = -g[last - 1];
-            self.upper[last] = 0.0;
-        }
+        diag[last] = s[last] * inv_tdt + g[last - 1] + if outer_open { g[last] } else { 0.0 };
+        self.upper[..last].copy_from_slice(&g[..last]);
     }
 
     pub(super) fn solve_newton(
@@ -360,15 +333,21 @@ impl Stepper {
                 factored = false;
                 continue;
             }
-            // An eliminated well row takes no part in the cells' update.
+            // An eliminated well row takes no part in the cells' update; a prescribed one
+            // moves by rhs[0] (zero once the head is in place), which cell 1 sees through
+            // the screen face: with that row decoupled the matrix stays symmetric.
             if eliminate_well {
                 self.rhs[0] = 0.0;
+            } else if let WellRow::Fixed(_) = well {
+                self.rhs[1] += self.face_g[0] * self.rhs[0];
             }
             // Refactor unless the chord iteration is contracting fast.
             let mut solved = false;
             if !factored || residual > CHORD_CONTRACTION * accepted_residual {
                 self.assemble_jacobian(inv_tdt, open == 1);
                 match well {
+                    // The prescribed head row is decoupled: its update, rhs[0], enters cell
+                    // 1's right-hand side below.
                     WellRow::Fixed(_) => {
                         self.diag[0] = 1.0;
                         self.upper[0] = 0.0;
@@ -378,7 +357,6 @@ impl Stepper {
                         let g0 = self.face_g[0];
                         self.diag[0] = 1.0;
                         self.upper[0] = 0.0;
-                        self.lower[1] = 0.0;
                         self.diag[1] -= g0;
                         if exact_well && !self.factor_cells_alone() {
                             exact_well = false;
@@ -393,12 +371,8 @@ impl Stepper {
                 }
                 if !exact_well {
                     // Eliminated and swept in one pass.
-                    self.factored.factor_solve(
-                        &self.lower,
-                        &self.diag,
-                        &self.upper,
-                        &mut self.rhs,
-                    )?;
+                    self.factored
+                        .factor_solve_symmetric(&self.diag, &self.upper, &mut self.rhs)?;
                     solved = true;
                 }
                 self.factored_for = None;
