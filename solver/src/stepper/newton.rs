@@ -3,9 +3,9 @@
 //! head-dependent well through the screen inflow, and the round-off-aware acceptance. See the
 //! parent module for the equations.
 
-use super::residual::{max, residual_avx_or_rows};
+use super::residual::{max_abs, residual_avx_or_rows};
 use super::well::bracketed_root;
-use super::{Stepper, WellRow, LANES};
+use super::{Stepper, WellRow};
 use crate::drive::Control;
 use crate::error::SolverError;
 use crate::model::Model;
@@ -190,7 +190,7 @@ impl Stepper {
         let inv_tdt = 1.0 / tdt;
         let open = usize::from(self.disc.outer_open);
         let mut residual = f64::INFINITY;
-        let (mut last_update, mut head_scale) = (f64::INFINITY, 1e-3);
+        let mut updated = false;
         let (mut accepted_residual, mut accepted_worst, mut lambda) =
             (f64::INFINITY, f64::INFINITY, 1.0);
         // Chord iterations: the Jacobian is factored at the first iterate of the step and
@@ -289,7 +289,13 @@ impl Stepper {
             }
             // Stalled at round-off: the last update and the correction each row asks for are
             // a few ulps of the largest head (the diagonal estimate uses the face derivatives).
-            if fixed_ok && lambda == 1.0 && last_update <= STALL_UPDATE * head_scale {
+            // (Measured only here, after an update that did not converge.)
+            let head_scale = if fixed_ok && lambda == 1.0 && updated {
+                max_abs(&self.y).max(1e-3)
+            } else {
+                0.0
+            };
+            if head_scale > 0.0 && max_abs(&self.delta) <= STALL_UPDATE * head_scale {
                 let well_diag = match well {
                     WellRow::Fixed(_) => 1.0,
                     WellRow::Storage { s_over_tdt, dq, .. } => s_over_tdt - dq,
@@ -406,29 +412,10 @@ impl Stepper {
             // Keep the iterate and the update for the backtracking, and apply it.
             std::mem::swap(&mut self.y, &mut self.y_prev);
             std::mem::swap(&mut self.rhs, &mut self.delta);
-            let mut lanes = [[0.0f64; LANES]; 2];
-            let mut apply = |y: &mut [f64], y0: &[f64], d: &[f64], lane_count: usize| {
-                for l in 0..lane_count {
-                    let v = y0[l] + d[l];
-                    y[l] = v;
-                    lanes[0][l] = max(lanes[0][l], d[l].abs());
-                    lanes[1][l] = max(lanes[1][l], v.abs());
-                }
-            };
-            let mut chunks = self.y.chunks_exact_mut(LANES);
-            let (c0, cd) = (
-                self.y_prev.chunks_exact(LANES),
-                self.delta.chunks_exact(LANES),
-            );
-            let (r0, rd) = (c0.remainder(), cd.remainder());
-            for ((y, y0), d) in (&mut chunks).zip(c0).zip(cd) {
-                apply(y, y0, d, LANES);
+            for ((y, &y0), &d) in self.y.iter_mut().zip(&self.y_prev).zip(&self.delta) {
+                *y = y0 + d;
             }
-            let rest = chunks.into_remainder();
-            let k = rest.len();
-            apply(rest, r0, rd, k);
-            last_update = lanes[0].iter().fold(0.0, |a, &b| max(a, b));
-            head_scale = lanes[1].iter().fold(1e-3, |a, &b| max(a, b));
+            updated = true;
             self.reset_well_head(model, well, eliminate_well, t_theta)?;
         }
         Err(SolverError::NewtonFailed {

@@ -16,6 +16,11 @@ pub(super) fn max(a: f64, b: f64) -> f64 {
     }
 }
 
+/// Largest magnitude in a slice (0 for an empty one).
+pub(super) fn max_abs(v: &[f64]) -> f64 {
+    v.iter().fold(0.0, |a, &b| max(a, b.abs()))
+}
+
 /// Writes the cell residuals into `rhs` and returns (largest |R|, largest
 /// |S (y − h)/(θΔt)| + |Q_in| + |Q_out|), choosing the AVX version when the processor has it.
 pub(super) fn residual_avx_or_rows(
