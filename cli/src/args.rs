@@ -32,6 +32,14 @@ pub enum Command {
         after_help = "Example:\n  boreflux run cases/municipal-sand-gravel.json -o out/municipal.h5 --csv"
     )]
     Run(RunArgs),
+    /// Run many variants of one case in parallel and tabulate them, one row per scenario.
+    #[command(after_help = SWEEP_HELP)]
+    Sweep(SweepArgs),
+    /// Join the tables of a sharded sweep (`sweep --shard`) into one.
+    #[command(
+        after_help = "Example:\n  boreflux merge out/part-1.h5 out/part-2.h5 out/part-3.h5 -o out/sweep"
+    )]
+    Merge(MergeArgs),
     /// Validate a case and print derived properties without simulating.
     #[command(
         after_help = "Examples:\n  boreflux check cases/domestic-fine-sand-pvc.json\n  boreflux check cases/municipal-sand-gravel.json --annulus 60mm,80mm,100mm"
@@ -83,6 +91,55 @@ pub struct RunArgs {
     /// Store a head profile every N steps (0 = about 200 over the run).
     #[arg(long, default_value_t = 0)]
     pub snapshot_every: u64,
+}
+
+const SWEEP_HELP: &str = "\
+VALUES is a list (10,20,30 or \"0.3 m,0.6 m\" or sinusoidal,trapezoidal) or a range:
+A..B:N gives N values evenly spaced from A to B, A..B:N:log evenly spaced in log; A and B
+may carry a unit (\"0.3 m..0.9 m:4\"). PATH is dot-separated keys into the case file, a
+number indexing an array (drive.stages.1.drive.stroke). Several --vary make a Cartesian
+product; the last one changes fastest. Every scenario is checked before any is run.
+
+Examples:
+  boreflux sweep cases/municipal-sand-gravel.json --vary drive.strokes_per_minute=10..40:4 -o out/rate
+  boreflux sweep cases/swab-deep.json --vary drive.stroke=\"2 m,4 m,6 m\" --vary drive.lift_rate=0.5,1,1.5 -o out/swab
+  boreflux sweep CASE --vary ... -o out/part-2 --shard 2/8   (then: boreflux merge out/part-*.h5 -o out/all)";
+
+/// Arguments of `sweep`.
+#[derive(Debug, clap::Args)]
+pub struct SweepArgs {
+    /// Case file (JSON) every scenario starts from.
+    pub case: PathBuf,
+    /// A case-file value to vary, and its values (see below); repeat for a Cartesian product.
+    #[arg(long = "vary", value_name = "PATH=VALUES", required = true)]
+    pub vary: Vec<String>,
+    /// Output name: NAME.csv and NAME.h5 are written (a .csv or .h5 ending is dropped),
+    /// each to a temporary file renamed when complete.
+    #[arg(short, long, value_name = "NAME")]
+    pub output: PathBuf,
+    /// Run only shard K of N: the scenarios whose index modulo N is K − 1.
+    #[arg(long, value_name = "K/N")]
+    pub shard: Option<String>,
+    /// Scenarios run at once [default: the number of processors].
+    #[arg(short, long)]
+    pub jobs: Option<usize>,
+    /// No progress bar.
+    #[arg(short, long)]
+    pub quiet: bool,
+}
+
+/// Arguments of `merge`.
+#[derive(Debug, clap::Args)]
+pub struct MergeArgs {
+    /// Tables (.h5) written by `boreflux sweep --shard`.
+    #[arg(required = true)]
+    pub inputs: Vec<PathBuf>,
+    /// Output name: NAME.csv and NAME.h5 are written (a .csv or .h5 ending is dropped).
+    #[arg(short, long, value_name = "NAME")]
+    pub output: PathBuf,
+    /// Write the table even when scenarios are missing (their rows are left out).
+    #[arg(long)]
+    pub partial: bool,
 }
 
 /// Arguments of `check`.

@@ -7,4 +7,5 @@ pub mod commands;
 pub mod output;
 pub mod report;
 pub mod summary;
+pub mod sweep;
 pub mod units;

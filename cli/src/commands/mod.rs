@@ -2,8 +2,11 @@
 //! `main` prints the failure and maps it to the exit code.
 
 mod check;
+mod interrupt;
+mod merge;
 mod new;
 mod run;
+mod sweep;
 mod verify;
 
 use crate::args::Command;
@@ -55,6 +58,8 @@ pub(crate) fn print_out(text: &str) -> Result<(), Failure> {
 pub fn dispatch(command: Command) -> Result<(), Failure> {
     match command {
         Command::Run(a) => run::run(&a),
+        Command::Sweep(a) => sweep::sweep(&a),
+        Command::Merge(a) => merge::merge(&a),
         Command::Check(a) => check::check(&a),
         Command::Report(a) => {
             if let Some(missing) = a.inputs.iter().find(|p| !p.is_file()) {

@@ -8,6 +8,7 @@
 //! then dropped unfinished, which deletes their temporary files, and the run fails with
 //! exit 1 (DESIGN.md: 0 success, 1 runtime failure, 2 bad input).
 
+use super::interrupt::{catch_interrupts, interrupted, INTERRUPTED_MESSAGE};
 use super::{print_out, Failure};
 use crate::args::RunArgs;
 use crate::case::{load_case, LoadedCase};
@@ -21,36 +22,9 @@ use boreflux_solver::{run as simulate, CycleView, Reporting, SolverError, StepOb
 use indicatif::{ProgressBar, ProgressDrawTarget, ProgressStyle};
 use serde_json::Value;
 use std::path::{Path, PathBuf};
-use std::sync::atomic::{AtomicBool, Ordering};
 
 /// Steps between progress-bar updates.
 const PROGRESS_EVERY: u64 = 256;
-
-/// Set by the SIGINT/SIGTERM handler; the run's observer stops the solver when it is set.
-static INTERRUPTED: AtomicBool = AtomicBool::new(false);
-
-/// Message of a run stopped by Ctrl-C or SIGTERM.
-const INTERRUPTED_MESSAGE: &str = "interrupted by the user; no output written";
-
-/// Clears the interrupt flag and installs the SIGINT/SIGTERM handler that sets it. The
-/// handler stays for the life of the process (the `ctrlc` crate allows one), so a second
-/// call finds it installed and only clears the flag. A repeated Ctrl-C sets the flag again
-/// and changes nothing else: the run still stops after the current step and cleans up.
-fn catch_interrupts() {
-    INTERRUPTED.store(false, Ordering::SeqCst);
-    match ctrlc::set_handler(|| INTERRUPTED.store(true, Ordering::SeqCst)) {
-        Ok(()) | Err(ctrlc::Error::MultipleHandlers) => {}
-        Err(e) => eprintln!(
-            "warning: cannot catch Ctrl-C ({e}); an interrupted run may leave a hidden \
-             temporary file beside the output"
-        ),
-    }
-}
-
-/// True once Ctrl-C or SIGTERM has been received.
-fn interrupted() -> bool {
-    INTERRUPTED.load(Ordering::SeqCst)
-}
 
 /// Everything the run observes, in one observer.
 struct Observers<'a> {
@@ -241,7 +215,7 @@ pub fn run(a: &RunArgs) -> Result<(), Failure> {
 /// Refuses output names that are the case file or a file the case reads, before anything
 /// is created: `--csv` next to `-o table.h5` would otherwise replace `table.csv`. Also
 /// refuses `-o x.csv --csv`, where both writers would share one file.
-fn refuse_overwriting_inputs(
+pub(super) fn refuse_overwriting_inputs(
     case: &Path,
     output: &Path,
     csv: Option<&Path>,

@@ -1,0 +1,423 @@
+//! The result table of a sweep: one row per scenario, written as CSV and HDF5 (through a
+//! temporary file renamed when complete), and read back from HDF5 to merge shards.
+//!
+//! ```text
+//! HDF5   / attributes: kind = "sweep", tool_version, created_utc, case_file,
+//!          base_case_json (the case file as read), vary_json ([{path, values}]),
+//!          scenarios_total, shard ("K/N", or "merged")
+//!        /table                     attribute figure_columns: the figure names in order
+//!        /table/scenario            index in the whole sweep, from 0
+//!        /table/status              "ok", or why the scenario failed
+//!        /table/warnings            the run's warnings, one per line
+//!        /table/vary/<path>         the value as written in the case (text)
+//!        /table/vary_si/<path>      the same in SI base units (NaN when not a quantity)
+//!        /table/<figure>            the run's headline figures (the names of a run file's
+//!                                   /summary attributes; units in the suffix and attribute)
+//! CSV    scenario, status, <path>…, <path>_si…, <figure>…, warnings
+//! ```
+
+use crate::output::h5::H5Writer;
+use crate::output::TempTarget;
+use crate::summary::Headline;
+use hdf5::types::{TypeDescriptor, VarLenUnicode};
+use hdf5::File;
+use serde_json::Value;
+use std::io::Write;
+use std::path::{Path, PathBuf};
+
+/// One scenario's results.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Row {
+    /// Index in the whole sweep, from 0.
+    pub scenario: usize,
+    /// The varied values as written in the case.
+    pub labels: Vec<String>,
+    /// The varied values in SI (NaN when not a quantity).
+    pub si: Vec<f64>,
+    /// "ok", or why the scenario failed.
+    pub status: String,
+    /// Headline figures, in the order of [`Table::figures`] (NaN when failed).
+    pub figures: Vec<f64>,
+    /// Warnings of the run, one per line.
+    pub warnings: String,
+}
+
+/// A sweep's table and what defines the sweep.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Table {
+    /// The case file's path as given.
+    pub case_file: String,
+    /// The case file as read (JSON text).
+    pub base_case_json: String,
+    /// The `--vary` variables as JSON.
+    pub vary_json: String,
+    /// Scenarios in the whole sweep.
+    pub total: usize,
+    /// `K/N` of this shard, or "merged".
+    pub shard: String,
+    /// Names of the varied paths.
+    pub paths: Vec<String>,
+    /// Names of the figure columns.
+    pub figures: Vec<String>,
+    /// The rows, by scenario index.
+    pub rows: Vec<Row>,
+}
+
+/// The headline figures of a run as (name, value): numbers, each zone's work as
+/// `work_<zone>_j`, absent optional figures as NaN. The names are those of the /summary
+/// attributes of a run file.
+pub fn figures(h: &Headline) -> Vec<(String, f64)> {
+    let mut out = Vec::new();
+    let json = serde_json::to_value(h).unwrap_or_default();
+    if let Some(map) = json.as_object() {
+        for (k, v) in map {
+            match (k.as_str(), v) {
+                ("work_j", Value::Array(a)) => {
+                    for (z, x) in h.zones.iter().zip(a) {
+                        out.push((format!("work_{z}_j"), x.as_f64().unwrap_or(f64::NAN)));
+                    }
+                }
+                (_, Value::Number(n)) => out.push((k.clone(), n.as_f64().unwrap_or(f64::NAN))),
+                (_, Value::Null) => out.push((k.clone(), f64::NAN)),
+                _ => {}
+            }
+        }
+    }
+    out
+}
+
+/// Units of a figure from its name's suffix (`_m_s` → m/s, `_pa` → Pa, …); "1" for a
+/// count or ratio.
+pub fn units_of(name: &str) -> &'static str {
+    const SUFFIXES: [(&str, &str); 8] = [
+        ("_m2_s", "m2/s"),
+        ("_m3_s", "m3/s"),
+        ("_m_s", "m/s"),
+        ("_pa", "Pa"),
+        ("_j", "J"),
+        ("_s", "s"),
+        ("_m", "m"),
+        ("_m3", "m3"),
+    ];
+    SUFFIXES
+        .iter()
+        .find(|(s, _)| name.ends_with(s))
+        .map_or("1", |&(_, u)| u)
+}
+
+/// CSV field: quoted when it holds a comma, quote or line break.
+fn csv_field(s: &str) -> String {
+    if s.contains([',', '"', '\n', '\r']) {
+        format!("\"{}\"", s.replace('"', "\"\""))
+    } else {
+        s.to_owned()
+    }
+}
+
+/// CSV number: empty for NaN, whole numbers as integers, others in full precision.
+fn csv_number(x: f64) -> String {
+    if x.is_nan() {
+        String::new()
+    } else if x.fract() == 0.0 && x.abs() < 1e15 {
+        format!("{}", x as i64)
+    } else {
+        format!("{x:e}")
+    }
+}
+
+impl Table {
+    /// The CSV text.
+    pub fn csv(&self) -> String {
+        let mut header = vec!["scenario".to_owned(), "status".to_owned()];
+        header.extend(self.paths.iter().cloned());
+        header.extend(self.paths.iter().map(|p| format!("{p}_si")));
+        header.extend(self.figures.iter().cloned());
+        header.push("warnings".to_owned());
+        let mut out = header
+            .iter()
+            .map(|h| csv_field(h))
+            .collect::<Vec<_>>()
+            .join(",");
+        out.push('\n');
+        for r in &self.rows {
+            let mut f = vec![r.scenario.to_string(), csv_field(&r.status)];
+            f.extend(r.labels.iter().map(|l| csv_field(l)));
+            f.extend(r.si.iter().map(|&x| csv_number(x)));
+            f.extend(r.figures.iter().map(|&x| csv_number(x)));
+            f.push(csv_field(&r.warnings.replace('\n', "; ")));
+            out.push_str(&f.join(","));
+            out.push('\n');
+        }
+        out
+    }
+
+    /// Writes `<stem>.csv` and `<stem>.h5`, each through a temporary file renamed when
+    /// complete; returns the two paths.
+    pub fn write(&self, stem: &Path) -> anyhow::Result<(PathBuf, PathBuf)> {
+        let csv_path = stem.with_extension("csv");
+        let h5_path = stem.with_extension("h5");
+        let mut csv = TempTarget::new(&csv_path)?;
+        std::fs::File::create(csv.tmp())
+            .and_then(|mut f| f.write_all(self.csv().as_bytes()))
+            .map_err(|e| anyhow::anyhow!("writing {}: {e}", csv_path.display()))?;
+        let w = H5Writer::create(&h5_path)?;
+        self.write_h5(&w)?;
+        w.finish()?;
+        csv.commit()?;
+        Ok((csv_path, h5_path))
+    }
+
+    fn write_h5(&self, w: &H5Writer) -> anyhow::Result<()> {
+        w.set_root_attr_str("kind", "sweep")?;
+        w.set_root_attr_str("tool_version", env!("CARGO_PKG_VERSION"))?;
+        w.set_root_attr_str(
+            "created_utc",
+            &humantime::format_rfc3339_seconds(std::time::SystemTime::now()).to_string(),
+        )?;
+        w.set_root_attr_str("case_file", &self.case_file)?;
+        w.set_root_attr_str("base_case_json", &self.base_case_json)?;
+        w.set_root_attr_str("vary_json", &self.vary_json)?;
+        w.set_attr_f64("/", "scenarios_total", self.total as f64)?;
+        w.set_root_attr_str("shard", &self.shard)?;
+        w.group("/table")?;
+        let columns = serde_json::to_string(&self.figures)?;
+        w.set_attr_str("/table", "figure_columns", &columns)?;
+        let index: Vec<u64> = self.rows.iter().map(|r| r.scenario as u64).collect();
+        w.write_vector(
+            "/table/scenario",
+            &index,
+            "1",
+            "index of the scenario in the whole sweep, from 0 (odometer order of --vary)",
+        )?;
+        let text = |f: &dyn Fn(&Row) -> &str| -> anyhow::Result<Vec<VarLenUnicode>> {
+            self.rows
+                .iter()
+                .map(|r| {
+                    f(r).parse::<VarLenUnicode>()
+                        .map_err(|e| anyhow::anyhow!("text with a NUL character: {e}"))
+                })
+                .collect()
+        };
+        w.write_vector(
+            "/table/status",
+            &text(&|r| r.status.as_str())?,
+            "",
+            "ok, or why the scenario failed",
+        )?;
+        w.write_vector(
+            "/table/warnings",
+            &text(&|r| r.warnings.as_str())?,
+            "",
+            "warnings of the scenario's run, one per line",
+        )?;
+        w.group("/table/vary")?;
+        w.group("/table/vary_si")?;
+        for (k, p) in self.paths.iter().enumerate() {
+            w.write_vector(
+                &format!("/table/vary/{p}"),
+                &text(&|r| r.labels[k].as_str())?,
+                "",
+                "the varied value as written in the case file",
+            )?;
+            let si: Vec<f64> = self.rows.iter().map(|r| r.si[k]).collect();
+            w.write_vector(
+                &format!("/table/vary_si/{p}"),
+                &si,
+                "SI",
+                "the varied value in SI base units (NaN when it is not a quantity)",
+            )?;
+        }
+        for (k, name) in self.figures.iter().enumerate() {
+            let v: Vec<f64> = self.rows.iter().map(|r| r.figures[k]).collect();
+            w.write_vector(
+                &format!("/table/{name}"),
+                &v,
+                units_of(name),
+                "headline figure of the scenario's run (as in a run file's /summary)",
+            )?;
+        }
+        Ok(())
+    }
+
+    /// Reads a table written by [`Table::write`]. The error text does not repeat the path.
+    pub fn read(path: &Path) -> Result<Table, String> {
+        let file = File::open(path).map_err(|e| format!("cannot open it as HDF5: {e}"))?;
+        let attr = |name: &str| -> Result<String, String> {
+            let a = file
+                .attr(name)
+                .map_err(|_| format!("not a boreflux sweep table (no `{name}` attribute)"))?;
+            match a.dtype().and_then(|t| t.to_descriptor()) {
+                Ok(TypeDescriptor::VarLenUnicode) => a
+                    .read_scalar::<VarLenUnicode>()
+                    .map(|s| s.as_str().to_owned())
+                    .map_err(|e| format!("attribute {name}: {e}")),
+                Ok(TypeDescriptor::Float(_)) => a
+                    .read_scalar::<f64>()
+                    .map(|x| x.to_string())
+                    .map_err(|e| format!("attribute {name}: {e}")),
+                _ => Err(format!("attribute {name}: unexpected type")),
+            }
+        };
+        if attr("kind")? != "sweep" {
+            return Err("not a boreflux sweep table (kind is not \"sweep\")".into());
+        }
+        let total: f64 = attr("scenarios_total")?
+            .parse()
+            .map_err(|_| "scenarios_total is not a number".to_owned())?;
+        let vary_json = attr("vary_json")?;
+        let vary: Value =
+            serde_json::from_str(&vary_json).map_err(|e| format!("vary_json: {e}"))?;
+        let paths: Vec<String> = vary
+            .as_array()
+            .map(|a| {
+                a.iter()
+                    .filter_map(|v| v["path"].as_str().map(str::to_owned))
+                    .collect()
+            })
+            .unwrap_or_default();
+        let f64s = |name: &str| -> Result<Vec<f64>, String> {
+            file.dataset(name)
+                .and_then(|d| d.read_raw::<f64>())
+                .map_err(|e| format!("/{name}: {e}"))
+        };
+        let texts = |name: &str| -> Result<Vec<String>, String> {
+            file.dataset(name)
+                .and_then(|d| d.read_raw::<VarLenUnicode>())
+                .map(|v| v.iter().map(|s| s.as_str().to_owned()).collect())
+                .map_err(|e| format!("/{name}: {e}"))
+        };
+        let index: Vec<u64> = file
+            .dataset("table/scenario")
+            .and_then(|d| d.read_raw::<u64>())
+            .map_err(|e| format!("/table/scenario: {e}"))?;
+        let n = index.len();
+        let status = texts("table/status")?;
+        let warnings = texts("table/warnings")?;
+        let mut labels = Vec::new();
+        let mut si = Vec::new();
+        for p in &paths {
+            labels.push(texts(&format!("table/vary/{p}"))?);
+            si.push(f64s(&format!("table/vary_si/{p}"))?);
+        }
+        // The figure columns in the writer's order (HDF5 lists members by name).
+        let names: Vec<String> = file
+            .group("table")
+            .and_then(|g| g.attr("figure_columns"))
+            .and_then(|a| a.read_scalar::<VarLenUnicode>())
+            .map_err(|e| format!("/table figure_columns: {e}"))
+            .and_then(|t| {
+                serde_json::from_str(t.as_str()).map_err(|e| format!("/table figure_columns: {e}"))
+            })?;
+        let mut figures = Vec::new();
+        for name in &names {
+            figures.push((name.clone(), f64s(&format!("table/{name}"))?));
+        }
+        let columns = [status.len(), warnings.len()]
+            .into_iter()
+            .chain(labels.iter().map(Vec::len))
+            .chain(si.iter().map(Vec::len))
+            .chain(figures.iter().map(|f| f.1.len()));
+        if let Some(bad) = columns.into_iter().find(|&l| l != n) {
+            return Err(format!(
+                "/table columns differ in length ({bad} against {n} scenarios)"
+            ));
+        }
+        let rows = (0..n)
+            .map(|i| Row {
+                scenario: index[i] as usize,
+                labels: labels.iter().map(|c| c[i].clone()).collect(),
+                si: si.iter().map(|c| c[i]).collect(),
+                status: status[i].clone(),
+                figures: figures.iter().map(|f| f.1[i]).collect(),
+                warnings: warnings[i].clone(),
+            })
+            .collect();
+        Ok(Table {
+            case_file: attr("case_file")?,
+            base_case_json: attr("base_case_json")?,
+            vary_json,
+            total: total as usize,
+            shard: attr("shard")?,
+            paths,
+            figures: figures.into_iter().map(|f| f.0).collect(),
+            rows,
+        })
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn table() -> Table {
+        Table {
+            case_file: "cases/x.json".into(),
+            base_case_json: "{\"a\":1}".into(),
+            vary_json: "[{\"path\":\"drive.stroke\",\"values\":[\"0.3 m\",\"0.6 m\"]}]".into(),
+            total: 2,
+            shard: "1/1".into(),
+            paths: vec!["drive.stroke".into()],
+            figures: vec!["peak_shear_pa".into(), "steps".into()],
+            rows: vec![
+                Row {
+                    scenario: 0,
+                    labels: vec!["0.3 m".into()],
+                    si: vec![0.3],
+                    status: "ok".into(),
+                    figures: vec![1.5e-3, 1200.0],
+                    warnings: "first, with a comma\nsecond".into(),
+                },
+                Row {
+                    scenario: 1,
+                    labels: vec!["0.6 m".into()],
+                    si: vec![0.6],
+                    status: "simulation failed: \"Newton\"".into(),
+                    figures: vec![f64::NAN, f64::NAN],
+                    warnings: String::new(),
+                },
+            ],
+        }
+    }
+
+    #[test]
+    fn csv_quotes_text_and_leaves_missing_figures_empty() {
+        let text = table().csv();
+        let lines: Vec<&str> = text.lines().collect();
+        assert_eq!(
+            lines[0],
+            "scenario,status,drive.stroke,drive.stroke_si,peak_shear_pa,steps,warnings"
+        );
+        assert_eq!(
+            lines[1],
+            "0,ok,0.3 m,3e-1,1.5e-3,1200,\"first, with a comma; second\""
+        );
+        assert_eq!(
+            lines[2],
+            "1,\"simulation failed: \"\"Newton\"\"\",0.6 m,6e-1,,,"
+        );
+    }
+
+    #[test]
+    fn hdf5_table_reads_back_as_written() {
+        let dir = tempfile::tempdir().unwrap();
+        let t = table();
+        let (csv, h5) = t.write(&dir.path().join("sweep")).unwrap();
+        assert!(csv.ends_with("sweep.csv") && h5.ends_with("sweep.h5"));
+        let back = Table::read(&h5).unwrap();
+        assert_eq!(back.rows[0], t.rows[0]);
+        assert_eq!(back.rows[1].status, t.rows[1].status);
+        assert!(back.rows[1].figures.iter().all(|x| x.is_nan()));
+        assert_eq!(back.figures, t.figures);
+        assert_eq!((back.total, back.shard.as_str()), (2, "1/1"));
+        assert_eq!(back.vary_json, t.vary_json);
+    }
+
+    #[test]
+    fn units_follow_the_name() {
+        assert_eq!(units_of("peak_outward_flux_m_s"), "m/s");
+        assert_eq!(units_of("specific_capacity_end_m2_s"), "m2/s");
+        assert_eq!(units_of("work_cake_j"), "J");
+        assert_eq!(units_of("time_to_half_cake_s"), "s");
+        assert_eq!(units_of("max_newton_iterations"), "1");
+    }
+}

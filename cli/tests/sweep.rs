@@ -1,0 +1,263 @@
+//! End-to-end tests of `boreflux sweep` and `boreflux merge`: the table against a
+//! property of the equations (superposition), against `boreflux run` of the same
+//! scenario, shards merged against the whole sweep, and the refusals (exit 2, nothing
+//! written).
+
+use assert_cmd::Command;
+use std::path::Path;
+
+fn boreflux() -> Command {
+    Command::cargo_bin("boreflux").expect("the boreflux binary is built by cargo test")
+}
+
+/// A linear (Darcy) well: no grain sizes (so no Forchheimer term), no screen entrance loss,
+/// no cake, driven by a sine head. Invented numbers.
+const LINEAR_CASE: &str = r#"{
+  "well": { "screen_radius": 0.1, "screen_length": 6, "open_area": 0.12,
+            "discharge_coefficient": "none" },
+  "pack": { "outer_radius": 0.2, "porosity": 0.32, "conductivity": 8e-3 },
+  "formation": { "conductivity": 2e-4, "specific_storage": 1e-5 },
+  "drive": { "kind": "sine_head", "amplitude": 1.0, "frequency": 0.5 },
+  "duration": "4 cycles",
+  "numerics": { "steps_per_cycle": 40 }
+}"#;
+
+fn write_case(dir: &Path) -> std::path::PathBuf {
+    let p = dir.join("linear.json");
+    std::fs::write(&p, LINEAR_CASE).unwrap();
+    p
+}
+
+/// Rows of a CSV as name → text maps (no quoted commas in these tables' numbers).
+fn csv_rows(path: &Path) -> Vec<std::collections::BTreeMap<String, String>> {
+    let text = std::fs::read_to_string(path).unwrap();
+    let mut lines = text.lines();
+    let header: Vec<String> = lines
+        .next()
+        .unwrap()
+        .split(',')
+        .map(str::to_owned)
+        .collect();
+    lines
+        .map(|l| {
+            header
+                .iter()
+                .cloned()
+                .zip(l.split(',').map(str::to_owned))
+                .collect()
+        })
+        .collect()
+}
+
+fn num(row: &std::collections::BTreeMap<String, String>, k: &str) -> f64 {
+    row[k]
+        .parse()
+        .unwrap_or_else(|_| panic!("{k} = {:?}", row[k]))
+}
+
+#[test]
+fn a_linear_well_scales_with_the_drive_amplitude() {
+    let dir = tempfile::tempdir().unwrap();
+    let case = write_case(dir.path());
+    let out = dir.path().join("amp");
+    let assert = boreflux()
+        .args([
+            "sweep",
+            case.to_str().unwrap(),
+            "-q",
+            "-o",
+            out.to_str().unwrap(),
+        ])
+        .args(["--vary", "drive.amplitude=0.5 m,1 m,2 m"])
+        .assert()
+        .success();
+    let stdout = String::from_utf8_lossy(&assert.get_output().stdout).to_string();
+    assert!(
+        stdout.contains("3 scenarios") && stdout.contains("Caution"),
+        "{stdout}"
+    );
+    let rows = csv_rows(&out.with_extension("csv"));
+    assert_eq!(rows.len(), 3);
+    // Superposition (the discrete Darcy system is linear and starts at rest; common
+    // knowledge, no source): fluxes scale with the amplitude, dissipated work with its
+    // square, to round-off.
+    let base = &rows[0];
+    for (row, a) in rows.iter().zip([1.0, 2.0, 4.0]) {
+        assert_eq!(row["status"], "ok");
+        assert_eq!(num(row, "drive.amplitude_si"), 0.5 * a);
+        for k in [
+            "peak_outward_flux_m_s",
+            "peak_inward_flux_m_s",
+            "peak_shear_pa",
+        ] {
+            let ratio = num(row, k) / num(base, k);
+            assert!(
+                (ratio - a).abs() <= 1e-9 * a,
+                "{k}: ratio {ratio}, expected {a}"
+            );
+        }
+        for k in ["work_pack_j", "work_formation_j"] {
+            let ratio = num(row, k) / num(base, k);
+            assert!((ratio - a * a).abs() <= 1e-9 * a * a, "{k}: {ratio}");
+        }
+    }
+}
+
+#[test]
+fn a_scenario_row_matches_a_run_of_the_same_case() {
+    let dir = tempfile::tempdir().unwrap();
+    let case = write_case(dir.path());
+    let out = dir.path().join("f");
+    boreflux()
+        .args([
+            "sweep",
+            case.to_str().unwrap(),
+            "-q",
+            "-o",
+            out.to_str().unwrap(),
+        ])
+        .args(["--vary", "drive.frequency=0.25,0.5", "--jobs", "2"])
+        .assert()
+        .success();
+    let rows = csv_rows(&out.with_extension("csv"));
+    // The same scenario written out and run on its own (`boreflux run --json`).
+    let mut v: serde_json::Value = serde_json::from_str(LINEAR_CASE).unwrap();
+    v["drive"]["frequency"] = serde_json::json!(0.25);
+    let single = dir.path().join("single.json");
+    std::fs::write(&single, v.to_string()).unwrap();
+    let run = boreflux()
+        .args(["run", single.to_str().unwrap(), "-q", "--json", "-o"])
+        .arg(dir.path().join("single.h5"))
+        .assert()
+        .success();
+    let h: serde_json::Value = serde_json::from_slice(&run.get_output().stdout).unwrap();
+    for k in [
+        "peak_outward_flux_m_s",
+        "rms_face_flux_m_s",
+        "skin_end",
+        "steps",
+    ] {
+        let want = h[k].as_f64().unwrap();
+        let got = num(&rows[0], k);
+        assert!(
+            (got - want).abs() <= 1e-15 * want.abs(),
+            "{k}: {got} vs {want}"
+        );
+    }
+}
+
+#[test]
+fn shards_merge_into_the_whole_sweep() {
+    let dir = tempfile::tempdir().unwrap();
+    let case = write_case(dir.path());
+    let sweep = |out: &str, shard: Option<&str>| {
+        let mut c = boreflux();
+        c.args(["sweep", case.to_str().unwrap(), "-q", "-o"])
+            .arg(dir.path().join(out))
+            .args([
+                "--vary",
+                "drive.frequency=0.25..1:3",
+                "--vary",
+                "pack.outer_radius=0.15,0.25",
+            ]);
+        if let Some(s) = shard {
+            c.args(["--shard", s]);
+        }
+        c.assert().success();
+    };
+    sweep("whole", None);
+    for k in 1..=4 {
+        sweep(&format!("part-{k}"), Some(&format!("{k}/4")));
+    }
+    let parts: Vec<String> = (1..=4)
+        .map(|k| {
+            dir.path()
+                .join(format!("part-{k}.h5"))
+                .display()
+                .to_string()
+        })
+        .collect();
+    // Leaving one shard out is refused, naming what is missing.
+    let missing = boreflux()
+        .arg("merge")
+        .args(&parts[..3])
+        .arg("-o")
+        .arg(dir.path().join("merged"))
+        .assert()
+        .code(2);
+    let err = String::from_utf8_lossy(&missing.get_output().stderr).to_string();
+    assert!(
+        err.contains("1 of 6 scenarios are missing (scenario 3)"),
+        "{err}"
+    );
+    assert!(!dir.path().join("merged.csv").exists());
+    boreflux()
+        .arg("merge")
+        .args(&parts)
+        .arg("-o")
+        .arg(dir.path().join("merged"))
+        .assert()
+        .success();
+    let read = |n: &str| std::fs::read_to_string(dir.path().join(n)).unwrap();
+    assert_eq!(read("merged.csv"), read("whole.csv"));
+}
+
+#[test]
+fn bad_sweeps_are_refused_before_anything_runs() {
+    let dir = tempfile::tempdir().unwrap();
+    let case = write_case(dir.path());
+    let refuse = |args: &[&str], expect: &str| {
+        let a = boreflux()
+            .args(["sweep", case.to_str().unwrap(), "-q"])
+            .args(args)
+            .assert()
+            .code(2);
+        let err = String::from_utf8_lossy(&a.get_output().stderr).to_string();
+        assert!(err.contains(expect), "{args:?}: {err}");
+    };
+    let out = dir.path().join("t").display().to_string();
+    refuse(
+        &["-o", &out, "--vary", "pack.porosity=0.3,1.3"],
+        "scenario 1 (pack.porosity = 1.3): pack.porosity: must be between 0 and 1",
+    );
+    refuse(
+        &["-o", &out, "--vary", "drive.amplitud=1,2"],
+        "did you mean `amplitude`",
+    );
+    refuse(&["-o", &out, "--vary", "drive.amplitude=1..2"], "A..B:N");
+    refuse(
+        &[
+            "-o",
+            &out,
+            "--vary",
+            "drive.amplitude=1,2",
+            "--shard",
+            "3/2",
+        ],
+        "--shard 3/2",
+    );
+    // The table would replace the case file itself (a case kept under a .csv name).
+    let odd = dir.path().join("linear.csv");
+    std::fs::copy(&case, &odd).unwrap();
+    let a = boreflux()
+        .args([
+            "sweep",
+            odd.to_str().unwrap(),
+            "-q",
+            "--vary",
+            "drive.amplitude=1,2",
+            "-o",
+        ])
+        .arg(dir.path().join("linear"))
+        .assert()
+        .code(2);
+    let err = String::from_utf8_lossy(&a.get_output().stderr).to_string();
+    assert!(err.contains("which is the case file itself"), "{err}");
+    // Nothing was written: only the two case files are there.
+    let mut names: Vec<String> = std::fs::read_dir(dir.path())
+        .unwrap()
+        .map(|e| e.unwrap().file_name().to_string_lossy().to_string())
+        .collect();
+    names.sort();
+    assert_eq!(names, ["linear.csv", "linear.json"]);
+}
