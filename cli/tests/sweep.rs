@@ -261,3 +261,47 @@ fn bad_sweeps_are_refused_before_anything_runs() {
     names.sort();
     assert_eq!(names, ["linear.csv", "linear.json"]);
 }
+
+/// Ctrl-C (SIGINT) stops every scenario after its current step and writes no table
+/// (DESIGN.md: nothing partial left behind).
+#[test]
+fn an_interrupted_sweep_writes_nothing() {
+    let dir = tempfile::tempdir().unwrap();
+    let mut v: serde_json::Value = serde_json::from_str(LINEAR_CASE).unwrap();
+    // Long enough to be running when the signal comes (a few seconds per scenario).
+    v["duration"] = serde_json::json!("100000 cycles");
+    let case = dir.path().join("long.json");
+    std::fs::write(&case, v.to_string()).unwrap();
+    let out = dir.path().join("out");
+    std::fs::create_dir(&out).unwrap();
+    // assert_cmd cannot signal a running child; start the same binary with std.
+    let mut child = std::process::Command::new(env!("CARGO_BIN_EXE_boreflux"))
+        .arg("sweep")
+        .arg(&case)
+        .args(["-q", "--vary", "drive.amplitude=1,2,3,4", "-o"])
+        .arg(out.join("t"))
+        .stdout(std::process::Stdio::null())
+        .stderr(std::process::Stdio::piped())
+        .spawn()
+        .unwrap();
+    std::thread::sleep(std::time::Duration::from_millis(500));
+    assert!(
+        child.try_wait().unwrap().is_none(),
+        "the sweep ended before it could be interrupted"
+    );
+    let kill = std::process::Command::new("kill")
+        .args(["-INT", &child.id().to_string()])
+        .status()
+        .unwrap();
+    assert!(kill.success());
+    let status = child.wait().unwrap();
+    let mut stderr = String::new();
+    std::io::Read::read_to_string(child.stderr.as_mut().unwrap(), &mut stderr).unwrap();
+    assert!(!status.success(), "an interrupted sweep reported success");
+    assert!(stderr.contains("interrupted by the user"), "{stderr}");
+    assert_eq!(
+        std::fs::read_dir(&out).unwrap().count(),
+        0,
+        "files left after Ctrl-C"
+    );
+}
