@@ -9,93 +9,21 @@ use super::interrupt::{catch_interrupts, interrupted, INTERRUPTED_MESSAGE};
 use super::run::refuse_overwriting_inputs;
 use super::{print_out, Failure};
 use crate::args::SweepArgs;
-use crate::case::{parse_case, LoadedCase};
-use crate::summary::{headline, Headline, Tracker};
+use crate::sweep::exec::{prepare, run_all, tabulate};
 use crate::sweep::plan::{Plan, Shard};
-use crate::sweep::spec::{parse_vary, Segment};
-use crate::sweep::table::{figures, Row, Table};
+use crate::sweep::spec::parse_vary;
+use crate::sweep::table::Table;
 use anyhow::anyhow;
 use boreflux_solver::safety::CAUTION;
-use boreflux_solver::{run as simulate, Reporting, StepObserver, StepView};
 use indicatif::{ProgressBar, ProgressDrawTarget, ProgressStyle};
 use serde_json::Value;
 use std::path::{Path, PathBuf};
-use std::sync::atomic::{AtomicUsize, Ordering};
-use std::sync::Mutex;
-
-/// Case-check failures listed before the rest are counted.
-const LISTED_ERRORS: usize = 5;
-
-/// The tracker, stopping the run on Ctrl-C.
-struct Observer(Tracker);
-
-impl StepObserver for Observer {
-    fn on_step(&mut self, s: &StepView<'_>) -> bool {
-        !interrupted() && self.0.on_step(s)
-    }
-}
 
 /// `NAME.csv`/`NAME.h5` → `NAME`.
 pub(super) fn output_stem(output: &Path) -> PathBuf {
     match output.extension().and_then(|e| e.to_str()) {
         Some("csv" | "h5") => output.with_extension(""),
         _ => output.to_path_buf(),
-    }
-}
-
-/// The varied value in SI: where the resolved (SI) case holds a number at the path, that;
-/// otherwise a bare number as given (a count such as strokes per minute, which the loader
-/// stores under another key); NaN for words.
-fn si_value(resolved: &Value, segments: &[Segment], given: &Value) -> f64 {
-    let mut v = resolved;
-    for s in segments {
-        v = match s {
-            Segment::Key(k) => &v[k.as_str()],
-            Segment::Index(i) => &v[*i],
-        };
-    }
-    v.as_f64().or_else(|| given.as_f64()).unwrap_or(f64::NAN)
-}
-
-/// One scenario, checked and ready to run.
-struct Prepared {
-    scenario: usize,
-    labels: Vec<String>,
-    case: LoadedCase,
-}
-
-/// What a worker brings back: the row without its figure columns, and the figures.
-type Outcome = (Row, Vec<(String, f64)>);
-
-fn run_one(p: &Prepared, plan: &Plan) -> Outcome {
-    let si = plan
-        .variables
-        .iter()
-        .zip(plan.choice(p.scenario))
-        .map(|(v, c)| si_value(&p.case.resolved, &v.segments, &v.values[c]))
-        .collect();
-    let mut row = Row {
-        scenario: p.scenario,
-        labels: p.labels.clone(),
-        si,
-        status: "ok".into(),
-        figures: Vec::new(),
-        warnings: String::new(),
-    };
-    let mut obs = Observer(Tracker::new(&p.case.model));
-    let reporting = Reporting {
-        every: p.case.output_every,
-    };
-    match simulate(&p.case.model, &mut obs, reporting) {
-        Ok(summary) => {
-            let h: Headline = headline(&p.case, &summary, &obs.0);
-            row.warnings = h.warnings.join("\n");
-            (row, figures(&h))
-        }
-        Err(e) => {
-            row.status = format!("simulation failed: {e}");
-            (row, Vec::new())
-        }
     }
 }
 
@@ -112,107 +40,6 @@ fn progress_bar(quiet: bool, n: usize) -> ProgressBar {
         .progress_chars("=> "),
     );
     bar
-}
-
-/// Builds and checks every scenario of the shard; bad input names the scenario, its values
-/// and the case loader's message.
-fn prepare(plan: &Plan, shard: Shard, base_dir: &Path) -> Result<Vec<Prepared>, Failure> {
-    let total = plan.count().unwrap_or(0);
-    let mut ready = Vec::new();
-    let mut errors = Vec::new();
-    for i in (0..total).filter(|&i| shard.holds(i)) {
-        let labels = plan.labels(i);
-        let described = || {
-            let values: Vec<String> = plan
-                .variables
-                .iter()
-                .zip(&labels)
-                .map(|(v, l)| format!("{} = {l}", v.path))
-                .collect();
-            format!("scenario {i} ({})", values.join(", "))
-        };
-        let text = plan
-            .scenario(i)
-            .map_err(|e| Failure::Input(anyhow!("{e}")))?
-            .to_string();
-        match parse_case(&text, base_dir) {
-            Ok(case) => ready.push(Prepared {
-                scenario: i,
-                labels,
-                case,
-            }),
-            Err(e) => errors.push(format!("{}: {e}", described())),
-        }
-    }
-    if errors.is_empty() {
-        return Ok(ready);
-    }
-    let more = errors.len().saturating_sub(LISTED_ERRORS);
-    let mut msg = errors
-        .into_iter()
-        .take(LISTED_ERRORS)
-        .collect::<Vec<_>>()
-        .join("\n  ");
-    if more > 0 {
-        msg.push_str(&format!("\n  … and {more} more"));
-    }
-    Err(Failure::Input(anyhow!(
-        "some scenarios are not valid cases; nothing was run:\n  {msg}"
-    )))
-}
-
-/// Runs the prepared scenarios on `jobs` threads; None when interrupted.
-fn run_all(
-    ready: &[Prepared],
-    plan: &Plan,
-    jobs: usize,
-    bar: &ProgressBar,
-) -> Option<Vec<Outcome>> {
-    let next = AtomicUsize::new(0);
-    let done: Mutex<Vec<Option<Outcome>>> = Mutex::new(vec![None; ready.len()]);
-    std::thread::scope(|scope| {
-        for _ in 0..jobs.clamp(1, ready.len().max(1)) {
-            scope.spawn(|| loop {
-                let k = next.fetch_add(1, Ordering::SeqCst);
-                if k >= ready.len() || interrupted() {
-                    break;
-                }
-                let outcome = run_one(&ready[k], plan);
-                bar.set_message(format!("last: scenario {}", ready[k].scenario));
-                bar.inc(1);
-                done.lock().expect("no worker panics holding the lock")[k] = Some(outcome);
-            });
-        }
-    });
-    if interrupted() {
-        return None;
-    }
-    done.into_inner()
-        .expect("no worker panicked holding the lock")
-        .into_iter()
-        .collect()
-}
-
-/// Puts the outcomes into a table: the figure columns are those of the first scenario that
-/// ran (every headline has the same fields); failed scenarios get NaN.
-pub(super) fn tabulate(outcomes: Vec<Outcome>) -> (Vec<String>, Vec<Row>) {
-    let columns: Vec<String> = outcomes
-        .iter()
-        .find(|(_, f)| !f.is_empty())
-        .map(|(_, f)| f.iter().map(|(n, _)| n.clone()).collect())
-        .unwrap_or_default();
-    let rows = outcomes
-        .into_iter()
-        .map(|(mut row, f)| {
-            row.figures = if f.is_empty() {
-                vec![f64::NAN; columns.len()]
-            } else {
-                f.into_iter().map(|(_, x)| x).collect()
-            };
-            row
-        })
-        .collect();
-    (columns, rows)
 }
 
 /// A short text table of the key figures, one line per scenario.
@@ -300,7 +127,7 @@ pub fn sweep(a: &SweepArgs) -> Result<(), Failure> {
         .filter(|p| !p.as_os_str().is_empty())
         .unwrap_or(Path::new("."));
     let total = plan.count().unwrap_or(0);
-    let ready = prepare(&plan, shard, base_dir)?;
+    let ready = prepare(&plan, shard, base_dir).map_err(|e| Failure::Input(anyhow!(e)))?;
     if ready.is_empty() {
         return Err(Failure::Input(anyhow!(
             "shard {shard} holds no scenario of the {total}; use at most {total} shards"
@@ -312,7 +139,11 @@ pub fn sweep(a: &SweepArgs) -> Result<(), Failure> {
     catch_interrupts();
     let started = std::time::Instant::now();
     let bar = progress_bar(a.quiet, ready.len());
-    let outcomes = run_all(&ready, &plan, jobs, &bar);
+    let done = |scenario: usize| {
+        bar.set_message(format!("last: scenario {scenario}"));
+        bar.inc(1);
+    };
+    let outcomes = run_all(&ready, &plan, jobs, &interrupted, &done);
     bar.finish_and_clear();
     let Some(outcomes) = outcomes else {
         return Err(Failure::Runtime(anyhow!(INTERRUPTED_MESSAGE)));

@@ -1,0 +1,194 @@
+//! Running a sweep: every scenario of the shard is built and checked first, then they run
+//! on a pool of scoped threads (each its own solver run; nothing is shared but the job
+//! counter and the result slots), each with the same solver and headline as `boreflux
+//! run`. A scenario that fails at run time keeps its row, with the reason in `status`.
+
+use super::plan::{Plan, Shard};
+use super::spec::Segment;
+use super::table::{figures, Row};
+use crate::case::{parse_case, LoadedCase};
+use crate::summary::{headline, Tracker};
+use boreflux_solver::{run as simulate, Reporting, StepObserver, StepView};
+use serde_json::Value;
+use std::path::Path;
+use std::sync::atomic::{AtomicUsize, Ordering};
+use std::sync::Mutex;
+
+/// Case-check failures listed before the rest are counted.
+const LISTED_ERRORS: usize = 5;
+
+/// One scenario, checked and ready to run.
+#[derive(Debug)]
+pub struct Prepared {
+    /// Index in the whole sweep.
+    pub scenario: usize,
+    /// The varied values as written.
+    pub labels: Vec<String>,
+    /// The scenario's case.
+    pub case: LoadedCase,
+}
+
+/// A finished scenario: its row (figures not yet in columns) and its figures by name.
+pub type Outcome = (Row, Vec<(String, f64)>);
+
+/// The tracker, stopping the run when `stop` says so.
+struct Observer<'a> {
+    tracker: Tracker,
+    stop: &'a (dyn Fn() -> bool + Sync),
+}
+
+impl StepObserver for Observer<'_> {
+    fn on_step(&mut self, s: &StepView<'_>) -> bool {
+        !(self.stop)() && self.tracker.on_step(s)
+    }
+}
+
+/// The varied value in SI: where the resolved (SI) case holds a number at the path, that;
+/// otherwise a bare number as given (a count such as strokes per minute, which the loader
+/// stores under another key); NaN for words.
+fn si_value(resolved: &Value, segments: &[Segment], given: &Value) -> f64 {
+    let mut v = resolved;
+    for s in segments {
+        v = match s {
+            Segment::Key(k) => &v[k.as_str()],
+            Segment::Index(i) => &v[*i],
+        };
+    }
+    v.as_f64().or_else(|| given.as_f64()).unwrap_or(f64::NAN)
+}
+
+/// Builds and checks every scenario of the shard. The error lists the first few bad
+/// scenarios, each with its values and the case loader's message.
+pub fn prepare(plan: &Plan, shard: Shard, base_dir: &Path) -> Result<Vec<Prepared>, String> {
+    let total = plan.count().unwrap_or(0);
+    let mut ready = Vec::new();
+    let mut errors = Vec::new();
+    for i in (0..total).filter(|&i| shard.holds(i)) {
+        let labels = plan.labels(i);
+        let text = plan.scenario(i).map_err(|e| e.to_string())?.to_string();
+        match parse_case(&text, base_dir) {
+            Ok(case) => ready.push(Prepared {
+                scenario: i,
+                labels,
+                case,
+            }),
+            Err(e) => {
+                let values: Vec<String> = plan
+                    .variables
+                    .iter()
+                    .zip(&labels)
+                    .map(|(v, l)| format!("{} = {l}", v.path))
+                    .collect();
+                errors.push(format!("scenario {i} ({}): {e}", values.join(", ")));
+            }
+        }
+    }
+    if errors.is_empty() {
+        return Ok(ready);
+    }
+    let more = errors.len().saturating_sub(LISTED_ERRORS);
+    let mut msg = errors
+        .into_iter()
+        .take(LISTED_ERRORS)
+        .collect::<Vec<_>>()
+        .join("\n  ");
+    if more > 0 {
+        msg.push_str(&format!("\n  … and {more} more"));
+    }
+    Err(format!(
+        "some scenarios are not valid cases; nothing was run:\n  {msg}"
+    ))
+}
+
+/// Runs one scenario to its row.
+fn run_one(p: &Prepared, plan: &Plan, stop: &(dyn Fn() -> bool + Sync)) -> Outcome {
+    let si = plan
+        .variables
+        .iter()
+        .zip(plan.choice(p.scenario))
+        .map(|(v, c)| si_value(&p.case.resolved, &v.segments, &v.values[c]))
+        .collect();
+    let mut row = Row {
+        scenario: p.scenario,
+        labels: p.labels.clone(),
+        si,
+        status: "ok".into(),
+        figures: Vec::new(),
+        warnings: String::new(),
+    };
+    let mut obs = Observer {
+        tracker: Tracker::new(&p.case.model),
+        stop,
+    };
+    let reporting = Reporting {
+        every: p.case.output_every,
+    };
+    match simulate(&p.case.model, &mut obs, reporting) {
+        Ok(summary) => {
+            let h = headline(&p.case, &summary, &obs.tracker);
+            row.warnings = h.warnings.join("\n");
+            (row, figures(&h))
+        }
+        Err(e) => {
+            row.status = format!("simulation failed: {e}");
+            (row, Vec::new())
+        }
+    }
+}
+
+/// Runs the prepared scenarios on `jobs` threads (at least one), calling `done(scenario)`
+/// as each finishes. None when `stop` turned true: the runs then end after their current
+/// step and nothing is returned.
+pub fn run_all(
+    ready: &[Prepared],
+    plan: &Plan,
+    jobs: usize,
+    stop: &(dyn Fn() -> bool + Sync),
+    done: &(dyn Fn(usize) + Sync),
+) -> Option<Vec<Outcome>> {
+    let next = AtomicUsize::new(0);
+    let slots: Mutex<Vec<Option<Outcome>>> = Mutex::new(vec![None; ready.len()]);
+    std::thread::scope(|scope| {
+        for _ in 0..jobs.clamp(1, ready.len().max(1)) {
+            scope.spawn(|| loop {
+                let k = next.fetch_add(1, Ordering::SeqCst);
+                if k >= ready.len() || stop() {
+                    break;
+                }
+                let outcome = run_one(&ready[k], plan, stop);
+                done(ready[k].scenario);
+                slots.lock().expect("no worker panics holding the lock")[k] = Some(outcome);
+            });
+        }
+    });
+    if stop() {
+        return None;
+    }
+    slots
+        .into_inner()
+        .expect("no worker panicked holding the lock")
+        .into_iter()
+        .collect()
+}
+
+/// Puts the outcomes into columns: the figure columns are those of the first scenario that
+/// ran (every headline has the same fields); failed scenarios get NaN.
+pub fn tabulate(outcomes: Vec<Outcome>) -> (Vec<String>, Vec<Row>) {
+    let columns: Vec<String> = outcomes
+        .iter()
+        .find(|(_, f)| !f.is_empty())
+        .map(|(_, f)| f.iter().map(|(n, _)| n.clone()).collect())
+        .unwrap_or_default();
+    let rows = outcomes
+        .into_iter()
+        .map(|(mut row, f)| {
+            row.figures = if f.is_empty() {
+                vec![f64::NAN; columns.len()]
+            } else {
+                f.into_iter().map(|(_, x)| x).collect()
+            };
+            row
+        })
+        .collect();
+    (columns, rows)
+}
