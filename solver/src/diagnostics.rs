@@ -173,19 +173,9 @@ pub fn face_state(model: &Model, st: &Stepper) -> FaceState {
 }
 
 /// Instantaneous power per zone at the end of the step, W.
-pub fn power_now(model: &Model, st: &Stepper) -> [f64; ZONE_COUNT] {
-    let d = &st.disc;
-    let h = st.heads();
-    let mut p = [0.0; ZONE_COUNT];
-    let last = h.len() - 1;
-    for j in 0..last {
-        d.faces[j].add_dissipation(h[j] - h[j + 1], &mut p);
-    }
-    if d.outer_open {
-        d.faces[last].add_dissipation(h[last], &mut p);
-    }
+pub fn power_now(model: &Model, st: &mut Stepper) -> [f64; ZONE_COUNT] {
     let rho_g = model.fluid.density_kg_m3 * GRAVITY_M_S2;
-    p.map(|x| x * rho_g)
+    st.end_power().map(|x| x * rho_g)
 }
 
 /// Accumulates per-cycle aggregates from per-step values.

@@ -358,7 +358,7 @@ pub fn run(
                 cake_thickness_m: cake_state.map_or(0.0, |c| c.thickness_m),
                 cake_coverage: cake_state.map_or(0.0, |c| c.coverage),
                 skin: skin_now,
-                power_w: power_now(model, &st),
+                power_w: power_now(model, &mut st),
                 work_j: summary.work_j,
                 screen_volume_m3: b.volume_in_m3,
                 device_volume_m3: b.device_volume_m3,

@@ -45,6 +45,7 @@ use crate::system::{CakeState, Discretization};
 use crate::tridiag::Factored;
 
 mod newton;
+mod power;
 mod predictor;
 mod residual;
 mod well;
@@ -121,6 +122,13 @@ pub struct Stepper {
     face_q: Vec<f64>,
     /// See `face_dh`.
     face_g: Vec<f64>,
+    /// Head drop, flow and dQ/dΔh of every face at the end-of-step heads, for the power
+    /// series (see `stepper/power.rs`).
+    end_dh: Vec<f64>,
+    /// See `end_dh`.
+    end_q: Vec<f64>,
+    /// See `end_dh`.
+    end_g: Vec<f64>,
     /// Newton iterate before the last update, m.
     y_prev: Vec<f64>,
     /// Last Newton update, m.
@@ -133,6 +141,8 @@ pub struct Stepper {
     /// S_j/(θΔt) of the factored matrix: the right-hand side is gain_j h_j (j ≥ 1).
     gain: Vec<f64>,
     linear: bool,
+    /// Whether every face law is linear (the drive may still make the step nonlinear).
+    faces_linear: bool,
     newton_tolerance: f64,
     newton_max_iterations: usize,
     /// Current time, s.
@@ -148,7 +158,8 @@ impl Stepper {
         let n = disc.unknowns();
         let mut h = vec![0.0; n];
         h[0] = model.drive.initial_well_head_m();
-        let linear = disc.is_linear() && !model.drive.is_head_dependent();
+        let disc_linear = disc.is_linear();
+        let linear = disc_linear && !model.drive.is_head_dependent();
         Stepper {
             disc,
             y: h.clone(),
@@ -166,10 +177,14 @@ impl Stepper {
             face_dh: vec![0.0; n],
             face_q: vec![0.0; n],
             face_g: vec![0.0; n],
+            end_dh: vec![0.0; n],
+            end_q: vec![0.0; n],
+            end_g: vec![0.0; n],
             head_dependent: model.drive.is_head_dependent(),
             delta: vec![0.0; n],
             inflow_response: vec![0.0; n],
             linear,
+            faces_linear: disc_linear,
             newton_tolerance: model.numerics.newton_tolerance,
             newton_max_iterations: model.numerics.newton_max_iterations,
             time_s: 0.0,
@@ -190,6 +205,7 @@ impl Stepper {
     /// Rebuilds the face laws after the cake changed.
     pub fn set_cake(&mut self, model: &Model, cake: Option<CakeState>) {
         self.disc.rebuild_faces(model, cake);
+        self.faces_linear = self.disc.is_linear();
         self.factored_for = None;
     }
 
@@ -284,7 +300,9 @@ impl Stepper {
             });
         }
         let mut dissipated = [0.0; ZONE_COUNT];
-        self.dissipation(&mut dissipated);
+        // The Newton iteration left the flows of the converged heads in face_q.
+        let faces = (!self.linear).then_some((&self.face_q[..], &self.face_dh[..]));
+        self.zone_power(&self.y, faces, &mut dissipated);
         let faces = &self.disc.faces;
         let last = n - 1;
         let q_out = if self.disc.outer_open {
@@ -365,62 +383,6 @@ impl Stepper {
             self.h[0] = self.algebraic_well_head(model, t_new)?;
         }
         Ok(())
-    }
-
-    /// Dissipation per zone at the θ-point heads, m⁴/s (times ρg: watts).
-    fn dissipation(&self, out: &mut [f64; ZONE_COUNT]) {
-        let d = &self.disc;
-        let y = &self.y;
-        let n = y.len();
-        for (run, zone) in &d.pure_runs {
-            let mut lanes = [0.0f64; LANES];
-            if self.linear {
-                let end = run.end.min(n - 1);
-                let (c, y0, y1) = (
-                    &d.conductance[run.start..end],
-                    &y[run.start..end],
-                    &y[run.start + 1..=end],
-                );
-                let (cc, c0, c1) = (
-                    c.chunks_exact(LANES),
-                    y0.chunks_exact(LANES),
-                    y1.chunks_exact(LANES),
-                );
-                for ((&c, &a), &b) in cc
-                    .remainder()
-                    .iter()
-                    .zip(c0.remainder())
-                    .zip(c1.remainder())
-                {
-                    lanes[0] += c * (a - b) * (a - b);
-                }
-                for ((c, a), b) in cc.zip(c0).zip(c1) {
-                    for l in 0..LANES {
-                        lanes[l] += c[l] * (a[l] - b[l]) * (a[l] - b[l]);
-                    }
-                }
-                if run.end == n {
-                    lanes[0] += d.conductance[n - 1] * y[n - 1] * y[n - 1];
-                }
-            } else {
-                // The Newton iteration left the flows of the converged heads in face_q.
-                let (q, dh) = (&self.face_q[run.clone()], &self.face_dh[run.clone()]);
-                let (qc, dc) = (q.chunks_exact(LANES), dh.chunks_exact(LANES));
-                for (&q, &dh) in qc.remainder().iter().zip(dc.remainder()) {
-                    lanes[0] += q * dh;
-                }
-                for (q, dh) in qc.zip(dc) {
-                    for l in 0..LANES {
-                        lanes[l] += q[l] * dh[l];
-                    }
-                }
-            }
-            out[*zone as usize] += lanes.iter().sum::<f64>();
-        }
-        for &f in &d.mixed_faces {
-            let dh = y[f] - if f + 1 < n { y[f + 1] } else { 0.0 };
-            d.faces[f].add_dissipation(dh, out);
-        }
     }
 
     /// Right-hand side of the well row and its diagonal term from the device.
