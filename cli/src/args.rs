@@ -101,9 +101,12 @@ number indexing an array (drive.stages.1.drive.stroke). Several --vary make a Ca
 product; the last one changes fastest. Every scenario is checked before any is run.
 
 Examples:
-  boreflux sweep cases/municipal-sand-gravel.json --vary drive.strokes_per_minute=10..40:4 -o out/rate
-  boreflux sweep cases/swab-deep.json --vary drive.stroke=\"2 m,4 m,6 m\" --vary drive.lift_rate=0.5,1,1.5 -o out/swab
-  boreflux sweep CASE --vary ... -o out/part-2 --shard 2/8   (then: boreflux merge out/part-*.h5 -o out/all)";
+  boreflux sweep cases/municipal-sand-gravel.json -o out/rate \\
+      --vary drive.strokes_per_minute=10..40:4
+  boreflux sweep cases/swab-deep.json -o out/swab \\
+      --vary drive.stroke=\"2 m,4 m,6 m\" --vary drive.lift_rate=0.5,1,1.5
+  boreflux sweep CASE --vary ... -o out/part-2 --shard 2/8
+  boreflux merge out/part-*.h5 -o out/all";
 
 /// Arguments of `sweep`.
 #[derive(Debug, clap::Args)]
