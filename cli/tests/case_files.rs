@@ -514,7 +514,7 @@ const BAD_CASES: &[(&str, &str, &[&str])] = &[
     ("pack_inside_screen", "pack.outer_radius", &["larger than well.screen_radius (0.1 m)", "got 0.08 m"]),
     ("outer_radius_inside_borehole", "formation.outer_radius", &["well beyond the borehole", "got 0.2 m"]),
     ("unknown_drive_kind", "drive.kind", &["unknown drive kind \"surge\"", "sine_head, constant_rate, slug, table"]),
-    ("harmonic_method", "numerics.method", &["\"harmonic\" is not available in this version; use \"time\""]),
+    ("harmonic_method", "numerics.method", &["\"harmonic\" is not available for a run", "`boreflux check` prints the periodic steady state"]),
     ("conductivity_in_length_unit", "pack.conductivity", &["\"mm\" is a unit of length", "conductivity is expected"]),
     ("unknown_unit", "well.screen_radius", &["unknown unit \"inchs\"", "m, cm, mm, in, ft"]),
     ("unit_letter_case", "drive.frequency", &["unknown unit \"hz\"", "did you mean \"Hz\"?"]),

@@ -48,7 +48,7 @@ pub struct StepView<'a> {
     pub cake_coverage: f64,
     /// Total skin referred to the formation (Hawkins), –.
     pub skin: f64,
-    /// Power dissipated per zone, W (index by [`Zone`]).
+    /// Power dissipated per zone, W (index by [`crate::grid::Zone`]).
     pub power_w: [f64; ZONE_COUNT],
     /// Cumulative work dissipated per zone, J.
     pub work_j: [f64; ZONE_COUNT],

@@ -16,6 +16,7 @@ pub mod drive;
 pub mod error;
 pub mod faces;
 pub mod grid;
+pub mod harmonic;
 pub mod media;
 pub mod model;
 pub mod run;

@@ -30,6 +30,11 @@ pub fn all() -> Vec<Group> {
             run: periodic,
         },
         Group {
+            id: "harmonic",
+            title: "Harmonic method vs the periodic well-face head solution",
+            run: crate::harmonic::analytic_periodic,
+        },
+        Group {
             id: "slug",
             title: "Cooper–Bredehoeft–Papadopulos (1967) slug test",
             run: slug,

@@ -10,6 +10,7 @@ pub mod checks;
 pub mod development;
 pub mod drives;
 pub mod fit;
+pub mod harmonic;
 pub mod models;
 pub mod reference;
 

@@ -33,6 +33,11 @@ fn thiem_steady_composite() {
 }
 
 #[test]
+fn harmonic_method_periodic_state() {
+    assert_group("harmonic");
+}
+
+#[test]
 fn theis_constant_rate() {
     assert_group("theis");
 }

@@ -103,7 +103,9 @@ pub fn numerics(raw: &RawNumerics, period_s: Option<f64>) -> Result<NumericsOut,
     if raw.method == Some(MethodName::Harmonic) {
         return Err(CaseError::new(
             "numerics.method",
-            "\"harmonic\" is not available in this version; use \"time\"",
+            "\"harmonic\" is not available for a run, which always steps in time; use \"time\" \
+             (`boreflux check` prints the periodic steady state of a linear case by the harmonic \
+             method)",
         ));
     }
     let grid = cells(raw.cells.as_ref().map(|c| &c.0))?;

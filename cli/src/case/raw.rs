@@ -220,7 +220,8 @@ pub struct RawFormation {
 pub enum MethodName {
     /// Time stepping (θ-scheme).
     Time,
-    /// Periodic steady state by harmonics (not available in this version).
+    /// Periodic steady state by harmonics (not for runs: `boreflux check` prints it for
+    /// linear cases).
     Harmonic,
 }
 

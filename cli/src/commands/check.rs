@@ -9,6 +9,7 @@ use crate::case::{load_case, LoadedCase};
 use crate::summary::G;
 use anyhow::anyhow;
 use boreflux_solver::grid::{Zone, ZONE_COUNT};
+use boreflux_solver::harmonic;
 use boreflux_solver::model::Medium;
 use boreflux_solver::run::{default_first_step, total_skin, DEFAULT_STEPS_PER_CYCLE};
 use boreflux_solver::safety::CAUTION;
@@ -81,6 +82,38 @@ fn parse_width(text: &str) -> Result<f64, Failure> {
     .map_err(|e| Failure::Input(anyhow!("--annulus: {text}: {e}")))
 }
 
+/// Samples per period when the periodic state's peaks are read off.
+const PERIODIC_SAMPLES: usize = 256;
+
+/// Harmonics of a repeating head table kept by the harmonic method in `check`.
+const PERIODIC_HARMONICS: usize = 32;
+
+/// The periodic steady state by the harmonic method (linear cases under a periodic
+/// prescribed head): period, peak screen flow and wall face flux over a period, mean power
+/// per zone; or why the method does not apply.
+fn periodic_state(m: &Model) -> Result<serde_json::Value, String> {
+    let sol = harmonic::solve(m, PERIODIC_HARMONICS).map_err(|e| e.to_string())?;
+    let p = sol.period_s();
+    let wall = sol.disc.grid.borehole_face;
+    let area = 2.0 * PI * m.borehole_radius_m() * m.well.screen_length_m;
+    let peak = |f: usize| {
+        (0..PERIODIC_SAMPLES)
+            .map(|i| {
+                sol.face_flow_m3_s(f, p * i as f64 / PERIODIC_SAMPLES as f64)
+                    .abs()
+            })
+            .fold(0.0, f64::max)
+    };
+    let rho_g = m.fluid.density_kg_m3 * boreflux_solver::water::GRAVITY_M_S2;
+    let power = sol.mean_dissipation_m4_s();
+    Ok(json!({
+        "period_s": p,
+        "peak_screen_flow_m3_s": peak(0),
+        "peak_wall_face_flux_m_s": peak(wall) / area,
+        "mean_power_w": Zone::ALL.iter().map(|z| (z.name().to_string(), json!(rho_g * power[*z as usize]))).collect::<serde_json::Map<_, _>>(),
+    }))
+}
+
 /// Runs the command.
 pub fn check(a: &CheckArgs) -> Result<(), Failure> {
     let case: LoadedCase =
@@ -131,8 +164,13 @@ pub fn check(a: &CheckArgs) -> Result<(), Failure> {
         let (q, wc, wp) = annulus_run(m, width)?;
         widths.push((width, q, wc, wp));
     }
+    let periodic = periodic_state(m);
     if a.json {
         let v = json!({
+            "periodic_state": match &periodic {
+                Ok(v) => v.clone(),
+                Err(why) => json!({"not_applicable": why}),
+            },
             "title": case.title,
             "zones": zones.iter().map(|(n, r1, r2, med)| json!({"zone": n, "inner_radius_m": r1, "outer_radius_m": r2,
                 "conductivity_m_s": med.map(|x| x.conductivity_m_s), "diffusivity_m2_s": med.map(|x| x.diffusivity_m2_s()),
@@ -207,6 +245,28 @@ pub fn check(a: &CheckArgs) -> Result<(), Failure> {
             "automatic"
         }
     );
+    match &periodic {
+        Ok(v) => {
+            t += &format!(
+                "\nPeriodic steady state (harmonic method, no time stepping): period {} s, peak screen flow {} m³/s, peak face flux at the wall {} m/s; mean power",
+                G(v["period_s"].as_f64().unwrap_or(f64::NAN), 4),
+                G(v["peak_screen_flow_m3_s"].as_f64().unwrap_or(f64::NAN), 4),
+                G(v["peak_wall_face_flux_m_s"].as_f64().unwrap_or(f64::NAN), 4),
+            );
+            for z in Zone::ALL {
+                let w = v["mean_power_w"][z.name()].as_f64().unwrap_or(0.0);
+                if w > 0.0 {
+                    t += &format!(" {} {} W", z.name(), G(w, 3));
+                }
+            }
+            t += "\n";
+        }
+        Err(why) => {
+            t += &format!(
+                "\nPeriodic steady state by the harmonic method: not for this case ({why})\n"
+            )
+        }
+    }
     if !widths.is_empty() {
         t += "\nAnnulus width (simulated, cake erosion off, ≤ 5 cycles):\n  width (mm)   peak face flux (m/s)   cake work/cycle (J)   pack work/cycle (J)\n";
         for (w, q, wc, wp) in &widths {
