@@ -84,7 +84,7 @@ fn a_linear_well_scales_with_the_drive_amplitude() {
     let base = &rows[0];
     for (row, a) in rows.iter().zip([1.0, 2.0, 4.0]) {
         assert_eq!(row["status"], "ok");
-        assert_eq!(num(row, "drive.amplitude_si"), 0.5 * a);
+        assert_eq!(num(row, "drive.amplitude_value"), 0.5 * a);
         for k in [
             "peak_outward_flux_m_s",
             "peak_inward_flux_m_s",
@@ -304,4 +304,64 @@ fn an_interrupted_sweep_writes_nothing() {
         0,
         "files left after Ctrl-C"
     );
+}
+
+/// `report` on a sweep table writes the sweep page: cautions, one chart per key figure
+/// against the first varied value, and every scenario's row; a sweep table named with
+/// another file is refused and nothing is written.
+#[test]
+fn a_sweep_table_gets_its_own_report() {
+    let dir = tempfile::tempdir().unwrap();
+    let case = write_case(dir.path());
+    let stem = dir.path().join("amp");
+    boreflux()
+        .args([
+            "sweep",
+            case.to_str().unwrap(),
+            "-q",
+            "-o",
+            stem.to_str().unwrap(),
+        ])
+        .args([
+            "--vary",
+            "drive.amplitude=0.5 m,1 m,2 m",
+            "--vary",
+            "drive.frequency=0.25,0.5",
+        ])
+        .assert()
+        .success();
+    let html_path = dir.path().join("amp.html");
+    boreflux()
+        .args(["report", stem.with_extension("h5").to_str().unwrap(), "-o"])
+        .arg(&html_path)
+        .assert()
+        .success();
+    let html = std::fs::read_to_string(&html_path).unwrap();
+    assert!(html.contains("Well development sweep report"));
+    assert!(html.contains(boreflux_solver::safety::CAUTION.split('.').next().unwrap()));
+    // Six scenarios in the table, two lines (one per frequency) in each chart.
+    assert_eq!(html.matches("<tr><td>").count(), 6, "table rows");
+    assert!(html.contains("drive.frequency = 0.25") && html.contains("drive.frequency = 0.5"));
+    let charts = html.matches("<svg").count();
+    assert!(charts >= 5, "{charts} charts");
+    // The figures are the table's: scenario 0's peak outward flux, in mm/s with three
+    // significant digits as the report writes numbers (report/format.rs, `sig`).
+    let rows = csv_rows(&stem.with_extension("csv"));
+    let q = num(&rows[0], "peak_outward_flux_m_s") * 1e3;
+    let decimals = (2 - q.log10().floor() as i32).max(0) as usize;
+    let shown = format!("{q:.decimals$}");
+    assert!(
+        html.contains(&format!("<td>{shown}</td>")),
+        "{shown} not in the table"
+    );
+    // A sweep table is reported on its own.
+    let refused = dir.path().join("both.html");
+    boreflux()
+        .args(["report", stem.with_extension("h5").to_str().unwrap()])
+        .arg(stem.with_extension("h5"))
+        .arg("-o")
+        .arg(&refused)
+        .assert()
+        .failure();
+    assert!(!refused.exists());
 }

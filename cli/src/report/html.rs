@@ -26,7 +26,7 @@ pub fn esc(text: &str) -> String {
     out
 }
 
-const STYLE: &str = "\
+pub(super) const STYLE: &str = "\
 body{font-family:sans-serif;max-width:1000px;margin:1.5em auto;padding:0 1em;color:#111;line-height:1.4}
 h1{font-size:1.6em;margin-bottom:.2em}
 h2{font-size:1.25em;border-bottom:2px solid #444;padding-bottom:.15em;margin-top:1.8em}

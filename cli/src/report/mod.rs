@@ -15,6 +15,7 @@
 //! headline.rs the headline table (one column per run)
 //! tables.rs   cycle log, inputs
 //! html.rs     the page, escaping, the cautions box
+//! sweep.rs    the page of a sweep table (`boreflux sweep`): charts against the varied value
 //! ```
 //!
 //! Nothing partial is left behind: the page is written to a hidden temporary file beside
@@ -27,6 +28,7 @@ mod headline;
 mod html;
 mod read;
 mod svg;
+mod sweep;
 mod tables;
 mod ticks;
 
@@ -60,7 +62,8 @@ pub enum ReportError {
     },
 }
 
-/// Reads every run file in `inputs` and writes the HTML report to `output`.
+/// Reads every run file in `inputs` (or one sweep table) and writes the HTML report to
+/// `output`.
 ///
 /// All inputs are read before anything is written; on any error no file appears at
 /// `output` (an existing file there is left as it was).
@@ -68,16 +71,31 @@ pub fn write_report(inputs: &[PathBuf], output: &Path) -> Result<(), ReportError
     if inputs.is_empty() {
         return Err(ReportError::NoInputs);
     }
-    let runs = inputs
+    // A sweep table is reported on its own.
+    let sweeps: Vec<_> = inputs
         .iter()
-        .map(|path| {
-            read::read_run(path).map_err(|message| ReportError::Input {
+        .filter_map(|p| crate::sweep::table::Table::read(p).ok().map(|t| (p, t)))
+        .collect();
+    let page = if let Some((path, table)) = sweeps.into_iter().next() {
+        if inputs.len() > 1 {
+            return Err(ReportError::Input {
                 path: path.clone(),
-                message,
+                message: "a sweep table is reported on its own; name it alone".to_owned(),
+            });
+        }
+        sweep::page(&table)
+    } else {
+        let runs = inputs
+            .iter()
+            .map(|path| {
+                read::read_run(path).map_err(|message| ReportError::Input {
+                    path: path.clone(),
+                    message,
+                })
             })
-        })
-        .collect::<Result<Vec<Run>, _>>()?;
-    let page = html::page(&runs);
+            .collect::<Result<Vec<Run>, _>>()?;
+        html::page(&runs)
+    };
     let write_err = |source| ReportError::Write {
         path: output.to_path_buf(),
         source,

@@ -10,10 +10,11 @@
 //!        /table/status              "ok", or why the scenario failed
 //!        /table/warnings            the run's warnings, one per line
 //!        /table/vary/<path>         the value as written in the case (text)
-//!        /table/vary_si/<path>      the same in SI base units (NaN when not a quantity)
+//!        /table/vary_value/<path>   the same as a number: in SI base units when it carries a
+//!                                   unit, otherwise as given (NaN for a word)
 //!        /table/<figure>            the run's headline figures (the names of a run file's
 //!                                   /summary attributes; units in the suffix and attribute)
-//! CSV    scenario, status, <path>…, <path>_si…, <figure>…, warnings
+//! CSV    scenario, status, <path>…, <path>_value…, <figure>…, warnings
 //! ```
 
 use crate::output::h5::H5Writer;
@@ -32,7 +33,8 @@ pub struct Row {
     pub scenario: usize,
     /// The varied values as written in the case.
     pub labels: Vec<String>,
-    /// The varied values in SI (NaN when not a quantity).
+    /// The varied values as numbers: SI when they carry a unit, otherwise as given (NaN
+    /// for a word).
     pub si: Vec<f64>,
     /// "ok", or why the scenario failed.
     pub status: String,
@@ -130,7 +132,7 @@ impl Table {
     pub fn csv(&self) -> String {
         let mut header = vec!["scenario".to_owned(), "status".to_owned()];
         header.extend(self.paths.iter().cloned());
-        header.extend(self.paths.iter().map(|p| format!("{p}_si")));
+        header.extend(self.paths.iter().map(|p| format!("{p}_value")));
         header.extend(self.figures.iter().cloned());
         header.push("warnings".to_owned());
         let mut out = header
@@ -211,7 +213,7 @@ impl Table {
             "warnings of the scenario's run, one per line",
         )?;
         w.group("/table/vary")?;
-        w.group("/table/vary_si")?;
+        w.group("/table/vary_value")?;
         for (k, p) in self.paths.iter().enumerate() {
             w.write_vector(
                 &format!("/table/vary/{p}"),
@@ -221,10 +223,11 @@ impl Table {
             )?;
             let si: Vec<f64> = self.rows.iter().map(|r| r.si[k]).collect();
             w.write_vector(
-                &format!("/table/vary_si/{p}"),
+                &format!("/table/vary_value/{p}"),
                 &si,
-                "SI",
-                "the varied value in SI base units (NaN when it is not a quantity)",
+                "SI, or as given",
+                "the varied value as a number: in SI base units when it carries a unit (as the \
+                 resolved case holds it), otherwise as given; NaN for a word",
             )?;
         }
         for (k, name) in self.figures.iter().enumerate() {
@@ -297,7 +300,7 @@ impl Table {
         let mut si = Vec::new();
         for p in &paths {
             labels.push(texts(&format!("table/vary/{p}"))?);
-            si.push(f64s(&format!("table/vary_si/{p}"))?);
+            si.push(f64s(&format!("table/vary_value/{p}"))?);
         }
         // The figure columns in the writer's order (HDF5 lists members by name).
         let names: Vec<String> = file
@@ -385,7 +388,7 @@ mod tests {
         let lines: Vec<&str> = text.lines().collect();
         assert_eq!(
             lines[0],
-            "scenario,status,drive.stroke,drive.stroke_si,peak_shear_pa,steps,warnings"
+            "scenario,status,drive.stroke,drive.stroke_value,peak_shear_pa,steps,warnings"
         );
         assert_eq!(
             lines[1],

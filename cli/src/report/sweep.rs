@@ -1,0 +1,305 @@
+//! The report of a sweep table (`boreflux sweep`): what was varied, the cautions, one chart
+//! per key figure against the first varied value (one line per combination of the
+//! others), and the table of every scenario. Everything is read from the table file.
+
+use std::collections::BTreeMap;
+use std::fmt::Write;
+
+use boreflux_solver::safety::CAUTION;
+
+use super::figures::run_style;
+use super::format::{sig, summary_unit, Shown, NUMBER};
+use super::html::{esc, STYLE};
+use super::svg::{render, Chart, SecondAxis, Series};
+use super::ticks::Scale;
+use crate::sweep::table::Table;
+
+/// The figures charted and tabled, with their chart titles and table headings: what a
+/// development plan is judged by.
+const KEY: [(&str, &str, &str); 9] = [
+    (
+        "peak_outward_flux_m_s",
+        "Peak outward Darcy flux at the wall",
+        "Flux out",
+    ),
+    (
+        "peak_inward_flux_m_s",
+        "Peak inward Darcy flux at the wall",
+        "Flux in",
+    ),
+    ("peak_shear_pa", "Peak shear proxy at the wall", "Shear"),
+    (
+        "cake_thickness_end_m",
+        "Cake thickness at the end",
+        "Cake end",
+    ),
+    ("skin_end", "Skin at the end", "Skin end"),
+    (
+        "efficiency_end",
+        "Well efficiency at the end",
+        "Efficiency end",
+    ),
+    ("work_cake_j", "Work dissipated in the cake", "Cake work"),
+    (
+        "peak_slot_velocity_m_s",
+        "Peak slot velocity",
+        "Slot velocity",
+    ),
+    (
+        "peak_collapse_pressure_pa",
+        "Peak collapse load on screen or casing",
+        "Collapse load",
+    ),
+];
+
+/// How a figure is shown: the unit of its name's suffix, plain numbers otherwise.
+fn shown(name: &str) -> Shown {
+    match name {
+        "cake_thickness_end_m" => super::format::SMALL_LENGTH,
+        "peak_slot_velocity_m_s" => super::format::SLOT_VELOCITY,
+        "peak_shear_pa" => super::format::SHEAR,
+        _ => summary_unit(name).unwrap_or(NUMBER),
+    }
+}
+
+fn axis_label(title: &str, unit: &str) -> String {
+    if unit.is_empty() {
+        format!("{title} [–]")
+    } else {
+        format!("{title} [{unit}]")
+    }
+}
+
+/// The whole page for one sweep table.
+pub fn page(t: &Table) -> String {
+    let mut h = String::new();
+    let _ = write!(
+        h,
+        "<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n\
+         <meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">\n\
+         <meta name=\"generator\" content=\"boreflux {v}\">\n<title>Sweep report: {case}</title>\n\
+         <style>\n{STYLE}</style>\n</head>\n<body>\n<h1>Well development sweep report</h1>\n\
+         <p class=\"lead\">{n} scenarios of <code>{case}</code>{shard}; every number and figure \
+         below is read from the sweep table. Built by boreflux {v}.</p>\n",
+        v = env!("CARGO_PKG_VERSION"),
+        case = esc(&t.case_file),
+        n = t.rows.len(),
+        shard = if t.shard == "1/1" || t.shard == "merged" {
+            String::new()
+        } else {
+            format!(
+                " (shard {}, of {} in the whole sweep)",
+                esc(&t.shard),
+                t.total
+            )
+        },
+    );
+    let _ = write!(
+        h,
+        "<section class=\"caution\">\n<h2>Cautions</h2>\n<p>{}</p>\n<p>A sweep explores \
+         settings; before taking the hardest of them to a well, compare its collapse load with \
+         the manufacturer's rating and start gently.</p>\n</section>\n",
+        esc(CAUTION)
+    );
+    let failed: Vec<_> = t.rows.iter().filter(|r| r.status != "ok").collect();
+    let warned = t.rows.iter().filter(|r| !r.warnings.is_empty()).count();
+    if !failed.is_empty() || warned > 0 {
+        h.push_str("<section class=\"warnings\">\n<h2>Warnings</h2>\n<ul>\n");
+        for r in &failed {
+            let _ = writeln!(
+                h,
+                "<li>Scenario {} ({}) did not run to the end: {}</li>",
+                r.scenario,
+                esc(&r.labels.join(", ")),
+                esc(&r.status)
+            );
+        }
+        if warned > 0 {
+            let _ = writeln!(
+                h,
+                "<li>{warned} of {} scenarios carry warnings from their runs; the table below \
+                 counts them and the sweep table holds their text.</li>",
+                t.rows.len()
+            );
+        }
+        h.push_str("</ul>\n</section>\n");
+    }
+    h.push_str("<h2>What was varied</h2>\n<ul>\n");
+    let vary: serde_json::Value = serde_json::from_str(&t.vary_json).unwrap_or_default();
+    for v in vary.as_array().into_iter().flatten() {
+        let values: Vec<String> = v["values"]
+            .as_array()
+            .into_iter()
+            .flatten()
+            .map(crate::sweep::spec::label)
+            .collect();
+        let _ = writeln!(
+            h,
+            "<li><code>{}</code>: {}</li>",
+            esc(v["path"].as_str().unwrap_or("")),
+            esc(&values.join(", "))
+        );
+    }
+    h.push_str("</ul>\n");
+    charts(&mut h, t);
+    table(&mut h, t);
+    let _ = write!(
+        h,
+        "<h2>Case file the sweep started from</h2>\n<pre>{}</pre>\n</body>\n</html>\n",
+        esc(
+            &serde_json::from_str::<serde_json::Value>(&t.base_case_json)
+                .and_then(|v| serde_json::to_string_pretty(&v))
+                .unwrap_or_else(|_| t.base_case_json.clone())
+        )
+    );
+    h
+}
+
+/// One chart per key figure against the first varied value (in SI), one line per
+/// combination of the other varied values. Left out when that value is not a number.
+fn charts(h: &mut String, t: &Table) {
+    let Some(x_path) = t.paths.first() else {
+        return;
+    };
+    if t.rows.iter().any(|r| !r.si[0].is_finite()) || t.rows.len() < 2 {
+        h.push_str(
+            "<p>No charts: the first varied value is not a number in every scenario \
+                    (or there is only one); the table below has the results.</p>\n",
+        );
+        return;
+    }
+    // Lines: rows grouped by the other varied values, in order of the first.
+    let mut lines: BTreeMap<Vec<String>, Vec<usize>> = BTreeMap::new();
+    for (k, r) in t.rows.iter().enumerate() {
+        lines.entry(r.labels[1..].to_vec()).or_default().push(k);
+    }
+    for rows in lines.values_mut() {
+        rows.sort_by(|&a, &b| t.rows[a].si[0].total_cmp(&t.rows[b].si[0]));
+    }
+    let xs: Vec<Vec<f64>> = lines
+        .values()
+        .map(|rows| rows.iter().map(|&k| t.rows[k].si[0]).collect())
+        .collect();
+    let positive = t.rows.iter().all(|r| r.si[0] > 0.0);
+    let (lo, hi) = t.rows.iter().fold((f64::INFINITY, 0.0f64), |(a, b), r| {
+        (a.min(r.si[0]), b.max(r.si[0]))
+    });
+    let x_scale = if positive && hi / lo >= 20.0 {
+        Scale::Log
+    } else {
+        Scale::Linear
+    };
+    h.push_str("<h2>Figures</h2>\n");
+    let _ = writeln!(
+        h,
+        "<p>Each figure against <code>{}</code> (in SI base units when it carries a unit, \
+         otherwise as given){}. Failed scenarios are left out.</p>",
+        esc(x_path),
+        if lines.len() > 1 {
+            format!(
+                "; one line for each value of {}",
+                esc(&t.paths[1..].join(", "))
+            )
+        } else {
+            String::new()
+        }
+    );
+    for (n, (name, title, _)) in KEY.iter().enumerate() {
+        let Some(col) = t.figures.iter().position(|f| f == name) else {
+            continue;
+        };
+        let ys: Vec<Vec<f64>> = lines
+            .values()
+            .map(|rows| rows.iter().map(|&k| t.rows[k].figures[col]).collect())
+            .collect();
+        if ys.iter().flatten().all(|y| !y.is_finite()) {
+            continue;
+        }
+        let s = shown(name);
+        let mut c = Chart::new(
+            &format!("sweep{n}"),
+            title,
+            x_path,
+            &axis_label(title, s.si.label),
+        );
+        c.x_scale = x_scale;
+        c.y_factor = s.si.per_si;
+        c.y2 = s.us.map(|us| SecondAxis {
+            label: axis_label(title, us.label),
+            per_primary: us.per_si / s.si.per_si,
+        });
+        for (i, (key, (x, y))) in lines.keys().zip(xs.iter().zip(&ys)).enumerate() {
+            let label = t.paths[1..]
+                .iter()
+                .zip(key)
+                .map(|(p, v)| format!("{p} = {v}"))
+                .collect::<Vec<_>>()
+                .join(", ");
+            c.series.push(Series {
+                label,
+                x,
+                y,
+                style: run_style(i),
+            });
+        }
+        let _ = write!(
+            h,
+            "<figure>\n<h3>Figure {}. {}</h3>\n{}\n</figure>\n",
+            n + 1,
+            esc(title),
+            render(&c)
+        );
+    }
+}
+
+/// The table of every scenario: its values, the key figures and its status.
+fn table(h: &mut String, t: &Table) {
+    let cols: Vec<(usize, &str, Shown)> = KEY
+        .iter()
+        .filter_map(|(name, _, heading)| {
+            t.figures
+                .iter()
+                .position(|f| f == name)
+                .map(|i| (i, *heading, shown(name)))
+        })
+        .collect();
+    h.push_str(
+        "<h2>Scenarios</h2>\n<p>Peaks are at the borehole wall (flux, shear) and on the screen \
+         or casing (collapse load); the sweep table holds every figure of every run.</p>\n\
+         <div style=\"overflow-x:auto\">\n<table>\n<thead><tr><th>#</th>",
+    );
+    for p in &t.paths {
+        let _ = write!(h, "<th><code>{}</code></th>", esc(p));
+    }
+    for (_, title, s) in &cols {
+        let unit = if s.si.label.is_empty() {
+            String::new()
+        } else {
+            format!(" [{}]", s.si.label)
+        };
+        let _ = write!(h, "<th>{}{}</th>", esc(title), esc(&unit));
+    }
+    h.push_str("<th>Status</th></tr></thead>\n<tbody>\n");
+    for r in &t.rows {
+        let _ = write!(h, "<tr><td>{}</td>", r.scenario);
+        for l in &r.labels {
+            let _ = write!(h, "<td>{}</td>", esc(l));
+        }
+        for (i, _, s) in &cols {
+            let _ = write!(h, "<td>{}</td>", sig(r.figures[*i] * s.si.per_si));
+        }
+        let warnings = r.warnings.lines().count();
+        let status = match (r.status.as_str(), warnings) {
+            ("ok", 0) => "ok".to_owned(),
+            ("ok", w) => format!("ok, {w} warning{}", if w == 1 { "" } else { "s" }),
+            (s, _) => s.to_owned(),
+        };
+        let class = if r.status == "ok" {
+            ""
+        } else {
+            " class=\"alarm\""
+        };
+        let _ = writeln!(h, "<td{class}>{}</td></tr>", esc(&status));
+    }
+    h.push_str("</tbody>\n</table>\n</div>\n");
+}
