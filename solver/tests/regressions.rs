@@ -240,3 +240,36 @@ fn a_smooth_drive_needs_about_one_newton_update_per_step() {
         count.0
     );
 }
+
+/// Found by a sweep over cake conductivity and stroke rate: at 10 strokes a minute a surge
+/// block against a fully covering sealing cake (K_c = 1e-9 m/s) stopped at the first stroke
+/// reversals ("Newton iteration did not converge at t = 6 s"). The in-well flow law's
+/// scalar root finder took a round-off-small Newton step beside the clearance orifice's
+/// vertical tangent (zero head difference) for convergence and returned a value that was no
+/// root; the cells' Newton iteration then cycled.
+#[test]
+fn slow_surge_block_against_a_sealing_cake_converges() {
+    let mut m = municipal_block(12.0);
+    if let Drive::SurgeBlock(b) = &mut m.drive {
+        b.frequency_hz = 1.0 / 6.0;
+    }
+    m.pack = Pack {
+        outer_radius_m: 0.305,
+        medium: Medium {
+            forchheimer_beta_s2_m2: 2.358e3,
+            ..Medium::darcy(8e-3, 1e-5)
+        },
+    };
+    m.cake = Some(Cake {
+        thickness_m: 3e-3,
+        conductivity_m_s: 1e-9,
+        coverage: 1.0,
+        erosion: None,
+    });
+    m.formation.medium = Medium::darcy(4e-4, 5e-5);
+    m.numerics.time = TimeSpec::StepsPerCycle(200);
+    let s = run(&m, &mut NullObserver, Reporting::default()).unwrap();
+    assert_eq!(s.end_time_s, 12.0);
+    // Issue #4's bound on Newton iterations in a step.
+    assert!(s.max_newton_iterations <= 8, "{}", s.max_newton_iterations);
+}

@@ -197,6 +197,8 @@ fn parse_range(a: &str, rest: &str) -> Result<Vec<Value>, String> {
             let x = at(k);
             if u0.is_empty() {
                 number(x)
+            } else if x != 0.0 && (x.abs() < 1e-4 || x.abs() >= 1e9) {
+                Value::String(format!("{x:e} {u0}"))
             } else {
                 Value::String(format!("{x} {u0}"))
             }
@@ -305,6 +307,10 @@ mod tests {
                 json!("0.7 m"),
                 json!("0.9 m")
             ]
+        );
+        assert_eq!(
+            values("cake.conductivity=1e-9 m/s..1e-7 m/s:3:log"),
+            [json!("1e-9 m/s"), json!("1e-8 m/s"), json!("1e-7 m/s")]
         );
         assert_eq!(
             values("numerics.theta=1e-3..1e-1:3:log"),

@@ -5,8 +5,9 @@ use super::Stepper;
 use crate::error::SolverError;
 use crate::model::Model;
 
-/// Iterations allowed for the in-well head of a well without storage.
-const ALGEBRAIC_MAX_ITERATIONS: usize = 50;
+/// Iterations allowed for a scalar root (Newton with bisection; bisection alone narrows a
+/// bracket to round-off in about 60).
+const ALGEBRAIC_MAX_ITERATIONS: usize = 200;
 
 /// First widening step of the bracket on an in-well head near zero, m.
 const HEAD_UNIT_M: f64 = 1e-3;
@@ -91,10 +92,20 @@ pub(super) fn bracketed_root(
         }
     }
     // Stop when the Newton correction is at round-off of the variable: the residual itself
-    // cannot be driven below the round-off of the steep screen and orifice laws.
+    // cannot be driven below the round-off of the steep screen and orifice laws. A step
+    // that small settles the root only where the function is smooth, so it is confirmed by
+    // a probe a few round-off steps toward the root: beside a square-root law's vertical
+    // tangent (an orifice at zero head difference) the derivative is huge and the step tiny
+    // while the value is not. Newton is also replaced by bisection when it would leave the
+    // bracket or would not halve the previous step (the safeguard of Press et al.,
+    // Numerical Recipes, "rtsafe", from memory), since on a square-root law it cycles
+    // between the two sides.
     let tiny = |h: f64| (1e-15 * h.abs()).max(settled).max(f64::MIN_POSITIVE);
+    let mut last = (f64::INFINITY, 1.0);
+    let mut step = hi - lo;
     for _ in 0..ALGEBRAIC_MAX_ITERATIONS {
         let (v, d, scale) = f(h);
+        last = (v, scale);
         if v == 0.0 || v.abs() <= 1e-15 * scale || hi - lo <= tiny(h) {
             return Ok(h);
         }
@@ -104,14 +115,85 @@ pub(super) fn bracketed_root(
             hi = h;
         }
         let newton = h - v / d;
-        if newton > lo && newton < hi {
-            if (newton - h).abs() <= tiny(h) {
-                return Ok(newton);
+        let inside = newton > lo && newton < hi;
+        if inside && (newton - h).abs() <= tiny(h) {
+            let probe = if v < 0.0 {
+                (h + 4.0 * tiny(h)).min(hi)
+            } else {
+                (h - 4.0 * tiny(h)).max(lo)
+            };
+            let vp = f(probe).0;
+            if vp == 0.0 || (vp > 0.0) != (v > 0.0) {
+                return Ok(if vp.abs() < v.abs() { probe } else { h });
             }
+            // Still short of the root: the probe narrows the bracket.
+            if v < 0.0 {
+                lo = probe;
+            } else {
+                hi = probe;
+            }
+        }
+        if inside && (newton - h).abs() > tiny(h) && 2.0 * (newton - h).abs() <= step.abs() {
+            step = newton - h;
             h = newton;
         } else {
-            h = 0.5 * (lo + hi);
+            step = 0.5 * (hi - lo);
+            h = lo + step;
         }
     }
-    Ok(h)
+    Err(SolverError::NewtonFailed {
+        time_s: t,
+        iterations: ALGEBRAIC_MAX_ITERATIONS,
+        residual: last.0.abs() / last.1.max(f64::MIN_POSITIVE),
+    })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// f(x) = c + x + k sign(x) sqrt|x|: strictly increasing, with a vertical tangent at
+    /// x = 0 where f(0) = c ≠ 0, the shape of a clearance orifice's flow near zero head
+    /// difference. Root where k sqrt|x| ≈ c, x < 0.
+    fn orifice_like(c: f64, k: f64) -> impl Fn(f64) -> (f64, f64, f64) {
+        move |x: f64| {
+            let r = x.abs().sqrt();
+            let d = if r > 0.0 {
+                1.0 + 0.5 * k / r
+            } else {
+                f64::INFINITY
+            };
+            (c + x + k * r.copysign(x), d, c.abs() + x.abs() + k * r)
+        }
+    }
+
+    #[test]
+    fn a_vertical_tangent_beside_the_root_is_not_taken_for_it() {
+        // Newton from the right creeps toward x = 0 with steps that shrink with 1/f'; a
+        // round-off-small step there once ended the iteration at f = c. The root is where
+        // x + k sign(x) sqrt|x| = −c: x = −((−k + sqrt(k² + 4c))/2)² (quadratic in sqrt|x|,
+        // derived here).
+        for (c, k) in [(1e-3, 10.0), (2.9e-3, 0.0385 * 381.8), (1e-6, 1.0)] {
+            let f = orifice_like(c, k);
+            let x = bracketed_root(0.0, 1.0, 1e-3, 1e-18, &f).unwrap();
+            let s = (-k + (k * k + 4.0 * c).sqrt()) / 2.0;
+            let want = -s * s;
+            let (v, _, scale) = f(x);
+            assert!(v.abs() <= 1e-12 * scale, "c {c}: f({x:e}) = {v:e}");
+            assert!(
+                (x - want).abs() <= 1e-9 * want.abs(),
+                "c {c}: {x:e} vs {want:e}"
+            );
+        }
+    }
+
+    #[test]
+    fn a_jump_across_zero_closes_the_bracket_on_it() {
+        // An increasing function without a root: a jump from −1 to +1 at x = 0.3 (a valve
+        // opening, say). Bisection closes the bracket on the jump to round-off, the best a
+        // sign change allows, and the jump's place is returned.
+        let f = |x: f64| (if x < 0.3 { -1.0 } else { 1.0 }, 0.0, 1.0);
+        let x = bracketed_root(0.0, 0.0, 1.0, 1e-18, f).unwrap();
+        assert!((x - 0.3).abs() < 1e-12, "{x}");
+    }
 }
