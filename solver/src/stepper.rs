@@ -16,8 +16,10 @@
 //!
 //! A linear system (Darcy faces, no head-dependent device flow) is eliminated once per step
 //! length and each step costs two sweeps; otherwise Newton's method runs on the tridiagonal
-//! Jacobian until the residual, relative to the largest flow term, falls below the
-//! tolerance. The step never allocates.
+//! Jacobian until every cell's residual, relative to the largest flow term of a cell row,
+//! their sum (the cells' volume balance) likewise, and the well row's residual relative to
+//! its own terms fall below the tolerance (or to the round-off of the face flows). The step
+//! never allocates.
 //!
 //! A head-dependent device (surge-block leakage, swab parting) puts square-root laws in
 //! series at the well: the clearance orifice and the screen's entrance loss. As a function

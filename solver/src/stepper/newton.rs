@@ -3,7 +3,7 @@
 //! head-dependent well through the screen inflow, and the round-off-aware acceptance. See the
 //! parent module for the equations.
 
-use super::residual::{max_abs, residual_avx_or_rows};
+use super::residual::{max_abs, residual_avx_or_rows, Residuals};
 use super::well::bracketed_root;
 use super::{Stepper, WellRow};
 use crate::drive::Control;
@@ -36,11 +36,20 @@ const BACKTRACK_ABOVE: f64 = 1e-8;
 const MIN_STEP_FRACTION: f64 = 1.0 / 64.0;
 
 impl Stepper {
-    /// True when every residual row from `first` on is within the Newton tolerance (relative
-    /// to `scale`) or within [`ROUND_OFF_ULPS`] ulps of the round-off of its face flows.
-    pub(super) fn rows_at_round_off(&self, first: usize, faces: usize, scale: f64) -> bool {
+    /// True when every cell row is within the Newton tolerance (relative to the cells' flow
+    /// scale) or within [`ROUND_OFF_ULPS`] ulps of the round-off of its face flows, so is
+    /// their sum `sum` (the volume balance) within the tolerance or the sum of those floors,
+    /// and the well row (from `first` = 0) within the tolerance of its own scale.
+    pub(super) fn rows_at_round_off(
+        &self,
+        first: usize,
+        faces: usize,
+        cell_scale: f64,
+        well_scale: f64,
+        sum: f64,
+    ) -> bool {
         let n = self.y.len();
-        let bound = self.newton_tolerance * scale;
+        let bound = self.newton_tolerance * cell_scale;
         let g_y = |f: usize| {
             if f >= faces {
                 return 0.0;
@@ -48,10 +57,17 @@ impl Stepper {
             let y_next = if f + 1 < n { self.y[f + 1].abs() } else { 0.0 };
             self.face_g[f] * self.y[f].abs().max(y_next)
         };
-        (first..n).all(|j| {
-            let floor = if j > 0 { g_y(j - 1) } else { 0.0 } + g_y(j);
-            self.rhs[j].abs() <= bound.max(ROUND_OFF_ULPS * f64::EPSILON * floor)
-        })
+        let mut floors = 0.0;
+        let rows_ok = (1..n).all(|j| {
+            let floor =
+                ROUND_OFF_ULPS * f64::EPSILON * (if j > 0 { g_y(j - 1) } else { 0.0 } + g_y(j));
+            floors += floor;
+            self.rhs[j].abs() <= bound.max(floor)
+        });
+        let well_ok = first > 0
+            || self.rhs[0].abs()
+                <= (self.newton_tolerance * well_scale).max(ROUND_OFF_ULPS * f64::EPSILON * g_y(0));
+        well_ok && rows_ok && sum.abs() <= bound.max(floors)
     }
 
     /// Factors the Jacobian assembled in `diag` and `upper` (well row decoupled, cell 1
@@ -136,9 +152,9 @@ impl Stepper {
     }
 
     /// Writes −R_j of every cell row into `rhs[1..]` from the face flows in `face_q` and
-    /// returns the largest |R_j| and the largest flow term |S_j (y_j − h_j)/(θΔt)| + |Q_{j−1}|
-    /// + |Q_j| of a row, in m³/s.
-    fn cell_residuals(&mut self, inv_tdt: f64) -> (f64, f64) {
+    /// returns the largest |R_j|, the largest flow term |S_j (y_j − h_j)/(θΔt)| + |Q_{j−1}|
+    /// + |Q_j| of a row and Σ R_j, in m³/s.
+    fn cell_residuals(&mut self, inv_tdt: f64) -> Residuals {
         let n = self.y.len();
         let (rhs, y, h, s) = (
             &mut self.rhs[1..n],
@@ -247,7 +263,7 @@ impl Stepper {
             }
             // −R in rhs, cells 1..n in one pass, with the largest |R| and the largest flow
             // term of a row: R_j = S_j (y_j − h_j)/(θΔt) − Q_{j−1} + Q_j.
-            let (cells_worst, cells_scale) = self.cell_residuals(inv_tdt);
+            let cells = self.cell_residuals(inv_tdt);
             self.rhs[0] = -self.face_q[0];
             let mut well_scale = self.face_q[0].abs();
             let fixed_ok = match well {
@@ -266,14 +282,25 @@ impl Stepper {
             // The prescribed head row, and an eliminated well row (solved to round-off by its
             // own bracketed iteration), are not part of the Newton residual.
             let first = usize::from(matches!(well, WellRow::Fixed(_)) || eliminate_well);
-            let scale = cells_scale.max(well_scale);
-            let worst = if first == 0 {
-                cells_worst.max(self.rhs[0].abs())
+            // The cells and the well row are each measured against their own flows: a pump
+            // drawing litres per second from a well behind a sealing cake must not set the
+            // scale for the cells' flows of millilitres.
+            let relative = |r: f64, scale: f64| if scale > 0.0 { r / scale } else { 0.0 };
+            let well_residual = if first == 0 {
+                relative(self.rhs[0].abs(), well_scale)
             } else {
-                cells_worst
+                0.0
             };
-            residual = if scale > 0.0 { worst / scale } else { 0.0 };
-            if fixed_ok && residual <= self.newton_tolerance {
+            let worst = if first == 0 {
+                cells.worst.max(self.rhs[0].abs())
+            } else {
+                cells.worst
+            };
+            residual = relative(cells.worst, cells.scale).max(well_residual);
+            // The cells' residuals must also not add up: their sum is the step's volume
+            // balance, which a tolerance on each row alone bounds only by N times it.
+            let balance = relative(cells.sum.abs(), cells.scale);
+            if fixed_ok && residual <= self.newton_tolerance && balance <= self.newton_tolerance {
                 return Ok(iteration);
             }
             // At round-off: a face flow is computed from a head difference, so its absolute
@@ -283,7 +310,7 @@ impl Stepper {
             // couple of ulps of its own floor.
             if fixed_ok
                 && residual <= STALL_RESIDUAL * 10.0
-                && self.rows_at_round_off(first, last + open, scale)
+                && self.rows_at_round_off(first, last + open, cells.scale, well_scale, cells.sum)
             {
                 return Ok(iteration);
             }

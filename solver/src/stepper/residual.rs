@@ -1,6 +1,6 @@
 //! The cell residuals of the θ-point system, the inner loop of every Newton iteration:
 //! `R_j = Q_{j−1} − Q_j − S_j (y_j − h_j)/(θΔt)` with the largest |R_j| and the largest flow
-//! term of a row, in one pass. On x86-64 processors with AVX it runs 4 rows at a time
+//! term of a row and the sum of the residuals (the cells' volume balance), in one pass. On x86-64 processors with AVX it runs 4 rows at a time
 //! (chosen at run time); the compiler's own vectorisation of this loop with its two maxima
 //! is poor. Both versions do the same correctly rounded operations in the same order on
 //! each row, so they give the same bits.
@@ -21,8 +21,20 @@ pub(super) fn max_abs(v: &[f64]) -> f64 {
     v.iter().fold(0.0, |a, &b| max(a, b.abs()))
 }
 
-/// Writes the cell residuals into `rhs` and returns (largest |R|, largest
-/// |S (y − h)/(θΔt)| + |Q_in| + |Q_out|), choosing the AVX version when the processor has it.
+/// The cell residuals' summary: largest |R|, largest flow term of a row, and Σ R.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub(super) struct Residuals {
+    /// Largest |R_j|, m³/s.
+    pub worst: f64,
+    /// Largest |S_j (y_j − h_j)/(θΔt)| + |Q_in| + |Q_out| of a row, m³/s.
+    pub scale: f64,
+    /// Σ R_j: the volume balance of all the cells together (the face flows between them
+    /// cancel), m³/s.
+    pub sum: f64,
+}
+
+/// Writes the cell residuals into `rhs` and returns their summary, choosing the AVX
+/// version when the processor has it.
 pub(super) fn residual_avx_or_rows(
     y: &[f64],
     h: &[f64],
@@ -31,13 +43,58 @@ pub(super) fn residual_avx_or_rows(
     q_out: &[f64],
     inv_tdt: f64,
     rhs: &mut [f64],
-) -> (f64, f64) {
+) -> Residuals {
     #[cfg(target_arch = "x86_64")]
     if std::arch::is_x86_feature_detected!("avx") {
         // SAFETY: AVX was just detected.
         return unsafe { residual_avx(y, h, s, q_in, q_out, inv_tdt, rhs) };
     }
     residual_rows(y, h, s, q_in, q_out, inv_tdt, rhs)
+}
+
+/// Number of rows handled together (lanes of the sums and maxima).
+const LANES: usize = 4;
+
+/// Combines the lanes and the tail in one fixed order, shared by both versions.
+fn combine(
+    worst: [f64; LANES],
+    scale: [f64; LANES],
+    sum: [f64; LANES],
+    tail: Residuals,
+) -> Residuals {
+    let fold = |l: &[f64; LANES], first: f64| l.iter().fold(first, |a, &b| max(a, b));
+    Residuals {
+        worst: fold(&worst, tail.worst),
+        scale: fold(&scale, tail.scale),
+        sum: ((sum[0] + sum[1]) + (sum[2] + sum[3])) + tail.sum,
+    }
+}
+
+/// One row at a time, for the rows after the last whole group of [`LANES`].
+fn tail_rows(
+    y: &[f64],
+    h: &[f64],
+    s: &[f64],
+    q_in: &[f64],
+    q_out: &[f64],
+    inv_tdt: f64,
+    rhs: &mut [f64],
+) -> Residuals {
+    let mut out = Residuals {
+        worst: 0.0,
+        scale: 0.0,
+        sum: 0.0,
+    };
+    for (((((r, &y), &h), &s), &qi), &qo) in
+        rhs.iter_mut().zip(y).zip(h).zip(s).zip(q_in).zip(q_out)
+    {
+        let acc = s * inv_tdt * (y - h);
+        *r = qi - qo - acc;
+        out.worst = max(out.worst, r.abs());
+        out.scale = max(out.scale, acc.abs() + qi.abs() + qo.abs());
+        out.sum += *r;
+    }
+    out
 }
 
 /// [`residual_rows`] with 4-wide AVX instructions: the same operations in the same order
@@ -55,15 +112,19 @@ unsafe fn residual_avx(
     q_out: &[f64],
     inv_tdt: f64,
     rhs: &mut [f64],
-) -> (f64, f64) {
+) -> Residuals {
     use std::arch::x86_64::*;
     let m = rhs.len();
     assert!(y.len() == m && h.len() == m && s.len() == m && q_in.len() == m && q_out.len() == m);
-    let full = m / 4 * 4;
+    let full = m / LANES * LANES;
     let sign = _mm256_set1_pd(-0.0);
     let inv = _mm256_set1_pd(inv_tdt);
-    let (mut worst, mut scale) = (_mm256_setzero_pd(), _mm256_setzero_pd());
-    for k in (0..full).step_by(4) {
+    let (mut worst, mut scale, mut sum) = (
+        _mm256_setzero_pd(),
+        _mm256_setzero_pd(),
+        _mm256_setzero_pd(),
+    );
+    for k in (0..full).step_by(LANES) {
         // SAFETY: k + 4 ≤ m = the length of every slice (asserted above).
         unsafe {
             let yk = _mm256_loadu_pd(y.as_ptr().add(k));
@@ -81,15 +142,17 @@ unsafe fn residual_avx(
                 _mm256_andnot_pd(sign, qo),
             );
             scale = _mm256_max_pd(terms, scale);
+            sum = _mm256_add_pd(sum, r);
         }
     }
-    let mut lanes = [[0.0f64; 4]; 2];
-    // SAFETY: two 4-lane stores into 4-element arrays.
+    let mut lanes = [[0.0f64; LANES]; 3];
+    // SAFETY: three 4-lane stores into 4-element arrays.
     unsafe {
         _mm256_storeu_pd(lanes[0].as_mut_ptr(), worst);
         _mm256_storeu_pd(lanes[1].as_mut_ptr(), scale);
+        _mm256_storeu_pd(lanes[2].as_mut_ptr(), sum);
     }
-    let (w, sc) = residual_rows(
+    let tail = tail_rows(
         &y[full..],
         &h[full..],
         &s[full..],
@@ -98,12 +161,11 @@ unsafe fn residual_avx(
         inv_tdt,
         &mut rhs[full..],
     );
-    let fold = |l: &[f64; 4], first: f64| l.iter().fold(first, |a, &b| max(a, b));
-    (fold(&lanes[0], w), fold(&lanes[1], sc))
+    combine(lanes[0], lanes[1], lanes[2], tail)
 }
 
-/// Writes the cell residuals R = Q_in − Q_out − S (y − h)/(θΔt) into `rhs` and returns the
-/// largest |R| and the largest |S (y − h)/(θΔt)| + |Q_in| + |Q_out|.
+/// Writes the cell residuals R = Q_in − Q_out − S (y − h)/(θΔt) into `rhs` and returns
+/// their summary; the portable version, in groups of [`LANES`] rows like the AVX one.
 pub(super) fn residual_rows(
     y: &[f64],
     h: &[f64],
@@ -112,17 +174,31 @@ pub(super) fn residual_rows(
     q_out: &[f64],
     inv_tdt: f64,
     rhs: &mut [f64],
-) -> (f64, f64) {
-    let (mut worst, mut scale) = (0.0f64, 0.0f64);
-    for (((((r, &y), &h), &s), &qi), &qo) in
-        rhs.iter_mut().zip(y).zip(h).zip(s).zip(q_in).zip(q_out)
-    {
-        let acc = s * inv_tdt * (y - h);
-        *r = qi - qo - acc;
-        worst = max(worst, r.abs());
-        scale = max(scale, acc.abs() + qi.abs() + qo.abs());
+) -> Residuals {
+    let m = rhs.len();
+    let full = m / LANES * LANES;
+    let (mut worst, mut scale, mut sum) = ([0.0; LANES], [0.0; LANES], [0.0; LANES]);
+    for k in (0..full).step_by(LANES) {
+        for l in 0..LANES {
+            let j = k + l;
+            let acc = s[j] * inv_tdt * (y[j] - h[j]);
+            let r = q_in[j] - q_out[j] - acc;
+            rhs[j] = r;
+            worst[l] = max(worst[l], r.abs());
+            scale[l] = max(scale[l], acc.abs() + q_in[j].abs() + q_out[j].abs());
+            sum[l] += r;
+        }
     }
-    (worst, scale)
+    let tail = tail_rows(
+        &y[full..],
+        &h[full..],
+        &s[full..],
+        &q_in[full..],
+        &q_out[full..],
+        inv_tdt,
+        &mut rhs[full..],
+    );
+    combine(worst, scale, sum, tail)
 }
 
 #[cfg(test)]
@@ -151,13 +227,17 @@ mod tests {
         let (mut r1, mut r2) = (vec![0.0; m], vec![0.0; m]);
         let a = residual_avx_or_rows(&y, &h, &s, &q_in, &q_out, 37.5, &mut r1);
         let b = residual_rows(&y, &h, &s, &q_in, &q_out, 37.5, &mut r2);
-        assert_eq!(a.0.to_bits(), b.0.to_bits());
-        assert_eq!(a.1.to_bits(), b.1.to_bits());
+        assert_eq!(a.worst.to_bits(), b.worst.to_bits());
+        assert_eq!(a.scale.to_bits(), b.scale.to_bits());
+        assert_eq!(a.sum.to_bits(), b.sum.to_bits());
         for k in 0..m {
             assert_eq!(r1[k].to_bits(), r2[k].to_bits(), "row {k}");
         }
-        // The maxima are those of the rows.
+        // The maxima are those of the rows, and the sum theirs (to round-off of m terms).
         let worst = r2.iter().fold(0.0f64, |a, r| a.max(r.abs()));
-        assert_eq!(b.0, worst);
+        assert_eq!(b.worst, worst);
+        let sum: f64 = r2.iter().sum();
+        let size: f64 = r2.iter().map(|r| r.abs()).sum();
+        assert!((b.sum - sum).abs() <= 1e-15 * m as f64 * size);
     }
 }
