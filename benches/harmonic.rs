@@ -129,7 +129,12 @@ fn bench_harmonic(c: &mut Criterion) {
     let mut best: Option<(usize, usize)> = None;
     for steps in [8, 12, 16, 20, 25, 50, 100, 200] {
         let needed = periods_needed(&m, steps, want);
-        eprintln!("{steps} steps per period: settled within {TARGET:e} after {needed:?} periods");
+        match needed {
+            Some(p) => eprintln!("{steps} steps per period: within {TARGET:e} after {p} periods"),
+            None => eprintln!(
+                "{steps} steps per period: not within {TARGET:e} in {MAX_PERIODS} periods"
+            ),
+        }
         if let Some(periods) = needed {
             if best.is_none_or(|(s, p)| steps * periods < s * p) {
                 best = Some((steps, periods));
