@@ -12,11 +12,13 @@
 //!
 //! Run with `cargo bench -p boreflux-solver --bench harmonic`.
 
-use boreflux_solver::drive::{Drive, SineHead};
 use boreflux_solver::harmonic::{self, Complex};
 use boreflux_solver::model::*;
 use boreflux_solver::stepper::Stepper;
 use criterion::{black_box, criterion_group, criterion_main, Criterion};
+
+#[path = "models.rs"]
+mod models;
 use std::f64::consts::PI;
 
 /// Complex relative error of the screen flow that counts as the periodic steady state.
@@ -26,40 +28,7 @@ const MAX_PERIODS: usize = 2000;
 
 /// The linear pack–formation case of `step.rs` with exactly 300 cells.
 fn model() -> Model {
-    Model {
-        fluid: Fluid::WATER_20C,
-        well: Well {
-            screen_radius_m: 0.1,
-            screen_length_m: 6.0,
-            open_area: 0.12,
-            casing_radius_m: 0.1,
-            linear_loss_s: 0.0,
-            discharge_coefficient: None,
-            storage_m2: 0.0,
-        },
-        pack: Pack {
-            outer_radius_m: 0.2,
-            medium: Medium::darcy(5e-3, 1e-5),
-        },
-        cake: None,
-        invaded: None,
-        formation: Formation {
-            medium: Medium::darcy(2e-4, 1e-5),
-            outer_radius_m: Some(60.0),
-            outer_boundary: OuterBoundary::FixedHead,
-        },
-        drive: Drive::SineHead(SineHead {
-            amplitude_m: 1.5,
-            frequency_hz: 0.5,
-            offset_m: 0.0,
-            ramp_cycles: 0.0,
-        }),
-        duration_s: 20.0,
-        numerics: Numerics {
-            grid: GridSpec::Total(300),
-            ..Numerics::default()
-        },
-    }
+    models::model(300, false)
 }
 
 /// Runs `periods` periods of `steps` steps from rest; passes the period's index and the

@@ -22,6 +22,13 @@ const LINEAR_CASE: &str = r#"{
   "numerics": { "steps_per_cycle": 40 }
 }"#;
 
+/// `boreflux sweep CASE -q -o OUT`, the `--vary` arguments still to add.
+fn sweep(case: &Path, out: &Path) -> Command {
+    let mut c = boreflux();
+    c.arg("sweep").arg(case).arg("-q").arg("-o").arg(out);
+    c
+}
+
 fn write_case(dir: &Path) -> std::path::PathBuf {
     let p = dir.join("linear.json");
     std::fs::write(&p, LINEAR_CASE).unwrap();
@@ -60,14 +67,7 @@ fn a_linear_well_scales_with_the_drive_amplitude() {
     let dir = tempfile::tempdir().unwrap();
     let case = write_case(dir.path());
     let out = dir.path().join("amp");
-    let assert = boreflux()
-        .args([
-            "sweep",
-            case.to_str().unwrap(),
-            "-q",
-            "-o",
-            out.to_str().unwrap(),
-        ])
+    let assert = sweep(&case, &out)
         .args(["--vary", "drive.amplitude=0.5 m,1 m,2 m"])
         .assert()
         .success();
@@ -108,14 +108,7 @@ fn a_scenario_row_matches_a_run_of_the_same_case() {
     let dir = tempfile::tempdir().unwrap();
     let case = write_case(dir.path());
     let out = dir.path().join("f");
-    boreflux()
-        .args([
-            "sweep",
-            case.to_str().unwrap(),
-            "-q",
-            "-o",
-            out.to_str().unwrap(),
-        ])
+    sweep(&case, &out)
         .args(["--vary", "drive.frequency=0.25,0.5", "--jobs", "2"])
         .assert()
         .success();
@@ -150,24 +143,22 @@ fn a_scenario_row_matches_a_run_of_the_same_case() {
 fn shards_merge_into_the_whole_sweep() {
     let dir = tempfile::tempdir().unwrap();
     let case = write_case(dir.path());
-    let sweep = |out: &str, shard: Option<&str>| {
-        let mut c = boreflux();
-        c.args(["sweep", case.to_str().unwrap(), "-q", "-o"])
-            .arg(dir.path().join(out))
-            .args([
-                "--vary",
-                "drive.frequency=0.25..1:3",
-                "--vary",
-                "pack.outer_radius=0.15,0.25",
-            ]);
+    let run = |out: &str, shard: Option<&str>| {
+        let mut c = sweep(&case, &dir.path().join(out));
+        c.args([
+            "--vary",
+            "drive.frequency=0.25..1:3",
+            "--vary",
+            "pack.outer_radius=0.15,0.25",
+        ]);
         if let Some(s) = shard {
             c.args(["--shard", s]);
         }
         c.assert().success();
     };
-    sweep("whole", None);
+    run("whole", None);
     for k in 1..=4 {
-        sweep(&format!("part-{k}"), Some(&format!("{k}/4")));
+        run(&format!("part-{k}"), Some(&format!("{k}/4")));
     }
     let parts: Vec<String> = (1..=4)
         .map(|k| {
@@ -314,14 +305,7 @@ fn a_sweep_table_gets_its_own_report() {
     let dir = tempfile::tempdir().unwrap();
     let case = write_case(dir.path());
     let stem = dir.path().join("amp");
-    boreflux()
-        .args([
-            "sweep",
-            case.to_str().unwrap(),
-            "-q",
-            "-o",
-            stem.to_str().unwrap(),
-        ])
+    sweep(&case, &stem)
         .args([
             "--vary",
             "drive.amplitude=0.5 m,1 m,2 m",

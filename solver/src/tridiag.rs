@@ -14,7 +14,7 @@
 //! matrices, which the θ-scheme always gives (the matrix is an M-matrix), as the one-sided
 //! sweep is. [`Factored`] keeps the multipliers so a matrix that does not change between
 //! steps is eliminated once and each step costs one pass of each sweep over the
-//! right-hand side; [`Factored::factor_solve`] eliminates and sweeps in the same pass.
+//! right-hand side; [`Factored::factor_solve_symmetric`] eliminates and sweeps in the same pass.
 
 use crate::error::SolverError;
 
@@ -87,21 +87,6 @@ impl Factored {
         let n = diag.len();
         let off = &off[..n.saturating_sub(1)];
         self.eliminate::<true>(|i| -off[i - 1], diag, |i| -off[i], rhs)?;
-        self.substitute(rhs);
-        Ok(())
-    }
-
-    /// Eliminates the matrix and solves for `rhs` in the same pass: on return `rhs` holds x
-    /// and the factors are kept for [`Factored::solve`].
-    pub fn factor_solve(
-        &mut self,
-        lower: &[f64],
-        diag: &[f64],
-        upper: &[f64],
-        rhs: &mut [f64],
-    ) -> Result<(), SolverError> {
-        assert!(lower.len() == diag.len() && upper.len() == diag.len());
-        self.eliminate::<true>(|i| lower[i], diag, |i| upper[i], rhs)?;
         self.substitute(rhs);
         Ok(())
     }
@@ -276,18 +261,15 @@ mod tests {
             }
             let want = dense_solve(dense, rhs.clone());
             let mut f = Factored::with_size(n);
+            f.factor(&lower, &diag, &upper).unwrap();
             let mut x = rhs.clone();
-            f.factor_solve(&lower, &diag, &upper, &mut x).unwrap();
-            // The kept factors solve again, and so does a separate factorization.
+            f.solve(&mut x);
+            // The kept factors solve again.
             let mut y = rhs.clone();
             f.solve(&mut y);
-            let mut g = Factored::with_size(n);
-            g.factor(&lower, &diag, &upper).unwrap();
-            let mut z = rhs.clone();
-            g.solve(&mut z);
             for i in 0..n {
                 // Backward stable on a well-conditioned system: a few ulps × n.
-                for (name, got) in [("factor_solve", x[i]), ("solve", y[i]), ("factor", z[i])] {
+                for (name, got) in [("solve", x[i]), ("solve again", y[i])] {
                     assert!(
                         (got - want[i]).abs() <= 1e-13 * (1.0 + want[i].abs()),
                         "{name}: n={n} i={i}: {got} vs {}",
@@ -317,7 +299,8 @@ mod tests {
             let rhs: Vec<f64> = (0..n).map(|_| rng(&mut seed) - 0.5).collect();
             let (mut x, mut y, mut z) = (rhs.clone(), rhs.clone(), rhs.clone());
             let mut f = Factored::with_size(n);
-            f.factor_solve(&lower, &diag, &upper, &mut x).unwrap();
+            f.factor(&lower, &diag, &upper).unwrap();
+            f.solve(&mut x);
             let mut g = Factored::with_size(n);
             g.factor_solve_symmetric(&diag, &off, &mut y).unwrap();
             let mut h = Factored::with_size(n);

@@ -70,6 +70,14 @@ fn combine(
     }
 }
 
+/// One cell row: its residual R and its flow term |S (y − h)/(θΔt)| + |Q_in| + |Q_out|, in
+/// the operation order the AVX version keeps on each lane.
+#[inline(always)]
+fn row(y: f64, h: f64, s: f64, q_in: f64, q_out: f64, inv_tdt: f64) -> (f64, f64) {
+    let acc = s * inv_tdt * (y - h);
+    (q_in - q_out - acc, acc.abs() + q_in.abs() + q_out.abs())
+}
+
 /// One row at a time, for the rows after the last whole group of [`LANES`].
 fn tail_rows(
     y: &[f64],
@@ -88,11 +96,11 @@ fn tail_rows(
     for (((((r, &y), &h), &s), &qi), &qo) in
         rhs.iter_mut().zip(y).zip(h).zip(s).zip(q_in).zip(q_out)
     {
-        let acc = s * inv_tdt * (y - h);
-        *r = qi - qo - acc;
-        out.worst = max(out.worst, r.abs());
-        out.scale = max(out.scale, acc.abs() + qi.abs() + qo.abs());
-        out.sum += *r;
+        let (res, terms) = row(y, h, s, qi, qo, inv_tdt);
+        *r = res;
+        out.worst = max(out.worst, res.abs());
+        out.scale = max(out.scale, terms);
+        out.sum += res;
     }
     out
 }
@@ -181,11 +189,10 @@ pub(super) fn residual_rows(
     for k in (0..full).step_by(LANES) {
         for l in 0..LANES {
             let j = k + l;
-            let acc = s[j] * inv_tdt * (y[j] - h[j]);
-            let r = q_in[j] - q_out[j] - acc;
+            let (r, terms) = row(y[j], h[j], s[j], q_in[j], q_out[j], inv_tdt);
             rhs[j] = r;
             worst[l] = max(worst[l], r.abs());
-            scale[l] = max(scale[l], acc.abs() + q_in[j].abs() + q_out[j].abs());
+            scale[l] = max(scale[l], terms);
             sum[l] += r;
         }
     }
