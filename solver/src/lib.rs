@@ -11,12 +11,14 @@
 
 pub mod cake;
 pub mod devices;
+pub mod cost;
 pub mod diagnostics;
 pub mod drive;
 pub mod error;
 pub mod faces;
 pub mod grid;
 pub mod harmonic;
+pub mod limits;
 pub mod media;
 pub mod model;
 pub mod run;

@@ -25,6 +25,14 @@ const CELSIUS_ZERO_K: f64 = 273.15;
 
 /// Converts a raw case into a checked model; `base_dir` resolves drive files.
 pub fn convert(raw: RawCase, base_dir: &Path) -> Result<LoadedCase, CaseError> {
+    for (field, text) in [("title", &raw.title), ("description", &raw.description)] {
+        if text.as_deref().is_some_and(|t| t.contains('\0')) {
+            return Err(CaseError::new(
+                field,
+                "contains a NUL character (\\u0000), which result files cannot store; remove it",
+            ));
+        }
+    }
     let mut log = Log::default();
     let (fluid, water, fluid_json) = fluid(&raw, &mut log)?;
     let (well, mut safety, well_json) = well(&raw.well, &mut log)?;

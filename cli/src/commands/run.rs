@@ -21,7 +21,8 @@ use boreflux_solver::system::Discretization;
 use boreflux_solver::{run as simulate, CycleView, Reporting, SolverError, StepObserver, StepView};
 use indicatif::{ProgressBar, ProgressDrawTarget, ProgressStyle};
 use serde_json::Value;
-use std::path::{Path, PathBuf};
+use super::outputs::{check_output, same_file_key};
+use std::path::Path;
 
 /// Steps between progress-bar updates.
 const PROGRESS_EVERY: u64 = 256;
@@ -145,6 +146,12 @@ pub fn run(a: &RunArgs) -> Result<(), Failure> {
     };
     let csv_path = a.csv.then(|| a.output.with_extension("csv"));
     refuse_overwriting_inputs(&a.case, &a.output, csv_path.as_deref()).map_err(Failure::Input)?;
+    check_output(&a.output, "-o/--output", a.force).map_err(Failure::Input)?;
+    if let Some(csv) = &csv_path {
+        check_output(csv, "--csv", a.force).map_err(Failure::Input)?;
+    }
+    let cost = crate::cost::run_cost(&case, a.csv, a.snapshot_every);
+    crate::cost::refuse_large(&cost, a.allow_large).map_err(Failure::Input)?;
     catch_interrupts();
     let mut sink = ResultSink::create(&a.output, csv_path.as_deref(), grid.cells(), snapshot_every)
         .map_err(|e| Failure::Input(anyhow!("cannot write output {}: {e}", a.output.display())))?;
@@ -224,10 +231,9 @@ pub(super) fn refuse_overwriting_inputs(
         .parent()
         .filter(|p| !p.as_os_str().is_empty())
         .unwrap_or(Path::new("."));
-    let text = std::fs::read_to_string(case)
-        .with_context(|| format!("cannot read case file {}", case.display()))?;
-    let value: Value =
-        serde_json::from_str(&text).with_context(|| format!("{}: invalid JSON", case.display()))?;
+    let text = crate::case::read_limited(case, crate::case::MAX_CASE_BYTES, "case file")
+        .map_err(|e| anyhow!(e))?;
+    let value: Value = crate::case::read_json(&text).map_err(|e| anyhow!("{}: {e}", case.display()))?;
     let mut inputs = vec![(case.to_path_buf(), "the case file itself".to_owned())];
     let mut files = Vec::new();
     if let Some(drive) = value.get("drive") {
@@ -289,10 +295,6 @@ fn drive_files(v: &Value, out: &mut Vec<String>) {
     }
 }
 
-/// A path to compare files by: canonical where the file exists, else absolute as written.
-fn same_file_key(p: &Path) -> PathBuf {
-    std::fs::canonicalize(p).unwrap_or_else(|_| std::path::absolute(p).unwrap_or(p.to_path_buf()))
-}
 
 /// Rough number of steps, for the snapshot spacing.
 fn estimate_steps(model: &boreflux_solver::Model) -> u64 {
