@@ -129,7 +129,7 @@ pub const TIME_STEP: Range = r(1e-6, 1e8, "s", "time steps from 1 us up to the l
 /// Frequencies of periodic drives. Common practice, no source: surge blocks and swabs work
 /// at up to about 1 Hz; 10 Hz is far beyond anything a rig can stroke, and 1e-7 Hz is a
 /// period longer than the longest run.
-pub const FREQUENCY: Range = r(1e-7, 10.0, "Hz", "strokes of a rig: at most 600 a minute");
+pub const FREQUENCY: Range = r(1e-7, 10.0, "Hz", "strokes of a rig: at most 600 a minute; strokes_per_minute is converted to Hz");
 /// Frequency of a prescribed sine head. Assumption: a laboratory or test head may be
 /// faster than a rig; 100 Hz.
 pub const SINE_FREQUENCY: Range = r(1e-7, 100.0, "Hz", "frequencies a well's water column can follow");
@@ -142,8 +142,9 @@ pub const PUMPING_RATE: Range = r(0.0, 5.0, "m3/s", "yields of water wells");
 pub const SURGE_STROKE: Range = r(1e-3, 10.0, "m", "surge-block strokes are about 1 m");
 /// Swab stroke and submergence. Assumption: bounded by the depth of a water well.
 pub const SWAB_LENGTH: Range = r(1e-3, 2000.0, "m", "depths of water wells");
-/// Swab lifting speed. Assumption: a winch line runs at up to a few m/s.
-pub const LIFT_RATE: Range = r(1e-4, 10.0, "m/s", "line speeds of a winch");
+/// Swab lifting speed. Assumption: a winch line runs at up to a few m/s; 100 m/s leaves
+/// room for limit cases.
+pub const LIFT_RATE: Range = r(1e-4, 100.0, "m/s", "line speeds of a winch");
 /// Durations of device phases (lowering, on, off, drain, rotation). Assumption.
 pub const PHASE_TIME: Range = r(1e-3, 1e7, "s", "device phases from a millisecond to months");
 /// Back-flow volume of a pump column. Assumption: a 2000 m column of 0.3 m pipe holds
@@ -321,8 +322,11 @@ fn drive(d: &Drive, casing_radius_m: f64) -> Result<(), SolverError> {
                 SolverError::invalid(
                     "drive.file",
                     format!(
-                        "the table must span between {} s and {} s ({}), got {last} s",
-                        DURATION.min, DURATION.max, DURATION.why
+                        "the table must span between {} s and {} s ({}), got {} s",
+                        show(DURATION.min),
+                        show(DURATION.max),
+                        DURATION.why,
+                        show(last)
                     ),
                 )
             })

@@ -75,6 +75,10 @@ pub fn table(map: Map<String, Value>, ctx: &DriveContext<'_>) -> Result<ParsedDr
         }
     };
     check_rows(&rows).map_err(|m| CaseError::new(field, m))?;
+    let span = rows.last().map_or(0.0, |r| r.1);
+    boreflux_solver::limits::DURATION
+        .check(field, span)
+        .map_err(|e| CaseError::new(field, format!("the table's time span {}", CaseError::from(e).message)))?;
     let repeat = k.repeat.unwrap_or(false);
     let quantity = match k.quantity {
         TableQuantityName::Head => TableQuantity::Head,
