@@ -111,8 +111,9 @@ pub fn refuse_large(c: &RunCost, allow: bool) -> Result<(), anyhow::Error> {
     if allow {
         return Ok(());
     }
-    let over_steps = !(c.cell_steps <= MAX_CELL_STEPS);
-    let over_bytes = !(c.bytes <= MAX_OUTPUT_BYTES);
+    // NaN counts as over.
+    let over_steps = c.cell_steps.is_nan() || c.cell_steps > MAX_CELL_STEPS;
+    let over_bytes = c.bytes.is_nan() || c.bytes > MAX_OUTPUT_BYTES;
     if !(over_steps || over_bytes) {
         return Ok(());
     }

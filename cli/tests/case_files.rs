@@ -568,7 +568,8 @@ const BAD_CASES: &[(&str, &str, &[&str])] = &[
     ("duration_huge", "duration", &["between 0.001 s and 1e8 s", "got 1e12 s"]),
     ("time_step_tiny", "numerics.time_step", &["between 1e-6 s and 1e8 s", "got 1e-300 s"]),
     ("surge_stroke_huge", "drive.stroke", &["between 0.001 m and 10 m", "got 1e308 m"]),
-    ("strokes_per_minute_huge", "drive.frequency", &["at most 600 a minute", "strokes_per_minute is converted", "got 16666.666666666668 Hz"]),
+    ("strokes_per_minute_huge", "drive.strokes_per_minute", &["as a frequency (strokes_per_minute / 60)", "at most 600 a minute", "got 16666.666666666668 Hz"]),
+    ("stage_strokes_per_minute_huge", "drive.stages[1].drive.strokes_per_minute", &["as a frequency (strokes_per_minute / 60)", "got 1666.6666666666667 Hz"]),
     ("jet_width_nanometres", "drive.jet_width", &["between 0.0001 m and 5 m", "got 1e-8 m"]),
     ("table_period_nanoseconds", "drive.points", &["time span", "between 0.001 s and 1e8 s", "got 1e-9 s"]),
     // Geometry that cannot exist.

@@ -79,7 +79,11 @@ fn existing_outputs_need_force_for_every_command() {
     let before = std::fs::read(&h5).unwrap();
     let out = run(&[]);
     assert_eq!(code(&out), 2);
-    assert!(stderr(&out).contains("r.h5 already exists"), "{}", stderr(&out));
+    assert!(
+        stderr(&out).contains("r.h5 already exists"),
+        "{}",
+        stderr(&out)
+    );
     assert_eq!(std::fs::read(&h5).unwrap(), before);
     assert!(csv.exists());
 
@@ -147,7 +151,11 @@ fn report_never_writes_over_its_input() {
         .output()
         .unwrap();
     assert_eq!(code(&out), 2);
-    assert!(stderr(&out).contains("never writes over its inputs"), "{}", stderr(&out));
+    assert!(
+        stderr(&out).contains("never writes over its inputs"),
+        "{}",
+        stderr(&out)
+    );
     assert_eq!(std::fs::read(&h5).unwrap(), before);
 }
 
@@ -313,7 +321,10 @@ fn runs_over_the_size_limit_need_allow_large() {
         .unwrap();
     assert_eq!(code(&out), 2);
     let e = stderr(&out);
-    assert!(e.contains("too large") && e.contains("--allow-large"), "{e}");
+    assert!(
+        e.contains("too large") && e.contains("--allow-large"),
+        "{e}"
+    );
     assert!(e.contains("8.640e9 steps"), "{e}");
     assert_eq!(names(dir.path()), ["long.json"]);
     let out = boreflux().arg("check").arg(&case).output().unwrap();

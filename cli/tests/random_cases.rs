@@ -46,7 +46,10 @@ impl StepObserver for Watch {
             if let Some((n, v)) = named.iter().find(|(_, v)| !v.is_finite()) {
                 self.bad = Some(format!("{n} = {v} at t = {} s", s.time_s));
             } else if zones.clone().any(|v| !v.is_finite()) {
-                self.bad = Some(format!("zone power or work not finite at t = {} s", s.time_s));
+                self.bad = Some(format!(
+                    "zone power or work not finite at t = {} s",
+                    s.time_s
+                ));
             }
         }
         self.tracker.on_step(s)

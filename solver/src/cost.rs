@@ -85,7 +85,10 @@ fn walk(model: &Model, d: &Drive, end: f64, mode: Mode) -> f64 {
     let mut steps = 0.0;
     for _ in 0..WALK_CAP {
         let eps = 1e-12 * end.max(1.0);
-        match d.next_event_s(t + eps).filter(|&(te, _)| te > t + eps && te < end - eps) {
+        match d
+            .next_event_s(t + eps)
+            .filter(|&(te, _)| te > t + eps && te < end - eps)
+        {
             Some((te, jump)) => {
                 steps += interval_steps(te - t, mode) + 1.0 + if jump { startup } else { 0.0 };
                 t = te;
@@ -155,7 +158,10 @@ mod tests {
                     per_decade: n,
                 },
             );
-            assert!(est >= k && est <= k + 3.0, "{first} {n} {len}: {est} vs {k}");
+            assert!(
+                est >= k && est <= k + 3.0,
+                "{first} {n} {len}: {est} vs {k}"
+            );
         }
     }
 }

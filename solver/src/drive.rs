@@ -601,7 +601,10 @@ mod tests {
             .collect();
         let st = stages(list);
         let end = st.last().map(|s| s.start_s + s.duration_s).unwrap();
-        let mut probes: Vec<f64> = st.iter().flat_map(|s| [s.start_s, s.start_s + 1e-13]).collect();
+        let mut probes: Vec<f64> = st
+            .iter()
+            .flat_map(|s| [s.start_s, s.start_s + 1e-13])
+            .collect();
         probes.extend((0..2000).map(|_| 1.1 * end * rnd() - 0.05 * end));
         for &t in &probes {
             assert_eq!(stage_index(&st, t), stage_by_scan(&st, t), "t = {t}");
@@ -650,8 +653,18 @@ mod tests {
     #[test]
     fn a_stage_built_by_hand_must_start_where_the_last_ended() {
         let mut st = stages(vec![
-            (Drive::Slug { initial_head_m: 1.0 }, 5.0),
-            (Drive::Slug { initial_head_m: 2.0 }, 5.0),
+            (
+                Drive::Slug {
+                    initial_head_m: 1.0,
+                },
+                5.0,
+            ),
+            (
+                Drive::Slug {
+                    initial_head_m: 2.0,
+                },
+                5.0,
+            ),
         ]);
         st[1].start_s = 4.0;
         let e = Drive::Schedule(st).validate().unwrap_err().to_string();

@@ -122,8 +122,8 @@ pub fn planned_cells(model: &Model) -> f64 {
         GridSpec::Auto => (DEFAULT_NEAR_CELLS_PER_DECADE, DEFAULT_CELLS_PER_DECADE),
         GridSpec::PerDecade(pd) => (pd, pd),
         GridSpec::Total(n) => {
-            let min = (MIN_PACK_CELLS + MIN_FORMATION_CELLS) as f64
-                + inv * MIN_INVADED_CELLS as f64;
+            let min =
+                (MIN_PACK_CELLS + MIN_FORMATION_CELLS) as f64 + inv * MIN_INVADED_CELLS as f64;
             return (n as f64).max(min) + 1.0;
         }
     };

@@ -10,8 +10,8 @@
 #![deny(missing_docs)]
 
 pub mod cake;
-pub mod devices;
 pub mod cost;
+pub mod devices;
 pub mod diagnostics;
 pub mod drive;
 pub mod error;

@@ -113,26 +113,46 @@ pub const CONDUCTIVITY: Range = r(1e-15, 10.0, "m/s", "conductivities of earth m
 pub const SPECIFIC_STORAGE: Range = r(1e-10, 1.0, "1/m", "specific storage of earth materials");
 /// Forchheimer β. Assumption: β = 1/(K v_c) with K ≥ 1e-7 m/s and onset velocities
 /// ≥ 1e-5 m/s stays below 1e12 s²/m².
-pub const FORCHHEIMER_BETA: Range = r(0.0, 1e12, "s2/m2", "inertial loss coefficients of porous media");
+pub const FORCHHEIMER_BETA: Range = r(
+    0.0,
+    1e12,
+    "s2/m2",
+    "inertial loss coefficients of porous media",
+);
 /// Grain diameter (d50). Assumption: clay particles to boulders.
 pub const GRAIN_DIAMETER: Range = r(1e-7, 1.0, "m", "grain sizes, clay to boulders");
 /// Linear screen loss coefficient (head drop per Darcy flux). Assumption: 1e9 s makes a
 /// 1 mm/s flux lose 1000 km of head.
 pub const SCREEN_LOSS: Range = r(0.0, 1e9, "s", "linear screen loss coefficients");
 /// Well-bore storage. Follows from [`RADIUS`]: π (5 m)² ≈ 79 m².
-pub const WELL_STORAGE: Range = r(0.0, 100.0, "m2", "free-surface area of a well of at most 5 m radius");
+pub const WELL_STORAGE: Range = r(
+    0.0,
+    100.0,
+    "m2",
+    "free-surface area of a well of at most 5 m radius",
+);
 /// Duration of a run. Assumption: development and test pumping last hours to weeks; three
 /// years (1e8 s) is far beyond.
-pub const DURATION: Range = r(1e-3, 1e8, "s", "development and test pumping last hours to weeks");
+pub const DURATION: Range = r(
+    1e-3,
+    1e8,
+    "s",
+    "development and test pumping last hours to weeks",
+);
 /// Time steps and first steps. Assumption: below 1 µs nothing in the well changes.
 pub const TIME_STEP: Range = r(1e-6, 1e8, "s", "time steps from 1 us up to the longest run");
 /// Frequencies of periodic drives. Common practice, no source: surge blocks and swabs work
 /// at up to about 1 Hz; 10 Hz is far beyond anything a rig can stroke, and 1e-7 Hz is a
 /// period longer than the longest run.
-pub const FREQUENCY: Range = r(1e-7, 10.0, "Hz", "strokes of a rig: at most 600 a minute; strokes_per_minute is converted to Hz");
+pub const FREQUENCY: Range = r(1e-7, 10.0, "Hz", "strokes of a rig: at most 600 a minute");
 /// Frequency of a prescribed sine head. Assumption: a laboratory or test head may be
 /// faster than a rig; 100 Hz.
-pub const SINE_FREQUENCY: Range = r(1e-7, 100.0, "Hz", "frequencies a well's water column can follow");
+pub const SINE_FREQUENCY: Range = r(
+    1e-7,
+    100.0,
+    "Hz",
+    "frequencies a well's water column can follow",
+);
 /// Heads (amplitude, offset, slug, table heads), magnitude. Assumption: the deepest water
 /// wells hold a few hundred metres of water above the pump.
 pub const HEAD: Range = r(0.0, 2000.0, "m", "heads in water wells");
@@ -187,8 +207,14 @@ pub const NEWTON_ITERATIONS: Range = r(1.0, 1000.0, "", "Newton iterations per s
 
 fn medium(zone: &str, m: &Medium) -> Result<(), SolverError> {
     CONDUCTIVITY.check(&format!("{zone}.conductivity"), m.conductivity_m_s)?;
-    SPECIFIC_STORAGE.check(&format!("{zone}.specific_storage"), m.specific_storage_per_m)?;
-    FORCHHEIMER_BETA.check(&format!("{zone}.forchheimer_beta"), m.forchheimer_beta_s2_m2)?;
+    SPECIFIC_STORAGE.check(
+        &format!("{zone}.specific_storage"),
+        m.specific_storage_per_m,
+    )?;
+    FORCHHEIMER_BETA.check(
+        &format!("{zone}.forchheimer_beta"),
+        m.forchheimer_beta_s2_m2,
+    )?;
     if let Some(d) = m.grain_diameter_m {
         GRAIN_DIAMETER.check(&format!("{zone}.d50"), d)?;
     }
@@ -274,7 +300,9 @@ fn numerics(model: &Model) -> Result<(), SolverError> {
         ));
     }
     match n.time {
-        TimeSpec::StepsPerCycle(s) => STEPS_PER_CYCLE.check("numerics.steps_per_cycle", s as f64)?,
+        TimeSpec::StepsPerCycle(s) => {
+            STEPS_PER_CYCLE.check("numerics.steps_per_cycle", s as f64)?
+        }
         TimeSpec::StepsPerDecade {
             per_decade,
             first_step_s,
@@ -287,7 +315,10 @@ fn numerics(model: &Model) -> Result<(), SolverError> {
     }
     STARTUP_STEPS.check("numerics.startup_steps", n.startup_steps as f64)?;
     NEWTON_TOLERANCE.check("numerics.newton_tolerance", n.newton_tolerance)?;
-    NEWTON_ITERATIONS.check("numerics.newton_max_iterations", n.newton_max_iterations as f64)
+    NEWTON_ITERATIONS.check(
+        "numerics.newton_max_iterations",
+        n.newton_max_iterations as f64,
+    )
 }
 
 fn drive(d: &Drive, casing_radius_m: f64) -> Result<(), SolverError> {
@@ -410,7 +441,9 @@ mod tests {
 
     #[test]
     fn range_message_names_range_and_reason() {
-        let e = SCREEN_LENGTH.check("well.screen_length", 1e308).unwrap_err();
+        let e = SCREEN_LENGTH
+            .check("well.screen_length", 1e308)
+            .unwrap_err();
         assert_eq!(
             e.to_string(),
             "well.screen_length: must be between 0.01 m and 2000 m (screened lengths of \

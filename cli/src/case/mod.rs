@@ -104,8 +104,7 @@ pub const MAX_CASE_BYTES: u64 = 200_000_000;
 pub fn read_limited(path: &Path, max: u64, what: &str) -> Result<String, String> {
     use std::io::Read;
     let shown = path.display();
-    let meta =
-        std::fs::metadata(path).map_err(|e| format!("cannot read {what} {shown}: {e}"))?;
+    let meta = std::fs::metadata(path).map_err(|e| format!("cannot read {what} {shown}: {e}"))?;
     if !meta.is_file() {
         return Err(format!(
             "cannot read {what} {shown}: not a regular file (a folder, device or pipe)"
@@ -135,7 +134,8 @@ pub fn read_limited(path: &Path, max: u64, what: &str) -> Result<String, String>
 
 /// Reads, converts and checks the case file at `path`; drive files are found beside it.
 pub fn load_case(path: &Path) -> Result<LoadedCase, CaseError> {
-    let text = read_limited(path, MAX_CASE_BYTES, "case file").map_err(|m| CaseError::new("", m))?;
+    let text =
+        read_limited(path, MAX_CASE_BYTES, "case file").map_err(|m| CaseError::new("", m))?;
     let base = path
         .parent()
         .filter(|p| !p.as_os_str().is_empty())

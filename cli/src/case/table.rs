@@ -78,7 +78,12 @@ pub fn table(map: Map<String, Value>, ctx: &DriveContext<'_>) -> Result<ParsedDr
     let span = rows.last().map_or(0.0, |r| r.1);
     boreflux_solver::limits::DURATION
         .check(field, span)
-        .map_err(|e| CaseError::new(field, format!("the table's time span {}", CaseError::from(e).message)))?;
+        .map_err(|e| {
+            CaseError::new(
+                field,
+                format!("the table's time span {}", CaseError::from(e).message),
+            )
+        })?;
     let repeat = k.repeat.unwrap_or(false);
     let quantity = match k.quantity {
         TableQuantityName::Head => TableQuantity::Head,
@@ -147,7 +152,10 @@ pub fn read_csv(text: &str) -> Result<Vec<(usize, f64, f64)>, String> {
             Err(_) if header_allowed => {}
             Err(_) => {
                 // The line itself is not quoted: the file may not be a table at all.
-                let col = cols.iter().position(|c| c.parse::<f64>().is_err()).unwrap_or(0);
+                let col = cols
+                    .iter()
+                    .position(|c| c.parse::<f64>().is_err())
+                    .unwrap_or(0);
                 return Err(format!(
                     "line {n}: expected two numbers (time_s,value); column {} is not a number",
                     col + 1

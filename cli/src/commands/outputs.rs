@@ -82,7 +82,9 @@ mod tests {
         let e = check_output(&f, "-o", false).unwrap_err().to_string();
         assert!(e.contains("already exists") && e.contains("--force"), "{e}");
         assert!(check_output(&f, "-o", true).is_ok());
-        let e = check_output(dir.path(), "-o", true).unwrap_err().to_string();
+        let e = check_output(dir.path(), "-o", true)
+            .unwrap_err()
+            .to_string();
         assert!(e.contains("is a folder"), "{e}");
         let e = check_output(&dir.path().join("no/x.h5"), "-o", true)
             .unwrap_err()

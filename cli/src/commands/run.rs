@@ -9,6 +9,7 @@
 //! exit 1 (DESIGN.md: 0 success, 1 runtime failure, 2 bad input).
 
 use super::interrupt::{catch_interrupts, interrupted, INTERRUPTED_MESSAGE};
+use super::outputs::{check_output, same_file_key};
 use super::{print_out, Failure};
 use crate::args::RunArgs;
 use crate::case::{load_case, LoadedCase};
@@ -21,7 +22,6 @@ use boreflux_solver::system::Discretization;
 use boreflux_solver::{run as simulate, CycleView, Reporting, SolverError, StepObserver, StepView};
 use indicatif::{ProgressBar, ProgressDrawTarget, ProgressStyle};
 use serde_json::Value;
-use super::outputs::{check_output, same_file_key};
 use std::path::Path;
 
 /// Steps between progress-bar updates.
@@ -233,7 +233,8 @@ pub(super) fn refuse_overwriting_inputs(
         .unwrap_or(Path::new("."));
     let text = crate::case::read_limited(case, crate::case::MAX_CASE_BYTES, "case file")
         .map_err(|e| anyhow!(e))?;
-    let value: Value = crate::case::read_json(&text).map_err(|e| anyhow!("{}: {e}", case.display()))?;
+    let value: Value =
+        crate::case::read_json(&text).map_err(|e| anyhow!("{}: {e}", case.display()))?;
     let mut inputs = vec![(case.to_path_buf(), "the case file itself".to_owned())];
     let mut files = Vec::new();
     if let Some(drive) = value.get("drive") {
@@ -294,7 +295,6 @@ fn drive_files(v: &Value, out: &mut Vec<String>) {
         _ => {}
     }
 }
-
 
 /// Rough number of steps, for the snapshot spacing.
 fn estimate_steps(model: &boreflux_solver::Model) -> u64 {

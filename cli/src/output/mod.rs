@@ -131,7 +131,9 @@ fn remove_stale(dest: &Path) {
     let (Some(name), dir) = (dest.file_name(), dest.parent()) else {
         return;
     };
-    let dir = dir.filter(|d| !d.as_os_str().is_empty()).unwrap_or(Path::new("."));
+    let dir = dir
+        .filter(|d| !d.as_os_str().is_empty())
+        .unwrap_or(Path::new("."));
     let prefix = format!(".{}.tmp-", name.to_string_lossy());
     let Ok(entries) = std::fs::read_dir(dir) else {
         return;

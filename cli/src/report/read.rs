@@ -297,7 +297,13 @@ fn read_snapshots(file: &File) -> Result<Snapshots, String> {
         time.len(),
     )?;
     check_units(&ds, path, "m")?;
-    bounded(path, shape.iter().try_fold(1usize, |a, &b| a.checked_mul(b)).unwrap_or(usize::MAX))?;
+    bounded(
+        path,
+        shape
+            .iter()
+            .try_fold(1usize, |a, &b| a.checked_mul(b))
+            .unwrap_or(usize::MAX),
+    )?;
     let head = if shape[0] == 0 {
         Vec::new()
     } else {

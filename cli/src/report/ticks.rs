@@ -119,7 +119,9 @@ pub fn multiples(lo: f64, hi: f64, step: f64) -> Vec<f64> {
     if !(first.is_finite() && last.is_finite() && last - first <= MAX_TICKS as f64) {
         return Vec::new();
     }
-    (first as i64..=last as i64).map(|k| k as f64 * step).collect()
+    (first as i64..=last as i64)
+        .map(|k| k as f64 * step)
+        .collect()
 }
 
 /// Most ticks on one axis.
@@ -187,7 +189,10 @@ mod tests {
         assert!(multiples(-1e308, 1e308, 1e-300).is_empty());
         assert!(multiples(0.0, f64::INFINITY, 1.0).is_empty());
         let (lo, hi, t) = ticks_for(Scale::Linear, (-1e308, 1e308), true);
-        assert!(lo.is_finite() && hi.is_finite() && !t.is_empty(), "{lo} {hi}");
+        assert!(
+            lo.is_finite() && hi.is_finite() && !t.is_empty(),
+            "{lo} {hi}"
+        );
         assert_eq!(linear_labels(&[0.0, 2.5, 5.0], 2.5), ["0.0", "2.5", "5.0"]);
         assert_eq!(linear_labels(&[-1.0, 0.0, 1.0], 1.0), ["−1", "0", "1"]);
         assert_eq!(

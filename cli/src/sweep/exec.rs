@@ -148,8 +148,15 @@ fn run_one(
         Ok(c) => c,
         Err(e) => return failed(format!("case not valid: {e}")),
     };
-    std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| run_case(p, plan, &case, stop)))
-        .unwrap_or_else(|e| failed(format!("simulation failed: internal error: {}", panic_text(&*e))))
+    std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| {
+        run_case(p, plan, &case, stop)
+    }))
+    .unwrap_or_else(|e| {
+        failed(format!(
+            "simulation failed: internal error: {}",
+            panic_text(&*e)
+        ))
+    })
 }
 
 /// Runs a built scenario to its row.
@@ -215,8 +222,9 @@ pub fn run_all(
                 }
                 let outcome = run_one(&ready[k], plan, base_dir, stop);
                 done(ready[k].scenario);
-                slots.lock().unwrap_or_else(std::sync::PoisonError::into_inner)[k] =
-                    Some(outcome);
+                slots
+                    .lock()
+                    .unwrap_or_else(std::sync::PoisonError::into_inner)[k] = Some(outcome);
             });
         }
     });

@@ -75,7 +75,10 @@ fn drive(rng: &mut Rng, kind: &str, screen_radius: f64, casing_radius: f64) -> (
         ),
         "slug" => {
             let h = rng.log_uniform(0.2, 3.0) * if rng.chance(0.5) { 1.0 } else { -1.0 };
-            (json!({"kind": "slug", "initial_head": h}), json!(rng.uniform(60.0, 600.0)))
+            (
+                json!({"kind": "slug", "initial_head": h}),
+                json!(rng.uniform(60.0, 600.0)),
+            )
         }
         "table" => {
             let n = rng.int(3, 10);
