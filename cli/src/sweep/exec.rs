@@ -259,3 +259,64 @@ pub fn tabulate(outcomes: Vec<Outcome>) -> (Vec<String>, Vec<Row>) {
         .collect();
     (columns, rows)
 }
+
+#[cfg(test)]
+mod tests {
+    use super::super::spec::parse_vary;
+    use super::*;
+    use std::sync::atomic::AtomicBool;
+
+    fn plan() -> Plan {
+        let base = serde_json::json!({
+            "well": {"screen_radius": 0.1, "screen_length": 6, "open_area": 0.12},
+            "pack": {"outer_radius": 0.2, "porosity": 0.32, "conductivity": 8e-3},
+            "formation": {"conductivity": 2e-4, "specific_storage": 1e-5},
+            "drive": {"kind": "sine_head", "amplitude": 1.5, "frequency": 0.5},
+            "duration": 4
+        });
+        Plan::new(base, vec![parse_vary("drive.amplitude=1,2,3").unwrap()]).unwrap()
+    }
+
+    #[test]
+    fn a_panicking_scenario_keeps_its_row_and_the_others_run() {
+        let plan = plan();
+        let ready = prepare(&plan, Shard::WHOLE, Path::new("."), false).unwrap();
+        assert_eq!(ready.len(), 3);
+        // One thread, so the calls come in order: the first scenario's third step panics
+        // (inside its run), once.
+        let calls = AtomicUsize::new(0);
+        let fired = AtomicBool::new(false);
+        let stop = || {
+            if calls.fetch_add(1, Ordering::SeqCst) == 4 && !fired.swap(true, Ordering::SeqCst) {
+                panic!("injected failure");
+            }
+            false
+        };
+        let outcomes = run_all(&ready, &plan, Path::new("."), 1, &stop, &|_| {}).unwrap();
+        let status: Vec<&str> = outcomes.iter().map(|(r, _)| r.status.as_str()).collect();
+        assert_eq!(
+            status,
+            [
+                "simulation failed: internal error: injected failure",
+                "ok",
+                "ok"
+            ]
+        );
+        assert!(outcomes[0].1.is_empty() && !outcomes[1].1.is_empty());
+    }
+
+    #[test]
+    fn scenarios_over_the_size_limit_are_refused_unless_allowed() {
+        let mut plan = plan();
+        plan.base["numerics"] = serde_json::json!({"time_step": 1e-6});
+        plan.base["duration"] = serde_json::json!(1e4);
+        let e = prepare(&plan, Shard::WHOLE, Path::new("."), false).unwrap_err();
+        assert!(e.contains("too large") && e.contains("scenario 0"), "{e}");
+        assert_eq!(
+            prepare(&plan, Shard::WHOLE, Path::new("."), true)
+                .unwrap()
+                .len(),
+            3
+        );
+    }
+}
