@@ -570,6 +570,9 @@ const BAD_CASES: &[(&str, &str, &[&str])] = &[
     ("surge_stroke_huge", "drive.stroke", &["between 0.001 m and 10 m", "got 1e308 m"]),
     ("strokes_per_minute_huge", "drive.strokes_per_minute", &["as a frequency (strokes_per_minute / 60)", "at most 600 a minute", "got 16666.666666666668 Hz"]),
     ("stage_strokes_per_minute_huge", "drive.stages[1].drive.strokes_per_minute", &["as a frequency (strokes_per_minute / 60)", "got 1666.6666666666667 Hz"]),
+    ("collapse_rating_huge", "well.collapse_rating", &["between 1000 Pa and 1e9 Pa", "got 1e308 Pa"]),
+    ("grain_size_huge", "pack.d10", &["between 1e-7 m and 1 m", "got 1e308 m"]),
+    ("surge_discharge_coefficient_above_one", "drive.discharge_coefficient", &["must be in (0, 1]", "got 5"]),
     ("jet_width_nanometres", "drive.jet_width", &["between 0.0001 m and 5 m", "got 1e-8 m"]),
     ("table_period_nanoseconds", "drive.points", &["time span", "between 0.001 s and 1e8 s", "got 1e-9 s"]),
     // Geometry that cannot exist.

@@ -160,6 +160,8 @@ pub const HEAD: Range = r(0.0, 2000.0, "m", "heads in water wells");
 pub const PUMPING_RATE: Range = r(0.0, 5.0, "m3/s", "yields of water wells");
 /// Surge-block stroke. Common practice, no source: 0.3 to 1.5 m; 10 m is far beyond.
 pub const SURGE_STROKE: Range = r(1e-3, 10.0, "m", "surge-block strokes are about 1 m");
+/// Discharge coefficient of an orifice or clearance: at most 1 by definition.
+pub const DISCHARGE_COEFFICIENT: Range = r(1e-3, 1.0, "", "discharge coefficients are at most 1");
 /// Swab stroke and submergence. Assumption: bounded by the depth of a water well.
 pub const SWAB_LENGTH: Range = r(1e-3, 2000.0, "m", "depths of water wells");
 /// Swab lifting speed. Assumption: a winch line runs at up to a few m/s; 100 m/s leaves
@@ -188,6 +190,28 @@ pub const CRITICAL_SHEAR: Range = r(0.0, 1e4, "Pa", "critical shear stresses of 
 pub const ERODIBILITY: Range = r(0.0, 1.0, "m/(s Pa)", "erodibilities of cakes");
 /// Cake erosion: weights and exponent. Assumption.
 pub const WEIGHT: Range = r(0.0, 100.0, "", "dimensionless weights of the erosion law");
+/// Slot width of a screen. Common practice, no source: slots are about 0.25 to 5 mm.
+pub const SLOT_WIDTH: Range = r(1e-5, 0.05, "m", "slot widths of well screens");
+/// Collapse rating. Assumption: ratings of well screens and casings reach tens of MPa;
+/// 1 GPa is far beyond.
+pub const COLLAPSE_RATING: Range = r(1e3, 1e9, "Pa", "collapse ratings of screens and casings");
+/// Young's modulus of the pipe. Common practice, no source: thermoplastics about 2.5 GPa,
+/// steel about 200 GPa.
+pub const YOUNGS_MODULUS: Range = r(1e7, 1e12, "Pa", "Young's moduli of pipe materials");
+/// Dimension ratio (outside diameter / wall). Assumption: above 2 for a pipe with a bore,
+/// and pipes thinner than 1/1000 of their diameter are not made.
+pub const DIMENSION_RATIO: Range = r(
+    2.0,
+    1000.0,
+    "",
+    "outside diameter over wall thickness of pipes",
+);
+/// Safety factor of the collapse check. Assumption.
+pub const SAFETY_FACTOR: Range = r(1.0, 100.0, "", "safety factors");
+/// Specific gravity of grains. Common practice, no source: quartz 2.65, heavy minerals
+/// up to about 5.
+pub const SPECIFIC_GRAVITY: Range = r(1.0, 8.0, "", "specific gravities of mineral grains");
+
 /// Total cells of the grid. Assumption: a radial finite-volume model converges with a few
 /// hundred cells; 100 000 leaves room for convergence studies and keeps memory small.
 pub const MAX_CELLS: f64 = 100_000.0;
@@ -392,6 +416,7 @@ fn surge_block(b: &SurgeBlock, casing_radius_m: f64) -> Result<(), SolverError> 
     SURGE_STROKE.check("drive.stroke", b.stroke_m)?;
     FREQUENCY.check("drive.frequency", b.frequency_hz)?;
     RADIUS.check("drive.block_radius", b.block_radius_m)?;
+    DISCHARGE_COEFFICIENT.check("drive.discharge_coefficient", b.discharge_coefficient)?;
     RAMP_CYCLES.check("drive.ramp_cycles", b.ramp_cycles)?;
     let casing_area = std::f64::consts::PI * casing_radius_m * casing_radius_m;
     if !(b.valve_area_m2.is_finite() && b.valve_area_m2 < casing_area) {
