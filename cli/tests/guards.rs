@@ -118,6 +118,33 @@ fn existing_outputs_need_force_for_every_command() {
     assert_eq!(code(&out), 2);
     assert!(stderr(&out).contains("already exists"), "{}", stderr(&out));
     assert_eq!(code(&sweep(true)), 0);
+
+    for k in ["1/2", "2/2"] {
+        boreflux()
+            .arg("sweep")
+            .arg(&case)
+            .args(["--vary", "drive.amplitude=1,2", "-q", "--shard", k, "-o"])
+            .arg(dir.path().join(format!("p{}", &k[..1])))
+            .assert()
+            .success();
+    }
+    let merge = |force: bool| {
+        let mut c = boreflux();
+        c.arg("merge")
+            .arg(dir.path().join("p1.h5"))
+            .arg(dir.path().join("p2.h5"))
+            .arg("-o")
+            .arg(dir.path().join("m"));
+        if force {
+            c.arg("--force");
+        }
+        c.output().unwrap()
+    };
+    assert_eq!(code(&merge(false)), 0);
+    let out = merge(false);
+    assert_eq!(code(&out), 2);
+    assert!(stderr(&out).contains("already exists"), "{}", stderr(&out));
+    assert_eq!(code(&merge(true)), 0);
     // No temporary file is left behind by any of this.
     assert!(
         names(dir.path()).iter().all(|n| !n.contains(".tmp-")),
