@@ -142,7 +142,12 @@ pub fn run(a: &RunArgs) -> Result<(), Failure> {
     let snapshot_every = if a.snapshot_every > 0 {
         a.snapshot_every
     } else {
-        estimate_steps(model) / 200 + 1
+        // About 200 profiles: the step count's upper bound is close for the usual cases.
+        boreflux_solver::cost::estimate(model)
+            .steps
+            .min(u64::MAX as f64) as u64
+            / 200
+            + 1
     };
     let csv_path = a.csv.then(|| a.output.with_extension("csv"));
     refuse_overwriting_inputs(&a.case, &a.output, csv_path.as_deref()).map_err(Failure::Input)?;
@@ -293,19 +298,5 @@ fn drive_files(v: &Value, out: &mut Vec<String>) {
         }
         Value::Array(items) => items.iter().for_each(|x| drive_files(x, out)),
         _ => {}
-    }
-}
-
-/// Rough number of steps, for the snapshot spacing.
-fn estimate_steps(model: &boreflux_solver::Model) -> u64 {
-    match (model.numerics.time, model.drive.period_s()) {
-        (boreflux_solver::model::TimeSpec::Fixed(dt), _) => (model.duration_s / dt) as u64,
-        (boreflux_solver::model::TimeSpec::StepsPerCycle(n), Some(p)) => {
-            (model.duration_s / p * n as f64) as u64
-        }
-        (_, Some(p)) => {
-            (model.duration_s / p * boreflux_solver::run::DEFAULT_STEPS_PER_CYCLE as f64) as u64
-        }
-        _ => 400,
     }
 }
