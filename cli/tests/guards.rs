@@ -437,3 +437,51 @@ fn step_estimate_bounds_the_shipped_runs() {
         assert_eq!(est.cells, s.cells as f64, "{}", path.display());
     }
 }
+
+#[test]
+fn output_size_estimate_bounds_the_shipped_files() {
+    let dir = tempfile::tempdir().unwrap();
+    for entry in std::fs::read_dir(cases_dir()).unwrap() {
+        let path = entry.unwrap().path();
+        if path.extension().is_none_or(|e| e != "json") {
+            continue;
+        }
+        let out = boreflux()
+            .arg("check")
+            .arg(&path)
+            .arg("--json")
+            .output()
+            .unwrap();
+        assert_eq!(code(&out), 0, "{}", stderr(&out));
+        let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+        let est = v["cost"]["estimated_output_bytes"].as_f64().unwrap();
+        let h5 = dir.path().join("r.h5");
+        boreflux()
+            .arg("run")
+            .arg(&path)
+            .arg("-o")
+            .arg(&h5)
+            .args(["-q", "--force", "--csv"])
+            .assert()
+            .success();
+        let got = std::fs::metadata(&h5).unwrap().len() as f64;
+        // The CSV is estimated separately (check prints the HDF5 estimate).
+        assert!(
+            est >= got,
+            "{}: estimate {est} B below the {got} B written",
+            path.display()
+        );
+        assert!(
+            est <= 4.0 * got,
+            "{}: estimate {est} B far above {got} B",
+            path.display()
+        );
+        let csv = std::fs::metadata(h5.with_extension("csv")).unwrap().len() as f64;
+        let rows = v["cost"]["steps_at_most"].as_f64().unwrap();
+        assert!(
+            csv <= 24.0 * 25.0 * (rows + 2.0),
+            "{}: CSV {csv} B",
+            path.display()
+        );
+    }
+}
