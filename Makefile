@@ -25,8 +25,8 @@ build: setup
 ## demo: simulate the demo case and write an HTML report from its HDF5 output
 demo: build
 	@mkdir -p $(OUT)
-	$(BIN) run $(DEMO) -o $(OUT)/demo.h5
-	$(BIN) report $(OUT)/demo.h5 -o $(OUT)/demo-report.html
+	$(BIN) run $(DEMO) -o $(OUT)/demo.h5 --force
+	$(BIN) report $(OUT)/demo.h5 -o $(OUT)/demo-report.html --force
 	@echo
 	@echo "Demo outputs:"
 	@echo "  results (HDF5): $(OUT)/demo.h5"

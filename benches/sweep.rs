@@ -21,13 +21,13 @@ fn bench_sweep(c: &mut Criterion) {
         vec![parse_vary("drive.strokes_per_minute=6..30:8").unwrap()],
     )
     .unwrap();
-    let ready = prepare(&plan, Shard::WHOLE, &cases).unwrap();
+    let ready = prepare(&plan, Shard::WHOLE, &cases, false).unwrap();
     let mut group = c.benchmark_group("sweep_8_scenarios");
     group.sample_size(10);
     group.throughput(Throughput::Elements(ready.len() as u64));
     for jobs in [1, 2] {
         group.bench_function(format!("{jobs}_threads"), |b| {
-            b.iter(|| run_all(&ready, &plan, jobs, &|| false, &|_| {}).unwrap())
+            b.iter(|| run_all(&ready, &plan, &cases, jobs, &|| false, &|_| {}).unwrap())
         });
     }
     group.finish();

@@ -5,7 +5,8 @@ use clap::{Parser, Subcommand};
 use std::path::PathBuf;
 
 const AFTER_HELP: &str = "\
-Exit codes: 0 success, 1 runtime failure, 2 bad input (usage or case file).
+Exit codes: 0 success, 1 runtime failure, 2 bad input (usage, case file, an output that
+exists without --force, a run over the size limits without --allow-large).
 Sign convention: positive flow is outward, from the well into the formation; heads are
 relative to the static water level.
 
@@ -91,6 +92,13 @@ pub struct RunArgs {
     /// Store a head profile every N steps (0 = about 200 over the run).
     #[arg(long, default_value_t = 0)]
     pub snapshot_every: u64,
+    /// Replace output files that already exist (without it an existing output is refused).
+    #[arg(long)]
+    pub force: bool,
+    /// Run even when the up-front estimate is over the limits (5e8 cell-steps or 2 GB of
+    /// output; `boreflux check` prints the estimate).
+    #[arg(long)]
+    pub allow_large: bool,
 }
 
 const SWEEP_HELP: &str = "\
@@ -129,6 +137,13 @@ pub struct SweepArgs {
     /// No progress bar.
     #[arg(short, long)]
     pub quiet: bool,
+    /// Replace output files that already exist (without it an existing output is refused).
+    #[arg(long)]
+    pub force: bool,
+    /// Run even when the up-front estimate is over the limits (5e8 cell-steps or 2 GB of
+    /// output; `boreflux check` prints the estimate).
+    #[arg(long)]
+    pub allow_large: bool,
 }
 
 /// Arguments of `merge`.
@@ -143,6 +158,9 @@ pub struct MergeArgs {
     /// Write the table even when scenarios are missing (their rows are left out).
     #[arg(long)]
     pub partial: bool,
+    /// Replace output files that already exist (without it an existing output is refused).
+    #[arg(long)]
+    pub force: bool,
 }
 
 /// Arguments of `check`.
@@ -168,6 +186,9 @@ pub struct ReportArgs {
     /// Output HTML file.
     #[arg(short, long)]
     pub output: PathBuf,
+    /// Replace output files that already exist (without it an existing output is refused).
+    #[arg(long)]
+    pub force: bool,
 }
 
 /// Arguments of `verify`.

@@ -4,6 +4,7 @@
 pub mod args;
 pub mod case;
 pub mod commands;
+pub mod cost;
 pub mod output;
 pub mod report;
 pub mod summary;

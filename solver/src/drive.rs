@@ -90,6 +90,32 @@ pub struct Stage {
     pub drive: Drive,
     /// Length of the stage, s.
     pub duration_s: f64,
+    /// Start of the stage, s: the sum of the durations before it, added in order (checked
+    /// by `validate`; [`stages`] fills it). Kept so the stage at a time is found by binary
+    /// search, not by summing durations at every call.
+    pub start_s: f64,
+}
+
+/// Stages from (drive, duration) pairs, with their start times.
+pub fn stages(list: Vec<(Drive, f64)>) -> Vec<Stage> {
+    let mut start = 0.0;
+    list.into_iter()
+        .map(|(drive, duration_s)| {
+            let s = Stage {
+                drive,
+                duration_s,
+                start_s: start,
+            };
+            start += duration_s;
+            s
+        })
+        .collect()
+}
+
+/// Index of the stage active at time t: the last whose start is at or before t (the first
+/// stage before 0, the last after the end). O(log n).
+fn stage_index(stages: &[Stage], t: f64) -> usize {
+    stages.partition_point(|s| s.start_s <= t).saturating_sub(1)
 }
 
 /// Volume rates a device adds to the well node, m³/s (positive outward), and the derivative
@@ -160,18 +186,17 @@ impl TableDrive {
         let n = self.times_s.len();
         // At the end of a repeating table the value wraps to the first row.
         let wrap_jump = self.repeat && self.values[0] != self.values[n - 1];
-        self.times_s
-            .iter()
-            .enumerate()
-            .find(|&(_, &ti)| ti > tl + tol)
-            .map(|(i, &ti)| {
-                let jump = if i + 1 < n {
-                    self.times_s[i + 1] == ti
-                } else {
-                    wrap_jump
-                };
-                (base + ti, jump)
-            })
+        // First row after tl + tol, by binary search (times are non-decreasing).
+        let i = self.times_s.partition_point(|&ti| ti <= tl + tol);
+        (i < n).then(|| {
+            let ti = self.times_s[i];
+            let jump = if i + 1 < n {
+                self.times_s[i + 1] == ti
+            } else {
+                wrap_jump
+            };
+            (base + ti, jump)
+        })
     }
 }
 
@@ -181,14 +206,9 @@ impl Drive {
     fn stage_at(&self, t: f64) -> (&Drive, f64) {
         match self {
             Drive::Schedule(stages) => {
-                let mut start = 0.0;
-                for (k, s) in stages.iter().enumerate() {
-                    if t < start + s.duration_s || k + 1 == stages.len() {
-                        return (&s.drive, t - start);
-                    }
-                    start += s.duration_s;
-                }
-                unreachable!("a schedule has at least one stage")
+                // A stage holds [start, start + duration): at its end time the next begins.
+                let s = &stages[stage_index(stages, t)];
+                (&s.drive, t - s.start_s)
             }
             d => (d, t),
         }
@@ -370,9 +390,12 @@ impl Drive {
             Drive::PumpBackwash(p) => p.events(t),
             Drive::JetPulse(j) => j.events(t),
             Drive::Schedule(stages) => {
-                let mut start = 0.0;
-                for s in stages {
-                    let end = start + s.duration_s;
+                // The first stage whose end lies beyond t (binary search from the stage at
+                // t; the one after it when t is within round-off of that stage's end).
+                let mut k = stage_index(stages, t);
+                loop {
+                    let s = stages.get(k)?;
+                    let (start, end) = (s.start_s, s.start_s + s.duration_s);
                     if t < end - 1e-12 * end.max(1.0) {
                         let inner = s
                             .drive
@@ -383,9 +406,8 @@ impl Drive {
                             _ => (end, true),
                         });
                     }
-                    start = end;
+                    k += 1;
                 }
-                None
             }
             _ => None,
         }
@@ -435,7 +457,19 @@ impl Drive {
                         "needs at least one stage",
                     ));
                 }
+                let mut start = 0.0;
                 for (k, s) in stages.iter().enumerate() {
+                    if s.start_s != start {
+                        return Err(SolverError::invalid(
+                            format!("drive.stages[{k}]"),
+                            format!(
+                                "starts at {} s, not at the end of the stages before it ({start} s); \
+                                 build stages with drive::stages",
+                                s.start_s
+                            ),
+                        ));
+                    }
+                    start += s.duration_s;
                     if matches!(s.drive, Drive::Schedule(_)) {
                         return Err(SolverError::invalid(
                             format!("drive.stages[{k}]"),
@@ -529,6 +563,112 @@ mod tests {
         assert_eq!(d.next_event_s(0.0), Some((10.0, true)));
         assert_eq!(d.next_event_s(10.0), Some((20.0, true)));
         assert_eq!(d.next_event_s(20.0), Some((30.0, true)));
+    }
+
+    /// The lookups before binary search, kept as the reference: the first stage whose
+    /// end lies beyond t, and the first table row after t.
+    fn stage_by_scan(st: &[Stage], t: f64) -> usize {
+        let mut start = 0.0;
+        for (k, s) in st.iter().enumerate() {
+            if t < start + s.duration_s || k + 1 == st.len() {
+                return k;
+            }
+            start += s.duration_s;
+        }
+        unreachable!()
+    }
+
+    #[test]
+    fn binary_search_lookups_agree_with_a_scan() {
+        // Uneven stage lengths and table rows with jumps; times on, near and between
+        // breakpoints (a small built-in xorshift generator, no source needed).
+        let mut x = 0x9e37_79b9_7f4a_7c15u64;
+        let mut rnd = || {
+            x ^= x << 13;
+            x ^= x >> 7;
+            x ^= x << 17;
+            (x >> 11) as f64 / (1u64 << 53) as f64
+        };
+        let list: Vec<(Drive, f64)> = (0..200)
+            .map(|i| {
+                (
+                    Drive::Slug {
+                        initial_head_m: i as f64,
+                    },
+                    0.1 + 3.0 * rnd(),
+                )
+            })
+            .collect();
+        let st = stages(list);
+        let end = st.last().map(|s| s.start_s + s.duration_s).unwrap();
+        let mut probes: Vec<f64> = st
+            .iter()
+            .flat_map(|s| [s.start_s, s.start_s + 1e-13])
+            .collect();
+        probes.extend((0..2000).map(|_| 1.1 * end * rnd() - 0.05 * end));
+        for &t in &probes {
+            assert_eq!(stage_index(&st, t), stage_by_scan(&st, t), "t = {t}");
+        }
+        let d = Drive::Schedule(st.clone());
+        d.validate().unwrap();
+        let mut times = vec![0.0];
+        for i in 1..300 {
+            let last = *times.last().unwrap();
+            times.push(last + 0.5 + rnd());
+            if i % 7 == 0 {
+                times.push(*times.last().unwrap());
+            }
+        }
+        let values: Vec<f64> = times.iter().map(|_| rnd()).collect();
+        for repeat in [false, true] {
+            let tab = TableDrive {
+                times_s: times.clone(),
+                values: values.clone(),
+                quantity: TableQuantity::Head,
+                repeat,
+            };
+            let last = *times.last().unwrap();
+            for &t in times.iter().chain(&probes) {
+                let (base, tl) = if repeat {
+                    let k = (t / last).floor();
+                    (k * last, t - k * last)
+                } else {
+                    (0.0, t)
+                };
+                let tol = 1e-12 * last.max(1.0);
+                let n = times.len();
+                let want = times.iter().position(|&ti| ti > tl + tol).map(|i| {
+                    let jump = if i + 1 < n {
+                        times[i + 1] == times[i]
+                    } else {
+                        repeat && values[0] != values[n - 1]
+                    };
+                    (base + times[i], jump)
+                });
+                assert_eq!(tab.next_event(t), want, "t = {t}, repeat {repeat}");
+            }
+        }
+    }
+
+    #[test]
+    fn a_stage_built_by_hand_must_start_where_the_last_ended() {
+        let mut st = stages(vec![
+            (
+                Drive::Slug {
+                    initial_head_m: 1.0,
+                },
+                5.0,
+            ),
+            (
+                Drive::Slug {
+                    initial_head_m: 2.0,
+                },
+                5.0,
+            ),
+        ]);
+        st[1].start_s = 4.0;
+        let e = Drive::Schedule(st).validate().unwrap_err().to_string();
+        assert!(e.starts_with("drive.stages[1]: starts at 4 s"), "{e}");
     }
 
     #[test]

@@ -108,6 +108,30 @@ fn cells_for(ratio: f64, per_decade: f64, min: usize) -> usize {
     ((per_decade * ratio.log10()).ceil() as usize).max(min)
 }
 
+/// Number of cells [`Grid::build`] would make, computed in floating point so that absurd
+/// settings (1e300 cells per decade, an enormous outer radius) give a large or non-finite
+/// number instead of an allocation; `Model::validate` caps it before any grid is built.
+pub fn planned_cells(model: &Model) -> f64 {
+    let rs = model.well.screen_radius_m;
+    let rb = model.borehole_radius_m();
+    let rd = model.invaded_outer_radius_m();
+    let rr = Grid::outer_radius(model);
+    let zone = |ratio: f64, pd: f64, min: usize| (pd * ratio.log10()).ceil().max(min as f64);
+    let inv = if model.invaded.is_some() { 1.0 } else { 0.0 };
+    let (near, far) = match model.numerics.grid {
+        GridSpec::Auto => (DEFAULT_NEAR_CELLS_PER_DECADE, DEFAULT_CELLS_PER_DECADE),
+        GridSpec::PerDecade(pd) => (pd, pd),
+        GridSpec::Total(n) => {
+            let min =
+                (MIN_PACK_CELLS + MIN_FORMATION_CELLS) as f64 + inv * MIN_INVADED_CELLS as f64;
+            return (n as f64).max(min) + 1.0;
+        }
+    };
+    zone(rb / rs, near, MIN_PACK_CELLS)
+        + inv * zone(rd / rb, near, MIN_INVADED_CELLS)
+        + zone(rr / rd, far, MIN_FORMATION_CELLS)
+}
+
 impl Grid {
     /// Outer radius the model will use, m.
     pub fn outer_radius(model: &Model) -> f64 {

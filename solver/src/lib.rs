@@ -10,6 +10,7 @@
 #![deny(missing_docs)]
 
 pub mod cake;
+pub mod cost;
 pub mod devices;
 pub mod diagnostics;
 pub mod drive;
@@ -17,6 +18,7 @@ pub mod error;
 pub mod faces;
 pub mod grid;
 pub mod harmonic;
+pub mod limits;
 pub mod media;
 pub mod model;
 pub mod run;

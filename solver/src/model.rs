@@ -449,6 +449,6 @@ impl Model {
             }
         }
         positive("numerics.newton_tolerance", n.newton_tolerance)?;
-        Ok(())
+        crate::limits::check(self)
     }
 }

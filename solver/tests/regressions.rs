@@ -72,10 +72,12 @@ fn swab_parting_is_reported_inside_a_schedule() {
                 pumping_rate_m3_s: 0.0,
             },
             duration_s: 10.0,
+            start_s: 0.0,
         },
         Stage {
             drive: Drive::Swab(swab()),
             duration_s: 60.0,
+            start_s: 10.0,
         },
     ];
     let s = run(

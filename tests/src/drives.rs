@@ -247,12 +247,14 @@ pub fn pumping_stage() -> Vec<CheckResult> {
                 pumping_rate_m3_s: 0.0,
             },
             duration_s: rest,
+            start_s: 0.0,
         },
         Stage {
             drive: Drive::ConstantRate {
                 pumping_rate_m3_s: q,
             },
             duration_s: times.last().unwrap() - rest,
+            start_s: rest,
         },
     ];
     let mut model = homogeneous(

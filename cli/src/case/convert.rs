@@ -25,6 +25,14 @@ const CELSIUS_ZERO_K: f64 = 273.15;
 
 /// Converts a raw case into a checked model; `base_dir` resolves drive files.
 pub fn convert(raw: RawCase, base_dir: &Path) -> Result<LoadedCase, CaseError> {
+    for (field, text) in [("title", &raw.title), ("description", &raw.description)] {
+        if text.as_deref().is_some_and(|t| t.contains('\0')) {
+            return Err(CaseError::new(
+                field,
+                "contains a NUL character (\\u0000), which result files cannot store; remove it",
+            ));
+        }
+    }
     let mut log = Log::default();
     let (fluid, water, fluid_json) = fluid(&raw, &mut log)?;
     let (well, mut safety, well_json) = well(&raw.well, &mut log)?;
@@ -68,7 +76,9 @@ pub fn convert(raw: RawCase, base_dir: &Path) -> Result<LoadedCase, CaseError> {
             *first_step_s = first;
         }
     }
-    model.validate()?;
+    model
+        .validate()
+        .map_err(|e| rate_key_as_written(CaseError::from(e), &raw.drive))?;
     time_notes(&model, &raw_numerics, &mut log);
 
     let mut resolved = Map::new();
@@ -186,4 +196,35 @@ fn time_notes(model: &Model, raw: &RawNumerics, log: &mut Log) {
         )),
         _ => {}
     }
+}
+
+/// A drive's rate is checked as `frequency` in Hz; when the case gave `strokes_per_minute`
+/// or `period` instead, the error names the key the user wrote.
+fn rate_key_as_written(mut e: CaseError, drive: &Map<String, Value>) -> CaseError {
+    let Some(prefix) = e.field.strip_suffix(".frequency") else {
+        return e;
+    };
+    // "drive" or "drive.stages[k].drive": find that object in the case as written.
+    let object = match prefix.strip_prefix("drive.stages[") {
+        None if prefix == "drive" => Some(drive),
+        None => None,
+        Some(rest) => rest
+            .split_once(']')
+            .and_then(|(k, _)| k.parse::<usize>().ok())
+            .and_then(|k| drive.get("stages")?.get(k)?.get("drive")?.as_object()),
+    };
+    let Some(object) = object.filter(|o| !o.contains_key("frequency")) else {
+        return e;
+    };
+    for (key, how) in [
+        ("strokes_per_minute", "strokes_per_minute / 60"),
+        ("period", "1 / period"),
+    ] {
+        if object.contains_key(key) {
+            e.field = format!("{prefix}.{key}");
+            e.message = format!("as a frequency ({how}) {}", e.message);
+            break;
+        }
+    }
+    e
 }

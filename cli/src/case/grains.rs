@@ -82,6 +82,9 @@ pub fn check_grains(zone: &str, g: &Grains) -> Result<(), CaseError> {
                     format!("must be positive, got {d} m"),
                 ));
             }
+            boreflux_solver::limits::GRAIN_DIAMETER
+                .check(&format!("{zone}.{key}"), d)
+                .map_err(CaseError::from)?;
         }
     }
     let pairs = [

@@ -22,12 +22,14 @@ mod quantity;
 mod raw;
 mod scenarios;
 mod schema;
+mod strict;
 mod table;
 mod zones;
 
 pub use error::CaseError;
 pub use scenarios::{scenario_companions, scenarios};
 pub use schema::schema;
+pub use strict::{read_case_json, read_json};
 
 use std::path::Path;
 
@@ -94,11 +96,46 @@ impl Log {
     }
 }
 
+/// Largest case file read, bytes (inline table points included).
+pub const MAX_CASE_BYTES: u64 = 200_000_000;
+
+/// Reads a regular file of at most `max` bytes as UTF-8 text. FIFOs, devices and folders
+/// are refused (they could block or never end); the error never quotes the file's content.
+pub fn read_limited(path: &Path, max: u64, what: &str) -> Result<String, String> {
+    use std::io::Read;
+    let shown = path.display();
+    let meta = std::fs::metadata(path).map_err(|e| format!("cannot read {what} {shown}: {e}"))?;
+    if !meta.is_file() {
+        return Err(format!(
+            "cannot read {what} {shown}: not a regular file (a folder, device or pipe)"
+        ));
+    }
+    if meta.len() > max {
+        return Err(format!(
+            "{what} {shown} is {} bytes, more than the {max} bytes read",
+            meta.len()
+        ));
+    }
+    let file = std::fs::File::open(path).map_err(|e| format!("cannot read {what} {shown}: {e}"))?;
+    let mut bytes = Vec::new();
+    file.take(max + 1)
+        .read_to_end(&mut bytes)
+        .map_err(|e| format!("cannot read {what} {shown}: {e}"))?;
+    if bytes.len() as u64 > max {
+        return Err(format!("{what} {shown} grew beyond {max} bytes while read"));
+    }
+    String::from_utf8(bytes).map_err(|e| {
+        format!(
+            "cannot read {what} {shown}: not UTF-8 text (invalid byte at offset {})",
+            e.utf8_error().valid_up_to()
+        )
+    })
+}
+
 /// Reads, converts and checks the case file at `path`; drive files are found beside it.
 pub fn load_case(path: &Path) -> Result<LoadedCase, CaseError> {
-    let text = std::fs::read_to_string(path).map_err(|e| {
-        CaseError::new("", format!("cannot read case file {}: {e}", path.display()))
-    })?;
+    let text =
+        read_limited(path, MAX_CASE_BYTES, "case file").map_err(|m| CaseError::new("", m))?;
     let base = path
         .parent()
         .filter(|p| !p.as_os_str().is_empty())
@@ -108,7 +145,7 @@ pub fn load_case(path: &Path) -> Result<LoadedCase, CaseError> {
 
 /// Converts and checks case-file text; `base_dir` resolves relative drive files.
 pub fn parse_case(text: &str, base_dir: &Path) -> Result<LoadedCase, CaseError> {
-    let value: serde_json::Value = serde_json::from_str(text).map_err(|e| CaseError::syntax(&e))?;
+    let value = read_case_json(text)?;
     let raw: raw::RawCase =
         serde_path_to_error::deserialize(value).map_err(|e| CaseError::structure(e, ""))?;
     convert::convert(raw, base_dir)

@@ -14,6 +14,9 @@ use schemars::JsonSchema;
 use serde::Deserialize;
 use serde_json::{json, Map, Value};
 
+/// Largest table file read, bytes: 200 MB holds about five million rows.
+pub const MAX_TABLE_BYTES: u64 = 200_000_000;
+
 /// What the table gives.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize, JsonSchema)]
 #[serde(rename_all = "snake_case")]
@@ -44,12 +47,8 @@ pub fn table(map: Map<String, Value>, ctx: &DriveContext<'_>) -> Result<ParsedDr
     let (field, rows, source) = match (&k.file, &k.points) {
         (Some(file), None) => {
             let path = ctx.base_dir.join(file);
-            let text = std::fs::read_to_string(&path).map_err(|e| {
-                CaseError::new(
-                    "drive.file",
-                    format!("cannot read table file {}: {e}", path.display()),
-                )
-            })?;
+            let text = super::read_limited(&path, MAX_TABLE_BYTES, "table file")
+                .map_err(|m| CaseError::new("drive.file", m))?;
             let rows = read_csv(&text)
                 .map_err(|m| CaseError::new("drive.file", format!("{file}: {m}")))?;
             ("drive.file", rows, format!("file {file}"))
@@ -76,6 +75,15 @@ pub fn table(map: Map<String, Value>, ctx: &DriveContext<'_>) -> Result<ParsedDr
         }
     };
     check_rows(&rows).map_err(|m| CaseError::new(field, m))?;
+    let span = rows.last().map_or(0.0, |r| r.1);
+    boreflux_solver::limits::DURATION
+        .check(field, span)
+        .map_err(|e| {
+            CaseError::new(
+                field,
+                format!("the table's time span {}", CaseError::from(e).message),
+            )
+        })?;
     let repeat = k.repeat.unwrap_or(false);
     let quantity = match k.quantity {
         TableQuantityName::Head => TableQuantity::Head,
@@ -129,7 +137,7 @@ pub fn read_csv(text: &str) -> Result<Vec<(usize, f64, f64)>, String> {
         let cols: Vec<&str> = line.split(',').map(str::trim).collect();
         if cols.len() != 2 {
             return Err(format!(
-                "line {n}: expected two columns (time_s,value), got {}: \"{line}\"",
+                "line {n}: expected two columns (time_s,value), got {}",
                 cols.len()
             ));
         }
@@ -143,9 +151,15 @@ pub fn read_csv(text: &str) -> Result<Vec<(usize, f64, f64)>, String> {
             }
             Err(_) if header_allowed => {}
             Err(_) => {
+                // The line itself is not quoted: the file may not be a table at all.
+                let col = cols
+                    .iter()
+                    .position(|c| c.parse::<f64>().is_err())
+                    .unwrap_or(0);
                 return Err(format!(
-                    "line {n}: expected two numbers (time_s,value), got \"{line}\""
-                ))
+                    "line {n}: expected two numbers (time_s,value); column {} is not a number",
+                    col + 1
+                ));
             }
         }
         header_allowed = false;
@@ -207,7 +221,7 @@ mod tests {
     fn read_csv_captures_errors() {
         assert_eq!(
             read_csv("t,v\n0,1\nx,2\n").unwrap_err(),
-            "line 3: expected two numbers (time_s,value), got \"x,2\""
+            "line 3: expected two numbers (time_s,value); column 1 is not a number"
         );
         assert_eq!(
             read_csv("0,1\n1,NaN\n").unwrap_err(),

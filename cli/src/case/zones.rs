@@ -8,6 +8,7 @@ use super::quantity::{Kind, Length, Q};
 use super::raw::{OuterBoundaryName, RawCake, RawFormation, RawInvaded, RawPack, RawWell};
 use super::{Log, SafetyInputs};
 use crate::units::parse_quantity;
+use boreflux_solver::limits;
 use boreflux_solver::media::GrainShape;
 use boreflux_solver::model::{
     Cake, Erosion, Formation, Invaded, Medium, OuterBoundary, Pack, Well,
@@ -83,6 +84,7 @@ pub fn formation(r: &RawFormation, log: &mut Log) -> Result<(Formation, f64, Val
             format!("must be greater than 1 (grains heavier than water), got {gs}"),
         ));
     }
+    ranged("formation.specific_gravity", gs, limits::SPECIFIC_GRAVITY)?;
     let boundary = match r.outer_boundary.unwrap_or(OuterBoundaryName::FixedHead) {
         OuterBoundaryName::FixedHead => OuterBoundary::FixedHead,
         OuterBoundaryName::NoFlow => OuterBoundary::NoFlow,
@@ -114,6 +116,12 @@ pub fn formation(r: &RawFormation, log: &mut Log) -> Result<(Formation, f64, Val
     Ok((formation, gs, drop_nulls(resolved)))
 }
 
+/// `v` checked against a range of `limits` (finite, within bounds; the message gives the
+/// range and why).
+fn ranged(field: &str, v: f64, range: limits::Range) -> Result<f64, CaseError> {
+    range.check(field, v).map(|_| v).map_err(CaseError::from)
+}
+
 /// The well, the collapse-check inputs and the resolved keys.
 pub fn well(r: &RawWell, log: &mut Log) -> Result<(Well, SafetyInputs, Value), CaseError> {
     let rs = r.screen_radius.si("well.screen_radius")?;
@@ -121,7 +129,7 @@ pub fn well(r: &RawWell, log: &mut Log) -> Result<(Well, SafetyInputs, Value), C
     let open_area = fraction("well.open_area", r.open_area.si("well.open_area")?)?;
     let rc = opt(&r.casing_radius, "well.casing_radius")?.unwrap_or(rs);
     let slot = opt(&r.slot_width, "well.slot_width")?
-        .map(|w| positive("well.slot_width", w, "m"))
+        .map(|w| ranged("well.slot_width", w, limits::SLOT_WIDTH))
         .transpose()?;
     let linear = opt(&r.screen_loss, "well.screen_loss")?.unwrap_or(0.0);
     let cd = match r.discharge_coefficient.as_ref().map(|v| &v.0) {
@@ -212,11 +220,14 @@ fn safety_inputs(r: &RawWell) -> Result<SafetyInputs, CaseError> {
             ));
         }
     }
+    if let Some(dr) = r.dimension_ratio {
+        ranged("well.dimension_ratio", dr, limits::DIMENSION_RATIO)?;
+    }
     let collapse = opt(&r.collapse_rating, "well.collapse_rating")?
-        .map(|p| positive("well.collapse_rating", p, "Pa"))
+        .map(|p| ranged("well.collapse_rating", p, limits::COLLAPSE_RATING))
         .transpose()?;
     let e = opt(&r.youngs_modulus, "well.youngs_modulus")?
-        .map(|p| positive("well.youngs_modulus", p, "Pa"))
+        .map(|p| ranged("well.youngs_modulus", p, limits::YOUNGS_MODULUS))
         .transpose()?;
     if let Some(nu) = r.poisson_ratio {
         if !(nu > 0.0 && nu < 0.5) {
@@ -233,6 +244,7 @@ fn safety_inputs(r: &RawWell) -> Result<SafetyInputs, CaseError> {
             format!("must be at least 1, got {sf}"),
         ));
     }
+    ranged("well.safety_factor", sf, limits::SAFETY_FACTOR)?;
     Ok(SafetyInputs {
         collapse_rating_pa: collapse,
         material,

@@ -165,6 +165,7 @@ pub fn check(a: &CheckArgs) -> Result<(), Failure> {
         widths.push((width, q, wc, wp));
     }
     let periodic = periodic_state(m);
+    let cost = crate::cost::run_cost(&case, false, 0);
     if a.json {
         let v = json!({
             "periodic_state": match &periodic {
@@ -178,6 +179,8 @@ pub fn check(a: &CheckArgs) -> Result<(), Failure> {
             "resistance_s_m2": Zone::ALL.iter().map(|z| (z.name().to_string(), json!(res[*z as usize]))).collect::<serde_json::Map<_, _>>(),
             "skin": {"pack": skin_pack, "cake": skin_total - skin_pack - skin_inv, "invaded": skin_inv, "total": skin_total},
             "cells": g.cells(), "outer_radius_m": g.outer_radius_m(), "time_step": step,
+            "cost": {"steps_at_most": cost.steps, "cell_steps": cost.cell_steps, "estimated_seconds": cost.seconds,
+                "estimated_output_bytes": cost.bytes, "over_limits": crate::cost::refuse_large(&cost, false).is_err()},
             "annulus": widths.iter().map(|(w, q, wc, wp)| json!({"width_m": w, "peak_face_flux_m_s": q, "cake_work_per_cycle_j": wc, "pack_work_per_cycle_j": wp})).collect::<Vec<_>>(),
             "notes": case.notes, "warnings": case.warnings,
         });
@@ -245,6 +248,16 @@ pub fn check(a: &CheckArgs) -> Result<(), Failure> {
             "automatic"
         }
     );
+    t += &format!("Run size: {}", crate::cost::describe(&cost));
+    t += &match crate::cost::refuse_large(&cost, false) {
+        Ok(()) => " (HDF5 only; --csv adds more)\n".to_owned(),
+        Err(_) => format!(
+            "\n  over the limits of {:.0e} cell-steps or {}: `boreflux run` needs \
+             --allow-large\n",
+            crate::cost::MAX_CELL_STEPS,
+            crate::cost::show_bytes(crate::cost::MAX_OUTPUT_BYTES)
+        ),
+    };
     match &periodic {
         Ok(v) => {
             t += &format!(

@@ -2,6 +2,7 @@
 //! sweep (same case file contents, same `--vary`, same figure columns), hold no scenario
 //! twice and, unless `--partial`, together hold every scenario.
 
+use super::outputs::{check_output, refuse_inputs};
 use super::sweep::{output_stem, overview};
 use super::{print_out, Failure};
 use crate::args::MergeArgs;
@@ -86,12 +87,8 @@ pub fn merge(a: &MergeArgs) -> Result<(), Failure> {
     };
     let stem = output_stem(&a.output);
     for p in [stem.with_extension("csv"), stem.with_extension("h5")] {
-        if a.inputs.iter().any(|i| i == &p) {
-            return Err(Failure::Input(anyhow!(
-                "-o/--output would write {}, which is one of the inputs; choose another name",
-                p.display()
-            )));
-        }
+        refuse_inputs(&[(&p, "-o/--output")], &a.inputs).map_err(Failure::Input)?;
+        check_output(&p, "-o/--output", a.force).map_err(Failure::Input)?;
     }
     let (csv, h5) = merged
         .write(&stem)

@@ -5,6 +5,8 @@ mod check;
 mod interrupt;
 mod merge;
 mod new;
+mod outputs;
+mod report;
 mod run;
 mod sweep;
 mod verify;
@@ -61,18 +63,7 @@ pub fn dispatch(command: Command) -> Result<(), Failure> {
         Command::Sweep(a) => sweep::sweep(&a),
         Command::Merge(a) => merge::merge(&a),
         Command::Check(a) => check::check(&a),
-        Command::Report(a) => {
-            if let Some(missing) = a.inputs.iter().find(|p| !p.is_file()) {
-                return Err(Failure::Input(anyhow::anyhow!(
-                    "cannot read result file {}",
-                    missing.display()
-                )));
-            }
-            crate::report::write_report(&a.inputs, &a.output)
-                .map_err(|e| Failure::Runtime(anyhow::anyhow!("{e:#}")))?;
-            eprintln!("report written to {}", a.output.display());
-            Ok(())
-        }
+        Command::Report(a) => report::report(&a),
         Command::Verify(a) => verify::verify(&a),
         Command::New(a) => new::new(&a),
         Command::Schema => {

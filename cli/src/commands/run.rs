@@ -9,6 +9,7 @@
 //! exit 1 (DESIGN.md: 0 success, 1 runtime failure, 2 bad input).
 
 use super::interrupt::{catch_interrupts, interrupted, INTERRUPTED_MESSAGE};
+use super::outputs::{check_output, same_file_key};
 use super::{print_out, Failure};
 use crate::args::RunArgs;
 use crate::case::{load_case, LoadedCase};
@@ -21,7 +22,7 @@ use boreflux_solver::system::Discretization;
 use boreflux_solver::{run as simulate, CycleView, Reporting, SolverError, StepObserver, StepView};
 use indicatif::{ProgressBar, ProgressDrawTarget, ProgressStyle};
 use serde_json::Value;
-use std::path::{Path, PathBuf};
+use std::path::Path;
 
 /// Steps between progress-bar updates.
 const PROGRESS_EVERY: u64 = 256;
@@ -141,10 +142,21 @@ pub fn run(a: &RunArgs) -> Result<(), Failure> {
     let snapshot_every = if a.snapshot_every > 0 {
         a.snapshot_every
     } else {
-        estimate_steps(model) / 200 + 1
+        // About 200 profiles: the step count's upper bound is close for the usual cases.
+        boreflux_solver::cost::estimate(model)
+            .steps
+            .min(u64::MAX as f64) as u64
+            / 200
+            + 1
     };
     let csv_path = a.csv.then(|| a.output.with_extension("csv"));
     refuse_overwriting_inputs(&a.case, &a.output, csv_path.as_deref()).map_err(Failure::Input)?;
+    check_output(&a.output, "-o/--output", a.force).map_err(Failure::Input)?;
+    if let Some(csv) = &csv_path {
+        check_output(csv, "--csv", a.force).map_err(Failure::Input)?;
+    }
+    let cost = crate::cost::run_cost(&case, a.csv, a.snapshot_every);
+    crate::cost::refuse_large(&cost, a.allow_large).map_err(Failure::Input)?;
     catch_interrupts();
     let mut sink = ResultSink::create(&a.output, csv_path.as_deref(), grid.cells(), snapshot_every)
         .map_err(|e| Failure::Input(anyhow!("cannot write output {}: {e}", a.output.display())))?;
@@ -224,10 +236,10 @@ pub(super) fn refuse_overwriting_inputs(
         .parent()
         .filter(|p| !p.as_os_str().is_empty())
         .unwrap_or(Path::new("."));
-    let text = std::fs::read_to_string(case)
-        .with_context(|| format!("cannot read case file {}", case.display()))?;
+    let text = crate::case::read_limited(case, crate::case::MAX_CASE_BYTES, "case file")
+        .map_err(|e| anyhow!(e))?;
     let value: Value =
-        serde_json::from_str(&text).with_context(|| format!("{}: invalid JSON", case.display()))?;
+        crate::case::read_json(&text).map_err(|e| anyhow!("{}: {e}", case.display()))?;
     let mut inputs = vec![(case.to_path_buf(), "the case file itself".to_owned())];
     let mut files = Vec::new();
     if let Some(drive) = value.get("drive") {
@@ -286,24 +298,5 @@ fn drive_files(v: &Value, out: &mut Vec<String>) {
         }
         Value::Array(items) => items.iter().for_each(|x| drive_files(x, out)),
         _ => {}
-    }
-}
-
-/// A path to compare files by: canonical where the file exists, else absolute as written.
-fn same_file_key(p: &Path) -> PathBuf {
-    std::fs::canonicalize(p).unwrap_or_else(|_| std::path::absolute(p).unwrap_or(p.to_path_buf()))
-}
-
-/// Rough number of steps, for the snapshot spacing.
-fn estimate_steps(model: &boreflux_solver::Model) -> u64 {
-    match (model.numerics.time, model.drive.period_s()) {
-        (boreflux_solver::model::TimeSpec::Fixed(dt), _) => (model.duration_s / dt) as u64,
-        (boreflux_solver::model::TimeSpec::StepsPerCycle(n), Some(p)) => {
-            (model.duration_s / p * n as f64) as u64
-        }
-        (_, Some(p)) => {
-            (model.duration_s / p * boreflux_solver::run::DEFAULT_STEPS_PER_CYCLE as f64) as u64
-        }
-        _ => 400,
     }
 }

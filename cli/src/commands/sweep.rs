@@ -6,6 +6,7 @@
 //! every run after its current step and writes nothing.
 
 use super::interrupt::{catch_interrupts, interrupted, INTERRUPTED_MESSAGE};
+use super::outputs::check_output;
 use super::run::refuse_overwriting_inputs;
 use super::{print_out, Failure};
 use crate::args::SweepArgs;
@@ -87,10 +88,10 @@ pub(super) fn overview(t: &Table) -> String {
 
 /// Runs the command.
 pub fn sweep(a: &SweepArgs) -> Result<(), Failure> {
-    let text = std::fs::read_to_string(&a.case)
-        .map_err(|e| Failure::Input(anyhow!("cannot read case file {}: {e}", a.case.display())))?;
-    let base: Value = serde_json::from_str(&text)
-        .map_err(|e| Failure::Input(anyhow!("{}: invalid JSON: {e}", a.case.display())))?;
+    let text = crate::case::read_limited(&a.case, crate::case::MAX_CASE_BYTES, "case file")
+        .map_err(|e| Failure::Input(anyhow!(e)))?;
+    let base: Value = crate::case::read_case_json(&text)
+        .map_err(|e| Failure::Input(anyhow!("{}: {e}", a.case.display())))?;
     let variables = a
         .vary
         .iter()
@@ -112,14 +113,8 @@ pub fn sweep(a: &SweepArgs) -> Result<(), Failure> {
         Some(&stem.with_extension("csv")),
     )
     .map_err(Failure::Input)?;
-    if let Some(dir) = stem
-        .parent()
-        .filter(|d| !d.as_os_str().is_empty() && !d.is_dir())
-    {
-        return Err(Failure::Input(anyhow!(
-            "the output folder {} does not exist; create it or choose another -o/--output",
-            dir.display()
-        )));
+    for p in [stem.with_extension("csv"), stem.with_extension("h5")] {
+        check_output(&p, "-o/--output", a.force).map_err(Failure::Input)?;
     }
     let base_dir = a
         .case
@@ -127,7 +122,8 @@ pub fn sweep(a: &SweepArgs) -> Result<(), Failure> {
         .filter(|p| !p.as_os_str().is_empty())
         .unwrap_or(Path::new("."));
     let total = plan.count().unwrap_or(0);
-    let ready = prepare(&plan, shard, base_dir).map_err(|e| Failure::Input(anyhow!(e)))?;
+    let ready =
+        prepare(&plan, shard, base_dir, a.allow_large).map_err(|e| Failure::Input(anyhow!(e)))?;
     if ready.is_empty() {
         return Err(Failure::Input(anyhow!(
             "shard {shard} holds no scenario of the {total}; use at most {total} shards"
@@ -143,7 +139,7 @@ pub fn sweep(a: &SweepArgs) -> Result<(), Failure> {
         bar.set_message(format!("last: scenario {scenario}"));
         bar.inc(1);
     };
-    let outcomes = run_all(&ready, &plan, jobs, &interrupted, &done);
+    let outcomes = run_all(&ready, &plan, base_dir, jobs, &interrupted, &done);
     bar.finish_and_clear();
     let Some(outcomes) = outcomes else {
         return Err(Failure::Runtime(anyhow!(INTERRUPTED_MESSAGE)));

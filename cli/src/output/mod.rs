@@ -89,6 +89,7 @@ impl TempTarget {
         tmp_name.push(name);
         tmp_name.push(format!(".tmp-{}", std::process::id()));
         let tmp = dest.with_file_name(tmp_name);
+        remove_stale(dest);
         Ok(Self {
             tmp,
             dest: dest.to_path_buf(),
@@ -121,6 +122,42 @@ impl TempTarget {
     }
 }
 
+/// Removes temporary files of `dest` left by processes that no longer run (killed before
+/// they could clean up), and one of this process's id (a leftover of an earlier process
+/// that had the same id). Only regular files named exactly `.<name>.tmp-<number>` beside
+/// `dest` are touched; whether a process runs is known on Linux only (`/proc`), elsewhere
+/// only this process's own name is cleaned. Errors are ignored: a leftover is harmless.
+fn remove_stale(dest: &Path) {
+    let (Some(name), dir) = (dest.file_name(), dest.parent()) else {
+        return;
+    };
+    let dir = dir
+        .filter(|d| !d.as_os_str().is_empty())
+        .unwrap_or(Path::new("."));
+    let prefix = format!(".{}.tmp-", name.to_string_lossy());
+    let Ok(entries) = std::fs::read_dir(dir) else {
+        return;
+    };
+    let me = std::process::id();
+    for e in entries.flatten() {
+        let file_name = e.file_name();
+        let Some(pid) = file_name
+            .to_str()
+            .and_then(|n| n.strip_prefix(&prefix))
+            .and_then(|p| p.parse::<u32>().ok())
+        else {
+            continue;
+        };
+        let gone = pid == me
+            || (cfg!(target_os = "linux")
+                && Path::new("/proc/self").exists()
+                && !Path::new(&format!("/proc/{pid}")).exists());
+        if gone && e.file_type().is_ok_and(|t| t.is_file()) {
+            let _ = std::fs::remove_file(e.path());
+        }
+    }
+}
+
 impl Drop for TempTarget {
     fn drop(&mut self) {
         if !self.committed {
@@ -145,6 +182,26 @@ mod tests {
             bare.tmp(),
             Path::new(&format!(".demo.csv.tmp-{}", std::process::id()))
         );
+    }
+
+    #[test]
+    fn stale_temporary_files_of_dead_processes_are_removed() {
+        let dir = tempfile::tempdir().unwrap();
+        let dest = dir.path().join("r.h5");
+        // A process id above the Linux maximum (2^22) never runs.
+        let dead = dir.path().join(".r.h5.tmp-4194305");
+        let mine = dir.path().join(format!(".r.h5.tmp-{}", std::process::id()));
+        let live = dir.path().join(".r.h5.tmp-1"); // init always runs
+        let other = dir.path().join(".s.h5.tmp-4194305");
+        for p in [&dead, &mine, &live, &other] {
+            std::fs::write(p, "x").unwrap();
+        }
+        let _t = TempTarget::new(&dest).unwrap();
+        assert!(!mine.exists());
+        assert!(other.exists() && live.exists());
+        if cfg!(target_os = "linux") {
+            assert!(!dead.exists());
+        }
     }
 
     #[test]

@@ -297,6 +297,13 @@ fn read_snapshots(file: &File) -> Result<Snapshots, String> {
         time.len(),
     )?;
     check_units(&ds, path, "m")?;
+    bounded(
+        path,
+        shape
+            .iter()
+            .try_fold(1usize, |a, &b| a.checked_mul(b))
+            .unwrap_or(usize::MAX),
+    )?;
     let head = if shape[0] == 0 {
         Vec::new()
     } else {
@@ -351,6 +358,23 @@ fn read_summary(file: &File) -> Result<Summary, String> {
     Ok(summary)
 }
 
+/// Most values read from one dataset: 5e7 (400 MB of floats), beyond the largest output a
+/// run writes without `--allow-large` (2 GB in all, about 1e7 values per series). A crafted
+/// file declaring more is refused before anything is allocated.
+pub(crate) const MAX_VALUES: usize = 50_000_000;
+
+/// Refuses a dataset of more than [`MAX_VALUES`] values.
+pub(crate) fn bounded(path: &str, n: usize) -> Result<(), String> {
+    if n > MAX_VALUES {
+        return Err(format!(
+            "/{}: declares {n} values, more than a report reads ({MAX_VALUES}); not a \
+             boreflux result file, or one too large to report",
+            path.trim_start_matches('/')
+        ));
+    }
+    Ok(())
+}
+
 /// A 1-D dataset as `f64`, with its `units` attribute checked against `units` ("" for a
 /// dimensionless quantity, which accepts "", "1" and "-").
 fn vector(file: &File, path: &str, units: &str) -> Result<Vec<f64>, String> {
@@ -366,6 +390,7 @@ fn vector(file: &File, path: &str, units: &str) -> Result<Vec<f64>, String> {
         ));
     }
     check_units(&ds, path, units)?;
+    bounded(path, ds.size())?;
     ds.read_raw::<f64>()
         .map_err(|e| format!("/{path}: cannot read as numbers: {e}"))
 }

@@ -43,7 +43,8 @@ pub fn ticks_for(scale: Scale, (lo, hi): (f64, f64), pad: bool) -> (f64, f64, Ve
                 // A time axis starting one step after zero starts at zero.
                 lo = 0.0;
             }
-            let step = nice_step((hi - lo) / 5.0);
+            // Divided first, so that ±1e308 does not overflow to an infinite span.
+            let step = nice_step(hi / 5.0 - lo / 5.0);
             if pad {
                 lo = (lo / step).floor() * step;
                 hi = (hi / step).ceil() * step;
@@ -110,11 +111,21 @@ pub fn nice_step(raw: f64) -> f64 {
 }
 
 /// Multiples of `step` within [lo, hi].
+/// At most [`MAX_TICKS`] of them: a range that is not finite, or absurdly many steps wide
+/// (values near ±1e308 in a crafted file), gives none instead of a huge allocation.
 pub fn multiples(lo: f64, hi: f64, step: f64) -> Vec<f64> {
-    let first = (lo / step - 1e-9).ceil() as i64;
-    let last = (hi / step + 1e-9).floor() as i64;
-    (first..=last).map(|k| k as f64 * step).collect()
+    let first = (lo / step - 1e-9).ceil();
+    let last = (hi / step + 1e-9).floor();
+    if !(first.is_finite() && last.is_finite() && last - first <= MAX_TICKS as f64) {
+        return Vec::new();
+    }
+    (first as i64..=last as i64)
+        .map(|k| k as f64 * step)
+        .collect()
 }
+
+/// Most ticks on one axis.
+pub const MAX_TICKS: usize = 1000;
 
 /// Labels for evenly spaced linear ticks: fixed notation with just enough decimals for
 /// `step`, or scientific when the values are very large or very small.
@@ -175,6 +186,13 @@ mod tests {
         assert_eq!(nice_step(3.0), 5.0);
         assert_eq!(nice_step(1.0), 1.0);
         assert_eq!(multiples(-0.1, 1.1, 0.5), vec![0.0, 0.5, 1.0]);
+        assert!(multiples(-1e308, 1e308, 1e-300).is_empty());
+        assert!(multiples(0.0, f64::INFINITY, 1.0).is_empty());
+        let (lo, hi, t) = ticks_for(Scale::Linear, (-1e308, 1e308), true);
+        assert!(
+            lo.is_finite() && hi.is_finite() && !t.is_empty(),
+            "{lo} {hi}"
+        );
         assert_eq!(linear_labels(&[0.0, 2.5, 5.0], 2.5), ["0.0", "2.5", "5.0"]);
         assert_eq!(linear_labels(&[-1.0, 0.0, 1.0], 1.0), ["−1", "0", "1"]);
         assert_eq!(

@@ -1,7 +1,9 @@
-//! Running a sweep: every scenario of the shard is built and checked first, then they run
-//! on a pool of scoped threads (each its own solver run; nothing is shared but the job
-//! counter and the result slots), each with the same solver and headline as `boreflux
-//! run`. A scenario that fails at run time keeps its row, with the reason in `status`.
+//! Running a sweep: every scenario of the shard is built and checked first (and its size
+//! against the run limits), then they run on a pool of scoped threads (each its own solver
+//! run; nothing is shared but the job counter and the result slots), each with the same
+//! solver and headline as `boreflux run`. A scenario's case is built again when it runs
+//! and dropped after, so memory does not grow with the scenario count. A scenario that
+//! fails or panics at run time keeps its row, with the reason in `status`; the others run.
 
 use super::plan::{Plan, Shard};
 use super::spec::Segment;
@@ -17,15 +19,13 @@ use std::sync::Mutex;
 /// Case-check failures listed before the rest are counted.
 const LISTED_ERRORS: usize = 5;
 
-/// One scenario, checked and ready to run.
+/// One scenario, checked and ready to run (its case is built again when it runs).
 #[derive(Debug)]
 pub struct Prepared {
     /// Index in the whole sweep.
     pub scenario: usize,
     /// The varied values as written.
     pub labels: Vec<String>,
-    /// The scenario's case.
-    pub case: LoadedCase,
 }
 
 /// A finished scenario: its row (figures not yet in columns) and its figures by name.
@@ -57,20 +57,33 @@ fn si_value(resolved: &Value, segments: &[Segment], given: &Value) -> f64 {
     v.as_f64().or_else(|| given.as_f64()).unwrap_or(f64::NAN)
 }
 
-/// Builds and checks every scenario of the shard. The error lists the first few bad
+/// Builds and checks every scenario of the shard, and (unless `allow_large`) its size
+/// against the run limits of [`crate::cost`]. The error lists the first few bad
 /// scenarios, each with its values and the case loader's message.
-pub fn prepare(plan: &Plan, shard: Shard, base_dir: &Path) -> Result<Vec<Prepared>, String> {
+pub fn prepare(
+    plan: &Plan,
+    shard: Shard,
+    base_dir: &Path,
+    allow_large: bool,
+) -> Result<Vec<Prepared>, String> {
     let total = plan.count().unwrap_or(0);
     let mut ready = Vec::new();
     let mut errors = Vec::new();
     for i in (0..total).filter(|&i| shard.holds(i)) {
         let labels = plan.labels(i);
         let text = plan.scenario(i).map_err(|e| e.to_string())?.to_string();
-        match parse_case(&text, base_dir) {
-            Ok(case) => ready.push(Prepared {
+        let checked = parse_case(&text, base_dir)
+            .map_err(|e| e.to_string())
+            .and_then(|case| {
+                // A sweep writes no series: only the computing counts.
+                let mut cost = crate::cost::run_cost(&case, false, 0);
+                cost.bytes = 0.0;
+                crate::cost::refuse_large(&cost, allow_large).map_err(|e| e.to_string())
+            });
+        match checked {
+            Ok(()) => ready.push(Prepared {
                 scenario: i,
                 labels,
-                case,
             }),
             Err(e) => {
                 let values: Vec<String> = plan
@@ -100,13 +113,64 @@ pub fn prepare(plan: &Plan, shard: Shard, base_dir: &Path) -> Result<Vec<Prepare
     ))
 }
 
-/// Runs one scenario to its row.
-fn run_one(p: &Prepared, plan: &Plan, stop: &(dyn Fn() -> bool + Sync)) -> Outcome {
+/// The text of a panic's payload.
+fn panic_text(payload: &(dyn std::any::Any + Send)) -> String {
+    payload
+        .downcast_ref::<&str>()
+        .map(|s| (*s).to_owned())
+        .or_else(|| payload.downcast_ref::<String>().cloned())
+        .unwrap_or_else(|| "unknown cause".to_owned())
+}
+
+/// Runs one scenario to its row; a panic inside becomes the row's status.
+fn run_one(
+    p: &Prepared,
+    plan: &Plan,
+    base_dir: &Path,
+    stop: &(dyn Fn() -> bool + Sync),
+) -> Outcome {
+    let failed = |status: String| {
+        let row = Row {
+            scenario: p.scenario,
+            labels: p.labels.clone(),
+            si: vec![f64::NAN; plan.variables.len()],
+            status,
+            figures: Vec::new(),
+            warnings: String::new(),
+        };
+        (row, Vec::new())
+    };
+    let built = plan
+        .scenario(p.scenario)
+        .map_err(|e| e.to_string())
+        .and_then(|v| parse_case(&v.to_string(), base_dir).map_err(|e| e.to_string()));
+    let case = match built {
+        Ok(c) => c,
+        Err(e) => return failed(format!("case not valid: {e}")),
+    };
+    std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| {
+        run_case(p, plan, &case, stop)
+    }))
+    .unwrap_or_else(|e| {
+        failed(format!(
+            "simulation failed: internal error: {}",
+            panic_text(&*e)
+        ))
+    })
+}
+
+/// Runs a built scenario to its row.
+fn run_case(
+    p: &Prepared,
+    plan: &Plan,
+    case: &LoadedCase,
+    stop: &(dyn Fn() -> bool + Sync),
+) -> Outcome {
     let si = plan
         .variables
         .iter()
         .zip(plan.choice(p.scenario))
-        .map(|(v, c)| si_value(&p.case.resolved, &v.segments, &v.values[c]))
+        .map(|(v, c)| si_value(&case.resolved, &v.segments, &v.values[c]))
         .collect();
     let mut row = Row {
         scenario: p.scenario,
@@ -117,15 +181,15 @@ fn run_one(p: &Prepared, plan: &Plan, stop: &(dyn Fn() -> bool + Sync)) -> Outco
         warnings: String::new(),
     };
     let mut obs = Observer {
-        tracker: Tracker::new(&p.case.model),
+        tracker: Tracker::new(&case.model),
         stop,
     };
     let reporting = Reporting {
-        every: p.case.output_every,
+        every: case.output_every,
     };
-    match simulate(&p.case.model, &mut obs, reporting) {
+    match simulate(&case.model, &mut obs, reporting) {
         Ok(summary) => {
-            let h = headline(&p.case, &summary, &obs.tracker);
+            let h = headline(case, &summary, &obs.tracker);
             row.warnings = h.warnings.join("\n");
             (row, figures(&h))
         }
@@ -142,6 +206,7 @@ fn run_one(p: &Prepared, plan: &Plan, stop: &(dyn Fn() -> bool + Sync)) -> Outco
 pub fn run_all(
     ready: &[Prepared],
     plan: &Plan,
+    base_dir: &Path,
     jobs: usize,
     stop: &(dyn Fn() -> bool + Sync),
     done: &(dyn Fn(usize) + Sync),
@@ -155,9 +220,11 @@ pub fn run_all(
                 if k >= ready.len() || stop() {
                     break;
                 }
-                let outcome = run_one(&ready[k], plan, stop);
+                let outcome = run_one(&ready[k], plan, base_dir, stop);
                 done(ready[k].scenario);
-                slots.lock().expect("no worker panics holding the lock")[k] = Some(outcome);
+                slots
+                    .lock()
+                    .unwrap_or_else(std::sync::PoisonError::into_inner)[k] = Some(outcome);
             });
         }
     });
@@ -166,7 +233,7 @@ pub fn run_all(
     }
     slots
         .into_inner()
-        .expect("no worker panicked holding the lock")
+        .unwrap_or_else(std::sync::PoisonError::into_inner)
         .into_iter()
         .collect()
 }
@@ -191,4 +258,65 @@ pub fn tabulate(outcomes: Vec<Outcome>) -> (Vec<String>, Vec<Row>) {
         })
         .collect();
     (columns, rows)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::super::spec::parse_vary;
+    use super::*;
+    use std::sync::atomic::AtomicBool;
+
+    fn plan() -> Plan {
+        let base = serde_json::json!({
+            "well": {"screen_radius": 0.1, "screen_length": 6, "open_area": 0.12},
+            "pack": {"outer_radius": 0.2, "porosity": 0.32, "conductivity": 8e-3},
+            "formation": {"conductivity": 2e-4, "specific_storage": 1e-5},
+            "drive": {"kind": "sine_head", "amplitude": 1.5, "frequency": 0.5},
+            "duration": 4
+        });
+        Plan::new(base, vec![parse_vary("drive.amplitude=1,2,3").unwrap()]).unwrap()
+    }
+
+    #[test]
+    fn a_panicking_scenario_keeps_its_row_and_the_others_run() {
+        let plan = plan();
+        let ready = prepare(&plan, Shard::WHOLE, Path::new("."), false).unwrap();
+        assert_eq!(ready.len(), 3);
+        // One thread, so the calls come in order: the first scenario's third step panics
+        // (inside its run), once.
+        let calls = AtomicUsize::new(0);
+        let fired = AtomicBool::new(false);
+        let stop = || {
+            if calls.fetch_add(1, Ordering::SeqCst) == 4 && !fired.swap(true, Ordering::SeqCst) {
+                panic!("injected failure");
+            }
+            false
+        };
+        let outcomes = run_all(&ready, &plan, Path::new("."), 1, &stop, &|_| {}).unwrap();
+        let status: Vec<&str> = outcomes.iter().map(|(r, _)| r.status.as_str()).collect();
+        assert_eq!(
+            status,
+            [
+                "simulation failed: internal error: injected failure",
+                "ok",
+                "ok"
+            ]
+        );
+        assert!(outcomes[0].1.is_empty() && !outcomes[1].1.is_empty());
+    }
+
+    #[test]
+    fn scenarios_over_the_size_limit_are_refused_unless_allowed() {
+        let mut plan = plan();
+        plan.base["numerics"] = serde_json::json!({"time_step": 1e-6});
+        plan.base["duration"] = serde_json::json!(1e4);
+        let e = prepare(&plan, Shard::WHOLE, Path::new("."), false).unwrap_err();
+        assert!(e.contains("too large") && e.contains("scenario 0"), "{e}");
+        assert_eq!(
+            prepare(&plan, Shard::WHOLE, Path::new("."), true)
+                .unwrap()
+                .len(),
+            3
+        );
+    }
 }

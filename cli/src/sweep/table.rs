@@ -109,6 +109,15 @@ pub fn units_of(name: &str) -> &'static str {
 
 /// CSV field: quoted when it holds a comma, quote or line break.
 fn csv_field(s: &str) -> String {
+    // A text cell that a spreadsheet would run as a formula gets a leading apostrophe;
+    // numbers (-1.5, +3) stay numbers.
+    let guarded;
+    let s = if s.starts_with(['=', '+', '-', '@', '\t', '\r']) && s.trim().parse::<f64>().is_err() {
+        guarded = format!("'{s}");
+        guarded.as_str()
+    } else {
+        s
+    };
     if s.contains([',', '"', '\n', '\r']) {
         format!("\"{}\"", s.replace('"', "\"\""))
     } else {
@@ -126,6 +135,10 @@ fn csv_number(x: f64) -> String {
         format!("{x:e}")
     }
 }
+
+/// Most rows read from a sweep table: ten million scenarios. A crafted file declaring more
+/// is refused before anything is allocated.
+pub const MAX_ROWS: usize = 10_000_000;
 
 impl Table {
     /// The CSV text.
@@ -242,7 +255,7 @@ impl Table {
         Ok(())
     }
 
-    /// Reads a table written by [`Table::write`]. The error text does not repeat the path.
+    /// Reads a table written by [`Table::write`] (at most [`MAX_ROWS`] rows). The error text does not repeat the path.
     pub fn read(path: &Path) -> Result<Table, String> {
         let file = File::open(path).map_err(|e| format!("cannot open it as HDF5: {e}"))?;
         let attr = |name: &str| -> Result<String, String> {
@@ -278,20 +291,29 @@ impl Table {
                     .collect()
             })
             .unwrap_or_default();
+        let dataset = |name: &str| -> Result<hdf5::Dataset, String> {
+            let d = file.dataset(name).map_err(|e| format!("/{name}: {e}"))?;
+            if d.size() > MAX_ROWS {
+                return Err(format!(
+                    "/{name}: declares {} values, more than a sweep table holds ({MAX_ROWS})",
+                    d.size()
+                ));
+            }
+            Ok(d)
+        };
         let f64s = |name: &str| -> Result<Vec<f64>, String> {
-            file.dataset(name)
-                .and_then(|d| d.read_raw::<f64>())
+            dataset(name)?
+                .read_raw::<f64>()
                 .map_err(|e| format!("/{name}: {e}"))
         };
         let texts = |name: &str| -> Result<Vec<String>, String> {
-            file.dataset(name)
-                .and_then(|d| d.read_raw::<VarLenUnicode>())
+            dataset(name)?
+                .read_raw::<VarLenUnicode>()
                 .map(|v| v.iter().map(|s| s.as_str().to_owned()).collect())
                 .map_err(|e| format!("/{name}: {e}"))
         };
-        let index: Vec<u64> = file
-            .dataset("table/scenario")
-            .and_then(|d| d.read_raw::<u64>())
+        let index: Vec<u64> = dataset("table/scenario")?
+            .read_raw::<u64>()
             .map_err(|e| format!("/table/scenario: {e}"))?;
         let n = index.len();
         let status = texts("table/status")?;
@@ -398,6 +420,20 @@ mod tests {
             lines[2],
             "1,\"simulation failed: \"\"Newton\"\"\",0.6 m,6e-1,,,"
         );
+    }
+
+    #[test]
+    fn csv_text_cells_cannot_run_as_formulas() {
+        // The injection characters of the OWASP "CSV Injection" page: = + - @ tab CR.
+        assert_eq!(csv_field("=HYPERLINK(\"x\")"), "\"'=HYPERLINK(\"\"x\"\")\"");
+        assert_eq!(csv_field("+cmd"), "'+cmd");
+        assert_eq!(csv_field("-2+3"), "'-2+3");
+        assert_eq!(csv_field("@SUM(A1)"), "'@SUM(A1)");
+        assert_eq!(csv_field("-1.5 m"), "'-1.5 m");
+        assert_eq!(csv_field("-1.5"), "-1.5");
+        assert_eq!(csv_field("+3e-2"), "+3e-2");
+        assert_eq!(csv_field("0.3 m"), "0.3 m");
+        assert_eq!(csv_number(-1.5), "-1.5e0");
     }
 
     #[test]

@@ -138,6 +138,7 @@ pub fn schedule(map: Map<String, Value>, ctx: &DriveContext<'_>) -> Result<Parse
         stages.push(Stage {
             drive: parsed.drive,
             duration_s,
+            start_s: start,
         });
         start = end;
     }

@@ -1,0 +1,28 @@
+//! `boreflux report`: an HTML page from result files. The output is checked like every
+//! command's (see [`super::outputs`]): never one of the inputs, never over an existing file
+//! without `--force`. An input that is not a readable boreflux result (text, empty,
+//! truncated, foreign or crafted HDF5) is bad input (exit 2), as in `merge`.
+
+use super::outputs::{check_output, refuse_inputs};
+use super::Failure;
+use crate::args::ReportArgs;
+use crate::report::ReportError;
+use anyhow::anyhow;
+
+/// Runs the command.
+pub fn report(a: &ReportArgs) -> Result<(), Failure> {
+    if let Some(missing) = a.inputs.iter().find(|p| !p.is_file()) {
+        return Err(Failure::Input(anyhow!(
+            "cannot read result file {}",
+            missing.display()
+        )));
+    }
+    refuse_inputs(&[(&a.output, "-o/--output")], &a.inputs).map_err(Failure::Input)?;
+    check_output(&a.output, "-o/--output", a.force).map_err(Failure::Input)?;
+    crate::report::write_report(&a.inputs, &a.output).map_err(|e| match e {
+        ReportError::Write { .. } => Failure::Runtime(anyhow!("{e}")),
+        ReportError::NoInputs | ReportError::Input { .. } => Failure::Input(anyhow!("{e}")),
+    })?;
+    eprintln!("report written to {}", a.output.display());
+    Ok(())
+}

@@ -1,0 +1,134 @@
+//! What a run will cost, before it starts: steps, cells, estimated wall time and output
+//! size. `check` prints it; `run` and `sweep` refuse a run over [`MAX_CELL_STEPS`] or
+//! [`MAX_OUTPUT_BYTES`] unless `--allow-large` is given.
+//!
+//! The step count is an upper bound from the user's step settings
+//! ([`boreflux_solver::cost`]); the time and size follow from it with the per-step figures
+//! below, so they are upper estimates too.
+
+use crate::case::LoadedCase;
+use anyhow::anyhow;
+use boreflux_solver::cost::estimate;
+
+/// Largest run accepted without `--allow-large`, in cells × steps. Assumption: at the
+/// measured rate below this is a few minutes of computing.
+pub const MAX_CELL_STEPS: f64 = 5e8;
+/// Largest output accepted without `--allow-large`, bytes (HDF5 and CSV together).
+/// Assumption: 2 GB.
+pub const MAX_OUTPUT_BYTES: f64 = 2e9;
+/// Wall time per cell-step with all diagnostics and output, s. Measured on the
+/// development machine (2-core virtual machine) with the shipped demo cases: 100 to
+/// 180 ns; the upper figure is used.
+const SECONDS_PER_CELL_STEP: f64 = 180e-9;
+/// Bytes per reported step in the HDF5 file: 24 series of 8-byte floats.
+const H5_BYTES_PER_ROW: f64 = 24.0 * 8.0;
+/// Bytes per reported step in the CSV file: 24 columns of up to 24 characters each
+/// (`-1.2345678901234567e-300,`).
+const CSV_BYTES_PER_ROW: f64 = 24.0 * 25.0;
+/// Fixed part of an HDF5 file: grid, attributes, cycle tables, headers. Measured: the
+/// shipped cases' files are 1.2 to 2.8 MB, of which the series take all but about 0.5 MB.
+const H5_FIXED_BYTES: f64 = 1e6;
+
+/// The estimate of one run.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct RunCost {
+    /// Upper bound on the steps.
+    pub steps: f64,
+    /// Cells of the grid.
+    pub cells: f64,
+    /// Steps × cells.
+    pub cell_steps: f64,
+    /// Estimated wall time, s.
+    pub seconds: f64,
+    /// Estimated output size (HDF5, and CSV when asked for), bytes.
+    pub bytes: f64,
+}
+
+/// Cost of running `case`, writing CSV too when `csv`, a head profile every
+/// `snapshot_every` steps (0 = about 200 in all, as `run` does).
+pub fn run_cost(case: &LoadedCase, csv: bool, snapshot_every: u64) -> RunCost {
+    let c = estimate(&case.model);
+    let rows = (c.steps / case.output_every.max(1) as f64).ceil();
+    let snapshots = if snapshot_every == 0 {
+        c.steps.min(201.0)
+    } else {
+        (c.steps / snapshot_every as f64).ceil()
+    };
+    let mut bytes = H5_FIXED_BYTES + rows * H5_BYTES_PER_ROW + snapshots * c.cells * 8.0;
+    if csv {
+        bytes += rows * CSV_BYTES_PER_ROW;
+    }
+    RunCost {
+        steps: c.steps,
+        cells: c.cells,
+        cell_steps: c.cell_steps,
+        seconds: c.cell_steps * SECONDS_PER_CELL_STEP,
+        bytes,
+    }
+}
+
+/// A duration for people: s, min, h or d.
+pub fn show_seconds(s: f64) -> String {
+    if s < 120.0 {
+        format!("{s:.1} s")
+    } else if s < 7200.0 {
+        format!("{:.0} min", s / 60.0)
+    } else if s < 172_800.0 {
+        format!("{:.1} h", s / 3600.0)
+    } else {
+        format!("{:.3e} d", s / 86_400.0)
+    }
+}
+
+/// A size for people: kB, MB, GB.
+pub fn show_bytes(b: f64) -> String {
+    if b < 1e6 {
+        format!("{:.0} kB", b / 1e3)
+    } else if b < 1e9 {
+        format!("{:.1} MB", b / 1e6)
+    } else if b < 1e12 {
+        format!("{:.1} GB", b / 1e9)
+    } else {
+        format!("{:.3e} GB", b / 1e9)
+    }
+}
+
+/// One line for `check` and for refusals.
+pub fn describe(c: &RunCost) -> String {
+    format!(
+        "at most {:.3e} steps on {} cells ({:.3e} cell-steps), about {} of computing, about {} \
+         of output",
+        c.steps,
+        c.cells,
+        c.cell_steps,
+        show_seconds(c.seconds),
+        show_bytes(c.bytes)
+    )
+}
+
+/// Refuses a run over the limits (unless `allow`), saying what to change.
+pub fn refuse_large(c: &RunCost, allow: bool) -> Result<(), anyhow::Error> {
+    if allow {
+        return Ok(());
+    }
+    // NaN counts as over.
+    let over_steps = c.cell_steps.is_nan() || c.cell_steps > MAX_CELL_STEPS;
+    let over_bytes = c.bytes.is_nan() || c.bytes > MAX_OUTPUT_BYTES;
+    if !(over_steps || over_bytes) {
+        return Ok(());
+    }
+    let what = match (over_steps, over_bytes) {
+        (true, true) => format!(
+            "more than {MAX_CELL_STEPS:.0e} cell-steps and {} of output",
+            show_bytes(MAX_OUTPUT_BYTES)
+        ),
+        (true, false) => format!("more than {MAX_CELL_STEPS:.0e} cell-steps"),
+        _ => format!("more than {} of output", show_bytes(MAX_OUTPUT_BYTES)),
+    };
+    Err(anyhow!(
+        "this run is too large: {}; that is {what}. Check duration, the drive's frequency \
+         and time scales, numerics.time_step / steps_per_cycle and numerics.output_every; \
+         pass --allow-large to run it anyway. Nothing was written",
+        describe(c)
+    ))
+}
