@@ -6,6 +6,7 @@ pub mod case;
 pub mod commands;
 pub mod output;
 pub mod report;
+pub mod steptest;
 pub mod summary;
 pub mod sweep;
 pub mod units;

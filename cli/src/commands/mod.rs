@@ -6,6 +6,7 @@ mod interrupt;
 mod merge;
 mod new;
 mod run;
+mod steptest;
 mod sweep;
 mod verify;
 
@@ -74,6 +75,7 @@ pub fn dispatch(command: Command) -> Result<(), Failure> {
             Ok(())
         }
         Command::Verify(a) => verify::verify(&a),
+        Command::Steptest(a) => steptest::steptest(&a),
         Command::New(a) => new::new(&a),
         Command::Schema => {
             let text = serde_json::to_string_pretty(&crate::case::schema())

@@ -28,6 +28,7 @@ mod headline;
 mod html;
 mod read;
 mod svg;
+pub mod steptest;
 mod sweep;
 mod tables;
 mod ticks;
