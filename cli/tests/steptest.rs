@@ -22,26 +22,45 @@ fn write(dir: &Path, name: &str, text: &str) -> PathBuf {
 
 fn json_of(args: &[&str]) -> Value {
     let out = boreflux().args(args).output().unwrap();
-    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
     serde_json::from_slice(&out.stdout).unwrap()
 }
 
 fn stderr_of_failure(args: &[&str], code: i32) -> String {
     let out = boreflux().args(args).output().unwrap();
-    assert_eq!(out.status.code(), Some(code), "{}", String::from_utf8_lossy(&out.stdout));
+    assert_eq!(
+        out.status.code(),
+        Some(code),
+        "{}",
+        String::from_utf8_lossy(&out.stdout)
+    );
     String::from_utf8_lossy(&out.stderr).into_owned()
 }
 
 #[test]
 fn steptest_good_files_print_table() {
-    for (file, method) in [("step-test-demo.csv", "Hantush–Bierschenk"), ("step-test-steps.csv", "Jacob")] {
+    for (file, method) in [
+        ("step-test-demo.csv", "Hantush–Bierschenk"),
+        ("step-test-steps.csv", "Jacob"),
+    ] {
         let path = cases_dir().join(file);
         let out = boreflux().arg("steptest").arg(&path).output().unwrap();
-        assert!(out.status.success(), "{file}: {}", String::from_utf8_lossy(&out.stderr));
+        assert!(
+            out.status.success(),
+            "{file}: {}",
+            String::from_utf8_lossy(&out.stderr)
+        );
         let text = String::from_utf8_lossy(&out.stdout);
         assert!(text.contains(method), "{text}");
         assert!(text.contains("B = ") && text.contains("C = ") && text.contains("95 % interval"));
-        assert!(text.contains("E = B Q / (B Q + C Q^2)"), "efficiency definition missing");
+        assert!(
+            text.contains("E = B Q / (B Q + C Q^2)"),
+            "efficiency definition missing"
+        );
         assert!(text.contains("CAUTION"));
     }
 }
@@ -61,11 +80,21 @@ fn steptest_json_recovers_exact_b_and_c() {
     for w in ["equal", "drawdown"] {
         let v = json_of(&["steptest", f.to_str().unwrap(), "--json", "--weights", w]);
         assert_eq!(v["method"], "jacob");
-        assert!((v["B"]["value"].as_f64().unwrap() / 100.0 - 1.0).abs() < 1e-9, "{v}");
-        assert!((v["C"]["value"].as_f64().unwrap() / 2000.0 - 1.0).abs() < 1e-9, "{v}");
+        assert!(
+            (v["B"]["value"].as_f64().unwrap() / 100.0 - 1.0).abs() < 1e-9,
+            "{v}"
+        );
+        assert!(
+            (v["C"]["value"].as_f64().unwrap() / 2000.0 - 1.0).abs() < 1e-9,
+            "{v}"
+        );
         assert_eq!(v["dof"], 2);
-        let e: Vec<f64> =
-            v["steps"].as_array().unwrap().iter().map(|s| s["efficiency"].as_f64().unwrap()).collect();
+        let e: Vec<f64> = v["steps"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .map(|s| s["efficiency"].as_f64().unwrap())
+            .collect();
         for (a, b) in e.iter().zip([0.909091, 0.833333, 0.769231, 0.714286]) {
             assert!((a - b).abs() < 5e-7, "{a} vs {b}");
         }
@@ -86,14 +115,21 @@ fn steptest_json_demo_series_intervals_hold_true_values() {
     let b = std::f64::consts::LN_10 / (4.0 * std::f64::consts::PI * t);
     let gamma = 0.577_215_664_901_532_9_f64;
     let b_true = 15.0 + b * (4.0 * (-gamma).exp() * t * 3600.0 / (rw * rw * s)).log10();
-    let inside = |e: &Value, x: f64| e["lower"].as_f64().unwrap() <= x && x <= e["upper"].as_f64().unwrap();
+    let inside =
+        |e: &Value, x: f64| e["lower"].as_f64().unwrap() <= x && x <= e["upper"].as_f64().unwrap();
     assert_eq!(v["series"]["reference_time_s"].as_f64().unwrap(), 3600.0);
     assert!(inside(&v["B"], b_true), "B {} vs {b_true}", v["B"]);
     assert!(inside(&v["C"], 2500.0), "C {}", v["C"]);
     let t_fit = v["series"]["transmissivity_m2_s"].as_f64().unwrap();
     assert!((t_fit / t - 1.0).abs() < 0.05, "T {t_fit}");
     // Another common time.
-    let v = json_of(&["steptest", demo.to_str().unwrap(), "--json", "--at", "30 min"]);
+    let v = json_of(&[
+        "steptest",
+        demo.to_str().unwrap(),
+        "--json",
+        "--at",
+        "30 min",
+    ]);
     assert_eq!(v["series"]["reference_time_s"].as_f64().unwrap(), 1800.0);
 }
 
@@ -103,7 +139,11 @@ fn steptest_bad_header_names_the_column() {
     let f = write(dir.path(), "h.csv", "rate_L/s,level_m\n5,1\n10,2\n15,3\n");
     let e = stderr_of_failure(&["steptest", f.to_str().unwrap()], 2);
     assert!(e.contains("line 1") && e.contains("level_m"), "{e}");
-    let f = write(dir.path(), "u.csv", "rate_L/s,drawdown_m/s\n5,1\n10,2\n15,3\n");
+    let f = write(
+        dir.path(),
+        "u.csv",
+        "rate_L/s,drawdown_m/s\n5,1\n10,2\n15,3\n",
+    );
     let e = stderr_of_failure(&["steptest", f.to_str().unwrap()], 2);
     assert!(e.contains("drawdown_m/s") && e.contains("length"), "{e}");
 }
@@ -111,13 +151,24 @@ fn steptest_bad_header_names_the_column() {
 #[test]
 fn steptest_non_numeric_cell_names_line_and_column() {
     let dir = tempfile::tempdir().unwrap();
-    let f = write(dir.path(), "n.csv", "# c\nrate_L/s,drawdown_m\n5,1\n10,two\n15,3\n");
+    let f = write(
+        dir.path(),
+        "n.csv",
+        "# c\nrate_L/s,drawdown_m\n5,1\n10,two\n15,3\n",
+    );
     let e = stderr_of_failure(&["steptest", f.to_str().unwrap()], 2);
-    assert!(e.contains("line 4") && e.contains("drawdown_m") && e.contains("\"two\""), "{e}");
+    assert!(
+        e.contains("line 4") && e.contains("drawdown_m") && e.contains("\"two\""),
+        "{e}"
+    );
     let f = write(dir.path(), "z.csv", "rate_L/s,drawdown_m\n5,1\n0,2\n15,3\n");
     let e = stderr_of_failure(&["steptest", f.to_str().unwrap()], 2);
     assert!(e.contains("line 3") && e.contains("rate"), "{e}");
-    let f = write(dir.path(), "t.csv", "time_min,rate_L/s,drawdown_m\n1,5,1\n1,5,1.1\n");
+    let f = write(
+        dir.path(),
+        "t.csv",
+        "time_min,rate_L/s,drawdown_m\n1,5,1\n1,5,1.1\n",
+    );
     let e = stderr_of_failure(&["steptest", f.to_str().unwrap()], 2);
     assert!(e.contains("line 3") && e.contains("time"), "{e}");
 }
@@ -125,12 +176,20 @@ fn steptest_non_numeric_cell_names_line_and_column() {
 #[test]
 fn steptest_two_steps_refused_with_reason() {
     let dir = tempfile::tempdir().unwrap();
-    let f = write(dir.path(), "two.csv", "rate_L/s,drawdown_m\n5,0.55\n10,1.2\n");
+    let f = write(
+        dir.path(),
+        "two.csv",
+        "rate_L/s,drawdown_m\n5,0.55\n10,1.2\n",
+    );
     let e = stderr_of_failure(&["steptest", f.to_str().unwrap()], 2);
     assert!(e.contains("2 step(s)") && e.contains("at least 3"), "{e}");
     assert!(e.contains("no degree of freedom"), "{e}");
     // A per-step file cannot be corrected to a common time.
-    let f = write(dir.path(), "three.csv", "rate_L/s,drawdown_m\n5,0.55\n10,1.2\n15,1.95\n");
+    let f = write(
+        dir.path(),
+        "three.csv",
+        "rate_L/s,drawdown_m\n5,0.55\n10,1.2\n15,1.95\n",
+    );
     let e = stderr_of_failure(&["steptest", f.to_str().unwrap(), "--method", "hantush"], 2);
     assert!(e.contains("time series"), "{e}");
 }
@@ -140,7 +199,12 @@ fn steptest_html_written_whole_and_not_overwritten_without_force() {
     let dir = tempfile::tempdir().unwrap();
     let out = dir.path().join("st.html");
     let demo = cases_dir().join("step-test-demo.csv");
-    let args = ["steptest", demo.to_str().unwrap(), "-o", out.to_str().unwrap()];
+    let args = [
+        "steptest",
+        demo.to_str().unwrap(),
+        "-o",
+        out.to_str().unwrap(),
+    ];
     boreflux().args(args).assert().success();
     let html = std::fs::read_to_string(&out).unwrap();
     assert!(html.contains("<svg") && html.contains("s/Q") && html.contains("Cautions"));
@@ -152,11 +216,22 @@ fn steptest_html_written_whole_and_not_overwritten_without_force() {
     boreflux().args(args).arg("--force").assert().success();
     assert!(std::fs::read_to_string(&out).unwrap().contains("<svg"));
     // Nothing else left in the directory (no temporary file).
-    let names: Vec<_> = std::fs::read_dir(dir.path()).unwrap().map(|e| e.unwrap().file_name()).collect();
+    let names: Vec<_> = std::fs::read_dir(dir.path())
+        .unwrap()
+        .map(|e| e.unwrap().file_name())
+        .collect();
     assert_eq!(names.len(), 1, "{names:?}");
     // Bad input leaves no output.
     let bad = write(dir.path(), "bad.csv", "rate_L/s,drawdown_m\n5,x\n");
     let out2 = dir.path().join("none.html");
-    stderr_of_failure(&["steptest", bad.to_str().unwrap(), "-o", out2.to_str().unwrap()], 2);
+    stderr_of_failure(
+        &[
+            "steptest",
+            bad.to_str().unwrap(),
+            "-o",
+            out2.to_str().unwrap(),
+        ],
+        2,
+    );
     assert!(!out2.exists());
 }

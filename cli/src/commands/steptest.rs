@@ -27,7 +27,10 @@ pub fn steptest(a: &SteptestArgs) -> Result<(), Failure> {
         )));
     }
     if !(0.0..1.0).contains(&a.skip) {
-        return Err(Failure::Input(anyhow!("--skip {} must be in [0, 1)", a.skip)));
+        return Err(Failure::Input(anyhow!(
+            "--skip {} must be in [0, 1)",
+            a.skip
+        )));
     }
     let reference_time_s = match &a.at {
         None => None,
@@ -35,7 +38,9 @@ pub fn steptest(a: &SteptestArgs) -> Result<(), Failure> {
             let v = parse_quantity(&serde_json::Value::String(t.clone()), Quantity::Time)
                 .map_err(|e| Failure::Input(anyhow!("--at: {e}")))?;
             if !(v > 0.0) {
-                return Err(Failure::Input(anyhow!("--at: {t} must be a time above zero")));
+                return Err(Failure::Input(anyhow!(
+                    "--at: {t} must be a time above zero"
+                )));
             }
             Some(v)
         }

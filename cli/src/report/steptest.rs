@@ -13,23 +13,46 @@ use boreflux_solver::steptest::Estimate;
 /// Points of the fitted line and band (more than the chart's marker limit, so no markers).
 const LINE_POINTS: usize = 101;
 
-const MEASURED: Style = Style { color: "#c0392b", dash: "", width: 0.0 };
-const CORRECTED: Style = Style { color: "#1f5fa8", dash: "", width: 0.0 };
-const FITTED: Style = Style { color: "#1f5fa8", dash: "", width: 1.6 };
-const BAND: Style = Style { color: "#1f5fa8", dash: "4 3", width: 1.0 };
+const MEASURED: Style = Style {
+    color: "#c0392b",
+    dash: "",
+    width: 0.0,
+};
+const CORRECTED: Style = Style {
+    color: "#1f5fa8",
+    dash: "",
+    width: 0.0,
+};
+const FITTED: Style = Style {
+    color: "#1f5fa8",
+    dash: "",
+    width: 1.6,
+};
+const BAND: Style = Style {
+    color: "#1f5fa8",
+    dash: "4 3",
+    width: 1.0,
+};
 
 /// The s/Q–Q chart as an `<svg>` element. Q is shown in L/s, s/Q in s/m².
 pub fn chart(o: &Outcome) -> String {
     let f = &o.fit;
     let q: Vec<f64> = o.figures.iter().map(|g| g.rate_m3_s).collect();
     let q_max = q.iter().copied().fold(0.0, f64::max) * 1.05;
-    let x: Vec<f64> = (0..LINE_POINTS).map(|k| q_max * k as f64 / (LINE_POINTS - 1) as f64).collect();
+    let x: Vec<f64> = (0..LINE_POINTS)
+        .map(|k| q_max * k as f64 / (LINE_POINTS - 1) as f64)
+        .collect();
     let line: Vec<f64> = x.iter().map(|q| f.b.value + f.c.value * q).collect();
     let (vb, vc) = (f.b.std_error.powi(2), f.c.std_error.powi(2));
     let half = |q: f64| f.t_quantile * (vb + q * q * vc + 2.0 * q * f.cov_bc).max(0.0).sqrt();
     let upper: Vec<f64> = x.iter().zip(&line).map(|(q, y)| y + half(*q)).collect();
     let lower: Vec<f64> = x.iter().zip(&line).map(|(q, y)| y - half(*q)).collect();
-    let measured: Vec<f64> = o.figures.iter().zip(&o.measured_m).map(|(g, m)| m / g.rate_m3_s).collect();
+    let measured: Vec<f64> = o
+        .figures
+        .iter()
+        .zip(&o.measured_m)
+        .map(|(g, m)| m / g.rate_m3_s)
+        .collect();
     let fitted_points: Vec<f64> = o.figures.iter().map(|g| g.drawdown_per_rate).collect();
     let pct = 100.0 * f.confidence;
 
@@ -52,7 +75,12 @@ pub fn chart(o: &Outcome) -> String {
         y: &upper,
         style: BAND,
     });
-    c.series.push(Series { label: String::new(), x: &x, y: &lower, style: BAND });
+    c.series.push(Series {
+        label: String::new(),
+        x: &x,
+        y: &lower,
+        style: BAND,
+    });
     if o.series.is_some() {
         c.series.push(Series {
             label: "steps, measured at the end of each step".to_owned(),
@@ -67,7 +95,12 @@ pub fn chart(o: &Outcome) -> String {
             style: CORRECTED,
         });
     } else {
-        c.series.push(Series { label: "steps (fitted)".to_owned(), x: &q, y: &measured, style: MEASURED });
+        c.series.push(Series {
+            label: "steps (fitted)".to_owned(),
+            x: &q,
+            y: &measured,
+            style: MEASURED,
+        });
     }
     render(&c)
 }
@@ -139,7 +172,12 @@ pub fn page(o: &Outcome, source: &str) -> String {
         );
     }
     h.push_str("</tbody></table>\n");
-    let _ = writeln!(h, "<p>{}</p>\n<p>{}</p>", esc(INTERVAL_NOTE), esc(EFFICIENCY_DEFINITION));
+    let _ = writeln!(
+        h,
+        "<p>{}</p>\n<p>{}</p>",
+        esc(INTERVAL_NOTE),
+        esc(EFFICIENCY_DEFINITION)
+    );
     let _ = write!(
         h,
         "<figure><figcaption>Points: s/Q of each step; line: the fitted s/Q = B + C Q; dashed: \
@@ -158,7 +196,13 @@ pub fn page(o: &Outcome, source: &str) -> String {
          <th>linear share</th><th>non-linear share</th><th>E ± {pct:.0} %</th></tr></thead><tbody>\n"
     );
     for (i, (g, m)) in o.figures.iter().zip(&o.measured_m).enumerate() {
-        let _ = write!(h, "<tr><td>{}</td><td>{}</td><td>{}</td>", i + 1, sig(g.rate_m3_s * 1e3), sig(*m));
+        let _ = write!(
+            h,
+            "<tr><td>{}</td><td>{}</td><td>{}</td>",
+            i + 1,
+            sig(g.rate_m3_s * 1e3),
+            sig(*m)
+        );
         if o.series.is_some() {
             let _ = write!(h, "<td>{}</td>", sig(g.drawdown_m));
         }

@@ -78,7 +78,11 @@ fn parse_header_cell(cell: &str) -> Result<Column, String> {
         Some(u) => parse_quantity(&Value::String(format!("1 {u}")), q)
             .map_err(|e| format!("column \"{cell}\": {e}"))?,
     };
-    Ok(Column { kind, header: cell.to_owned(), factor })
+    Ok(Column {
+        kind,
+        header: cell.to_owned(),
+        factor,
+    })
 }
 
 /// Parses the text of a step-test file. Errors are one line of text naming the line and
@@ -107,8 +111,11 @@ pub fn parse(text: &str) -> Result<StepData, String> {
         }
         index[c.kind] = Some(i);
     }
-    let missing: Vec<&str> =
-        [1, 2].iter().filter(|&&k| index[k].is_none()).map(|&k| COLUMNS[k].0).collect();
+    let missing: Vec<&str> = [1, 2]
+        .iter()
+        .filter(|&&k| index[k].is_none())
+        .map(|&k| COLUMNS[k].0)
+        .collect();
     if !missing.is_empty() {
         return Err(format!(
             "line {header_line}: no {} column; the header needs rate_<unit> and \
@@ -130,7 +137,10 @@ pub fn parse(text: &str) -> Result<StepData, String> {
         let mut v = [f64::NAN; 3];
         for (cell, col) in cells.iter().zip(&cols) {
             let x: f64 = cell.parse().map_err(|_| {
-                format!("line {line}, column \"{}\": \"{cell}\" is not a number", col.header)
+                format!(
+                    "line {line}, column \"{}\": \"{cell}\" is not a number",
+                    col.header
+                )
             })?;
             if !x.is_finite() {
                 return Err(format!(
@@ -144,19 +154,31 @@ pub fn parse(text: &str) -> Result<StepData, String> {
         lines.push(line);
     }
     if values.is_empty() {
-        return Err(format!("no data rows after the header on line {header_line}"));
+        return Err(format!(
+            "no data rows after the header on line {header_line}"
+        ));
     }
     Ok(if index[0].is_some() {
         StepData::Series {
             samples: values
                 .iter()
-                .map(|v| Sample { time_s: v[0], rate_m3_s: v[1], drawdown_m: v[2] })
+                .map(|v| Sample {
+                    time_s: v[0],
+                    rate_m3_s: v[1],
+                    drawdown_m: v[2],
+                })
                 .collect(),
             lines,
         }
     } else {
         StepData::Steps {
-            steps: values.iter().map(|v| Step { rate_m3_s: v[1], drawdown_m: v[2] }).collect(),
+            steps: values
+                .iter()
+                .map(|v| Step {
+                    rate_m3_s: v[1],
+                    drawdown_m: v[2],
+                })
+                .collect(),
             lines,
         }
     })
@@ -169,19 +191,39 @@ mod tests {
     #[test]
     fn reads_steps_and_series_with_units() {
         let d = parse("# demo\nrate_L/s, drawdown_cm\n5,55\n10,120\n").unwrap();
-        let StepData::Steps { steps, lines } = d else { panic!() };
+        let StepData::Steps { steps, lines } = d else {
+            panic!()
+        };
         // 1 L/s = 1e-3 m³/s and 1 cm = 1e-2 m (exact by definition).
-        assert_eq!(steps[1], Step { rate_m3_s: 0.01, drawdown_m: 1.2 });
+        assert_eq!(
+            steps[1],
+            Step {
+                rate_m3_s: 0.01,
+                drawdown_m: 1.2
+            }
+        );
         assert_eq!(lines, vec![3, 4]);
         let d = parse("drawdown_m,time_min,rate\n1.5,2,0.01\n").unwrap();
-        let StepData::Series { samples, .. } = d else { panic!() };
-        assert_eq!(samples[0], Sample { time_s: 120.0, rate_m3_s: 0.01, drawdown_m: 1.5 });
+        let StepData::Series { samples, .. } = d else {
+            panic!()
+        };
+        assert_eq!(
+            samples[0],
+            Sample {
+                time_s: 120.0,
+                rate_m3_s: 0.01,
+                drawdown_m: 1.5
+            }
+        );
     }
 
     #[test]
     fn errors_name_line_and_column() {
         let e = parse("rate_L/s,drawdown_m\n5,abc\n").unwrap_err();
-        assert!(e.contains("line 2") && e.contains("drawdown_m") && e.contains("abc"), "{e}");
+        assert!(
+            e.contains("line 2") && e.contains("drawdown_m") && e.contains("abc"),
+            "{e}"
+        );
         let e = parse("rate_L/s,level_m\n5,1\n").unwrap_err();
         assert!(e.contains("line 1") && e.contains("level_m"), "{e}");
         let e = parse("rate_furlongs,drawdown_m\n5,1\n").unwrap_err();
@@ -193,6 +235,8 @@ mod tests {
         let e = parse("time_s,drawdown_m\n5,1\n").unwrap_err();
         assert!(e.contains("no rate column"), "{e}");
         assert!(parse("# only\n\n").is_err());
-        assert!(parse("rate_L/s,drawdown_m\n").unwrap_err().contains("no data rows"));
+        assert!(parse("rate_L/s,drawdown_m\n")
+            .unwrap_err()
+            .contains("no data rows"));
     }
 }

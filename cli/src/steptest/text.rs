@@ -53,10 +53,12 @@ pub fn table(o: &Outcome) -> String {
     let pct = 100.0 * f.confidence;
     let mut s = String::new();
     match &o.series {
-        Some(h) => s += &format!(
+        Some(h) => {
+            s += &format!(
             "Step-drawdown analysis: Hantush–Bierschenk, steps corrected to {} min of pumping\n",
             sig(h.reference_time_s / 60.0)
-        ),
+        )
+        }
         None => s += "Step-drawdown analysis: Jacob, drawdown at the end of each step\n",
     }
     s += &format!(
@@ -76,7 +78,11 @@ pub fn table(o: &Outcome) -> String {
         "step",
         "Q [L/s]",
         "s [m]",
-        if corrected { format!(" {:>9}", "s* [m]") } else { String::new() },
+        if corrected {
+            format!(" {:>9}", "s* [m]")
+        } else {
+            String::new()
+        },
         "s/Q [s/m²]",
         "Q/s [L/s/m]",
         "BQ [m]",
@@ -86,7 +92,11 @@ pub fn table(o: &Outcome) -> String {
         format!("E % ± {pct:.0} %"),
     );
     for (i, (g, m)) in o.figures.iter().zip(&o.measured_m).enumerate() {
-        let extra = if corrected { format!(" {:>9}", sig(g.drawdown_m)) } else { String::new() };
+        let extra = if corrected {
+            format!(" {:>9}", sig(g.drawdown_m))
+        } else {
+            String::new()
+        };
         s += &format!(
             "{:>4} {:>9} {:>9}{extra} {:>10} {:>11} {:>8} {:>8} {:>7.1} {:>7.1} {:>14}\n",
             i + 1,

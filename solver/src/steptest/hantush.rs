@@ -54,7 +54,12 @@ pub struct SeriesOptions {
 
 impl Default for SeriesOptions {
     fn default() -> Self {
-        Self { weighting: Weighting::Equal, confidence: 0.95, skip_fraction: 0.25, reference_time_s: None }
+        Self {
+            weighting: Weighting::Equal,
+            confidence: 0.95,
+            skip_fraction: 0.25,
+            reference_time_s: None,
+        }
     }
 }
 
@@ -109,7 +114,10 @@ fn superposed_log(spans: &[StepSpan], n: usize, t: f64) -> f64 {
 }
 
 /// Runs the procedure on a time series (see the module documentation).
-pub fn fit_series(samples: &[Sample], opts: &SeriesOptions) -> Result<HantushAnalysis, StepTestError> {
+pub fn fit_series(
+    samples: &[Sample],
+    opts: &SeriesOptions,
+) -> Result<HantushAnalysis, StepTestError> {
     if !(opts.confidence > 0.0 && opts.confidence < 1.0) {
         return Err(StepTestError::BadConfidence(opts.confidence));
     }
@@ -175,7 +183,10 @@ pub fn fit_series(samples: &[Sample], opts: &SeriesOptions) -> Result<HantushAna
                 "reference time {t} s must be a finite time above zero"
             )))
         }
-        None => spans.iter().map(|sp| sp.duration_s(samples)).fold(f64::INFINITY, f64::min),
+        None => spans
+            .iter()
+            .map(|sp| sp.duration_s(samples))
+            .fold(f64::INFINITY, f64::min),
     };
     let l_ref = dt_ref.log10();
     let var_b_ref = cov[0] + l_ref * l_ref * cov[4] + 2.0 * l_ref * cov[1];
@@ -187,7 +198,10 @@ pub fn fit_series(samples: &[Sample], opts: &SeriesOptions) -> Result<HantushAna
         .map(|(n, sp)| {
             let t_end = samples[sp.last].time_s;
             let growth = superposed_log(&spans, n, t_end) - sp.rate_m3_s * l_ref;
-            Step { rate_m3_s: sp.rate_m3_s, drawdown_m: samples[sp.last].drawdown_m - b.value * growth }
+            Step {
+                rate_m3_s: sp.rate_m3_s,
+                drawdown_m: samples[sp.last].drawdown_m - b.value * growth,
+            }
         })
         .collect();
     let corrected = jacob::fit_steps(&corrected_steps, opts.weighting, opts.confidence)?;
@@ -224,7 +238,11 @@ mod tests {
     /// `scipy.special.exp1` (scipy 1.17.1) at 2.5e-5, 1e-3, 0.5.
     #[test]
     fn steptest_exp1_matches_scipy() {
-        for (u, want) in [(2.5e-5, 10.01944406803829), (1e-3, 6.331539364136149), (0.5, 0.5597735947761608)] {
+        for (u, want) in [
+            (2.5e-5, 10.01944406803829),
+            (1e-3, 6.331539364136149),
+            (0.5, 0.5597735947761608),
+        ] {
             assert!((exp1(u) / want - 1.0).abs() < 1e-14, "{u}: {}", exp1(u));
         }
     }
@@ -245,11 +263,19 @@ mod tests {
                 for (i, &qi) in rates[..=n].iter().enumerate() {
                     let el = t - i as f64 * dur;
                     let u = rw * rw * s_aq / (4.0 * t_aq * el);
-                    let w = if theis { exp1(u) } else { (2.25 * t_aq * el / (rw * rw * s_aq)).ln() };
+                    let w = if theis {
+                        exp1(u)
+                    } else {
+                        (2.25 * t_aq * el / (rw * rw * s_aq)).ln()
+                    };
                     s += (qi - prev) / (4.0 * PI * t_aq) * w;
                     prev = qi;
                 }
-                out.push(Sample { time_s: t, rate_m3_s: q, drawdown_m: s });
+                out.push(Sample {
+                    time_s: t,
+                    rate_m3_s: q,
+                    drawdown_m: s,
+                });
             }
         }
         let b = LN_10 / (4.0 * PI * t_aq);
@@ -264,18 +290,42 @@ mod tests {
         let (x, a, b, c) = synthetic(false);
         let r = fit_series(&x, &SeriesOptions::default()).unwrap();
         let rel = |u: f64, v: f64| (u / v - 1.0).abs();
-        assert!(rel(r.series.a.value, a) < 1e-10, "a {} vs {a}", r.series.a.value);
-        assert!(rel(r.series.b.value, b) < 1e-10, "b {} vs {b}", r.series.b.value);
-        assert!(rel(r.series.c.value, c) < 1e-9, "C {} vs {c}", r.series.c.value);
+        assert!(
+            rel(r.series.a.value, a) < 1e-10,
+            "a {} vs {a}",
+            r.series.a.value
+        );
+        assert!(
+            rel(r.series.b.value, b) < 1e-10,
+            "b {} vs {b}",
+            r.series.b.value
+        );
+        assert!(
+            rel(r.series.c.value, c) < 1e-9,
+            "C {} vs {c}",
+            r.series.c.value
+        );
         assert!(rel(r.series.transmissivity_m2_s, 5e-3) < 1e-10);
         assert_eq!(r.reference_time_s, 3600.0);
         let b_ref = a + b * 3600f64.log10();
         assert!(rel(r.b_series.value, b_ref) < 1e-10);
-        assert!(rel(r.corrected.fit.b.value, b_ref) < 1e-10, "{}", r.corrected.fit.b.value);
-        assert!(rel(r.corrected.fit.c.value, c) < 1e-9, "{}", r.corrected.fit.c.value);
+        assert!(
+            rel(r.corrected.fit.b.value, b_ref) < 1e-10,
+            "{}",
+            r.corrected.fit.b.value
+        );
+        assert!(
+            rel(r.corrected.fit.c.value, c) < 1e-9,
+            "{}",
+            r.corrected.fit.c.value
+        );
         // The steps are not at equilibrium: the uncorrected end-of-step line is biased.
         let plain = jacob::fit_line(&r.measured, Weighting::Equal, 0.95).unwrap();
-        assert!(rel(plain.c.value, c) > 0.05, "uncorrected C {}", plain.c.value);
+        assert!(
+            rel(plain.c.value, c) > 0.05,
+            "uncorrected C {}",
+            plain.c.value
+        );
     }
 
     /// Theis data: W(u) = −γ − ln u + O(u), and u = r_w² S / (4 T t) ≤ 1.3e-7 over the
@@ -290,10 +340,22 @@ mod tests {
         let a = a_rounded + b * (4.0 * (-EULER_GAMMA).exp() / 2.25).log10();
         let r = fit_series(&x, &SeriesOptions::default()).unwrap();
         let rel = |u: f64, v: f64| (u / v - 1.0).abs();
-        assert!(rel(r.series.b.value, b) < 1e-6, "b {} vs {b}", r.series.b.value);
-        assert!(rel(r.series.a.value, a) < 1e-6, "a {} vs {a}", r.series.a.value);
+        assert!(
+            rel(r.series.b.value, b) < 1e-6,
+            "b {} vs {b}",
+            r.series.b.value
+        );
+        assert!(
+            rel(r.series.a.value, a) < 1e-6,
+            "a {} vs {a}",
+            r.series.a.value
+        );
         assert!(rel(r.corrected.fit.b.value, a + b * 3600f64.log10()) < 1e-6);
-        assert!(rel(r.corrected.fit.c.value, c) < 1e-6, "C {}", r.corrected.fit.c.value);
+        assert!(
+            rel(r.corrected.fit.c.value, c) < 1e-6,
+            "C {}",
+            r.corrected.fit.c.value
+        );
     }
 
     /// Seeded noise, σ = 1 cm on every reading: the 95 % intervals of the corrected line
@@ -305,11 +367,22 @@ mod tests {
         for s in &mut x {
             s.drawdown_m += 0.01 * rng.normal();
         }
-        let opts = SeriesOptions { weighting: Weighting::Drawdown, ..SeriesOptions::default() };
+        let opts = SeriesOptions {
+            weighting: Weighting::Drawdown,
+            ..SeriesOptions::default()
+        };
         let r = fit_series(&x, &opts).unwrap();
         let b_ref = a + b * 3600f64.log10();
-        assert!(r.corrected.fit.b.contains(b_ref), "{:?} vs {b_ref}", r.corrected.fit.b);
-        assert!(r.corrected.fit.c.contains(c), "{:?} vs {c}", r.corrected.fit.c);
+        assert!(
+            r.corrected.fit.b.contains(b_ref),
+            "{:?} vs {b_ref}",
+            r.corrected.fit.b
+        );
+        assert!(
+            r.corrected.fit.c.contains(c),
+            "{:?} vs {c}",
+            r.corrected.fit.c
+        );
         assert!(r.series.b.contains(b), "{:?} vs {b}", r.series.b);
         assert!(r.series.c.contains(c), "{:?} vs {c}", r.series.c);
         assert!(r.b_series.contains(b_ref), "{:?}", r.b_series);
@@ -324,7 +397,10 @@ mod tests {
     fn steptest_hantush_interval_coverage_near_95_percent() {
         let (clean, a, b, c) = synthetic(false);
         let b_ref = a + b * 3600f64.log10();
-        let opts = SeriesOptions { weighting: Weighting::Drawdown, ..SeriesOptions::default() };
+        let opts = SeriesOptions {
+            weighting: Weighting::Drawdown,
+            ..SeriesOptions::default()
+        };
         let mut rng = Rng::new(21);
         let (mut hit_b, mut hit_c) = (0, 0);
         let mut x = clean.clone();
@@ -345,9 +421,15 @@ mod tests {
         let (x, ..) = synthetic(false);
         let e = fit_series(&x[..120], &SeriesOptions::default()).unwrap_err();
         assert_eq!(e, StepTestError::TooFewSteps { steps: 2 });
-        let bad = SeriesOptions { skip_fraction: 1.0, ..SeriesOptions::default() };
+        let bad = SeriesOptions {
+            skip_fraction: 1.0,
+            ..SeriesOptions::default()
+        };
         assert!(fit_series(&x, &bad).is_err());
-        let bad = SeriesOptions { reference_time_s: Some(-1.0), ..SeriesOptions::default() };
+        let bad = SeriesOptions {
+            reference_time_s: Some(-1.0),
+            ..SeriesOptions::default()
+        };
         assert!(fit_series(&x, &bad).is_err());
     }
 }

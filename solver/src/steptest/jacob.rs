@@ -104,8 +104,15 @@ pub fn fit_line(
         Weighting::Drawdown => (q / q_max).powi(2),
     };
     let w_sum: f64 = steps.iter().map(|s| weight(s.rate_m3_s)).sum();
-    let x_mean = steps.iter().map(|s| weight(s.rate_m3_s) * s.rate_m3_s).sum::<f64>() / w_sum;
-    let y_mean = steps.iter().map(|s| weight(s.rate_m3_s) * s.drawdown_m / s.rate_m3_s).sum::<f64>()
+    let x_mean = steps
+        .iter()
+        .map(|s| weight(s.rate_m3_s) * s.rate_m3_s)
+        .sum::<f64>()
+        / w_sum;
+    let y_mean = steps
+        .iter()
+        .map(|s| weight(s.rate_m3_s) * s.drawdown_m / s.rate_m3_s)
+        .sum::<f64>()
         / w_sum;
     let (mut sxx, mut sxy) = (0.0, 0.0);
     for s in steps {
@@ -148,7 +155,11 @@ pub fn fit_steps(
 ) -> Result<JacobAnalysis, StepTestError> {
     let fit = fit_line(steps, weighting, confidence)?;
     let figures = super::step_figures(steps, &fit);
-    Ok(JacobAnalysis { steps: steps.to_vec(), fit, figures })
+    Ok(JacobAnalysis {
+        steps: steps.to_vec(),
+        fit,
+        figures,
+    })
 }
 
 #[cfg(test)]
@@ -157,7 +168,13 @@ mod tests {
     use crate::steptest::testutil::Rng;
 
     fn steps_from(b: f64, c: f64, rates: &[f64]) -> Vec<Step> {
-        rates.iter().map(|&q| Step { rate_m3_s: q, drawdown_m: b * q + c * q * q }).collect()
+        rates
+            .iter()
+            .map(|&q| Step {
+                rate_m3_s: q,
+                drawdown_m: b * q + c * q * q,
+            })
+            .collect()
     }
 
     /// docs/physics.md §9d synthetic check: B = 100 s/m², C = 2000 s²/m⁵ at
@@ -169,14 +186,29 @@ mod tests {
     fn steptest_jacob_exact_data_recovered_to_round_off() {
         let steps: Vec<Step> = [(0.005, 0.55), (0.010, 1.20), (0.015, 1.95), (0.020, 2.80)]
             .iter()
-            .map(|&(q, s)| Step { rate_m3_s: q, drawdown_m: s })
+            .map(|&(q, s)| Step {
+                rate_m3_s: q,
+                drawdown_m: s,
+            })
             .collect();
         for w in [Weighting::Equal, Weighting::Drawdown] {
             let a = fit_steps(&steps, w, 0.95).unwrap();
-            assert!((a.fit.b.value / 100.0 - 1.0).abs() < 1e-12, "{w:?} B {}", a.fit.b.value);
-            assert!((a.fit.c.value / 2000.0 - 1.0).abs() < 1e-12, "{w:?} C {}", a.fit.c.value);
+            assert!(
+                (a.fit.b.value / 100.0 - 1.0).abs() < 1e-12,
+                "{w:?} B {}",
+                a.fit.b.value
+            );
+            assert!(
+                (a.fit.c.value / 2000.0 - 1.0).abs() < 1e-12,
+                "{w:?} C {}",
+                a.fit.c.value
+            );
             assert!(a.fit.b.std_error < 1e-9 && a.fit.c.std_error < 1e-7);
-            for (f, e) in a.figures.iter().zip([0.909091, 0.833333, 0.769231, 0.714286]) {
+            for (f, e) in a
+                .figures
+                .iter()
+                .zip([0.909091, 0.833333, 0.769231, 0.714286])
+            {
                 assert!((f.efficiency - e).abs() < 5e-7, "{}", f.efficiency);
                 assert!((f.linear_loss_m + f.nonlinear_loss_m - f.drawdown_m).abs() < 1e-12);
                 assert!((f.specific_capacity * f.drawdown_per_rate - 1.0).abs() < 1e-15);
@@ -237,20 +269,34 @@ mod tests {
         assert_eq!(e, StepTestError::TooFewSteps { steps: 2 });
         assert!(e.to_string().contains("no degree of freedom"));
         let same = steps_from(100.0, 2000.0, &[0.01, 0.01, 0.01]);
-        assert_eq!(fit_line(&same, Weighting::Equal, 0.95), Err(StepTestError::SameRates));
+        assert_eq!(
+            fit_line(&same, Weighting::Equal, 0.95),
+            Err(StepTestError::SameRates)
+        );
         let mut bad = steps_from(100.0, 2000.0, &[0.01, 0.02, 0.03]);
         bad[1].rate_m3_s = 0.0;
         assert!(matches!(
             fit_line(&bad, Weighting::Equal, 0.95),
-            Err(StepTestError::BadStep { step: 2, field: "rate", .. })
+            Err(StepTestError::BadStep {
+                step: 2,
+                field: "rate",
+                ..
+            })
         ));
         bad[1].rate_m3_s = 0.02;
         bad[2].drawdown_m = f64::NAN;
         assert!(matches!(
             fit_line(&bad, Weighting::Equal, 0.95),
-            Err(StepTestError::BadStep { step: 3, field: "drawdown", .. })
+            Err(StepTestError::BadStep {
+                step: 3,
+                field: "drawdown",
+                ..
+            })
         ));
         bad[2].drawdown_m = 1.0;
-        assert_eq!(fit_line(&bad, Weighting::Equal, 1.0), Err(StepTestError::BadConfidence(1.0)));
+        assert_eq!(
+            fit_line(&bad, Weighting::Equal, 1.0),
+            Err(StepTestError::BadConfidence(1.0))
+        );
     }
 }

@@ -24,12 +24,18 @@ pub struct Solution {
 pub fn solve(cols: &[Vec<f64>], y: &[f64]) -> Option<Solution> {
     let k = cols.len();
     let m = y.len();
-    let scale: Vec<f64> = cols.iter().map(|c| c.iter().map(|v| v * v).sum::<f64>().sqrt()).collect();
+    let scale: Vec<f64> = cols
+        .iter()
+        .map(|c| c.iter().map(|v| v * v).sum::<f64>().sqrt())
+        .collect();
     if scale.iter().any(|&s| !(s > 0.0 && s.is_finite())) {
         return None;
     }
-    let mut q: Vec<Vec<f64>> =
-        cols.iter().zip(&scale).map(|(c, s)| c.iter().map(|v| v / s).collect()).collect();
+    let mut q: Vec<Vec<f64>> = cols
+        .iter()
+        .zip(&scale)
+        .map(|(c, s)| c.iter().map(|v| v / s).collect())
+        .collect();
     let mut r = vec![0.0; k * k];
     for j in 0..k {
         for _pass in 0..2 {
@@ -51,7 +57,10 @@ pub fn solve(cols: &[Vec<f64>], y: &[f64]) -> Option<Solution> {
         }
     }
     // β' = R⁻¹ Qᵀ y for the scaled columns; β = β' / scale.
-    let qty: Vec<f64> = q.iter().map(|c| c.iter().zip(y).map(|(a, b)| a * b).sum()).collect();
+    let qty: Vec<f64> = q
+        .iter()
+        .map(|c| c.iter().zip(y).map(|(a, b)| a * b).sum())
+        .collect();
     let mut beta = vec![0.0; k];
     for i in (0..k).rev() {
         let s: f64 = (i + 1..k).map(|j| r[i * k + j] * beta[j]).sum();
@@ -91,7 +100,11 @@ mod tests {
     /// (XᵀX)⁻¹ = [[5/6, −1/2], [−1/2, 1/2]] (normal equations [[3, 3], [3, 5]]).
     #[test]
     fn steptest_lsq_small_line_by_hand() {
-        let sol = solve(&[vec![1.0, 1.0, 1.0], vec![0.0, 1.0, 2.0]], &[1.0, 3.0, 4.0]).unwrap();
+        let sol = solve(
+            &[vec![1.0, 1.0, 1.0], vec![0.0, 1.0, 2.0]],
+            &[1.0, 3.0, 4.0],
+        )
+        .unwrap();
         assert!((sol.coef[0] - 7.0 / 6.0).abs() < 1e-14);
         assert!((sol.coef[1] - 1.5).abs() < 1e-14);
         assert!((sol.rss - 1.0 / 6.0).abs() < 1e-14);
@@ -99,6 +112,10 @@ mod tests {
         for (a, b) in sol.xtx_inv.iter().zip(want) {
             assert!((a - b).abs() < 1e-14, "{a} {b}");
         }
-        assert!(solve(&[vec![1.0, 2.0, 3.0], vec![2.0, 4.0, 6.0]], &[1.0, 2.0, 3.0]).is_none());
+        assert!(solve(
+            &[vec![1.0, 2.0, 3.0], vec![2.0, 4.0, 6.0]],
+            &[1.0, 2.0, 3.0]
+        )
+        .is_none());
     }
 }

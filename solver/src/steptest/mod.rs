@@ -79,7 +79,12 @@ pub struct Estimate {
 
 impl Estimate {
     fn new(value: f64, std_error: f64, t: f64) -> Self {
-        Self { value, std_error, lower: value - t * std_error, upper: value + t * std_error }
+        Self {
+            value,
+            std_error,
+            lower: value - t * std_error,
+            upper: value + t * std_error,
+        }
     }
 
     /// Whether `x` lies inside the interval (ends included).

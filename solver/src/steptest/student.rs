@@ -64,7 +64,10 @@ pub fn cdf(t: f64, dof: u32) -> f64 {
 /// the bracket no longer shrinks, so the result is as accurate as the series (about 1e-15
 /// relative for the two-sided 95 % point; see the tests).
 pub fn quantile(p: f64, dof: u32) -> f64 {
-    assert!(p > 0.0 && p < 1.0, "quantile probability {p} outside (0, 1)");
+    assert!(
+        p > 0.0 && p < 1.0,
+        "quantile probability {p} outside (0, 1)"
+    );
     assert!(dof >= 1, "Student t needs at least one degree of freedom");
     if p < 0.5 {
         return -quantile(1.0 - p, dof);
@@ -125,9 +128,17 @@ mod tests {
             (100, 1.9839715185235518, 1.6602343260853392),
         ];
         for (nu, q975, q95) in table {
-            assert!(rel(quantile(0.975, nu), q975) < 1e-12, "nu {nu}: {}", quantile(0.975, nu));
+            assert!(
+                rel(quantile(0.975, nu), q975) < 1e-12,
+                "nu {nu}: {}",
+                quantile(0.975, nu)
+            );
             assert!(rel(two_sided(0.95, nu), q975) < 1e-12, "nu {nu}");
-            assert!(rel(quantile(0.95, nu), q95) < 1e-12, "nu {nu}: {}", quantile(0.95, nu));
+            assert!(
+                rel(quantile(0.95, nu), q95) < 1e-12,
+                "nu {nu}: {}",
+                quantile(0.95, nu)
+            );
             assert!(rel(quantile(0.025, nu), -q975) < 1e-12, "nu {nu}");
         }
     }
