@@ -37,7 +37,7 @@ pub fn steptest(a: &SteptestArgs) -> Result<(), Failure> {
         Some(t) => {
             let v = parse_quantity(&serde_json::Value::String(t.clone()), Quantity::Time)
                 .map_err(|e| Failure::Input(anyhow!("--at: {e}")))?;
-            if !(v > 0.0) {
+            if v.is_nan() || v <= 0.0 {
                 return Err(Failure::Input(anyhow!(
                     "--at: {t} must be a time above zero"
                 )));

@@ -64,7 +64,7 @@ pub fn chart(o: &Outcome) -> String {
     );
     c.x_factor = 1e3;
     c.series.push(Series {
-        label: format!("fitted s/Q = B + C Q"),
+        label: "fitted s/Q = B + C Q".to_owned(),
         x: &x,
         y: &line,
         style: FITTED,
@@ -190,10 +190,10 @@ pub fn page(o: &Outcome, source: &str) -> String {
     if o.series.is_some() {
         h.push_str("<th>s corrected [m]</th>");
     }
-    let _ = write!(
+    let _ = writeln!(
         h,
         "<th>s/Q [s/m²]</th><th>Q/s [L/s/m]</th><th>B Q [m]</th><th>C Q² [m]</th>\
-         <th>linear share</th><th>non-linear share</th><th>E ± {pct:.0} %</th></tr></thead><tbody>\n"
+         <th>linear share</th><th>non-linear share</th><th>E ± {pct:.0} %</th></tr></thead><tbody>"
     );
     for (i, (g, m)) in o.figures.iter().zip(&o.measured_m).enumerate() {
         let _ = write!(

@@ -38,17 +38,19 @@ pub fn solve(cols: &[Vec<f64>], y: &[f64]) -> Option<Solution> {
         .collect();
     let mut r = vec![0.0; k * k];
     for j in 0..k {
+        let (done, rest) = q.split_at_mut(j);
+        let qj = &mut rest[0];
         for _pass in 0..2 {
-            for i in 0..j {
-                let d: f64 = (0..m).map(|p| q[i][p] * q[j][p]).sum();
+            for (i, qi) in done.iter().enumerate() {
+                let d: f64 = qi.iter().zip(qj.iter()).map(|(a, b)| a * b).sum();
                 r[i * k + j] += d;
-                for p in 0..m {
-                    q[j][p] -= d * q[i][p];
+                for (a, b) in qj.iter_mut().zip(qi) {
+                    *a -= d * b;
                 }
             }
         }
-        let norm = q[j].iter().map(|v| v * v).sum::<f64>().sqrt();
-        if !(norm > 1e-10) {
+        let norm = qj.iter().map(|v| v * v).sum::<f64>().sqrt();
+        if norm.is_nan() || norm <= 1e-10 {
             return None;
         }
         r[j * k + j] = norm;
