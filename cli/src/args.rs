@@ -185,9 +185,9 @@ name is SI. Lines starting with # are comments. At least 3 steps are needed: 2 s
 and C exactly and leave nothing to estimate their uncertainty from.
 
 Examples:
-  boreflux steptest cases/step-test-demo.csv
-  boreflux steptest cases/step-test-demo.csv --json > steptest.json
-  boreflux steptest cases/step-test-steps.csv -o out/steptest.html --force";
+  boreflux steptest cases/step-tests/demo-series.csv
+  boreflux steptest cases/step-tests/demo-series.csv --json > steptest.json
+  boreflux steptest cases/step-tests/demo-steps.csv -o out/steptest.html --force";
 
 /// Arguments of `steptest`.
 #[derive(Debug, clap::Args)]

@@ -44,8 +44,8 @@ fn stderr_of_failure(args: &[&str], code: i32) -> String {
 #[test]
 fn steptest_good_files_print_table() {
     for (file, method) in [
-        ("step-test-demo.csv", "Hantush–Bierschenk"),
-        ("step-test-steps.csv", "Jacob"),
+        ("step-tests/demo-series.csv", "Hantush–Bierschenk"),
+        ("step-tests/demo-steps.csv", "Jacob"),
     ] {
         let path = cases_dir().join(file);
         let out = boreflux().arg("steptest").arg(&path).output().unwrap();
@@ -108,7 +108,7 @@ fn steptest_json_recovers_exact_b_and_c() {
 /// B(60 min) and C must hold the true values, and T must come back within 5 %.
 #[test]
 fn steptest_json_demo_series_intervals_hold_true_values() {
-    let demo = cases_dir().join("step-test-demo.csv");
+    let demo = cases_dir().join("step-tests/demo-series.csv");
     let v = json_of(&["steptest", demo.to_str().unwrap(), "--json"]);
     assert_eq!(v["method"], "hantush-bierschenk");
     let (t, s, rw) = (4e-3_f64, 2e-4_f64, 0.1_f64);
@@ -198,7 +198,7 @@ fn steptest_two_steps_refused_with_reason() {
 fn steptest_html_written_whole_and_not_overwritten_without_force() {
     let dir = tempfile::tempdir().unwrap();
     let out = dir.path().join("st.html");
-    let demo = cases_dir().join("step-test-demo.csv");
+    let demo = cases_dir().join("step-tests/demo-series.csv");
     let args = [
         "steptest",
         demo.to_str().unwrap(),
