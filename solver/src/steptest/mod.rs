@@ -25,6 +25,7 @@
 
 pub mod hantush;
 pub mod jacob;
+pub mod rorabaugh;
 mod lsq;
 pub mod series;
 pub mod student;
