@@ -221,6 +221,9 @@ pub struct SteptestArgs {
     /// default: the shortest step.
     #[arg(long, value_name = "TIME")]
     pub at: Option<String>,
+    /// Also fit the power law s = B Q + C Q^n (Rorabaugh) to the same steps (4 or more).
+    #[arg(long)]
+    pub power: bool,
 }
 
 /// Weighting of the step line (see `--weights`).

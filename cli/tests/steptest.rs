@@ -133,6 +133,44 @@ fn steptest_json_demo_series_intervals_hold_true_values() {
     assert_eq!(v["series"]["reference_time_s"].as_f64().unwrap(), 1800.0);
 }
 
+/// `--power` on the exact docs/physics.md §9d data (s = B Q + C Q², B = 100, C = 2000):
+/// the power law must find n = 2, B = 100, C = 2000 (1e-6 relative: golden-section search
+/// in n), and on three steps it must say that four are needed.
+#[test]
+fn steptest_power_law_on_exact_data() {
+    let dir = tempfile::tempdir().unwrap();
+    let f = write(
+        dir.path(),
+        "exact.csv",
+        "rate_L/s,drawdown_cm\n5,55\n10,120\n15,195\n20,280\n",
+    );
+    let v = json_of(&["steptest", f.to_str().unwrap(), "--json", "--power"]);
+    let p = &v["power"];
+    assert!(
+        (p["n"]["value"].as_f64().unwrap() / 2.0 - 1.0).abs() < 1e-6,
+        "{p}"
+    );
+    assert!(
+        (p["B"]["value"].as_f64().unwrap() / 100.0 - 1.0).abs() < 1e-6,
+        "{p}"
+    );
+    assert!(
+        (p["C"]["value"].as_f64().unwrap() / 2000.0 - 1.0).abs() < 1e-6,
+        "{p}"
+    );
+    let f = write(
+        dir.path(),
+        "three.csv",
+        "rate_L/s,drawdown_cm\n5,55\n10,120\n15,195\n",
+    );
+    let v = json_of(&["steptest", f.to_str().unwrap(), "--json", "--power"]);
+    assert!(
+        v["power"]["error"].as_str().unwrap().contains("at least 4"),
+        "{v}"
+    );
+    assert!(v["B"]["value"].is_number(), "the Jacob fit is still made");
+}
+
 #[test]
 fn steptest_bad_header_names_the_column() {
     let dir = tempfile::tempdir().unwrap();

@@ -57,6 +57,7 @@ pub fn steptest(a: &SteptestArgs) -> Result<(), Failure> {
         confidence: a.confidence,
         skip_fraction: a.skip,
         reference_time_s,
+        power: a.power,
     };
     let outcome = analyse(&data, &opts).map_err(input)?;
 

@@ -171,6 +171,21 @@ pub fn page(o: &Outcome, source: &str) -> String {
             sig(sf.transmissivity_m2_s)
         );
     }
+    match &o.power {
+        None => {}
+        Some(Err(e)) => {
+            let _ = writeln!(
+                h,
+                "<tr><th>power law s = B Q + C Qⁿ</th><td colspan=\"4\">not fitted: {}</td></tr>",
+                esc(e)
+            );
+        }
+        Some(Ok(p)) => {
+            estimate_row(&mut h, "n (power law, linearised)", &p.n, "-");
+            estimate_row(&mut h, "B (power law)", &p.b, "s/m²");
+            estimate_row(&mut h, "C (power law)", &p.c, "s^n/m^(3n−1)");
+        }
+    }
     h.push_str("</tbody></table>\n");
     let _ = writeln!(
         h,

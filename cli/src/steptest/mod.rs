@@ -6,8 +6,9 @@ pub mod text;
 
 use boreflux_solver::steptest::hantush::{self, HantushAnalysis, SeriesOptions};
 use boreflux_solver::steptest::jacob::{self, LineFit};
+use boreflux_solver::steptest::rorabaugh::{self, PowerFit};
 use boreflux_solver::steptest::series;
-use boreflux_solver::steptest::{StepFigures, StepTestError, Weighting};
+use boreflux_solver::steptest::{Step, StepFigures, StepTestError, Weighting};
 use read::StepData;
 
 /// Which analysis to run.
@@ -34,6 +35,8 @@ pub struct Options {
     pub skip_fraction: f64,
     /// Common elapsed time [s], or the shortest step.
     pub reference_time_s: Option<f64>,
+    /// Also fit s = B Q + C Qⁿ (Rorabaugh).
+    pub power: bool,
 }
 
 /// The result of either method, in the form the outputs need.
@@ -49,6 +52,26 @@ pub struct Outcome {
     pub measured_m: Vec<f64>,
     /// The series fit, for Hantush–Bierschenk.
     pub series: Option<HantushAnalysis>,
+    /// The power-law fit when asked for: the fit, or why it could not be made.
+    pub power: Option<Result<PowerFit, String>>,
+}
+
+impl Outcome {
+    fn with_power(mut self, asked: bool) -> Self {
+        if asked {
+            let steps: Vec<Step> = self
+                .figures
+                .iter()
+                .map(|g| Step {
+                    rate_m3_s: g.rate_m3_s,
+                    drawdown_m: g.drawdown_m,
+                })
+                .collect();
+            self.power =
+                Some(rorabaugh::fit_power(&steps, self.fit.confidence).map_err(|e| e.to_string()));
+        }
+        self
+    }
 }
 
 /// Runs the analysis. Errors are bad input (exit 2); they name the file line where a step
@@ -81,7 +104,9 @@ pub fn analyse(data: &StepData, opts: &Options) -> Result<Outcome, String> {
                 fit: a.fit,
                 figures: a.figures,
                 series: None,
-            })
+                power: None,
+            }
+            .with_power(opts.power))
         }
         (StepData::Series { samples, .. }, Method::Jacob) => {
             let spans = series::split_steps(samples).map_err(locate)?;
@@ -93,7 +118,9 @@ pub fn analyse(data: &StepData, opts: &Options) -> Result<Outcome, String> {
                 fit: a.fit,
                 figures: a.figures,
                 series: None,
-            })
+                power: None,
+            }
+            .with_power(opts.power))
         }
         (StepData::Series { samples, .. }, Method::Auto | Method::Hantush) => {
             let o = SeriesOptions {
@@ -109,7 +136,9 @@ pub fn analyse(data: &StepData, opts: &Options) -> Result<Outcome, String> {
                 fit: a.corrected.fit.clone(),
                 figures: a.corrected.figures.clone(),
                 series: Some(a),
-            })
+                power: None,
+            }
+            .with_power(opts.power))
         }
     }
 }

@@ -138,6 +138,21 @@ pub fn table(o: &Outcome) -> String {
             sig(sf.transmissivity_m2_s)
         );
     }
+    match &o.power {
+        None => {}
+        Some(Err(e)) => s += &format!("\n  Power law s = B Q + C Q^n not fitted: {e}\n"),
+        Some(Ok(p)) => {
+            s += &format!(
+                "\n  Power law s = B Q + C Q^n (Rorabaugh; {} degrees of freedom, residual {} m, \
+                 linearised intervals):\n",
+                p.dof,
+                sig(p.residual_std_m)
+            );
+            s += &estimate_line("  n", &p.n, "", pct);
+            s += &estimate_line("  B", &p.b, "s/m²", pct);
+            s += &estimate_line("  C", &p.c, "s^n/m^(3n-1)", pct);
+        }
+    }
     s += &format!("\n{EFFICIENCY_DEFINITION}\n{INTERVAL_NOTE}\n");
     s += "CAUTION: a step test describes the well at the rates tested; do not extrapolate \
           far beyond the largest step. Pumping rates and levels must respect the pump, \
@@ -189,6 +204,20 @@ pub fn to_json(o: &Outcome) -> Value {
         "efficiency_definition": EFFICIENCY_DEFINITION,
         "steps": steps,
     });
+    match &o.power {
+        None => {}
+        Some(Err(e)) => v["power"] = json!({ "error": e }),
+        Some(Ok(p)) => {
+            v["power"] = json!({
+                "law": "s = B Q + C Q^n",
+                "dof": p.dof,
+                "residual_std_m": p.residual_std_m,
+                "n": est_json(&p.n, ""),
+                "B": est_json(&p.b, "s/m2"),
+                "C": est_json(&p.c, "s^n/m^(3n-1)"),
+            })
+        }
+    }
     if let Some(h) = &o.series {
         let sf = &h.series;
         v["series"] = json!({

@@ -25,8 +25,8 @@
 
 pub mod hantush;
 pub mod jacob;
-pub mod rorabaugh;
 mod lsq;
+pub mod rorabaugh;
 pub mod series;
 pub mod student;
 

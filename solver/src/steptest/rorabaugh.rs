@@ -130,7 +130,13 @@ mod tests {
     use crate::steptest::Weighting;
 
     fn steps(b: f64, c: f64, n: f64, rates: &[f64]) -> Vec<Step> {
-        rates.iter().map(|&q| Step { rate_m3_s: q, drawdown_m: b * q + c * q.powf(n) }).collect()
+        rates
+            .iter()
+            .map(|&q| Step {
+                rate_m3_s: q,
+                drawdown_m: b * q + c * q.powf(n),
+            })
+            .collect()
     }
 
     const RATES: [f64; 6] = [0.004, 0.008, 0.012, 0.016, 0.020, 0.024];
@@ -160,8 +166,43 @@ mod tests {
         let j = fit_line(&st, Weighting::Drawdown, 0.95).unwrap();
         assert!(f.n.contains(2.0), "n {:?}", f.n);
         assert!(f.b.contains(120.0), "B {:?}", f.b);
-        assert!(f.b.contains(j.b.value), "B {:?} vs Jacob {}", f.b, j.b.value);
+        assert!(
+            f.b.contains(j.b.value),
+            "B {:?} vs Jacob {}",
+            f.b,
+            j.b.value
+        );
         assert_eq!(f.dof, 3);
+    }
+
+    /// Coverage over 200 seeded tests (six steps, n = 2.5, σ = 1 cm on s): the linearised
+    /// 95 % intervals of B, C and n. Accepted 179 ≤ count ≤ 199, the binomial bound of the
+    /// Jacob coverage test (`scipy.stats.binom(200, 0.95)`: cdf(178) = 4.8e-4, sf(199) =
+    /// 3.5e-5); a failure here would mean the linearisation is too crude for this design.
+    #[test]
+    fn steptest_rorabaugh_interval_coverage() {
+        let clean = steps(100.0, 2e4, 2.5, &RATES);
+        let mut rng = Rng::new(31);
+        let mut hits = [0usize; 3];
+        let mut refused = 0;
+        for _ in 0..200 {
+            let mut st = clean.clone();
+            for s in &mut st {
+                s.drawdown_m += 0.01 * rng.normal();
+            }
+            match fit_power(&st, 0.95) {
+                Ok(f) => {
+                    hits[0] += usize::from(f.b.contains(100.0));
+                    hits[1] += usize::from(f.c.contains(2e4));
+                    hits[2] += usize::from(f.n.contains(2.5));
+                }
+                Err(_) => refused += 1,
+            }
+        }
+        assert_eq!(refused, 0);
+        for h in hits {
+            assert!((179..=199).contains(&h), "covered {hits:?}/200");
+        }
     }
 
     #[test]
@@ -171,6 +212,9 @@ mod tests {
         // Purely linear drawdown: no exponent is better than another.
         let lin = steps(100.0, 0.0, 2.0, &RATES);
         // Every n fits exactly (C = 0), so the search cannot single one out and must refuse.
-        assert!(matches!(fit_power(&lin, 0.95), Err(StepTestError::Underdetermined(_))));
+        assert!(matches!(
+            fit_power(&lin, 0.95),
+            Err(StepTestError::Underdetermined(_))
+        ));
     }
 }
