@@ -18,6 +18,8 @@
 //! - [`hantush::fit_series`]: the whole time series of a test whose steps are not at
 //!   equilibrium (Hantush 1964; Bierschenk 1963). The drawdown of each step is corrected
 //!   to a common elapsed time with the Cooper–Jacob straight line, then fitted as above.
+//! - [`rorabaugh::fit_power`]: the generalised law s = B Q + C Qⁿ (Rorabaugh 1953) on four
+//!   or more steps, with linearised intervals.
 //!
 //! Everything is in SI: rates in m³/s, drawdowns in m, times in s. Nothing here reads or
 //! writes files. The formulas, their sources and the meaning of the intervals are written

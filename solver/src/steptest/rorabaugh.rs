@@ -4,7 +4,7 @@
 //! ```text
 //! minimise  Σ (s_j − B Q_j − C Q_jⁿ)²  over B, C, n
 //! for fixed n the problem is linear in (B, C): RSS(n) is minimised over n in [1.1, 4]
-//! (a grid of 120 values, then golden-section search around the best one)
+//! (a grid of 121 values, then golden-section search around the best one)
 //! covariance ≈ σ̂² (JᵀJ)⁻¹,  J = [Q, Qⁿ, C Qⁿ ln Q],  σ̂² = RSS / (m − 3)
 //! interval: value ± t_{(1+γ)/2, m−3} · standard error
 //! ```
