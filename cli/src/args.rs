@@ -214,7 +214,8 @@ pub struct SteptestArgs {
     /// Confidence level of the intervals.
     #[arg(long, default_value_t = 0.95)]
     pub confidence: f64,
-    /// Time series: fraction of each step left out of the series fit at its start.
+    /// Time series: fraction of each step left out of the series fit at its start (0.25 is
+    /// an assumption; raise it when well-bore storage lasts longer).
     #[arg(long, default_value_t = 0.25)]
     pub skip: f64,
     /// Time series: common pumping time the steps are corrected to, with a unit ("60 min");

@@ -52,6 +52,9 @@ pub struct SeriesOptions {
     pub reference_time_s: Option<f64>,
 }
 
+/// Defaults: equal weights and 95 % intervals (common practice, no source); a quarter of
+/// each step skipped (assumption: calibrate to the well-bore storage time of the well, which
+/// this module does not know); Δt the shortest step.
 impl Default for SeriesOptions {
     fn default() -> Self {
         Self {

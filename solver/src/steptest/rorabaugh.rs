@@ -19,8 +19,11 @@
 use super::jacob::check_steps;
 use super::{lsq, student, Estimate, Step, StepTestError};
 
-/// Range of the exponent searched.
+/// Range of the exponent searched. Assumption: wider than the 1.5–3.5 that practice texts
+/// quote for Rorabaugh's exponent (docs/practice.md §4), so that such values are not cut off.
 pub const N_RANGE: (f64, f64) = (1.1, 4.0);
+/// Grid intervals over [`N_RANGE`] before the golden-section search (assumption: fine enough
+/// that RSS(n) has one minimum per interval for smooth step data; 0.024 in n).
 const GRID: usize = 120;
 
 /// The fitted law s = B Q + C Qⁿ.
