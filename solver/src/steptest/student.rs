@@ -143,6 +143,21 @@ mod tests {
         }
     }
 
+    /// Many degrees of freedom (a long time series): `scipy.stats.t.ppf(0.975, 1000)` =
+    /// 1.9623390808264083 and `scipy.stats.t.ppf(0.975, 100000)` = 1.9599877075346095
+    /// (scipy 1.17.1). The series then has ν/2 terms whose round-off adds up; tolerance
+    /// 1e-10 relative.
+    #[test]
+    fn steptest_student_quantiles_many_dof() {
+        assert!(
+            rel(quantile(0.975, 1000), 1.9623390808264083) < 1e-10,
+            "{}",
+            quantile(0.975, 1000)
+        );
+        let q = quantile(0.975, 100_000);
+        assert!(rel(q, 1.9599877075346095) < 1e-10, "{q}");
+    }
+
     /// `scipy.stats.t.cdf(1.5, nu)` (scipy 1.17.1); 0.896 for ν = 4 is exact
     /// (F = ½ + ½ · 1.5/√6.25 · (1 + ½ · 4/6.25) = 0.896).
     #[test]
