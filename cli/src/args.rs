@@ -54,6 +54,10 @@ pub enum Command {
     /// Run the built-in verification against analytic and published solutions.
     #[command(after_help = "Example:\n  boreflux verify --json > verification.json")]
     Verify(VerifyArgs),
+    /// Fit the well-loss coefficients B and C of a field step-drawdown test (CSV), with
+    /// confidence intervals.
+    #[command(after_help = STEPTEST_HELP)]
+    Steptest(SteptestArgs),
     /// Print a starter case file.
     #[command(
         after_help = "Examples:\n  boreflux new > my-case.json\n  boreflux new --scenario domestic-fine-sand-pvc > domestic.json\n  boreflux new --list"
@@ -189,6 +193,68 @@ pub struct ReportArgs {
     /// Replace output files that already exist (without it an existing output is refused).
     #[arg(long)]
     pub force: bool,
+}
+
+const STEPTEST_HELP: &str = "\
+The file is CSV with units in the header, either one row per step or the readings of the
+whole test (time from the start of pumping; a rate change takes effect at the last reading
+at the old rate):
+  rate_L/s,drawdown_m                 (Jacob: drawdown at the end of each step)
+  time_min,rate_L/s,drawdown_m        (Hantush–Bierschenk by default)
+Columns: time_<s|min|h|d>, rate_<m3/s|L/s|m3/h|gpm|...>, drawdown_<m|cm|mm|in|ft>; a bare
+name is SI. Lines starting with # are comments. At least 3 steps are needed: 2 steps fix B
+and C exactly and leave nothing to estimate their uncertainty from.
+
+Examples:
+  boreflux steptest cases/step-tests/demo-series.csv
+  boreflux steptest cases/step-tests/demo-series.csv --json > steptest.json
+  boreflux steptest cases/step-tests/demo-steps.csv -o out/steptest.html --force";
+
+/// Arguments of `steptest`.
+#[derive(Debug, clap::Args)]
+pub struct SteptestArgs {
+    /// Step-test file (CSV, units in the header; see below).
+    pub input: PathBuf,
+    /// Write a self-contained HTML page with the s/Q plot; written to a temporary file and
+    /// renamed when complete.
+    #[arg(short, long)]
+    pub output: Option<PathBuf>,
+    /// Replace the output file if it exists.
+    #[arg(long)]
+    pub force: bool,
+    /// Print the result as JSON (SI units) instead of a table.
+    #[arg(long)]
+    pub json: bool,
+    /// Analysis: auto = Hantush–Bierschenk for a time series, Jacob for one row per step.
+    #[arg(long, value_enum, default_value = "auto")]
+    pub method: crate::steptest::Method,
+    /// Weights of the line s/Q = B + C Q: equal (every step alike), or drawdown (the
+    /// measured drawdown has the same error at every step; weights Q²).
+    #[arg(long, value_enum, default_value = "equal")]
+    pub weights: WeightsArg,
+    /// Confidence level of the intervals.
+    #[arg(long, default_value_t = 0.95)]
+    pub confidence: f64,
+    /// Time series: fraction of each step left out of the series fit at its start (0.25 is
+    /// an assumption; raise it when well-bore storage lasts longer).
+    #[arg(long, default_value_t = 0.25)]
+    pub skip: f64,
+    /// Time series: common pumping time the steps are corrected to, with a unit ("60 min");
+    /// default: the shortest step.
+    #[arg(long, value_name = "TIME")]
+    pub at: Option<String>,
+    /// Also fit the power law s = B Q + C Q^n (Rorabaugh) to the same steps (4 or more).
+    #[arg(long)]
+    pub power: bool,
+}
+
+/// Weighting of the step line (see `--weights`).
+#[derive(Debug, Clone, Copy, PartialEq, Eq, clap::ValueEnum)]
+pub enum WeightsArg {
+    /// Every step counts the same.
+    Equal,
+    /// Weights Q²: the same drawdown error at every step.
+    Drawdown,
 }
 
 /// Arguments of `verify`.

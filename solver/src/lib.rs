@@ -25,6 +25,7 @@ pub mod run;
 pub mod safety;
 pub mod skin;
 pub mod stepper;
+pub mod steptest;
 pub mod system;
 pub mod tridiag;
 pub mod water;

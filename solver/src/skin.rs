@@ -204,7 +204,8 @@ pub fn thiem_specific_capacity(transmissivity: f64, r_outer: f64, rw: f64, skin:
 /// Jacob, C.E., 1947, "Drawdown test to determine effective radius of artesian well",
 /// Trans. ASCE 112 (pages from memory — verify). `q` are the step rates [m³/s], `s` the
 /// drawdowns \[m\] at equal step durations. Returns `(B, C)`, or `None` when the slices
-/// differ in length, a rate is zero, or fewer than two distinct rates are given.
+/// differ in length, a rate is zero, or fewer than two distinct rates are given. For
+/// standard errors, intervals and steps not at equilibrium see [`crate::steptest`].
 pub fn step_drawdown_fit(q: &[f64], s: &[f64]) -> Option<(f64, f64)> {
     if q.len() != s.len() || q.contains(&0.0) {
         return None;

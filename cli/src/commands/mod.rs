@@ -8,6 +8,7 @@ mod new;
 mod outputs;
 mod report;
 mod run;
+mod steptest;
 mod sweep;
 mod verify;
 
@@ -65,6 +66,7 @@ pub fn dispatch(command: Command) -> Result<(), Failure> {
         Command::Check(a) => check::check(&a),
         Command::Report(a) => report::report(&a),
         Command::Verify(a) => verify::verify(&a),
+        Command::Steptest(a) => steptest::steptest(&a),
         Command::New(a) => new::new(&a),
         Command::Schema => {
             let text = serde_json::to_string_pretty(&crate::case::schema())

@@ -27,6 +27,7 @@ mod format;
 mod headline;
 mod html;
 mod read;
+pub mod steptest;
 mod svg;
 mod sweep;
 mod tables;

@@ -1,0 +1,144 @@
+//! `boreflux steptest`: the step-test file, the choice of method, and the printed and
+//! JSON results. The analysis itself is `boreflux_solver::steptest`.
+
+pub mod read;
+pub mod text;
+
+use boreflux_solver::steptest::hantush::{self, HantushAnalysis, SeriesOptions};
+use boreflux_solver::steptest::jacob::{self, LineFit};
+use boreflux_solver::steptest::rorabaugh::{self, PowerFit};
+use boreflux_solver::steptest::series;
+use boreflux_solver::steptest::{Step, StepFigures, StepTestError, Weighting};
+use read::StepData;
+
+/// Which analysis to run.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, clap::ValueEnum)]
+pub enum Method {
+    /// Hantush–Bierschenk for a time series, Jacob for one row per step.
+    Auto,
+    /// Jacob's line through the drawdown at the end of each step, as measured.
+    Jacob,
+    /// Hantush–Bierschenk: steps corrected to a common elapsed time (needs a time series).
+    Hantush,
+}
+
+/// Options of the analysis, in SI.
+#[derive(Debug, Clone, Copy)]
+pub struct Options {
+    /// Method.
+    pub method: Method,
+    /// Weighting of the step line.
+    pub weighting: Weighting,
+    /// Confidence level of the intervals.
+    pub confidence: f64,
+    /// Early fraction of each step left out of the series fit.
+    pub skip_fraction: f64,
+    /// Common elapsed time [s], or the shortest step.
+    pub reference_time_s: Option<f64>,
+    /// Also fit s = B Q + C Qⁿ (Rorabaugh).
+    pub power: bool,
+}
+
+/// The result of either method, in the form the outputs need.
+#[derive(Debug, Clone)]
+pub struct Outcome {
+    /// `"jacob"` or `"hantush-bierschenk"`.
+    pub method: &'static str,
+    /// The step line s/Q = B + C Q.
+    pub fit: LineFit,
+    /// Per-step figures (drawdowns as fitted: corrected for Hantush–Bierschenk).
+    pub figures: Vec<StepFigures>,
+    /// Measured drawdown at the end of each step [m].
+    pub measured_m: Vec<f64>,
+    /// The series fit, for Hantush–Bierschenk.
+    pub series: Option<HantushAnalysis>,
+    /// The power-law fit when asked for: the fit, or why it could not be made.
+    pub power: Option<Result<PowerFit, String>>,
+}
+
+impl Outcome {
+    fn with_power(mut self, asked: bool) -> Self {
+        if asked {
+            let steps: Vec<Step> = self
+                .figures
+                .iter()
+                .map(|g| Step {
+                    rate_m3_s: g.rate_m3_s,
+                    drawdown_m: g.drawdown_m,
+                })
+                .collect();
+            self.power =
+                Some(rorabaugh::fit_power(&steps, self.fit.confidence).map_err(|e| e.to_string()));
+        }
+        self
+    }
+}
+
+/// Runs the analysis. Errors are bad input (exit 2); they name the file line where a step
+/// or reading is at fault.
+pub fn analyse(data: &StepData, opts: &Options) -> Result<Outcome, String> {
+    let locate = |e: StepTestError| -> String {
+        let row = match &e {
+            StepTestError::BadStep { step, .. } if matches!(data, StepData::Steps { .. }) => {
+                Some(*step)
+            }
+            StepTestError::BadSample { row, .. } => Some(*row),
+            _ => None,
+        };
+        match row.and_then(|r| data.line_of(r)) {
+            Some(line) => format!("line {line}: {e}"),
+            None => e.to_string(),
+        }
+    };
+    match (data, opts.method) {
+        (StepData::Steps { .. }, Method::Hantush) => Err(
+            "the Hantush–Bierschenk method needs the time series (a time_<unit> column); \
+             this file has one row per step"
+                .to_owned(),
+        ),
+        (StepData::Steps { steps, .. }, _) => {
+            let a = jacob::fit_steps(steps, opts.weighting, opts.confidence).map_err(locate)?;
+            Ok(Outcome {
+                method: "jacob",
+                measured_m: steps.iter().map(|s| s.drawdown_m).collect(),
+                fit: a.fit,
+                figures: a.figures,
+                series: None,
+                power: None,
+            }
+            .with_power(opts.power))
+        }
+        (StepData::Series { samples, .. }, Method::Jacob) => {
+            let spans = series::split_steps(samples).map_err(locate)?;
+            let steps = series::end_of_step(samples, &spans);
+            let a = jacob::fit_steps(&steps, opts.weighting, opts.confidence).map_err(locate)?;
+            Ok(Outcome {
+                method: "jacob",
+                measured_m: steps.iter().map(|s| s.drawdown_m).collect(),
+                fit: a.fit,
+                figures: a.figures,
+                series: None,
+                power: None,
+            }
+            .with_power(opts.power))
+        }
+        (StepData::Series { samples, .. }, Method::Auto | Method::Hantush) => {
+            let o = SeriesOptions {
+                weighting: opts.weighting,
+                confidence: opts.confidence,
+                skip_fraction: opts.skip_fraction,
+                reference_time_s: opts.reference_time_s,
+            };
+            let a = hantush::fit_series(samples, &o).map_err(locate)?;
+            Ok(Outcome {
+                method: "hantush-bierschenk",
+                measured_m: a.measured.iter().map(|s| s.drawdown_m).collect(),
+                fit: a.corrected.fit.clone(),
+                figures: a.corrected.figures.clone(),
+                series: Some(a),
+                power: None,
+            }
+            .with_power(opts.power))
+        }
+    }
+}

@@ -1,0 +1,275 @@
+//! End-to-end tests of `boreflux steptest`: exit codes (0 ok, 2 bad input), error messages
+//! that name the line and column, the JSON values against synthetic data of known B and C,
+//! and the HTML output (temporary file renamed, no overwrite without --force).
+
+use assert_cmd::Command;
+use serde_json::Value;
+use std::path::{Path, PathBuf};
+
+fn boreflux() -> Command {
+    Command::cargo_bin("boreflux").expect("the boreflux binary is built by cargo test")
+}
+
+fn cases_dir() -> PathBuf {
+    Path::new(env!("CARGO_MANIFEST_DIR")).join("../cases")
+}
+
+fn write(dir: &Path, name: &str, text: &str) -> PathBuf {
+    let p = dir.join(name);
+    std::fs::write(&p, text).unwrap();
+    p
+}
+
+fn json_of(args: &[&str]) -> Value {
+    let out = boreflux().args(args).output().unwrap();
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    serde_json::from_slice(&out.stdout).unwrap()
+}
+
+fn stderr_of_failure(args: &[&str], code: i32) -> String {
+    let out = boreflux().args(args).output().unwrap();
+    assert_eq!(
+        out.status.code(),
+        Some(code),
+        "{}",
+        String::from_utf8_lossy(&out.stdout)
+    );
+    String::from_utf8_lossy(&out.stderr).into_owned()
+}
+
+#[test]
+fn steptest_good_files_print_table() {
+    for (file, method) in [
+        ("step-tests/demo-series.csv", "Hantush–Bierschenk"),
+        ("step-tests/demo-steps.csv", "Jacob"),
+    ] {
+        let path = cases_dir().join(file);
+        let out = boreflux().arg("steptest").arg(&path).output().unwrap();
+        assert!(
+            out.status.success(),
+            "{file}: {}",
+            String::from_utf8_lossy(&out.stderr)
+        );
+        let text = String::from_utf8_lossy(&out.stdout);
+        assert!(text.contains(method), "{text}");
+        assert!(text.contains("B = ") && text.contains("C = ") && text.contains("95 % interval"));
+        assert!(
+            text.contains("E = B Q / (B Q + C Q^2)"),
+            "efficiency definition missing"
+        );
+        assert!(text.contains("CAUTION"));
+    }
+}
+
+/// docs/physics.md §9d synthetic check: B = 100 s/m², C = 2000 s²/m⁵ at 5, 10, 15, 20 L/s
+/// (s = 0.55, 1.20, 1.95, 2.80 m); `numpy.linalg.lstsq` of s/Q on [1, Q] returns
+/// [100, 2000], E = 0.909091 … 0.714286. Exact data: the binary must return them to
+/// round-off (1e-9 relative, the JSON carries 17 digits).
+#[test]
+fn steptest_json_recovers_exact_b_and_c() {
+    let dir = tempfile::tempdir().unwrap();
+    let f = write(
+        dir.path(),
+        "exact.csv",
+        "# synthetic, docs/physics.md §9d\nrate_L/s,drawdown_cm\n5,55\n10,120\n15,195\n20,280\n",
+    );
+    for w in ["equal", "drawdown"] {
+        let v = json_of(&["steptest", f.to_str().unwrap(), "--json", "--weights", w]);
+        assert_eq!(v["method"], "jacob");
+        assert!(
+            (v["B"]["value"].as_f64().unwrap() / 100.0 - 1.0).abs() < 1e-9,
+            "{v}"
+        );
+        assert!(
+            (v["C"]["value"].as_f64().unwrap() / 2000.0 - 1.0).abs() < 1e-9,
+            "{v}"
+        );
+        assert_eq!(v["dof"], 2);
+        let e: Vec<f64> = v["steps"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .map(|s| s["efficiency"].as_f64().unwrap())
+            .collect();
+        for (a, b) in e.iter().zip([0.909091, 0.833333, 0.769231, 0.714286]) {
+            assert!((a - b).abs() < 5e-7, "{a} vs {b}");
+        }
+    }
+}
+
+/// The demo time series is Theis data with known parameters (its header comment: T = 4e-3
+/// m²/s, S = 2e-4, r_w = 0.1 m, linear well loss 15 s/m², C = 2500 s²/m⁵, 5 mm noise,
+/// seeded). For Theis at late time, B(Δt) = 15 + b log10(4 e^(−γ) T Δt / (r_w² S)) with
+/// b = ln 10 / (4π T) (Cooper and Jacob 1946; 4 e^(−γ) = 2.2458). The 95 % intervals of
+/// B(60 min) and C must hold the true values, and T must come back within 5 %.
+#[test]
+fn steptest_json_demo_series_intervals_hold_true_values() {
+    let demo = cases_dir().join("step-tests/demo-series.csv");
+    let v = json_of(&["steptest", demo.to_str().unwrap(), "--json"]);
+    assert_eq!(v["method"], "hantush-bierschenk");
+    let (t, s, rw) = (4e-3_f64, 2e-4_f64, 0.1_f64);
+    let b = std::f64::consts::LN_10 / (4.0 * std::f64::consts::PI * t);
+    let gamma = 0.577_215_664_901_532_9_f64;
+    let b_true = 15.0 + b * (4.0 * (-gamma).exp() * t * 3600.0 / (rw * rw * s)).log10();
+    let inside =
+        |e: &Value, x: f64| e["lower"].as_f64().unwrap() <= x && x <= e["upper"].as_f64().unwrap();
+    assert_eq!(v["series"]["reference_time_s"].as_f64().unwrap(), 3600.0);
+    assert!(inside(&v["B"], b_true), "B {} vs {b_true}", v["B"]);
+    assert!(inside(&v["C"], 2500.0), "C {}", v["C"]);
+    let t_fit = v["series"]["transmissivity_m2_s"].as_f64().unwrap();
+    assert!((t_fit / t - 1.0).abs() < 0.05, "T {t_fit}");
+    // Another common time.
+    let v = json_of(&[
+        "steptest",
+        demo.to_str().unwrap(),
+        "--json",
+        "--at",
+        "30 min",
+    ]);
+    assert_eq!(v["series"]["reference_time_s"].as_f64().unwrap(), 1800.0);
+}
+
+/// `--power` on the exact docs/physics.md §9d data (s = B Q + C Q², B = 100, C = 2000):
+/// the power law must find n = 2, B = 100, C = 2000 (1e-6 relative: golden-section search
+/// in n), and on three steps it must say that four are needed.
+#[test]
+fn steptest_power_law_on_exact_data() {
+    let dir = tempfile::tempdir().unwrap();
+    let f = write(
+        dir.path(),
+        "exact.csv",
+        "rate_L/s,drawdown_cm\n5,55\n10,120\n15,195\n20,280\n",
+    );
+    let v = json_of(&["steptest", f.to_str().unwrap(), "--json", "--power"]);
+    let p = &v["power"];
+    assert!(
+        (p["n"]["value"].as_f64().unwrap() / 2.0 - 1.0).abs() < 1e-6,
+        "{p}"
+    );
+    assert!(
+        (p["B"]["value"].as_f64().unwrap() / 100.0 - 1.0).abs() < 1e-6,
+        "{p}"
+    );
+    assert!(
+        (p["C"]["value"].as_f64().unwrap() / 2000.0 - 1.0).abs() < 1e-6,
+        "{p}"
+    );
+    let f = write(
+        dir.path(),
+        "three.csv",
+        "rate_L/s,drawdown_cm\n5,55\n10,120\n15,195\n",
+    );
+    let v = json_of(&["steptest", f.to_str().unwrap(), "--json", "--power"]);
+    assert!(
+        v["power"]["error"].as_str().unwrap().contains("at least 4"),
+        "{v}"
+    );
+    assert!(v["B"]["value"].is_number(), "the Jacob fit is still made");
+}
+
+#[test]
+fn steptest_bad_header_names_the_column() {
+    let dir = tempfile::tempdir().unwrap();
+    let f = write(dir.path(), "h.csv", "rate_L/s,level_m\n5,1\n10,2\n15,3\n");
+    let e = stderr_of_failure(&["steptest", f.to_str().unwrap()], 2);
+    assert!(e.contains("line 1") && e.contains("level_m"), "{e}");
+    let f = write(
+        dir.path(),
+        "u.csv",
+        "rate_L/s,drawdown_m/s\n5,1\n10,2\n15,3\n",
+    );
+    let e = stderr_of_failure(&["steptest", f.to_str().unwrap()], 2);
+    assert!(e.contains("drawdown_m/s") && e.contains("length"), "{e}");
+}
+
+#[test]
+fn steptest_non_numeric_cell_names_line_and_column() {
+    let dir = tempfile::tempdir().unwrap();
+    let f = write(
+        dir.path(),
+        "n.csv",
+        "# c\nrate_L/s,drawdown_m\n5,1\n10,two\n15,3\n",
+    );
+    let e = stderr_of_failure(&["steptest", f.to_str().unwrap()], 2);
+    assert!(
+        e.contains("line 4") && e.contains("drawdown_m") && e.contains("\"two\""),
+        "{e}"
+    );
+    let f = write(dir.path(), "z.csv", "rate_L/s,drawdown_m\n5,1\n0,2\n15,3\n");
+    let e = stderr_of_failure(&["steptest", f.to_str().unwrap()], 2);
+    assert!(e.contains("line 3") && e.contains("rate"), "{e}");
+    let f = write(
+        dir.path(),
+        "t.csv",
+        "time_min,rate_L/s,drawdown_m\n1,5,1\n1,5,1.1\n",
+    );
+    let e = stderr_of_failure(&["steptest", f.to_str().unwrap()], 2);
+    assert!(e.contains("line 3") && e.contains("time"), "{e}");
+}
+
+#[test]
+fn steptest_two_steps_refused_with_reason() {
+    let dir = tempfile::tempdir().unwrap();
+    let f = write(
+        dir.path(),
+        "two.csv",
+        "rate_L/s,drawdown_m\n5,0.55\n10,1.2\n",
+    );
+    let e = stderr_of_failure(&["steptest", f.to_str().unwrap()], 2);
+    assert!(e.contains("2 step(s)") && e.contains("at least 3"), "{e}");
+    assert!(e.contains("no degree of freedom"), "{e}");
+    // A per-step file cannot be corrected to a common time.
+    let f = write(
+        dir.path(),
+        "three.csv",
+        "rate_L/s,drawdown_m\n5,0.55\n10,1.2\n15,1.95\n",
+    );
+    let e = stderr_of_failure(&["steptest", f.to_str().unwrap(), "--method", "hantush"], 2);
+    assert!(e.contains("time series"), "{e}");
+}
+
+#[test]
+fn steptest_html_written_whole_and_not_overwritten_without_force() {
+    let dir = tempfile::tempdir().unwrap();
+    let out = dir.path().join("st.html");
+    let demo = cases_dir().join("step-tests/demo-series.csv");
+    let args = [
+        "steptest",
+        demo.to_str().unwrap(),
+        "-o",
+        out.to_str().unwrap(),
+    ];
+    boreflux().args(args).assert().success();
+    let html = std::fs::read_to_string(&out).unwrap();
+    assert!(html.contains("<svg") && html.contains("s/Q") && html.contains("Cautions"));
+    assert!(html.ends_with("</html>\n"));
+    std::fs::write(&out, "keep").unwrap();
+    let e = stderr_of_failure(&args, 2);
+    assert!(e.contains("--force"), "{e}");
+    assert_eq!(std::fs::read_to_string(&out).unwrap(), "keep");
+    boreflux().args(args).arg("--force").assert().success();
+    assert!(std::fs::read_to_string(&out).unwrap().contains("<svg"));
+    // Nothing else left in the directory (no temporary file).
+    let names: Vec<_> = std::fs::read_dir(dir.path())
+        .unwrap()
+        .map(|e| e.unwrap().file_name())
+        .collect();
+    assert_eq!(names.len(), 1, "{names:?}");
+    // Bad input leaves no output.
+    let bad = write(dir.path(), "bad.csv", "rate_L/s,drawdown_m\n5,x\n");
+    let out2 = dir.path().join("none.html");
+    stderr_of_failure(
+        &[
+            "steptest",
+            bad.to_str().unwrap(),
+            "-o",
+            out2.to_str().unwrap(),
+        ],
+        2,
+    );
+    assert!(!out2.exists());
+}
