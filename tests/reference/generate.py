@@ -1316,6 +1316,104 @@ def step_drawdown():
 
 
 # ---------------------------------------------------------------------------------------
+# 14. development devices: collapse limits, vapour bound
+# ---------------------------------------------------------------------------------------
+
+MATERIALS = {
+    # E (Pa), nu, yield (Pa): handbook values the solver uses as defaults (from memory,
+    # verify); see docs/devices.md.
+    "pvc": (2.758e9, 0.38, 48.26e6),
+    "steel": (207e9, 0.30, 241.3e6),
+    "stainless": (193e9, 0.29, 206.8e6),
+}
+
+
+def lame_first_yield(sigma_y, dr):
+    """External pressure at which the Lame hoop stress at the bore reaches sigma_y.
+
+    Solved numerically with scipy.optimize.brentq on the stress itself (independent of the
+    closed form 2 sigma_y (DR - 1)/DR^2).
+    """
+    b = 0.5  # outer radius, any unit: only DR matters
+    a = b - 2.0 * b / dr
+
+    def hoop_at_bore(p):
+        # Lame: sigma_theta(r) = -p b^2/(b^2 - a^2) (1 + a^2/r^2), at r = a
+        return p * b * b / (b * b - a * a) * 2.0 - sigma_y
+
+    return scipy.optimize.brentq(hoop_at_bore, 0.0, sigma_y, xtol=1e-6, rtol=1e-15)
+
+
+def devices():
+    """Collapse limits of pipe (elastic ring buckling and first yield) and the vapour bound.
+
+    Elastic: Timoshenko & Gere 1961, Pc = 2 E/(1 - nu^2) / (DR - 1)^3. Yield: Lame thick
+    ring, first yield at the bore, P_y = 2 sigma_y (DR - 1)/DR^2 (the yield-strength collapse
+    pressure of API Bulletin 5C3 / ISO/TR 10400, from memory). Vapour pressure: IAPWS-IF97
+    saturation line (iapws.iapws97._PSat_T), cross-checked against the IAPWS-95 saturated
+    liquid (iapws.IAPWS95(T, x=0).P).
+    """
+    diffs = []
+    rows = []
+    for material, dr in [("pvc", 17.0), ("pvc", 21.0), ("pvc", 26.0),
+                         ("steel", 20.0), ("steel", 28.0), ("stainless", 20.0)]:
+        e_mod, nu, sy = MATERIALS[material]
+        elastic = 2.0 * e_mod / (1.0 - nu**2) / (dr - 1.0) ** 3
+        y_closed = 2.0 * sy * (dr - 1.0) / dr**2
+        y_lame = lame_first_yield(sy, dr)
+        diffs.append(rel_diff(y_closed, y_lame))
+        rows.append({"material": material, "DR": dr, "E": e_mod, "nu": nu, "yield": sy,
+                     "elastic_pa": f(elastic), "yield_pa": f(y_lame),
+                     "governing_pa": f(min(elastic, y_lame))})
+
+    vapour = []
+    for t_c in [4.0, 10.0, 15.0, 20.0, 25.0, 35.0]:
+        t_k = t_c + 273.15
+        p97 = iapws.iapws97._PSat_T(t_k) * 1e6
+        p95 = iapws.IAPWS95(T=t_k, x=0).P * 1e6
+        # IF97 and IAPWS-95 differ by about 1e-4 at these temperatures (IF97's stated
+        # consistency); that is the cross-check here, not a round-off comparison.
+        vapour.append({"T_C": t_c, "p_sat_pa": f(p97), "p_sat_iapws95_pa": f(p95)})
+
+    # Vapour bound of the head under a sealed tool at depth d below the static level:
+    # p_atm + rho g (d + H) = p_v  ->  H_min = -(p_atm - p_v)/(rho g) - d.
+    t_c, depth, p_atm = 14.0, 3.0, 101325.0
+    rho = iapws.IAPWS95(T=t_c + 273.15, P=0.101325).rho
+    p_v = iapws.iapws97._PSat_T(t_c + 273.15) * 1e6
+    h_min = -(p_atm - p_v) / (rho * G) - depth
+
+    return {
+        "source": (
+            "Collapse: elastic buckling of a long thin ring, Pc = 2E/(1 - nu^2)/(DR - 1)^3 "
+            "(Timoshenko, S.P., Gere, J.M., 1961, 'Theory of Elastic Stability'); first yield "
+            "of a thick ring (Lame), P_y = 2 sigma_y (DR - 1)/DR^2, the yield-strength "
+            "collapse pressure of API Bulletin 5C3 (1994) / ISO/TR 10400 (from memory, "
+            "verify). Material constants are handbook values from memory (verify). Vapour "
+            "pressure: IAPWS-IF97 saturation equation (IAPWS 2007) as computed by the iapws "
+            "package. No safety factor is included; manufacturer ratings and local well codes "
+            "govern."
+        ),
+        "computed_with": {
+            "versions": versions(),
+            "calls": [
+                "elastic: 2 E/(1 - nu^2)/(DR - 1)^3 (plain float arithmetic)",
+                "yield: scipy.optimize.brentq on the Lame hoop stress at the bore, "
+                "cross-checked against 2 sigma_y (DR - 1)/DR^2",
+                "p_sat: iapws.iapws97._PSat_T(T); also iapws.IAPWS95(T, x=0).P",
+                "rho: iapws.IAPWS95(T, P=0.101325).rho",
+            ],
+        },
+        "conventions": "SI units; pressures in Pa; heads in m relative to the static level",
+        "collapse": rows,
+        "vapour_pressure": vapour,
+        "vapour_bound": {"T_C": t_c, "depth_m": depth, "p_atm_pa": p_atm, "rho": f(rho),
+                         "p_v_pa": f(p_v), "h_min_m": f(h_min)},
+        "cross_check": "closed-form first-yield pressure vs brentq on the Lame stress",
+        "cross_check_max_rel_diff": f(max(diffs)),
+    }
+
+
+# ---------------------------------------------------------------------------------------
 # main
 # ---------------------------------------------------------------------------------------
 
@@ -1332,14 +1430,21 @@ GENERATORS = [
     ("collapse.json", collapse),
     ("energy_dissipation.json", energy_dissipation),
     ("step_drawdown.json", step_drawdown),
+    ("devices.json", devices),
 ]
 
 
 def main():
-    """Compute every file, run all checks, and write only if all pass."""
+    """Compute every file, run all checks, and write only if all pass.
+
+    File names given as arguments (e.g. devices.json) restrict the run to those files.
+    """
     results = []
     failed = False
+    wanted = set(sys.argv[1:])
     for name, func in GENERATORS:
+        if wanted and name not in wanted:
+            continue
         first_erratum = len(ERRATA)
         doc = func()
         if len(ERRATA) > first_erratum:

@@ -8,7 +8,7 @@ use crate::CheckResult;
 use boreflux_solver::devices::{Kinematics, PumpBackwash, SurgeBlock, Swab};
 use boreflux_solver::drive::{Drive, Stage};
 use boreflux_solver::model::{Model, Well};
-use boreflux_solver::safety::thin_ring_collapse_pa;
+use boreflux_solver::safety::{self, collapse_pressure_pa, thin_ring_collapse_pa, PipeMaterial};
 use boreflux_solver::water::GRAVITY_M_S2;
 use boreflux_solver::{run, Reporting, RunSummary, StepObserver, StepView};
 use std::f64::consts::PI;
@@ -308,5 +308,51 @@ pub fn collapse() -> Vec<CheckResult> {
         worst,
         1e-9,
         "relative",
-    )]
+    )    ]
+    .into_iter()
+    .chain(collapse_limits())
+    .collect()
+}
+
+/// Elastic and first-yield collapse pressures of PVC SDR 17/21/26, steel DR 20/28 and
+/// stainless DR 20 against the reference script (elastic: Timoshenko & Gere ring formula;
+/// yield: scipy.optimize.brentq on the Lamé hoop stress), and the built-in material
+/// constants against the ones the script used.
+fn collapse_limits() -> Vec<CheckResult> {
+    let v = load(data::DEVICES);
+    let src = source(&v);
+    let rows = v["collapse"].as_array().expect("collapse rows");
+    let (mut worst_e, mut worst_y, mut worst_g, mut worst_const) = (0.0f64, 0.0f64, 0.0f64, 0.0f64);
+    for r in rows {
+        let m = PipeMaterial {
+            youngs_modulus_pa: r["E"].as_f64().unwrap(),
+            poisson: r["nu"].as_f64().unwrap(),
+            yield_strength_pa: r["yield"].as_f64().unwrap(),
+            thermoplastic: false,
+        };
+        let builtin = match r["material"].as_str().unwrap() {
+            "pvc" => safety::PVC,
+            "steel" => safety::STEEL,
+            _ => safety::STAINLESS,
+        };
+        worst_const = worst_const
+            .max((builtin.youngs_modulus_pa / m.youngs_modulus_pa - 1.0).abs())
+            .max((builtin.poisson / m.poisson - 1.0).abs())
+            .max((builtin.yield_strength_pa / m.yield_strength_pa - 1.0).abs());
+        let dr = r["DR"].as_f64().unwrap();
+        // 20 °C: below the thermoplastic derating range, factor 1.
+        let lim = collapse_pressure_pa(&m, dr, 20.0);
+        let rel = |a: f64, key: &str| (a / r[key].as_f64().unwrap() - 1.0).abs();
+        worst_e = worst_e.max(rel(lim.elastic_pa, "elastic_pa"));
+        worst_y = worst_y.max(rel(lim.yield_pa, "yield_pa"));
+        worst_g = worst_g.max(rel(lim.governing_pa(), "governing_pa"));
+    }
+    // The closed forms against the script's values: round-off of a few operations (the
+    // brentq root is converged to 1e-15 relative).
+    vec![
+        CheckResult::new("drives", "elastic collapse, PVC SDR 17/21/26, steel DR 20/28, stainless DR 20", src.clone(), worst_e, 1e-12, "relative"),
+        CheckResult::new("drives", "first-yield collapse (Lamé), same pipes", src.clone(), worst_y, 1e-12, "relative"),
+        CheckResult::new("drives", "governing collapse pressure = the lower limit, same pipes", src.clone(), worst_g, 1e-12, "relative"),
+        CheckResult::new("drives", "built-in material constants = the documented ones", src, worst_const, 0.0, "relative"),
+    ]
 }
