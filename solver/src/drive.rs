@@ -5,7 +5,7 @@
 //! Sign convention: positive flow is outward, from the well into the formation, so a
 //! pumping (withdrawal) rate enters as a negative device flow.
 
-use crate::devices::{JetPulse, PumpBackwash, SurgeBlock, Swab};
+use crate::devices::{vapour_flow, JetPulse, PumpBackwash, SurgeBlock, Swab, VapourState};
 use crate::error::SolverError;
 use std::f64::consts::PI;
 
@@ -98,8 +98,11 @@ pub struct Stage {
 pub struct DeviceFlow {
     /// Rate imposed by the device: displacement, pumping, lifting, backflow.
     pub displacement_m3_s: f64,
-    /// Leakage that depends on the in-well head (clearance, valves).
+    /// Flow that depends on the in-well head: leakage (clearance, valves) and the vapour
+    /// gap under a sealed tool (`vapour_m3_s`, included here).
     pub bypass_m3_s: f64,
+    /// Rate at which a vapour gap opens (positive) or closes under a sealed tool, m³/s.
+    pub vapour_m3_s: f64,
     /// d(displacement + bypass)/dH.
     pub d_dh_m2_s: f64,
 }
@@ -223,8 +226,8 @@ impl Drive {
     }
 
     /// Volume rates the device adds to the well's water column at time t with in-well head
-    /// `h_well_m` (flow-controlled drives).
-    pub fn device_flow(&self, t: f64, h_well_m: f64) -> DeviceFlow {
+    /// `h_well_m` (flow-controlled drives), with the vapour gap `vapour` under a sealed tool.
+    pub fn device_flow(&self, t: f64, h_well_m: f64, vapour: VapourState) -> DeviceFlow {
         let (d, t) = self.stage_at(t);
         let displacement = |q: f64| DeviceFlow {
             displacement_m3_s: q,
@@ -237,18 +240,21 @@ impl Drive {
             }
             Drive::SurgeBlock(b) => {
                 let (q, bypass, d) = b.flows(t, h_well_m);
+                let (qv, dv) = vapour_flow(h_well_m, b.min_head_m(), b.max_pull_m3_s(), vapour);
                 DeviceFlow {
                     displacement_m3_s: q,
-                    bypass_m3_s: bypass,
-                    d_dh_m2_s: d,
+                    bypass_m3_s: bypass + qv,
+                    vapour_m3_s: qv,
+                    d_dh_m2_s: d + dv,
                 }
             }
             Drive::Swab(s) => {
-                let (q, d) = s.flows(t, h_well_m);
+                let (qv, dv) = vapour_flow(h_well_m, s.min_head_m(t), s.max_pull_m3_s(), vapour);
                 DeviceFlow {
-                    displacement_m3_s: q,
-                    bypass_m3_s: 0.0,
-                    d_dh_m2_s: d,
+                    displacement_m3_s: s.displacement(t),
+                    bypass_m3_s: qv,
+                    vapour_m3_s: qv,
+                    d_dh_m2_s: dv,
                 }
             }
             Drive::PumpBackwash(p) => displacement(p.flow(t)),
@@ -256,19 +262,25 @@ impl Drive {
         }
     }
 
-    /// Storage of the well node at time t, m²: none below a surge block (sealed water, see
-    /// [`SurgeBlock`]), otherwise the well's own (`well_storage_m2`).
+    /// Storage of the well node at time t, m²: none below a surge block or below rising
+    /// swab cups (sealed water, see [`SurgeBlock`], [`Swab`]), otherwise the well's own
+    /// (`well_storage_m2`).
     pub fn well_storage_m2(&self, t: f64, well_storage_m2: f64) -> f64 {
-        match self.stage_at(t).0 {
-            Drive::SurgeBlock(_) => 0.0,
+        match self.stage_at(t) {
+            (Drive::SurgeBlock(_), _) => 0.0,
+            (Drive::Swab(s), tl) if s.lifting(tl) => 0.0,
             _ => well_storage_m2,
         }
     }
 
-    /// True when a swab active at time t has drawn the well down into the band where its
-    /// column parts.
-    pub fn swab_limited(&self, t: f64, h_well_m: f64) -> bool {
-        matches!(self.stage_at(t).0, Drive::Swab(s) if s.limited(h_well_m))
+    /// Vapour bound of the in-well head at time t, m: the lowest head a sealed tool can
+    /// pull (−∞ when no tool seals the well).
+    pub fn vapour_bound_m(&self, t: f64) -> f64 {
+        match self.stage_at(t) {
+            (Drive::SurgeBlock(b), _) => b.min_head_m(),
+            (Drive::Swab(s), tl) => s.min_head_m(tl),
+            _ => f64::NEG_INFINITY,
+        }
     }
 
     /// True when the device flow depends on the in-well head (then every step iterates).

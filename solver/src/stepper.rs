@@ -39,6 +39,7 @@
 //! When the cells are linear (Darcy faces) the update is exact in one step, whatever the
 //! well's laws.
 
+use crate::devices::{VapourState, VAPOUR_MARGIN_M};
 use crate::drive::Control;
 use crate::error::SolverError;
 use crate::grid::ZONE_COUNT;
@@ -151,6 +152,16 @@ pub struct Stepper {
     pub time_s: f64,
     /// Balance of the last step.
     pub balance: StepBalance,
+    /// Vapour gap under a sealed tool (see `crate::devices::vapour`).
+    vapour: VapourState,
+    /// Whether the well node had no storage (a sealed tool) in the last step.
+    was_sealed: bool,
+    /// Backward-Euler steps still to take after the column closed again.
+    damped_steps: u32,
+    /// Times the water column under a sealed tool parted.
+    partings: u64,
+    /// Time the column spent parted, s.
+    parted_time_s: f64,
 }
 
 impl Stepper {
@@ -191,7 +202,22 @@ impl Stepper {
             newton_max_iterations: model.numerics.newton_max_iterations,
             time_s: 0.0,
             balance: StepBalance::default(),
+            vapour: VapourState::default(),
+            was_sealed: false,
+            damped_steps: 0,
+            partings: 0,
+            parted_time_s: 0.0,
         }
+    }
+
+    /// How often the water column under a sealed tool parted, and for how long in all, s.
+    pub fn column_parting(&self) -> (u64, f64) {
+        (self.partings, self.parted_time_s)
+    }
+
+    /// Volume of the vapour gap under a sealed tool now, m³.
+    pub fn vapour_gap_m3(&self) -> f64 {
+        self.vapour.gap_m3
     }
 
     /// Heads at the current time: index 0 is the in-well head, 1..=N the cells, m.
@@ -238,7 +264,89 @@ impl Stepper {
     }
 
     /// Advances by `dt` with the θ-scheme. On error the state is unchanged.
+    ///
+    /// A vapour gap under a sealed tool is carried across the step (`devices::vapour`).
+    /// When the well is no longer sealed (the swab's cups are lowered, a stage ends), the
+    /// sealed head gives way to one free surface, drawn down by the volume the tool took
+    /// and the water did not fill: `H = −V/S_w` (0 when the column did not part).
     pub fn step(&mut self, model: &Model, dt: f64, theta: f64) -> Result<(), SolverError> {
+        let (h0, vapour, was_sealed) = (self.h[0], self.vapour, self.was_sealed);
+        let t_theta = self.time_s + theta * dt;
+        let storage = model.drive.well_storage_m2(t_theta, self.disc.storage[0]);
+        if storage > 0.0 && self.was_sealed {
+            self.h[0] = -self.vapour.gap_m3 / storage;
+            self.vapour.gap_m3 = 0.0;
+        }
+        self.was_sealed = storage <= 0.0;
+        self.vapour.min_rate_m3_s = -self.vapour.gap_m3 / dt;
+        // While the column is parted the well head is pinned at the vapour bound: a kink in
+        // the forcing that Crank–Nicolson would leave ringing in the stiff pack cells. Those
+        // steps, and the two after the gap closes, are backward Euler (its numerical
+        // dissipation is in the step's energy balance).
+        let theta = if self.vapour.gap_m3 > 0.0 || self.damped_steps > 0 {
+            1.0
+        } else {
+            theta
+        };
+        let start = (
+            self.vapour,
+            self.partings,
+            self.parted_time_s,
+            self.damped_steps,
+            self.time_s,
+        );
+        let mut r = self.step_inner(model, dt, theta);
+        let at_bound = |st: &Stepper| {
+            st.vapour.gap_m3 > 0.0
+                || st.h[0] < model.drive.vapour_bound_m(st.time_s) + VAPOUR_MARGIN_M
+        };
+        if r.is_ok() && theta != 1.0 && start.0.gap_m3 == 0.0 && at_bound(self) {
+            // The column parted in this step, or its end reached the vapour bound: redo it
+            // as backward Euler, since the Crank–Nicolson end-of-step heads overshoot the
+            // kink. After the step the scratch array holds the heads it started from.
+            std::mem::swap(&mut self.h, &mut self.scratch);
+            (
+                self.vapour,
+                self.partings,
+                self.parted_time_s,
+                self.damped_steps,
+                self.time_s,
+            ) = start;
+            self.predictor.forget();
+            r = self.step_inner(model, dt, 1.0);
+        }
+        if r.is_err() {
+            self.h[0] = h0;
+            self.vapour = vapour;
+            self.was_sealed = was_sealed;
+        }
+        r
+    }
+
+    /// Adds the step's vapour volume to the gap and counts partings (the flow at the
+    /// θ-point heads, as in the step's volume balance).
+    fn update_vapour(&mut self, model: &Model, dt: f64, t_theta: f64) {
+        let before = self.vapour.gap_m3;
+        let q = model
+            .drive
+            .device_flow(t_theta, self.y[0], self.vapour)
+            .vapour_m3_s;
+        // The closing rate is floored at −V/Δt, so the gap can only undershoot 0 by round-off.
+        self.vapour.gap_m3 = (before + dt * q).max(0.0);
+        self.damped_steps = self.damped_steps.saturating_sub(1);
+        if (before > 0.0) != (self.vapour.gap_m3 > 0.0) {
+            self.damped_steps = 2;
+        }
+        if self.vapour.gap_m3 > 0.0 {
+            self.parted_time_s += dt;
+            if before == 0.0 {
+                self.partings += 1;
+            }
+        }
+        self.vapour.min_rate_m3_s = -self.vapour.gap_m3 / dt;
+    }
+
+    fn step_inner(&mut self, model: &Model, dt: f64, theta: f64) -> Result<(), SolverError> {
         let tdt = theta * dt;
         let t_new = self.time_s + dt;
         let t_theta = self.time_s + tdt;
@@ -315,7 +423,7 @@ impl Stepper {
         let q_in = faces[0].flow(self.y[0] - self.y[1]).0;
         let dev = match model.drive.control_at(t_theta) {
             Control::Head => crate::drive::DeviceFlow::default(),
-            Control::Flow => model.drive.device_flow(t_theta, self.y[0]),
+            Control::Flow => model.drive.device_flow(t_theta, self.y[0], self.vapour),
         };
         let well_storage = model.drive.well_storage_m2(t_theta, self.disc.storage[0]);
         for d in &mut dissipated {
@@ -381,6 +489,9 @@ impl Stepper {
         }
         std::mem::swap(&mut self.h, &mut self.scratch);
         self.time_s = t_new;
+        if self.head_dependent {
+            self.update_vapour(model, dt, t_theta);
+        }
         if model.drive.control_at(t_theta) == Control::Flow && well_storage <= 0.0 {
             self.h[0] = self.algebraic_well_head(model, t_new)?;
         }
@@ -396,7 +507,7 @@ impl Stepper {
                 WellRow::Fixed(theta * model.drive.head_m(t_new) + (1.0 - theta) * self.h[0])
             }
             Control::Flow => {
-                let dev = model.drive.device_flow(t_theta, self.y[0]);
+                let dev = model.drive.device_flow(t_theta, self.y[0], self.vapour);
                 let storage = model.drive.well_storage_m2(t_theta, self.disc.storage[0]);
                 WellRow::Storage {
                     s_over_tdt: storage / tdt,

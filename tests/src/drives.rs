@@ -25,6 +25,9 @@ fn surge(clearance: f64, valve: f64) -> SurgeBlock {
         discharge_coefficient: 0.6,
         valve_area_m2: valve,
         ramp_cycles: 2.0,
+        depth_m: 5.0,
+        // No vapour bound: these checks test the flow laws alone.
+        net_atmospheric_head_m: f64::INFINITY,
     }
 }
 
@@ -66,6 +69,7 @@ pub fn volume_balance() -> Vec<CheckResult> {
             submergence_m: 20.0,
             strokes: 0,
             ramp_cycles: 0.0,
+            net_atmospheric_head_m: 10.2,
         }),
         30.0,
     );
@@ -190,6 +194,7 @@ pub fn swab_recovery() -> Vec<CheckResult> {
         submergence_m: 50.0,
         strokes: 1,
         ramp_cycles: 0.0,
+        net_atmospheric_head_m: 10.2,
     };
     // Times measured from the middle of the stroke (superposition of a short extraction).
     let times: Vec<f64> = betas

@@ -282,7 +282,7 @@ pub fn check(a: &CheckArgs) -> Result<(), Failure> {
     let sf = case.safety.safety_factor;
     let rho_g = m.fluid.density_kg_m3 * boreflux_solver::water::GRAVITY_M_S2;
     let ratings =
-        crate::summary::collapse_ratings(&case.safety, crate::summary::pipe_temperature_c(case));
+        crate::summary::collapse_ratings(&case.safety, crate::summary::pipe_temperature_c(&case));
     t += &match (ratings.casing_pa, ratings.screen_pa) {
         (None, None) => "\nCollapse: no rating (give well.collapse_rating, or well.material and well.dimension_ratio; for the screen well.screen_collapse_rating); check the manufacturer's rating before surging.\n".to_string(),
         (c, sc) => format!(
