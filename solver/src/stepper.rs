@@ -451,8 +451,11 @@ impl Stepper {
             volume_out_m3: volume_out,
             storage_change_m3: storage_change,
             device_volume_m3: dt * dev.displacement_m3_s,
-            bypass_volume_m3: dt * dev.bypass_m3_s,
-            well_storage_change_m3: well_storage * (self.scratch[0] - self.h[0]),
+            // A vapour gap under a sealed tool is water missing from the well: it counts as a
+            // (negative) change of the well's storage, not as a flow past the tool.
+            bypass_volume_m3: dt * (dev.bypass_m3_s - dev.vapour_m3_s),
+            well_storage_change_m3: well_storage * (self.scratch[0] - self.h[0])
+                - dt * dev.vapour_m3_s,
             well_residual: {
                 let stored = well_storage * (self.scratch[0] - self.h[0]);
                 let dev_vol = dt * dev.total();

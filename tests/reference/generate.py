@@ -1382,6 +1382,28 @@ def devices():
     p_v = iapws.iapws97._PSat_T(t_c + 273.15) * 1e6
     h_min = -(p_atm - p_v) / (rho * G) - depth
 
+    # Parted time under a sealed surge block over an impermeable formation (hand
+    # calculation, docs/devices.md): block radius rb in casing rc, sinusoidal stroke s at f,
+    # v = pi f s sin(w t). While sealed, the displacement A v leaks in past the block; the
+    # column parts at t1 where A v reaches the leak at the bound, Q_L = Cd A_gap sqrt(2 g
+    # |H_min|), and the gap V(t) = A (s/2)(cos w t1 - cos w t) - Q_L (t - t1) closes at t2.
+    rc, rb, cd, stroke, freq = 0.1, 0.099, 0.6, 0.8, 0.5
+    a_block = math.pi * rb * rb
+    a_gap = math.pi * (rc * rc - rb * rb)
+    w = 2.0 * math.pi * freq
+    q_l = cd * a_gap * math.sqrt(2.0 * G * abs(h_min))
+    t1 = math.asin(q_l / (a_block * math.pi * freq * stroke)) / w
+
+    def gap(t):
+        return a_block * 0.5 * stroke * (math.cos(w * t1) - math.cos(w * t)) - q_l * (t - t1)
+
+    t2 = scipy.optimize.brentq(gap, 0.5 / freq, 1.0 / freq, xtol=1e-14, rtol=1e-15)
+    # Cross-check: the gap at t2 by quadrature of dV/dt = A v - Q_L.
+    v_quad = scipy.integrate.quad(
+        lambda t: a_block * math.pi * freq * stroke * math.sin(w * t) - q_l, t1, t2,
+        epsabs=1e-14, epsrel=1e-12)[0]
+    diffs.append(abs(v_quad) / (a_block * stroke))
+
     return {
         "source": (
             "Collapse: elastic buckling of a long thin ring, Pc = 2E/(1 - nu^2)/(DR - 1)^3 "
@@ -1401,6 +1423,8 @@ def devices():
                 "cross-checked against 2 sigma_y (DR - 1)/DR^2",
                 "p_sat: iapws.iapws97._PSat_T(T); also iapws.IAPWS95(T, x=0).P",
                 "rho: iapws.IAPWS95(T, P=0.101325).rho",
+                "parted time: math.asin for the parting, scipy.optimize.brentq on the gap "
+                "volume for the closing, scipy.integrate.quad as cross-check",
             ],
         },
         "conventions": "SI units; pressures in Pa; heads in m relative to the static level",
@@ -1408,7 +1432,12 @@ def devices():
         "vapour_pressure": vapour,
         "vapour_bound": {"T_C": t_c, "depth_m": depth, "p_atm_pa": p_atm, "rho": f(rho),
                          "p_v_pa": f(p_v), "h_min_m": f(h_min)},
-        "cross_check": "closed-form first-yield pressure vs brentq on the Lame stress",
+        "parted_time": {"casing_radius": rc, "block_radius": rb, "cd": cd, "stroke": stroke,
+                        "frequency": freq, "h_min_m": f(h_min), "leak_m3_s": f(q_l),
+                        "t_part_s": f(t1), "t_close_s": f(t2),
+                        "parted_per_cycle_s": f(t2 - t1)},
+        "cross_check": ("closed-form first-yield pressure vs brentq on the Lame stress; gap "
+                        "volume at closure by quadrature (relative to the stroke volume)"),
         "cross_check_max_rel_diff": f(max(diffs)),
     }
 

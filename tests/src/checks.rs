@@ -106,8 +106,13 @@ pub fn all() -> Vec<Group> {
         },
         Group {
             id: "collapse",
-            title: "Thin-ring collapse pressure",
+            title: "Collapse pressure: thin-ring buckling and first yield",
             run: crate::drives::collapse,
+        },
+        Group {
+            id: "vapour",
+            title: "Vapour bound and column parting under a sealed surge block",
+            run: crate::drives::vapour_bound,
         },
         Group {
             id: "annulus",

@@ -5,11 +5,13 @@ use crate::checks::Recorder;
 use crate::models::homogeneous;
 use crate::reference::{data, load, nums, source};
 use crate::CheckResult;
+use boreflux_solver::devices::net_atmospheric_head_m;
 use boreflux_solver::devices::{Kinematics, PumpBackwash, SurgeBlock, Swab};
 use boreflux_solver::drive::{Drive, Stage};
+use boreflux_solver::model::TimeSpec;
 use boreflux_solver::model::{Model, Well};
 use boreflux_solver::safety::{self, collapse_pressure_pa, thin_ring_collapse_pa, PipeMaterial};
-use boreflux_solver::water::GRAVITY_M_S2;
+use boreflux_solver::water::{self, GRAVITY_M_S2};
 use boreflux_solver::{run, Reporting, RunSummary, StepObserver, StepView};
 use std::f64::consts::PI;
 
@@ -77,6 +79,25 @@ pub fn volume_balance() -> Vec<CheckResult> {
         "swab",
         &run(&swab, &mut Recorder::at(&[]), Reporting::default()).expect("run"),
     ));
+    // Cups 2 m deep lifted at 2 m/s pull 0.063 m³/s, more than this aquifer supplies at the
+    // vapour bound: the column parts and the gap becomes the well's drawdown when the cups
+    // are lowered.
+    let parting = aquifer(
+        Drive::Swab(Swab {
+            cup_radius_m: RW,
+            lift_rate_m_s: 2.0,
+            stroke_m: 3.0,
+            lowering_time_s: 5.0,
+            submergence_m: 2.0,
+            strokes: 0,
+            ramp_cycles: 0.0,
+            net_atmospheric_head_m: 10.2,
+        }),
+        30.0,
+    );
+    let s = run(&parting, &mut Recorder::at(&[]), Reporting::default()).expect("run");
+    assert!(s.column_partings > 0, "the column was meant to part");
+    out.push(volume_check("swab whose column parts", &s));
     let pump = aquifer(
         Drive::PumpBackwash(PumpBackwash {
             pumping_rate_m3_s: 0.01,
@@ -175,6 +196,12 @@ pub fn surge_limits() -> Vec<CheckResult> {
 }
 
 /// A fast single swab stroke, then recovery, against the slug solution (issue #5 check 3).
+///
+/// The cups seal the column below them while rising. With the vapour bound a millimetre
+/// below the static level (the limit of a tool at the surface pulling a column that parts at
+/// once), the formation supplies almost nothing during the short lift, the lifted volume
+/// becomes a vapour gap, and when the cups are lowered the well starts from
+/// H₀ = −A_cup s / S_w = −s and recovers like a slug test.
 pub fn swab_recovery() -> Vec<CheckResult> {
     let v = load(data::SLUG);
     let src = source(&v);
@@ -191,15 +218,15 @@ pub fn swab_recovery() -> Vec<CheckResult> {
         lift_rate_m_s: stroke / lift,
         stroke_m: stroke,
         lowering_time_s: 1.0,
-        submergence_m: 50.0,
+        submergence_m: 1e-3,
         strokes: 1,
         ramp_cycles: 0.0,
-        net_atmospheric_head_m: 10.2,
+        net_atmospheric_head_m: 1e-3,
     };
-    // Times measured from the middle of the stroke (superposition of a short extraction).
+    // Times measured from the end of the lift, when the gap becomes the drawdown.
     let times: Vec<f64> = betas
         .iter()
-        .map(|bb| 0.5 * lift + bb * RW * RW / t_m)
+        .map(|bb| lift + bb * RW * RW / t_m)
         .filter(|&t| t > 2.0 * lift)
         .collect();
     let mut model = homogeneous(
@@ -313,7 +340,7 @@ pub fn collapse() -> Vec<CheckResult> {
         worst,
         1e-9,
         "relative",
-    )    ]
+    )]
     .into_iter()
     .chain(collapse_limits())
     .collect()
@@ -355,9 +382,124 @@ fn collapse_limits() -> Vec<CheckResult> {
     // The closed forms against the script's values: round-off of a few operations (the
     // brentq root is converged to 1e-15 relative).
     vec![
-        CheckResult::new("drives", "elastic collapse, PVC SDR 17/21/26, steel DR 20/28, stainless DR 20", src.clone(), worst_e, 1e-12, "relative"),
-        CheckResult::new("drives", "first-yield collapse (Lamé), same pipes", src.clone(), worst_y, 1e-12, "relative"),
-        CheckResult::new("drives", "governing collapse pressure = the lower limit, same pipes", src.clone(), worst_g, 1e-12, "relative"),
-        CheckResult::new("drives", "built-in material constants = the documented ones", src, worst_const, 0.0, "relative"),
+        CheckResult::new(
+            "drives",
+            "elastic collapse, PVC SDR 17/21/26, steel DR 20/28, stainless DR 20",
+            src.clone(),
+            worst_e,
+            1e-12,
+            "relative",
+        ),
+        CheckResult::new(
+            "drives",
+            "first-yield collapse (Lamé), same pipes",
+            src.clone(),
+            worst_y,
+            1e-12,
+            "relative",
+        ),
+        CheckResult::new(
+            "drives",
+            "governing collapse pressure = the lower limit, same pipes",
+            src.clone(),
+            worst_g,
+            1e-12,
+            "relative",
+        ),
+        CheckResult::new(
+            "drives",
+            "built-in material constants = the documented ones",
+            src,
+            worst_const,
+            0.0,
+            "relative",
+        ),
     ]
+}
+
+/// The vapour bound under a sealed surge block: the bound itself against IAPWS, a sealed
+/// run that never goes below it, and the time the column stays parted against a hand
+/// calculation (reference script, `parted_time` of tests/data/devices.json).
+pub fn vapour_bound() -> Vec<CheckResult> {
+    let v = load(data::DEVICES);
+    let src = source(&v);
+    let b = &v["vapour_bound"];
+    let (t_c, depth) = (b["T_C"].as_f64().unwrap(), b["depth_m"].as_f64().unwrap());
+    let p_atm = b["p_atm_pa"].as_f64().unwrap();
+    let h_min = b["h_min_m"].as_f64().unwrap();
+    let rho = water::density_kg_m3(t_c);
+    let net = net_atmospheric_head_m(p_atm, t_c, rho);
+    let p = &v["parted_time"];
+    let rc = p["casing_radius"].as_f64().unwrap();
+    let block = SurgeBlock {
+        block_radius_m: p["block_radius"].as_f64().unwrap(),
+        casing_radius_m: rc,
+        stroke_m: p["stroke"].as_f64().unwrap(),
+        frequency_hz: p["frequency"].as_f64().unwrap(),
+        kinematics: Kinematics::Sinusoidal,
+        discharge_coefficient: p["cd"].as_f64().unwrap(),
+        valve_area_m2: 0.0,
+        ramp_cycles: 0.0,
+        depth_m: depth,
+        net_atmospheric_head_m: net,
+    };
+    // The bound: Tanaka density against IAPWS-95 (within 1.1e-3 kg/m³, 1.1e-6 relative).
+    let bound = CheckResult::new(
+        "drives",
+        "vapour bound of the head under a tool 3 m deep at 14 °C vs IAPWS",
+        src.clone(),
+        (block.min_head_m() / h_min - 1.0).abs(),
+        2e-6,
+        "relative",
+    );
+    // Hand calculation (module doc of the reference generator): over an impermeable
+    // formation the block's displacement A v leaks in past it at Cd A_gap sqrt(2g|H|) until
+    // that leak, at the bound, is Q_L; the column parts at t1 = asin(Q_L/(A π f s))/ω and the
+    // gap V(t) = A (s/2)(cos ωt1 − cos ωt) − Q_L (t − t1) closes at t2 (brentq). Once per
+    // cycle, for t2 − t1.
+    let cycles = 3.0;
+    let steps = 2000;
+    let mut m = homogeneous(
+        1e-12,
+        1e-5,
+        6.0,
+        rc,
+        Drive::SurgeBlock(block),
+        cycles / block.frequency_hz,
+    );
+    m.well.storage_m2 = Well::free_surface_storage(rc);
+    m.numerics.time = TimeSpec::StepsPerCycle(steps);
+    let mut rec = Recorder::at(&[]);
+    let s = run(&m, &mut rec, Reporting::default()).expect("run");
+    let lowest = rec.well_head.iter().copied().fold(f64::INFINITY, f64::min);
+    let below = CheckResult::new(
+        "drives",
+        "sealed block over a sealed formation: lowest head minus the vapour bound (≥ 0)",
+        "vapour bound H_min = −(p_atm − p_v)/(ρg) − d (IAPWS-IF97 p_v)",
+        (block.min_head_m() - lowest).max(0.0),
+        0.0,
+        "absolute",
+    );
+    let want = cycles * p["parted_per_cycle_s"].as_f64().unwrap();
+    // A step is counted parted when its end has a gap: the step where the column parts
+    // counts whole and the step where it closes not at all, so each parting is off by at
+    // most one step.
+    let dt = 1.0 / (block.frequency_hz * steps as f64);
+    let time = CheckResult::new(
+        "drives",
+        format!("parted time over {cycles} strokes vs hand calculation (brentq)"),
+        src.clone(),
+        (s.parted_time_s - want).abs() / want,
+        cycles * dt / want,
+        "relative",
+    );
+    let count = CheckResult::new(
+        "drives",
+        "partings: one per stroke",
+        src,
+        (s.column_partings as f64 - cycles).abs(),
+        0.0,
+        "absolute",
+    );
+    vec![bound, below, time, count]
 }

@@ -126,3 +126,8 @@ fn schedule_pumping_stage() {
 fn collapse_pressure() {
     assert_group("collapse");
 }
+
+#[test]
+fn vapour_bound_and_column_parting() {
+    assert_group("vapour");
+}

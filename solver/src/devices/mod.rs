@@ -266,13 +266,18 @@ impl Swab {
         self.stroke_m / self.lift_rate_m_s + self.lowering_time_s
     }
 
-    /// Time into the current lift, s, or `None` while the swab is lowered or done.
+    /// Time into the current lift, s, or `None` while the swab is lowered or done. The
+    /// phases are closed on the left of each instant (a lift includes its end, a stroke
+    /// starts just after its start time), so a backward-Euler step that ends on a phase
+    /// change sees the phase it spans.
     fn lift_time(&self, t: f64) -> Option<f64> {
         let p = self.period_s();
-        let n = (t / p).floor();
+        let lift = self.stroke_m / self.lift_rate_m_s;
+        let eps = 1e-9 * p;
+        let n = ((t - eps) / p).floor().max(0.0);
         let tl = t - n * p;
-        ((self.strokes == 0 || n < self.strokes as f64) && tl < self.stroke_m / self.lift_rate_m_s)
-            .then_some(tl)
+        ((self.strokes == 0 || n < self.strokes as f64) && tl > 0.0 && tl <= lift + eps)
+            .then_some(tl.min(lift))
     }
 
     /// True while the cups are rising and seal the column below them.

@@ -77,11 +77,12 @@ mod tests {
 
     #[test]
     fn vapour_flow_holds_the_head_between_the_bound_and_the_margin() {
-        // At the largest pull the head is H_min + δ/2 (module doc, by construction).
+        // At the largest pull the head is H_min + δ/2 (module doc, by construction). The
+        // head difference carries the round-off of |H| ε over δ/2: about 5e-12 relative.
         let (h_min, q_max) = (-12.0, 0.02);
         let h = h_min + 0.5 * VAPOUR_MARGIN_M;
         let (q, dq) = vapour_flow(h, h_min, q_max, VapourState::default());
-        assert!((q - q_max).abs() <= 1e-12 * q_max, "{q}");
+        assert!((q - q_max).abs() <= 1e-11 * q_max, "{q}");
         assert!(dq < 0.0);
         // Above the margin and without a gap, nothing forms.
         let (q, dq) = vapour_flow(h_min + 0.1, h_min, q_max, VapourState::default());

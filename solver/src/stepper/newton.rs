@@ -126,8 +126,13 @@ impl Stepper {
             )
         };
         // Flows below the current screen and device flows are round-off in absolute terms.
-        let unit = (q_now.abs() + model.drive.device_flow(t, self.y[0], self.vapour).total().abs())
-            .max(f64::MIN_POSITIVE);
+        let unit = (q_now.abs()
+            + model
+                .drive
+                .device_flow(t, self.y[0], self.vapour)
+                .total()
+                .abs())
+        .max(f64::MIN_POSITIVE);
         bracketed_root(t, q_now, unit, 1e-15 * unit, f)
     }
 

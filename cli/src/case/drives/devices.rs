@@ -8,9 +8,9 @@
 use super::{into_map, read_keys, DriveContext, ParsedDrive};
 use crate::case::checks::{non_negative, positive};
 use crate::case::error::CaseError;
+use crate::case::quantity::Pressure;
 use crate::case::quantity::{Area, Frequency, Kind, Length, Time, Q};
 use crate::units::{format_si, Quantity};
-use crate::case::quantity::Pressure;
 use boreflux_solver::devices::{net_atmospheric_head_m, Kinematics, SurgeBlock, Swab};
 use boreflux_solver::water::{vapour_pressure_pa, STANDARD_ATMOSPHERE_PA};
 use boreflux_solver::Drive;
