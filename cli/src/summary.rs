@@ -233,7 +233,8 @@ pub fn collapse_ratings(s: &crate::case::SafetyInputs, temp_c: f64) -> CollapseR
             (Some(dr), Some(m)) => {
                 let l = safety::collapse_pressure_pa(&m, dr, temp_c);
                 how.push(format!(
-                    "casing: lower of elastic buckling {} kPa (thin ring) and first yield {} kPa                      (Lamé) at DR {dr}{}; no safety factor in it",
+                    "casing: lower of elastic buckling {} kPa (thin ring) and first yield {} kPa \
+                     (Lamé) at DR {dr}{}; no safety factor in it",
                     G(l.elastic_pa / 1e3, 4),
                     G(l.yield_pa / 1e3, 4),
                     if m.thermoplastic {
@@ -268,7 +269,9 @@ pub fn collapse_ratings(s: &crate::case::SafetyInputs, temp_c: f64) -> CollapseR
         (None, None) => {
             if casing.is_some() {
                 how.push(
-                    "screen: no rating computed: slotted or wire-wrap screen is weaker than                      blank pipe by an amount only its maker can state; enter                      well.screen_collapse_rating (or an explicit well.slot_derating)"
+                    "screen: no rating computed: slotted or wire-wrap screen is weaker than \
+                     blank pipe by an amount only its maker can state; enter \
+                     well.screen_collapse_rating (or an explicit well.slot_derating)"
                         .to_owned(),
                 );
             }
