@@ -352,6 +352,57 @@ fn collapse_cause(drive: &boreflux_solver::Drive, s: &RunSummary) -> String {
     }
 }
 
+/// Warnings of pump-and-backwash drives: a broken suction (the level reached the intake)
+/// and a back-flow too small to reverse the flow at the wall. Each names its driver; a
+/// deeper intake is suggested only when no collapse risk was found.
+fn pump_warnings(
+    drive: &boreflux_solver::Drive,
+    s: &RunSummary,
+    collapse_risk: bool,
+) -> Vec<String> {
+    use boreflux_solver::Drive;
+    let pumps: Vec<_> = match drive {
+        Drive::PumpBackwash(p) => vec![*p],
+        Drive::Schedule(st) => st
+            .iter()
+            .filter_map(|x| match &x.drive {
+                Drive::PumpBackwash(p) => Some(*p),
+                _ => None,
+            })
+            .collect(),
+        _ => vec![],
+    };
+    let mut out = Vec::new();
+    for p in pumps {
+        if p.suction_broken(s.well_head_range_m.0) {
+            out.push(format!(
+                "the pump broke suction: the level reached its intake {:.1} m below the static \
+                 level, so the drawdown was capped there and the pump delivered only what the \
+                 formation supplied; pump at a lower rate{}",
+                p.intake_depth_m,
+                if collapse_risk {
+                    ""
+                } else {
+                    " (or, where the screen and casing ratings allow the deeper drawdown, set \
+                     the intake deeper)"
+                }
+            ));
+        }
+    }
+    // Only when pump-and-backwash is the whole drive: a schedule's other stages may
+    // reverse the flow on their own.
+    if matches!(drive, Drive::PumpBackwash(_)) && s.peak_outward_flux_m_s <= 0.0 {
+        out.push(
+            "the back-flow never reversed the flow at the borehole wall: the water draining \
+             back at each stop was less than the formation's inflow while the well recovered, \
+             so this pump-and-backwash worked one way only (development needs flow both ways); \
+             a longer riser column, a faster drain or a shorter on-time gives more back-flow"
+                .to_owned(),
+        );
+    }
+    out
+}
+
 /// Computes the headline figures and the warnings.
 pub fn headline(case: &LoadedCase, s: &RunSummary, t: &Tracker) -> Headline {
     let m = &case.model;
@@ -435,6 +486,8 @@ pub fn headline(case: &LoadedCase, s: &RunSummary, t: &Tracker) -> Headline {
             ratings.casing_pa.unwrap_or(0.0) / 1e3
         ));
     }
+    let collapse_risk = warnings.iter().any(|w| w.starts_with("COLLAPSE RISK"));
+    warnings.extend(pump_warnings(&m.drive, s, collapse_risk));
     if let Some(c) = &m.cake {
         if let Some(e) = &c.erosion {
             if s.cake_thickness_m.1 >= s.cake_thickness_m.0 {

@@ -4,7 +4,7 @@
 //! expected field path and a message naming the bad value.
 
 use boreflux::case::{load_case, parse_case, scenario_companions, scenarios, schema, LoadedCase};
-use boreflux_solver::devices::Kinematics;
+use boreflux_solver::devices::{Backflow, Kinematics, PumpLaw};
 use boreflux_solver::diagnostics::NullObserver;
 use boreflux_solver::drive::{Drive, TableQuantity};
 use boreflux_solver::model::{GridSpec, OuterBoundary, TimeSpec};
@@ -543,8 +543,9 @@ const BAD_CASES: &[(&str, &str, &[&str])] = &[
     ("reversal_time_on_sinusoidal", "drive.reversal_time", &["\"trapezoidal\" only"]),
     ("trapezoidal_without_reversal", "drive.reversal_time", &["required key is missing for kinematics \"trapezoidal\""]),
     ("frequency_and_strokes_per_minute", "drive.strokes_per_minute", &["either frequency or strokes_per_minute"]),
-    ("backflow_volume_and_riser", "drive.backflow_volume", &["either backflow_volume or riser_radius with riser_length", "not both"]),
-    ("riser_length_missing", "drive.riser_length", &["required key is missing", "riser_radius is given"]),
+    ("backflow_volume_and_riser", "drive.backflow_volume", &["either backflow_volume or riser_radius", "not both"]),
+    ("intake_depth_missing", "drive.intake_depth", &["missing"]),
+    ("pumping_rate_and_curve", "drive.pump_curve", &["either pumping_rate or pump_curve"]),
     ("zero_nozzles", "drive.nozzles", &["at least 1, got 0"]),
     ("jet_passes_overlap", "drive.jet_width", &["passes overlap"]),
     ("negative_lift_rate", "drive.lift_rate", &["must be positive", "got -0.5 m/s"]),
@@ -873,37 +874,66 @@ fn swab_keys_land_in_si() {
 fn pump_backwash_keys_land_in_si() {
     let c = parse_drive_case(
         r#"{ "kind": "pump_backwash", "pumping_rate": "800 gpm", "on_time": "3 min",
-             "off_time": "2 min", "backflow_volume": "100 gal", "cycles": 4 }"#,
+             "off_time": "2 min", "backflow_volume": "100 gal", "cycles": 4,
+             "intake_depth": "40 ft" }"#,
         Some(r#""20 min""#),
     );
     let Drive::PumpBackwash(p) = &c.model.drive else {
         panic!("{:?}", c.model.drive)
     };
-    // 1 US gal = 3.785411784e-3 m³ (NIST SP 811, exact); 1 min = 60 s.
-    assert!(rel(p.pumping_rate_m3_s, 800.0 * 3.785_411_784e-3 / 60.0) < EXACT);
-    assert!(rel(p.backflow_volume_m3, 0.378_541_178_4) < EXACT);
+    // 1 US gal = 3.785411784e-3 m³, 1 ft = 0.3048 m (NIST SP 811, exact); 1 min = 60 s.
+    assert_eq!(
+        p.pump,
+        PumpLaw::ConstantRate(800.0 * 3.785_411_784e-3 / 60.0)
+    );
+    let Backflow::Volume(v) = p.backflow else {
+        panic!("{:?}", p.backflow)
+    };
+    assert!(rel(v, 0.378_541_178_4) < EXACT);
+    assert!(rel(p.intake_depth_m, 12.192) < EXACT);
     assert_eq!((p.on_time_s, p.off_time_s, p.cycles), (180.0, 120.0, 4));
-    // Drain time default: 5 s, an assumption the notes call one.
-    assert_eq!(p.drain_time_s, 5.0);
-    assert!(c.notes.iter().any(|n| n.contains("an assumption")));
+    // Drain time and discharge height defaults: 5 s and 0 m, assumptions the notes call so.
+    assert_eq!((p.drain_time_s, p.discharge_height_m), (5.0, 0.0));
+    assert!(c.notes.iter().any(|n| n.contains("drain time not given")));
+    assert!(c
+        .notes
+        .iter()
+        .any(|n| n.contains("discharge height not given")));
 
-    // The back-flow as the riser's water: π r² L with r = 3 in = 0.0762 m and L = 95 ft
-    // = 28.956 m (NIST SP 811, exact).
+    // A pump curve through H0 = 40 m and 20 m at 50 L/s: a = 20/0.05² = 8000 s²/m⁵; the
+    // riser of radius 3 in = 0.0762 m (NIST SP 811, exact) drains back.
     let r = parse_drive_case(
-        r#"{ "kind": "pump_backwash", "pumping_rate": "50 L/s", "on_time": "3 min",
-             "off_time": "2 min", "riser_radius": "3 in", "riser_length": "95 ft",
+        r#"{ "kind": "pump_backwash", "on_time": "3 min", "off_time": "2 min",
+             "pump_curve": { "shutoff_head": "40 m", "rated_rate": "50 L/s",
+                             "rated_head": "20 m" },
+             "riser_radius": "3 in", "intake_depth": "12 m", "discharge_height": "29 m",
              "drain_time": "12 s" }"#,
         Some(r#""3 cycles""#),
     );
     let Drive::PumpBackwash(p) = &r.model.drive else {
         panic!("{:?}", r.model.drive)
     };
-    assert!(rel(p.backflow_volume_m3, PI * 0.0762 * 0.0762 * 28.956) < EXACT);
-    assert_eq!((p.drain_time_s, p.cycles), (12.0, 0));
+    let PumpLaw::Quadratic {
+        shutoff_head_m,
+        coefficient_s2_m5,
+    } = p.pump
+    else {
+        panic!("{:?}", p.pump)
+    };
+    assert_eq!(shutoff_head_m, 40.0);
+    assert!(rel(coefficient_s2_m5, 8000.0) < EXACT);
+    let Backflow::Riser(a) = p.backflow else {
+        panic!("{:?}", p.backflow)
+    };
+    assert!(rel(a, PI * 0.0762 * 0.0762) < EXACT);
+    assert_eq!(
+        (p.drain_time_s, p.cycles, p.discharge_height_m),
+        (12.0, 0, 29.0)
+    );
     assert_eq!(r.model.duration_s, 900.0);
     let d = &r.resolved["drive"];
-    assert!(d.get("riser_radius").is_none() && d.get("riser_length").is_none());
-    assert_eq!(d["backflow_volume"].as_f64(), Some(p.backflow_volume_m3));
+    assert_eq!(d["riser_radius"].as_f64(), Some(0.0762));
+    assert_eq!(d["pump_curve"]["rated_rate"].as_f64(), Some(0.05));
 }
 
 #[test]
@@ -978,7 +1008,6 @@ fn schedule_stages_land_in_si() {
     assert!(rel(b.frequency_hz, 0.2) < EXACT);
     assert!(rel(b.block_radius_m, CASING_M - 0.0015) < EXACT);
     assert_eq!(b.depth_m, 5.0);
-    assert_eq!(d.resolved["drive"]["atmospheric_pressure"], 101_325.0);
     assert!(matches!(stages[1].drive, Drive::Swab(_)));
     let Drive::Table(t) = &stages[2].drive else {
         panic!("{:?}", stages[2].drive)

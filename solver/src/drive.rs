@@ -257,7 +257,14 @@ impl Drive {
                     d_dh_m2_s: dv,
                 }
             }
-            Drive::PumpBackwash(p) => displacement(p.flow(t)),
+            Drive::PumpBackwash(p) => {
+                let (q, d) = p.flows(t, h_well_m);
+                DeviceFlow {
+                    displacement_m3_s: q,
+                    d_dh_m2_s: d,
+                    ..DeviceFlow::default()
+                }
+            }
             _ => DeviceFlow::default(),
         }
     }
@@ -283,10 +290,21 @@ impl Drive {
         }
     }
 
+    /// True when the in-well head H at time t is at a device's limit: within the margin of
+    /// the vapour bound under a sealed tool, or in the band above a pump's intake where it
+    /// breaks suction.
+    pub fn at_limit(&self, t: f64, h: f64) -> bool {
+        match self.stage_at(t) {
+            (Drive::PumpBackwash(p), tl) => p.is_on(tl) && p.suction_broken(h),
+            _ => h < self.vapour_bound_m(t) + crate::devices::VAPOUR_MARGIN_M,
+        }
+    }
+
     /// True when the device flow depends on the in-well head (then every step iterates).
     pub fn is_head_dependent(&self) -> bool {
         match self {
             Drive::SurgeBlock(_) | Drive::Swab(_) => true,
+            Drive::PumpBackwash(p) => p.is_head_dependent(),
             Drive::Schedule(stages) => stages.iter().any(|s| s.drive.is_head_dependent()),
             _ => false,
         }

@@ -39,7 +39,7 @@
 //! When the cells are linear (Darcy faces) the update is exact in one step, whatever the
 //! well's laws.
 
-use crate::devices::{VapourState, VAPOUR_MARGIN_M};
+use crate::devices::VapourState;
 use crate::drive::Control;
 use crate::error::SolverError;
 use crate::grid::ZONE_COUNT;
@@ -279,11 +279,14 @@ impl Stepper {
         }
         self.was_sealed = storage <= 0.0;
         self.vapour.min_rate_m3_s = -self.vapour.gap_m3 / dt;
-        // While the column is parted the well head is pinned at the vapour bound: a kink in
-        // the forcing that Crank–Nicolson would leave ringing in the stiff pack cells. Those
-        // steps, and the two after the gap closes, are backward Euler (its numerical
-        // dissipation is in the step's energy balance).
-        let theta = if self.vapour.gap_m3 > 0.0 || self.damped_steps > 0 {
+        // At a device's limit (a parted column pinned at the vapour bound, a pump that has
+        // broken suction) the well head is held by a kink in the device's law, which
+        // Crank–Nicolson would leave ringing in the stiff pack cells. Those steps, and the
+        // two after the column closes again, are backward Euler (its numerical dissipation
+        // is in the step's energy balance).
+        let at_limit =
+            |st: &Stepper| st.vapour.gap_m3 > 0.0 || model.drive.at_limit(st.time_s, st.h[0]);
+        let theta = if at_limit(self) || self.damped_steps > 0 {
             1.0
         } else {
             theta
@@ -296,14 +299,10 @@ impl Stepper {
             self.time_s,
         );
         let mut r = self.step_inner(model, dt, theta);
-        let at_bound = |st: &Stepper| {
-            st.vapour.gap_m3 > 0.0
-                || st.h[0] < model.drive.vapour_bound_m(st.time_s) + VAPOUR_MARGIN_M
-        };
-        if r.is_ok() && theta != 1.0 && start.0.gap_m3 == 0.0 && at_bound(self) {
-            // The column parted in this step, or its end reached the vapour bound: redo it
-            // as backward Euler, since the Crank–Nicolson end-of-step heads overshoot the
-            // kink. After the step the scratch array holds the heads it started from.
+        if r.is_ok() && theta != 1.0 && at_limit(self) {
+            // The step reached a limit: redo it as backward Euler, since the
+            // Crank–Nicolson end-of-step heads overshoot the kink. After the step the
+            // scratch array holds the heads it started from.
             std::mem::swap(&mut self.h, &mut self.scratch);
             (
                 self.vapour,

@@ -1404,6 +1404,27 @@ def devices():
         epsabs=1e-14, epsrel=1e-12)[0]
     diffs.append(abs(v_quad) / (a_block * stroke))
 
+    # Steady pumping with a pump curve H_p = H0 - a Q^2 lifting from the well level to a
+    # discharge z_d above static, from a confined aquifer with a skin (Thiem with Hawkins
+    # skin): the well head is H = -Q (ln(R/rw) + S)/(2 pi T) and the pump runs where
+    # H0 - a Q^2 = z_d - H.
+    pk = {"K": 2e-4, "b": 6.0, "rw": 0.1, "R": 100.0, "K_skin": 4e-5, "r_skin": 0.2,
+          "H0": 40.0, "a": 1e5, "z_d": 10.0}
+    skin = (pk["K"] / pk["K_skin"] - 1.0) * math.log(pk["r_skin"] / pk["rw"])
+    t_aq = pk["K"] * pk["b"]
+    per_q = (math.log(pk["R"] / pk["rw"]) + skin) / (2.0 * math.pi * t_aq)
+
+    def mismatch(q):
+        return pk["H0"] - pk["a"] * q * q - pk["z_d"] - per_q * q
+
+    q_star = scipy.optimize.brentq(mismatch, 0.0, math.sqrt(pk["H0"] / pk["a"]),
+                                   xtol=1e-16, rtol=1e-15)
+    # Cross-check: the positive root of the quadratic a Q^2 + c Q - (H0 - z_d) = 0.
+    c = per_q
+    q_quad = (-c + math.sqrt(c * c + 4.0 * pk["a"] * (pk["H0"] - pk["z_d"]))) / (2.0 * pk["a"])
+    diffs.append(rel_diff(q_star, q_quad))
+    pump_curve = dict(pk, skin=f(skin), Q_m3_s=f(q_star), H_well_m=f(-per_q * q_star))
+
     return {
         "source": (
             "Collapse: elastic buckling of a long thin ring, Pc = 2E/(1 - nu^2)/(DR - 1)^3 "
@@ -1436,8 +1457,10 @@ def devices():
                         "frequency": freq, "h_min_m": f(h_min), "leak_m3_s": f(q_l),
                         "t_part_s": f(t1), "t_close_s": f(t2),
                         "parted_per_cycle_s": f(t2 - t1)},
+        "pump_curve": pump_curve,
         "cross_check": ("closed-form first-yield pressure vs brentq on the Lame stress; gap "
-                        "volume at closure by quadrature (relative to the stroke volume)"),
+                        "volume at closure by quadrature (relative to the stroke volume); pump "
+                        "operating point by brentq vs the quadratic formula"),
         "cross_check_max_rel_diff": f(max(diffs)),
     }
 

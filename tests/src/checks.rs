@@ -110,6 +110,11 @@ pub fn all() -> Vec<Group> {
             run: crate::drives::collapse,
         },
         Group {
+            id: "pump",
+            title: "Pump curve and suction break at steady state",
+            run: crate::drives::pump_curve,
+        },
+        Group {
             id: "vapour",
             title: "Vapour bound and column parting under a sealed surge block",
             run: crate::drives::vapour_bound,

@@ -128,6 +128,11 @@ fn collapse_pressure() {
 }
 
 #[test]
+fn pump_curve_and_suction_break() {
+    assert_group("pump");
+}
+
+#[test]
 fn vapour_bound_and_column_parting() {
     assert_group("vapour");
 }

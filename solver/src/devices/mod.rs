@@ -6,7 +6,10 @@
 //! states its assumptions. A tool that seals the column below it (surge block, swab cups on
 //! the upstroke) cannot pull the water below its vapour pressure: see [`vapour`].
 
+pub mod pump;
 pub mod vapour;
+
+pub use pump::{Backflow, PumpBackwash, PumpLaw, SUCTION_BAND_M};
 
 pub use vapour::{net_atmospheric_head_m, vapour_flow, VapourState, VAPOUR_MARGIN_M};
 
@@ -31,7 +34,7 @@ pub fn orifice_flow(cd_area_m2: f64, dh_m: f64) -> (f64, f64) {
 }
 
 /// Amplitude factor of a ramp over the first `ramp_cycles` periods (linear from 0 to 1).
-fn ramp(t: f64, period: f64, ramp_cycles: f64) -> f64 {
+pub(crate) fn ramp(t: f64, period: f64, ramp_cycles: f64) -> f64 {
     if ramp_cycles > 0.0 {
         (t / (ramp_cycles * period)).min(1.0)
     } else {
@@ -347,95 +350,6 @@ impl Swab {
             ));
         }
         depth_and_atmosphere(self.submergence_m, self.net_atmospheric_head_m)
-    }
-}
-
-/// Pump-and-backwash surging: pump for an on-time, stop, and let the water standing in the
-/// pump column drain back into the well, pushing water outward; repeat.
-///
-/// ```text
-/// Q_dev = −Q_p                                   on
-/// Q_dev = (V_b/τ) exp(−(t − t_stop)/τ)           off (backflow of volume V_b, time constant τ)
-/// ```
-#[derive(Debug, Clone, Copy, PartialEq)]
-pub struct PumpBackwash {
-    /// Pumping rate while on, m³/s (positive = withdrawal).
-    pub pumping_rate_m3_s: f64,
-    /// Pump running time per cycle, s.
-    pub on_time_s: f64,
-    /// Pump stopped time per cycle, s.
-    pub off_time_s: f64,
-    /// Volume that drains back from the pump column at each stop, m³.
-    pub backflow_volume_m3: f64,
-    /// Time constant of the drain-back, s.
-    pub drain_time_s: f64,
-    /// Number of cycles (0 = for the whole run).
-    pub cycles: u32,
-    /// The pumping rate (and so the back-flow) grows linearly from 0 over this many cycles.
-    pub ramp_cycles: f64,
-}
-
-impl PumpBackwash {
-    /// Cycle length, s.
-    pub fn period_s(&self) -> f64 {
-        self.on_time_s + self.off_time_s
-    }
-
-    /// Device flow at time t, m³/s (positive outward).
-    pub fn flow(&self, t: f64) -> f64 {
-        let p = self.period_s();
-        let n = (t / p).floor();
-        if self.cycles > 0 && n >= self.cycles as f64 {
-            return 0.0;
-        }
-        let tl = t - n * p;
-        // The ramp is held over each cycle (evaluated at its start), so a stop drains back
-        // what that cycle pumped up.
-        let scale = ramp(n * p + p, p, self.ramp_cycles);
-        if tl < self.on_time_s {
-            -scale * self.pumping_rate_m3_s
-        } else {
-            let tau = self.drain_time_s;
-            scale * self.backflow_volume_m3 / tau * (-(tl - self.on_time_s) / tau).exp()
-        }
-    }
-
-    pub(crate) fn events(&self, t: f64) -> Option<(f64, bool)> {
-        let p = self.period_s();
-        let n = (t / p).floor();
-        if self.cycles > 0 && n >= self.cycles as f64 {
-            return None;
-        }
-        let tl = t - n * p;
-        let eps = 1e-12 * p;
-        Some(if tl < self.on_time_s - eps {
-            (n * p + self.on_time_s, true)
-        } else {
-            ((n + 1.0) * p, true)
-        })
-    }
-
-    pub(crate) fn validate(&self) -> Result<(), SolverError> {
-        for (f, v) in [
-            ("drive.pumping_rate", self.pumping_rate_m3_s),
-            ("drive.on_time", self.on_time_s),
-            ("drive.off_time", self.off_time_s),
-            ("drive.drain_time", self.drain_time_s),
-        ] {
-            if !(v.is_finite() && v > 0.0) {
-                return Err(SolverError::invalid(
-                    f,
-                    format!("must be positive, got {v}"),
-                ));
-            }
-        }
-        if !(self.backflow_volume_m3.is_finite() && self.backflow_volume_m3 >= 0.0) {
-            return Err(SolverError::invalid(
-                "drive.backflow_volume",
-                format!("must be zero or positive, got {}", self.backflow_volume_m3),
-            ));
-        }
-        Ok(())
     }
 }
 
