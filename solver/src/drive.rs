@@ -103,6 +103,9 @@ pub struct DeviceFlow {
     pub bypass_m3_s: f64,
     /// Rate at which a vapour gap opens (positive) or closes under a sealed tool, m³/s.
     pub vapour_m3_s: f64,
+    /// Shift between the well node's head and the in-well level that is not water (the
+    /// jet's area-weighted excess head, S_w de/dt), m³/s; included in `displacement_m3_s`.
+    pub offset_m3_s: f64,
     /// d(displacement + bypass)/dH.
     pub d_dh_m2_s: f64,
 }
@@ -200,7 +203,7 @@ impl Drive {
     /// Whether the drive prescribes head or adds flow at time t.
     pub fn control_at(&self, t: f64) -> Control {
         match self.stage_at(t).0 {
-            Drive::SineHead(_) | Drive::JetPulse(_) => Control::Head,
+            Drive::SineHead(_) => Control::Head,
             Drive::Table(t) if t.quantity == TableQuantity::Head => Control::Head,
             _ => Control::Flow,
         }
@@ -220,7 +223,6 @@ impl Drive {
                 s.offset_m + ramp * s.amplitude_m * (2.0 * PI * s.frequency_hz * t).sin()
             }
             Drive::Table(tab) if tab.quantity == TableQuantity::Head => tab.value_at(t),
-            Drive::JetPulse(j) => j.head_m(t),
             _ => 0.0,
         }
     }
@@ -246,6 +248,7 @@ impl Drive {
                     bypass_m3_s: bypass + qv,
                     vapour_m3_s: qv,
                     d_dh_m2_s: d + dv,
+                    offset_m3_s: 0.0,
                 }
             }
             Drive::Swab(s) => {
@@ -255,6 +258,15 @@ impl Drive {
                     bypass_m3_s: qv,
                     vapour_m3_s: qv,
                     d_dh_m2_s: dv,
+                    offset_m3_s: 0.0,
+                }
+            }
+            Drive::JetPulse(j) => {
+                let (q, offset) = j.flows(t);
+                DeviceFlow {
+                    displacement_m3_s: q + offset,
+                    offset_m3_s: offset,
+                    ..DeviceFlow::default()
                 }
             }
             Drive::PumpBackwash(p) => {
@@ -314,6 +326,7 @@ impl Drive {
     pub fn initial_well_head_m(&self) -> f64 {
         match self.stage_at(0.0).0 {
             Drive::Slug { initial_head_m } => *initial_head_m,
+            Drive::JetPulse(j) => j.offset_m(0.0),
             _ => self.head_m(0.0),
         }
     }
@@ -367,7 +380,6 @@ impl Drive {
     /// Largest step that resolves the drive's shortest feature, s.
     pub fn max_step_s(&self) -> Option<f64> {
         match self {
-            Drive::JetPulse(j) => Some(j.pulse_s() / 20.0),
             Drive::Schedule(stages) => stages
                 .iter()
                 .filter_map(|s| s.drive.max_step_s())

@@ -449,12 +449,13 @@ impl Stepper {
             volume_in_m3: volume_in,
             volume_out_m3: volume_out,
             storage_change_m3: storage_change,
-            device_volume_m3: dt * dev.displacement_m3_s,
             // A vapour gap under a sealed tool is water missing from the well: it counts as a
             // (negative) change of the well's storage, not as a flow past the tool.
+            // The jet's head offset likewise shifts the node's head without moving water.
+            device_volume_m3: dt * (dev.displacement_m3_s - dev.offset_m3_s),
             bypass_volume_m3: dt * (dev.bypass_m3_s - dev.vapour_m3_s),
             well_storage_change_m3: well_storage * (self.scratch[0] - self.h[0])
-                - dt * dev.vapour_m3_s,
+                - dt * (dev.vapour_m3_s + dev.offset_m3_s),
             well_residual: {
                 let stored = well_storage * (self.scratch[0] - self.h[0]);
                 let dev_vol = dt * dev.total();

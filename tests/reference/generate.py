@@ -1425,6 +1425,14 @@ def devices():
     diffs.append(rel_diff(q_star, q_quad))
     pump_curve = dict(pk, skin=f(skin), Q_m3_s=f(q_star), H_well_m=f(-per_q * q_star))
 
+    # Jet: flow through n nozzles of diameter d at exit velocity v, and the stagnation
+    # pressure of the share eta of the velocity head (Bernoulli, p = eta rho v^2/2).
+    jet = {"n": 2, "d": 0.008, "v": 45.0, "eta": 0.5, "T_C": 16.0}
+    rho_j = iapws.IAPWS95(T=jet["T_C"] + 273.15, P=0.101325).rho
+    jet["Q_m3_s"] = f(jet["n"] * math.pi * jet["d"] ** 2 / 4.0 * jet["v"])
+    jet["rho"] = f(rho_j)
+    jet["p_stag_pa"] = f(jet["eta"] * rho_j * jet["v"] ** 2 / 2.0)
+
     return {
         "source": (
             "Collapse: elastic buckling of a long thin ring, Pc = 2E/(1 - nu^2)/(DR - 1)^3 "
@@ -1458,6 +1466,7 @@ def devices():
                         "t_part_s": f(t1), "t_close_s": f(t2),
                         "parted_per_cycle_s": f(t2 - t1)},
         "pump_curve": pump_curve,
+        "jet": jet,
         "cross_check": ("closed-form first-yield pressure vs brentq on the Lame stress; gap "
                         "volume at closure by quadrature (relative to the stroke volume); pump "
                         "operating point by brentq vs the quadratic formula"),

@@ -115,6 +115,11 @@ pub fn all() -> Vec<Group> {
             run: crate::drives::pump_curve,
         },
         Group {
+            id: "jet",
+            title: "Jetting: nozzle flow, stagnation pressure and the well's volume balance",
+            run: crate::drives::jet_balance,
+        },
+        Group {
             id: "vapour",
             title: "Vapour bound and column parting under a sealed surge block",
             run: crate::drives::vapour_bound,

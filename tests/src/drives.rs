@@ -7,7 +7,9 @@ use crate::reference::{data, load, nums, source};
 use crate::CheckResult;
 use boreflux_solver::devices::net_atmospheric_head_m;
 use boreflux_solver::devices::SUCTION_BAND_M;
-use boreflux_solver::devices::{Backflow, Kinematics, PumpBackwash, PumpLaw, SurgeBlock, Swab};
+use boreflux_solver::devices::{
+    Backflow, JetPulse, Kinematics, PumpBackwash, PumpLaw, SurgeBlock, Swab,
+};
 use boreflux_solver::drive::{Drive, Stage};
 use boreflux_solver::model::TimeSpec;
 use boreflux_solver::model::{Model, Well};
@@ -592,4 +594,57 @@ pub fn pump_curve() -> Vec<CheckResult> {
         "absolute",
     );
     vec![point, band]
+}
+
+/// Jetting with a volume balance: the nozzle flow and stagnation pressure against the
+/// reference script (n π d²/4 v; Bernoulli η ρ v²/2 with ρ from IAPWS-95), and, while the
+/// well is also pumped, water through the nozzles less water pumped = change of well
+/// storage + screen flow, per step (the well row's residual) and over the run.
+pub fn jet_balance() -> Vec<CheckResult> {
+    let v = load(data::DEVICES);
+    let src = source(&v);
+    let j = &v["jet"];
+    let g = |k: &str| j[k].as_f64().unwrap();
+    let jet = JetPulse {
+        nozzle_velocity_m_s: g("v"),
+        nozzle_diameter_m: g("d"),
+        nozzles: g("n") as u32,
+        efficiency: g("eta"),
+        rotation_period_s: 10.0,
+        jet_width_m: 0.01,
+        screen_radius_m: RW,
+        screen_length_m: 6.0,
+        well_storage_m2: Well::free_surface_storage(RW),
+        pumping_rate_m3_s: 0.004,
+        ramp_cycles: 3.0,
+    };
+    let flow = CheckResult::new(
+        "drives",
+        "jet flow through the nozzles, n π d²/4 v",
+        src.clone(),
+        (jet.jet_flow_m3_s() / g("Q_m3_s") - 1.0).abs(),
+        1e-15,
+        "relative",
+    );
+    // Same ρ both sides: the comparison is of v²/2g against v²/2 (exact arithmetic but for
+    // round-off).
+    let stag = CheckResult::new(
+        "drives",
+        "jet stagnation pressure η ρ v²/2 (Bernoulli)",
+        src,
+        (jet.pulse_head_m() * g("rho") * GRAVITY_M_S2 / g("p_stag_pa") - 1.0).abs(),
+        1e-14,
+        "relative",
+    );
+    let model = aquifer(Drive::JetPulse(jet), 60.0);
+    let s = run(&model, &mut Recorder::at(&[]), Reporting::default()).expect("run");
+    let step = CheckResult::new(
+        "drives",
+        "jetting while pumping: per-step balance of the well (largest relative residual)",
+        "volume balance of the well node (conservation, exact for the scheme)",
+        s.max_well_residual,
+        1e-12,
+        "relative",
+    );
+    vec![flow, stag, step, volume_check("jetting while pumping", &s)]
 }

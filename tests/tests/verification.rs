@@ -133,6 +133,11 @@ fn pump_curve_and_suction_break() {
 }
 
 #[test]
+fn jet_volume_balance() {
+    assert_group("jet");
+}
+
+#[test]
 fn vapour_bound_and_column_parting() {
     assert_group("vapour");
 }

@@ -323,7 +323,8 @@ mod tests {
             ),
             (
                 "jet_pulse",
-                json!({ "kind": "jet_pulse", "nozzle_velocity": "30 m/s", "rotation_period": "10 s" }),
+                json!({ "kind": "jet_pulse", "nozzle_velocity": "30 m/s", "rotation_period": "10 s",
+                        "nozzle_diameter": "8 mm" }),
             ),
         ]
     }

@@ -6,9 +6,11 @@
 //! states its assumptions. A tool that seals the column below it (surge block, swab cups on
 //! the upstroke) cannot pull the water below its vapour pressure: see [`vapour`].
 
+pub mod jet;
 pub mod pump;
 pub mod vapour;
 
+pub use jet::JetPulse;
 pub use pump::{Backflow, PumpBackwash, PumpLaw, SUCTION_BAND_M};
 
 pub use vapour::{net_atmospheric_head_m, vapour_flow, VapourState, VAPOUR_MARGIN_M};
@@ -350,107 +352,5 @@ impl Swab {
             ));
         }
         depth_and_atmosphere(self.submergence_m, self.net_atmospheric_head_m)
-    }
-}
-
-/// A rotating horizontal jet passing one point of the screen, as a train of head pulses.
-///
-/// A one-dimensional radial model cannot represent a jet: it spreads each pulse over the
-/// whole circumference and screen length. The pulse height is the jet's stagnation head
-/// `h_j = η v²/(2g)` and each pass lasts the time the jet (width w) takes to sweep past a
-/// point, `t_p = w/(2π r_s) · T_rot`; between passes the in-well head is the static level.
-///
-/// ```text
-/// H(t) = h_j sin²(π τ/t_p)   for 0 ≤ τ < t_p after the start of each pass, else 0
-/// ```
-#[derive(Debug, Clone, Copy, PartialEq)]
-pub struct JetPulse {
-    /// Nozzle exit velocity, m/s.
-    pub nozzle_velocity_m_s: f64,
-    /// Fraction of the velocity head that reaches the screen, –.
-    pub efficiency: f64,
-    /// Time for one turn of the jetting tool, s.
-    pub rotation_period_s: f64,
-    /// Number of nozzles on the ring.
-    pub nozzles: u32,
-    /// Width of the jet where it meets the screen, m.
-    pub jet_width_m: f64,
-    /// Screen radius, m (for the sweep time).
-    pub screen_radius_m: f64,
-    /// The pulse head grows linearly from 0 over this many passes.
-    pub ramp_cycles: f64,
-}
-
-impl JetPulse {
-    /// Stagnation head of the jet at the screen, m.
-    pub fn pulse_head_m(&self) -> f64 {
-        self.efficiency * self.nozzle_velocity_m_s * self.nozzle_velocity_m_s / (2.0 * GRAVITY_M_S2)
-    }
-
-    /// Time between passes over one point, s.
-    pub fn period_s(&self) -> f64 {
-        self.rotation_period_s / self.nozzles as f64
-    }
-
-    /// Duration of one pass, s.
-    pub fn pulse_s(&self) -> f64 {
-        self.jet_width_m / (2.0 * PI * self.screen_radius_m) * self.rotation_period_s
-    }
-
-    /// In-well head at time t, m.
-    pub fn head_m(&self, t: f64) -> f64 {
-        let tau = t.rem_euclid(self.period_s());
-        let tp = self.pulse_s();
-        if tau < tp {
-            let p = self.period_s();
-            let scale = ramp(t - tau + p, p, self.ramp_cycles);
-            scale * self.pulse_head_m() * (PI * tau / tp).sin().powi(2)
-        } else {
-            0.0
-        }
-    }
-
-    pub(crate) fn events(&self, t: f64) -> Option<(f64, bool)> {
-        let p = self.period_s();
-        let n = (t / p).floor();
-        let tl = t - n * p;
-        let tp = self.pulse_s();
-        Some(if tl < tp - 1e-12 * p {
-            (n * p + tp, false)
-        } else {
-            ((n + 1.0) * p, false)
-        })
-    }
-
-    pub(crate) fn validate(&self) -> Result<(), SolverError> {
-        for (f, v) in [
-            ("drive.nozzle_velocity", self.nozzle_velocity_m_s),
-            ("drive.efficiency", self.efficiency),
-            ("drive.rotation_period", self.rotation_period_s),
-            ("drive.jet_width", self.jet_width_m),
-        ] {
-            if !(v.is_finite() && v > 0.0) {
-                return Err(SolverError::invalid(
-                    f,
-                    format!("must be positive, got {v}"),
-                ));
-            }
-        }
-        if self.efficiency > 1.0 {
-            return Err(SolverError::invalid(
-                "drive.efficiency",
-                format!("must not exceed 1, got {}", self.efficiency),
-            ));
-        }
-        if self.nozzles == 0 {
-            return Err(SolverError::invalid("drive.nozzles", "must be at least 1"));
-        }
-        if self.pulse_s() >= self.period_s() {
-            return Err(SolverError::invalid(
-                "drive.jet_width",
-                "the jet is so wide that passes overlap; reduce jet_width or add fewer nozzles",
-            ));
-        }
-        Ok(())
     }
 }

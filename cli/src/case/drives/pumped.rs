@@ -300,12 +300,17 @@ pub fn pump_backwash(
     })
 }
 
-/// Keys of `jet_pulse`.
+/// Keys of `jet_pulse`: the jet as `nozzle_velocity` or as the pump's `jet_rate` through
+/// the nozzles (exactly one), with the nozzles' number and diameter.
 #[derive(Debug, Deserialize, JsonSchema)]
 #[serde(deny_unknown_fields)]
 pub struct JetPulseKeys {
-    /// Nozzle exit velocity (a velocity: "45 m/s", "150 ft/s").
-    pub nozzle_velocity: Q<Velocity>,
+    /// Nozzle exit velocity (a velocity: "45 m/s", "150 ft/s"); or give `jet_rate`.
+    pub nozzle_velocity: Option<Q<Velocity>>,
+    /// Rate the jetting pump sends through all nozzles; or give `nozzle_velocity`.
+    pub jet_rate: Option<Q<FlowRate>>,
+    /// Inside diameter of each nozzle (7–10 mm is usual).
+    pub nozzle_diameter: Q<Length>,
     /// Fraction of the velocity head that reaches the screen, in (0, 1] [0.5, an
     /// assumption with no source: calibrate it].
     pub efficiency: Option<f64>,
@@ -315,7 +320,9 @@ pub struct JetPulseKeys {
     pub nozzles: Option<u32>,
     /// Width of the jet where it meets the screen [10 mm].
     pub jet_width: Option<Q<Length>>,
-    /// The pulse head grows linearly from 0 over this many passes, a gentle start [0].
+    /// Rate pumped out of the well while jetting, positive = withdrawal [0].
+    pub pumping_rate: Option<Q<FlowRate>>,
+    /// The jet grows linearly from 0 over this many passes, a gentle start [0].
     pub ramp_cycles: Option<f64>,
 }
 
@@ -347,49 +354,98 @@ pub fn jet_pulse(
     if nozzles == 0 {
         return Err(CaseError::new("drive.nozzles", "must be at least 1, got 0"));
     }
-    let j = JetPulse {
-        nozzle_velocity_m_s: positive(
+    let d = positive(
+        "drive.nozzle_diameter",
+        k.nozzle_diameter.si("drive.nozzle_diameter")?,
+        "m",
+    )?;
+    let area = nozzles as f64 * 0.25 * PI * d * d;
+    let velocity = match (&k.nozzle_velocity, &k.jet_rate) {
+        (Some(v), None) => positive(
             "drive.nozzle_velocity",
-            k.nozzle_velocity.si("drive.nozzle_velocity")?,
+            v.si("drive.nozzle_velocity")?,
             "m/s",
         )?,
+        (None, Some(q)) => positive("drive.jet_rate", q.si("drive.jet_rate")?, "m3/s")? / area,
+        (Some(_), Some(_)) => {
+            return Err(CaseError::new(
+                "drive.jet_rate",
+                "give either nozzle_velocity or jet_rate, not both",
+            ))
+        }
+        (None, None) => {
+            return Err(CaseError::new(
+                "drive.nozzle_velocity",
+                "required key is missing (or give jet_rate)",
+            ))
+        }
+    };
+    let j = JetPulse {
+        nozzle_velocity_m_s: velocity,
+        nozzle_diameter_m: d,
+        nozzles,
         efficiency,
         rotation_period_s: positive(
             "drive.rotation_period",
             k.rotation_period.si("drive.rotation_period")?,
             "s",
         )?,
-        nozzles,
         jet_width_m: match &k.jet_width {
             Some(q) => positive("drive.jet_width", q.si("drive.jet_width")?, "m")?,
             None => DEFAULT_JET_WIDTH_M,
         },
         screen_radius_m: ctx.well.screen_radius_m,
+        screen_length_m: ctx.well.screen_length_m,
+        well_storage_m2: ctx.well.storage_m2,
+        pumping_rate_m3_s: match &k.pumping_rate {
+            Some(q) => non_negative("drive.pumping_rate", q.si("drive.pumping_rate")?, "m3/s")?,
+            None => 0.0,
+        },
         ramp_cycles: non_negative_ramp(k.ramp_cycles)?,
     };
     let head = j.pulse_head_m();
+    let q_j = j.jet_flow_m3_s();
     notes.insert(
         0,
         format!(
-            "drive: jet pulses, nozzle velocity {}, efficiency {}: pulse head eta v^2/(2g) = \
-             {} ({}); {} nozzles turning once every {}: a pass every {} lasting {} (jet width \
-             {} on screen radius {})",
+            "drive: jetting, {} nozzles of {} at {} deliver {} into the well{}; stagnation \
+             head at the screen eta v^2/(2g) = {} ({}) on the {:.3} % of the screen under the \
+             jets (width {}), so the screen's area-weighted head is {} above the in-well \
+             head; one turn every {}",
+            j.nozzles,
+            format_si(d, Quantity::Length),
             format_si(j.nozzle_velocity_m_s, Quantity::Velocity),
-            j.efficiency,
+            format_si(q_j, Quantity::FlowRate),
+            if j.pumping_rate_m3_s > 0.0 {
+                format!(
+                    " while {} is pumped out",
+                    format_si(j.pumping_rate_m3_s, Quantity::FlowRate)
+                )
+            } else {
+                String::new()
+            },
             format_si(head, Quantity::Head),
             format_si(head * ctx.density_kg_m3 * GRAVITY_M_S2, Quantity::Pressure),
-            j.nozzles,
-            format_si(j.rotation_period_s, Quantity::Time),
-            format_si(j.period_s(), Quantity::Time),
-            format_si(j.pulse_s(), Quantity::Time),
+            100.0 * j.share(),
             format_si(j.jet_width_m, Quantity::Length),
-            format_si(j.screen_radius_m, Quantity::Length),
+            format_si(j.share() * head, Quantity::Head),
+            format_si(j.rotation_period_s, Quantity::Time),
         ),
     );
+    if j.pumping_rate_m3_s < 1.15 * q_j {
+        notes.push(format!(
+            "jetting: the well is pumped at {} against {} of jet flow; specifications ask for \
+             pumping at 115 % or more of the jet flow (docs/practice.md §1.8) so that the jetted \
+             water and fines leave the well instead of the formation taking them",
+            format_si(j.pumping_rate_m3_s, Quantity::FlowRate),
+            format_si(q_j, Quantity::FlowRate)
+        ));
+    }
     notes.push(
-        "jet_pulse: a one-dimensional radial model can only approximate a jet: it spreads each \
-         pass over the whole circumference and screen length, so the flow at the jet itself is \
-         understated and the whole screen is pulsed at once"
+        "jet_pulse: a one-dimensional radial model carries the jets' volume and their \
+         area-weighted excess head only; the push at the jet itself (the full stagnation head \
+         on the footprint as the jet passes) is averaged over the screen, so flow, gradient \
+         and shear at the footprint are understated"
             .to_owned(),
     );
     notes.push(
@@ -401,10 +457,12 @@ pub fn jet_pulse(
     Ok(ParsedDrive {
         resolved: into_map(json!({
             "nozzle_velocity": j.nozzle_velocity_m_s,
+            "nozzle_diameter": j.nozzle_diameter_m,
             "efficiency": j.efficiency,
             "rotation_period": j.rotation_period_s,
             "nozzles": j.nozzles,
             "jet_width": j.jet_width_m,
+            "pumping_rate": j.pumping_rate_m3_s,
             "ramp_cycles": j.ramp_cycles,
         })),
         drive: Drive::JetPulse(j),
