@@ -428,7 +428,10 @@ pub fn swab(map: Map<String, Value>, ctx: &DriveContext<'_>) -> Result<ParsedDri
          the vapour bound {} at the start of a lift (rising with the cups), where the column \
          parts and the run warns; while the swab is lowered the well is one free surface",
         format_si(a_cup * s.lift_rate_m_s, Quantity::FlowRate),
-        format_si(s.min_head_m(0.0), Quantity::Head),
+        format_si(
+            -(s.net_atmospheric_head_m + s.submergence_m),
+            Quantity::Head
+        ),
     ));
     notes.extend(vapour_notes);
     Ok(ParsedDrive {
