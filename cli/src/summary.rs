@@ -175,6 +175,10 @@ pub struct Headline {
     pub screen_collapse_margin: Option<f64>,
     /// Casing rating / (safety factor × peak in-well drawdown pressure).
     pub casing_collapse_margin: Option<f64>,
+    /// Times the water column under a sealed tool parted at the vapour bound.
+    pub column_partings: u64,
+    /// Time the column spent parted, s.
+    pub parted_time_s: f64,
     /// Largest per-step volume residual.
     pub max_mass_residual: f64,
     /// Energy identity over the run.
@@ -539,6 +543,8 @@ pub fn headline(case: &LoadedCase, s: &RunSummary, t: &Tracker) -> Headline {
         collapse_margin: margin,
         screen_collapse_margin: screen_margin,
         casing_collapse_margin: casing_margin,
+        column_partings: s.column_partings,
+        parted_time_s: s.parted_time_s,
         max_mass_residual: s.max_mass_residual,
         energy_closure: s.energy_closure,
         max_newton_iterations: s.max_newton_iterations,
@@ -665,6 +671,10 @@ pub fn table(h: &Headline) -> String {
             Some(_) => rating(h.screen_collapse_rating_pa, h.screen_collapse_margin),
             None => "— (give well.screen_collapse_rating, the maker's rating)".into(),
         },
+    );
+    row(
+        "column partings at the vapour bound / time",
+        format!("{} / {} s", h.column_partings, G(h.parted_time_s, 4)),
     );
     row(
         "volume residual / energy closure",
