@@ -193,7 +193,7 @@ impl PumpBackwash {
         ] {
             pos(f, v)?;
         }
-        if !(self.intake_depth_m > 0.0) {
+        if self.intake_depth_m.is_nan() || self.intake_depth_m <= 0.0 {
             return Err(SolverError::invalid(
                 "drive.intake_depth",
                 format!(
