@@ -367,6 +367,27 @@ mod tests {
     }
 
     #[test]
+    fn pvc_temperature_factor_follows_its_table() {
+        // The PVC derating table (73–140 °F; from memory — verify): its nodes, linear between
+        // them (plain arithmetic: halfway from 0.75 to 0.62 is 0.685), 1 below 73 °F and the
+        // last factor held above 140 °F.
+        assert_eq!(pvc_temperature_factor(10.0), 1.0);
+        assert_eq!(pvc_temperature_factor(22.78), 1.0);
+        assert!((pvc_temperature_factor(32.22) - 0.75).abs() < 1e-12);
+        assert!((pvc_temperature_factor(0.5 * (32.22 + 37.78)) - 0.685).abs() < 1e-12);
+        assert_eq!(pvc_temperature_factor(70.0), 0.22);
+        // A thermoplastic's two limits both scale; a metal's do not.
+        let warm = collapse_pressure_pa(&PVC, 21.0, 32.22);
+        let cold = collapse_pressure_pa(&PVC, 21.0, 15.0);
+        assert!((warm.elastic_pa / cold.elastic_pa - 0.75).abs() < 1e-12);
+        assert!((warm.yield_pa / cold.yield_pa - 0.75).abs() < 1e-12);
+        assert_eq!(
+            collapse_pressure_pa(&STEEL, 20.0, 50.0).temperature_factor,
+            1.0
+        );
+    }
+
+    #[test]
     fn collapse_margin_works() {
         // DR 21 rating 805.867 kPa (PHYSICS.md §9a) with SF 2 (common practice, no source)
         // gives 402.9335 kPa allowable; ratios by plain arithmetic.
