@@ -163,10 +163,22 @@ pub struct Headline {
     pub peak_in_well_drawdown_m: f64,
     /// Largest differential pressure pushing the screen outward, Pa.
     pub peak_burst_pressure_pa: f64,
-    /// Rated or computed collapse pressure of the screen or casing, Pa.
+    /// Rated or computed collapse pressure of the blank casing, Pa.
     pub collapse_rating_pa: Option<f64>,
-    /// Collapse rating / (safety factor × peak collapse pressure); below 1 is a warning.
+    /// Rated (or explicitly derated) collapse pressure of the screen, Pa.
+    pub screen_collapse_rating_pa: Option<f64>,
+    /// How the collapse ratings were found.
+    pub collapse_rating_basis: String,
+    /// The lower of the screen and casing margins; below 1 is a warning.
     pub collapse_margin: Option<f64>,
+    /// Screen rating / (safety factor × peak load on the screen).
+    pub screen_collapse_margin: Option<f64>,
+    /// Casing rating / (safety factor × peak in-well drawdown pressure).
+    pub casing_collapse_margin: Option<f64>,
+    /// Times the water column under a sealed tool parted at the vapour bound.
+    pub column_partings: u64,
+    /// Time the column spent parted, s.
+    pub parted_time_s: f64,
     /// Largest per-step volume residual.
     pub max_mass_residual: f64,
     /// Energy identity over the run.
@@ -177,21 +189,222 @@ pub struct Headline {
     pub warnings: Vec<String>,
 }
 
-/// Collapse pressure of the screen or casing, Pa: the manufacturer's rating when given,
-/// otherwise the thin-ring formula (PHYSICS.md §9a) from the dimension ratio and the
-/// material's elastic constants (PVC defaults when the material is PVC).
-pub fn collapse_rating_pa(safety: &crate::case::SafetyInputs) -> Option<f64> {
-    safety.collapse_rating_pa.or_else(|| {
-        let dr = safety.dimension_ratio?;
-        let pvc = safety.material.as_deref() == Some("pvc");
-        let e = safety
-            .youngs_modulus_pa
-            .or(pvc.then_some(safety::PVC_YOUNGS_MODULUS_PA))?;
-        let nu = safety
-            .poisson_ratio
-            .or(pvc.then_some(safety::PVC_POISSON_RATIO))?;
-        Some(safety::thin_ring_collapse_pa(e, nu, dr))
+/// Collapse ratings of the blank casing and of the screen, and how they were found.
+#[derive(Debug, Clone, PartialEq)]
+pub struct CollapseRatings {
+    /// Blank pipe (casing): the manufacturer's rating, or the lower of elastic buckling and
+    /// first yield from the dimension ratio and the material, Pa.
+    pub casing_pa: Option<f64>,
+    /// Screen: its manufacturer's rating, or the casing value × `slot_derating`, or the
+    /// casing's manufacturer rating, Pa.
+    pub screen_pa: Option<f64>,
+    /// Computed limits when the casing value is computed.
+    pub limits: Option<safety::CollapseLimits>,
+    /// One line on how the ratings were found (for `check` and the report).
+    pub how: String,
+}
+
+/// Material constants for the collapse check: the built-in ones for pvc, steel and
+/// stainless, each replaced by the case's value where given.
+fn pipe_material(s: &crate::case::SafetyInputs) -> Option<safety::PipeMaterial> {
+    let base = match s.material.as_deref() {
+        Some("pvc") => Some(safety::PVC),
+        Some("steel") => Some(safety::STEEL),
+        Some("stainless") => Some(safety::STAINLESS),
+        _ => None,
+    };
+    Some(safety::PipeMaterial {
+        youngs_modulus_pa: s.youngs_modulus_pa.or(base.map(|b| b.youngs_modulus_pa))?,
+        poisson: s.poisson_ratio.or(base.map(|b| b.poisson))?,
+        yield_strength_pa: s.yield_strength_pa.or(base.map(|b| b.yield_strength_pa))?,
+        thermoplastic: base.is_some_and(|b| b.thermoplastic),
     })
+}
+
+/// Collapse ratings of casing and screen (docs/devices.md, collapse): the manufacturer's
+/// ratings when given, otherwise the lower of the elastic (thin-ring) and yield (Lamé)
+/// limits at the pipe temperature `temp_c` (thermoplastics derated above 23 °C); a slotted
+/// screen gets a computed value only with an explicit `slot_derating`.
+pub fn collapse_ratings(s: &crate::case::SafetyInputs, temp_c: f64) -> CollapseRatings {
+    let mut limits = None;
+    let mut how = Vec::new();
+    let casing = match s.collapse_rating_pa {
+        Some(r) => {
+            how.push("casing: manufacturer's rating as given".to_owned());
+            Some(r)
+        }
+        None => match (s.dimension_ratio, pipe_material(s)) {
+            (Some(dr), Some(m)) => {
+                let l = safety::collapse_pressure_pa(&m, dr, temp_c);
+                how.push(format!(
+                    "casing: lower of elastic buckling {} kPa (thin ring) and first yield {} kPa \
+                     (Lamé) at DR {dr}{}; no safety factor in it",
+                    G(l.elastic_pa / 1e3, 4),
+                    G(l.yield_pa / 1e3, 4),
+                    if m.thermoplastic {
+                        format!(
+                            ", thermoplastic derated ×{} at {} °C",
+                            G(l.temperature_factor, 3),
+                            G(temp_c, 3)
+                        )
+                    } else {
+                        String::new()
+                    }
+                ));
+                limits = Some(l);
+                Some(l.governing_pa())
+            }
+            _ => None,
+        },
+    };
+    let screen = match (s.screen_collapse_rating_pa, s.slot_derating) {
+        (Some(r), _) => {
+            how.push("screen: manufacturer's screen rating as given".to_owned());
+            Some(r)
+        }
+        (None, Some(f)) => {
+            how.push(format!("screen: casing value × slot_derating {f}"));
+            casing.map(|c| c * f)
+        }
+        (None, None) if s.collapse_rating_pa.is_some() => {
+            how.push("screen: the given collapse_rating (no separate screen rating)".to_owned());
+            casing
+        }
+        (None, None) => {
+            if casing.is_some() {
+                how.push(
+                    "screen: no rating computed: slotted or wire-wrap screen is weaker than \
+                     blank pipe by an amount only its maker can state; enter \
+                     well.screen_collapse_rating (or an explicit well.slot_derating)"
+                        .to_owned(),
+                );
+            }
+            None
+        }
+    };
+    CollapseRatings {
+        casing_pa: casing,
+        screen_pa: screen,
+        limits,
+        how: how.join("; "),
+    }
+}
+
+/// Pipe temperature of a case for the collapse check, °C: the water temperature (grout
+/// heat of hydration can make the pipe warmer; give a lower rating then).
+pub fn pipe_temperature_c(case: &LoadedCase) -> f64 {
+    case.resolved
+        .pointer("/fluid/temperature")
+        .and_then(serde_json::Value::as_f64)
+        .map_or(15.0, |t_k| t_k - 273.15)
+}
+
+/// The remedy for a collapse load, naming what drives it: the device and, when the water
+/// column parted, the vapour-bound suction (set by the tool's depth, not its speed).
+fn collapse_cause(drive: &boreflux_solver::Drive, s: &RunSummary) -> String {
+    use boreflux_solver::Drive;
+    let kinds = |d: &Drive| -> Vec<&'static str> {
+        match d {
+            Drive::SurgeBlock(_) => vec!["surge block"],
+            Drive::Swab(_) => vec!["swab"],
+            Drive::PumpBackwash(_) | Drive::ConstantRate { .. } | Drive::Table(_) => {
+                vec!["pump"]
+            }
+            Drive::JetPulse(_) => vec!["jet"],
+            Drive::Schedule(st) => st
+                .iter()
+                .flat_map(|x| match &x.drive {
+                    Drive::SurgeBlock(_) => Some("surge block"),
+                    Drive::Swab(_) => Some("swab"),
+                    Drive::PumpBackwash(_) | Drive::ConstantRate { .. } => Some("pump"),
+                    Drive::JetPulse(_) => Some("jet"),
+                    _ => None,
+                })
+                .collect(),
+            _ => vec![],
+        }
+    };
+    let mut k = kinds(drive);
+    k.dedup();
+    let mut parts = Vec::new();
+    if s.column_partings > 0 {
+        parts.push(
+            "the water column under the tool parted at the vapour limit, so the load is set by \
+             the tool's depth below the static level, not by its speed: work the tool \
+             shallower, or use a vented block or a smaller stroke so the formation keeps up"
+                .to_owned(),
+        );
+    }
+    for kind in k {
+        parts.push(match kind {
+            "surge block" => "surge block: reduce the stroke or stroke rate, vent the block, \
+                              and establish free flow through the screen first"
+                .to_owned(),
+            "swab" => "swab: lift more slowly; sealed cups pull the column below them down \
+                       to the vapour limit, which deeper cups make larger"
+                .to_owned(),
+            "pump" => "pump: pump at a lower rate or set the intake shallower (the level \
+                       cannot fall below the intake)"
+                .to_owned(),
+            _ => "jet: lower the nozzle velocity or the pump rate".to_owned(),
+        });
+    }
+    if parts.is_empty() {
+        "reduce the drive".to_owned()
+    } else {
+        parts.join("; ")
+    }
+}
+
+/// Warnings of pump-and-backwash drives: a broken suction (the level reached the intake)
+/// and a back-flow too small to reverse the flow at the wall. Each names its driver; a
+/// deeper intake is suggested only when no collapse risk was found.
+fn pump_warnings(
+    drive: &boreflux_solver::Drive,
+    s: &RunSummary,
+    collapse_risk: bool,
+) -> Vec<String> {
+    use boreflux_solver::Drive;
+    let pumps: Vec<_> = match drive {
+        Drive::PumpBackwash(p) => vec![*p],
+        Drive::Schedule(st) => st
+            .iter()
+            .filter_map(|x| match &x.drive {
+                Drive::PumpBackwash(p) => Some(*p),
+                _ => None,
+            })
+            .collect(),
+        _ => vec![],
+    };
+    let mut out = Vec::new();
+    for p in pumps {
+        if p.suction_broken(s.well_head_range_m.0) {
+            out.push(format!(
+                "the pump broke suction: the level reached its intake {:.1} m below the static \
+                 level, so the drawdown was capped there and the pump delivered only what the \
+                 formation supplied; pump at a lower rate{}",
+                p.intake_depth_m,
+                if collapse_risk {
+                    ""
+                } else {
+                    " (or, where the screen and casing ratings allow the deeper drawdown, set \
+                     the intake deeper)"
+                }
+            ));
+        }
+    }
+    // Only when pump-and-backwash is the whole drive: a schedule's other stages may
+    // reverse the flow on their own.
+    if matches!(drive, Drive::PumpBackwash(_)) && s.peak_outward_flux_m_s <= 0.0 {
+        out.push(
+            "the back-flow never reversed the flow at the borehole wall: the water draining \
+             back at each stop was less than the formation's inflow while the well recovered, \
+             so this pump-and-backwash worked one way only (development needs flow both ways); \
+             a longer riser column, a faster drain or a shorter on-time gives more back-flow"
+                .to_owned(),
+        );
+    }
+    out
 }
 
 /// Computes the headline figures and the warnings.
@@ -241,19 +454,44 @@ pub fn headline(case: &LoadedCase, s: &RunSummary, t: &Tracker) -> Headline {
     let drawdown_m = (-s.well_head_range_m.0).max(0.0);
     let collapse_pa = s.peak_collapse_head_m.max(drawdown_m) * rho_g;
     let sf = case.safety.safety_factor;
-    let rating = collapse_rating_pa(&case.safety);
-    let margin = rating
-        .filter(|_| collapse_pa > 0.0)
-        .map(|r| r / (sf * collapse_pa));
-    if let (Some(r), Some(mg)) = (rating, margin) {
-        if mg < 1.0 {
-            warnings.push(format!(
-                "COLLAPSE RISK: peak inward differential pressure {:.0} kPa exceeds the collapse rating {:.0} kPa divided by the safety factor {sf}; reduce stroke or rate, establish free flow first, and check the manufacturer's rating and local code",
-                collapse_pa / 1e3,
-                r / 1e3
-            ));
+    let ratings = collapse_ratings(&case.safety, pipe_temperature_c(case));
+    let screen_pa = collapse_pa;
+    let casing_pa = drawdown_m * rho_g;
+    let margin_of = |r: Option<f64>, load: f64| r.filter(|_| load > 0.0).map(|r| r / (sf * load));
+    let casing_margin = margin_of(ratings.casing_pa, casing_pa);
+    let screen_margin = margin_of(ratings.screen_pa, screen_pa);
+    let margin = match (casing_margin, screen_margin) {
+        (Some(a), Some(b)) => Some(a.min(b)),
+        (a, b) => a.or(b),
+    };
+    let cause = collapse_cause(&m.drive, s);
+    for (what, r, load, mg) in [
+        ("screen", ratings.screen_pa, screen_pa, screen_margin),
+        ("blank casing", ratings.casing_pa, casing_pa, casing_margin),
+    ] {
+        if let (Some(r), Some(mg)) = (r, mg) {
+            if mg < 1.0 {
+                warnings.push(format!(
+                    "COLLAPSE RISK ({what}): peak inward differential pressure {:.0} kPa exceeds \
+                     its collapse rating {:.0} kPa divided by the safety factor {sf}; {cause}; \
+                     check the manufacturer's rating and the local well code",
+                    load / 1e3,
+                    r / 1e3
+                ));
+            }
         }
     }
+    if ratings.screen_pa.is_none() && ratings.casing_pa.is_some() && screen_pa > 0.0 {
+        warnings.push(format!(
+            "the screen has no collapse rating (peak load on it {:.0} kPa): enter the \
+             manufacturer's screen rating as well.screen_collapse_rating; slotted screen is \
+             weaker than the blank casing's computed {:.0} kPa",
+            screen_pa / 1e3,
+            ratings.casing_pa.unwrap_or(0.0) / 1e3
+        ));
+    }
+    let collapse_risk = warnings.iter().any(|w| w.starts_with("COLLAPSE RISK"));
+    warnings.extend(pump_warnings(&m.drive, s, collapse_risk));
     if let Some(c) = &m.cake {
         if let Some(e) = &c.erosion {
             if s.cake_thickness_m.1 >= s.cake_thickness_m.0 {
@@ -299,8 +537,14 @@ pub fn headline(case: &LoadedCase, s: &RunSummary, t: &Tracker) -> Headline {
         peak_screen_differential_pa: s.peak_collapse_head_m * rho_g,
         peak_in_well_drawdown_m: drawdown_m,
         peak_burst_pressure_pa: s.peak_burst_head_m * rho_g,
-        collapse_rating_pa: rating,
+        collapse_rating_pa: ratings.casing_pa,
+        screen_collapse_rating_pa: ratings.screen_pa,
+        collapse_rating_basis: ratings.how,
         collapse_margin: margin,
+        screen_collapse_margin: screen_margin,
+        casing_collapse_margin: casing_margin,
+        column_partings: s.column_partings,
+        parted_time_s: s.parted_time_s,
         max_mass_residual: s.max_mass_residual,
         energy_closure: s.energy_closure,
         max_newton_iterations: s.max_newton_iterations,
@@ -409,13 +653,28 @@ pub fn table(h: &Headline) -> String {
             G(h.peak_collapse_pressure_pa / PSI_PA, 3)
         ),
     );
+    let rating = |r: Option<f64>, m: Option<f64>| match (r, m) {
+        (Some(r), Some(m)) => format!("{} kPa / {m:.2}", G(r / 1e3, 4)),
+        (Some(r), None) => format!("{} kPa / —", G(r / 1e3, 4)),
+        _ => "—".to_owned(),
+    };
     row(
-        "collapse rating / margin",
-        match (h.collapse_rating_pa, h.collapse_margin) {
-            (Some(r), Some(m)) => format!("{} kPa / {m:.2}", G(r / 1e3, 4)),
-            (Some(r), None) => format!("{} kPa / —", G(r / 1e3, 4)),
-            _ => "— (give well.material and dimension_ratio, or collapse_rating)".into(),
+        "collapse rating / margin, blank casing",
+        match h.collapse_rating_pa {
+            Some(_) => rating(h.collapse_rating_pa, h.casing_collapse_margin),
+            None => "— (give well.material and dimension_ratio, or collapse_rating)".into(),
         },
+    );
+    row(
+        "collapse rating / margin, screen",
+        match h.screen_collapse_rating_pa {
+            Some(_) => rating(h.screen_collapse_rating_pa, h.screen_collapse_margin),
+            None => "— (give well.screen_collapse_rating, the maker's rating)".into(),
+        },
+    );
+    row(
+        "column partings at the vapour bound / time",
+        format!("{} / {} s", h.column_partings, G(h.parted_time_s, 4)),
     );
     row(
         "volume residual / energy closure",

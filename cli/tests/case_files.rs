@@ -4,7 +4,7 @@
 //! expected field path and a message naming the bad value.
 
 use boreflux::case::{load_case, parse_case, scenario_companions, scenarios, schema, LoadedCase};
-use boreflux_solver::devices::Kinematics;
+use boreflux_solver::devices::{Backflow, Kinematics, PumpLaw};
 use boreflux_solver::diagnostics::NullObserver;
 use boreflux_solver::drive::{Drive, TableQuantity};
 use boreflux_solver::model::{GridSpec, OuterBoundary, TimeSpec};
@@ -546,10 +546,11 @@ const BAD_CASES: &[(&str, &str, &[&str])] = &[
     ("reversal_time_on_sinusoidal", "drive.reversal_time", &["\"trapezoidal\" only"]),
     ("trapezoidal_without_reversal", "drive.reversal_time", &["required key is missing for kinematics \"trapezoidal\""]),
     ("frequency_and_strokes_per_minute", "drive.strokes_per_minute", &["either frequency or strokes_per_minute"]),
-    ("backflow_volume_and_riser", "drive.backflow_volume", &["either backflow_volume or riser_radius with riser_length", "not both"]),
-    ("riser_length_missing", "drive.riser_length", &["required key is missing", "riser_radius is given"]),
+    ("backflow_volume_and_riser", "drive.backflow_volume", &["either backflow_volume or riser_radius", "not both"]),
+    ("intake_depth_missing", "drive.intake_depth", &["missing"]),
+    ("pumping_rate_and_curve", "drive.pump_curve", &["either pumping_rate or pump_curve"]),
     ("zero_nozzles", "drive.nozzles", &["at least 1, got 0"]),
-    ("jet_passes_overlap", "drive.jet_width", &["passes overlap"]),
+    ("jet_passes_overlap", "drive.jet_width", &["wider than the screen's circumference"]),
     ("negative_lift_rate", "drive.lift_rate", &["must be positive", "got -0.5 m/s"]),
     ("cup_radius_beyond_casing", "drive.cup_radius", &["must not exceed well.casing_radius (0.1 m)", "got 0.127 m"]),
     ("nested_schedule", "drive.stages[1].drive.kind", &["stages cannot nest"]),
@@ -825,8 +826,8 @@ fn surge_block_keys_land_in_si() {
         TimeSpec::StepsPerCycle(DEFAULT_STEPS_PER_CYCLE)
     );
 
-    // Defaults: body about 25 mm smaller than the casing inside diameter (PRACTICE.md
-    // §1.2, common practice), so radius = casing radius − 12.5 mm; sinusoidal, Cd 0.6,
+    // Defaults: discs 1.5 mm radially inside the casing (an assumption, noted as such),
+    // 5 m below the static level (an assumption), standard atmosphere; sinusoidal, Cd 0.6,
     // solid (no valves), no ramp.
     let d = parse_drive_case(
         r#"{ "kind": "surge_block", "stroke": "0.6 m", "frequency": "0.5 Hz" }"#,
@@ -835,14 +836,19 @@ fn surge_block_keys_land_in_si() {
     let Drive::SurgeBlock(b) = &d.model.drive else {
         panic!("{:?}", d.model.drive)
     };
-    assert!(rel(b.block_radius_m, CASING_M - 0.0125) < EXACT);
+    assert!(rel(b.block_radius_m, CASING_M - 0.0015) < EXACT);
+    assert_eq!(b.depth_m, 5.0);
+    assert_eq!(d.resolved["drive"]["atmospheric_pressure"], 101_325.0);
     assert_eq!(b.kinematics, Kinematics::Sinusoidal);
     assert_eq!(b.discharge_coefficient, 0.6);
     assert_eq!(b.valve_area_m2, 0.0);
     assert_eq!(b.ramp_cycles, 0.0);
     assert!(d.resolved["drive"].get("reversal_time").is_none());
     let notes = d.notes.join("\n");
-    assert!(notes.contains("casing radius − 12.5 mm"), "{notes}");
+    assert!(notes.contains("casing radius − 1.5 mm"), "{notes}");
+    assert!(notes.contains("measure it in the field"), "{notes}");
+    assert!(notes.contains("surge block depth not given"), "{notes}");
+    assert!(notes.contains("vapour bound"), "{notes}");
     assert!(notes.contains("solid surge block"), "{notes}");
 }
 
@@ -866,12 +872,14 @@ fn swab_keys_land_in_si() {
     assert_eq!((s.strokes, s.ramp_cycles), (5, 1.0));
     // Lift time 3.048/0.9144 = 10/3 s, plus 30 s of lowering.
     assert!(rel(s.period_s(), 10.0 / 3.0 + 30.0) < EXACT);
-    // Cups as wide as the casing lift the level by one stroke when nothing flows in.
+    // The cups seal the column below them while rising: the notes give the vapour bound
+    // at the start of a lift and the pressures it comes from.
     let notes = c.notes.join("\n");
     assert!(
-        notes.contains("one lift would lower the level by 3.048 m"),
+        notes.contains("the cups seal the casing while rising"),
         "{notes}"
     );
+    assert!(notes.contains("vapour bound"), "{notes}");
     // A swab that stops after its strokes still counts steps per cycle; the solver goes
     // over to geometric steps once the strokes are done.
     assert_eq!(
@@ -896,44 +904,73 @@ fn swab_keys_land_in_si() {
 fn pump_backwash_keys_land_in_si() {
     let c = parse_drive_case(
         r#"{ "kind": "pump_backwash", "pumping_rate": "800 gpm", "on_time": "3 min",
-             "off_time": "2 min", "backflow_volume": "100 gal", "cycles": 4 }"#,
+             "off_time": "2 min", "backflow_volume": "100 gal", "cycles": 4,
+             "intake_depth": "40 ft" }"#,
         Some(r#""20 min""#),
     );
     let Drive::PumpBackwash(p) = &c.model.drive else {
         panic!("{:?}", c.model.drive)
     };
-    // 1 US gal = 3.785411784e-3 m³ (NIST SP 811, exact); 1 min = 60 s.
-    assert!(rel(p.pumping_rate_m3_s, 800.0 * 3.785_411_784e-3 / 60.0) < EXACT);
-    assert!(rel(p.backflow_volume_m3, 0.378_541_178_4) < EXACT);
+    // 1 US gal = 3.785411784e-3 m³, 1 ft = 0.3048 m (NIST SP 811, exact); 1 min = 60 s.
+    assert_eq!(
+        p.pump,
+        PumpLaw::ConstantRate(800.0 * 3.785_411_784e-3 / 60.0)
+    );
+    let Backflow::Volume(v) = p.backflow else {
+        panic!("{:?}", p.backflow)
+    };
+    assert!(rel(v, 0.378_541_178_4) < EXACT);
+    assert!(rel(p.intake_depth_m, 12.192) < EXACT);
     assert_eq!((p.on_time_s, p.off_time_s, p.cycles), (180.0, 120.0, 4));
-    // Drain time default: 5 s, an assumption the notes call one.
-    assert_eq!(p.drain_time_s, 5.0);
-    assert!(c.notes.iter().any(|n| n.contains("an assumption")));
+    // Drain time and discharge height defaults: 5 s and 0 m, assumptions the notes call so.
+    assert_eq!((p.drain_time_s, p.discharge_height_m), (5.0, 0.0));
+    assert!(c.notes.iter().any(|n| n.contains("drain time not given")));
+    assert!(c
+        .notes
+        .iter()
+        .any(|n| n.contains("discharge height not given")));
 
-    // The back-flow as the riser's water: π r² L with r = 3 in = 0.0762 m and L = 95 ft
-    // = 28.956 m (NIST SP 811, exact).
+    // A pump curve through H0 = 40 m and 20 m at 50 L/s: a = 20/0.05² = 8000 s²/m⁵; the
+    // riser of radius 3 in = 0.0762 m (NIST SP 811, exact) drains back.
     let r = parse_drive_case(
-        r#"{ "kind": "pump_backwash", "pumping_rate": "50 L/s", "on_time": "3 min",
-             "off_time": "2 min", "riser_radius": "3 in", "riser_length": "95 ft",
+        r#"{ "kind": "pump_backwash", "on_time": "3 min", "off_time": "2 min",
+             "pump_curve": { "shutoff_head": "40 m", "rated_rate": "50 L/s",
+                             "rated_head": "20 m" },
+             "riser_radius": "3 in", "intake_depth": "12 m", "discharge_height": "29 m",
              "drain_time": "12 s" }"#,
         Some(r#""3 cycles""#),
     );
     let Drive::PumpBackwash(p) = &r.model.drive else {
         panic!("{:?}", r.model.drive)
     };
-    assert!(rel(p.backflow_volume_m3, PI * 0.0762 * 0.0762 * 28.956) < EXACT);
-    assert_eq!((p.drain_time_s, p.cycles), (12.0, 0));
+    let PumpLaw::Quadratic {
+        shutoff_head_m,
+        coefficient_s2_m5,
+    } = p.pump
+    else {
+        panic!("{:?}", p.pump)
+    };
+    assert_eq!(shutoff_head_m, 40.0);
+    assert!(rel(coefficient_s2_m5, 8000.0) < EXACT);
+    let Backflow::Riser(a) = p.backflow else {
+        panic!("{:?}", p.backflow)
+    };
+    assert!(rel(a, PI * 0.0762 * 0.0762) < EXACT);
+    assert_eq!(
+        (p.drain_time_s, p.cycles, p.discharge_height_m),
+        (12.0, 0, 29.0)
+    );
     assert_eq!(r.model.duration_s, 900.0);
     let d = &r.resolved["drive"];
-    assert!(d.get("riser_radius").is_none() && d.get("riser_length").is_none());
-    assert_eq!(d["backflow_volume"].as_f64(), Some(p.backflow_volume_m3));
+    assert!(rel(d["riser_radius"].as_f64().unwrap(), 0.0762) < EXACT);
+    assert_eq!(d["pump_curve"]["rated_rate"].as_f64(), Some(0.05));
 }
 
 #[test]
 fn jet_pulse_keys_land_in_si() {
     let c = parse_drive_case(
         r#"{ "kind": "jet_pulse", "nozzle_velocity": "150 ft/s", "rotation_period": "0.5 min",
-             "nozzles": 4, "jet_width": "0.5 in" }"#,
+             "nozzles": 4, "jet_width": "0.5 in", "nozzle_diameter": "0.375 in" }"#,
         Some(r#""2 min""#),
     );
     let Drive::JetPulse(j) = &c.model.drive else {
@@ -953,21 +990,32 @@ fn jet_pulse_keys_land_in_si() {
     assert_eq!(c.model.drive.period_s(), Some(7.5));
     let notes = c.notes.join("\n");
     assert!(notes.contains("one-dimensional radial model"), "{notes}");
-    assert!(
-        notes.contains("whole circumference and screen length"),
-        "{notes}"
-    );
+    assert!(notes.contains("area-weighted excess head only"), "{notes}");
     assert!(notes.contains("efficiency not given"), "{notes}");
+    // Four nozzles of 3/8 in = 9.525 mm at 45.72 m/s: 4 π (9.525e-3)²/4 × 45.72 m³/s; the
+    // well is not pumped, so the notes recall the 115 % practice.
+    let q = 4.0 * PI * 9.525e-3 * 9.525e-3 / 4.0 * 45.72;
+    assert!(rel(j.jet_flow_m3_s(), q) < EXACT);
+    assert_eq!(j.pumping_rate_m3_s, 0.0);
+    assert!(notes.contains("115 %"), "{notes}");
     // Defaults: two nozzles, a 10 mm jet.
     let d = parse_drive_case(
-        r#"{ "kind": "jet_pulse", "nozzle_velocity": "45 m/s", "rotation_period": "30 s",
-             "efficiency": 0.4 }"#,
+        r#"{ "kind": "jet_pulse", "jet_rate": "3 L/s", "rotation_period": "30 s",
+             "efficiency": 0.4, "nozzle_diameter": "8 mm", "pumping_rate": "4 L/s" }"#,
         Some(r#""1 min""#),
     );
     let Drive::JetPulse(j) = &d.model.drive else {
         panic!("{:?}", d.model.drive)
     };
     assert_eq!((j.nozzles, j.jet_width_m, j.efficiency), (2, 0.010, 0.4));
+    // The rate through two 8 mm nozzles sets the velocity: 3e-3 / (2 π 0.008²/4) m/s.
+    assert!(
+        rel(
+            j.nozzle_velocity_m_s,
+            3e-3 / (2.0 * PI * 0.008 * 0.008 / 4.0)
+        ) < EXACT
+    );
+    assert_eq!(j.pumping_rate_m3_s, 0.004);
 }
 
 const SCHEDULE: &str = r#"{ "kind": "schedule", "stages": [
@@ -999,7 +1047,8 @@ fn schedule_stages_land_in_si() {
     // the casing.
     assert!(rel(b.stroke_m, 0.6096) < EXACT);
     assert!(rel(b.frequency_hz, 0.2) < EXACT);
-    assert!(rel(b.block_radius_m, CASING_M - 0.0125) < EXACT);
+    assert!(rel(b.block_radius_m, CASING_M - 0.0015) < EXACT);
+    assert_eq!(b.depth_m, 5.0);
     assert!(matches!(stages[1].drive, Drive::Swab(_)));
     let Drive::Table(t) = &stages[2].drive else {
         panic!("{:?}", stages[2].drive)
@@ -1119,7 +1168,7 @@ fn pumping_table_runs_in_a_schedule_stage() {
 fn scenarios_use_the_development_drives() {
     let load = |name: &str| load_case(&cases_dir().join(format!("{name}.json"))).unwrap();
     // Default demo: a solid block, 0.9 m at 20 strokes/min, ramp 5, 3 min; radius from the
-    // 381 mm casing ID less 12.5 mm.
+    // 381 mm casing ID less the 1.5 mm default disc clearance.
     let m = load("municipal-sand-gravel");
     let Drive::SurgeBlock(b) = &m.model.drive else {
         panic!("{:?}", m.model.drive)
@@ -1129,7 +1178,8 @@ fn scenarios_use_the_development_drives() {
         (0.9, 5.0, 0.0)
     );
     assert!(rel(b.frequency_hz, 1.0 / 3.0) < EXACT);
-    assert!(rel(b.block_radius_m, 0.1905 - 0.0125) < EXACT);
+    assert!(rel(b.block_radius_m, 0.1905 - 0.0015) < EXACT);
+    assert_eq!(b.depth_m, 40.0);
     assert_eq!(m.model.duration_s, 180.0);
     // Domestic: a vented block in the 4-in PVC SDR 21 casing, collapse inputs kept.
     let d = load("domestic-fine-sand-pvc");
@@ -1180,7 +1230,7 @@ fn swab_scenario_warns_that_the_column_parted() {
     assert!(out.status.success(), "{out:?}");
     let stdout = String::from_utf8(out.stdout).unwrap();
     assert!(
-        stdout.contains("the swab drew the well down to its submergence"),
+        stdout.contains("the water column under the sealed tool parted"),
         "{stdout}"
     );
     assert!(!stdout.contains("numerical balance is poor"), "{stdout}");

@@ -5,7 +5,7 @@
 //! Sign convention: positive flow is outward, from the well into the formation, so a
 //! pumping (withdrawal) rate enters as a negative device flow.
 
-use crate::devices::{JetPulse, PumpBackwash, SurgeBlock, Swab};
+use crate::devices::{vapour_flow, JetPulse, PumpBackwash, SurgeBlock, Swab, VapourState};
 use crate::error::SolverError;
 use std::f64::consts::PI;
 
@@ -124,8 +124,14 @@ fn stage_index(stages: &[Stage], t: f64) -> usize {
 pub struct DeviceFlow {
     /// Rate imposed by the device: displacement, pumping, lifting, backflow.
     pub displacement_m3_s: f64,
-    /// Leakage that depends on the in-well head (clearance, valves).
+    /// Flow that depends on the in-well head: leakage (clearance, valves) and the vapour
+    /// gap under a sealed tool (`vapour_m3_s`, included here).
     pub bypass_m3_s: f64,
+    /// Rate at which a vapour gap opens (positive) or closes under a sealed tool, m³/s.
+    pub vapour_m3_s: f64,
+    /// Shift between the well node's head and the in-well level that is not water (the
+    /// jet's area-weighted excess head, S_w de/dt), m³/s; included in `displacement_m3_s`.
+    pub offset_m3_s: f64,
     /// d(displacement + bypass)/dH.
     pub d_dh_m2_s: f64,
 }
@@ -217,7 +223,7 @@ impl Drive {
     /// Whether the drive prescribes head or adds flow at time t.
     pub fn control_at(&self, t: f64) -> Control {
         match self.stage_at(t).0 {
-            Drive::SineHead(_) | Drive::JetPulse(_) => Control::Head,
+            Drive::SineHead(_) => Control::Head,
             Drive::Table(t) if t.quantity == TableQuantity::Head => Control::Head,
             _ => Control::Flow,
         }
@@ -237,14 +243,13 @@ impl Drive {
                 s.offset_m + ramp * s.amplitude_m * (2.0 * PI * s.frequency_hz * t).sin()
             }
             Drive::Table(tab) if tab.quantity == TableQuantity::Head => tab.value_at(t),
-            Drive::JetPulse(j) => j.head_m(t),
             _ => 0.0,
         }
     }
 
     /// Volume rates the device adds to the well's water column at time t with in-well head
-    /// `h_well_m` (flow-controlled drives).
-    pub fn device_flow(&self, t: f64, h_well_m: f64) -> DeviceFlow {
+    /// `h_well_m` (flow-controlled drives), with the vapour gap `vapour` under a sealed tool.
+    pub fn device_flow(&self, t: f64, h_well_m: f64, vapour: VapourState) -> DeviceFlow {
         let (d, t) = self.stage_at(t);
         let displacement = |q: f64| DeviceFlow {
             displacement_m3_s: q,
@@ -257,44 +262,81 @@ impl Drive {
             }
             Drive::SurgeBlock(b) => {
                 let (q, bypass, d) = b.flows(t, h_well_m);
+                let (qv, dv) = vapour_flow(h_well_m, b.min_head_m(), b.max_pull_m3_s(), vapour);
                 DeviceFlow {
                     displacement_m3_s: q,
-                    bypass_m3_s: bypass,
-                    d_dh_m2_s: d,
+                    bypass_m3_s: bypass + qv,
+                    vapour_m3_s: qv,
+                    d_dh_m2_s: d + dv,
+                    offset_m3_s: 0.0,
                 }
             }
             Drive::Swab(s) => {
-                let (q, d) = s.flows(t, h_well_m);
+                let (qv, dv) = vapour_flow(h_well_m, s.min_head_m(t), s.max_pull_m3_s(), vapour);
                 DeviceFlow {
-                    displacement_m3_s: q,
-                    bypass_m3_s: 0.0,
-                    d_dh_m2_s: d,
+                    displacement_m3_s: s.displacement(t),
+                    bypass_m3_s: qv,
+                    vapour_m3_s: qv,
+                    d_dh_m2_s: dv,
+                    offset_m3_s: 0.0,
                 }
             }
-            Drive::PumpBackwash(p) => displacement(p.flow(t)),
+            Drive::JetPulse(j) => {
+                let (q, offset) = j.flows(t);
+                DeviceFlow {
+                    displacement_m3_s: q + offset,
+                    offset_m3_s: offset,
+                    ..DeviceFlow::default()
+                }
+            }
+            Drive::PumpBackwash(p) => {
+                let (q, d) = p.flows(t, h_well_m);
+                DeviceFlow {
+                    displacement_m3_s: q,
+                    d_dh_m2_s: d,
+                    ..DeviceFlow::default()
+                }
+            }
             _ => DeviceFlow::default(),
         }
     }
 
-    /// Storage of the well node at time t, m²: none below a surge block (sealed water, see
-    /// [`SurgeBlock`]), otherwise the well's own (`well_storage_m2`).
+    /// Storage of the well node at time t, m²: none below a surge block or below rising
+    /// swab cups (sealed water, see [`SurgeBlock`], [`Swab`]), otherwise the well's own
+    /// (`well_storage_m2`).
     pub fn well_storage_m2(&self, t: f64, well_storage_m2: f64) -> f64 {
-        match self.stage_at(t).0 {
-            Drive::SurgeBlock(_) => 0.0,
+        match self.stage_at(t) {
+            (Drive::SurgeBlock(_), _) => 0.0,
+            (Drive::Swab(s), tl) if s.lifting(tl) => 0.0,
             _ => well_storage_m2,
         }
     }
 
-    /// True when a swab active at time t has drawn the well down into the band where its
-    /// column parts.
-    pub fn swab_limited(&self, t: f64, h_well_m: f64) -> bool {
-        matches!(self.stage_at(t).0, Drive::Swab(s) if s.limited(h_well_m))
+    /// Vapour bound of the in-well head at time t, m: the lowest head a sealed tool can
+    /// pull (−∞ when no tool seals the well).
+    pub fn vapour_bound_m(&self, t: f64) -> f64 {
+        match self.stage_at(t) {
+            (Drive::SurgeBlock(b), _) => b.min_head_m(),
+            (Drive::Swab(s), tl) => s.min_head_m(tl),
+            _ => f64::NEG_INFINITY,
+        }
+    }
+
+    /// True when the in-well head H at time t is at a device's limit: within the margin of
+    /// the vapour bound under a sealed tool, or in the band above a pump's intake where it
+    /// breaks suction.
+    pub fn at_limit(&self, t: f64, h: f64) -> bool {
+        match self.stage_at(t) {
+            (Drive::PumpBackwash(p), tl) => p.is_on(tl) && p.suction_broken(h),
+            _ => h < self.vapour_bound_m(t) + crate::devices::VAPOUR_MARGIN_M,
+        }
     }
 
     /// True when the device flow depends on the in-well head (then every step iterates).
     pub fn is_head_dependent(&self) -> bool {
         match self {
             Drive::SurgeBlock(_) | Drive::Swab(_) => true,
+            Drive::PumpBackwash(p) => p.is_head_dependent(),
             Drive::Schedule(stages) => stages.iter().any(|s| s.drive.is_head_dependent()),
             _ => false,
         }
@@ -304,6 +346,7 @@ impl Drive {
     pub fn initial_well_head_m(&self) -> f64 {
         match self.stage_at(0.0).0 {
             Drive::Slug { initial_head_m } => *initial_head_m,
+            Drive::JetPulse(j) => j.offset_m(0.0),
             _ => self.head_m(0.0),
         }
     }
@@ -357,7 +400,6 @@ impl Drive {
     /// Largest step that resolves the drive's shortest feature, s.
     pub fn max_step_s(&self) -> Option<f64> {
         match self {
-            Drive::JetPulse(j) => Some(j.pulse_s() / 20.0),
             Drive::Schedule(stages) => stages
                 .iter()
                 .filter_map(|s| s.drive.max_step_s())

@@ -84,6 +84,10 @@ pub struct RunSummary {
     pub peak_burst_head_m: f64,
     /// Lowest and highest in-well head, m.
     pub well_head_range_m: (f64, f64),
+    /// Times the water column under a sealed tool parted at the vapour bound.
+    pub column_partings: u64,
+    /// Time the column spent parted, s.
+    pub parted_time_s: f64,
     /// Whether the observer stopped the run early.
     pub stopped_early: bool,
     /// Warnings that did not stop the run.
@@ -256,11 +260,12 @@ pub fn run(
         peak_collapse_head_m: 0.0,
         peak_burst_head_m: 0.0,
         well_head_range_m: (f64::INFINITY, f64::NEG_INFINITY),
+        column_partings: 0,
+        parted_time_s: 0.0,
         stopped_early: false,
         warnings: Vec::new(),
     };
     let mut last_jump = 0.0;
-    let mut swab_limited = false;
     let mut cycles = model
         .drive
         .period_s()
@@ -333,7 +338,6 @@ pub fn run(
             summary.well_head_range_m.0.min(h_well),
             summary.well_head_range_m.1.max(h_well),
         );
-        swab_limited |= model.drive.swab_limited(st.time_s, h_well);
         summary.peak_outward_flux_m_s = summary.peak_outward_flux_m_s.max(face.flux_m_s);
         summary.peak_inward_flux_m_s = summary.peak_inward_flux_m_s.max(-face.flux_m_s);
         summary.peak_shear_pa = summary.peak_shear_pa.max(face.shear_pa);
@@ -403,12 +407,16 @@ pub fn run(
         0.0
     };
     summary.cake_thickness_m.1 = cake_state.map_or(0.0, |c| c.thickness_m);
-    if swab_limited {
-        summary.warnings.push(
-            "the swab drew the well down to its submergence: the column parted and inflow was \
-             limited by what the formation could supply; lift more slowly or set the swab deeper"
-                .to_string(),
-        );
+    (summary.column_partings, summary.parted_time_s) = st.column_parting();
+    if summary.column_partings > 0 {
+        summary.warnings.push(format!(
+            "the water column under the sealed tool parted {} time(s), {:.3} s in all: the \
+             head under it reached the vapour bound (atmospheric pressure less the vapour \
+             pressure, plus the tool's depth below the static level) because the formation \
+             could not supply the tool's displacement; the suction and the collapse load are \
+             capped there, and the tool's work beyond it went into the vapour gap",
+            summary.column_partings, summary.parted_time_s
+        ));
     }
     summary.skin.1 = skin_now;
     Ok(summary)

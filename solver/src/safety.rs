@@ -75,6 +75,131 @@ pub fn thin_ring_collapse_pa(youngs_modulus_pa: f64, poisson: f64, dimension_rat
     2.0 * youngs_modulus_pa / (1.0 - poisson * poisson) * t_over_dm.powi(3)
 }
 
+/// Collapse pressure at which the wall first yields \[Pa\] (thick-wall, Lamé).
+///
+/// ```text
+/// P_y = 2 σ_y (DR − 1) / DR²
+/// σ_y: yield strength [Pa], DR = outside diameter / wall thickness [-]
+/// ```
+///
+/// The hoop stress at the bore of a thick ring under external pressure p is
+/// `2 p b² / (b² − a²)` (Lamé); setting it to σ_y with a/b = 1 − 2/DR gives the formula. It is
+/// the "yield-strength collapse pressure" of API Bulletin 5C3 (1994) and ISO/TR 10400 for
+/// casing (from memory — verify). Stocky, strong pipe (steel at low DR) yields before it
+/// buckles; [`collapse_pressure_pa`] takes the lower of the two limits.
+pub fn yield_collapse_pa(yield_strength_pa: f64, dimension_ratio: f64) -> f64 {
+    2.0 * yield_strength_pa * (dimension_ratio - 1.0) / (dimension_ratio * dimension_ratio)
+}
+
+/// Elastic constants and strength of a pipe material for the collapse check.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct PipeMaterial {
+    /// Young's modulus E \[Pa\].
+    pub youngs_modulus_pa: f64,
+    /// Poisson's ratio ν [-].
+    pub poisson: f64,
+    /// Yield (or, for thermoplastics, minimum tensile) strength σ_y \[Pa\].
+    pub yield_strength_pa: f64,
+    /// Thermoplastic: E and σ_y fall with temperature ([`pvc_temperature_factor`]).
+    pub thermoplastic: bool,
+}
+
+/// Carbon-steel well casing: E = 207 GPa (30e6 psi), ν = 0.30, σ_y = 241 MPa (35 ksi, the
+/// minimum yield of ASTM A53 / A106 grade B pipe). Handbook values, from memory — verify
+/// against the mill certificate.
+pub const STEEL: PipeMaterial = PipeMaterial {
+    youngs_modulus_pa: 207e9,
+    poisson: 0.30,
+    yield_strength_pa: 241.3e6,
+    thermoplastic: false,
+};
+
+/// Austenitic stainless steel (type 304): E = 193 GPa (28e6 psi), ν = 0.29, σ_y = 207 MPa
+/// (30 ksi, the minimum yield of ASTM A312 TP304). Handbook values, from memory — verify.
+pub const STAINLESS: PipeMaterial = PipeMaterial {
+    youngs_modulus_pa: 193e9,
+    poisson: 0.29,
+    yield_strength_pa: 206.8e6,
+    thermoplastic: false,
+};
+
+/// PVC well casing at 23 °C (73 °F): E = 2.758 GPa (400,000 psi), ν = 0.38, strength 48.3 MPa
+/// (7,000 psi, the minimum tensile strength of PVC cell class 12454, ASTM D1784). From
+/// memory — verify against the manufacturer.
+pub const PVC: PipeMaterial = PipeMaterial {
+    youngs_modulus_pa: PVC_YOUNGS_MODULUS_PA,
+    poisson: PVC_POISSON_RATIO,
+    yield_strength_pa: 48.26e6,
+    thermoplastic: true,
+};
+
+/// Temperatures \[°C\] (73, 80, 90, …, 140 °F) and factors of the usual PVC temperature
+/// derating table for pressure and strength (manufacturers' and plastics-pipe literature;
+/// from memory — verify). Below 23 °C the factor is 1.
+const PVC_DERATING: [(f64, f64); 8] = [
+    (22.78, 1.00),
+    (26.67, 0.88),
+    (32.22, 0.75),
+    (37.78, 0.62),
+    (43.33, 0.50),
+    (48.89, 0.40),
+    (54.44, 0.30),
+    (60.00, 0.22),
+];
+
+/// Factor on PVC's modulus and strength at a pipe temperature \[°C\], linear between the
+/// rows of the derating table, 1 below 23 °C; above 60 °C PVC casing is out of its range and
+/// the last factor is held (a warning is the caller's).
+pub fn pvc_temperature_factor(temp_c: f64) -> f64 {
+    let t = &PVC_DERATING;
+    if temp_c <= t[0].0 {
+        return 1.0;
+    }
+    for w in t.windows(2) {
+        if temp_c <= w[1].0 {
+            let f = (temp_c - w[0].0) / (w[1].0 - w[0].0);
+            return w[0].1 + f * (w[1].1 - w[0].1);
+        }
+    }
+    t[t.len() - 1].1
+}
+
+/// Which limit governs a computed collapse pressure.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct CollapseLimits {
+    /// Elastic (thin-ring buckling) pressure \[Pa\].
+    pub elastic_pa: f64,
+    /// First-yield pressure \[Pa\].
+    pub yield_pa: f64,
+    /// Temperature factor applied to both (1 for metals).
+    pub temperature_factor: f64,
+}
+
+impl CollapseLimits {
+    /// The lower of the two limits \[Pa\].
+    pub fn governing_pa(&self) -> f64 {
+        self.elastic_pa.min(self.yield_pa)
+    }
+}
+
+/// Collapse pressure of round, unslotted pipe \[Pa\]: the lower of the elastic
+/// ([`thin_ring_collapse_pa`]) and the yield ([`yield_collapse_pa`]) limit, both scaled for
+/// a thermoplastic by [`pvc_temperature_factor`] at the pipe temperature. The transition
+/// region where the two interact (plastic collapse) is lower than both in practice for
+/// intermediate DR; the manufacturer's rating governs.
+pub fn collapse_pressure_pa(m: &PipeMaterial, dimension_ratio: f64, temp_c: f64) -> CollapseLimits {
+    let factor = if m.thermoplastic {
+        pvc_temperature_factor(temp_c)
+    } else {
+        1.0
+    };
+    CollapseLimits {
+        elastic_pa: factor * thin_ring_collapse_pa(m.youngs_modulus_pa, m.poisson, dimension_ratio),
+        yield_pa: factor * yield_collapse_pa(m.yield_strength_pa, dimension_ratio),
+        temperature_factor: factor,
+    }
+}
+
 /// Collapse check of one load case: allowable pressure against the peak differential.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct CollapseMargin {
@@ -239,6 +364,27 @@ mod tests {
         let base = thin_ring_collapse_pa(PVC_YOUNGS_MODULUS_PA, PVC_POISSON_RATIO, 21.0);
         assert!((low / base - 0.8738).abs() <= 5e-5);
         assert!((low / 1e3 - 704.184).abs() <= 5e-4);
+    }
+
+    #[test]
+    fn pvc_temperature_factor_follows_its_table() {
+        // The PVC derating table (73–140 °F; from memory — verify): its nodes, linear between
+        // them (plain arithmetic: halfway from 0.75 to 0.62 is 0.685), 1 below 73 °F and the
+        // last factor held above 140 °F.
+        assert_eq!(pvc_temperature_factor(10.0), 1.0);
+        assert_eq!(pvc_temperature_factor(22.78), 1.0);
+        assert!((pvc_temperature_factor(32.22) - 0.75).abs() < 1e-12);
+        assert!((pvc_temperature_factor(0.5 * (32.22 + 37.78)) - 0.685).abs() < 1e-12);
+        assert_eq!(pvc_temperature_factor(70.0), 0.22);
+        // A thermoplastic's two limits both scale; a metal's do not.
+        let warm = collapse_pressure_pa(&PVC, 21.0, 32.22);
+        let cold = collapse_pressure_pa(&PVC, 21.0, 15.0);
+        assert!((warm.elastic_pa / cold.elastic_pa - 0.75).abs() < 1e-12);
+        assert!((warm.yield_pa / cold.yield_pa - 0.75).abs() < 1e-12);
+        assert_eq!(
+            collapse_pressure_pa(&STEEL, 20.0, 50.0).temperature_factor,
+            1.0
+        );
     }
 
     #[test]

@@ -39,6 +39,7 @@
 //! When the cells are linear (Darcy faces) the update is exact in one step, whatever the
 //! well's laws.
 
+use crate::devices::VapourState;
 use crate::drive::Control;
 use crate::error::SolverError;
 use crate::grid::ZONE_COUNT;
@@ -151,6 +152,16 @@ pub struct Stepper {
     pub time_s: f64,
     /// Balance of the last step.
     pub balance: StepBalance,
+    /// Vapour gap under a sealed tool (see `crate::devices::vapour`).
+    vapour: VapourState,
+    /// Whether the well node had no storage (a sealed tool) in the last step.
+    was_sealed: bool,
+    /// Backward-Euler steps still to take after the column closed again.
+    damped_steps: u32,
+    /// Times the water column under a sealed tool parted.
+    partings: u64,
+    /// Time the column spent parted, s.
+    parted_time_s: f64,
 }
 
 impl Stepper {
@@ -191,7 +202,22 @@ impl Stepper {
             newton_max_iterations: model.numerics.newton_max_iterations,
             time_s: 0.0,
             balance: StepBalance::default(),
+            vapour: VapourState::default(),
+            was_sealed: false,
+            damped_steps: 0,
+            partings: 0,
+            parted_time_s: 0.0,
         }
+    }
+
+    /// How often the water column under a sealed tool parted, and for how long in all, s.
+    pub fn column_parting(&self) -> (u64, f64) {
+        (self.partings, self.parted_time_s)
+    }
+
+    /// Volume of the vapour gap under a sealed tool now, m³.
+    pub fn vapour_gap_m3(&self) -> f64 {
+        self.vapour.gap_m3
     }
 
     /// Heads at the current time: index 0 is the in-well head, 1..=N the cells, m.
@@ -238,7 +264,88 @@ impl Stepper {
     }
 
     /// Advances by `dt` with the θ-scheme. On error the state is unchanged.
+    ///
+    /// A vapour gap under a sealed tool is carried across the step (`devices::vapour`).
+    /// When the well is no longer sealed (the swab's cups are lowered, a stage ends), the
+    /// sealed head gives way to one free surface, drawn down by the volume the tool took
+    /// and the water did not fill: `H = −V/S_w` (0 when the column did not part).
     pub fn step(&mut self, model: &Model, dt: f64, theta: f64) -> Result<(), SolverError> {
+        let (h0, vapour, was_sealed) = (self.h[0], self.vapour, self.was_sealed);
+        let t_theta = self.time_s + theta * dt;
+        let storage = model.drive.well_storage_m2(t_theta, self.disc.storage[0]);
+        if storage > 0.0 && self.was_sealed {
+            self.h[0] = -self.vapour.gap_m3 / storage;
+            self.vapour.gap_m3 = 0.0;
+        }
+        self.was_sealed = storage <= 0.0;
+        self.vapour.min_rate_m3_s = -self.vapour.gap_m3 / dt;
+        // At a device's limit (a parted column pinned at the vapour bound, a pump that has
+        // broken suction) the well head is held by a kink in the device's law, which
+        // Crank–Nicolson would leave ringing in the stiff pack cells. Those steps, and the
+        // two after the column closes again, are backward Euler (its numerical dissipation
+        // is in the step's energy balance).
+        let at_limit =
+            |st: &Stepper| st.vapour.gap_m3 > 0.0 || model.drive.at_limit(st.time_s, st.h[0]);
+        let theta = if at_limit(self) || self.damped_steps > 0 {
+            1.0
+        } else {
+            theta
+        };
+        let start = (
+            self.vapour,
+            self.partings,
+            self.parted_time_s,
+            self.damped_steps,
+            self.time_s,
+        );
+        let mut r = self.step_inner(model, dt, theta);
+        if r.is_ok() && theta != 1.0 && at_limit(self) {
+            // The step reached a limit: redo it as backward Euler, since the
+            // Crank–Nicolson end-of-step heads overshoot the kink. After the step the
+            // scratch array holds the heads it started from.
+            std::mem::swap(&mut self.h, &mut self.scratch);
+            (
+                self.vapour,
+                self.partings,
+                self.parted_time_s,
+                self.damped_steps,
+                self.time_s,
+            ) = start;
+            self.predictor.forget();
+            r = self.step_inner(model, dt, 1.0);
+        }
+        if r.is_err() {
+            self.h[0] = h0;
+            self.vapour = vapour;
+            self.was_sealed = was_sealed;
+        }
+        r
+    }
+
+    /// Adds the step's vapour volume to the gap and counts partings (the flow at the
+    /// θ-point heads, as in the step's volume balance).
+    fn update_vapour(&mut self, model: &Model, dt: f64, t_theta: f64) {
+        let before = self.vapour.gap_m3;
+        let q = model
+            .drive
+            .device_flow(t_theta, self.y[0], self.vapour)
+            .vapour_m3_s;
+        // The closing rate is floored at −V/Δt, so the gap can only undershoot 0 by round-off.
+        self.vapour.gap_m3 = (before + dt * q).max(0.0);
+        self.damped_steps = self.damped_steps.saturating_sub(1);
+        if (before > 0.0) != (self.vapour.gap_m3 > 0.0) {
+            self.damped_steps = 2;
+        }
+        if self.vapour.gap_m3 > 0.0 {
+            self.parted_time_s += dt;
+            if before == 0.0 {
+                self.partings += 1;
+            }
+        }
+        self.vapour.min_rate_m3_s = -self.vapour.gap_m3 / dt;
+    }
+
+    fn step_inner(&mut self, model: &Model, dt: f64, theta: f64) -> Result<(), SolverError> {
         let tdt = theta * dt;
         let t_new = self.time_s + dt;
         let t_theta = self.time_s + tdt;
@@ -315,7 +422,7 @@ impl Stepper {
         let q_in = faces[0].flow(self.y[0] - self.y[1]).0;
         let dev = match model.drive.control_at(t_theta) {
             Control::Head => crate::drive::DeviceFlow::default(),
-            Control::Flow => model.drive.device_flow(t_theta, self.y[0]),
+            Control::Flow => model.drive.device_flow(t_theta, self.y[0], self.vapour),
         };
         let well_storage = model.drive.well_storage_m2(t_theta, self.disc.storage[0]);
         for d in &mut dissipated {
@@ -342,9 +449,13 @@ impl Stepper {
             volume_in_m3: volume_in,
             volume_out_m3: volume_out,
             storage_change_m3: storage_change,
-            device_volume_m3: dt * dev.displacement_m3_s,
-            bypass_volume_m3: dt * dev.bypass_m3_s,
-            well_storage_change_m3: well_storage * (self.scratch[0] - self.h[0]),
+            // A vapour gap under a sealed tool is water missing from the well: it counts as a
+            // (negative) change of the well's storage, not as a flow past the tool.
+            // The jet's head offset likewise shifts the node's head without moving water.
+            device_volume_m3: dt * (dev.displacement_m3_s - dev.offset_m3_s),
+            bypass_volume_m3: dt * (dev.bypass_m3_s - dev.vapour_m3_s),
+            well_storage_change_m3: well_storage * (self.scratch[0] - self.h[0])
+                - dt * (dev.vapour_m3_s + dev.offset_m3_s),
             well_residual: {
                 let stored = well_storage * (self.scratch[0] - self.h[0]);
                 let dev_vol = dt * dev.total();
@@ -381,6 +492,9 @@ impl Stepper {
         }
         std::mem::swap(&mut self.h, &mut self.scratch);
         self.time_s = t_new;
+        if self.head_dependent {
+            self.update_vapour(model, dt, t_theta);
+        }
         if model.drive.control_at(t_theta) == Control::Flow && well_storage <= 0.0 {
             self.h[0] = self.algebraic_well_head(model, t_new)?;
         }
@@ -396,7 +510,7 @@ impl Stepper {
                 WellRow::Fixed(theta * model.drive.head_m(t_new) + (1.0 - theta) * self.h[0])
             }
             Control::Flow => {
-                let dev = model.drive.device_flow(t_theta, self.y[0]);
+                let dev = model.drive.device_flow(t_theta, self.y[0], self.vapour);
                 let storage = model.drive.well_storage_m2(t_theta, self.disc.storage[0]);
                 WellRow::Storage {
                     s_over_tdt: storage / tdt,

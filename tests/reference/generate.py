@@ -1316,6 +1316,165 @@ def step_drawdown():
 
 
 # ---------------------------------------------------------------------------------------
+# 14. development devices: collapse limits, vapour bound
+# ---------------------------------------------------------------------------------------
+
+MATERIALS = {
+    # E (Pa), nu, yield (Pa): handbook values the solver uses as defaults (from memory,
+    # verify); see docs/devices.md.
+    "pvc": (2.758e9, 0.38, 48.26e6),
+    "steel": (207e9, 0.30, 241.3e6),
+    "stainless": (193e9, 0.29, 206.8e6),
+}
+
+
+def lame_first_yield(sigma_y, dr):
+    """External pressure at which the Lame hoop stress at the bore reaches sigma_y.
+
+    Solved numerically with scipy.optimize.brentq on the stress itself (independent of the
+    closed form 2 sigma_y (DR - 1)/DR^2).
+    """
+    b = 0.5  # outer radius, any unit: only DR matters
+    a = b - 2.0 * b / dr
+
+    def hoop_at_bore(p):
+        # Lame: sigma_theta(r) = -p b^2/(b^2 - a^2) (1 + a^2/r^2), at r = a
+        return p * b * b / (b * b - a * a) * 2.0 - sigma_y
+
+    return scipy.optimize.brentq(hoop_at_bore, 0.0, sigma_y, xtol=1e-6, rtol=1e-15)
+
+
+def devices():
+    """Collapse limits of pipe (elastic ring buckling and first yield) and the vapour bound.
+
+    Elastic: Timoshenko & Gere 1961, Pc = 2 E/(1 - nu^2) / (DR - 1)^3. Yield: Lame thick
+    ring, first yield at the bore, P_y = 2 sigma_y (DR - 1)/DR^2 (the yield-strength collapse
+    pressure of API Bulletin 5C3 / ISO/TR 10400, from memory). Vapour pressure: IAPWS-IF97
+    saturation line (iapws.iapws97._PSat_T), cross-checked against the IAPWS-95 saturated
+    liquid (iapws.IAPWS95(T, x=0).P).
+    """
+    diffs = []
+    rows = []
+    for material, dr in [("pvc", 17.0), ("pvc", 21.0), ("pvc", 26.0),
+                         ("steel", 20.0), ("steel", 28.0), ("stainless", 20.0)]:
+        e_mod, nu, sy = MATERIALS[material]
+        elastic = 2.0 * e_mod / (1.0 - nu**2) / (dr - 1.0) ** 3
+        y_closed = 2.0 * sy * (dr - 1.0) / dr**2
+        y_lame = lame_first_yield(sy, dr)
+        diffs.append(rel_diff(y_closed, y_lame))
+        rows.append({"material": material, "DR": dr, "E": e_mod, "nu": nu, "yield": sy,
+                     "elastic_pa": f(elastic), "yield_pa": f(y_lame),
+                     "governing_pa": f(min(elastic, y_lame))})
+
+    vapour = []
+    for t_c in [4.0, 10.0, 15.0, 20.0, 25.0, 35.0]:
+        t_k = t_c + 273.15
+        p97 = iapws.iapws97._PSat_T(t_k) * 1e6
+        p95 = iapws.IAPWS95(T=t_k, x=0).P * 1e6
+        # IF97 and IAPWS-95 differ by about 1e-4 at these temperatures (IF97's stated
+        # consistency); that is the cross-check here, not a round-off comparison.
+        vapour.append({"T_C": t_c, "p_sat_pa": f(p97), "p_sat_iapws95_pa": f(p95)})
+
+    # Vapour bound of the head under a sealed tool at depth d below the static level:
+    # p_atm + rho g (d + H) = p_v  ->  H_min = -(p_atm - p_v)/(rho g) - d.
+    t_c, depth, p_atm = 14.0, 3.0, 101325.0
+    rho = iapws.IAPWS95(T=t_c + 273.15, P=0.101325).rho
+    p_v = iapws.iapws97._PSat_T(t_c + 273.15) * 1e6
+    h_min = -(p_atm - p_v) / (rho * G) - depth
+
+    # Parted time under a sealed surge block over an impermeable formation (hand
+    # calculation, docs/devices.md): block radius rb in casing rc, sinusoidal stroke s at f,
+    # v = pi f s sin(w t). While sealed, the displacement A v leaks in past the block; the
+    # column parts at t1 where A v reaches the leak at the bound, Q_L = Cd A_gap sqrt(2 g
+    # |H_min|), and the gap V(t) = A (s/2)(cos w t1 - cos w t) - Q_L (t - t1) closes at t2.
+    rc, rb, cd, stroke, freq = 0.1, 0.099, 0.6, 0.8, 0.5
+    a_block = math.pi * rb * rb
+    a_gap = math.pi * (rc * rc - rb * rb)
+    w = 2.0 * math.pi * freq
+    q_l = cd * a_gap * math.sqrt(2.0 * G * abs(h_min))
+    t1 = math.asin(q_l / (a_block * math.pi * freq * stroke)) / w
+
+    def gap(t):
+        return a_block * 0.5 * stroke * (math.cos(w * t1) - math.cos(w * t)) - q_l * (t - t1)
+
+    t2 = scipy.optimize.brentq(gap, 0.5 / freq, 1.0 / freq, xtol=1e-14, rtol=1e-15)
+    # Cross-check: the gap at t2 by quadrature of dV/dt = A v - Q_L.
+    v_quad = scipy.integrate.quad(
+        lambda t: a_block * math.pi * freq * stroke * math.sin(w * t) - q_l, t1, t2,
+        epsabs=1e-14, epsrel=1e-12)[0]
+    diffs.append(abs(v_quad) / (a_block * stroke))
+
+    # Steady pumping with a pump curve H_p = H0 - a Q^2 lifting from the well level to a
+    # discharge z_d above static, from a confined aquifer with a skin (Thiem with Hawkins
+    # skin): the well head is H = -Q (ln(R/rw) + S)/(2 pi T) and the pump runs where
+    # H0 - a Q^2 = z_d - H.
+    pk = {"K": 2e-4, "b": 6.0, "rw": 0.1, "R": 100.0, "K_skin": 4e-5, "r_skin": 0.2,
+          "H0": 40.0, "a": 1e5, "z_d": 10.0}
+    skin = (pk["K"] / pk["K_skin"] - 1.0) * math.log(pk["r_skin"] / pk["rw"])
+    t_aq = pk["K"] * pk["b"]
+    per_q = (math.log(pk["R"] / pk["rw"]) + skin) / (2.0 * math.pi * t_aq)
+
+    def mismatch(q):
+        return pk["H0"] - pk["a"] * q * q - pk["z_d"] - per_q * q
+
+    q_star = scipy.optimize.brentq(mismatch, 0.0, math.sqrt(pk["H0"] / pk["a"]),
+                                   xtol=1e-16, rtol=1e-15)
+    # Cross-check: the positive root of the quadratic a Q^2 + c Q - (H0 - z_d) = 0.
+    c = per_q
+    q_quad = (-c + math.sqrt(c * c + 4.0 * pk["a"] * (pk["H0"] - pk["z_d"]))) / (2.0 * pk["a"])
+    diffs.append(rel_diff(q_star, q_quad))
+    pump_curve = dict(pk, skin=f(skin), Q_m3_s=f(q_star), H_well_m=f(-per_q * q_star))
+
+    # Jet: flow through n nozzles of diameter d at exit velocity v, and the stagnation
+    # pressure of the share eta of the velocity head (Bernoulli, p = eta rho v^2/2).
+    jet = {"n": 2, "d": 0.008, "v": 45.0, "eta": 0.5, "T_C": 16.0}
+    rho_j = iapws.IAPWS95(T=jet["T_C"] + 273.15, P=0.101325).rho
+    jet["Q_m3_s"] = f(jet["n"] * math.pi * jet["d"] ** 2 / 4.0 * jet["v"])
+    jet["rho"] = f(rho_j)
+    jet["p_stag_pa"] = f(jet["eta"] * rho_j * jet["v"] ** 2 / 2.0)
+
+    return {
+        "source": (
+            "Collapse: elastic buckling of a long thin ring, Pc = 2E/(1 - nu^2)/(DR - 1)^3 "
+            "(Timoshenko, S.P., Gere, J.M., 1961, 'Theory of Elastic Stability'); first yield "
+            "of a thick ring (Lame), P_y = 2 sigma_y (DR - 1)/DR^2, the yield-strength "
+            "collapse pressure of API Bulletin 5C3 (1994) / ISO/TR 10400 (from memory, "
+            "verify). Material constants are handbook values from memory (verify). Vapour "
+            "pressure: IAPWS-IF97 saturation equation (IAPWS 2007) as computed by the iapws "
+            "package. No safety factor is included; manufacturer ratings and local well codes "
+            "govern."
+        ),
+        "computed_with": {
+            "versions": versions(),
+            "calls": [
+                "elastic: 2 E/(1 - nu^2)/(DR - 1)^3 (plain float arithmetic)",
+                "yield: scipy.optimize.brentq on the Lame hoop stress at the bore, "
+                "cross-checked against 2 sigma_y (DR - 1)/DR^2",
+                "p_sat: iapws.iapws97._PSat_T(T); also iapws.IAPWS95(T, x=0).P",
+                "rho: iapws.IAPWS95(T, P=0.101325).rho",
+                "parted time: math.asin for the parting, scipy.optimize.brentq on the gap "
+                "volume for the closing, scipy.integrate.quad as cross-check",
+            ],
+        },
+        "conventions": "SI units; pressures in Pa; heads in m relative to the static level",
+        "collapse": rows,
+        "vapour_pressure": vapour,
+        "vapour_bound": {"T_C": t_c, "depth_m": depth, "p_atm_pa": p_atm, "rho": f(rho),
+                         "p_v_pa": f(p_v), "h_min_m": f(h_min)},
+        "parted_time": {"casing_radius": rc, "block_radius": rb, "cd": cd, "stroke": stroke,
+                        "frequency": freq, "h_min_m": f(h_min), "leak_m3_s": f(q_l),
+                        "t_part_s": f(t1), "t_close_s": f(t2),
+                        "parted_per_cycle_s": f(t2 - t1)},
+        "pump_curve": pump_curve,
+        "jet": jet,
+        "cross_check": ("closed-form first-yield pressure vs brentq on the Lame stress; gap "
+                        "volume at closure by quadrature (relative to the stroke volume); pump "
+                        "operating point by brentq vs the quadratic formula"),
+        "cross_check_max_rel_diff": f(max(diffs)),
+    }
+
+
+# ---------------------------------------------------------------------------------------
 # main
 # ---------------------------------------------------------------------------------------
 
@@ -1332,14 +1491,21 @@ GENERATORS = [
     ("collapse.json", collapse),
     ("energy_dissipation.json", energy_dissipation),
     ("step_drawdown.json", step_drawdown),
+    ("devices.json", devices),
 ]
 
 
 def main():
-    """Compute every file, run all checks, and write only if all pass."""
+    """Compute every file, run all checks, and write only if all pass.
+
+    File names given as arguments (e.g. devices.json) restrict the run to those files.
+    """
     results = []
     failed = False
+    wanted = set(sys.argv[1:])
     for name, func in GENERATORS:
+        if wanted and name not in wanted:
+            continue
         first_erratum = len(ERRATA)
         doc = func()
         if len(ERRATA) > first_erratum:

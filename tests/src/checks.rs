@@ -106,8 +106,23 @@ pub fn all() -> Vec<Group> {
         },
         Group {
             id: "collapse",
-            title: "Thin-ring collapse pressure",
+            title: "Collapse pressure: thin-ring buckling and first yield",
             run: crate::drives::collapse,
+        },
+        Group {
+            id: "pump",
+            title: "Pump curve and suction break at steady state",
+            run: crate::drives::pump_curve,
+        },
+        Group {
+            id: "jet",
+            title: "Jetting: nozzle flow, stagnation pressure and the well's volume balance",
+            run: crate::drives::jet_balance,
+        },
+        Group {
+            id: "vapour",
+            title: "Vapour bound and column parting under a sealed surge block",
+            run: crate::drives::vapour_bound,
         },
         Group {
             id: "annulus",

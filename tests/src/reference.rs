@@ -48,4 +48,6 @@ pub mod data {
     pub const FORCHHEIMER: &str = include_str!("../data/forchheimer_steady.json");
     /// Screen orifice loss.
     pub const ORIFICE: &str = include_str!("../data/screen_orifice.json");
+    /// Collapse limits of pipe and the vapour bound of a sealed tool.
+    pub const DEVICES: &str = include_str!("../data/devices.json");
 }

@@ -126,3 +126,18 @@ fn schedule_pumping_stage() {
 fn collapse_pressure() {
     assert_group("collapse");
 }
+
+#[test]
+fn pump_curve_and_suction_break() {
+    assert_group("pump");
+}
+
+#[test]
+fn jet_volume_balance() {
+    assert_group("jet");
+}
+
+#[test]
+fn vapour_bound_and_column_parting() {
+    assert_group("vapour");
+}

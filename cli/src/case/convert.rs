@@ -50,6 +50,10 @@ pub fn convert(raw: RawCase, base_dir: &Path) -> Result<LoadedCase, CaseError> {
     let ctx = DriveContext {
         base_dir,
         density_kg_m3: fluid.density_kg_m3,
+        temperature_c: fluid_json["temperature"]
+            .as_f64()
+            .unwrap_or(DEFAULT_TEMPERATURE_K)
+            - CELSIUS_ZERO_K,
         well: &well,
     };
     let drive = parse_drive(raw.drive.clone(), &ctx)?;

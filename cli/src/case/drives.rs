@@ -40,6 +40,8 @@ pub struct DriveContext<'a> {
     pub base_dir: &'a Path,
     /// Water density of the case, kg/m³, for heads given as pressures.
     pub density_kg_m3: f64,
+    /// Water temperature of the case, °C (vapour pressure under sealed tools).
+    pub temperature_c: f64,
     /// The well as converted (casing radius for tools in the casing, screen radius for
     /// jets, well-bore storage).
     pub well: &'a Well,

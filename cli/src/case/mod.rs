@@ -42,6 +42,12 @@ pub struct SafetyInputs {
     pub material: Option<String>,
     /// `well.dimension_ratio`: outside diameter / wall thickness.
     pub dimension_ratio: Option<f64>,
+    /// `well.screen_collapse_rating`, Pa.
+    pub screen_collapse_rating_pa: Option<f64>,
+    /// `well.slot_derating`, in (0, 1].
+    pub slot_derating: Option<f64>,
+    /// `well.yield_strength`, Pa.
+    pub yield_strength_pa: Option<f64>,
     /// `well.youngs_modulus`, Pa.
     pub youngs_modulus_pa: Option<f64>,
     /// `well.poisson_ratio`.

@@ -318,11 +318,13 @@ mod tests {
             (
                 "pump_backwash",
                 json!({ "kind": "pump_backwash", "pumping_rate": "10 L/s", "on_time": "60 s",
-                        "off_time": "30 s", "backflow_volume": "0.1 m3" }),
+                        "off_time": "30 s", "backflow_volume": "0.1 m3",
+                        "intake_depth": "10 m" }),
             ),
             (
                 "jet_pulse",
-                json!({ "kind": "jet_pulse", "nozzle_velocity": "30 m/s", "rotation_period": "10 s" }),
+                json!({ "kind": "jet_pulse", "nozzle_velocity": "30 m/s", "rotation_period": "10 s",
+                        "nozzle_diameter": "8 mm" }),
             ),
         ]
     }

@@ -85,8 +85,19 @@ pub struct RawWell {
     pub material: Option<String>,
     /// Dimension ratio DR = outside diameter / wall thickness (e.g. 21 for SDR 21).
     pub dimension_ratio: Option<f64>,
-    /// Manufacturer's collapse rating (a pressure); overrides the thin-ring estimate.
+    /// Manufacturer's collapse rating of the casing (a pressure); overrides the computed
+    /// estimate (the lower of elastic buckling and first yield). Also used for the screen
+    /// when `screen_collapse_rating` and `slot_derating` are not given.
     pub collapse_rating: Option<Q<Pressure>>,
+    /// Manufacturer's collapse rating of the screen (a pressure). Slotted or wire-wrap
+    /// screen is weaker than blank pipe of the same DR.
+    pub screen_collapse_rating: Option<Q<Pressure>>,
+    /// Factor in (0, 1] on the computed pipe collapse pressure for the screen (slotting
+    /// weakens it); with no screen rating and no factor the screen gets no computed rating.
+    pub slot_derating: Option<f64>,
+    /// Yield strength of the pipe material (a pressure) [steel 241 MPa, stainless 207 MPa,
+    /// PVC 48 MPa; handbook values, verify].
+    pub yield_strength: Option<Q<Pressure>>,
     /// Young's modulus of the pipe material (a pressure).
     pub youngs_modulus: Option<Q<Pressure>>,
     /// Poisson's ratio of the pipe material.

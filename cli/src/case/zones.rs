@@ -175,7 +175,7 @@ pub fn well(r: &RawWell, log: &mut Log) -> Result<(Well, SafetyInputs, Value), C
         if !["pvc", "steel", "stainless"].contains(&m) {
             log.warn(format!(
                 "well.material \"{m}\" has no built-in properties; give collapse_rating, or \
-                 youngs_modulus and poisson_ratio, for the collapse check"
+                 youngs_modulus, poisson_ratio and yield_strength, for the collapse check"
             ));
         }
     }
@@ -200,6 +200,9 @@ pub fn well(r: &RawWell, log: &mut Log) -> Result<(Well, SafetyInputs, Value), C
         "material": safety.material,
         "dimension_ratio": safety.dimension_ratio,
         "collapse_rating": safety.collapse_rating_pa,
+        "screen_collapse_rating": safety.screen_collapse_rating_pa,
+        "slot_derating": safety.slot_derating,
+        "yield_strength": safety.yield_strength_pa,
         "youngs_modulus": safety.youngs_modulus_pa,
         "poisson_ratio": safety.poisson_ratio,
         "safety_factor": safety.safety_factor,
@@ -226,6 +229,20 @@ fn safety_inputs(r: &RawWell) -> Result<SafetyInputs, CaseError> {
     let collapse = opt(&r.collapse_rating, "well.collapse_rating")?
         .map(|p| ranged("well.collapse_rating", p, limits::COLLAPSE_RATING))
         .transpose()?;
+    let screen_rating = opt(&r.screen_collapse_rating, "well.screen_collapse_rating")?
+        .map(|p| positive("well.screen_collapse_rating", p, "Pa"))
+        .transpose()?;
+    let yield_strength = opt(&r.yield_strength, "well.yield_strength")?
+        .map(|p| positive("well.yield_strength", p, "Pa"))
+        .transpose()?;
+    if let Some(f) = r.slot_derating {
+        if !(f > 0.0 && f <= 1.0) {
+            return Err(CaseError::new(
+                "well.slot_derating",
+                format!("must be in (0, 1], got {f}"),
+            ));
+        }
+    }
     let e = opt(&r.youngs_modulus, "well.youngs_modulus")?
         .map(|p| ranged("well.youngs_modulus", p, limits::YOUNGS_MODULUS))
         .transpose()?;
@@ -247,6 +264,9 @@ fn safety_inputs(r: &RawWell) -> Result<SafetyInputs, CaseError> {
     ranged("well.safety_factor", sf, limits::SAFETY_FACTOR)?;
     Ok(SafetyInputs {
         collapse_rating_pa: collapse,
+        screen_collapse_rating_pa: screen_rating,
+        slot_derating: r.slot_derating,
+        yield_strength_pa: yield_strength,
         material,
         dimension_ratio: r.dimension_ratio,
         youngs_modulus_pa: e,

@@ -294,15 +294,16 @@ pub fn check(a: &CheckArgs) -> Result<(), Failure> {
     }
     let sf = case.safety.safety_factor;
     let rho_g = m.fluid.density_kg_m3 * boreflux_solver::water::GRAVITY_M_S2;
-    t += &match crate::summary::collapse_rating_pa(&case.safety) {
-        Some(r) => format!(
-            "\nCollapse: rating {} kPa ({}); with safety factor {sf} the allowable load is {} kPa = {} m of water. `run` compares it with the peak load.\n",
-            G(r / 1e3, 4),
-            if case.safety.collapse_rating_pa.is_some() { "given" } else { "thin-ring formula from the dimension ratio; no safety factor in it" },
-            G(r / sf / 1e3, 4),
-            G(r / sf / rho_g, 4)
+    let ratings =
+        crate::summary::collapse_ratings(&case.safety, crate::summary::pipe_temperature_c(&case));
+    t += &match (ratings.casing_pa, ratings.screen_pa) {
+        (None, None) => "\nCollapse: no rating (give well.collapse_rating, or well.material and well.dimension_ratio; for the screen well.screen_collapse_rating); check the manufacturer's rating before surging.\n".to_string(),
+        (c, sc) => format!(
+            "\nCollapse: blank casing {}, screen {} ({}); with safety factor {sf} `run` compares them with the peak loads.\n",
+            c.map_or("—".to_owned(), |r| format!("{} kPa (allowable {} kPa = {} m of water)", G(r / 1e3, 4), G(r / sf / 1e3, 4), G(r / sf / rho_g, 4))),
+            sc.map_or("—".to_owned(), |r| format!("{} kPa (allowable {} kPa)", G(r / 1e3, 4), G(r / sf / 1e3, 4))),
+            ratings.how
         ),
-        None => "\nCollapse: no rating (give well.collapse_rating, or well.material and well.dimension_ratio); check the manufacturer's rating before surging.\n".to_string(),
     };
     if !case.notes.is_empty() {
         t += "\nNotes:\n";

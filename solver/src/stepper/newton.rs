@@ -117,7 +117,7 @@ impl Stepper {
         let (r_lin, r_nl) = (face.r_lin(), face.r_nl());
         let f = |q: f64| {
             let hw = y1a + (q - q_now) * w1 + r_lin * q + r_nl * q * q.abs();
-            let dev = model.drive.device_flow(t, hw);
+            let dev = model.drive.device_flow(t, hw, self.vapour);
             let st = s * (hw - h0);
             (
                 st + q - dev.total(),
@@ -126,8 +126,13 @@ impl Stepper {
             )
         };
         // Flows below the current screen and device flows are round-off in absolute terms.
-        let unit = (q_now.abs() + model.drive.device_flow(t, self.y[0]).total().abs())
-            .max(f64::MIN_POSITIVE);
+        let unit = (q_now.abs()
+            + model
+                .drive
+                .device_flow(t, self.y[0], self.vapour)
+                .total()
+                .abs())
+        .max(f64::MIN_POSITIVE);
         bracketed_root(t, q_now, unit, 1e-15 * unit, f)
     }
 

@@ -39,7 +39,7 @@ impl Stepper {
         let face = &self.disc.faces[0];
         let f = |h: f64| {
             let (q, g) = face.flow(h - h1);
-            let dev = model.drive.device_flow(t, h);
+            let dev = model.drive.device_flow(t, h, self.vapour);
             let st = s * (h - h0);
             (
                 st + q - dev.total(),

@@ -8,9 +8,11 @@
 use super::{into_map, read_keys, DriveContext, ParsedDrive};
 use crate::case::checks::{non_negative, positive};
 use crate::case::error::CaseError;
+use crate::case::quantity::Pressure;
 use crate::case::quantity::{Area, Frequency, Kind, Length, Time, Q};
 use crate::units::{format_si, Quantity};
-use boreflux_solver::devices::{Kinematics, SurgeBlock, Swab};
+use boreflux_solver::devices::{net_atmospheric_head_m, Kinematics, SurgeBlock, Swab};
+use boreflux_solver::water::{vapour_pressure_pa, STANDARD_ATMOSPHERE_PA};
 use boreflux_solver::Drive;
 use schemars::JsonSchema;
 use serde::Deserialize;
@@ -35,9 +37,16 @@ impl Kind for Volume {
     const NAME: &'static str = "Volume";
 }
 
-/// Radial clearance of a block whose body is about 25 mm (1 in) smaller in diameter than
-/// the casing inside diameter, the usual sizing (PRACTICE.md §1.2, common practice), m.
-pub const DEFAULT_BODY_CLEARANCE_M: f64 = 0.0125;
+/// Radial clearance between a surge block's discs and the casing when the case gives no
+/// `block_radius`, m: 1.5 mm. The discs of a surge block are cut to about the casing's inside
+/// diameter (docs/practice.md §1.2, common practice) and the water leaks past their rim; how
+/// much depends on wear and fit. Assumption: measure it in the field. (The block's body,
+/// about 25 mm smaller than the casing, does not set the leak while the discs seal.)
+pub const DEFAULT_DISC_CLEARANCE_M: f64 = 0.0015;
+/// Depth of a surge block below the static level when the case gives none, m. Assumption:
+/// give the depth; the vapour bound of the suction under the block, and with it the
+/// largest collapse load, grows with it.
+pub const DEFAULT_BLOCK_DEPTH_M: f64 = 5.0;
 /// Discharge coefficient of the clearance and valves when the case gives none: a
 /// sharp-edged orifice (from memory, the value used for the screen slots too).
 pub const DEFAULT_BLOCK_DISCHARGE_COEFFICIENT: f64 = 0.6;
@@ -58,10 +67,16 @@ pub enum KinematicsName {
 #[derive(Debug, Deserialize, JsonSchema)]
 #[serde(deny_unknown_fields)]
 pub struct SurgeBlockKeys {
-    /// Radius of the block where water leaks past it [well.casing_radius − 12.5 mm: a
-    /// body about 25 mm (1 in) smaller than the casing inside diameter, the usual sizing;
-    /// discs cut to the full diameter seal better: give a radius nearer the casing's].
+    /// Radius of the block where water leaks past it, i.e. of its discs [well.casing_radius
+    /// − 1.5 mm: discs cut to about the casing's inside diameter; an assumption, measure the
+    /// clearance in the field].
     pub block_radius: Option<Q<Length>>,
+    /// Depth of the block below the static water level [5 m, an assumption: give it]. The
+    /// suction under the block cannot pull the water below its vapour pressure there.
+    pub depth: Option<Q<Length>>,
+    /// Atmospheric pressure on the water in the well [101325 Pa, the standard atmosphere at
+    /// sea level; give the local value at altitude].
+    pub atmospheric_pressure: Option<Q<Pressure>>,
     /// Stroke length, bottom to top.
     pub stroke: Q<Length>,
     /// Strokes (full up-and-down cycles) per unit time: Hz, strokes/min, spm, …; or give
@@ -107,6 +122,72 @@ pub(super) fn ramp_cycles(v: Option<f64>) -> Result<f64, CaseError> {
     non_negative("drive.ramp_cycles", v.unwrap_or(0.0), "")
 }
 
+/// `drive.atmospheric_pressure` in Pa [standard atmosphere].
+fn atmospheric_pa(q: &Option<Q<Pressure>>) -> Result<f64, CaseError> {
+    match q {
+        Some(q) => positive(
+            "drive.atmospheric_pressure",
+            q.si("drive.atmospheric_pressure")?,
+            "Pa",
+        ),
+        None => Ok(STANDARD_ATMOSPHERE_PA),
+    }
+}
+
+/// A sealed tool's depth below the static level (`drive.depth`, default
+/// [`DEFAULT_BLOCK_DEPTH_M`]) and the net atmospheric head over the vapour pressure at the
+/// water temperature, m; notes the defaults and the vapour pressure.
+fn tool_depth(
+    ctx: &DriveContext<'_>,
+    depth: &Option<Q<Length>>,
+    atmosphere: &Option<Q<Pressure>>,
+    notes: &mut Vec<String>,
+) -> Result<(f64, f64), CaseError> {
+    let depth_m = match depth {
+        Some(q) => non_negative("drive.depth", q.si("drive.depth")?, "m")?,
+        None => {
+            notes.push(format!(
+                "surge block depth not given: {} below the static level, an assumption: give \
+                 drive.depth (the suction limit and the largest collapse load grow with it)",
+                format_si(DEFAULT_BLOCK_DEPTH_M, Quantity::Length)
+            ));
+            DEFAULT_BLOCK_DEPTH_M
+        }
+    };
+    Ok((depth_m, vapour_limit(ctx, atmosphere, notes)?))
+}
+
+/// Net head of the atmosphere over the vapour pressure, m, with a note of both pressures.
+fn vapour_limit(
+    ctx: &DriveContext<'_>,
+    atmosphere: &Option<Q<Pressure>>,
+    notes: &mut Vec<String>,
+) -> Result<f64, CaseError> {
+    let p_atm = atmospheric_pa(atmosphere)?;
+    let p_v = vapour_pressure_pa(ctx.temperature_c);
+    if p_atm <= p_v {
+        return Err(CaseError::new(
+            "drive.atmospheric_pressure",
+            format!("must exceed the vapour pressure of the water ({p_v:.0} Pa), got {p_atm} Pa"),
+        ));
+    }
+    let net = net_atmospheric_head_m(p_atm, ctx.temperature_c, ctx.density_kg_m3);
+    notes.push(format!(
+        "vapour bound: atmospheric pressure {}{} less the vapour pressure {} at {:.1} degC \
+         (IAPWS-IF97) = {} of water above the tool's depth",
+        format_si(p_atm, Quantity::Pressure),
+        if atmosphere.is_none() {
+            " (standard atmosphere at sea level; give drive.atmospheric_pressure at altitude)"
+        } else {
+            ""
+        },
+        format_si(p_v, Quantity::Pressure),
+        ctx.temperature_c,
+        format_si(net, Quantity::Head)
+    ));
+    Ok(net)
+}
+
 /// Parser of the `surge_block` drive (registered in [`super::DRIVE_KINDS`]).
 pub fn surge_block(
     map: Map<String, Value>,
@@ -118,26 +199,26 @@ pub fn surge_block(
     let block_radius_m = match &k.block_radius {
         Some(q) => positive("drive.block_radius", q.si("drive.block_radius")?, "m")?,
         None => {
-            let r = rc - DEFAULT_BODY_CLEARANCE_M;
+            let r = rc - DEFAULT_DISC_CLEARANCE_M;
             if r <= 0.0 {
                 return Err(CaseError::new(
                     "drive.block_radius",
                     format!(
-                        "required key is missing: the default (well.casing_radius − 12.5 mm) \
+                        "required key is missing: the default (well.casing_radius − 1.5 mm) \
                          is not positive for a casing radius of {rc} m"
                     ),
                 ));
             }
             notes.push(format!(
-                "surge block radius not given: casing radius − 12.5 mm = {} (a body about \
-                 25 mm / 1 in smaller than the casing inside diameter, the usual sizing); discs \
-                 cut to the full diameter leak less: give block_radius nearer the casing radius \
-                 to model them",
+                "surge block radius not given: casing radius − 1.5 mm = {} (discs cut to about \
+                 the casing's inside diameter; the clearance is an assumption: measure it in \
+                 the field, it sets the leakage past the block and so the suction)",
                 format_si(r, Quantity::Length)
             ));
             r
         }
     };
+    let (depth_m, net_atm_m) = tool_depth(ctx, &k.depth, &k.atmospheric_pressure, &mut notes)?;
     let stroke_m = positive("drive.stroke", k.stroke.si("drive.stroke")?, "m")?;
     let frequency_hz = stroke_rate(&k.frequency, k.strokes_per_minute)?;
     let kinematics =
@@ -183,6 +264,8 @@ pub fn surge_block(
         discharge_coefficient: cd,
         valve_area_m2,
         ramp_cycles: ramp_cycles(k.ramp_cycles)?,
+        depth_m,
+        net_atmospheric_head_m: net_atm_m,
     };
     let period = 1.0 / frequency_hz;
     let (motion, peak_speed, reversal) = match kinematics {
@@ -230,6 +313,10 @@ pub fn surge_block(
          free-surface storage); the head above the block is the static level"
             .to_owned(),
     );
+    notes.push(format!(
+        "surge block: vapour bound {} (the water under the block parts from it there)",
+        format_si(block.min_head_m(), Quantity::Head)
+    ));
     let mut resolved = into_map(json!({
         "block_radius": block_radius_m,
         "stroke": stroke_m,
@@ -241,6 +328,8 @@ pub fn surge_block(
         "discharge_coefficient": cd,
         "valve_area": valve_area_m2,
         "ramp_cycles": block.ramp_cycles,
+        "depth": depth_m,
+        "atmospheric_pressure": atmospheric_pa(&k.atmospheric_pressure)?,
     }));
     if let Some(r) = reversal {
         resolved.insert("reversal_time".to_owned(), json!(r));
@@ -264,9 +353,13 @@ pub struct SwabKeys {
     pub stroke: Q<Length>,
     /// Time to lower the swab again after each lift.
     pub lowering_time: Q<Time>,
-    /// Depth of the swab below the static level at the start of each lift: how far the
-    /// level can be drawn down before the column parts.
+    /// Depth of the swab cups below the static level at the start of each lift. The cups
+    /// seal the column below them while rising; its head cannot fall below the vapour
+    /// bound at their depth.
     pub submergence: Q<Length>,
+    /// Atmospheric pressure on the water in the well [101325 Pa, the standard atmosphere at
+    /// sea level; give the local value at altitude].
+    pub atmospheric_pressure: Option<Q<Pressure>>,
     /// Number of strokes, after which the well recovers [0 = strokes for the whole run].
     pub strokes: Option<u32>,
     /// The lifting speed grows linearly from 0 over this many strokes [0].
@@ -303,6 +396,12 @@ pub fn swab(map: Map<String, Value>, ctx: &DriveContext<'_>) -> Result<ParsedDri
         )?,
         strokes: k.strokes.unwrap_or(0),
         ramp_cycles: ramp_cycles(k.ramp_cycles)?,
+        net_atmospheric_head_m: 0.0,
+    };
+    let mut vapour_notes = Vec::new();
+    let s = Swab {
+        net_atmospheric_head_m: vapour_limit(ctx, &k.atmospheric_pressure, &mut vapour_notes)?,
+        ..s
     };
     let a_cup = PI * cup_radius_m * cup_radius_m;
     let lift_s = s.stroke_m / s.lift_rate_m_s;
@@ -323,19 +422,18 @@ pub fn swab(map: Map<String, Value>, ctx: &DriveContext<'_>) -> Result<ParsedDri
         },
         s.ramp_cycles
     )];
-    let storage = ctx.well.storage_m2;
-    let drop = (storage > 0.0).then(|| s.stroke_m * a_cup / storage);
     notes.push(format!(
-        "swab: lifts up to {} while rising{}; the swab is {} below the static level, and if \
-         the level falls to within 2 % of that the column parts, the lift is cut back and the \
-         run warns",
+        "swab: the cups seal the casing while rising, lifting {} out of the well; the water \
+         below them is sealed and must come through the screen; its head cannot fall below \
+         the vapour bound {} at the start of a lift (rising with the cups), where the column \
+         parts and the run warns; while the swab is lowered the well is one free surface",
         format_si(a_cup * s.lift_rate_m_s, Quantity::FlowRate),
-        drop.map_or(String::new(), |d| format!(
-            "; with no inflow one lift would lower the level by {}",
-            format_si(d, Quantity::Length)
-        )),
-        format_si(s.submergence_m, Quantity::Length),
+        format_si(
+            -(s.net_atmospheric_head_m + s.submergence_m),
+            Quantity::Head
+        ),
     ));
+    notes.extend(vapour_notes);
     Ok(ParsedDrive {
         resolved: into_map(json!({
             "cup_radius": s.cup_radius_m,
@@ -345,6 +443,7 @@ pub fn swab(map: Map<String, Value>, ctx: &DriveContext<'_>) -> Result<ParsedDri
             "submergence": s.submergence_m,
             "strokes": s.strokes,
             "ramp_cycles": s.ramp_cycles,
+            "atmospheric_pressure": atmospheric_pa(&k.atmospheric_pressure)?,
         })),
         drive: Drive::Swab(s),
         notes,

@@ -10,8 +10,9 @@ use super::{into_map, read_keys, DriveContext, ParsedDrive};
 use crate::case::checks::{non_negative, positive};
 use crate::case::error::CaseError;
 use crate::case::quantity::{FlowRate, Length, Time, Q};
+use crate::summary::G;
 use crate::units::{format_si, Quantity};
-use boreflux_solver::devices::{JetPulse, PumpBackwash};
+use boreflux_solver::devices::{Backflow, JetPulse, PumpBackwash, PumpLaw};
 use boreflux_solver::water::GRAVITY_M_S2;
 use boreflux_solver::Drive;
 use schemars::JsonSchema;
@@ -32,25 +33,44 @@ pub const DEFAULT_NOZZLES: u32 = 2;
 /// 7–10 mm nozzle held within 13 mm of the screen (PRACTICE.md §1.8), spread a little.
 pub const DEFAULT_JET_WIDTH_M: f64 = 0.010;
 
-/// Keys of `pump_backwash`: the back-flow as `backflow_volume`, or as `riser_radius`
-/// with `riser_length` (exactly one of the two ways).
+/// A pump's head–flow curve as a quadratic through its shut-off head and one rated point.
+#[derive(Debug, Deserialize, JsonSchema)]
+#[serde(deny_unknown_fields)]
+pub struct PumpCurveKeys {
+    /// Head at zero flow (shut-off head).
+    pub shutoff_head: Q<Length>,
+    /// Rate at the rated point.
+    pub rated_rate: Q<FlowRate>,
+    /// Head at the rated point, below the shut-off head.
+    pub rated_head: Q<Length>,
+}
+
+/// Keys of `pump_backwash`: the pump as a constant `pumping_rate` or a `pump_curve`; the
+/// back-flow as `backflow_volume`, or as the riser's contents (`riser_radius`).
 #[derive(Debug, Deserialize, JsonSchema)]
 #[serde(deny_unknown_fields)]
 pub struct PumpBackwashKeys {
-    /// Pumping rate while the pump runs, positive = withdrawal.
-    pub pumping_rate: Q<FlowRate>,
+    /// Constant pumping rate while the pump runs, positive = withdrawal; or give
+    /// `pump_curve`.
+    pub pumping_rate: Option<Q<FlowRate>>,
+    /// Head–flow curve of the pump (H = H0 − a Q² through the shut-off head and a rated
+    /// point): the rate then falls as the well is drawn down; or give `pumping_rate`.
+    pub pump_curve: Option<PumpCurveKeys>,
     /// Pump running time per cycle.
     pub on_time: Q<Time>,
     /// Pump stopped time per cycle.
     pub off_time: Q<Time>,
-    /// Volume that drains back from the pump column at each stop; or give
-    /// `riser_radius` and `riser_length`.
+    /// Depth of the pump intake below the static level: the pump breaks suction when the
+    /// level reaches it.
+    pub intake_depth: Q<Length>,
+    /// Height of the discharge above the static level (the pump lifts to it; the riser is
+    /// full up to it when the pump stops) [0 m, an assumption: give it].
+    pub discharge_height: Option<Q<Length>>,
+    /// Volume that drains back at each stop; or give `riser_radius`.
     pub backflow_volume: Option<Q<Volume>>,
-    /// Inside radius of the pump column, with `riser_length`: back-flow π r² L.
+    /// Inside radius of the pump column: at each stop its contents above the well level
+    /// drain back into the well.
     pub riser_radius: Option<Q<Length>>,
-    /// Length of the water column standing in the riser when the pump stops, with
-    /// `riser_radius`.
-    pub riser_length: Option<Q<Length>>,
     /// Time constant of the drain-back [5 s, an assumption: time it in the field].
     pub drain_time: Option<Q<Time>>,
     /// Number of cycles, after which the well recovers [0 = cycles for the whole run].
@@ -59,46 +79,100 @@ pub struct PumpBackwashKeys {
     pub ramp_cycles: Option<f64>,
 }
 
-/// The back-flow volume, m³, and how it was found.
-fn backflow(k: &PumpBackwashKeys) -> Result<(f64, Option<String>), CaseError> {
-    match (&k.backflow_volume, &k.riser_radius, &k.riser_length) {
-        (Some(v), None, None) => Ok((
-            non_negative(
+/// The back-flow and how it was found.
+fn backflow(k: &PumpBackwashKeys) -> Result<(Backflow, Option<String>), CaseError> {
+    match (&k.backflow_volume, &k.riser_radius) {
+        (Some(v), None) => Ok((
+            Backflow::Volume(non_negative(
                 "drive.backflow_volume",
                 v.si("drive.backflow_volume")?,
                 "m3",
-            )?,
+            )?),
             None,
         )),
-        (None, Some(r), Some(l)) => {
+        (None, Some(r)) => {
             let r = positive("drive.riser_radius", r.si("drive.riser_radius")?, "m")?;
-            let l = non_negative("drive.riser_length", l.si("drive.riser_length")?, "m")?;
-            let v = PI * r * r * l;
+            let a = PI * r * r;
             Ok((
-                v,
+                Backflow::Riser(a),
                 Some(format!(
-                    "back-flow volume from the riser: pi x ({})^2 x {} = {}",
+                    "back-flow from the riser: inside area pi x ({})^2 = {}; at each stop its \
+                     contents above the well level, area x (discharge height - well head), \
+                     drain back",
                     format_si(r, Quantity::Length),
-                    format_si(l, Quantity::Length),
-                    format_si(v, Quantity::Volume)
+                    format_si(a, Quantity::Area),
                 )),
             ))
         }
-        (Some(_), _, _) => Err(CaseError::new(
+        (Some(_), Some(_)) => Err(CaseError::new(
             "drive.backflow_volume",
-            "give either backflow_volume or riser_radius with riser_length, not both",
+            "give either backflow_volume or riser_radius, not both",
         )),
-        (None, Some(_), None) => Err(CaseError::new(
-            "drive.riser_length",
-            "required key is missing (riser_radius is given; or give backflow_volume instead)",
-        )),
-        (None, None, Some(_)) => Err(CaseError::new(
-            "drive.riser_radius",
-            "required key is missing (riser_length is given; or give backflow_volume instead)",
-        )),
-        (None, None, None) => Err(CaseError::new(
+        (None, None) => Err(CaseError::new(
             "drive.backflow_volume",
-            "required key is missing (or give riser_radius and riser_length)",
+            "required key is missing (or give riser_radius)",
+        )),
+    }
+}
+
+/// The pump law and a note describing it.
+fn pump_law(k: &PumpBackwashKeys) -> Result<(PumpLaw, String), CaseError> {
+    match (&k.pumping_rate, &k.pump_curve) {
+        (Some(q), None) => {
+            let q = positive("drive.pumping_rate", q.si("drive.pumping_rate")?, "m3/s")?;
+            Ok((
+                PumpLaw::ConstantRate(q),
+                format!(
+                    "pumping {} whatever the lift (until the level reaches the intake)",
+                    format_si(q, Quantity::FlowRate)
+                ),
+            ))
+        }
+        (None, Some(c)) => {
+            let h0 = positive(
+                "drive.pump_curve.shutoff_head",
+                c.shutoff_head.si("drive.pump_curve.shutoff_head")?,
+                "m",
+            )?;
+            let qr = positive(
+                "drive.pump_curve.rated_rate",
+                c.rated_rate.si("drive.pump_curve.rated_rate")?,
+                "m3/s",
+            )?;
+            let hr = non_negative(
+                "drive.pump_curve.rated_head",
+                c.rated_head.si("drive.pump_curve.rated_head")?,
+                "m",
+            )?;
+            if hr >= h0 {
+                return Err(CaseError::new(
+                    "drive.pump_curve.rated_head",
+                    format!("must be below the shut-off head ({h0} m), got {hr} m"),
+                ));
+            }
+            let a = (h0 - hr) / (qr * qr);
+            Ok((
+                PumpLaw::Quadratic {
+                    shutoff_head_m: h0,
+                    coefficient_s2_m5: a,
+                },
+                format!(
+                    "pump curve H = {} - {} s2/m5 x Q^2 (through the shut-off head and {} at \
+                     {}): the rate falls as the lift from the well level to the discharge grows",
+                    format_si(h0, Quantity::Head),
+                    G(a, 4),
+                    format_si(hr, Quantity::Head),
+                    format_si(qr, Quantity::FlowRate),
+                ),
+            ))
+        }
+        (Some(_), Some(_)) => Err(CaseError::new(
+            "drive.pump_curve",
+            "give either pumping_rate or pump_curve, not both",
+        )),
+        (None, None) => Err(CaseError::new(
+            "drive.pumping_rate",
+            "required key is missing (or give pump_curve)",
         )),
     }
 }
@@ -109,7 +183,8 @@ pub fn pump_backwash(
     _ctx: &DriveContext<'_>,
 ) -> Result<ParsedDrive, CaseError> {
     let k: PumpBackwashKeys = read_keys(map)?;
-    let (volume, riser_note) = backflow(&k)?;
+    let (backflow, riser_note) = backflow(&k)?;
+    let (pump, pump_note) = pump_law(&k)?;
     let mut notes = Vec::new();
     let drain_time_s = match &k.drain_time {
         Some(q) => positive("drive.drain_time", q.si("drive.drain_time")?, "s")?,
@@ -122,15 +197,33 @@ pub fn pump_backwash(
             DEFAULT_DRAIN_TIME_S
         }
     };
-    let p = PumpBackwash {
-        pumping_rate_m3_s: positive(
-            "drive.pumping_rate",
-            k.pumping_rate.si("drive.pumping_rate")?,
-            "m3/s",
+    let discharge_height_m = match &k.discharge_height {
+        Some(q) => non_negative(
+            "drive.discharge_height",
+            q.si("drive.discharge_height")?,
+            "m",
         )?,
+        None => {
+            notes.push(
+                "discharge height not given: 0 m (the discharge at the static level), an \
+                 assumption: give drive.discharge_height (it sets the lift on a pump curve and \
+                 the riser's contents)"
+                    .to_owned(),
+            );
+            0.0
+        }
+    };
+    let p = PumpBackwash {
+        pump,
         on_time_s: positive("drive.on_time", k.on_time.si("drive.on_time")?, "s")?,
         off_time_s: positive("drive.off_time", k.off_time.si("drive.off_time")?, "s")?,
-        backflow_volume_m3: volume,
+        intake_depth_m: positive(
+            "drive.intake_depth",
+            k.intake_depth.si("drive.intake_depth")?,
+            "m",
+        )?,
+        discharge_height_m,
+        backflow,
         drain_time_s,
         cycles: k.cycles.unwrap_or(0),
         ramp_cycles: non_negative_ramp(k.ramp_cycles)?,
@@ -139,10 +232,10 @@ pub fn pump_backwash(
     notes.insert(
         0,
         format!(
-            "drive: pump and backwash, pumping {} for {}, stopped for {} (a cycle every {}, \
-             {}); {} drains back at each stop with time constant {}, {:.1} % of it before the \
-             pump restarts",
-            format_si(p.pumping_rate_m3_s, Quantity::FlowRate),
+            "drive: pump and backwash, {pump_note}; on for {}, stopped for {} (a cycle every \
+             {}, {}); intake {} below the static level (the pump breaks suction there), \
+             discharge {} above it; the back-flow drains with time constant {}, {:.1} % of it \
+             before the pump restarts",
             format_si(p.on_time_s, Quantity::Time),
             format_si(p.off_time_s, Quantity::Time),
             format_si(p.period_s(), Quantity::Time),
@@ -150,7 +243,8 @@ pub fn pump_backwash(
                 0 => "for the whole run".to_owned(),
                 n => format!("{n} cycles, then recovery"),
             },
-            format_si(p.backflow_volume_m3, Quantity::Volume),
+            format_si(p.intake_depth_m, Quantity::Length),
+            format_si(p.discharge_height_m, Quantity::Length),
             format_si(p.drain_time_s, Quantity::Time),
             100.0 * drained
         ),
@@ -162,27 +256,61 @@ pub fn pump_backwash(
          follow the pump maker's limits on starts per hour"
             .to_owned(),
     );
+    let mut resolved = into_map(json!({
+        "on_time": p.on_time_s,
+        "off_time": p.off_time_s,
+        "intake_depth": p.intake_depth_m,
+        "discharge_height": p.discharge_height_m,
+        "drain_time": p.drain_time_s,
+        "cycles": p.cycles,
+        "ramp_cycles": p.ramp_cycles,
+    }));
+    match p.pump {
+        PumpLaw::ConstantRate(q) => {
+            resolved.insert("pumping_rate".to_owned(), json!(q));
+        }
+        PumpLaw::Quadratic { .. } => {
+            let c = k.pump_curve.as_ref().expect("a curve was read");
+            resolved.insert(
+                "pump_curve".to_owned(),
+                json!({
+                    "shutoff_head": c.shutoff_head.si("drive.pump_curve.shutoff_head")?,
+                    "rated_rate": c.rated_rate.si("drive.pump_curve.rated_rate")?,
+                    "rated_head": c.rated_head.si("drive.pump_curve.rated_head")?,
+                }),
+            );
+        }
+    }
+    match p.backflow {
+        Backflow::Volume(v) => {
+            resolved.insert("backflow_volume".to_owned(), json!(v));
+        }
+        Backflow::Riser(_) => {
+            let r = k.riser_radius.as_ref().expect("a riser was read");
+            resolved.insert(
+                "riser_radius".to_owned(),
+                json!(r.si("drive.riser_radius")?),
+            );
+        }
+    }
     Ok(ParsedDrive {
-        resolved: into_map(json!({
-            "pumping_rate": p.pumping_rate_m3_s,
-            "on_time": p.on_time_s,
-            "off_time": p.off_time_s,
-            "backflow_volume": p.backflow_volume_m3,
-            "drain_time": p.drain_time_s,
-            "cycles": p.cycles,
-            "ramp_cycles": p.ramp_cycles,
-        })),
+        resolved,
         drive: Drive::PumpBackwash(p),
         notes,
     })
 }
 
-/// Keys of `jet_pulse`.
+/// Keys of `jet_pulse`: the jet as `nozzle_velocity` or as the pump's `jet_rate` through
+/// the nozzles (exactly one), with the nozzles' number and diameter.
 #[derive(Debug, Deserialize, JsonSchema)]
 #[serde(deny_unknown_fields)]
 pub struct JetPulseKeys {
-    /// Nozzle exit velocity (a velocity: "45 m/s", "150 ft/s").
-    pub nozzle_velocity: Q<Velocity>,
+    /// Nozzle exit velocity (a velocity: "45 m/s", "150 ft/s"); or give `jet_rate`.
+    pub nozzle_velocity: Option<Q<Velocity>>,
+    /// Rate the jetting pump sends through all nozzles; or give `nozzle_velocity`.
+    pub jet_rate: Option<Q<FlowRate>>,
+    /// Inside diameter of each nozzle (7–10 mm is usual).
+    pub nozzle_diameter: Q<Length>,
     /// Fraction of the velocity head that reaches the screen, in (0, 1] [0.5, an
     /// assumption with no source: calibrate it].
     pub efficiency: Option<f64>,
@@ -192,7 +320,9 @@ pub struct JetPulseKeys {
     pub nozzles: Option<u32>,
     /// Width of the jet where it meets the screen [10 mm].
     pub jet_width: Option<Q<Length>>,
-    /// The pulse head grows linearly from 0 over this many passes, a gentle start [0].
+    /// Rate pumped out of the well while jetting, positive = withdrawal [0].
+    pub pumping_rate: Option<Q<FlowRate>>,
+    /// The jet grows linearly from 0 over this many passes, a gentle start [0].
     pub ramp_cycles: Option<f64>,
 }
 
@@ -224,49 +354,98 @@ pub fn jet_pulse(
     if nozzles == 0 {
         return Err(CaseError::new("drive.nozzles", "must be at least 1, got 0"));
     }
-    let j = JetPulse {
-        nozzle_velocity_m_s: positive(
+    let d = positive(
+        "drive.nozzle_diameter",
+        k.nozzle_diameter.si("drive.nozzle_diameter")?,
+        "m",
+    )?;
+    let area = nozzles as f64 * 0.25 * PI * d * d;
+    let velocity = match (&k.nozzle_velocity, &k.jet_rate) {
+        (Some(v), None) => positive(
             "drive.nozzle_velocity",
-            k.nozzle_velocity.si("drive.nozzle_velocity")?,
+            v.si("drive.nozzle_velocity")?,
             "m/s",
         )?,
+        (None, Some(q)) => positive("drive.jet_rate", q.si("drive.jet_rate")?, "m3/s")? / area,
+        (Some(_), Some(_)) => {
+            return Err(CaseError::new(
+                "drive.jet_rate",
+                "give either nozzle_velocity or jet_rate, not both",
+            ))
+        }
+        (None, None) => {
+            return Err(CaseError::new(
+                "drive.nozzle_velocity",
+                "required key is missing (or give jet_rate)",
+            ))
+        }
+    };
+    let j = JetPulse {
+        nozzle_velocity_m_s: velocity,
+        nozzle_diameter_m: d,
+        nozzles,
         efficiency,
         rotation_period_s: positive(
             "drive.rotation_period",
             k.rotation_period.si("drive.rotation_period")?,
             "s",
         )?,
-        nozzles,
         jet_width_m: match &k.jet_width {
             Some(q) => positive("drive.jet_width", q.si("drive.jet_width")?, "m")?,
             None => DEFAULT_JET_WIDTH_M,
         },
         screen_radius_m: ctx.well.screen_radius_m,
+        screen_length_m: ctx.well.screen_length_m,
+        well_storage_m2: ctx.well.storage_m2,
+        pumping_rate_m3_s: match &k.pumping_rate {
+            Some(q) => non_negative("drive.pumping_rate", q.si("drive.pumping_rate")?, "m3/s")?,
+            None => 0.0,
+        },
         ramp_cycles: non_negative_ramp(k.ramp_cycles)?,
     };
     let head = j.pulse_head_m();
+    let q_j = j.jet_flow_m3_s();
     notes.insert(
         0,
         format!(
-            "drive: jet pulses, nozzle velocity {}, efficiency {}: pulse head eta v^2/(2g) = \
-             {} ({}); {} nozzles turning once every {}: a pass every {} lasting {} (jet width \
-             {} on screen radius {})",
+            "drive: jetting, {} nozzles of {} at {} deliver {} into the well{}; stagnation \
+             head at the screen eta v^2/(2g) = {} ({}) on the {:.3} % of the screen under the \
+             jets (width {}), so the screen's area-weighted head is {} above the in-well \
+             head; one turn every {}",
+            j.nozzles,
+            format_si(d, Quantity::Length),
             format_si(j.nozzle_velocity_m_s, Quantity::Velocity),
-            j.efficiency,
+            format_si(q_j, Quantity::FlowRate),
+            if j.pumping_rate_m3_s > 0.0 {
+                format!(
+                    " while {} is pumped out",
+                    format_si(j.pumping_rate_m3_s, Quantity::FlowRate)
+                )
+            } else {
+                String::new()
+            },
             format_si(head, Quantity::Head),
             format_si(head * ctx.density_kg_m3 * GRAVITY_M_S2, Quantity::Pressure),
-            j.nozzles,
-            format_si(j.rotation_period_s, Quantity::Time),
-            format_si(j.period_s(), Quantity::Time),
-            format_si(j.pulse_s(), Quantity::Time),
+            100.0 * j.share(),
             format_si(j.jet_width_m, Quantity::Length),
-            format_si(j.screen_radius_m, Quantity::Length),
+            format_si(j.share() * head, Quantity::Head),
+            format_si(j.rotation_period_s, Quantity::Time),
         ),
     );
+    if j.pumping_rate_m3_s < 1.15 * q_j {
+        notes.push(format!(
+            "jetting: the well is pumped at {} against {} of jet flow; specifications ask for \
+             pumping at 115 % or more of the jet flow (docs/practice.md §1.8) so that the jetted \
+             water and fines leave the well instead of the formation taking them",
+            format_si(j.pumping_rate_m3_s, Quantity::FlowRate),
+            format_si(q_j, Quantity::FlowRate)
+        ));
+    }
     notes.push(
-        "jet_pulse: a one-dimensional radial model can only approximate a jet: it spreads each \
-         pass over the whole circumference and screen length, so the flow at the jet itself is \
-         understated and the whole screen is pulsed at once"
+        "jet_pulse: a one-dimensional radial model carries the jets' volume and their \
+         area-weighted excess head only; the push at the jet itself (the full stagnation head \
+         on the footprint as the jet passes) is averaged over the screen, so flow, gradient \
+         and shear at the footprint are understated"
             .to_owned(),
     );
     notes.push(
@@ -278,10 +457,12 @@ pub fn jet_pulse(
     Ok(ParsedDrive {
         resolved: into_map(json!({
             "nozzle_velocity": j.nozzle_velocity_m_s,
+            "nozzle_diameter": j.nozzle_diameter_m,
             "efficiency": j.efficiency,
             "rotation_period": j.rotation_period_s,
             "nozzles": j.nozzles,
             "jet_width": j.jet_width_m,
+            "pumping_rate": j.pumping_rate_m3_s,
             "ramp_cycles": j.ramp_cycles,
         })),
         drive: Drive::JetPulse(j),

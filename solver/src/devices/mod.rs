@@ -3,7 +3,17 @@
 //! Each device either adds a volume rate to the well node (flow control, with the well's
 //! storage) or prescribes the in-well head (the jet). Positive flow is outward (well →
 //! formation). The models are deliberately simple, one-dimensional idealisations; each
-//! states its assumptions.
+//! states its assumptions. A tool that seals the column below it (surge block, swab cups on
+//! the upstroke) cannot pull the water below its vapour pressure: see [`vapour`].
+
+pub mod jet;
+pub mod pump;
+pub mod vapour;
+
+pub use jet::JetPulse;
+pub use pump::{Backflow, PumpBackwash, PumpLaw, SUCTION_BAND_M};
+
+pub use vapour::{net_atmospheric_head_m, vapour_flow, VapourState, VAPOUR_MARGIN_M};
 
 use crate::error::SolverError;
 use crate::water::GRAVITY_M_S2;
@@ -26,7 +36,7 @@ pub fn orifice_flow(cd_area_m2: f64, dh_m: f64) -> (f64, f64) {
 }
 
 /// Amplitude factor of a ramp over the first `ramp_cycles` periods (linear from 0 to 1).
-fn ramp(t: f64, period: f64, ramp_cycles: f64) -> f64 {
+pub(crate) fn ramp(t: f64, period: f64, ramp_cycles: f64) -> f64 {
     if ramp_cycles > 0.0 {
         (t / (ramp_cycles * period)).min(1.0)
     } else {
@@ -57,9 +67,13 @@ pub enum Kinematics {
 /// aquifer at every step. The head above the block is the static level (0):
 ///
 /// ```text
-/// 0 = −A_block v(t) + Cd A_gap s(0 − H) sqrt(2g|H|) − [H > 0] Cd A_valve sqrt(2gH) − Q_screen
+/// 0 = −A_block v(t) + Cd A_gap s(0 − H) sqrt(2g|H|) − [H > 0] Cd A_valve sqrt(2gH)
+///     + Q_v − Q_screen
 /// A_block = π r_block²,  A_gap = π (r_c² − r_block²)
 /// ```
+///
+/// Q_v is the vapour gap that opens when H reaches the vapour bound at the block's depth
+/// ([`vapour`]).
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct SurgeBlock {
     /// Radius of the block (discs), m.
@@ -78,9 +92,38 @@ pub struct SurgeBlock {
     pub valve_area_m2: f64,
     /// The stroke grows linearly from 0 over this many cycles.
     pub ramp_cycles: f64,
+    /// Depth of the block below the static level, m (sets the vapour bound).
+    pub depth_m: f64,
+    /// (p_atm − p_v)/(ρ g), m ([`net_atmospheric_head_m`]); infinite: no vapour bound.
+    pub net_atmospheric_head_m: f64,
 }
 
 impl SurgeBlock {
+    /// Lowest in-well head the water under the block can have, m: the vapour bound.
+    pub fn min_head_m(&self) -> f64 {
+        -(self.net_atmospheric_head_m + self.depth_m)
+    }
+
+    /// Largest rate at which the block can pull water, m³/s: its peak displacement plus the
+    /// clearance leakage at the vapour bound (sets the stiffness of the vapour law).
+    pub fn max_pull_m3_s(&self) -> f64 {
+        let a_block = PI * self.block_radius_m * self.block_radius_m;
+        let a_gap = PI * (self.casing_radius_m.powi(2) - self.block_radius_m.powi(2));
+        let v = match self.kinematics {
+            Kinematics::Sinusoidal => PI * self.frequency_hz * self.stroke_m,
+            Kinematics::Trapezoidal { reversal_s } => {
+                self.stroke_m / (0.5 / self.frequency_hz - 0.5 * reversal_s)
+            }
+        };
+        let h = self.min_head_m().abs();
+        let leak = if h.is_finite() {
+            self.discharge_coefficient * a_gap * (2.0 * GRAVITY_M_S2 * h).sqrt()
+        } else {
+            0.0
+        };
+        a_block * v + leak
+    }
+
     /// Block velocity at time t, m/s, positive upward. The block starts at rest at the
     /// bottom of its stroke: sinusoidal `v = π f s sin(2πft)`; trapezoidal: speed
     /// `V = s/(P/2 − t_r/2)` with linear reversals taking t_r from +V to −V.
@@ -154,6 +197,7 @@ impl SurgeBlock {
                 format!("must be zero or positive, got {}", self.valve_area_m2),
             ));
         }
+        depth_and_atmosphere(self.depth_m, self.net_atmospheric_head_m)?;
         if let Kinematics::Trapezoidal { reversal_s } = self.kinematics {
             if !(reversal_s > 0.0 && reversal_s < 0.5 / self.frequency_hz) {
                 return Err(SolverError::invalid(
@@ -166,18 +210,40 @@ impl SurgeBlock {
     }
 }
 
+/// Checks a tool's depth below the static level and its net atmospheric head.
+fn depth_and_atmosphere(depth_m: f64, net_atm_m: f64) -> Result<(), SolverError> {
+    if !(depth_m.is_finite() && depth_m >= 0.0) {
+        return Err(SolverError::invalid(
+            "drive.depth",
+            format!("must be zero or positive (below the static level), got {depth_m} m"),
+        ));
+    }
+    if net_atm_m.is_nan() || net_atm_m <= 0.0 {
+        return Err(SolverError::invalid(
+            "drive.atmospheric_pressure",
+            format!(
+                "must exceed the vapour pressure of the water (net head {net_atm_m} m); check \
+                 the pressure and fluid.temperature"
+            ),
+        ));
+    }
+    Ok(())
+}
+
 /// A swab: cups lifted at a steady rate over a stroke, then lowered freely.
 ///
-/// During the upstroke the swab lifts water out of the well at `A_cup U`; the well level
-/// then moves under its free-surface storage and the aquifer answers through the screen.
-/// The drawdown cannot exceed the submergence of the swab: as the in-well head approaches
-/// −submergence the column parts and the lifted rate falls smoothly to zero over the last
-/// 10 % of the submergence (`limited` reports it; the band keeps the Newton iteration
-/// smooth: a sharper cut-off makes it stall on the corner). On the downstroke nothing is lifted and
-/// the well recovers.
+/// On the upstroke the cups seal the casing: the water above them is lifted and discharged
+/// (it leaves the well), and the water below them is a sealed column like the one under a
+/// surge block, with no free-surface storage. The cups' displacement `A_cup U` must be met
+/// by flow through the screen; when the formation cannot supply it, the head under the cups
+/// falls to the vapour bound at their depth (which rises with them, `d(τ) = d₀ − U τ`) and
+/// the column parts ([`vapour`]). On the downstroke the cups let water past: the well is
+/// one free surface again, drawn down by the volume of any vapour gap (`H = −V/S_w`: the
+/// water lifted out and not replaced), and recovers.
 ///
 /// ```text
-/// Q_dev = −A_cup U φ(H)   (upstroke),  0 (downstroke);   φ = smoothstep((H + s_m)/w),  w = 0.1 s_m
+/// lifting:  0 = −A_cup U + Q_v − Q_screen             (sealed below the cups)
+/// lowering: S_w dH/dt = −Q_screen                      (free surface)
 /// ```
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct Swab {
@@ -189,26 +255,14 @@ pub struct Swab {
     pub stroke_m: f64,
     /// Time to lower the swab again, s.
     pub lowering_time_s: f64,
-    /// Submergence of the swab below the static level at the start of the stroke, m.
+    /// Depth of the cups below the static level at the start of the stroke, m.
     pub submergence_m: f64,
     /// Number of strokes; after them the well recovers (0 = strokes for the whole run).
     pub strokes: u32,
     /// The lifting speed grows linearly from 0 over this many strokes.
     pub ramp_cycles: f64,
-}
-
-/// Width of the band over which a swab's lifted rate falls to zero, as a fraction of its
-/// submergence.
-const PARTING_BAND: f64 = 0.1;
-
-fn smoothstep(x: f64) -> (f64, f64) {
-    if x <= 0.0 {
-        (0.0, 0.0)
-    } else if x >= 1.0 {
-        (1.0, 0.0)
-    } else {
-        (x * x * (3.0 - 2.0 * x), 6.0 * x * (1.0 - x))
-    }
+    /// (p_atm − p_v)/(ρ g), m ([`net_atmospheric_head_m`]); infinite: no vapour bound.
+    pub net_atmospheric_head_m: f64,
 }
 
 impl Swab {
@@ -217,28 +271,48 @@ impl Swab {
         self.stroke_m / self.lift_rate_m_s + self.lowering_time_s
     }
 
-    fn lifting(&self, t: f64) -> bool {
+    /// Time into the current lift, s, or `None` while the swab is lowered or done. The
+    /// phases are closed on the left of each instant (a lift includes its end, a stroke
+    /// starts just after its start time), so a backward-Euler step that ends on a phase
+    /// change sees the phase it spans.
+    fn lift_time(&self, t: f64) -> Option<f64> {
         let p = self.period_s();
-        let n = (t / p).floor();
-        (self.strokes == 0 || n < self.strokes as f64)
-            && t - n * p < self.stroke_m / self.lift_rate_m_s
+        let lift = self.stroke_m / self.lift_rate_m_s;
+        let eps = 1e-9 * p;
+        let n = ((t - eps) / p).floor().max(0.0);
+        let tl = t - n * p;
+        ((self.strokes == 0 || n < self.strokes as f64) && tl > 0.0 && tl <= lift + eps)
+            .then_some(tl.min(lift))
     }
 
-    /// Lifted flow (negative) at time t and in-well head h, and its derivative in h.
-    pub fn flows(&self, t: f64, h: f64) -> (f64, f64) {
+    /// True while the cups are rising and seal the column below them.
+    pub fn lifting(&self, t: f64) -> bool {
+        self.lift_time(t).is_some()
+    }
+
+    /// Vapour bound under the cups at time t, m (−∞ while they do not seal).
+    pub fn min_head_m(&self, t: f64) -> f64 {
+        match self.lift_time(t) {
+            Some(tl) => {
+                let depth = (self.submergence_m - self.lift_rate_m_s * tl).max(0.0);
+                -(self.net_atmospheric_head_m + depth)
+            }
+            None => f64::NEG_INFINITY,
+        }
+    }
+
+    /// Cups' displacement (negative while lifting), m³/s.
+    pub fn displacement(&self, t: f64) -> f64 {
         if !self.lifting(t) {
-            return (0.0, 0.0);
+            return 0.0;
         }
         let a = PI * self.cup_radius_m * self.cup_radius_m;
-        let rate = a * self.lift_rate_m_s * ramp(t, self.period_s(), self.ramp_cycles);
-        let w = PARTING_BAND * self.submergence_m;
-        let (phi, dphi) = smoothstep((h + self.submergence_m) / w);
-        (-rate * phi, -rate * dphi / w)
+        -a * self.lift_rate_m_s * ramp(t, self.period_s(), self.ramp_cycles)
     }
 
-    /// True when the in-well head is inside the band where the column parts.
-    pub fn limited(&self, h: f64) -> bool {
-        h < -(1.0 - PARTING_BAND) * self.submergence_m
+    /// Largest rate at which the cups pull, m³/s.
+    pub fn max_pull_m3_s(&self) -> f64 {
+        PI * self.cup_radius_m * self.cup_radius_m * self.lift_rate_m_s
     }
 
     pub(crate) fn events(&self, t: f64) -> Option<(f64, bool)> {
@@ -277,197 +351,6 @@ impl Swab {
                 format!("must be zero or positive, got {}", self.lowering_time_s),
             ));
         }
-        Ok(())
-    }
-}
-
-/// Pump-and-backwash surging: pump for an on-time, stop, and let the water standing in the
-/// pump column drain back into the well, pushing water outward; repeat.
-///
-/// ```text
-/// Q_dev = −Q_p                                   on
-/// Q_dev = (V_b/τ) exp(−(t − t_stop)/τ)           off (backflow of volume V_b, time constant τ)
-/// ```
-#[derive(Debug, Clone, Copy, PartialEq)]
-pub struct PumpBackwash {
-    /// Pumping rate while on, m³/s (positive = withdrawal).
-    pub pumping_rate_m3_s: f64,
-    /// Pump running time per cycle, s.
-    pub on_time_s: f64,
-    /// Pump stopped time per cycle, s.
-    pub off_time_s: f64,
-    /// Volume that drains back from the pump column at each stop, m³.
-    pub backflow_volume_m3: f64,
-    /// Time constant of the drain-back, s.
-    pub drain_time_s: f64,
-    /// Number of cycles (0 = for the whole run).
-    pub cycles: u32,
-    /// The pumping rate (and so the back-flow) grows linearly from 0 over this many cycles.
-    pub ramp_cycles: f64,
-}
-
-impl PumpBackwash {
-    /// Cycle length, s.
-    pub fn period_s(&self) -> f64 {
-        self.on_time_s + self.off_time_s
-    }
-
-    /// Device flow at time t, m³/s (positive outward).
-    pub fn flow(&self, t: f64) -> f64 {
-        let p = self.period_s();
-        let n = (t / p).floor();
-        if self.cycles > 0 && n >= self.cycles as f64 {
-            return 0.0;
-        }
-        let tl = t - n * p;
-        // The ramp is held over each cycle (evaluated at its start), so a stop drains back
-        // what that cycle pumped up.
-        let scale = ramp(n * p + p, p, self.ramp_cycles);
-        if tl < self.on_time_s {
-            -scale * self.pumping_rate_m3_s
-        } else {
-            let tau = self.drain_time_s;
-            scale * self.backflow_volume_m3 / tau * (-(tl - self.on_time_s) / tau).exp()
-        }
-    }
-
-    pub(crate) fn events(&self, t: f64) -> Option<(f64, bool)> {
-        let p = self.period_s();
-        let n = (t / p).floor();
-        if self.cycles > 0 && n >= self.cycles as f64 {
-            return None;
-        }
-        let tl = t - n * p;
-        let eps = 1e-12 * p;
-        Some(if tl < self.on_time_s - eps {
-            (n * p + self.on_time_s, true)
-        } else {
-            ((n + 1.0) * p, true)
-        })
-    }
-
-    pub(crate) fn validate(&self) -> Result<(), SolverError> {
-        for (f, v) in [
-            ("drive.pumping_rate", self.pumping_rate_m3_s),
-            ("drive.on_time", self.on_time_s),
-            ("drive.off_time", self.off_time_s),
-            ("drive.drain_time", self.drain_time_s),
-        ] {
-            if !(v.is_finite() && v > 0.0) {
-                return Err(SolverError::invalid(
-                    f,
-                    format!("must be positive, got {v}"),
-                ));
-            }
-        }
-        if !(self.backflow_volume_m3.is_finite() && self.backflow_volume_m3 >= 0.0) {
-            return Err(SolverError::invalid(
-                "drive.backflow_volume",
-                format!("must be zero or positive, got {}", self.backflow_volume_m3),
-            ));
-        }
-        Ok(())
-    }
-}
-
-/// A rotating horizontal jet passing one point of the screen, as a train of head pulses.
-///
-/// A one-dimensional radial model cannot represent a jet: it spreads each pulse over the
-/// whole circumference and screen length. The pulse height is the jet's stagnation head
-/// `h_j = η v²/(2g)` and each pass lasts the time the jet (width w) takes to sweep past a
-/// point, `t_p = w/(2π r_s) · T_rot`; between passes the in-well head is the static level.
-///
-/// ```text
-/// H(t) = h_j sin²(π τ/t_p)   for 0 ≤ τ < t_p after the start of each pass, else 0
-/// ```
-#[derive(Debug, Clone, Copy, PartialEq)]
-pub struct JetPulse {
-    /// Nozzle exit velocity, m/s.
-    pub nozzle_velocity_m_s: f64,
-    /// Fraction of the velocity head that reaches the screen, –.
-    pub efficiency: f64,
-    /// Time for one turn of the jetting tool, s.
-    pub rotation_period_s: f64,
-    /// Number of nozzles on the ring.
-    pub nozzles: u32,
-    /// Width of the jet where it meets the screen, m.
-    pub jet_width_m: f64,
-    /// Screen radius, m (for the sweep time).
-    pub screen_radius_m: f64,
-    /// The pulse head grows linearly from 0 over this many passes.
-    pub ramp_cycles: f64,
-}
-
-impl JetPulse {
-    /// Stagnation head of the jet at the screen, m.
-    pub fn pulse_head_m(&self) -> f64 {
-        self.efficiency * self.nozzle_velocity_m_s * self.nozzle_velocity_m_s / (2.0 * GRAVITY_M_S2)
-    }
-
-    /// Time between passes over one point, s.
-    pub fn period_s(&self) -> f64 {
-        self.rotation_period_s / self.nozzles as f64
-    }
-
-    /// Duration of one pass, s.
-    pub fn pulse_s(&self) -> f64 {
-        self.jet_width_m / (2.0 * PI * self.screen_radius_m) * self.rotation_period_s
-    }
-
-    /// In-well head at time t, m.
-    pub fn head_m(&self, t: f64) -> f64 {
-        let tau = t.rem_euclid(self.period_s());
-        let tp = self.pulse_s();
-        if tau < tp {
-            let p = self.period_s();
-            let scale = ramp(t - tau + p, p, self.ramp_cycles);
-            scale * self.pulse_head_m() * (PI * tau / tp).sin().powi(2)
-        } else {
-            0.0
-        }
-    }
-
-    pub(crate) fn events(&self, t: f64) -> Option<(f64, bool)> {
-        let p = self.period_s();
-        let n = (t / p).floor();
-        let tl = t - n * p;
-        let tp = self.pulse_s();
-        Some(if tl < tp - 1e-12 * p {
-            (n * p + tp, false)
-        } else {
-            ((n + 1.0) * p, false)
-        })
-    }
-
-    pub(crate) fn validate(&self) -> Result<(), SolverError> {
-        for (f, v) in [
-            ("drive.nozzle_velocity", self.nozzle_velocity_m_s),
-            ("drive.efficiency", self.efficiency),
-            ("drive.rotation_period", self.rotation_period_s),
-            ("drive.jet_width", self.jet_width_m),
-        ] {
-            if !(v.is_finite() && v > 0.0) {
-                return Err(SolverError::invalid(
-                    f,
-                    format!("must be positive, got {v}"),
-                ));
-            }
-        }
-        if self.efficiency > 1.0 {
-            return Err(SolverError::invalid(
-                "drive.efficiency",
-                format!("must not exceed 1, got {}", self.efficiency),
-            ));
-        }
-        if self.nozzles == 0 {
-            return Err(SolverError::invalid("drive.nozzles", "must be at least 1"));
-        }
-        if self.pulse_s() >= self.period_s() {
-            return Err(SolverError::invalid(
-                "drive.jet_width",
-                "the jet is so wide that passes overlap; reduce jet_width or add fewer nozzles",
-            ));
-        }
-        Ok(())
+        depth_and_atmosphere(self.submergence_m, self.net_atmospheric_head_m)
     }
 }
