@@ -10,7 +10,7 @@
 //! well.screen_length: must be between 0.01 m and 2000 m (screened lengths of water wells), got 1e308 m
 //! ```
 
-use crate::devices::{JetPulse, PumpBackwash, SurgeBlock, Swab};
+use crate::devices::{Backflow, JetPulse, PumpBackwash, PumpLaw, SurgeBlock, Swab};
 use crate::drive::{Drive, TableQuantity};
 use crate::error::SolverError;
 use crate::model::{GridSpec, Medium, Model, TimeSpec};
@@ -175,6 +175,9 @@ pub const BACKFLOW_VOLUME: Range = r(0.0, 1000.0, "m3", "volumes of pump columns
 /// Nozzle exit velocity. Assumption: jetting tools run at 30 to 100 m/s; 300 m/s is about
 /// the speed of a 450 bar water jet.
 pub const NOZZLE_VELOCITY: Range = r(1e-3, 300.0, "m/s", "nozzle velocities of jetting tools");
+/// Nozzle diameter. Assumption: jetting nozzles are a few millimetres across; 0.1 mm to
+/// 0.2 m leaves a wide margin either side.
+pub const NOZZLE_DIAMETER: Range = r(1e-4, 0.2, "m", "nozzle diameters of jetting tools");
 /// Jet width at the screen. Assumption: at least 0.1 mm — a narrower jet would need
 /// sub-microsecond steps to resolve its pass; at most 5 m.
 pub const JET_WIDTH: Range = r(1e-4, 5.0, "m", "jet widths at the screen");
@@ -443,17 +446,31 @@ fn swab(s: &Swab) -> Result<(), SolverError> {
 }
 
 fn pump_backwash(p: &PumpBackwash) -> Result<(), SolverError> {
-    PUMPING_RATE.check_abs("drive.pumping_rate", p.pumping_rate_m3_s)?;
+    match p.pump {
+        PumpLaw::ConstantRate(q) => PUMPING_RATE.check_abs("drive.pumping_rate", q)?,
+        PumpLaw::Quadratic { shutoff_head_m, .. } => {
+            HEAD.check("drive.pump_curve.shutoff_head", shutoff_head_m)?
+        }
+    }
+    SWAB_LENGTH.check("drive.intake_depth", p.intake_depth_m)?;
+    HEAD.check("drive.discharge_height", p.discharge_height_m)?;
     PHASE_TIME.check("drive.on_time", p.on_time_s)?;
     PHASE_TIME.check("drive.off_time", p.off_time_s)?;
     PHASE_TIME.check("drive.drain_time", p.drain_time_s)?;
-    BACKFLOW_VOLUME.check("drive.backflow_volume", p.backflow_volume_m3)?;
+    match p.backflow {
+        Backflow::Volume(v) => BACKFLOW_VOLUME.check("drive.backflow_volume", v)?,
+        Backflow::Riser(a) => {
+            RADIUS.check("drive.riser_radius", (a / std::f64::consts::PI).sqrt())?
+        }
+    }
     COUNT.check("drive.cycles", p.cycles as f64)?;
     RAMP_CYCLES.check("drive.ramp_cycles", p.ramp_cycles)
 }
 
 fn jet(j: &JetPulse) -> Result<(), SolverError> {
     NOZZLE_VELOCITY.check("drive.nozzle_velocity", j.nozzle_velocity_m_s)?;
+    NOZZLE_DIAMETER.check("drive.nozzle_diameter", j.nozzle_diameter_m)?;
+    PUMPING_RATE.check_abs("drive.pumping_rate", j.pumping_rate_m3_s)?;
     PHASE_TIME.check("drive.rotation_period", j.rotation_period_s)?;
     NOZZLES.check("drive.nozzles", j.nozzles as f64)?;
     JET_WIDTH.check("drive.jet_width", j.jet_width_m)?;

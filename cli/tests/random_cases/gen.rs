@@ -105,7 +105,8 @@ fn drive(rng: &mut Rng, kind: &str, screen_radius: f64, casing_radius: f64) -> (
         "surge_block" => {
             let spm = rng.uniform(10.0, 40.0);
             let mut d = json!({"kind": "surge_block", "stroke": rng.uniform(0.3, 1.5),
-                               "strokes_per_minute": spm, "ramp_cycles": rng.uniform(0.0, 2.0)});
+                               "strokes_per_minute": spm, "ramp_cycles": rng.uniform(0.0, 2.0),
+                               "depth": rng.uniform(2.0, 40.0)});
             if rng.chance(0.3) {
                 d["kinematics"] = json!("trapezoidal");
                 d["reversal_time"] = json!(rng.uniform(0.05, 0.3) * 30.0 / spm);
@@ -122,22 +123,40 @@ fn drive(rng: &mut Rng, kind: &str, screen_radius: f64, casing_radius: f64) -> (
                    "strokes": rng.int(0, 3)}),
             json!(format!("{} cycles", rng.int(2, 3))),
         ),
-        "pump_backwash" => (
-            json!({"kind": "pump_backwash", "pumping_rate": format!("{} L/s", rng.log_uniform(2.0, 30.0)),
+        "pump_backwash" => {
+            let rate = rng.log_uniform(2.0, 30.0);
+            let mut d = json!({"kind": "pump_backwash",
                    "on_time": rng.uniform(30.0, 180.0), "off_time": rng.uniform(30.0, 120.0),
-                   "backflow_volume": rng.uniform(0.05, 0.5), "cycles": rng.int(0, 2)}),
-            json!(format!("{} cycles", rng.int(1, 2))),
-        ),
+                   "intake_depth": rng.uniform(5.0, 40.0), "cycles": rng.int(0, 2)});
+            if rng.chance(0.5) {
+                d["pumping_rate"] = json!(format!("{rate} L/s"));
+            } else {
+                // A curve whose rated point lies on the drawn rate.
+                let rated_head = rng.uniform(10.0, 60.0);
+                d["pump_curve"] = json!({"shutoff_head": format!("{} m", rated_head * rng.uniform(1.2, 1.6)),
+                                         "rated_rate": format!("{rate} L/s"),
+                                         "rated_head": format!("{rated_head} m")});
+                d["discharge_height"] = json!(rng.uniform(0.0, 5.0));
+            }
+            if rng.chance(0.5) {
+                d["backflow_volume"] = json!(rng.uniform(0.05, 0.5));
+            } else {
+                d["riser_radius"] = json!(rng.uniform(0.025, 0.06));
+            }
+            (d, json!(format!("{} cycles", rng.int(1, 2))))
+        }
         "jet_pulse" => {
             let nozzles = rng.int(1, 4);
             // Narrower than the spacing of the nozzles along the circumference.
             let spacing = 2.0 * std::f64::consts::PI * screen_radius / nozzles as f64;
-            (
-                json!({"kind": "jet_pulse", "nozzle_velocity": rng.uniform(20.0, 80.0),
-                       "rotation_period": rng.uniform(5.0, 30.0), "nozzles": nozzles,
-                       "jet_width": rng.uniform(0.005, 0.02).min(0.3 * spacing)}),
-                json!(format!("{} cycles", rng.int(1, 2))),
-            )
+            let mut d = json!({"kind": "jet_pulse", "nozzle_velocity": rng.uniform(20.0, 80.0),
+                   "nozzle_diameter": rng.uniform(0.003, 0.01),
+                   "rotation_period": rng.uniform(5.0, 30.0), "nozzles": nozzles,
+                   "jet_width": rng.uniform(0.005, 0.02).min(0.3 * spacing)});
+            if rng.chance(0.5) {
+                d["pumping_rate"] = json!(format!("{} L/s", rng.log_uniform(1.0, 10.0)));
+            }
+            (d, json!(format!("{} cycles", rng.int(1, 2))))
         }
         "schedule" => {
             let n = rng.int(2, 3);
