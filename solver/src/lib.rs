@@ -22,6 +22,7 @@ pub mod model;
 pub mod run;
 pub mod safety;
 pub mod skin;
+pub mod slow;
 pub mod stepper;
 pub mod system;
 pub mod tridiag;

@@ -50,7 +50,10 @@ mod newton;
 mod power;
 mod predictor;
 mod residual;
+mod trbdf2;
 mod well;
+
+pub use trbdf2::{ErrorNorm, Tolerances, GAMMA};
 
 use predictor::Predictor;
 
@@ -147,6 +150,14 @@ pub struct Stepper {
     faces_linear: bool,
     newton_tolerance: f64,
     newton_max_iterations: usize,
+    /// TR-BDF2 work arrays (see `stepper/trbdf2.rs`): heads at the start of the step, m.
+    h_start: Vec<f64>,
+    /// Cell slopes dh/dt at the start of the step and at the end of the first stage, m/s.
+    slope_start: Vec<f64>,
+    /// See `slope_start`.
+    slope_mid: Vec<f64>,
+    /// Time at the start of the last TR-BDF2 step, s (None: nothing to undo).
+    undo_time: Option<f64>,
     /// Current time, s.
     pub time_s: f64,
     /// Balance of the last step.
@@ -189,6 +200,10 @@ impl Stepper {
             faces_linear: disc_linear,
             newton_tolerance: model.numerics.newton_tolerance,
             newton_max_iterations: model.numerics.newton_max_iterations,
+            h_start: vec![0.0; n],
+            slope_start: vec![0.0; n],
+            slope_mid: vec![0.0; n],
+            undo_time: None,
             time_s: 0.0,
             balance: StepBalance::default(),
         }
@@ -240,8 +255,27 @@ impl Stepper {
     /// Advances by `dt` with the θ-scheme. On error the state is unchanged.
     pub fn step(&mut self, model: &Model, dt: f64, theta: f64) -> Result<(), SolverError> {
         let tdt = theta * dt;
-        let t_new = self.time_s + dt;
-        let t_theta = self.time_s + tdt;
+        self.stage(
+            model,
+            Stage {
+                tdt,
+                theta,
+                weight: dt,
+                t_new: self.time_s + dt,
+                t_theta: self.time_s + tdt,
+            },
+        )
+    }
+
+    /// One θ-stage from the heads in `h` (see [`Stage`]). On error the state is unchanged.
+    fn stage(&mut self, model: &Model, s: Stage) -> Result<(), SolverError> {
+        let Stage {
+            tdt,
+            theta,
+            weight: dt,
+            t_new,
+            t_theta,
+        } = s;
         let iterations = if self.linear {
             self.solve_linear(model, tdt, theta, t_new, t_theta)?;
             0
@@ -470,6 +504,19 @@ impl Stepper {
         self.factored.solve(&mut self.y);
         Ok(())
     }
+}
+
+/// One implicit stage: the θ-point head y = θ h^{new} + (1−θ) h solves the step of
+/// storage length `tdt` (S/tdt multiplies y − h) with the forcing at `t_theta`; the clock
+/// moves to `t_new`; volumes and energies are the stage's fluxes times `weight`
+/// (= tdt/θ, the stage's own quadrature weight, s).
+#[derive(Debug, Clone, Copy)]
+struct Stage {
+    tdt: f64,
+    theta: f64,
+    weight: f64,
+    t_new: f64,
+    t_theta: f64,
 }
 
 #[derive(Debug, Clone, Copy)]
