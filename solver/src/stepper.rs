@@ -158,6 +158,8 @@ pub struct Stepper {
     slope_mid: Vec<f64>,
     /// Time at the start of the last TR-BDF2 step, s (None: nothing to undo).
     undo_time: Option<f64>,
+    /// Factorization of the error estimate's filter.
+    filter: Factored,
     /// Current time, s.
     pub time_s: f64,
     /// Balance of the last step.
@@ -204,6 +206,7 @@ impl Stepper {
             slope_start: vec![0.0; n],
             slope_mid: vec![0.0; n],
             undo_time: None,
+            filter: Factored::with_size(n),
             time_s: 0.0,
             balance: StepBalance::default(),
         }
