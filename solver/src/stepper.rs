@@ -143,6 +143,9 @@ pub struct Stepper {
     inflow_response: Vec<f64>,
     /// Recent step changes, extrapolated for Newton's initial guess.
     predictor: Predictor,
+    /// TR-BDF2: the θ-point heads of the trapezoidal stages (`predictor` then holds the
+    /// ends of the steps).
+    predictor_mid: Predictor,
     /// S_j/(θΔt) of the factored matrix: the right-hand side is gain_j h_j (j ≥ 1).
     gain: Vec<f64>,
     linear: bool,
@@ -160,6 +163,9 @@ pub struct Stepper {
     undo_time: Option<f64>,
     /// Factorization of the error estimate's filter.
     filter: Factored,
+    /// Newton's history holds end-of-stage heads (TR-BDF2, whose stages leave no sawtooth)
+    /// rather than θ-point heads (θ-scheme).
+    predict_end: bool,
     /// Current time, s.
     pub time_s: f64,
     /// Balance of the last step.
@@ -188,6 +194,7 @@ impl Stepper {
             factored_for: None,
             gain: vec![0.0; n],
             predictor: Predictor::new(n),
+            predictor_mid: Predictor::new(n),
             y_prev: vec![0.0; n],
             face_dh: vec![0.0; n],
             face_q: vec![0.0; n],
@@ -207,6 +214,7 @@ impl Stepper {
             slope_mid: vec![0.0; n],
             undo_time: None,
             filter: Factored::with_size(n),
+            predict_end: false,
             time_s: 0.0,
             balance: StepBalance::default(),
         }
@@ -233,6 +241,7 @@ impl Stepper {
     /// jump of the forcing, across which the old trend predicts nothing.
     pub fn forget_history(&mut self) {
         self.predictor.forget();
+        self.predictor_mid.forget();
     }
 
     /// True when the step is solved directly (no Newton iteration).
@@ -247,9 +256,9 @@ impl Stepper {
         let t = self.time_s;
         // The transient so far predicts nothing about the steady state, nor it about what
         // follows.
-        self.predictor.forget();
+        self.forget_history();
         let r = self.step(model, STEADY_STEP_S, 1.0);
-        self.predictor.forget();
+        self.forget_history();
         self.time_s = t;
         self.factored_for = None;
         r
@@ -257,6 +266,10 @@ impl Stepper {
 
     /// Advances by `dt` with the θ-scheme. On error the state is unchanged.
     pub fn step(&mut self, model: &Model, dt: f64, theta: f64) -> Result<(), SolverError> {
+        if self.predict_end {
+            self.predict_end = false;
+            self.forget_history();
+        }
         let tdt = theta * dt;
         self.stage(
             model,
@@ -414,7 +427,18 @@ impl Stepper {
             newton_iterations: iterations,
         };
         if !self.linear {
-            self.predictor.push(&self.y, t_theta);
+            if self.predict_end {
+                // TR-BDF2: the BDF2 stage records its end (the L-stable end of the step), the
+                // trapezoidal stage its θ-point (its end carries the stiff modes'
+                // alternation, as Crank–Nicolson's does), each in its own history.
+                if theta == 1.0 {
+                    self.predictor.push(&self.scratch, t_new);
+                } else {
+                    self.predictor_mid.push(&self.y, t_theta);
+                }
+            } else {
+                self.predictor.push(&self.y, t_theta);
+            }
         }
         std::mem::swap(&mut self.h, &mut self.scratch);
         self.time_s = t_new;

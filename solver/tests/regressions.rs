@@ -197,7 +197,8 @@ fn surge_block_stroke_reversals_converge_within_eight_newton_iterations() {
 /// the well) needed two or three. Bound: one update in at least 9 steps of 10 (the others
 /// are the start and the turning points of the screen flow); when the bound was set, 93 of
 /// the 2002 steps of this case needed a second update, and every step did with the current
-/// heads as the first guess.
+/// heads as the first guess. Under TR-BDF2 the bound is one update per stage (two stages per
+/// step); with a separate history for each stage 103 of 2004 steps needed more.
 #[test]
 fn a_smooth_drive_needs_about_one_newton_update_per_step() {
     use boreflux_solver::diagnostics::{StepObserver, StepView};
@@ -206,7 +207,8 @@ fn a_smooth_drive_needs_about_one_newton_update_per_step() {
     impl StepObserver for Count {
         fn on_step(&mut self, s: &StepView<'_>) -> bool {
             self.0 += 1;
-            self.1 += usize::from(s.newton_iterations > 1);
+            // TR-BDF2 solves two stages per step: one update each.
+            self.1 += usize::from(s.newton_iterations > 2);
             true
         }
     }
@@ -230,8 +232,8 @@ fn a_smooth_drive_needs_about_one_newton_update_per_step() {
     let s = run(&m, &mut count, Reporting::default()).unwrap();
     assert_eq!(s.end_time_s, 20.0);
     println!(
-        "{} of {} steps needed more than one update",
-        count.1, count.0
+        "{} of {} steps needed more than one update per stage ({} updates in all)",
+        count.1, count.0, s.total_newton_iterations
     );
     assert!(
         10 * count.1 <= count.0,

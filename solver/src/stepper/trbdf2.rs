@@ -107,6 +107,10 @@ impl Stepper {
         let t0 = self.time_s;
         let n = self.h.len();
         self.undo_time = None;
+        if !self.predict_end {
+            self.predict_end = true;
+            self.forget_history();
+        }
         self.h_start.copy_from_slice(&self.h);
         cell_slopes(&self.disc, &self.h, &mut self.slope_start);
         // Same bits for both stages: the linear path keeps one factorization.
@@ -144,7 +148,7 @@ impl Stepper {
         if let Err(e) = second {
             self.h.copy_from_slice(&self.h_start);
             self.time_s = t0;
-            self.predictor.forget();
+            self.forget_history();
             return Err(e);
         }
         let b2 = self.balance;
@@ -267,7 +271,7 @@ impl Stepper {
         if let Some(t0) = self.undo_time.take() {
             self.h.copy_from_slice(&self.h_start);
             self.time_s = t0;
-            self.predictor.forget();
+            self.forget_history();
         }
     }
 }
