@@ -60,8 +60,9 @@ pub enum SolverError {
     },
     /// A result passed to the outputs was NaN or infinite.
     #[error(
-        "{quantity} became {value} at t = {time_s:.6e} s (step {step}): the inputs are outside \
-         what double precision can represent, or the solution diverged"
+        "{quantity} is {value} at t = {time_s:.6e} s (step {step}): the inputs are outside what \
+         double precision can represent (check lengths, rates and conductivities), or the \
+         solution diverged"
     )]
     NonFiniteResult {
         /// Name of the quantity, e.g. `face flux`.

@@ -235,6 +235,33 @@ pub fn run(
     model.validate()?;
     let mut slow = SlowState::new(model);
     let mut st = Stepper::new(model, slow.cake());
+    // Inputs whose products overflow (a length of 1e308 m) leave the grid with infinite or
+    // zero storage and conductances; say so before any step.
+    for (quantity, values) in [
+        ("storage of a grid cell", &st.disc.storage[1..]),
+        ("radius of a grid face", &st.disc.grid.r_face[..]),
+    ] {
+        if let Some(&v) = values.iter().find(|v| !(v.is_finite() && **v > 0.0)) {
+            return Err(SolverError::NonFiniteResult {
+                quantity,
+                value: v,
+                time_s: 0.0,
+                step: 0,
+            });
+        }
+    }
+    let used = st.disc.unknowns() - 1 + usize::from(st.disc.outer_open);
+    for f in &st.disc.faces[..used] {
+        let (r, q) = (f.r_lin(), f.r_nl());
+        if !(r.is_finite() && q.is_finite() && r + q > 0.0) {
+            return Err(SolverError::NonFiniteResult {
+                quantity: "resistance of a grid face",
+                value: if r.is_finite() { q } else { r },
+                time_s: 0.0,
+                step: 0,
+            });
+        }
+    }
     let rho_g = model.fluid.density_kg_m3 * GRAVITY_M_S2;
     let n_unknowns = st.disc.unknowns();
     let mut clock = Clock::new(model);
@@ -479,9 +506,6 @@ pub fn run(
             }
         ));
     }
-    if std::env::var("BF_DEBUG").is_ok() {
-        eprintln!("steps {} rejected {} retried {} newton {} min_step {:e} forced {forced_steps} restarts {}", summary.steps, summary.rejected_steps, summary.retried_solves, summary.total_newton_iterations, summary.min_step_s, chooser.restarts);
-    }
     if forced_steps > 0 {
         summary.warnings.push(format!(
             "{forced_steps} steps reached the smallest step length and were accepted above the \
@@ -590,7 +614,9 @@ impl StepChooser {
                 Err(e) => {
                     retries += 1;
                     summary.retried_solves += 1;
-                    if retries > MAX_RETRIES || dt <= self.smallest {
+                    // A singular matrix is not cured by a shorter step.
+                    let hopeless = matches!(e, SolverError::TridiagSingular { .. });
+                    if retries > MAX_RETRIES || dt <= self.smallest || hopeless {
                         let (k, n) = model.drive.stage_index_at(t);
                         return Err(SolverError::StepFailed {
                             time_s: t,

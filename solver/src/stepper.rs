@@ -292,11 +292,15 @@ impl Stepper {
             t_new,
             t_theta,
         } = s;
+        // The forcing at the end of the stage is its value just before t_new: a stage that
+        // ends on a jump (a schedule's next stage, a pump switched) belongs to what it ends.
+        let t_end = left_limit(t_new);
+        let t_theta = t_theta.min(t_end);
         let iterations = if self.linear {
-            self.solve_linear(model, tdt, theta, t_new, t_theta)?;
+            self.solve_linear(model, tdt, theta, t_end, t_theta)?;
             0
         } else {
-            self.solve_newton(model, tdt, theta, t_new, t_theta)?
+            self.solve_newton(model, tdt, theta, t_end, t_theta)?
         };
         // Extrapolate to the end of the step and keep the balance, in one pass.
         let n = self.h.len();
@@ -443,7 +447,7 @@ impl Stepper {
         std::mem::swap(&mut self.h, &mut self.scratch);
         self.time_s = t_new;
         if model.drive.control_at(t_theta) == Control::Flow && well_storage <= 0.0 {
-            self.h[0] = self.algebraic_well_head(model, t_new)?;
+            self.h[0] = self.algebraic_well_head(model, t_end)?;
         }
         Ok(())
     }
@@ -531,6 +535,12 @@ impl Stepper {
         self.factored.solve(&mut self.y);
         Ok(())
     }
+}
+
+/// The time just before `t` (a few ulps): where a drive defined on half-open intervals
+/// [start, end) still has the value it ends with.
+pub(crate) fn left_limit(t: f64) -> f64 {
+    t - 4.0 * f64::EPSILON * t.abs().max(1.0)
 }
 
 /// One implicit stage: the θ-point head y = θ h^{new} + (1−θ) h solves the step of

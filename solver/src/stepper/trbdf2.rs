@@ -35,11 +35,13 @@
 //! ```text
 //! est = 2 C Δt (fⁿ/γ − fⁿ⁺ᵞ/(γ(1−γ)) + fⁿ⁺¹/(1−γ))
 //! ```
-//! fⁿ and fⁿ⁺ᵞ are the cells' slopes from the face laws at v and u; fⁿ⁺¹ = (w − h̃)/(dΔt) is
-//! stage 2's own. The estimate is measured cell by cell against `absolute + relative ×
-//! max(|v|, |w|)` (max norm).
+//! fⁿ and fⁿ⁺ᵞ are the slopes from the face laws (and the device's flow for a well that
+//! stores water) at v and u; fⁿ⁺¹ = (w − h̃)/(dΔt) is stage 2's own. The estimate is
+//! filtered (see `filter_estimate`) and measured unknown by unknown (the well head too when
+//! it is a state) against `absolute + relative × max(|v|, |w|)` (max norm).
 
-use super::{Stage, StepBalance, Stepper};
+use super::{left_limit, Stage, StepBalance, Stepper};
+use crate::drive::Control;
 use crate::error::SolverError;
 use crate::model::Model;
 use crate::system::Discretization;
@@ -73,13 +75,26 @@ pub struct ErrorNorm {
     pub index: usize,
 }
 
-/// Slopes dh/dt of the cells from the face laws at heads `h` (the well head enters through
-/// the screen face); entry 0 is left at 0.
-fn cell_slopes(disc: &Discretization, h: &[f64], out: &mut [f64]) {
+/// Storage of the well node at time t when its head is a state of the system (the well
+/// row is a storage balance with storage), m²; None when the head is prescribed or
+/// algebraic.
+fn well_storage(model: &Model, disc: &Discretization, t: f64) -> Option<f64> {
+    match model.drive.control_at(t) {
+        Control::Flow => Some(model.drive.well_storage_m2(t, disc.storage[0])).filter(|&s| s > 0.0),
+        Control::Head => None,
+    }
+}
+
+/// Slopes dh/dt from the face laws at heads `h` at time t: the cells, and the well node
+/// when it stores water (S_w dH/dt = Q_device − Q_screen); otherwise entry 0 is 0.
+fn slopes(model: &Model, disc: &Discretization, t: f64, h: &[f64], out: &mut [f64]) {
     let n = h.len();
     let last = n - 1;
     let mut q_in = disc.faces[0].flow(h[0] - h[1]).0;
-    out[0] = 0.0;
+    out[0] = match well_storage(model, disc, t) {
+        Some(sw) => (model.drive.device_flow(t, h[0]).total() - q_in) / sw,
+        None => 0.0,
+    };
     for j in 1..n {
         let q_out = if j < last {
             disc.faces[j].flow(h[j] - h[j + 1]).0
@@ -112,7 +127,7 @@ impl Stepper {
             self.forget_history();
         }
         self.h_start.copy_from_slice(&self.h);
-        cell_slopes(&self.disc, &self.h, &mut self.slope_start);
+        slopes(model, &self.disc, t0, &self.h, &mut self.slope_start);
         // Same bits for both stages: the linear path keeps one factorization.
         let tdt = 0.5 * GAMMA * dt;
         self.stage(
@@ -126,7 +141,7 @@ impl Stepper {
             },
         )?;
         let b1 = self.balance;
-        cell_slopes(&self.disc, &self.h, &mut self.slope_mid);
+        slopes(model, &self.disc, t0 + 2.0 * tdt, &self.h, &mut self.slope_mid);
         let mut du2 = 0.0;
         for j in 1..n {
             let d = self.h[j] - self.h_start[j];
@@ -142,7 +157,7 @@ impl Stepper {
                 theta: 1.0,
                 weight: tdt,
                 t_new: t0 + dt,
-                t_theta: t0 + dt,
+                t_theta: left_limit(t0 + dt),
             },
         );
         if let Err(e) = second {
@@ -161,19 +176,30 @@ impl Stepper {
             index: 0,
         };
         let k = 2.0 * ERROR_CONSTANT * dt;
-        for j in 1..n {
-            let sdh = s[j] * (w[j] - v[j]);
-            storage += sdh;
-            vscale += sdh.abs();
-            energy += 0.5 * sdh * (w[j] + v[j]);
+        let t_end = left_limit(t0 + dt);
+        let well = well_storage(model, &self.disc, t_end);
+        let first = if well.is_some() { 0 } else { 1 };
+        self.delta[0] = 0.0;
+        for j in 0..n {
+            if j < first {
+                continue;
+            }
             let f1 = (w[j] - ht[j]) / tdt;
             self.delta[j] = k
                 * (self.slope_start[j] / GAMMA - self.slope_mid[j] / (GAMMA * (1.0 - GAMMA))
                     + f1 / (1.0 - GAMMA));
+            if j == 0 {
+                continue;
+            }
+            let sdh = s[j] * (w[j] - v[j]);
+            storage += sdh;
+            vscale += sdh.abs();
+            energy += 0.5 * sdh * (w[j] + v[j]);
         }
-        self.filter_estimate(tdt);
+        let device_slope = well.map(|_| model.drive.device_flow(t_end, w[0]).d_dh_m2_s);
+        self.filter_estimate(tdt, well.zip(device_slope));
         let (w, v) = (&self.h, &self.h_start);
-        for j in 1..n {
+        for j in first..n {
             let r = self.delta[j].abs()
                 / (tol.absolute_m + tol.relative * w[j].abs().max(v[j].abs()));
             // A NaN estimate must not pass as small.
@@ -236,7 +262,10 @@ impl Stepper {
     /// Hairer & Wanner, Solving ODEs II, §IV.8): smooth components pass unchanged, a stiff
     /// component's estimate, which grows like |λ|Δt where the scheme's own error does not,
     /// is divided by about 1 + dΔt|λ|. Left raw if the solve fails.
-    fn filter_estimate(&mut self, tdt: f64) {
+    ///
+    /// `well`: the well node's storage and dQ_device/dH when its head is a state (its row
+    /// then takes part); otherwise the well head is held.
+    fn filter_estimate(&mut self, tdt: f64, well: Option<(f64, f64)>) {
         let n = self.h.len();
         let last = n - 1;
         let h = &self.h;
@@ -248,19 +277,27 @@ impl Stepper {
                 0.0
             };
         }
-        self.diag[0] = 1.0;
         for j in 1..n {
             self.diag[j] = self.disc.storage[j] / tdt + self.upper[j - 1] + self.upper[j];
         }
-        self.upper[0] = 0.0;
-        self.scratch[0] = 0.0;
+        match well {
+            Some((sw, dq)) => {
+                self.diag[0] = sw / tdt + self.upper[0] - dq;
+                self.scratch[0] = self.delta[0] * sw / tdt;
+            }
+            None => {
+                self.diag[0] = 1.0;
+                self.upper[0] = 0.0;
+                self.scratch[0] = 0.0;
+            }
+        }
         for j in 1..n {
             self.scratch[j] = self.delta[j] * self.disc.storage[j] / tdt;
         }
         if self.filter.factor_symmetric(&self.diag, &self.upper).is_ok() {
             self.filter.solve(&mut self.scratch);
             if self.scratch.iter().all(|x| x.is_finite()) {
-                self.delta[1..].copy_from_slice(&self.scratch[1..]);
+                self.delta.copy_from_slice(&self.scratch);
             }
         }
     }
