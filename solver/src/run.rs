@@ -90,7 +90,7 @@ pub struct RunSummary {
     pub max_energy_residual: f64,
     /// Energy identity over the whole run: |in − dissipated − stored − numerical| / in.
     pub energy_closure: f64,
-    /// Most Newton iterations in one step.
+    /// Most Newton iterations in one solve (one stage of a TR-BDF2 step).
     pub max_newton_iterations: usize,
     /// Cake thickness at the start and at the end, m.
     pub cake_thickness_m: (f64, f64),
@@ -233,8 +233,22 @@ pub fn run(
     reporting: Reporting,
 ) -> Result<RunSummary, SolverError> {
     model.validate()?;
-    let mut slow = SlowState::new(model);
-    let mut st = Stepper::new(model, slow.cake());
+    let slow = SlowState::new(model);
+    let st = Stepper::new(model, slow.cake());
+    run_from_state(model, st, slow, observer, reporting)
+}
+
+/// Runs the model from a prepared state: `st` (heads, clock) and `slow` (the cake the faces
+/// of `st` were built from), e.g. a steady state under one cake followed by a sudden change
+/// of the cake (the verification of docs/time-stepping.md). The first step is a restart.
+pub fn run_from_state(
+    model: &Model,
+    mut st: Stepper,
+    mut slow: SlowState,
+    observer: &mut dyn StepObserver,
+    reporting: Reporting,
+) -> Result<RunSummary, SolverError> {
+    model.validate()?;
     // Inputs whose products overflow (a length of 1e308 m) leave the grid with infinite or
     // zero storage and conductances; say so before any step.
     for (quantity, values) in [
@@ -368,7 +382,7 @@ pub fn run(
         summary.numerical_dissipation_j += rho_g * b.numerical_dissipation;
         summary.max_mass_residual = summary.max_mass_residual.max(b.mass_residual);
         summary.max_energy_residual = summary.max_energy_residual.max(b.energy_residual);
-        summary.max_newton_iterations = summary.max_newton_iterations.max(b.newton_iterations);
+        summary.max_newton_iterations = summary.max_newton_iterations.max(b.max_solve_iterations);
         summary.total_newton_iterations += b.newton_iterations as u64;
         summary.min_step_s = summary.min_step_s.min(b.dt_s);
         summary.device_volume_m3 += b.device_volume_m3;
@@ -421,11 +435,7 @@ pub fn run(
         let report = landing || last || summary.steps % reporting.every == 0 || cycles.is_some();
         if report {
             let power_w = power_now(model, &mut st);
-            check_finite(
-                &[("power", power_w.iter().sum())],
-                st.time_s,
-                summary.steps,
-            )?;
+            check_finite(&[("power", power_w.iter().sum())], st.time_s, summary.steps)?;
             let view = StepView {
                 step: summary.steps,
                 time_s: st.time_s,
@@ -550,9 +560,7 @@ impl StepChooser {
             second_half: None,
             smallest: SMALLEST_STEP * model.duration_s.min(1.0),
             first_step: match model.numerics.time {
-                TimeSpec::StepsPerDecade { first_step_s, .. } if first_step_s > 0.0 => {
-                    first_step_s
-                }
+                TimeSpec::StepsPerDecade { first_step_s, .. } if first_step_s > 0.0 => first_step_s,
                 _ => default_first_step(model),
             },
             restarts: 0,
@@ -590,10 +598,12 @@ impl StepChooser {
             absolute_m,
         } = self.scheme
         else {
-            return self.advance_theta(model, st, target, nominal).map(|landing| Taken {
-                landing,
-                forced: false,
-            });
+            return self
+                .advance_theta(model, st, target, nominal)
+                .map(|landing| Taken {
+                    landing,
+                    forced: false,
+                });
         };
         let tol = Tolerances {
             relative,

@@ -58,6 +58,17 @@ impl SlowState {
         }
     }
 
+    /// A state with the cake in `cake` (start and current), e.g. just after a sudden change.
+    pub fn with_cake(model: &Model, cake: Option<CakeState>) -> SlowState {
+        let skin = total_skin(model, cake);
+        SlowState {
+            cake,
+            initial_cake_m: cake.map_or(0.0, |c| c.thickness_m),
+            skin,
+            initial_skin: skin,
+        }
+    }
+
     /// The cake state the face laws are built from.
     pub fn cake(&self) -> Option<CakeState> {
         self.cake

@@ -100,8 +100,10 @@ pub struct StepBalance {
     pub well_residual: f64,
     /// |energy residual| relative to the largest energy term.
     pub energy_residual: f64,
-    /// Newton iterations taken (0 for the direct linear solve).
+    /// Newton iterations taken (0 for the direct linear solve), over all stages.
     pub newton_iterations: usize,
+    /// Most Newton iterations of one stage's solve.
+    pub max_solve_iterations: usize,
 }
 
 /// Time-stepping state of one run.
@@ -429,6 +431,7 @@ impl Stepper {
                 0.0
             },
             newton_iterations: iterations,
+            max_solve_iterations: iterations,
         };
         if !self.linear {
             if self.predict_end {

@@ -399,8 +399,7 @@ fn cake_removed_under_pumping_does_not_ring() {
         s.rejected_steps
     );
     assert!(rel < 0.05, "{rel}");
-    let rel_q =
-        (s.peak_screen_flow_m3_s - f.peak_screen_flow_m3_s).abs() / f.peak_screen_flow_m3_s;
+    let rel_q = (s.peak_screen_flow_m3_s - f.peak_screen_flow_m3_s).abs() / f.peak_screen_flow_m3_s;
     assert!(rel_q < 0.05, "{rel_q}");
     // Crank–Nicolson at the same steps rings, and the detector says so.
     let mut cn = FluxSeries::default();
@@ -435,7 +434,9 @@ fn slug_stage_then_surge_block_stage_runs() {
     let mut m = block.clone();
     m.drive = Drive::Schedule(vec![
         Stage {
-            drive: Drive::Slug { initial_head_m: 1.0 },
+            drive: Drive::Slug {
+                initial_head_m: 1.0,
+            },
             duration_s: 60.0,
         },
         Stage {
@@ -460,15 +461,18 @@ fn slug_stage_then_surge_block_stage_runs() {
 /// 1e−9 m/s stopped at t ≈ 92.6 s with Newton not converging.
 #[test]
 fn deep_swab_in_a_tight_formation_runs() {
-    let mut m = model(Drive::Swab(Swab {
-        cup_radius_m: 0.077,
-        lift_rate_m_s: 1.0,
-        stroke_m: 4.0,
-        lowering_time_s: 16.0,
-        submergence_m: 3.0,
-        strokes: 10,
-        ramp_cycles: 0.0,
-    }), 600.0);
+    let mut m = model(
+        Drive::Swab(Swab {
+            cup_radius_m: 0.077,
+            lift_rate_m_s: 1.0,
+            stroke_m: 4.0,
+            lowering_time_s: 16.0,
+            submergence_m: 3.0,
+            strokes: 10,
+            ramp_cycles: 0.0,
+        }),
+        600.0,
+    );
     m.well.screen_radius_m = 0.08415;
     m.pack = Pack {
         outer_radius_m: 0.127,
@@ -481,7 +485,11 @@ fn deep_swab_in_a_tight_formation_runs() {
     m.formation.medium = Medium::darcy(1e-9, 2e-4);
     let s = run(&m, &mut NullObserver, Reporting::default()).unwrap();
     assert_eq!(s.end_time_s, 600.0);
-    assert!(s.warnings.iter().any(|w| w.contains("swab")), "{:?}", s.warnings);
+    assert!(
+        s.warnings.iter().any(|w| w.contains("swab")),
+        "{:?}",
+        s.warnings
+    );
 }
 
 /// Inputs beyond what double precision carries gave NaN or infinite series with a clean
@@ -568,5 +576,9 @@ fn a_jet_stage_keeps_its_step_to_itself() {
         count.1, s.cells, s.rejected_steps, alone.steps, alone.cells, alone.rejected_steps
     );
     let alone = alone.steps;
-    assert!(count.1 as f64 <= 1.1 * alone as f64 + 5.0, "{} vs {alone}", count.1);
+    assert!(
+        count.1 as f64 <= 1.1 * alone as f64 + 5.0,
+        "{} vs {alone}",
+        count.1
+    );
 }

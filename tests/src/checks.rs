@@ -51,7 +51,7 @@ pub fn all() -> Vec<Group> {
         },
         Group {
             id: "order",
-            title: "Second-order convergence of Crank–Nicolson",
+            title: "Second-order convergence of the time stepping",
             run: order,
         },
         Group {

@@ -176,8 +176,14 @@ pub fn numerics(raw: &RawNumerics, period_s: Option<f64>) -> Result<NumericsOut,
     let scheme = match raw.scheme.unwrap_or(SchemeName::TrBdf2) {
         SchemeName::Theta => {
             for (given, key) in [
-                (raw.relative_tolerance.is_some(), "numerics.relative_tolerance"),
-                (raw.absolute_tolerance.is_some(), "numerics.absolute_tolerance"),
+                (
+                    raw.relative_tolerance.is_some(),
+                    "numerics.relative_tolerance",
+                ),
+                (
+                    raw.absolute_tolerance.is_some(),
+                    "numerics.absolute_tolerance",
+                ),
             ] {
                 if given {
                     return Err(CaseError::new(

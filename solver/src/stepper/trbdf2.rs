@@ -141,7 +141,13 @@ impl Stepper {
             },
         )?;
         let b1 = self.balance;
-        slopes(model, &self.disc, t0 + 2.0 * tdt, &self.h, &mut self.slope_mid);
+        slopes(
+            model,
+            &self.disc,
+            t0 + 2.0 * tdt,
+            &self.h,
+            &mut self.slope_mid,
+        );
         let mut du2 = 0.0;
         for j in 1..n {
             let d = self.h[j] - self.h_start[j];
@@ -200,8 +206,8 @@ impl Stepper {
         self.filter_estimate(tdt, well.zip(device_slope));
         let (w, v) = (&self.h, &self.h_start);
         for j in first..n {
-            let r = self.delta[j].abs()
-                / (tol.absolute_m + tol.relative * w[j].abs().max(v[j].abs()));
+            let r =
+                self.delta[j].abs() / (tol.absolute_m + tol.relative * w[j].abs().max(v[j].abs()));
             // A NaN estimate must not pass as small.
             if !(r <= worst.value) {
                 worst = ErrorNorm { value: r, index: j };
@@ -242,9 +248,13 @@ impl Stepper {
             storage_energy_change: energy,
             numerical_dissipation: numerical,
             device_energy: A * b1.device_energy + b2.device_energy,
-            mass_residual: (if vscale > 0.0 { mass.abs() / vscale } else { 0.0 })
-                .max(b1.mass_residual)
-                .max(b2.mass_residual),
+            mass_residual: (if vscale > 0.0 {
+                mass.abs() / vscale
+            } else {
+                0.0
+            })
+            .max(b1.mass_residual)
+            .max(b2.mass_residual),
             well_residual: b1.well_residual.max(b2.well_residual),
             energy_residual: if escale > 0.0 {
                 e_res.abs() / escale
@@ -252,6 +262,7 @@ impl Stepper {
                 0.0
             },
             newton_iterations: b1.newton_iterations + b2.newton_iterations,
+            max_solve_iterations: b1.newton_iterations.max(b2.newton_iterations),
         };
         self.undo_time = Some(t0);
         Ok(worst)
@@ -294,7 +305,11 @@ impl Stepper {
         for j in 1..n {
             self.scratch[j] = self.delta[j] * self.disc.storage[j] / tdt;
         }
-        if self.filter.factor_symmetric(&self.diag, &self.upper).is_ok() {
+        if self
+            .filter
+            .factor_symmetric(&self.diag, &self.upper)
+            .is_ok()
+        {
             self.filter.solve(&mut self.scratch);
             if self.scratch.iter().all(|x| x.is_finite()) {
                 self.delta.copy_from_slice(&self.scratch);
@@ -360,8 +375,9 @@ mod tests {
             let ht = A * u - B * v;
             let w = ht / (1.0 - 0.5 * GAMMA * z);
             let (f0, fg, f1) = (z * v, z * u, (w - ht) / (0.5 * GAMMA));
-            let est =
-                2.0 * ERROR_CONSTANT * (f0 / GAMMA - fg / (GAMMA * (1.0 - GAMMA)) + f1 / (1.0 - GAMMA));
+            let est = 2.0
+                * ERROR_CONSTANT
+                * (f0 / GAMMA - fg / (GAMMA * (1.0 - GAMMA)) + f1 / (1.0 - GAMMA));
             let err = w - z.exp();
             assert!(
                 ((est - err) / err).abs() < 0.4 * z.abs(),
