@@ -644,6 +644,22 @@ impl StepChooser {
                     st.forget_history();
                     want = 0.25 * dt;
                 }
+                // A NaN estimate (non-finite slopes) is a failed solve, not a small error.
+                Ok(err) if err.value.is_nan() => {
+                    st.undo_step();
+                    retries += 1;
+                    summary.retried_solves += 1;
+                    if retries > MAX_RETRIES || dt <= self.smallest {
+                        return Err(SolverError::NonFiniteResult {
+                            quantity: "local error estimate",
+                            value: err.value,
+                            time_s: t + dt,
+                            step: summary.steps + 1,
+                        });
+                    }
+                    st.forget_history();
+                    want = 0.25 * dt;
+                }
                 Ok(err) if err.value > 1.0 && dt > self.smallest => {
                     st.undo_step();
                     rejections += 1;

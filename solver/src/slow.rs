@@ -115,7 +115,7 @@ impl SlowState {
         .abs();
         let gone = before.thickness_m > 0.0 && after.thickness_m <= 0.0;
         let coverage_jump = (before.coverage - after.coverage).abs() > JUMP_FRACTION;
-        if gone || coverage_jump || !(dr <= JUMP_FRACTION * wall_r_lin) {
+        if gone || coverage_jump || dr.is_nan() || dr > JUMP_FRACTION * wall_r_lin {
             Change::Jump
         } else {
             Change::Smooth

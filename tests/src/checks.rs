@@ -110,6 +110,11 @@ pub fn all() -> Vec<Group> {
             run: crate::drives::collapse,
         },
         Group {
+            id: "conductance_jump",
+            title: "Sudden removal of a cake under a constant well head (Laplace solution)",
+            run: crate::stepping::conductance_jump,
+        },
+        Group {
             id: "annulus",
             title: "Annulus width: planar limit and radial departure",
             run: crate::development::annulus,

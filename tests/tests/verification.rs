@@ -126,3 +126,8 @@ fn schedule_pumping_stage() {
 fn collapse_pressure() {
     assert_group("collapse");
 }
+
+#[test]
+fn conductance_jump_against_laplace_solution() {
+    assert_group("conductance_jump");
+}

@@ -209,7 +209,7 @@ impl Stepper {
             let r =
                 self.delta[j].abs() / (tol.absolute_m + tol.relative * w[j].abs().max(v[j].abs()));
             // A NaN estimate must not pass as small.
-            if !(r <= worst.value) {
+            if r.is_nan() || r > worst.value {
                 worst = ErrorNorm { value: r, index: j };
             }
         }
