@@ -165,6 +165,9 @@ pub struct Stepper {
     undo_time: Option<f64>,
     /// Factorization of the error estimate's filter.
     filter: Factored,
+    /// `slope_start` holds the slopes at the current heads (the last TR-BDF2 step's end),
+    /// computed with the well head a state (true) or not; None: to be computed.
+    end_slopes: Option<bool>,
     /// Newton's history holds end-of-stage heads (TR-BDF2, whose stages leave no sawtooth)
     /// rather than θ-point heads (θ-scheme).
     predict_end: bool,
@@ -216,6 +219,7 @@ impl Stepper {
             slope_mid: vec![0.0; n],
             undo_time: None,
             filter: Factored::with_size(n),
+            end_slopes: None,
             predict_end: false,
             time_s: 0.0,
             balance: StepBalance::default(),
@@ -234,6 +238,7 @@ impl Stepper {
 
     /// Rebuilds the face laws after the cake changed.
     pub fn set_cake(&mut self, model: &Model, cake: Option<CakeState>) {
+        self.end_slopes = None;
         self.disc.rebuild_faces(model, cake);
         self.faces_linear = self.disc.is_linear();
         self.factored_for = None;
@@ -242,6 +247,7 @@ impl Stepper {
     /// Forgets the recent steps Newton extrapolates its initial guess from: call it after a
     /// jump of the forcing, across which the old trend predicts nothing.
     pub fn forget_history(&mut self) {
+        self.end_slopes = None;
         self.predictor.forget();
         self.predictor_mid.forget();
     }
@@ -268,6 +274,7 @@ impl Stepper {
 
     /// Advances by `dt` with the θ-scheme. On error the state is unchanged.
     pub fn step(&mut self, model: &Model, dt: f64, theta: f64) -> Result<(), SolverError> {
+        self.end_slopes = None;
         if self.predict_end {
             self.predict_end = false;
             self.forget_history();

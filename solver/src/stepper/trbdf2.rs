@@ -127,7 +127,13 @@ impl Stepper {
             self.forget_history();
         }
         self.h_start.copy_from_slice(&self.h);
-        slopes(model, &self.disc, t0, &self.h, &mut self.slope_start);
+        // The slopes at the start are the last step's end slopes (its BDF2 stage gives them
+        // exactly) unless the faces or the forcing changed since, or the well's role did.
+        let well_now = well_storage(model, &self.disc, t0).is_some();
+        if self.end_slopes != Some(well_now) {
+            slopes(model, &self.disc, t0, &self.h, &mut self.slope_start);
+        }
+        self.end_slopes = None;
         // Same bits for both stages: the linear path keeps one factorization.
         let tdt = 0.5 * GAMMA * dt;
         self.stage(
@@ -182,18 +188,23 @@ impl Stepper {
             index: 0,
         };
         let k = 2.0 * ERROR_CONSTANT * dt;
+        let (c0, c1, c2) = (k / GAMMA, k / (GAMMA * (1.0 - GAMMA)), k / (1.0 - GAMMA));
+        let inv_tdt = 1.0 / tdt;
         let t_end = left_limit(t0 + dt);
         let well = well_storage(model, &self.disc, t_end);
         let first = if well.is_some() { 0 } else { 1 };
         self.delta[0] = 0.0;
+        self.slope_start[0] = 0.0;
         for j in 0..n {
             if j < first {
                 continue;
             }
-            let f1 = (w[j] - ht[j]) / tdt;
-            self.delta[j] = k
-                * (self.slope_start[j] / GAMMA - self.slope_mid[j] / (GAMMA * (1.0 - GAMMA))
-                    + f1 / (1.0 - GAMMA));
+            // est = k (fⁿ/γ − fⁿ⁺ᵞ/(γ(1−γ)) + fⁿ⁺¹/(1−γ)), fⁿ⁺¹ = (w − h̃)/tdt; the
+            // divisions folded into constants (this loop runs on every step). fⁿ⁺¹ is kept
+            // as the next step's starting slope.
+            let f1 = (w[j] - ht[j]) * inv_tdt;
+            self.delta[j] = c0 * self.slope_start[j] - c1 * self.slope_mid[j] + c2 * f1;
+            self.slope_start[j] = f1;
             if j == 0 {
                 continue;
             }
@@ -206,11 +217,16 @@ impl Stepper {
         self.filter_estimate(tdt, well.zip(device_slope));
         let (w, v) = (&self.h, &self.h_start);
         for j in first..n {
-            let r =
-                self.delta[j].abs() / (tol.absolute_m + tol.relative * w[j].abs().max(v[j].abs()));
-            // A NaN estimate must not pass as small.
-            if r.is_nan() || r > worst.value {
-                worst = ErrorNorm { value: r, index: j };
+            let (e, den) = (
+                self.delta[j].abs(),
+                tol.absolute_m + tol.relative * w[j].abs().max(v[j].abs()),
+            );
+            // A NaN estimate must not pass as small; divide only for a new worst.
+            if e.is_nan() || e > worst.value * den {
+                worst = ErrorNorm {
+                    value: e / den,
+                    index: j,
+                };
             }
         }
         let numerical = b2.numerical_dissipation - 0.5 * A * B * du2;
@@ -265,6 +281,7 @@ impl Stepper {
             max_solve_iterations: b1.newton_iterations.max(b2.newton_iterations),
         };
         self.undo_time = Some(t0);
+        self.end_slopes = Some(well.is_some());
         Ok(worst)
     }
 
@@ -279,17 +296,22 @@ impl Stepper {
     fn filter_estimate(&mut self, tdt: f64, well: Option<(f64, f64)>) {
         let n = self.h.len();
         let last = n - 1;
-        let h = &self.h;
+        // Face derivatives at w: Newton left them for its converged iterate (the BDF2
+        // stage's unknown is w itself); linear faces have their constant conductance.
         for j in 0..n {
-            let dh = if j < last { h[j] - h[j + 1] } else { h[j] };
             self.upper[j] = if j < last || self.disc.outer_open {
-                self.disc.faces[j].flow(dh).1
+                if self.linear {
+                    self.disc.faces[j].conductance()
+                } else {
+                    self.face_g[j]
+                }
             } else {
                 0.0
             };
         }
+        let inv_tdt = 1.0 / tdt;
         for j in 1..n {
-            self.diag[j] = self.disc.storage[j] / tdt + self.upper[j - 1] + self.upper[j];
+            self.diag[j] = self.disc.storage[j] * inv_tdt + self.upper[j - 1] + self.upper[j];
         }
         match well {
             Some((sw, dq)) => {
@@ -303,7 +325,7 @@ impl Stepper {
             }
         }
         for j in 1..n {
-            self.scratch[j] = self.delta[j] * self.disc.storage[j] / tdt;
+            self.scratch[j] = self.delta[j] * self.disc.storage[j] * inv_tdt;
         }
         if self
             .filter
@@ -320,6 +342,7 @@ impl Stepper {
     /// Puts back the state before the last [`Stepper::step_trbdf2`] (a step the error
     /// control rejected). Does nothing if there is no such step.
     pub fn undo_step(&mut self) {
+        self.end_slopes = None;
         if let Some(t0) = self.undo_time.take() {
             self.h.copy_from_slice(&self.h_start);
             self.time_s = t0;
