@@ -1,13 +1,15 @@
 //! Throughput of the time step: cell-steps per second for a linear (Darcy) Crank–Nicolson
 //! step on 300 cells, the same step with Forchheimer and screen entrance losses (Newton),
-//! and whole runs of both with diagnostics (startup steps, balances, dissipation per zone).
+//! the TR-BDF2 step (two stages and the error estimate) of both, and whole runs of both with
+//! diagnostics under the default scheme (TR-BDF2, adaptive) and under the θ-scheme.
 //!
 //! Run with `cargo bench -p boreflux-solver --bench step`. Throughput is reported by
 //! criterion in elements (cell-steps) per second.
 
 use boreflux_solver::diagnostics::NullObserver;
+use boreflux_solver::model::{Scheme, DEFAULT_ABSOLUTE_TOLERANCE_M, DEFAULT_RELATIVE_TOLERANCE};
 use boreflux_solver::run::{run, Reporting};
-use boreflux_solver::stepper::Stepper;
+use boreflux_solver::stepper::{Stepper, Tolerances};
 use criterion::{black_box, criterion_group, criterion_main, Criterion, Throughput};
 
 #[path = "models.rs"]
@@ -33,6 +35,22 @@ fn bench_steps(c: &mut Criterion) {
             b.iter(|| st.step(black_box(&m), 0.01, 0.5).unwrap())
         });
     }
+    let tol = Tolerances {
+        relative: DEFAULT_RELATIVE_TOLERANCE,
+        absolute_m: DEFAULT_ABSOLUTE_TOLERANCE_M,
+    };
+    for (name, nonlinear) in [("darcy_trbdf2", false), ("forchheimer_trbdf2", true)] {
+        let m = model(300, nonlinear);
+        let mut st = Stepper::new(&m, None);
+        let cells = st.disc.unknowns() as u64 - 1;
+        group.throughput(Throughput::Elements(cells));
+        for _ in 0..50 {
+            st.step_trbdf2(&m, 0.01, tol).unwrap();
+        }
+        group.bench_function(name, |b| {
+            b.iter(|| st.step_trbdf2(black_box(&m), 0.01, tol).unwrap())
+        });
+    }
     group.finish();
 
     let mut group = c.benchmark_group("run_10_cycles_300_cells");
@@ -41,12 +59,15 @@ fn bench_steps(c: &mut Criterion) {
         ("darcy_with_diagnostics", false),
         ("forchheimer_with_diagnostics", true),
     ] {
-        let m = model(300, nonlinear);
-        let cells = Stepper::new(&m, None).disc.unknowns() as u64 - 1;
-        group.throughput(Throughput::Elements(cells * 2002));
-        group.bench_function(name, |b| {
-            b.iter(|| run(black_box(&m), &mut NullObserver, Reporting::default()).unwrap())
-        });
+        for (suffix, scheme) in [("", Scheme::default()), ("_theta", Scheme::Theta)] {
+            let mut m = model(300, nonlinear);
+            m.numerics.scheme = scheme;
+            let cells = Stepper::new(&m, None).disc.unknowns() as u64 - 1;
+            group.throughput(Throughput::Elements(cells * 2002));
+            group.bench_function(format!("{name}{suffix}"), |b| {
+                b.iter(|| run(black_box(&m), &mut NullObserver, Reporting::default()).unwrap())
+            });
+        }
     }
     group.finish();
 }

@@ -39,6 +39,41 @@ pub enum SolverError {
         /// Index of the unknown (0 = well, 1.. = cells).
         index: usize,
     },
+    /// A time step failed even after it was retried with smaller steps.
+    #[error(
+        "time step {step} from t = {time_s:.6e} s{stage} failed after {retries} retries with \
+         smaller steps (last tried {dt_s:.3e} s): {cause}"
+    )]
+    StepFailed {
+        /// Start time of the failing step, s.
+        time_s: f64,
+        /// Number of the step (accepted steps before it + 1).
+        step: u64,
+        /// Where in a schedule, e.g. " (stage 2 of 3)"; empty for a single drive.
+        stage: String,
+        /// Retries made.
+        retries: usize,
+        /// Last step length tried, s.
+        dt_s: f64,
+        /// The error of the last try.
+        cause: Box<SolverError>,
+    },
+    /// A result passed to the outputs was NaN or infinite.
+    #[error(
+        "{quantity} is {value} at t = {time_s:.6e} s (step {step}): the inputs are outside what \
+         double precision can represent (check lengths, rates and conductivities), or the \
+         solution diverged"
+    )]
+    NonFiniteResult {
+        /// Name of the quantity, e.g. `face flux`.
+        quantity: &'static str,
+        /// Its value (NaN or ±inf).
+        value: f64,
+        /// Time at the end of the step, s.
+        time_s: f64,
+        /// Step number.
+        step: u64,
+    },
 }
 
 impl SolverError {

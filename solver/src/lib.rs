@@ -24,6 +24,7 @@ pub mod model;
 pub mod run;
 pub mod safety;
 pub mod skin;
+pub mod slow;
 pub mod stepper;
 pub mod steptest;
 pub mod system;

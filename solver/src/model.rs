@@ -198,6 +198,38 @@ pub struct Numerics {
     pub newton_max_iterations: usize,
     /// Times the stepper must land on exactly (outputs, sampling), s.
     pub sync_times_s: Vec<f64>,
+    /// Time integration scheme.
+    pub scheme: Scheme,
+}
+
+/// Time integration scheme (docs/time-stepping.md).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum Scheme {
+    /// L-stable TR-BDF2 with steps chosen from its local error estimate, bounded above by
+    /// the nominal step of `time` (the default).
+    TrBdf2 {
+        /// Relative tolerance on heads, –.
+        relative: f64,
+        /// Absolute tolerance on heads, m.
+        absolute_m: f64,
+    },
+    /// The θ-scheme with the nominal steps of `time` and backward-Euler start-up after jumps
+    /// (`theta`, `startup_steps`).
+    Theta,
+}
+
+/// Default relative tolerance of the adaptive scheme (docs/time-stepping.md §Defaults).
+pub const DEFAULT_RELATIVE_TOLERANCE: f64 = 1e-3;
+/// Default absolute tolerance of the adaptive scheme, m (docs/time-stepping.md §Defaults).
+pub const DEFAULT_ABSOLUTE_TOLERANCE_M: f64 = 1e-3;
+
+impl Default for Scheme {
+    fn default() -> Self {
+        Scheme::TrBdf2 {
+            relative: DEFAULT_RELATIVE_TOLERANCE,
+            absolute_m: DEFAULT_ABSOLUTE_TOLERANCE_M,
+        }
+    }
 }
 
 impl Default for Numerics {
@@ -210,6 +242,7 @@ impl Default for Numerics {
             newton_tolerance: 5e-11,
             newton_max_iterations: 30,
             sync_times_s: Vec::new(),
+            scheme: Scheme::default(),
         }
     }
 }
@@ -388,6 +421,19 @@ impl Model {
                     n.theta
                 ),
             ));
+        }
+        if let Scheme::TrBdf2 {
+            relative,
+            absolute_m,
+        } = n.scheme
+        {
+            if !(relative.is_finite() && relative > 0.0 && relative < 1.0) {
+                return Err(SolverError::invalid(
+                    "numerics.relative_tolerance",
+                    format!("must be in (0, 1), got {relative}"),
+                ));
+            }
+            positive("numerics.absolute_tolerance", absolute_m)?;
         }
         match n.grid {
             GridSpec::Total(c) if c < 10 => {

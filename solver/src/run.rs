@@ -1,21 +1,48 @@
-//! The time loop: chooses steps, restarts backward-Euler steps after jumps, lands on sync
-//! times and cycle ends, streams diagnostics to an observer and returns a summary.
+//! The time loop: chooses steps, lands on sync times, events and cycle ends, advances the
+//! slow state, watches every step, streams diagnostics to an observer and returns a summary
+//! (docs/time-stepping.md).
 //!
-//! Step choice (PHYSICS.md §1.3, §10):
+//! Nominal step (docs/physics.md §1.3, §10), the upper bound of every step:
 //! - periodic drives: `steps_per_cycle` equal steps per period (default 200);
 //! - other drives: geometric steps, Δt = max(Δt₀, t (10^{1/n} − 1)), n = 40 per decade;
-//! - after t = 0 and after every jump of the forcing, the next `startup_steps` steps are
-//!   each replaced by two backward-Euler half steps (Rannacher 1984), which damps the
-//!   stiff modes that Crank–Nicolson would leave ringing and keeps second order.
+//! - the stage active at t may cap it further (jet pulses).
+//!
+//! Default scheme, TR-BDF2 (`stepper/trbdf2.rs`): the step follows the local error estimate
+//! with the usual controller Δt_new = Δt · clamp(0.9 err^{−1/3}, 0.2, 5) (Hairer & Wanner,
+//! Solving ODEs II, §IV.8), capped by the nominal step; a step with err > 1 is undone and
+//! retried shorter; a step whose solve fails (Newton, non-finite heads) is retried a quarter
+//! as long, up to [`MAX_RETRIES`] times, before the run stops with an error saying where.
+//! After t = 0 and every jump (forcing, abrupt change of the slow state) the next step is
+//! [`RESTART_FRACTION`] of the nominal one.
+//!
+//! The θ-scheme (`numerics.scheme = theta`): nominal steps; after t = 0 and after every jump
+//! the next `startup_steps` steps are each replaced by two backward-Euler half steps
+//! (Rannacher 1984).
 
-use crate::cake;
+mod watch;
+
 use crate::diagnostics::{face_state, power_now, CycleAccumulator, StepObserver, StepView};
 use crate::error::SolverError;
 use crate::grid::ZONE_COUNT;
-use crate::model::{Model, TimeSpec};
-use crate::stepper::Stepper;
-use crate::system::CakeState;
+use crate::model::{Model, Scheme, TimeSpec};
+use crate::slow::{Change, SlowState};
+use crate::stepper::{Stepper, Tolerances};
 use crate::water::GRAVITY_M_S2;
+use watch::{check_finite, Alternation};
+
+pub use crate::slow::total_skin;
+
+/// Failed solves of one step retried with a quarter of the step before the run gives up
+/// (4⁻¹² ≈ 6e−8 of the first try).
+pub const MAX_RETRIES: usize = 12;
+/// Steps in a row the error control may reject before the run gives up.
+pub const MAX_REJECTIONS: usize = 60;
+/// First step after t = 0 or a jump, as a fraction of the nominal step (assumption: the
+/// error control grows it fivefold per step, so about three steps reach the nominal one).
+pub const RESTART_FRACTION: f64 = 1e-2;
+/// Steps shorter than this fraction of the duration (and of 1 s) are accepted whatever
+/// their error estimate, counted and reported (round-off of the clock).
+const SMALLEST_STEP: f64 = 1e-12;
 
 /// Default steps per period for periodic drives.
 pub const DEFAULT_STEPS_PER_CYCLE: usize = 200;
@@ -63,7 +90,7 @@ pub struct RunSummary {
     pub max_energy_residual: f64,
     /// Energy identity over the whole run: |in − dissipated − stored − numerical| / in.
     pub energy_closure: f64,
-    /// Most Newton iterations in one step.
+    /// Most Newton iterations in one solve (one stage of a TR-BDF2 step).
     pub max_newton_iterations: usize,
     /// Cake thickness at the start and at the end, m.
     pub cake_thickness_m: (f64, f64),
@@ -90,6 +117,14 @@ pub struct RunSummary {
     pub parted_time_s: f64,
     /// Whether the observer stopped the run early.
     pub stopped_early: bool,
+    /// Steps the error control rejected and retried shorter.
+    pub rejected_steps: u64,
+    /// Solves that failed (Newton, non-finite heads) and were retried with a shorter step.
+    pub retried_solves: u64,
+    /// Newton iterations over the run.
+    pub total_newton_iterations: u64,
+    /// Shortest accepted step, s.
+    pub min_step_s: f64,
     /// Warnings that did not stop the run.
     pub warnings: Vec<String>,
 }
@@ -127,27 +162,12 @@ fn nominal_dt(model: &Model, t: f64, since_jump: f64) -> f64 {
             first.max(since_jump * (10f64.powf(1.0 / DEFAULT_STEPS_PER_DECADE) - 1.0))
         }
     };
-    model.drive.max_step_s().map_or(dt, |m| dt.min(m))
+    model.drive.max_step_at(t).map_or(dt, |m| dt.min(m))
 }
 
 /// First step of the geometric sequence: 1e−8 of the duration, at least 1e−5 s.
 pub fn default_first_step(model: &Model) -> f64 {
     (model.duration_s * 1e-8).max(1e-5)
-}
-
-/// Total skin referred to the formation with the cake in state `cake` (PHYSICS.md §2.4).
-pub fn total_skin(model: &Model, cake: Option<CakeState>) -> f64 {
-    let kf = model.formation.medium.conductivity_m_s;
-    let rs = model.well.screen_radius_m;
-    let rb = model.borehole_radius_m();
-    let mut s = crate::skin::hawkins_skin(kf, model.pack.medium.conductivity_m_s, rs, rb);
-    if let Some(z) = &model.invaded {
-        s += crate::skin::hawkins_skin(kf, z.medium.conductivity_m_s, rb, rb + z.thickness_m);
-    }
-    if let (Some(c), Some(st)) = (&model.cake, cake) {
-        s += cake::skin(model, c, st);
-    }
-    s
 }
 
 /// Sorted sync times plus the drive's own events.
@@ -217,19 +237,54 @@ pub fn run(
     reporting: Reporting,
 ) -> Result<RunSummary, SolverError> {
     model.validate()?;
-    let mut cake_state = model.cake.map(|c| CakeState {
-        thickness_m: c.thickness_m,
-        coverage: c.coverage,
-    });
-    let mut st = Stepper::new(model, cake_state);
+    let slow = SlowState::new(model);
+    let st = Stepper::new(model, slow.cake());
+    run_from_state(model, st, slow, observer, reporting)
+}
+
+/// Runs the model from a prepared state: `st` (heads, clock) and `slow` (the cake the faces
+/// of `st` were built from), e.g. a steady state under one cake followed by a sudden change
+/// of the cake (the verification of docs/time-stepping.md). The first step is a restart.
+pub fn run_from_state(
+    model: &Model,
+    mut st: Stepper,
+    mut slow: SlowState,
+    observer: &mut dyn StepObserver,
+    reporting: Reporting,
+) -> Result<RunSummary, SolverError> {
+    model.validate()?;
+    // Inputs whose products overflow (a length of 1e308 m) leave the grid with infinite or
+    // zero storage and conductances; say so before any step.
+    for (quantity, values) in [
+        ("storage of a grid cell", &st.disc.storage[1..]),
+        ("radius of a grid face", &st.disc.grid.r_face[..]),
+    ] {
+        if let Some(&v) = values.iter().find(|v| !(v.is_finite() && **v > 0.0)) {
+            return Err(SolverError::NonFiniteResult {
+                quantity,
+                value: v,
+                time_s: 0.0,
+                step: 0,
+            });
+        }
+    }
+    let used = st.disc.unknowns() - 1 + usize::from(st.disc.outer_open);
+    for f in &st.disc.faces[..used] {
+        let (r, q) = (f.r_lin(), f.r_nl());
+        if !(r.is_finite() && q.is_finite() && r + q > 0.0) {
+            return Err(SolverError::NonFiniteResult {
+                quantity: "resistance of a grid face",
+                value: if r.is_finite() { q } else { r },
+                time_s: 0.0,
+                step: 0,
+            });
+        }
+    }
     let rho_g = model.fluid.density_kg_m3 * GRAVITY_M_S2;
     let n_unknowns = st.disc.unknowns();
     let mut clock = Clock::new(model);
-    let theta = model.numerics.theta;
-    let startup_halves = 2 * model.numerics.startup_steps;
-    let mut startup_left = startup_halves;
-    let cake0 = cake_state.map_or(0.0, |c| c.thickness_m);
-    let skin0 = total_skin(model, cake_state);
+    let cake0 = slow.cake_thickness_m().0;
+    let skin0 = slow.skin().0;
     let mut summary = RunSummary {
         steps: 0,
         cycles: 0,
@@ -263,48 +318,67 @@ pub fn run(
         column_partings: 0,
         parted_time_s: 0.0,
         stopped_early: false,
+        rejected_steps: 0,
+        retried_solves: 0,
+        total_newton_iterations: 0,
+        min_step_s: f64::INFINITY,
         warnings: Vec::new(),
     };
+    let mut chooser = StepChooser::new(model);
     let mut last_jump = 0.0;
     let mut cycles = model
         .drive
         .period_s()
         .map(|p| CycleAccumulator::new(p, cake0));
     let mut sum_q2_dt = 0.0;
-    let mut second_half: Option<f64> = None;
-    let mut skin_now = skin0;
+    let mut flux_watch = Alternation::default();
+    let mut head_watch = Alternation::default();
+    let mut oscillation: Option<(f64, &'static str)> = None;
+    let mut forced_steps = 0u64;
     let end = model.duration_s;
     let eps = 1e-12 * end.max(1.0);
     while st.time_s < end - eps {
-        let t = st.time_s;
-        let (target, jump) = clock.next_target(model, t);
-        let remaining = target - t;
-        let nominal = nominal_dt(model, t, t - last_jump);
-        let (dt, th) = if let Some(second) = second_half.take() {
-            startup_left -= 1;
-            (second.min(remaining), 1.0)
-        } else if startup_left > 0 {
-            // A full step done as two backward-Euler halves; the second lands where the
-            // full step would have.
-            let full = full_step(remaining, nominal);
-            second_half = Some(0.5 * full);
-            startup_left -= 1;
-            (0.5 * full, 1.0)
-        } else {
-            (full_step(remaining, nominal), theta)
-        };
-        let landing = (t + dt - target).abs() <= 1e-9 * dt;
-        st.step(model, if landing { target - t } else { dt }, th)?;
+        let (target, jump) = clock.next_target(model, st.time_s);
+        let taken = chooser.advance(model, &mut st, target, last_jump, &mut summary)?;
+        forced_steps += u64::from(taken.forced);
+        let landing = taken.landing;
         if landing {
             st.time_s = target;
             if jump {
                 last_jump = target;
-                startup_left = startup_halves;
+                chooser.restart();
                 st.forget_history();
+                flux_watch.reset();
+                head_watch.reset();
             }
         }
         summary.steps += 1;
         let b = st.balance;
+        let face = face_state(model, &st);
+        let h_well = st.heads()[0];
+        check_finite(
+            &[
+                ("well head", h_well),
+                ("screen flow", face.screen_flow_m3_s),
+                ("face flux", face.flux_m_s),
+                ("face gradient", face.gradient),
+                ("shear proxy", face.shear_pa),
+                ("screen outer head", face.screen_outer_head_m),
+                ("energy into the screen", b.energy_in),
+                ("storage energy change", b.storage_energy_change),
+                ("numerical dissipation", b.numerical_dissipation),
+                ("dissipated energy", b.dissipated.iter().sum()),
+                ("screen volume", b.volume_in_m3),
+                ("device volume", b.device_volume_m3),
+                ("bypass volume", b.bypass_volume_m3),
+                ("well storage change", b.well_storage_change_m3),
+                ("volume residual", b.mass_residual),
+                ("energy residual", b.energy_residual),
+                ("well volume residual", b.well_residual),
+            ],
+            st.time_s,
+            summary.steps,
+        )?;
         for (k, w) in summary.work_j.iter_mut().enumerate() {
             *w += rho_g * b.dissipated[k];
         }
@@ -313,21 +387,37 @@ pub fn run(
         summary.numerical_dissipation_j += rho_g * b.numerical_dissipation;
         summary.max_mass_residual = summary.max_mass_residual.max(b.mass_residual);
         summary.max_energy_residual = summary.max_energy_residual.max(b.energy_residual);
-        summary.max_newton_iterations = summary.max_newton_iterations.max(b.newton_iterations);
+        summary.max_newton_iterations = summary.max_newton_iterations.max(b.max_solve_iterations);
+        summary.total_newton_iterations += b.newton_iterations as u64;
+        summary.min_step_s = summary.min_step_s.min(b.dt_s);
         summary.device_volume_m3 += b.device_volume_m3;
         summary.gross_device_volume_m3 += b.device_volume_m3.abs();
         summary.max_well_residual = summary.max_well_residual.max(b.well_residual);
         summary.bypass_volume_m3 += b.bypass_volume_m3;
         summary.screen_volume_m3 += b.volume_in_m3;
         summary.well_storage_change_m3 += b.well_storage_change_m3;
-        let face = face_state(model, &st);
-        if let (Some(c), Some(state)) = (&model.cake, cake_state.as_mut()) {
-            if cake::erode(c, state, face.shear_pa, face.flux_m_s, b.dt_s) {
-                st.set_cake(model, cake_state);
-                skin_now = total_skin(model, cake_state);
+        // Oscillation watch on the end-of-step series, before the slow state moves.
+        let ringing = if flux_watch.push(face.flux_m_s) {
+            Some("face flux")
+        } else if head_watch.push(h_well) {
+            Some("well head")
+        } else {
+            None
+        };
+        if let Some(what) = ringing {
+            oscillation.get_or_insert((st.time_s, what));
+            chooser.refine();
+        }
+        let wall_r = st.disc.faces[st.disc.grid.borehole_face].r_lin();
+        match slow.advance(model, &face, b.dt_s, wall_r) {
+            Change::None => {}
+            Change::Smooth => st.set_cake(model, slow.cake()),
+            Change::Jump => {
+                st.set_cake(model, slow.cake());
+                st.forget_history();
+                chooser.restart();
             }
         }
-        let h_well = st.heads()[0];
         summary.peak_collapse_head_m = summary
             .peak_collapse_head_m
             .max(face.screen_outer_head_m - h_well);
@@ -348,21 +438,23 @@ pub fn run(
         let last = st.time_s >= end - eps;
         let report = landing || last || summary.steps % reporting.every == 0 || cycles.is_some();
         if report {
+            let power_w = power_now(model, &mut st);
+            check_finite(&[("power", power_w.iter().sum())], st.time_s, summary.steps)?;
             let view = StepView {
                 step: summary.steps,
                 time_s: st.time_s,
                 dt_s: b.dt_s,
-                well_head_m: st.heads()[0],
+                well_head_m: h_well,
                 screen_outer_head_m: face.screen_outer_head_m,
                 screen_flow_m3_s: face.screen_flow_m3_s,
                 face_flux_m_s: face.flux_m_s,
                 face_pore_velocity_m_s: face.flux_m_s / model.pack.medium.porosity,
                 face_gradient: face.gradient,
                 shear_proxy_pa: face.shear_pa,
-                cake_thickness_m: cake_state.map_or(0.0, |c| c.thickness_m),
-                cake_coverage: cake_state.map_or(0.0, |c| c.coverage),
-                skin: skin_now,
-                power_w: power_now(model, &mut st),
+                cake_thickness_m: slow.cake_thickness_m().1,
+                cake_coverage: slow.cake_coverage(),
+                skin: slow.skin().1,
+                power_w,
                 work_j: summary.work_j,
                 screen_volume_m3: b.volume_in_m3,
                 device_volume_m3: b.device_volume_m3,
@@ -406,7 +498,8 @@ pub fn run(
     } else {
         0.0
     };
-    summary.cake_thickness_m.1 = cake_state.map_or(0.0, |c| c.thickness_m);
+    summary.cake_thickness_m.1 = slow.cake_thickness_m().1;
+    summary.skin.1 = slow.skin().1;
     (summary.column_partings, summary.parted_time_s) = st.column_parting();
     if summary.column_partings > 0 {
         summary.warnings.push(format!(
@@ -418,8 +511,235 @@ pub fn run(
             summary.column_partings, summary.parted_time_s
         ));
     }
-    summary.skin.1 = skin_now;
+    if let Some((t, what)) = oscillation {
+        summary.warnings.push(format!(
+            "the {what} alternated in sign from step to step over {} steps in a row (first at \
+             t = {t:.4e} s): an undamped numerical mode, not physics; peaks near that time are \
+             unreliable{}",
+            watch::ALTERNATING_STEPS,
+            if matches!(model.numerics.scheme, Scheme::Theta) {
+                " (use the default scheme, or more startup_steps or steps)"
+            } else {
+                " (steps were refined there)"
+            }
+        ));
+    }
+    if forced_steps > 0 {
+        summary.warnings.push(format!(
+            "{forced_steps} steps reached the smallest step length and were accepted above the \
+             error tolerance"
+        ));
+    }
     Ok(summary)
+}
+
+/// What [`StepChooser::advance`] did.
+struct Taken {
+    /// The step ended on the target.
+    landing: bool,
+    /// The step was accepted at the smallest step length above its tolerance.
+    forced: bool,
+}
+
+/// Chooses, takes and (for the adaptive scheme) retries steps.
+struct StepChooser {
+    scheme: Scheme,
+    /// Adaptive: the step the controller proposes next, s (None: a restart).
+    proposal: Option<f64>,
+    theta: f64,
+    startup_halves: usize,
+    startup_left: usize,
+    second_half: Option<f64>,
+    smallest: f64,
+    /// Restart steps are never shorter than the first step of the geometric sequence, s.
+    first_step: f64,
+    restarts: u64,
+}
+
+impl StepChooser {
+    fn new(model: &Model) -> StepChooser {
+        let startup_halves = 2 * model.numerics.startup_steps;
+        StepChooser {
+            scheme: model.numerics.scheme,
+            proposal: None,
+            theta: model.numerics.theta,
+            startup_halves,
+            startup_left: startup_halves,
+            second_half: None,
+            smallest: SMALLEST_STEP * model.duration_s.min(1.0),
+            first_step: match model.numerics.time {
+                TimeSpec::StepsPerDecade { first_step_s, .. } if first_step_s > 0.0 => first_step_s,
+                _ => default_first_step(model),
+            },
+            restarts: 0,
+        }
+    }
+
+    /// After a jump: the next step is short again (adaptive) or backward-Euler halves (θ).
+    fn restart(&mut self) {
+        self.restarts += 1;
+        self.proposal = None;
+        self.startup_left = self.startup_halves;
+    }
+
+    /// After an oscillation was seen: halve the next step (adaptive only).
+    fn refine(&mut self) {
+        if let Some(p) = self.proposal.as_mut() {
+            *p *= 0.5;
+        }
+    }
+
+    /// Takes one accepted step toward `target`.
+    fn advance(
+        &mut self,
+        model: &Model,
+        st: &mut Stepper,
+        target: f64,
+        last_jump: f64,
+        summary: &mut RunSummary,
+    ) -> Result<Taken, SolverError> {
+        let t = st.time_s;
+        let remaining = target - t;
+        let nominal = nominal_dt(model, t, t - last_jump);
+        let Scheme::TrBdf2 {
+            relative,
+            absolute_m,
+        } = self.scheme
+        else {
+            return self
+                .advance_theta(model, st, target, nominal)
+                .map(|landing| Taken {
+                    landing,
+                    forced: false,
+                });
+        };
+        let tol = Tolerances {
+            relative,
+            absolute_m,
+        };
+        let mut want = self
+            .proposal
+            .unwrap_or((RESTART_FRACTION * nominal).max(self.first_step))
+            .min(nominal);
+        let (mut retries, mut rejections) = (0usize, 0usize);
+        loop {
+            let mut dt = full_step(remaining, want);
+            let landing = (t + dt - target).abs() <= 1e-9 * dt;
+            if landing {
+                dt = target - t;
+            }
+            match st.step_adaptive(model, dt, tol) {
+                Err(e) => {
+                    retries += 1;
+                    summary.retried_solves += 1;
+                    // A singular matrix is not cured by a shorter step.
+                    let hopeless = matches!(e, SolverError::TridiagSingular { .. });
+                    if retries > MAX_RETRIES || dt <= self.smallest || hopeless {
+                        let (k, n) = model.drive.stage_index_at(t);
+                        return Err(SolverError::StepFailed {
+                            time_s: t,
+                            step: summary.steps + 1,
+                            stage: if n > 1 {
+                                format!(" (stage {} of {n})", k + 1)
+                            } else {
+                                String::new()
+                            },
+                            retries: retries - 1,
+                            dt_s: dt,
+                            cause: Box::new(e),
+                        });
+                    }
+                    st.forget_history();
+                    want = 0.25 * dt;
+                }
+                // A NaN estimate (non-finite slopes) is a failed solve, not a small error.
+                Ok(err) if err.value.is_nan() => {
+                    st.undo_step();
+                    retries += 1;
+                    summary.retried_solves += 1;
+                    if retries > MAX_RETRIES || dt <= self.smallest {
+                        return Err(SolverError::NonFiniteResult {
+                            quantity: "local error estimate",
+                            value: err.value,
+                            time_s: t + dt,
+                            step: summary.steps + 1,
+                        });
+                    }
+                    st.forget_history();
+                    want = 0.25 * dt;
+                }
+                Ok(err) if err.value > 1.0 && dt > self.smallest => {
+                    st.undo_step();
+                    rejections += 1;
+                    summary.rejected_steps += 1;
+                    if rejections > MAX_REJECTIONS {
+                        return Err(SolverError::StepFailed {
+                            time_s: t,
+                            step: summary.steps + 1,
+                            stage: String::new(),
+                            retries: rejections,
+                            dt_s: dt,
+                            cause: Box::new(SolverError::invalid(
+                                "numerics.relative_tolerance",
+                                format!(
+                                    "the local error estimate stayed {:.3e} times the \
+                                     tolerance at unknown {}",
+                                    err.value, err.index
+                                ),
+                            )),
+                        });
+                    }
+                    want = dt * (0.9 * err.value.powf(-1.0 / 3.0)).clamp(0.1, 0.9);
+                }
+                Ok(err) => {
+                    let grow = if err.value > 0.0 {
+                        (0.9 * err.value.powf(-1.0 / 3.0)).clamp(0.2, 5.0)
+                    } else {
+                        5.0
+                    };
+                    // A step cut short to land keeps the proposal it was cut from.
+                    let next = dt * grow;
+                    self.proposal = Some(if landing && grow >= 1.0 {
+                        next.max(want)
+                    } else {
+                        next
+                    });
+                    return Ok(Taken {
+                        landing,
+                        forced: err.value > 1.0,
+                    });
+                }
+            }
+        }
+    }
+
+    /// One step of the θ-scheme with Rannacher start-up; true when it landed on `target`.
+    fn advance_theta(
+        &mut self,
+        model: &Model,
+        st: &mut Stepper,
+        target: f64,
+        nominal: f64,
+    ) -> Result<bool, SolverError> {
+        let t = st.time_s;
+        let remaining = target - t;
+        let (dt, th) = if let Some(second) = self.second_half.take() {
+            self.startup_left -= 1;
+            (second.min(remaining), 1.0)
+        } else if self.startup_left > 0 {
+            // A full step done as two backward-Euler halves; the second lands where the
+            // full step would have.
+            let full = full_step(remaining, nominal);
+            self.second_half = Some(0.5 * full);
+            self.startup_left -= 1;
+            (0.5 * full, 1.0)
+        } else {
+            (full_step(remaining, nominal), self.theta)
+        };
+        let landing = (t + dt - target).abs() <= 1e-9 * dt;
+        st.step(model, if landing { target - t } else { dt }, th)?;
+        Ok(landing)
+    }
 }
 
 /// A full step toward a target `remaining` away: land exactly when close, split the

@@ -51,7 +51,14 @@ mod newton;
 mod power;
 mod predictor;
 mod residual;
+mod trbdf2;
 mod well;
+
+pub use trbdf2::{ErrorNorm, Tolerances, GAMMA};
+
+/// Error norm reported for a backward-Euler step at a device's limit: 0.9³, for which the
+/// step controller's factor 0.9 ν^(−1/3) is 1 (the step length is kept).
+pub const KEEP_STEP_NORM: f64 = 0.729;
 
 use predictor::Predictor;
 
@@ -98,8 +105,10 @@ pub struct StepBalance {
     pub well_residual: f64,
     /// |energy residual| relative to the largest energy term.
     pub energy_residual: f64,
-    /// Newton iterations taken (0 for the direct linear solve).
+    /// Newton iterations taken (0 for the direct linear solve), over all stages.
     pub newton_iterations: usize,
+    /// Most Newton iterations of one stage's solve.
+    pub max_solve_iterations: usize,
 }
 
 /// Time-stepping state of one run.
@@ -141,6 +150,9 @@ pub struct Stepper {
     inflow_response: Vec<f64>,
     /// Recent step changes, extrapolated for Newton's initial guess.
     predictor: Predictor,
+    /// TR-BDF2: the θ-point heads of the trapezoidal stages (`predictor` then holds the
+    /// ends of the steps).
+    predictor_mid: Predictor,
     /// S_j/(θΔt) of the factored matrix: the right-hand side is gain_j h_j (j ≥ 1).
     gain: Vec<f64>,
     linear: bool,
@@ -148,6 +160,22 @@ pub struct Stepper {
     faces_linear: bool,
     newton_tolerance: f64,
     newton_max_iterations: usize,
+    /// TR-BDF2 work arrays (see `stepper/trbdf2.rs`): heads at the start of the step, m.
+    h_start: Vec<f64>,
+    /// Cell slopes dh/dt at the start of the step and at the end of the first stage, m/s.
+    slope_start: Vec<f64>,
+    /// See `slope_start`.
+    slope_mid: Vec<f64>,
+    /// Time at the start of the last TR-BDF2 step, s (None: nothing to undo).
+    undo_time: Option<f64>,
+    /// Factorization of the error estimate's filter.
+    filter: Factored,
+    /// `slope_start` holds the slopes at the current heads (the last TR-BDF2 step's end),
+    /// computed with the well head a state (true) or not; None: to be computed.
+    end_slopes: Option<bool>,
+    /// Newton's history holds end-of-stage heads (TR-BDF2, whose stages leave no sawtooth)
+    /// rather than θ-point heads (θ-scheme).
+    predict_end: bool,
     /// Current time, s.
     pub time_s: f64,
     /// Balance of the last step.
@@ -186,6 +214,7 @@ impl Stepper {
             factored_for: None,
             gain: vec![0.0; n],
             predictor: Predictor::new(n),
+            predictor_mid: Predictor::new(n),
             y_prev: vec![0.0; n],
             face_dh: vec![0.0; n],
             face_q: vec![0.0; n],
@@ -200,6 +229,13 @@ impl Stepper {
             faces_linear: disc_linear,
             newton_tolerance: model.numerics.newton_tolerance,
             newton_max_iterations: model.numerics.newton_max_iterations,
+            h_start: vec![0.0; n],
+            slope_start: vec![0.0; n],
+            slope_mid: vec![0.0; n],
+            undo_time: None,
+            filter: Factored::with_size(n),
+            end_slopes: None,
+            predict_end: false,
             time_s: 0.0,
             balance: StepBalance::default(),
             vapour: VapourState::default(),
@@ -232,6 +268,7 @@ impl Stepper {
 
     /// Rebuilds the face laws after the cake changed.
     pub fn set_cake(&mut self, model: &Model, cake: Option<CakeState>) {
+        self.end_slopes = None;
         self.disc.rebuild_faces(model, cake);
         self.faces_linear = self.disc.is_linear();
         self.factored_for = None;
@@ -240,7 +277,9 @@ impl Stepper {
     /// Forgets the recent steps Newton extrapolates its initial guess from: call it after a
     /// jump of the forcing, across which the old trend predicts nothing.
     pub fn forget_history(&mut self) {
+        self.end_slopes = None;
         self.predictor.forget();
+        self.predictor_mid.forget();
     }
 
     /// True when the step is solved directly (no Newton iteration).
@@ -255,9 +294,9 @@ impl Stepper {
         let t = self.time_s;
         // The transient so far predicts nothing about the steady state, nor it about what
         // follows.
-        self.predictor.forget();
+        self.forget_history();
         let r = self.step(model, STEADY_STEP_S, 1.0);
-        self.predictor.forget();
+        self.forget_history();
         self.time_s = t;
         self.factored_for = None;
         r
@@ -322,6 +361,62 @@ impl Stepper {
         r
     }
 
+    /// Whether the next step starts at a device's limit: a parted column pinned at the vapour
+    /// bound, a pump that has broken suction, the steps just after the column closed, or a
+    /// change of the well between sealed and free surface at `t`.
+    fn at_device_limit(&self, model: &Model, t: f64) -> bool {
+        let sealed = model.drive.well_storage_m2(t, self.disc.storage[0]) <= 0.0;
+        self.vapour.gap_m3 > 0.0
+            || self.damped_steps > 0
+            || sealed != self.was_sealed
+            || model.drive.at_limit(self.time_s, self.h[0])
+    }
+
+    /// One step of the adaptive scheme: TR-BDF2 with its error estimate, except where a
+    /// device's limit holds the well head (a kink in the device's law, with a vapour gap or
+    /// a broken suction carried from step to step): such a step, and a TR-BDF2 step that
+    /// ends at a limit (redone), is one backward-Euler step, first order, as under the
+    /// θ-scheme. Its error norm is [`KEEP_STEP_NORM`], which keeps the step length. On error
+    /// the state is unchanged.
+    pub fn step_adaptive(
+        &mut self,
+        model: &Model,
+        dt: f64,
+        tol: Tolerances,
+    ) -> Result<ErrorNorm, SolverError> {
+        let kept = ErrorNorm {
+            value: KEEP_STEP_NORM,
+            index: 0,
+        };
+        if self.at_device_limit(model, self.time_s + dt) {
+            self.step(model, dt, 1.0)?;
+            return Ok(kept);
+        }
+        let saved = (
+            self.vapour,
+            self.partings,
+            self.parted_time_s,
+            self.damped_steps,
+        );
+        let restore = |st: &mut Stepper| {
+            (st.vapour, st.partings, st.parted_time_s, st.damped_steps) = saved;
+        };
+        let err = match self.step_trbdf2(model, dt, tol) {
+            Ok(e) => e,
+            Err(e) => {
+                restore(self);
+                return Err(e);
+            }
+        };
+        if self.vapour.gap_m3 > 0.0 || model.drive.at_limit(self.time_s, self.h[0]) {
+            self.undo_step();
+            restore(self);
+            self.step(model, dt, 1.0)?;
+            return Ok(kept);
+        }
+        Ok(err)
+    }
+
     /// Adds the step's vapour volume to the gap and counts partings (the flow at the
     /// θ-point heads, as in the step's volume balance).
     fn update_vapour(&mut self, model: &Model, dt: f64, t_theta: f64) {
@@ -346,14 +441,42 @@ impl Stepper {
     }
 
     fn step_inner(&mut self, model: &Model, dt: f64, theta: f64) -> Result<(), SolverError> {
+        self.end_slopes = None;
+        if self.predict_end {
+            self.predict_end = false;
+            self.forget_history();
+        }
         let tdt = theta * dt;
-        let t_new = self.time_s + dt;
-        let t_theta = self.time_s + tdt;
+        self.stage(
+            model,
+            Stage {
+                tdt,
+                theta,
+                weight: dt,
+                t_new: self.time_s + dt,
+                t_theta: self.time_s + tdt,
+            },
+        )
+    }
+
+    /// One θ-stage from the heads in `h` (see [`Stage`]). On error the state is unchanged.
+    fn stage(&mut self, model: &Model, s: Stage) -> Result<(), SolverError> {
+        let Stage {
+            tdt,
+            theta,
+            weight: dt,
+            t_new,
+            t_theta,
+        } = s;
+        // The forcing at the end of the stage is its value just before t_new: a stage that
+        // ends on a jump (a schedule's next stage, a pump switched) belongs to what it ends.
+        let t_end = left_limit(t_new);
+        let t_theta = t_theta.min(t_end);
         let iterations = if self.linear {
-            self.solve_linear(model, tdt, theta, t_new, t_theta)?;
+            self.solve_linear(model, tdt, theta, t_end, t_theta)?;
             0
         } else {
-            self.solve_newton(model, tdt, theta, t_new, t_theta)?
+            self.solve_newton(model, tdt, theta, t_end, t_theta)?
         };
         // Extrapolate to the end of the step and keep the balance, in one pass.
         let n = self.h.len();
@@ -486,9 +609,21 @@ impl Stepper {
                 0.0
             },
             newton_iterations: iterations,
+            max_solve_iterations: iterations,
         };
         if !self.linear {
-            self.predictor.push(&self.y, t_theta);
+            if self.predict_end {
+                // TR-BDF2: the BDF2 stage records its end (the L-stable end of the step), the
+                // trapezoidal stage its θ-point (its end carries the stiff modes'
+                // alternation, as Crank–Nicolson's does), each in its own history.
+                if theta == 1.0 {
+                    self.predictor.push(&self.scratch, t_new);
+                } else {
+                    self.predictor_mid.push(&self.y, t_theta);
+                }
+            } else {
+                self.predictor.push(&self.y, t_theta);
+            }
         }
         std::mem::swap(&mut self.h, &mut self.scratch);
         self.time_s = t_new;
@@ -496,7 +631,7 @@ impl Stepper {
             self.update_vapour(model, dt, t_theta);
         }
         if model.drive.control_at(t_theta) == Control::Flow && well_storage <= 0.0 {
-            self.h[0] = self.algebraic_well_head(model, t_new)?;
+            self.h[0] = self.algebraic_well_head(model, t_end)?;
         }
         Ok(())
     }
@@ -584,6 +719,25 @@ impl Stepper {
         self.factored.solve(&mut self.y);
         Ok(())
     }
+}
+
+/// The time just before `t` (a few ulps): where a drive defined on half-open intervals
+/// [start, end) still has the value it ends with.
+pub(crate) fn left_limit(t: f64) -> f64 {
+    t - 4.0 * f64::EPSILON * t.abs().max(1.0)
+}
+
+/// One implicit stage: the θ-point head y = θ h^{new} + (1−θ) h solves the step of
+/// storage length `tdt` (S/tdt multiplies y − h) with the forcing at `t_theta`; the clock
+/// moves to `t_new`; volumes and energies are the stage's fluxes times `weight`
+/// (= tdt/θ, the stage's own quadrature weight, s).
+#[derive(Debug, Clone, Copy)]
+struct Stage {
+    tdt: f64,
+    theta: f64,
+    weight: f64,
+    t_new: f64,
+    t_theta: f64,
 }
 
 #[derive(Debug, Clone, Copy)]

@@ -1478,6 +1478,109 @@ def devices():
 # main
 # ---------------------------------------------------------------------------------------
 
+# ---------------------------------------------------------------------------------------
+# 13. sudden change of an interface conductance under a constant well head
+# ---------------------------------------------------------------------------------------
+
+CJ = {"rs": 0.1, "rb": 0.15, "R": 10.0, "K": 1e-4, "Ss": 1e-4, "b": 10.0,
+      "cake_thickness": 5e-3, "cake_K": 1e-7, "H0": 1.0}
+
+
+def conductance_jump_fbar(p):
+    """Laplace transform of the outward well flow Q(t) after the cake is removed at t = 0.
+
+    Homogeneous annulus rs <= r <= R (K, Ss, thickness b), head H0 held at rs, 0 at R, a
+    cake of resistance R1 = delta/(2 pi rb b Kc) at rb in steady state before t = 0 (the
+    piecewise-logarithmic Thiem profile h0, with the same slope a on both sides and a drop
+    Q0 R1 across the cake), removed at t = 0. h0 is harmonic in each region, so
+    u = h0/s + A I0(q r) + B K0(q r) per region, q = sqrt(s Ss/K); the four constants make
+    u vanish-corrected at rs and R, continuous in value and flux at rb (derived here).
+    """
+    c = {k: mp.mpf(v) for k, v in CJ.items()}
+    r1 = c["cake_thickness"] / (2 * mp.pi * c["rb"] * c["b"] * c["cake_K"])
+    a = c["H0"] / (mp.log(c["R"] / c["rs"]) + 2 * mp.pi * c["K"] * c["b"] * r1)
+    q0 = 2 * mp.pi * c["K"] * c["b"] * a
+    jump = q0 * r1
+    q = mp.sqrt(p * c["Ss"] / c["K"])
+    rs, rb, big_r = c["rs"], c["rb"], c["R"]
+    memo = {}
+
+    def bessel(kind, order, r):
+        key = (kind, order, r)
+        if key not in memo:
+            fn = mp.besseli if kind == "i" else mp.besselk
+            memo[key] = fn(order, q * r)
+        return memo[key]
+
+    i0, k0 = (lambda r: bessel("i", 0, r)), (lambda r: bessel("k", 0, r))
+    i1, k1 = (lambda r: bessel("i", 1, r)), (lambda r: bessel("k", 1, r))
+    m = mp.matrix([
+        [i0(rs), k0(rs), 0, 0],
+        [0, 0, i0(big_r), k0(big_r)],
+        [i0(rb), k0(rb), -i0(rb), -k0(rb)],
+        [i1(rb), -k1(rb), -i1(rb), k1(rb)],
+    ])
+    rhs = mp.matrix([0, 0, -jump / p, 0])
+    # Equilibrate (I0 and K0 differ by hundreds of orders of magnitude at large q r).
+    col = [max(abs(m[i, j]) for i in range(4)) for j in range(4)]
+    for i in range(4):
+        for j in range(4):
+            m[i, j] /= col[j]
+    for i in range(4):
+        row = max(abs(m[i, j]) for j in range(4))
+        for j in range(4):
+            m[i, j] /= row
+        rhs[i] /= row
+    x = mp.lu_solve(m, rhs)
+    a1, b1 = x[0] / col[0], x[1] / col[1]
+    # Q = -2 pi r b K dh/dr at rs, with h0'(rs) = -a/rs.
+    return 2 * mp.pi * c["b"] * c["K"] * (a / p - rs * q * (a1 * i1(rs) - b1 * k1(rs)))
+
+
+def conductance_jump():
+    """Well flow after a sudden removal of a cake under a constant well head."""
+    times = [1e-3, 1e-2, 0.1, 1.0, 3.0, 10.0, 30.0, 100.0]
+    points, diffs = [], []
+    with mp.workdps(MP_DPS):
+        c = {k: mp.mpf(v) for k, v in CJ.items()}
+        r1 = c["cake_thickness"] / (2 * mp.pi * c["rb"] * c["b"] * c["cake_K"])
+        q_before = 2 * mp.pi * c["K"] * c["b"] * c["H0"] / (
+            mp.log(c["R"] / c["rs"]) + 2 * mp.pi * c["K"] * c["b"] * r1)
+        q_after = 2 * mp.pi * c["K"] * c["b"] * c["H0"] / mp.log(c["R"] / c["rs"])
+    for t in times:
+        val, d = inverted_pair(conductance_jump_fbar, t)
+        diffs.append(d)
+        points.append({"t": t, "Q": val})
+    # Limits: Q(0+) is the flow before the change (the change is away from the well),
+    # Q(inf) the Thiem flow without the cake.
+    late = invert(conductance_jump_fbar, 1e4, "talbot")
+    diffs.append(rel_diff(late, q_after))
+    return {
+        "source": (
+            "Radial flow in a finite annulus with a constant head at the well and a fixed "
+            "head at R, after an interface resistance at rb drops to zero: Laplace-domain "
+            "solution with I0/K0 (Carslaw, H.S., Jaeger, J.C., 1959, Conduction of Heat in "
+            "Solids, 2nd ed., Oxford, ch. 13, composite-region method; from memory - "
+            "verify), derived here for this geometry; docs/time-stepping.md."
+        ),
+        "computed_with": {
+            "versions": versions(),
+            "calls": [
+                f"mpmath.invertlaplace(F, t, method='talbot') with mp.mp.dps = {MP_DPS}; "
+                "F from mpmath.besseli/besselk and mpmath.lu_solve of the 4x4 interface "
+                "system (conductance_jump_fbar)",
+                "cross-check: same F with method='stehfest'; Q(1e4 s) against the Thiem "
+                "flow without the cake",
+            ],
+        },
+        "conventions": "Q positive outward (into the formation), m3/s; t after the change, s",
+        "params": {**CJ, "Q_before": f(q_before), "Q_after": f(q_after)},
+        "points": points,
+        "cross_check": "Talbot vs Stehfest; late time vs Thiem",
+        "cross_check_max_rel_diff": f(max(diffs)),
+    }
+
+
 GENERATORS = [
     ("thiem_composite.json", thiem_composite),
     ("theis.json", theis),
@@ -1492,6 +1595,7 @@ GENERATORS = [
     ("energy_dissipation.json", energy_dissipation),
     ("step_drawdown.json", step_drawdown),
     ("devices.json", devices),
+    ("conductance_jump.json", conductance_jump),
 ]
 
 

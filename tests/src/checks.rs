@@ -51,7 +51,7 @@ pub fn all() -> Vec<Group> {
         },
         Group {
             id: "order",
-            title: "Second-order convergence of Crank–Nicolson",
+            title: "Second-order convergence of the time stepping",
             run: order,
         },
         Group {
@@ -123,6 +123,11 @@ pub fn all() -> Vec<Group> {
             id: "vapour",
             title: "Vapour bound and column parting under a sealed surge block",
             run: crate::drives::vapour_bound,
+        },
+        Group {
+            id: "conductance_jump",
+            title: "Sudden removal of a cake under a constant well head (Laplace solution)",
+            run: crate::stepping::conductance_jump,
         },
         Group {
             id: "annulus",

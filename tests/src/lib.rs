@@ -13,6 +13,7 @@ pub mod fit;
 pub mod harmonic;
 pub mod models;
 pub mod reference;
+pub mod stepping;
 
 /// Outcome of one comparison.
 #[derive(Debug, Clone, PartialEq, serde::Serialize)]

@@ -141,3 +141,8 @@ fn jet_volume_balance() {
 fn vapour_bound_and_column_parting() {
     assert_group("vapour");
 }
+
+#[test]
+fn conductance_jump_against_laplace_solution() {
+    assert_group("conductance_jump");
+}

@@ -3,13 +3,16 @@
 //! Time steps are resolved here so that the model and the resolved case say exactly what
 //! will run: a periodic drive gets `steps_per_cycle` (auto = the solver's default), any
 //! other drive geometric steps (`steps_per_decade`, `first_step`, defaults from the
-//! solver), unless a fixed `time_step` is given.
+//! solver), unless a fixed `time_step` is given. Under the default adaptive scheme these
+//! nominal steps are the upper bound of every step (docs/time-stepping.md).
 
 use super::error::CaseError;
 use super::quantity::{DurationValue, Kind, Time};
-use super::raw::{MethodName, RawNumerics};
+use super::raw::{MethodName, RawNumerics, SchemeName};
 use crate::units::parse_quantity;
-use boreflux_solver::model::{GridSpec, Numerics, TimeSpec};
+use boreflux_solver::model::{
+    GridSpec, Numerics, Scheme, TimeSpec, DEFAULT_ABSOLUTE_TOLERANCE_M, DEFAULT_RELATIVE_TOLERANCE,
+};
 use boreflux_solver::run::{DEFAULT_STEPS_PER_CYCLE, DEFAULT_STEPS_PER_DECADE};
 use serde_json::{json, Map, Value};
 
@@ -170,8 +173,40 @@ pub fn numerics(raw: &RawNumerics, period_s: Option<f64>) -> Result<NumericsOut,
             "must be at least 1, got 0",
         ));
     }
+    let scheme = match raw.scheme.unwrap_or(SchemeName::TrBdf2) {
+        SchemeName::Theta => {
+            for (given, key) in [
+                (
+                    raw.relative_tolerance.is_some(),
+                    "numerics.relative_tolerance",
+                ),
+                (
+                    raw.absolute_tolerance.is_some(),
+                    "numerics.absolute_tolerance",
+                ),
+            ] {
+                if given {
+                    return Err(CaseError::new(
+                        key,
+                        "is for the adaptive scheme \"tr-bdf2\", not for \"theta\"",
+                    ));
+                }
+            }
+            Scheme::Theta
+        }
+        SchemeName::TrBdf2 => Scheme::TrBdf2 {
+            relative: raw.relative_tolerance.unwrap_or(DEFAULT_RELATIVE_TOLERANCE),
+            absolute_m: raw
+                .absolute_tolerance
+                .as_ref()
+                .map(|q| q.si("numerics.absolute_tolerance"))
+                .transpose()?
+                .unwrap_or(DEFAULT_ABSOLUTE_TOLERANCE_M),
+        },
+    };
     Ok(NumericsOut {
         numerics: Numerics {
+            scheme,
             grid,
             time,
             theta: raw.theta.unwrap_or(DEFAULT_THETA),
@@ -269,6 +304,19 @@ pub fn resolved(n: &Numerics, output_every: u64) -> Value {
         }
         TimeSpec::Fixed(dt) => {
             m.insert("time_step".to_owned(), json!(dt));
+        }
+    }
+    match n.scheme {
+        Scheme::TrBdf2 {
+            relative,
+            absolute_m,
+        } => {
+            m.insert("scheme".to_owned(), json!("tr-bdf2"));
+            m.insert("relative_tolerance".to_owned(), json!(relative));
+            m.insert("absolute_tolerance".to_owned(), json!(absolute_m));
+        }
+        Scheme::Theta => {
+            m.insert("scheme".to_owned(), json!("theta"));
         }
     }
     m.insert("theta".to_owned(), json!(n.theta));

@@ -258,4 +258,22 @@ pub struct RawNumerics {
     pub first_step: Option<Q<Time>>,
     /// Write every n-th step to the output [1].
     pub output_every: Option<u64>,
+    /// Time integration: "tr-bdf2" (L-stable, adaptive steps, at most the nominal step) or
+    /// "theta" (θ-scheme with the nominal steps) [tr-bdf2].
+    pub scheme: Option<SchemeName>,
+    /// Relative tolerance of the adaptive steps on heads [1e-3].
+    pub relative_tolerance: Option<f64>,
+    /// Absolute tolerance of the adaptive steps on heads [1 mm].
+    pub absolute_tolerance: Option<Q<Length>>,
+}
+
+/// Time integration scheme.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize, JsonSchema)]
+pub enum SchemeName {
+    /// TR-BDF2, L-stable, steps from its local error estimate.
+    #[serde(rename = "tr-bdf2")]
+    TrBdf2,
+    /// θ-scheme (`theta`, `startup_steps`) with the nominal steps.
+    #[serde(rename = "theta")]
+    Theta,
 }

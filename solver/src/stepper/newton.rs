@@ -207,7 +207,15 @@ impl Stepper {
         let n = self.h.len();
         let last = n - 1;
         // Initial guess: the recent θ-point heads extrapolated to this step's θ-point.
-        self.predictor.guess(&self.h, t_theta, &mut self.y);
+        if self.predict_end && theta == 1.0 {
+            // TR-BDF2's second stage: the ends of the last steps extrapolated.
+            self.predictor.guess(&self.h, t_new, &mut self.y);
+        } else if self.predict_end {
+            // Its trapezoidal stage: the last such stages' θ-points.
+            self.predictor_mid.guess(&self.h, t_theta, &mut self.y);
+        } else {
+            self.predictor.guess(&self.h, t_theta, &mut self.y);
+        }
         let inv_tdt = 1.0 / tdt;
         let open = usize::from(self.disc.outer_open);
         let mut residual = f64::INFINITY;

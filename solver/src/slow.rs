@@ -1,0 +1,139 @@
+//! The slowly changing state of the well: today the wall cake (thickness and coverage), later
+//! other damage the development removes. It changes while the flow oscillates fast, so the
+//! time loop advances it once per accepted step from that step's face quantities and asks
+//! what kind of change it made:
+//!
+//! - [`Change::None`]: nothing to rebuild;
+//! - [`Change::Smooth`]: the face laws are rebuilt, the step sequence goes on;
+//! - [`Change::Jump`]: the face laws changed abruptly (the cake gone, a coverage jump, or the
+//!   wall face's linear resistance moved by more than [`JUMP_FRACTION`] in one step); the
+//!   time loop restarts with a small step and forgets its extrapolation history, as after a
+//!   jump of the forcing (docs/time-stepping.md).
+//!
+//! The erosion law itself is in [`crate::cake`] and is unchanged by this module.
+
+use crate::cake;
+use crate::diagnostics::FaceState;
+use crate::model::Model;
+use crate::system::CakeState;
+
+/// Relative change of the wall face's linear resistance in one step above which a change
+/// counts as a jump (assumption: a tenth keeps the step's error estimate meaningful across
+/// the change; calibrate against the verification group if it matters).
+pub const JUMP_FRACTION: f64 = 0.1;
+
+/// What an update of the slow state did.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Change {
+    /// Nothing changed.
+    None,
+    /// The faces change a little: rebuild them.
+    Smooth,
+    /// The faces change abruptly: rebuild them and restart the step sequence.
+    Jump,
+}
+
+/// The well's slow state and its history.
+#[derive(Debug, Clone, PartialEq)]
+pub struct SlowState {
+    cake: Option<CakeState>,
+    initial_cake_m: f64,
+    skin: f64,
+    initial_skin: f64,
+}
+
+impl SlowState {
+    /// The state at t = 0 (the model's cake as built).
+    pub fn new(model: &Model) -> SlowState {
+        let cake = model.cake.map(|c| CakeState {
+            thickness_m: c.thickness_m,
+            coverage: c.coverage,
+        });
+        let skin = total_skin(model, cake);
+        SlowState {
+            cake,
+            initial_cake_m: cake.map_or(0.0, |c| c.thickness_m),
+            skin,
+            initial_skin: skin,
+        }
+    }
+
+    /// A state with the cake in `cake` (start and current), e.g. just after a sudden change.
+    pub fn with_cake(model: &Model, cake: Option<CakeState>) -> SlowState {
+        let skin = total_skin(model, cake);
+        SlowState {
+            cake,
+            initial_cake_m: cake.map_or(0.0, |c| c.thickness_m),
+            skin,
+            initial_skin: skin,
+        }
+    }
+
+    /// The cake state the face laws are built from.
+    pub fn cake(&self) -> Option<CakeState> {
+        self.cake
+    }
+
+    /// Cake thickness now and at the start, m.
+    pub fn cake_thickness_m(&self) -> (f64, f64) {
+        (
+            self.initial_cake_m,
+            self.cake.map_or(0.0, |c| c.thickness_m),
+        )
+    }
+
+    /// Cake coverage now, –.
+    pub fn cake_coverage(&self) -> f64 {
+        self.cake.map_or(0.0, |c| c.coverage)
+    }
+
+    /// Total skin now and at the start, –.
+    pub fn skin(&self) -> (f64, f64) {
+        (self.initial_skin, self.skin)
+    }
+
+    /// Advances over a step of `dt_s` that ended with `face` at the wall; `wall_r_lin` is
+    /// the linear resistance of the wall face before the change, s/m².
+    pub fn advance(
+        &mut self,
+        model: &Model,
+        face: &FaceState,
+        dt_s: f64,
+        wall_r_lin: f64,
+    ) -> Change {
+        let (Some(c), Some(state)) = (&model.cake, self.cake.as_mut()) else {
+            return Change::None;
+        };
+        let before = *state;
+        if !cake::erode(c, state, face.shear_pa, face.flux_m_s, dt_s) {
+            return Change::None;
+        }
+        let after = *state;
+        self.skin = total_skin(model, Some(after));
+        let dr = (cake::interface_resistance(model, c, before)
+            - cake::interface_resistance(model, c, after))
+        .abs();
+        let gone = before.thickness_m > 0.0 && after.thickness_m <= 0.0;
+        let coverage_jump = (before.coverage - after.coverage).abs() > JUMP_FRACTION;
+        if gone || coverage_jump || dr.is_nan() || dr > JUMP_FRACTION * wall_r_lin {
+            Change::Jump
+        } else {
+            Change::Smooth
+        }
+    }
+}
+
+/// Total skin referred to the formation with the cake in state `cake` (docs/physics.md §2.4).
+pub fn total_skin(model: &Model, cake: Option<CakeState>) -> f64 {
+    let kf = model.formation.medium.conductivity_m_s;
+    let rs = model.well.screen_radius_m;
+    let rb = model.borehole_radius_m();
+    let mut s = crate::skin::hawkins_skin(kf, model.pack.medium.conductivity_m_s, rs, rb);
+    if let Some(z) = &model.invaded {
+        s += crate::skin::hawkins_skin(kf, z.medium.conductivity_m_s, rb, rb + z.thickness_m);
+    }
+    if let (Some(c), Some(st)) = (&model.cake, cake) {
+        s += cake::skin(model, c, st);
+    }
+    s
+}
