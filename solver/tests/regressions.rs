@@ -425,8 +425,9 @@ fn cake_removed_under_pumping_does_not_ring() {
 }
 
 /// A schedule with a 1 m slug stage followed by a surge-block stage stopped at t = 5e−5 s:
-/// Newton failed on the first step of the stiff start. A failed solve is now retried with
-/// shorter steps.
+/// Newton failed on the first step of the stiff start. This simplified model (Darcy media)
+/// runs under both schemes; the exact case, which the θ-scheme still loses, is rebuilt from
+/// the shipped case in cli/tests/step_retries.rs.
 #[test]
 fn slug_stage_then_surge_block_stage_runs() {
     let mut block = municipal_block(60.0);
@@ -464,7 +465,9 @@ fn slug_stage_then_surge_block_stage_runs() {
 }
 
 /// The shipped deep-swab case (cases/swab-deep.json, invented demo data) in a formation of
-/// 1e−9 m/s stopped at t ≈ 92.6 s with Newton not converging.
+/// 1e−9 m/s stopped at t ≈ 92.6 s with Newton not converging. This simplified model (Darcy
+/// media, no screen entrance loss) runs under both schemes; the exact case, which the
+/// θ-scheme still loses, is in cli/tests/step_retries.rs.
 #[test]
 fn deep_swab_in_a_tight_formation_runs() {
     let mut m = model(

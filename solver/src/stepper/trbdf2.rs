@@ -210,9 +210,10 @@ impl Stepper {
         let well = well_storage(model, &self.disc, t_end);
         let first = if well.is_some() { 0 } else { 1 };
         self.delta[0] = 0.0;
-        self.slope_start[0] = 0.0;
         for j in 0..n {
             if j < first {
+                // The well head is not a state: no slope to carry.
+                self.slope_start[j] = 0.0;
                 continue;
             }
             // est = k (fⁿ/γ − fⁿ⁺ᵞ/(γ(1−γ)) + fⁿ⁺¹/(1−γ)), fⁿ⁺¹ = (w − h̃)/tdt; the
@@ -313,15 +314,12 @@ impl Stepper {
     fn filter_estimate(&mut self, tdt: f64, well: Option<(f64, f64)>) {
         let n = self.h.len();
         let last = n - 1;
-        // Face derivatives at w: Newton left them for its converged iterate (the BDF2
-        // stage's unknown is w itself); linear faces have their constant conductance.
+        // Face derivatives at the end heads w.
+        let h = &self.h;
         for j in 0..n {
+            let dh = if j < last { h[j] - h[j + 1] } else { h[j] };
             self.upper[j] = if j < last || self.disc.outer_open {
-                if self.linear {
-                    self.disc.faces[j].conductance()
-                } else {
-                    self.face_g[j]
-                }
+                self.disc.faces[j].flow(dh).1
             } else {
                 0.0
             };
