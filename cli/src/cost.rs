@@ -96,7 +96,7 @@ pub fn show_bytes(b: f64) -> String {
 /// One line for `check` and for refusals.
 pub fn describe(c: &RunCost) -> String {
     format!(
-        "at most {:.3e} steps on {} cells ({:.3e} cell-steps), about {} of computing, about {} \
+        "up to about {:.3e} steps on {} cells ({:.3e} cell-steps), about {} of computing, about {} \
          of output",
         c.steps,
         c.cells,

@@ -1,7 +1,7 @@
 //! Runs that the Crank–Nicolson stepper lost to a Newton failure, rebuilt from the shipped
 //! demo cases (invented data): the default scheme must finish them (a failed solve is retried
-//! with shorter steps), and the θ-scheme, which does not retry, shows that the cases still
-//! test what they were made for.
+//! with shorter steps), and where the θ-scheme, which does not retry, still fails, that shows
+//! the case still tests what it was made for.
 
 use boreflux::case::parse_case;
 use boreflux_solver::diagnostics::NullObserver;
@@ -27,17 +27,15 @@ fn model(v: &Value) -> boreflux_solver::Model {
 fn deep_swab_in_a_sealed_formation_finishes() {
     let mut v = case("swab-deep.json");
     v["formation"]["conductivity"] = json!("1e-9 m/s");
-    let mut m = model(&v);
+    // The θ-scheme no longer loses this case either: since the column under the cups parts
+    // at the vapour bound, the steps at that limit are backward Euler under both schemes.
+    let m = model(&v);
     let s = run(&m, &mut NullObserver, Reporting::default()).unwrap();
     assert_eq!(s.end_time_s, m.duration_s);
     println!(
         "default: {} steps, {} retried solves, volume residual {:.1e}",
         s.steps, s.retried_solves, s.max_mass_residual
     );
-    m.numerics.scheme = Scheme::Theta;
-    let e = run(&m, &mut NullObserver, Reporting::default());
-    println!("theta: {e:?}");
-    assert!(matches!(e, Err(SolverError::NewtonFailed { .. })), "{e:?}");
 }
 
 /// A 1 m slug stage followed by the municipal case's surge-block stage: Newton failed at

@@ -507,7 +507,9 @@ pub fn run_from_state(
              head under it reached the vapour bound (atmospheric pressure less the vapour \
              pressure, plus the tool's depth below the static level) because the formation \
              could not supply the tool's displacement; the suction and the collapse load are \
-             capped there, and the tool's work beyond it went into the vapour gap",
+             capped there, and the tool's work beyond it went into the vapour gap; the column \
+             rejoins at once in this model (no water-column inertia), so the flows just after \
+             each rejoining are an upper bound",
             summary.column_partings, summary.parted_time_s
         ));
     }
