@@ -77,7 +77,9 @@ fn random_valid_cases_run_cleanly() {
         // One stream per kind: the cases of a kind do not change with the count of others.
         let mut rng = gen::Rng::new(seed.wrapping_add(0x1000_0000 * k as u64));
         let (mut k_fail, mut k_bal) = (0u32, 0u32);
+        let (started, mut slowest) = (std::time::Instant::now(), (0.0f64, 0u64));
         for i in 0..per_kind {
+            let one = std::time::Instant::now();
             let case = gen::case(&mut rng, kind);
             let text = case.to_string();
             runs += 1;
@@ -97,7 +99,15 @@ fn random_valid_cases_run_cleanly() {
             let reporting = Reporting {
                 every: loaded.output_every,
             };
-            match run(&loaded.model, &mut watch, reporting) {
+            let result = run(&loaded.model, &mut watch, reporting);
+            let secs = one.elapsed().as_secs_f64();
+            if secs > slowest.0 {
+                slowest = (secs, i);
+            }
+            if secs > 2.0 {
+                eprintln!("SLOW {kind} #{i}: {secs:.1} s\n  case: {text}");
+            }
+            match result {
                 Ok(summary) => {
                     if let Some(b) = watch.bad {
                         non_finite += 1;
@@ -117,7 +127,13 @@ fn random_valid_cases_run_cleanly() {
                 }
             }
         }
-        by_kind.push(format!("{kind}: {k_fail} failed, {k_bal} balance warnings"));
+        // Wall times are information for the reader, not asserted (a shared machine).
+        by_kind.push(format!(
+            "{kind}: {k_fail} failed, {k_bal} balance warnings, {:.1} s (slowest #{}: {:.2} s)",
+            started.elapsed().as_secs_f64(),
+            slowest.1,
+            slowest.0
+        ));
     }
     eprintln!(
         "random cases (seed {seed}): {runs} runs, {failures} failures, {non_finite} with \

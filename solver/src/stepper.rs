@@ -310,9 +310,13 @@ impl Stepper {
     /// and the water did not fill: `H = −V/S_w` (0 when the column did not part).
     pub fn step(&mut self, model: &Model, dt: f64, theta: f64) -> Result<(), SolverError> {
         let (h0, vapour, was_sealed) = (self.h[0], self.vapour, self.was_sealed);
-        let t_theta = self.time_s + theta * dt;
+        // The step belongs to the stage it ends (as in `stage`): a step that lands on the end
+        // of a sealed stage is still sealed.
+        let t_theta = (self.time_s + theta * dt).min(left_limit(self.time_s + dt));
         let storage = model.drive.well_storage_m2(t_theta, self.disc.storage[0]);
-        if storage > 0.0 && self.was_sealed {
+        // A free surface again (or a gap left when a sealed stage ended): the sealed head
+        // gives way to the free surface drawn down by the gap.
+        if storage > 0.0 && (self.was_sealed || self.vapour.gap_m3 > 0.0) {
             self.h[0] = -self.vapour.gap_m3 / storage;
             self.vapour.gap_m3 = 0.0;
         }
@@ -365,7 +369,10 @@ impl Stepper {
     /// bound, a pump that has broken suction, the steps just after the column closed, or a
     /// change of the well between sealed and free surface at `t`.
     fn at_device_limit(&self, model: &Model, t: f64) -> bool {
-        let sealed = model.drive.well_storage_m2(t, self.disc.storage[0]) <= 0.0;
+        let sealed = model
+            .drive
+            .well_storage_m2(left_limit(t), self.disc.storage[0])
+            <= 0.0;
         self.vapour.gap_m3 > 0.0
             || self.damped_steps > 0
             || sealed != self.was_sealed
