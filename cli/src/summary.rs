@@ -12,13 +12,13 @@ use boreflux_solver::water::GRAVITY_M_S2;
 use boreflux_solver::{RunSummary, StepObserver, StepView};
 use serde::Serialize;
 
-/// Grain Reynolds number above which Darcy's law is doubtful (PHYSICS.md §4.4, Bear 1972;
+/// Grain Reynolds number above which Darcy's law is doubtful (docs/physics.md §4.4, Bear 1972;
 /// from memory — verify).
 pub const REYNOLDS_SOFT_LIMIT: f64 = 1.0;
 /// Grain Reynolds number above which the warning is strong.
 pub const REYNOLDS_HARD_LIMIT: f64 = 10.0;
 
-/// Definition of the efficiency reported (PHYSICS.md §2.4).
+/// Definition of the efficiency reported (docs/physics.md §2.4).
 pub const EFFICIENCY_DEFINITION: &str = "steady-state efficiency E = ln(R/r_s) / (ln(R/r_s) + s), \
 ideal formation drawdown over actual drawdown at the screen, screen losses excluded; R is the \
 model's outer radius (Thiem with Hawkins skin)";

@@ -211,7 +211,7 @@ fn units_land_on_the_solver_in_si() {
     assert!(rel(c.safety.collapse_rating_pa.unwrap(), 117.0 * psi) < EXACT);
     assert!(rel(c.safety.youngs_modulus_pa.unwrap(), 400_000.0 * psi) < EXACT);
     // Temperature: 59 degF = 15 degC (NIST SP 811). Water at 15 degC: ρ = 999.102621
-    // kg/m³, μ = 1.1375676e-3 Pa s (iapws.IAPWS95, PHYSICS.md §5.3). Tolerances: the
+    // kg/m³, μ = 1.1375676e-3 Pa s (iapws.IAPWS95, docs/physics.md §5.3). Tolerances: the
     // density formula is within 1.1e-3 kg/m³ of IAPWS-95; the viscosity table node prints
     // 6 digits (≤ 5e-9 Pa s).
     assert!((m.fluid.density_kg_m3 - 999.102_621).abs() < 2e-3);
@@ -262,7 +262,7 @@ fn defaults_are_filled() {
     let c = parse(MINIMAL_CASE);
     let m = &c.model;
     let r = &c.resolved;
-    // DESIGN.md defaults: water at 15 degC (ρ from iapws.IAPWS95, PHYSICS.md §5.3, within
+    // docs/formats.md defaults: water at 15 degC (ρ from iapws.IAPWS95, docs/physics.md §5.3, within
     // the density formula's 1.1e-3 kg/m³).
     assert!((m.fluid.density_kg_m3 - 999.102_621).abs() < 2e-3);
     assert_eq!(r["fluid"]["temperature"], 288.15);
@@ -313,14 +313,14 @@ fn pack_conductivity_is_estimated_from_the_gradation() {
     let c = parse(&text);
     let pack = c.model.pack.medium;
     // Cu = 1.75 (well sorted): Kozeny–Carman on d50 = 2 mm, n = 0.35, water at 20 degC:
-    // 2.204010e-2 m/s (computed with numpy, PHYSICS.md §4.2). Tolerance 1e-5: the table's
+    // 2.204010e-2 m/s (computed with numpy, docs/physics.md §4.2). Tolerance 1e-5: the table's
     // water is IAPWS at 20 degC; ours is within 1.1e-6 (density) and 5e-6 (viscosity).
     assert!(
         rel(pack.conductivity_m_s, 2.204_010e-2) < 1e-5,
         "{}",
         pack.conductivity_m_s
     );
-    // Ergun β for d = 2 mm, n = 0.35: 1.352685e3 s²/m² (numpy, PHYSICS.md §4.2, 7 digits).
+    // Ergun β for d = 2 mm, n = 0.35: 1.352685e3 s²/m² (numpy, docs/physics.md §4.2, 7 digits).
     assert!(rel(pack.forchheimer_beta_s2_m2, 1.352_685e3) < 1e-6);
     assert_eq!(pack.grain_diameter_m, Some(2e-3));
     let all = c.notes.join("\n");

@@ -218,7 +218,7 @@ fn new_then_check_round_trips_every_scenario() {
         let tol = 0.005 * shares.len() as f64;
         assert!((sum - 100.0).abs() <= tol, "{name}: shares sum to {sum} %");
         assert!(out.contains("controls the flow"), "{name}:\n{out}");
-        // The caution (boreflux_solver::safety::CAUTION), as DESIGN.md asks of `check`.
+        // The caution (boreflux_solver::safety::CAUTION), as docs/formats.md asks of `check`.
         assert!(
             out.contains(&format!("Caution: {CAUTION}")),
             "{name}: no caution"
@@ -1010,14 +1010,14 @@ fn verify_passes_and_lists_every_group() {
 // 5. schema and completions
 // ---------------------------------------------------------------------------------------
 
-/// Checks: `schema` prints a JSON Schema with every top-level key of DESIGN.md's case table
+/// Checks: `schema` prints a JSON Schema with every top-level key of docs/formats.md's case table
 /// and its required keys; `completions bash` prints a script naming every subcommand.
 #[test]
 fn schema_and_completions() {
     let o = output(boreflux().arg("schema"));
     assert_code(&o, 0, "schema");
     let s: Value = serde_json::from_str(&stdout_of(&o)).expect("schema is JSON");
-    // DESIGN.md, "Case file", row `top`; bold keys are required, except `duration`, which
+    // docs/formats.md, table "Top level"; bold keys are required, except `duration`, which
     // a schedule drive may leave out (its stages sum to it), so the schema cannot require it.
     let top = [
         "title",
@@ -1194,7 +1194,7 @@ fn unwritable_output_folder_leaves_nothing() {
 /// Checks: a run stopped by Ctrl-C (SIGINT) part way through leaves neither the output
 /// files nor their temporary files (output/mod.rs: "a writer dropped without `finish()`
 /// (an error, a panic, Ctrl-C handled as an early return) deletes its temporary file";
-/// DESIGN.md: "nothing partial left behind").
+/// docs/formats.md: "nothing partial left behind").
 #[test]
 fn interrupted_run_leaves_nothing() {
     let dir = tempfile::tempdir().unwrap();

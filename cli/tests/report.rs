@@ -1,5 +1,5 @@
 //! `boreflux report` through the library: run files are built here with the `hdf5` crate
-//! following the documented layout (DESIGN.md "HDF5 layout"), so these tests do not depend
+//! following the documented layout (docs/formats.md "HDF5 layout"), so these tests do not depend
 //! on the solver. All run data below are invented test data, not results of any well.
 
 use std::path::{Path, PathBuf};

@@ -257,7 +257,7 @@ fn bad_sweeps_are_refused_before_anything_runs() {
 }
 
 /// Ctrl-C (SIGINT) stops every scenario after its current step and writes no table
-/// (DESIGN.md: nothing partial left behind).
+/// (docs/formats.md: nothing partial left behind).
 #[test]
 fn an_interrupted_sweep_writes_nothing() {
     let dir = tempfile::tempdir().unwrap();

@@ -1,6 +1,6 @@
 //! The wall cake: its interface resistance, its skin and its erosion.
 //!
-//! Interface (PHYSICS.md §2.1): a layer of thickness δ on the wall r_b, storage neglected.
+//! Interface (docs/physics.md §2.1): a layer of thickness δ on the wall r_b, storage neglected.
 //! A patchy cake covers a fraction c of the wall; the uncovered fraction conducts through a
 //! layer of the same thickness as pack material. The interface conductance is the
 //! area-weighted sum of the two paths:
@@ -8,7 +8,7 @@
 //! ```text
 //! C_i = 2π r_b b (c K_c + (1−c) K_p) / δ        m²/s
 //! R_i = 1 / C_i                                  s/m²
-//! s_cake = 2π K_f b R_i = K_f δ / (r_b (c K_c + (1−c) K_p))      (c = 1: PHYSICS.md §2.3)
+//! s_cake = 2π K_f b R_i = K_f δ / (r_b (c K_c + (1−c) K_p))      (c = 1: docs/physics.md §2.3)
 //! ```
 //! The model has no lateral (convergence) resistance toward the holes in the cake, so a
 //! small uncovered fraction already short-circuits a tight cake; treat results for

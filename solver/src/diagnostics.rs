@@ -1,7 +1,7 @@
 //! Diagnostics of a run: what is reported at each step and each cycle, and the observer
 //! trait through which they leave the solver (the solver itself writes nothing).
 //!
-//! Borehole-face quantities (PHYSICS.md §6, §7):
+//! Borehole-face quantities (docs/physics.md §6, §7):
 //! ```text
 //! face Darcy flux      q_b = Q_b / (2π r_b b)                     m/s, positive outward
 //! face pore velocity   v_b = q_b / n_pack                         m/s
@@ -111,7 +111,7 @@ impl StepObserver for NullObserver {
     }
 }
 
-/// Kozeny hydraulic radius of a medium, m (PHYSICS.md §6.1): n d/(6(1−n)) from the grain
+/// Kozeny hydraulic radius of a medium, m (docs/physics.md §6.1): n d/(6(1−n)) from the grain
 /// size, or sqrt(5k/n) from K through Kozeny–Carman (k = n R_h²/5) when it is unknown.
 pub fn hydraulic_radius_m(m: &Medium, rho: f64, mu: f64) -> f64 {
     match m.grain_diameter_m {

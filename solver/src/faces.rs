@@ -8,12 +8,12 @@
 //! Q  = sign(Δh) · 2|Δh| / (R_lin + sqrt(R_lin² + 4 R_nl |Δh|))   (stable root)
 //! dQ/dΔh = 1 / (R_lin + 2 R_nl |Q|)
 //! ```
-//! Half cell of conductivity K and Forchheimer β between radii r₁ < r₂ (PHYSICS.md §1.2,
+//! Half cell of conductivity K and Forchheimer β between radii r₁ < r₂ (docs/physics.md §1.2,
 //! §4.3; exact for steady radial flow, Thiem 1906):
 //! ```text
 //! R_lin = ln(r₂/r₁) / (2π b K)      R_nl = β (1/r₁ − 1/r₂) / (2π b)²
 //! ```
-//! Wall cake (PHYSICS.md §2.1): `R_lin = δ_c / (2π r_b b K_c)`. Screen (§3): linear loss
+//! Wall cake (docs/physics.md §2.1): `R_lin = δ_c / (2π r_b b K_c)`. Screen (§3): linear loss
 //! `c_s/(2π r_s b)`, orifice loss `R_nl = 1 / (2g (2π r_s L A_o C_d)²)`.
 
 use crate::grid::Zone;

@@ -8,7 +8,7 @@
 //! ```
 //! Faces inside a zone with inner radius a, outer radius c and m cells are geometric,
 //! `r_{j+1/2} = a (c/a)^{j/m}`; the node of a cell is the geometric mean of its faces, the
-//! middle of the cell in ln r (PHYSICS.md §1.2). Every zone boundary and the cake radius
+//! middle of the cell in ln r (docs/physics.md §1.2). Every zone boundary and the cake radius
 //! lie on faces. Unknown 0 is the in-well head; unknowns 1..=N are the cells.
 
 use crate::model::{GridSpec, Model};
@@ -59,7 +59,7 @@ pub const MIN_PACK_CELLS: usize = 16;
 pub const MIN_INVADED_CELLS: usize = 8;
 /// Minimum cells in the formation.
 pub const MIN_FORMATION_CELLS: usize = 20;
-/// Default resolution of the formation, cells per decade of radius (PHYSICS.md §10 asks
+/// Default resolution of the formation, cells per decade of radius (docs/physics.md §10 asks
 /// for 20 or more).
 pub const DEFAULT_CELLS_PER_DECADE: f64 = 30.0;
 /// Default resolution of the pack and invaded zone, cells per decade of radius.
@@ -86,7 +86,7 @@ pub struct Grid {
 /// Rule: R is the larger of
 /// - r_d + 20 δ, with δ = sqrt(2D/ω) the penetration depth of the slowest periodic forcing
 ///   in the formation (D = K/Ss); the oscillation amplitude there has fallen to about
-///   exp(−20) ≈ 2e−9 of its value at the borehole (PHYSICS.md §10);
+///   exp(−20) ≈ 2e−9 of its value at the borehole (docs/physics.md §10);
 /// - r_d + 8 sqrt(D t_end) when the drive sends a net volume (non-periodic, or periodic with
 ///   a mean): the Theis argument at R is then u = R²S/(4Tt) ≥ 16, W(16) ≈ 7e−9;
 /// - 10 r_d.

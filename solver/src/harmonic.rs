@@ -1,7 +1,7 @@
 //! The harmonic method: the periodic steady state of a linear (Darcy) model computed
 //! directly, one complex tridiagonal solve per harmonic of the drive, no time stepping.
 //!
-//! The semi-discrete system of [`crate::system`] (PHYSICS.md §1.2) for the cells j = 1…N,
+//! The semi-discrete system of [`crate::system`] (docs/physics.md §1.2) for the cells j = 1…N,
 //! with the in-well head h_w(t) prescribed, is linear when every face is (no Forchheimer,
 //! no screen orifice loss, no cake erosion). Expanding heads and drive in harmonics of the
 //! drive's period P (Fourier series; `harmonic/fourier.rs` has the drive's coefficients):
@@ -38,7 +38,7 @@
 //! which [`crate::faces::Face::add_dissipation`] (the stepper's zone split) gives when
 //! called at the face's RMS drop, its power being quadratic in Δh for a linear face.
 //!
-//! Energy identity (derived here; PHYSICS.md §7.3 in discrete form): multiplying cell row
+//! Energy identity (derived here; docs/physics.md §7.3 in discrete form): multiplying cell row
 //! j of harmonic k by conj Ĥ_{k,j} and summing over the cells gives
 //! `Σ_f c_f |ΔĤ_{k,f}|² + i ω_k Σ_j S_j |Ĥ_{k,j}|² = Ĥ_{k,w}^* Q̂_{k,0}`: the storage term is
 //! imaginary (elastic energy returns to its value after each period), so the mean power

@@ -363,14 +363,14 @@ pub fn estimate_pack_conductivity(
 mod tests {
     use super::*;
 
-    /// Water at 20 °C as printed in PHYSICS.md §4.2/§5.3 (computed there with iapws.IAPWS95).
+    /// Water at 20 °C as printed in docs/physics.md §4.2/§5.3 (computed there with iapws.IAPWS95).
     const WATER_20C: Water = Water {
         density_kg_m3: 998.207_150,
         viscosity_pa_s: 1.001_596_1e-3,
     };
 
     /// Rows (d, n, K_Ergun, k_Ergun, β, K_KC) of the Ergun table; Ergun 1952 and
-    /// Kozeny–Carman formulas, values computed with numpy (PHYSICS.md §4.2).
+    /// Kozeny–Carman formulas, values computed with numpy (docs/physics.md §4.2).
     const ERGUN_ROWS: [(f64, f64, f64, f64, f64, f64); 4] = [
         (
             2e-3,
@@ -416,7 +416,7 @@ mod tests {
 
     #[test]
     fn ergun_coefficients_work() {
-        // Ergun 1952 formula; values computed with numpy (PHYSICS.md §4.2).
+        // Ergun 1952 formula; values computed with numpy (docs/physics.md §4.2).
         for &(d, n, k_cond, k_perm, beta, _) in &ERGUN_ROWS {
             assert!(
                 rel(ergun_conductivity(d, n, &WATER_20C), k_cond) < SEVEN_DIGITS,
@@ -432,19 +432,19 @@ mod tests {
 
     #[test]
     fn kozeny_carman_conductivity_works() {
-        // Kozeny–Carman with constant 180; values computed with numpy (PHYSICS.md §4.2).
+        // Kozeny–Carman with constant 180; values computed with numpy (docs/physics.md §4.2).
         for &(d, n, .., k_kc) in &ERGUN_ROWS {
             let got = kozeny_carman_conductivity(d, n, 1.0, &WATER_20C);
             assert!(rel(got, k_kc) < SEVEN_DIGITS, "d={d}");
         }
-        // k for d = 0.2 mm, n = 0.35; computed (PHYSICS.md §5.2).
+        // k for d = 0.2 mm, n = 0.35; computed (docs/physics.md §5.2).
         assert!(rel(kozeny_carman_permeability(2e-4, 0.35, 1.0), 2.255_095e-11) < SEVEN_DIGITS);
     }
 
     #[test]
     fn sphericity_scales_the_diameter() {
         // Documented convention: ψ enters as d_eff = ψ d, so KC with (d, ψ) equals KC with
-        // (ψ d, 1). Checked against the 2 mm row of PHYSICS.md §4.2 (computed with numpy):
+        // (ψ d, 1). Checked against the 2 mm row of docs/physics.md §4.2 (computed with numpy):
         // ψ = 0.5 on 2 mm must equal the 1 mm row.
         let got = kozeny_carman_conductivity(2e-3, 0.35, 0.5, &WATER_20C);
         assert!(rel(got, 5.510_026e-3) < SEVEN_DIGITS);
@@ -480,7 +480,7 @@ mod tests {
     #[test]
     fn ergun_to_kozeny_carman_ratio_is_180_over_150() {
         // Same n³d²/(1−n)² structure, constants 150 (Ergun 1952) and 180 (Carman 1937):
-        // the ratio is exactly 1.2 (PHYSICS.md §5.2).
+        // the ratio is exactly 1.2 (docs/physics.md §5.2).
         let ratio = ergun_conductivity(7e-4, 0.31, &WATER_20C)
             / kozeny_carman_conductivity(7e-4, 0.31, 1.0, &WATER_20C);
         assert!((ratio - 1.2).abs() < 1e-14);
@@ -488,7 +488,7 @@ mod tests {
 
     #[test]
     fn hazen_conductivity_works() {
-        // Hazen formula; values computed (PHYSICS.md §5.1), K in m/s for C = 40, 100, 150.
+        // Hazen formula; values computed (docs/physics.md §5.1), K in m/s for C = 40, 100, 150.
         let rows = [
             (0.1e-3, [4.0e-5, 1.0e-4, 1.5e-4]),
             (0.2e-3, [1.6e-4, 4.0e-4, 6.0e-4]),
@@ -506,7 +506,7 @@ mod tests {
 
     #[test]
     fn hazen_validity_note_works() {
-        // Stated validity 0.1 mm < d10 < 3 mm, Cu < 5 (PHYSICS.md §5.1, from memory).
+        // Stated validity 0.1 mm < d10 < 3 mm, Cu < 5 (docs/physics.md §5.1, from memory).
         assert_eq!(hazen_validity_note(0.2e-3, Some(2.0)), None);
         assert_eq!(hazen_validity_note(0.2e-3, None), None);
         assert!(hazen_validity_note(0.05e-3, Some(2.0))
@@ -522,12 +522,12 @@ mod tests {
 
     #[test]
     fn forchheimer_flux_from_gradient_works() {
-        // Stable root; check value computed (PHYSICS.md §4.1) from the printed K and β.
+        // Stable root; check value computed (docs/physics.md §4.1) from the printed K and β.
         // 10 printed digits: tolerance 1e-9 relative.
         let (k, beta, i) = (2.644_812e-2, 1_352.685, 0.1);
         let q = forchheimer_flux_from_gradient(i, k, beta);
         assert!(rel(q, 2.433_031_095e-3) < 1e-9);
-        // Inversion: q/K + β q² returns 0.1 (computed, PHYSICS.md §4.1); round-off only.
+        // Inversion: q/K + β q² returns 0.1 (computed, docs/physics.md §4.1); round-off only.
         assert!(rel(forchheimer_gradient(q, k, beta), i) < 1e-13);
         // The sign follows the gradient (odd function).
         assert_eq!(forchheimer_flux_from_gradient(-i, k, beta), -q);
@@ -546,7 +546,7 @@ mod tests {
     #[test]
     fn viscous_and_inertial_terms_balance_at_derived_reynolds() {
         // Viscous and inertial Ergun terms are equal at q = 1/(K β), where
-        // Re = 150 (1 − n)/1.75 = 55.71 for n = 0.35 (derived, PHYSICS.md §4.2).
+        // Re = 150 (1 − n)/1.75 = 55.71 for n = 0.35 (derived, docs/physics.md §4.2).
         let (d, n) = (2e-3, 0.35);
         let k = ergun_conductivity(d, n, &WATER_20C);
         let q = 1.0 / (k * ergun_beta(d, n));
@@ -558,7 +558,7 @@ mod tests {
     #[test]
     fn grain_reynolds_works() {
         // Q = 0.01 m³/s, b = 10 m, r = 0.1 m, d = 2 mm, 20 °C: Re = 3.172329 (computed,
-        // PHYSICS.md §4.4). 7 printed digits.
+        // docs/physics.md §4.4). 7 printed digits.
         let q = 0.01 / (2.0 * std::f64::consts::PI * 0.1 * 10.0);
         assert!(rel(q, 1.591_549e-3) < SEVEN_DIGITS);
         assert!(rel(grain_reynolds(q, 2e-3, &WATER_20C), 3.172_329) < SEVEN_DIGITS);
@@ -571,7 +571,7 @@ mod tests {
     #[test]
     fn shear_proxies_work() {
         // Rows (d, q, i, R_h, τ_Rh, μq/√k) for n = 0.35, water at 20 °C, KC permeability;
-        // computed with numpy (PHYSICS.md §6.2). τ_Rh prints 7 digits (the 7.971888 row).
+        // computed with numpy (docs/physics.md §6.2). τ_Rh prints 7 digits (the 7.971888 row).
         let n = 0.35;
         let rows = [
             (
@@ -602,7 +602,7 @@ mod tests {
             let k = kozeny_carman_permeability(d, n, 1.0);
             let got_alt = shear_proxy_alt(q, k, &WATER_20C);
             assert!(rel(got_alt, tau_alt) < SEVEN_DIGITS, "d={d}, q={q}");
-            // Ratio √(5/n) = 3.779645 for n = 0.35 (computed, PHYSICS.md §6.2).
+            // Ratio √(5/n) = 3.779645 for n = 0.35 (computed, docs/physics.md §6.2).
             assert!(rel(got / got_alt, 3.779_645) < SEVEN_DIGITS);
         }
     }
@@ -610,9 +610,9 @@ mod tests {
     #[test]
     fn estimate_pack_conductivity_well_sorted() {
         // Cu = 1.75 ≤ 2.5: KC on d50 = 2 mm, spheres, n = 0.35 → 2.204010e-2 m/s
-        // (KC column, computed with numpy, PHYSICS.md §4.2); Ergun K 2.644812e-2 (same row);
+        // (KC column, computed with numpy, docs/physics.md §4.2); Ergun K 2.644812e-2 (same row);
         // Hazen on d10 = 1.2 mm with C = 100 → 1e-4 × 100 × 1.2² = 1.44e-2 m/s (Hazen SI
-        // form, PHYSICS.md §5.1; plain arithmetic).
+        // form, docs/physics.md §5.1; plain arithmetic).
         let g = Gradation {
             d10_m: 1.2e-3,
             d50_m: 2e-3,
@@ -632,8 +632,8 @@ mod tests {
     #[test]
     fn estimate_pack_conductivity_poorly_sorted() {
         // Cu = 3.5 > 2.5: KC on d10 = 0.2 mm, spheres, n = 0.35 → 2.204010e-4 m/s
-        // (computed with numpy, PHYSICS.md §4.2); Hazen 4.0e-4 m/s for C = 100
-        // (computed, PHYSICS.md §5.1).
+        // (computed with numpy, docs/physics.md §4.2); Hazen 4.0e-4 m/s for C = 100
+        // (computed, docs/physics.md §5.1).
         let g = Gradation {
             d10_m: 2e-4,
             d50_m: 6e-4,
@@ -644,7 +644,7 @@ mod tests {
         assert!(rel(e.hazen, 4.0e-4) < 1e-12);
         assert_eq!(e.diameter_m, 2e-4);
         assert!(e.basis.starts_with("poorly sorted"));
-        // Cu ≥ 5 is outside Hazen's stated range (PHYSICS.md §5.1).
+        // Cu ≥ 5 is outside Hazen's stated range (docs/physics.md §5.1).
         let wide = Gradation {
             d60_m: Some(1.2e-3),
             ..g
@@ -657,7 +657,7 @@ mod tests {
     fn estimate_pack_conductivity_without_d60_and_with_shape() {
         // No d60: d10 is used (documented rule). Shape ψ = 0.5 on d10 = 2 mm equals the
         // 1 mm sphere row: KC 5.510026e-3, Ergun 6.612031e-3 m/s (computed with numpy,
-        // PHYSICS.md §4.2).
+        // docs/physics.md §4.2).
         let g = Gradation {
             d10_m: 2e-3,
             d50_m: 3e-3,

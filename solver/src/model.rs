@@ -16,7 +16,7 @@ pub struct Fluid {
 }
 
 impl Fluid {
-    /// Water at 20 °C (IAPWS-95 density and IAPWS 2008 viscosity, PHYSICS.md §5.3).
+    /// Water at 20 °C (IAPWS-95 density and IAPWS 2008 viscosity, docs/physics.md §5.3).
     pub const WATER_20C: Fluid = Fluid {
         density_kg_m3: 998.207_150,
         viscosity_pa_s: 1.001_596_1e-3,

@@ -334,8 +334,8 @@ mod tests {
     #[test]
     fn thin_ring_collapse_pa_works() {
         // Timoshenko & Gere ring formula, E = 2.758e9 Pa, ν = 0.38; values computed with
-        // numpy (PHYSICS.md §9a). Printed to 3 decimals: half a unit = 5e-4 in kPa, psi
-        // and m of water (water at 20 °C as printed in PHYSICS.md §5.3).
+        // numpy (docs/physics.md §9a). Printed to 3 decimals: half a unit = 5e-4 in kPa, psi
+        // and m of water (water at 20 °C as printed in docs/physics.md §5.3).
         let water_20c = Water {
             density_kg_m3: 998.207_150,
             viscosity_pa_s: 1.001_596_1e-3,
@@ -359,7 +359,7 @@ mod tests {
     #[test]
     fn thin_ring_collapse_pa_scales_with_modulus() {
         // With E = 2.41 GPa the values scale by 0.8738 (4 decimals) and DR 21 gives
-        // 704.184 kPa (computed with numpy, PHYSICS.md §9a).
+        // 704.184 kPa (computed with numpy, docs/physics.md §9a).
         let low = thin_ring_collapse_pa(2.41e9, PVC_POISSON_RATIO, 21.0);
         let base = thin_ring_collapse_pa(PVC_YOUNGS_MODULUS_PA, PVC_POISSON_RATIO, 21.0);
         assert!((low / base - 0.8738).abs() <= 5e-5);
@@ -389,7 +389,7 @@ mod tests {
 
     #[test]
     fn collapse_margin_works() {
-        // DR 21 rating 805.867 kPa (PHYSICS.md §9a) with SF 2 (common practice, no source)
+        // DR 21 rating 805.867 kPa (docs/physics.md §9a) with SF 2 (common practice, no source)
         // gives 402.9335 kPa allowable; ratios by plain arithmetic.
         let rating = 805_867.0;
         let m = collapse_margin(rating, 400e3, DEFAULT_COLLAPSE_SAFETY_FACTOR);
@@ -405,7 +405,7 @@ mod tests {
 
     #[test]
     fn terzaghi_critical_gradient_works() {
-        // Terzaghi 1943 critical gradient; (Gs, n, e, i_c) computed (PHYSICS.md §9b),
+        // Terzaghi 1943 critical gradient; (Gs, n, e, i_c) computed (docs/physics.md §9b),
         // printed to 6 decimals: half a unit = 5e-7.
         let rows = [
             (2.65, 0.35, 0.538_462, 1.072_500),
@@ -424,7 +424,7 @@ mod tests {
 
     #[test]
     fn filter_ratios_work() {
-        // Ratios by plain arithmetic on illustrative sizes; limits from PHYSICS.md §9c.
+        // Ratios by plain arithmetic on illustrative sizes; limits from docs/physics.md §9c.
         assert!(rel(retention_ratio(1.2e-3, 0.3e-3), 4.0) < 1e-15);
         assert!(retention_ratio(1.2e-3, 0.3e-3) <= RETENTION_RATIO_MAX);
         assert!(rel(permeability_ratio(1.0e-3, 0.2e-3), 5.0) < 1e-15);
@@ -439,7 +439,7 @@ mod tests {
     #[test]
     fn screen_entrance_works() {
         // Orifice equation; r_s = 0.1 m, L = 10 m; rows (Q, A_o, Cd, v_slot, Δh) computed
-        // with numpy (PHYSICS.md §3). 7 printed digits: 1e-6 relative.
+        // with numpy (docs/physics.md §3). 7 printed digits: 1e-6 relative.
         let rows = [
             (0.01, 0.10, 0.6, 1.591_549e-2, 3.587_460e-5),
             (0.05, 0.10, 0.6, 7.957_747e-2, 8.968_650e-4),
@@ -452,13 +452,13 @@ mod tests {
                 "Q={q}, A_o={a_o}"
             );
             assert!(rel(orifice_screen_loss_m(q, 0.1, 10.0, a_o, cd), dh) < 1e-6);
-            // The loss follows the flow direction (PHYSICS.md §3).
+            // The loss follows the flow direction (docs/physics.md §3).
             assert_eq!(
                 orifice_screen_loss_m(-q, 0.1, 10.0, a_o, cd),
                 -orifice_screen_loss_m(q, 0.1, 10.0, a_o, cd)
             );
         }
-        // Q = 1.884956e-2 m³/s reaches 0.03 m/s at A_o = 0.10 (computed, PHYSICS.md §3).
+        // Q = 1.884956e-2 m³/s reaches 0.03 m/s at A_o = 0.10 (computed, docs/physics.md §3).
         assert!(rel(slot_velocity_m_s(1.884_956e-2, 0.1, 10.0, 0.10), 0.03) < 1e-6);
     }
 

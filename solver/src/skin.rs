@@ -238,7 +238,7 @@ pub fn jacob_efficiency(b: f64, c: f64, q: f64) -> f64 {
 mod tests {
     use super::*;
 
-    /// Parameter set A (PHYSICS.md §8a, invented verification case).
+    /// Parameter set A (docs/physics.md §8a, invented verification case).
     const SET_A: SkinZones = SkinZones {
         screen_radius_m: 0.1,
         borehole_radius_m: 0.2,
@@ -249,7 +249,7 @@ mod tests {
         invaded_conductivity_m_s: 5e-5,
         formation_conductivity_m_s: 1e-4,
     };
-    /// Set A: screened thickness b \[m\] and outer radius R \[m\] (PHYSICS.md §8a).
+    /// Set A: screened thickness b \[m\] and outer radius R \[m\] (docs/physics.md §8a).
     const SET_A_B_M: f64 = 10.0;
     const SET_A_R_M: f64 = 200.0;
 
@@ -258,7 +258,7 @@ mod tests {
 
     #[test]
     fn composite_skin_works_for_set_a() {
-        // Set A skins, computed with numpy (PHYSICS.md §2.4).
+        // Set A skins, computed with numpy (docs/physics.md §2.4).
         let s = composite_skin(&SET_A);
         assert!((s.pack - -0.679_284).abs() <= SIX_DECIMALS, "{}", s.pack);
         assert!((s.cake - 1.000_000).abs() <= SIX_DECIMALS, "{}", s.cake);
@@ -273,7 +273,7 @@ mod tests {
     #[test]
     fn efficiency_and_effective_radius_work_for_set_a() {
         // E = 0.860034 and rw_eff = 0.029025 m for set A, computed with numpy
-        // (PHYSICS.md §2.4).
+        // (docs/physics.md §2.4).
         let s = composite_skin(&SET_A).total;
         let e = efficiency(SET_A_R_M, SET_A.screen_radius_m, s);
         assert!((e - 0.860_034).abs() <= SIX_DECIMALS, "{e}");
@@ -287,7 +287,7 @@ mod tests {
     #[test]
     fn thiem_specific_capacity_works_for_set_a() {
         // Set A steady drawdowns at Q = 0.01 m³/s: 14.065969 m with all zones and
-        // 12.097212 m for the formation alone, computed with numpy.log (PHYSICS.md §8a);
+        // 12.097212 m for the formation alone, computed with numpy.log (docs/physics.md §8a);
         // 6 printed decimals. T = K_f b.
         let q = 0.01;
         let t = SET_A.formation_conductivity_m_s * SET_A_B_M;
@@ -321,7 +321,7 @@ mod tests {
     fn cake_interface_vs_ring_works() {
         // δ = 2 mm, r_b = 0.2 m, b = 10 m, K_c = 1e-6 m/s: interface resistance
         // R_c = 1.591549e+02 s/m² and ring resistance 1.599561e+02 s/m², 0.50 % higher;
-        // computed with numpy.log (PHYSICS.md §2.1). Resistance = skin/(2π K_f b) for the
+        // computed with numpy.log (docs/physics.md §2.1). Resistance = skin/(2π K_f b) for the
         // skin, plus the formation's own ln(r_b/(r_b − δ))/(2π K_f b) for the ring, which
         // Hawkins writes relative to formation. 7 printed digits: 1e-6 relative.
         let (k_f, k_c, delta, r_b, b) = (1e-4, 1e-6, 2e-3, 0.2, 10.0);
@@ -340,7 +340,7 @@ mod tests {
 
     #[test]
     fn hawkins_skin_tends_to_thin_cake_skin() {
-        // Derived in PHYSICS.md §2.3: for a ring r_b − δ..r_b, Hawkins → (K_f/K_c − 1) δ/r_b
+        // Derived in docs/physics.md §2.3: for a ring r_b − δ..r_b, Hawkins → (K_f/K_c − 1) δ/r_b
         // as δ → 0. The relative gap to s_c is K_c/K_f plus about δ/(2 r_b) from the ln.
         let (k_f, k_c, r_b) = (1e-4, 1e-8, 0.2);
         for delta in [1e-3, 1e-4, 1e-5] {
@@ -353,7 +353,7 @@ mod tests {
 
     #[test]
     fn hawkins_skin_sign_follows_contrast() {
-        // Hawkins 1956 (PHYSICS.md §2.2): damage (K_s < K_f) gives s > 0, a more
+        // Hawkins 1956 (docs/physics.md §2.2): damage (K_s < K_f) gives s > 0, a more
         // conductive ring s < 0, an equal ring exactly 0.
         assert!(hawkins_skin(1e-4, 1e-5, 0.1, 0.2) > 0.0);
         assert!(hawkins_skin(1e-4, 1e-2, 0.1, 0.2) < 0.0);
@@ -363,8 +363,8 @@ mod tests {
     #[test]
     fn patchy_cake_skin_limits_work() {
         // Derived limits (see the function doc): f = 1 gives the strict form
-        // (K_f/K_c − K_f/K_o) δ/r_b of PHYSICS.md §2.3, i.e. s_c (1 − K_c/K_o); f = 0 gives 0.
-        // Set A cake on a set A pack (PHYSICS.md §8a).
+        // (K_f/K_c − K_f/K_o) δ/r_b of docs/physics.md §2.3, i.e. s_c (1 − K_c/K_o); f = 0 gives 0.
+        // Set A cake on a set A pack (docs/physics.md §8a).
         let (k_f, k_c, k_p, delta, r_b) = (1e-4, 1e-6, 5e-3, 2e-3, 0.2);
         let s_c = thin_cake_skin(k_f, k_c, delta, r_b);
         let full = patchy_cake_skin(k_f, k_c, k_p, delta, r_b, 1.0);
@@ -402,14 +402,14 @@ mod tests {
     #[test]
     fn step_drawdown_fit_works() {
         // Synthetic step test B = 100 s/m², C = 2000 s²/m⁵; numpy.linalg.lstsq of s/Q
-        // against Q returns [100, 2000] exactly (PHYSICS.md §9d). Tolerance: round-off of
+        // against Q returns [100, 2000] exactly (docs/physics.md §9d). Tolerance: round-off of
         // the s/Q quotients, 1e-9 relative.
         let q = [0.005, 0.010, 0.015, 0.020];
         let s = [0.55, 1.20, 1.95, 2.80];
         let (b, c) = step_drawdown_fit(&q, &s).unwrap();
         assert!((b / 100.0 - 1.0).abs() < 1e-9, "{b}");
         assert!((c / 2000.0 - 1.0).abs() < 1e-9, "{c}");
-        // Efficiency B Q / s_w per step, printed to 6 decimals (PHYSICS.md §9d).
+        // Efficiency B Q / s_w per step, printed to 6 decimals (docs/physics.md §9d).
         let e = [0.909_091, 0.833_333, 0.769_231, 0.714_286];
         for (&qi, ei) in q.iter().zip(e) {
             assert!(

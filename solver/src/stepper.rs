@@ -1,6 +1,6 @@
 //! The θ-scheme time step, with a Newton iteration for the nonlinear losses.
 //!
-//! Semi-discrete system (PHYSICS.md §1.2): `S dh/dt = −div F(h) + f`, with F the face laws
+//! Semi-discrete system (docs/physics.md §1.2): `S dh/dt = −div F(h) + f`, with F the face laws
 //! of [`crate::faces`]. One step of length Δt solves for the θ-point head
 //! `y = θ h^{n+1} + (1−θ) h^n`:
 //!
@@ -8,7 +8,7 @@
 //! S_j (y_j − h_j^n)/(θΔt) − F_{j−1}(y_{j−1} − y_j) + F_j(y_j − y_{j+1}) = f_j(t^n + θΔt, y)
 //! h^{n+1} = (y − (1−θ) h^n) / θ
 //! ```
-//! For linear faces this is exactly the θ-scheme of PHYSICS.md §1.3 (θ = ½: Crank–Nicolson,
+//! For linear faces this is exactly the θ-scheme of docs/physics.md §1.3 (θ = ½: Crank–Nicolson,
 //! θ = 1: backward Euler). Evaluating the face laws at y (the midpoint form) makes the
 //! discrete energy identity of §1.5 exact for nonlinear faces too: multiplying the step by
 //! y gives storage-energy change + numerical dissipation (θ−½)Σ S Δh² = Δt (power in −

@@ -5,7 +5,7 @@
 //! used with a no-flow boundary.
 //!
 //! ```text
-//! storage of cell i:  S_i = Ss_i π b (r_{i+1/2}² − r_{i−1/2}²)       m²   (PHYSICS.md §1.2)
+//! storage of cell i:  S_i = Ss_i π b (r_{i+1/2}² − r_{i−1/2}²)       m²   (docs/physics.md §1.2)
 //! storage of the well: C = π r_c² (free surface) or as given          m²
 //! ```
 

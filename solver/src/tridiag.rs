@@ -1,4 +1,4 @@
-//! Tridiagonal systems: Thomas' elimination (L.H. Thomas 1949; PHYSICS.md §1.4) run from
+//! Tridiagonal systems: Thomas' elimination (L.H. Thomas 1949; docs/physics.md §1.4) run from
 //! both ends at once (the "twisted" or burn-at-both-ends variant).
 //!
 //! ```text

@@ -218,12 +218,12 @@ impl Water {
 mod tests {
     use super::*;
 
-    /// 1 darcy \[m²\] (PHYSICS.md §5.3, as printed there).
+    /// 1 darcy \[m²\] (docs/physics.md §5.3, as printed there).
     const DARCY_M2: f64 = 9.869_233e-13;
 
     /// Rows (t, ρ, μ, ν, ρg/μ, K for 1 darcy) of the water table: IAPWS-95 density and
     /// IAPWS 2008 viscosity, values computed with iapws.IAPWS95(T=273.15+t, P=0.101325)
-    /// (PHYSICS.md §5.3).
+    /// (docs/physics.md §5.3).
     const IAPWS_ROWS: [(f64, f64, f64, f64, f64, f64); 3] = [
         (
             10.0,
@@ -258,7 +258,7 @@ mod tests {
     #[test]
     fn density_kg_m3_works() {
         // Tanaka et al. 2001 formula against IAPWS-95 values computed with iapws.IAPWS95
-        // (PHYSICS.md §5.3). Tolerance 2e-3 kg/m³: the formula's stated maximum deviation
+        // (docs/physics.md §5.3). Tolerance 2e-3 kg/m³: the formula's stated maximum deviation
         // from IAPWS-95 over 0–40 °C is 1.1e-3 kg/m³.
         for &(t, rho, ..) in &IAPWS_ROWS {
             let got = density_kg_m3(t);
@@ -269,7 +269,7 @@ mod tests {
     #[test]
     fn density_kg_m3_peaks_near_4_c() {
         // Tanaka et al. 2001: the formula's maximum is a5 = 999.974950 kg/m³ at t = −a1
-        // = 3.983035 °C (PHYSICS.md §5.3).
+        // = 3.983035 °C (docs/physics.md §5.3).
         assert!((density_kg_m3(3.983_035) - 999.974_950).abs() < 1e-9);
         assert!(density_kg_m3(3.0) < density_kg_m3(3.983_035));
         assert!(density_kg_m3(5.0) < density_kg_m3(3.983_035));
@@ -278,7 +278,7 @@ mod tests {
     #[test]
     fn viscosity_pa_s_works_at_table_nodes() {
         // IAPWS 2008 viscosity computed with iapws.IAPWS95(T=273.15+t, P=0.101325).mu
-        // (PHYSICS.md §5.3, 8 digits). The interpolation table prints 6 digits, so each
+        // (docs/physics.md §5.3, 8 digits). The interpolation table prints 6 digits, so each
         // node may differ from these by half a unit of its last digit: 5e-9 Pa s.
         for &(t, _, mu, ..) in &IAPWS_ROWS {
             let got = viscosity_pa_s(t);
@@ -305,7 +305,7 @@ mod tests {
 
     #[test]
     fn viscosity_vogel_pa_s_works() {
-        // Vogel-type fit against IAPWS values computed with iapws.IAPWS95 (PHYSICS.md
+        // Vogel-type fit against IAPWS values computed with iapws.IAPWS95 (docs/physics.md
         // §5.3); the fit's stated maximum relative deviation over 0–40 °C is 9.3e-4.
         for &(t, _, mu, ..) in &IAPWS_ROWS {
             let got = viscosity_vogel_pa_s(t);
@@ -316,7 +316,7 @@ mod tests {
     #[test]
     fn viscosity_pa_s_uses_vogel_fit_outside_range() {
         // Documented behaviour: outside 0–40 °C the Vogel fit is returned unchanged, and
-        // it continues the table within the fit's 9.3e-4 (PHYSICS.md §5.3) at the ends.
+        // it continues the table within the fit's 9.3e-4 (docs/physics.md §5.3) at the ends.
         assert_eq!(viscosity_pa_s(45.0), viscosity_vogel_pa_s(45.0));
         assert_eq!(viscosity_pa_s(-1.0), viscosity_vogel_pa_s(-1.0));
         let just_above = viscosity_pa_s(40.0 + 1e-9);
@@ -328,7 +328,7 @@ mod tests {
     #[test]
     fn water_at_celsius_works() {
         // ν, ρg/μ and K for 1 darcy from the §5.3 rows (computed with iapws.IAPWS95,
-        // PHYSICS.md §5.3). Tolerance 6e-6 relative: the viscosity nodes carry up to
+        // docs/physics.md §5.3). Tolerance 6e-6 relative: the viscosity nodes carry up to
         // 4.4e-6 relative rounding (6 digits) and the density formula 1.1e-6.
         for &(t, _, _, nu, rho_g_mu, k_darcy) in &IAPWS_ROWS {
             let w = Water::at_celsius(t);
@@ -347,7 +347,7 @@ mod tests {
     #[test]
     fn water_conversions_work_with_table_properties() {
         // With ρ, μ exactly as printed, ν, ρg/μ and K for 1 darcy must match the printed
-        // 7 digits (computed with iapws.IAPWS95, PHYSICS.md §5.3): 1e-6 relative.
+        // 7 digits (computed with iapws.IAPWS95, docs/physics.md §5.3): 1e-6 relative.
         for &(t, rho, mu, nu, rho_g_mu, k_darcy) in &IAPWS_ROWS {
             let w = Water {
                 density_kg_m3: rho,

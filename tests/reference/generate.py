@@ -16,7 +16,7 @@ Two kinds of checks run before anything is written:
   Stehfest, the Laplace inversion against the real-integral form, scipy against mpmath,
   closed form against numerical quadrature ...). The largest relative disagreement is
   stored as "cross_check_max_rel_diff"; above CROSS_CHECK_TOL the script exits non-zero.
-* Printed-table checks: where PHYSICS.md (the project physics reference) prints the same quantity, the value
+* Printed-table checks: where docs/physics.md (the project physics reference) prints the same quantity, the value
   must round to the printed digits. Any mismatch makes the script exit non-zero.
 
 Nothing is written unless all checks pass. The output is deterministic: no random
@@ -92,7 +92,7 @@ def f(x):
 
 
 def check_printed(label, value, printed, erratum=None):
-    """Assert that value rounds to the digits of the string printed in PHYSICS.md.
+    """Assert that value rounds to the digits of the string printed in docs/physics.md.
 
     erratum: for a printed value shown (by an independent high-precision computation) to
     be off by one unit in its last digit, a short reason. The value must then lie within
@@ -111,7 +111,7 @@ def check_printed(label, value, printed, erratum=None):
             f"{label}: computed {value!r} does not round to printed {printed}"
         )
     elif erratum:
-        ERRATA.append(f"{label}: PHYSICS.md prints {printed}, computed {value!r}; {erratum}")
+        ERRATA.append(f"{label}: an earlier printing of the physics reference had {printed}, computed {value!r}; {erratum}")
 
 
 def versions():
@@ -180,7 +180,7 @@ SET_A = {
     "K_invaded": 5e-5,
     "K_formation": 1e-4,
 }
-"""Parameter set A of PHYSICS.md 8a (without the rate)."""
+"""Parameter set A of docs/physics.md section 8a (without the rate)."""
 
 
 def set_a_resistances(p):
@@ -200,11 +200,11 @@ def set_a_resistances(p):
 
 
 def thiem_composite():
-    """Steady composite Thiem solution, PHYSICS.md 8a set A; skins per PHYSICS.md 2.4.
+    """Steady composite Thiem solution, docs/physics.md section 8a set A; skins per docs/physics.md section 2.4.
 
     Thiem, G., 1906, "Hydrologische Methoden", Leipzig (from memory - verify); skin after
     Hawkins, M.F. Jr., 1956, "A note on the skin effect", Trans. AIME 207, 356-357 (from
-    memory - verify); thin-cake skin derived in PHYSICS.md 2.3.
+    memory - verify); thin-cake skin derived in docs/physics.md section 2.3.
     """
     p = dict(SET_A, Q=-0.01)
     res = set_a_resistances(p)
@@ -240,7 +240,7 @@ def thiem_composite():
         rel_diff(h_rw, q * res["total"]),
     ]
 
-    # PHYSICS.md 8a and 2.4 printed values (drawdown = -h for pumping).
+    # docs/physics.md section 8a and 2.4 printed values (drawdown = -h for pumping).
     for key, txt in [
         ("pack", "2.206356e+00"),
         ("cake", "1.591549e+02"),
@@ -279,10 +279,10 @@ def thiem_composite():
     return {
         "source": (
             "Steady composite Thiem solution (Thiem, G., 1906, 'Hydrologische Methoden', "
-            "Leipzig; from memory - verify), series resistances of PHYSICS.md 8a, "
-            "parameter set A. Skins per PHYSICS.md 2.4 after Hawkins, M.F. Jr., 1956, "
+            "Leipzig; from memory - verify), series resistances of docs/physics.md section 8a, "
+            "parameter set A. Skins per docs/physics.md section 2.4 after Hawkins, M.F. Jr., 1956, "
             "'A note on the skin effect', Trans. AIME 207, 356-357 (from memory - "
-            "verify); thin-cake skin derived in PHYSICS.md 2.3."
+            "verify); thin-cake skin derived in docs/physics.md section 2.3."
         ),
         "computed_with": {
             "versions": versions(),
@@ -297,7 +297,7 @@ def thiem_composite():
         "conventions": (
             "SI units; Q positive outward from the well (pumping negative); heads are "
             "signed changes from static with h(R) = 0; efficiency = ln(R/rw)/(ln(R/rw) + "
-            "s_tot) (PHYSICS.md 2.4)"
+            "s_tot) (docs/physics.md section 2.4)"
         ),
         "params": {k: f(v) for k, v in p.items()},
         "expected": {
@@ -338,7 +338,7 @@ def theis():
     """Theis (1935) line source against the finite-radius solution (van Everdingen & Hurst 1949).
 
     Theis, C.V., 1935, Trans. AGU 16, 519-524; van Everdingen, A.F., Hurst, W., 1949,
-    Trans. AIME 186 (details from memory - verify). PHYSICS.md 8b and 8e (C_D = 0, Sk = 0).
+    Trans. AIME 186 (details from memory - verify). docs/physics.md section 8b and 8e (C_D = 0, Sk = 0).
     """
     b, k, ss, rw = 10.0, 1e-4, 1e-5, 0.1
     t_m, s_st = k * b, ss * b
@@ -378,7 +378,7 @@ def theis():
             }
             (points if line_diff < keep_tol else rejected).append(row)
 
-    # PHYSICS.md 8b well-function table and worked examples.
+    # docs/physics.md section 8b well-function table and worked examples.
     for u, txt in [
         (1e-4, "8.633224705"),
         (1e-3, "6.331539364"),
@@ -410,7 +410,7 @@ def theis():
             "surface and the rate and duration of discharge of a well using ground-water "
             "storage', Trans. AGU 16, 519-524 (line source, s = Q/(4 pi T) E1(u)); "
             "finite-radius constant-rate solution of van Everdingen, A.F., Hurst, W., "
-            "1949, Trans. AIME 186 (from memory - verify). PHYSICS.md 8b, 8e."
+            "1949, Trans. AIME 186 (from memory - verify). docs/physics.md section 8b, 8e."
         ),
         "computed_with": {
             "versions": versions(),
@@ -478,11 +478,11 @@ def periodic_case(t_m, s_st, rw, h0, period, radii):
 
 
 def periodic():
-    """Periodic well-face head in an infinite confined aquifer, PHYSICS.md 8c.
+    """Periodic well-face head in an infinite confined aquifer, docs/physics.md section 8c.
 
     Periodic-steady-state (frequency-domain) solution of the radial diffusion equation:
     h = Re{H0 K0(a r)/K0(a rw) e^{iwt}}, a = sqrt(i w S/T) (textbook result; no specific
-    publication checked in PHYSICS.md). Mean power per PHYSICS.md 7.3.
+    publication checked in docs/physics.md). Mean power per docs/physics.md section 7.3.
     """
     t_m, s_st, rw, h0 = 1e-3, 1e-4, 0.1, 1.0
     base = [0.2, 0.5, 1.0, 2.0, 5.0]
@@ -503,7 +503,7 @@ def periodic():
             "mean_power_w": f(power),
         })
 
-    # PHYSICS.md 8c tables (P = 2 s including r = 10 m, P = 100 s) and 7.3 powers.
+    # docs/physics.md section 8c tables (P = 2 s including r = 10 m, P = 100 s) and 7.3 powers.
     tables = {
         2.0: [(0.2, "7.85386470e-01", "0.06889648"), (0.5, "5.11740905e-01", "0.22921076"),
               (1.0, "3.21316230e-01", "0.45762849"), (2.0, "1.61226932e-01", "0.88003157"),
@@ -522,7 +522,7 @@ def periodic():
         diffs += d
         for (r, amp_txt, lag_txt), am, lg in zip(rows, amp, lag):
             check_printed(f"8c P={period} amplitude r={r}", am, amp_txt)
-            # PHYSICS.md prints 4.08676878 for P = 2 s, r = 10 m; mpmath.besselk at 40
+            # an earlier printing of the physics reference had 4.08676878 for P = 2 s, r = 10 m; mpmath.besselk at 40
             # digits gives 2 pi - arg(K0(10 a)/K0(0.1 a)) = 4.0867687732 rad.
             lag_erratum = ("last digit off by one; mpmath.besselk at 40 digits gives "
                            "4.0867687732" if (period, r) == (2.0, 10.0) else None)
@@ -545,8 +545,8 @@ def periodic():
             "Periodic steady state of the radial diffusion equation with well-face head "
             "Re{H0 e^{iwt}} in an infinite homogeneous confined aquifer: h = Re{H0 K0(a r)/"
             "K0(a rw) e^{iwt}}, a = sqrt(i w S/T), Q_hat = 2 pi rw T a H0 K1(a rw)/K0(a rw) "
-            "(PHYSICS.md 8c; standard textbook result, no specific publication checked). "
-            "Mean power 0.5 rho g Re(H0 conj(Q_hat)) per PHYSICS.md 7.3."
+            "(docs/physics.md section 8c; standard textbook result, no specific publication checked). "
+            "Mean power 0.5 rho g Re(H0 conj(Q_hat)) per docs/physics.md section 7.3."
         ),
         "computed_with": {
             "versions": versions(),
@@ -604,7 +604,7 @@ def slug_integral(alpha, beta):
 
 
 def slug_cbp():
-    """Slug test, Cooper, Bredehoeft & Papadopulos (1967), PHYSICS.md 8d.
+    """Slug test, Cooper, Bredehoeft & Papadopulos (1967), docs/physics.md section 8d.
 
     Cooper, H.H., Bredehoeft, J.D., Papadopulos, I.S., 1967, "Response of a
     finite-diameter well to an instantaneous charge of water", Water Resour. Res. 3(1),
@@ -633,7 +633,7 @@ def slug_cbp():
         "source": (
             "Cooper, H.H., Bredehoeft, J.D., Papadopulos, I.S., 1967, 'Response of a "
             "finite-diameter well to an instantaneous charge of water', Water Resour. Res. "
-            "3(1), 263-269 (PHYSICS.md 8d)."
+            "3(1), 263-269 (docs/physics.md section 8d)."
         ),
         "computed_with": {
             "versions": versions(),
@@ -674,14 +674,14 @@ def storage_skin_fbar(c_d, skin):
 
 
 def papadopulos_cooper():
-    """Constant rate with wellbore storage and skin, PHYSICS.md 8e.
+    """Constant rate with wellbore storage and skin, docs/physics.md section 8e.
 
     Papadopulos, I.S., Cooper, H.H., 1967, "Drawdown in a well of large diameter", Water
     Resour. Res. 3(1), 241-244; Agarwal, R.G., Al-Hussainy, R., Ramey, H.J., 1970, SPE J.
     10(3), 279-290 (citations from memory - verify).
     """
     tds = [1e1, 1e2, 3e2, 1e3, 3e3, 1e4, 3e4, 1e5, 3e5, 1e6, 1e7]
-    printed = {  # PHYSICS.md 8e, tD = 1e1 .. 1e7
+    printed = {  # docs/physics.md section 8e, tD = 1e1 .. 1e7
         (0.0, 0.0): ["1.650894705", "2.722894443", "3.860590596", "5.009984924",
                      "6.161035384", "7.312298533", "8.463587622"],
         (100.0, 0.0): ["0.09578724716", "0.7975425109", "3.268107344", "4.956669143",
@@ -714,7 +714,7 @@ def papadopulos_cooper():
             "investigation of wellbore storage and skin effect in unsteady liquid flow: I. "
             "Analytical treatment', SPE J. 10(3), 279-290; C_D = 0, Sk = 0 is van "
             "Everdingen & Hurst 1949, Trans. AIME 186 (citations from memory - verify). "
-            "PHYSICS.md 8e."
+            "docs/physics.md section 8e."
         ),
         "computed_with": {
             "versions": versions(),
@@ -748,7 +748,7 @@ def flow_decline_fbar(p):
 
 
 def flow_decline():
-    """Flow decline at constant well head, Jacob & Lohman (1952), PHYSICS.md 8f.
+    """Flow decline at constant well head, Jacob & Lohman (1952), docs/physics.md section 8f.
 
     Jacob, C.E., Lohman, S.W., 1952, Trans. AGU 33, 559-569 (from memory - verify).
     """
@@ -764,7 +764,7 @@ def flow_decline():
         if td in printed:
             check_printed(f"8f G({td})", val, printed[td])
 
-    # Dimensional examples of PHYSICS.md 8f / 1.3 (T = 1e-3, S = 1e-4, rw = 0.1, s_w = 1).
+    # Dimensional examples of docs/physics.md section 8f / 1.3 (T = 1e-3, S = 1e-4, rw = 0.1, s_w = 1).
     t_m, s_st, rw, s_w = 1e-3, 1e-4, 0.1, 1.0
     examples = []
     for t, txt in [(0.1, "2.1712175e-3"), (0.8, "1.6205096e-3")]:
@@ -779,7 +779,7 @@ def flow_decline():
         "source": (
             "Flow to a well at constant drawdown in an infinite confined aquifer: Jacob, "
             "C.E., Lohman, S.W., 1952, Trans. AGU 33, 559-569 (from memory - verify). "
-            "PHYSICS.md 8f."
+            "docs/physics.md section 8f."
         ),
         "computed_with": {
             "versions": versions(),
@@ -811,7 +811,7 @@ def flow_decline():
 
 
 def forchheimer_steady():
-    """Steady radial Forchheimer head drop, PHYSICS.md 4.3 (closed form derived there).
+    """Steady radial Forchheimer head drop, docs/physics.md section 4.3 (closed form derived there).
 
     Forchheimer, P., 1901, "Wasserbewegung durch Boden", Z. Ver. Dtsch. Ing. 45 (from
     memory - verify); pack coefficients from Ergun, S., 1952, Chem. Eng. Prog. 48(2),
@@ -823,7 +823,7 @@ def forchheimer_steady():
         ("K = 1e-3, beta = 1e3 example",
          {"K": 1e-3, "beta": 1e3, "Q": 0.05, "b": 5.0, "r1": 0.1, "r2": 1.0},
          ("3.66467799e+00", "2.27972663e-02", "3.68747526e+00")),
-        ("Ergun pack of PHYSICS.md 4.2 (d = 2 mm, n = 0.35, water at 20 C)",
+        ("Ergun pack of docs/physics.md section 4.2 (d = 2 mm, n = 0.35, water at 20 C)",
          {"K": k_pack, "beta": beta_pack, "Q": 0.01, "b": 10.0, "r1": 0.1, "r2": 0.2,
           "d": 2e-3, "n": 0.35, "rho": rho, "mu": mu},
          ("4.171101e-03", "1.713195e-04", "4.3424207773e-03")),
@@ -859,7 +859,7 @@ def forchheimer_steady():
         "source": (
             "Steady radial flow with the Forchheimer law -dh/dr = q/K + beta q|q| "
             "(Forchheimer, P., 1901, 'Wasserbewegung durch Boden', Z. Ver. Dtsch. Ing. 45; "
-            "from memory - verify), integrated in closed form in PHYSICS.md 4.3; pack "
+            "from memory - verify), integrated in closed form in docs/physics.md section 4.3; pack "
             "coefficients from Ergun, S., 1952, 'Fluid flow through packed columns', Chem. "
             "Eng. Prog. 48(2), 89-94."
         ),
@@ -890,7 +890,7 @@ def forchheimer_steady():
 
 
 def grain_size():
-    """Water properties and grain-size permeability, PHYSICS.md 4.1, 4.2, 4.4, 5.1-5.3.
+    """Water properties and grain-size permeability, docs/physics.md section 4.1, 4.2, 4.4, 5.1-5.3.
 
     IAPWS-95 density (Wagner & Pruss 2002) and IAPWS 2008 viscosity (Huber et al. 2009)
     via iapws; Ergun 1952; Kozeny 1927 / Carman 1937; Hazen 1892/1911 (from memory -
@@ -988,7 +988,7 @@ def grain_size():
             "columns', Chem. Eng. Prog. 48(2), 89-94; Kozeny 1927 (Sitzungsber. Akad. Wiss. "
             "Wien 136) / Carman 1937 (Trans. Inst. Chem. Eng. 15), constant 180; Hazen, A., "
             "1892 and 1911 (Trans. ASCE 73, discussion); Forchheimer 1901. Journal details "
-            "from memory - verify. PHYSICS.md 4.1, 4.2, 4.4, 5.1, 5.2, 5.3."
+            "from memory - verify. docs/physics.md section 4.1, 4.2, 4.4, 5.1, 5.2, 5.3."
         ),
         "computed_with": {
             "versions": versions(),
@@ -1027,7 +1027,7 @@ def grain_size():
 
 
 def screen_orifice():
-    """Screen entrance loss as an orifice, PHYSICS.md section 3.
+    """Screen entrance loss as an orifice, docs/physics.md section 3.
 
     Orifice equation (any fluid-mechanics text); 0.03 m/s entrance-velocity limit is
     common practice (e.g. Driscoll 1986, "Groundwater and Wells"; from memory - verify).
@@ -1060,7 +1060,7 @@ def screen_orifice():
     return {
         "source": (
             "Orifice equation applied to the screen open area (any fluid-mechanics text), "
-            "PHYSICS.md section 3; entrance-velocity limit 0.03 m/s is common practice "
+            "docs/physics.md section 3; entrance-velocity limit 0.03 m/s is common practice "
             "(e.g. Driscoll 1986, 'Groundwater and Wells', 2nd ed.; from memory - verify)."
         ),
         "computed_with": {
@@ -1090,7 +1090,7 @@ def screen_orifice():
 def collapse():
     """Thin-ring collapse pressure (Timoshenko & Gere 1961) and Terzaghi critical gradient.
 
-    PHYSICS.md 9a and 9b. Check values only: no safety factor is included.
+    docs/physics.md section 9a and 9b. Check values only: no safety factor is included.
     """
     e_mod, nu = 2.758e9, 0.38
     rho, _ = water(20.0)
@@ -1134,7 +1134,7 @@ def collapse():
             "Pc = 2 E/(1 - nu^2) (1/(DR - 1))^3 (Timoshenko, S.P., Gere, J.M., 1961, "
             "'Theory of Elastic Stability'; the thermoplastic well-casing standard ASTM F480 "
             "uses this form - from memory, verify). Critical gradient i_c = (Gs - 1)(1 - n) "
-            "(Terzaghi, K., 1943, 'Theoretical Soil Mechanics'). PHYSICS.md 9a, 9b. No "
+            "(Terzaghi, K., 1943, 'Theoretical Soil Mechanics'). docs/physics.md section 9a, 9b. No "
             "safety factor is included; real casing and screen ratings come from the "
             "manufacturer and local well codes."
         ),
@@ -1165,10 +1165,10 @@ def collapse():
 
 
 def energy_dissipation():
-    """Darcy / Forchheimer dissipation, PHYSICS.md 7.1, 7.2 (set A) and 7.4.
+    """Darcy / Forchheimer dissipation, docs/physics.md section 7.1, 7.2 (set A) and 7.4.
 
     Dissipation phi = rho g q . (-grad h) with Darcy's law and the Forchheimer law
-    (Forchheimer 1901, from memory - verify); derived in PHYSICS.md section 7.
+    (Forchheimer 1901, from memory - verify); derived in docs/physics.md section 7.
     """
     rho, mu = water(20.0)
     diffs = []
@@ -1181,7 +1181,7 @@ def energy_dissipation():
     q_p = 0.05
     visc = rho * G * q_p**2 / k_p
     inert = rho * G * beta_p * q_p**3
-    # PHYSICS.md 7.1 evaluated these with the K and beta rounded as printed in 4.2
+    # docs/physics.md section 7.1 evaluated these with the K and beta rounded as printed in 4.2
     # (2.644812e-2 m/s, 1352.685 s^2/m^2); the full-precision values stored below differ
     # from them by about 1e-7 relative. Check the printed numbers with the rounded inputs.
     check_printed("7.1 Ergun pack viscous (K as printed in 4.2)",
@@ -1210,7 +1210,7 @@ def energy_dissipation():
     q_b = q_rate / (2.0 * math.pi * p["rb"] * p["b"])
     diffs.append(rel_diff(powers["cake"],
                           rho * G * q_rate * q_b * p["cake_thickness"] / p["K_cake"]))
-    # PHYSICS.md prints 1.557978e+02 W for the cake; rho g Q^2 R_c = 155.797858... W,
+    # an earlier printing of the physics reference had 1.557978e+02 W for the cake; rho g Q^2 R_c = 155.797858... W,
     # which rounds to 1.557979e+02 (the printed value is truncated).
     cake_erratum = "last digit truncated, rho g Q^2 R_c = 155.797858 W"
     for z, txt in [("pack", "2.159817"), ("cake", "1.557978e+02"), ("invaded", "2.855123e+02"),
@@ -1235,7 +1235,7 @@ def energy_dissipation():
             "Dissipation density phi = rho g q . (-grad h) with Darcy's law and the "
             "Forchheimer law (Forchheimer, P., 1901, Z. Ver. Dtsch. Ing. 45; from memory - "
             "verify); zone powers of the steady composite Thiem solution (Thiem 1906); "
-            "derived in PHYSICS.md 7.1, 7.2, 7.4. Ergun 1952 coefficients for the pack."
+            "derived in docs/physics.md section 7.1, 7.2, 7.4. Ergun 1952 coefficients for the pack."
         ),
         "computed_with": {
             "versions": versions(),
@@ -1267,7 +1267,7 @@ def energy_dissipation():
 
 
 def step_drawdown():
-    """Synthetic step-drawdown fit s_w = B Q + C Q^2, Jacob (1947), PHYSICS.md 9d.
+    """Synthetic step-drawdown fit s_w = B Q + C Q^2, Jacob (1947), docs/physics.md section 9d.
 
     Jacob, C.E., 1947, "Drawdown test to determine effective radius of artesian well",
     Trans. ASCE 112, 1047-1070 (pages from memory - verify).
@@ -1295,7 +1295,7 @@ def step_drawdown():
         "source": (
             "Step-drawdown relation s_w = B Q + C Q^2 (Jacob, C.E., 1947, 'Drawdown test to "
             "determine effective radius of artesian well', Trans. ASCE 112, 1047-1070; "
-            "pages from memory - verify). Synthetic data, PHYSICS.md 9d."
+            "pages from memory - verify). Synthetic data, docs/physics.md section 9d."
         ),
         "computed_with": {
             "versions": versions(),

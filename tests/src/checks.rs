@@ -185,7 +185,7 @@ impl StepObserver for Recorder {
     }
 }
 
-/// Parameter set A of PHYSICS.md §8a as a model (constant-rate pumping).
+/// Parameter set A of docs/physics.md §8a as a model (constant-rate pumping).
 pub fn set_a(v: &serde_json::Value) -> Model {
     let p = |k: &str| num(v, &format!("/params/{k}"));
     let mut m = homogeneous(
@@ -244,7 +244,7 @@ fn thiem() -> Vec<CheckResult> {
     let rd = h[kd + 1]
         + boreflux_solver::faces::Face::segment_drop(&st.disc.faces[kd].segments()[1], q_d);
     let q_face = q_wall / (2.0 * PI * g.r_face[kb] * model.well.screen_length_m);
-    // Round-off of a 100-cell tridiagonal solve is ~1e-13; 1e-9 is PHYSICS.md §11's bound.
+    // Round-off of a 100-cell tridiagonal solve is ~1e-13; 1e-9 is docs/physics.md §11's bound.
     let tol = 1e-9;
     let rel = |a: f64, b: f64| ((a - b) / b).abs();
     vec![
@@ -319,7 +319,7 @@ fn theis() -> Vec<CheckResult> {
             let i = rec.index_of(times[k]).expect("landed on the sample time");
             let s_model = -rec.heads[k][i];
             let want = p["s_theis"].as_f64().unwrap();
-            // Issue #2 acceptance: 0.5 %; PHYSICS.md §1.6 observed ~1e-3 at this resolution.
+            // Issue #2 acceptance: 0.5 %; docs/physics.md §1.6 observed ~1e-3 at this resolution.
             CheckResult::new(
                 "theis",
                 format!(
@@ -471,7 +471,7 @@ fn slug() -> Vec<CheckResult> {
             .zip(&want)
             .map(|(&t, &w)| (rec.well_head[rec.index_of(t).unwrap()] - w).abs())
             .fold(0.0, f64::max);
-        // PHYSICS.md §11: 2e-4 absolute in H/H0 for this scheme (issue #2 accepts 5e-3).
+        // docs/physics.md §11: 2e-4 absolute in H/H0 for this scheme (issue #2 accepts 5e-3).
         out.push(CheckResult::new(
             "slug",
             format!("H/H0, alpha = {alpha:e}, worst of {} times", times.len()),
@@ -516,7 +516,7 @@ fn storage() -> Vec<CheckResult> {
         model.well.casing_radius_m = rc;
         model.well.storage_m2 = Well::free_surface_storage(rc);
         if skin > 0.0 {
-            // A thin cake just outside the screen: s = K_f δ/(K_c r_b) (PHYSICS.md §2.3).
+            // A thin cake just outside the screen: s = K_f δ/(K_c r_b) (docs/physics.md §2.3).
             let rb = 1.05 * rw;
             model.pack.outer_radius_m = rb;
             let delta = 1e-4;
@@ -533,7 +533,7 @@ fn storage() -> Vec<CheckResult> {
         // Intermediate and late times (issue #2). Before tD ≈ 1e3 the cake standing in for
         // the skin sits at 1.05 rw, not at rw, and its ring of storage shows.
         let worst = worst_pwd_error(&rec, &times, &tds, &want, t_m / q);
-        // PHYSICS.md §11: 2e-3 relative for storage plus skin (issue #2 accepts 1 %).
+        // docs/physics.md §11: 2e-3 relative for storage plus skin (issue #2 accepts 1 %).
         out.push(CheckResult::new(
             "storage",
             format!("pwD, C_D = {cd}, skin = {skin}, tD ≥ 1e3"),
@@ -581,7 +581,7 @@ fn balance() -> Vec<CheckResult> {
     model.formation.outer_radius_m = None;
     let mut rec = Recorder::at(&[]);
     let sum = run(&model, &mut rec, Reporting::default()).expect("run");
-    let src = "discrete identities of the θ-scheme (PHYSICS.md §1.5, §7.3)";
+    let src = "discrete identities of the θ-scheme (docs/physics.md §1.5, §7.3)";
     vec![
         // Issue #2: every step closes to 1e-10; round-off of the sums is ~1e-14.
         CheckResult::new(

@@ -28,7 +28,7 @@ fn constant_head(h: f64) -> Drive {
     })
 }
 
-/// Steady radial Forchheimer flow at constant rate (PHYSICS.md §4.3).
+/// Steady radial Forchheimer flow at constant rate (docs/physics.md §4.3).
 pub fn forchheimer() -> Vec<CheckResult> {
     let v = load(data::FORCHHEIMER);
     let src = source(&v);
@@ -53,7 +53,7 @@ pub fn forchheimer() -> Vec<CheckResult> {
         let st = steady(&model);
         let drop = -st.heads()[0];
         // The face laws integrate the Forchheimer law exactly over each half cell, so the
-        // steady drop is exact up to the Newton tolerance (PHYSICS.md §11: 1e-8).
+        // steady drop is exact up to the Newton tolerance (docs/physics.md §11: 1e-8).
         out.push(CheckResult::new(
             "development",
             format!(
@@ -141,7 +141,7 @@ pub fn cake_skin() -> Vec<CheckResult> {
     let v = load(data::THIEM);
     let mut model = set_a(&v);
     // A tight, thin cake: Hawkins' (K_f/K_c − 1) ln(r_b/(r_b − δ)) tends to K_f δ/(K_c r_b)
-    // as δ/r_b → 0 and K_c/K_f → 0 (PHYSICS.md §2.3); here both are below 3e-4.
+    // as δ/r_b → 0 and K_c/K_f → 0 (docs/physics.md §2.3); here both are below 3e-4.
     let (delta, kc) = (1e-4, 1e-9);
     model.cake = Some(Cake {
         thickness_m: delta,
@@ -162,7 +162,7 @@ pub fn cake_skin() -> Vec<CheckResult> {
     vec![CheckResult::new(
         "development",
         "thin-cake skin from the steady head jump vs Hawkins (1956)",
-        "Hawkins, M.F. Jr., 1956, Trans. AIME 207, 356-357 (PHYSICS.md §2.2-2.3)",
+        "Hawkins, M.F. Jr., 1956, Trans. AIME 207, 356-357 (docs/physics.md §2.2-2.3)",
         rel(skin, want),
         1e-3, // issue #4: 0.1 %
         "relative",
@@ -300,7 +300,7 @@ fn forchheimer_sine(b: f64) -> Model {
 pub fn nonlinear_energy() -> Vec<CheckResult> {
     let model = forchheimer_sine(2.0);
     let sum = run(&model, &mut Recorder::at(&[]), Reporting::default()).expect("run");
-    let src = "discrete identities of the θ-scheme in midpoint form (solver::stepper, PHYSICS.md §1.5, §7.3)";
+    let src = "discrete identities of the θ-scheme in midpoint form (solver::stepper, docs/physics.md §1.5, §7.3)";
     vec![
         CheckResult::new(
             "development",

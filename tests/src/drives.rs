@@ -198,7 +198,7 @@ pub fn surge_limits() -> Vec<CheckResult> {
     let orifice = CheckResult::new(
         "drives",
         "sealed formation: clearance flow vs the orifice formula",
-        "orifice equation, Q = Cd A sqrt(2g Δh) (PHYSICS.md §3)",
+        "orifice equation, Q = Cd A sqrt(2g Δh) (docs/physics.md §3)",
         rec.worst_orifice,
         1e-3,
         "relative",

@@ -1,4 +1,4 @@
-//! The harmonic method against the analytic periodic steady state (PHYSICS.md §8c).
+//! The harmonic method against the analytic periodic steady state (docs/physics.md §8c).
 //!
 //! The same reference data, radii and periods as the `periodic` group, but solved by
 //! `boreflux_solver::harmonic` (one complex tridiagonal solve, no time stepping), so the
@@ -17,7 +17,7 @@
 //! error and the phase error in radians are each at most the complex relative error to
 //! first order. The mean power is real and compared as it is. The 25 %
 //! covers the O(Δ⁴) terms, (|a| r Δ ln r)² ≈ 5 % at the farthest radius of the P = 2 s
-//! case (a = sqrt(iωS/T), PHYSICS.md §8c), and the interpolation point sitting at another
+//! case (a = sqrt(iωS/T), docs/physics.md §8c), and the interpolation point sitting at another
 //! place in its cell on the finer grid. A last check asks that the error itself falls by
 //! four when Δ ln r is halved, so the estimate rests on an observed second order.
 //!

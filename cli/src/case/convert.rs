@@ -18,7 +18,7 @@ use boreflux_solver::Model;
 use serde_json::{json, Map, Value};
 use std::path::Path;
 
-/// Water temperature when the case gives none: 15 °C, in K (DESIGN.md default).
+/// Water temperature when the case gives none: 15 °C, in K (docs/formats.md default).
 pub const DEFAULT_TEMPERATURE_K: f64 = 288.15;
 /// Offset between kelvin and degrees Celsius, K.
 const CELSIUS_ZERO_K: f64 = 273.15;

@@ -1,6 +1,6 @@
 //! Case files: parsing, units, validation and conversion to the solver model.
 //!
-//! A case file (JSON, see DESIGN.md "Case file") is read in two steps: serde reads it into
+//! A case file (JSON, see docs/formats.md "Case file") is read in two steps: serde reads it into
 //! the raw structs of [`raw`] (user units kept as written, unknown keys rejected with a
 //! hint), then [`convert`] turns those into a checked [`boreflux_solver::Model`] in SI,
 //! filling every default and recording what it derived. Errors name the key path:

@@ -16,7 +16,7 @@ use boreflux_solver::model::{
 use boreflux_solver::run::{DEFAULT_STEPS_PER_CYCLE, DEFAULT_STEPS_PER_DECADE};
 use serde_json::{json, Map, Value};
 
-/// Default backward-Euler start-up steps (DESIGN.md default).
+/// Default backward-Euler start-up steps (docs/formats.md default).
 pub const DEFAULT_STARTUP_STEPS: u64 = 2;
 /// Default θ: Crank–Nicolson.
 pub const DEFAULT_THETA: f64 = 0.5;

@@ -17,14 +17,14 @@ use boreflux_solver::water::Water;
 use serde_json::{json, Value};
 
 /// Orifice discharge coefficient used when the case gives none: sharp-edged slots
-/// (PHYSICS.md §3, typical value from memory — verify).
+/// (docs/physics.md §3, typical value from memory — verify).
 pub const DEFAULT_DISCHARGE_COEFFICIENT: f64 = 0.6;
-/// Formation porosity when the case gives none (DESIGN.md default).
+/// Formation porosity when the case gives none (docs/formats.md default).
 pub const DEFAULT_FORMATION_POROSITY: f64 = 0.3;
 /// Grain specific gravity of quartz sand when the case gives none (common practice, no
 /// source).
 pub const DEFAULT_SPECIFIC_GRAVITY: f64 = 2.65;
-/// Safety factor on the collapse pressure when the case gives none (DESIGN.md brief; the
+/// Safety factor on the collapse pressure when the case gives none (docs/formats.md; the
 /// upper end of the 1.5–2 usually quoted, common practice, no source).
 pub const DEFAULT_SAFETY_FACTOR: f64 = 2.0;
 /// Weight on the shear during inward flow when the case gives none.

@@ -6,7 +6,7 @@
 //! also inside schedule stages): a run never writes over its own input (exit 2). While the
 //! run goes, Ctrl-C (SIGINT) or SIGTERM stops it after the current step; the writers are
 //! then dropped unfinished, which deletes their temporary files, and the run fails with
-//! exit 1 (DESIGN.md: 0 success, 1 runtime failure, 2 bad input).
+//! exit 1 (docs/formats.md: 0 success, 1 runtime failure, 2 bad input).
 
 use super::interrupt::{catch_interrupts, interrupted, INTERRUPTED_MESSAGE};
 use super::outputs::{check_output, same_file_key};

@@ -1,6 +1,6 @@
 //! Generic HDF5 writer: groups, attributes, fixed datasets and growable series.
 //!
-//! Knows nothing of the solver; the run and sweep code decide the layout (DESIGN.md,
+//! Knows nothing of the solver; the run and sweep code decide the layout (docs/formats.md,
 //! "HDF5 layout"). Every dataset gets `units` and `description` string attributes.
 //! Series that grow while a run proceeds buffer one chunk in memory and write it out when
 //! full, so memory stays flat however long the run is:

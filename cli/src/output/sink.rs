@@ -1,4 +1,4 @@
-//! The run's observer: streams every reported step into the HDF5 layout of DESIGN.md (and
+//! The run's observer: streams every reported step into the HDF5 layout of docs/formats.md (and
 //! optionally a CSV file) while the solver runs, so memory stays flat in run length.
 
 use super::csv::{Column, CsvWriter};

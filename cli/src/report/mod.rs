@@ -1,7 +1,7 @@
 //! `boreflux report`: a self-contained HTML report with inline SVG figures from one or more
 //! run files, compared side by side (one table column and one line style per run).
 //!
-//! The report reads only the HDF5 files that `boreflux run` writes (layout in DESIGN.md,
+//! The report reads only the HDF5 files that `boreflux run` writes (layout in docs/formats.md,
 //! "HDF5 layout"), never solver internals; the one thing taken from the solver crate is
 //! the caution text and the slot-velocity rule of thumb it quotes.
 //!

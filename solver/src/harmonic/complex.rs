@@ -1,7 +1,7 @@
 //! Complex numbers and complex tridiagonal elimination for the harmonic method.
 //!
 //! Only what the harmonic solve needs: arithmetic, conjugate, modulus, the unit phasor
-//! e^{iθ}, and Thomas' elimination (L.H. Thomas 1949; PHYSICS.md §1.4) carried over to
+//! e^{iθ}, and Thomas' elimination (L.H. Thomas 1949; docs/physics.md §1.4) carried over to
 //! complex arithmetic, one-sided:
 //!
 //! ```text

@@ -26,11 +26,11 @@ pub const DEFAULT_DRAIN_TIME_S: f64 = 5.0;
 /// Fraction of the nozzle velocity head that reaches the screen when the case gives none.
 /// An assumption with no source (the jet spreads and slows over its standoff).
 pub const DEFAULT_JET_EFFICIENCY: f64 = 0.5;
-/// Nozzles on the jetting tool when the case gives none (2 or 4 are usual, PRACTICE.md
+/// Nozzles on the jetting tool when the case gives none (2 or 4 are usual, docs/practice.md
 /// §1.8).
 pub const DEFAULT_NOZZLES: u32 = 2;
 /// Width of the jet where it meets the screen when the case gives none, m: about a
-/// 7–10 mm nozzle held within 13 mm of the screen (PRACTICE.md §1.8), spread a little.
+/// 7–10 mm nozzle held within 13 mm of the screen (docs/practice.md §1.8), spread a little.
 pub const DEFAULT_JET_WIDTH_M: f64 = 0.010;
 
 /// A pump's head–flow curve as a quadratic through its shut-off head and one rated point.
