@@ -51,7 +51,7 @@ fn bench(c: &mut Criterion) {
         g.bench_with_input(BenchmarkId::new("schedule", n), &d, |b, d| {
             b.iter(|| {
                 let c = d.control_at(black_box(t));
-                let f = d.device_flow(black_box(t), 0.0);
+                let f = d.device_flow(black_box(t), 0.0, Default::default());
                 let e = d.next_event_s(black_box(t));
                 (c, f, e)
             })
