@@ -273,3 +273,23 @@ fn steptest_html_written_whole_and_not_overwritten_without_force() {
     );
     assert!(!out2.exists());
 }
+
+/// The overwrite policy of every writing command: `-o` naming the input CSV is refused even
+/// with `--force`, and the input is left as it was.
+#[test]
+fn steptest_never_writes_over_its_input() {
+    let dir = tempfile::tempdir().unwrap();
+    let csv = dir.path().join("steps.csv");
+    std::fs::copy(cases_dir().join("step-tests/demo-series.csv"), &csv).unwrap();
+    let before = std::fs::read_to_string(&csv).unwrap();
+    let args = [
+        "steptest",
+        csv.to_str().unwrap(),
+        "-o",
+        csv.to_str().unwrap(),
+        "--force",
+    ];
+    let e = stderr_of_failure(&args, 2);
+    assert!(e.contains("never writes over its inputs"), "{e}");
+    assert_eq!(std::fs::read_to_string(&csv).unwrap(), before);
+}

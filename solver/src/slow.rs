@@ -49,13 +49,7 @@ impl SlowState {
             thickness_m: c.thickness_m,
             coverage: c.coverage,
         });
-        let skin = total_skin(model, cake);
-        SlowState {
-            cake,
-            initial_cake_m: cake.map_or(0.0, |c| c.thickness_m),
-            skin,
-            initial_skin: skin,
-        }
+        SlowState::with_cake(model, cake)
     }
 
     /// A state with the cake in `cake` (start and current), e.g. just after a sudden change.

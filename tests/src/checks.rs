@@ -581,7 +581,7 @@ fn balance() -> Vec<CheckResult> {
     model.formation.outer_radius_m = None;
     let mut rec = Recorder::at(&[]);
     let sum = run(&model, &mut rec, Reporting::default()).expect("run");
-    let src = "discrete identities of the θ-scheme (docs/physics.md §1.5, §7.3)";
+    let src = "discrete identities of the θ-stages of the step (TR-BDF2 by default; docs/physics.md §1.5, §7.3, docs/time-stepping.md)";
     vec![
         // Issue #2: every step closes to 1e-10; round-off of the sums is ~1e-14.
         CheckResult::new(

@@ -300,7 +300,7 @@ fn forchheimer_sine(b: f64) -> Model {
 pub fn nonlinear_energy() -> Vec<CheckResult> {
     let model = forchheimer_sine(2.0);
     let sum = run(&model, &mut Recorder::at(&[]), Reporting::default()).expect("run");
-    let src = "discrete identities of the θ-scheme in midpoint form (solver::stepper, docs/physics.md §1.5, §7.3)";
+    let src = "discrete identities of the θ-stages in midpoint form (solver::stepper, TR-BDF2 by default; docs/physics.md §1.5, §7.3)";
     vec![
         CheckResult::new(
             "development",

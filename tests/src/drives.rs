@@ -435,7 +435,11 @@ fn collapse_limits() -> Vec<CheckResult> {
 /// calculation (reference script, `parted_time` of tests/data/devices.json).
 pub fn vapour_bound() -> Vec<CheckResult> {
     let v = load(data::DEVICES);
-    let src = source(&v);
+    let src = String::from(
+        "IAPWS-IF97 saturation pressure (iapws.iapws97._PSat_T; IAPWS 2007), bound \
+         -(p_atm - p_v)/(rho g) - depth; parted time by hand calculation (math.asin, \
+         scipy.optimize.brentq, scipy.integrate.quad cross-check), tests/data/devices.json",
+    );
     let b = &v["vapour_bound"];
     let (t_c, depth) = (b["T_C"].as_f64().unwrap(), b["depth_m"].as_f64().unwrap());
     let p_atm = b["p_atm_pa"].as_f64().unwrap();
@@ -524,7 +528,10 @@ pub fn vapour_bound() -> Vec<CheckResult> {
 /// intake (suction break).
 pub fn pump_curve() -> Vec<CheckResult> {
     let v = load(data::DEVICES);
-    let src = source(&v);
+    let src = String::from(
+        "Thiem (1906) steady drawdown with Hawkins (1956) skin, met with the pump curve \
+         H0 - a Q^2 by scipy.optimize.brentq, tests/data/devices.json",
+    );
     let p = &v["pump_curve"];
     let g = |k: &str| p[k].as_f64().unwrap();
     let pump = |law: PumpLaw, intake: f64| PumpBackwash {
@@ -604,7 +611,10 @@ pub fn pump_curve() -> Vec<CheckResult> {
 /// storage + screen flow, per step (the well row's residual) and over the run.
 pub fn jet_balance() -> Vec<CheckResult> {
     let v = load(data::DEVICES);
-    let src = source(&v);
+    let src = String::from(
+        "Bernoulli stagnation pressure eta rho v^2/2 with rho from iapws.IAPWS95; nozzle \
+         flow n pi d^2/4 v, tests/data/devices.json",
+    );
     let j = &v["jet"];
     let g = |k: &str| j[k].as_f64().unwrap();
     let jet = JetPulse {

@@ -63,7 +63,7 @@ fn mass_and_energy_balance() {
 }
 
 #[test]
-fn crank_nicolson_second_order() {
+fn time_stepping_second_order() {
     assert_group("order");
 }
 

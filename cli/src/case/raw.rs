@@ -229,7 +229,7 @@ pub struct RawFormation {
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize, JsonSchema)]
 #[serde(rename_all = "snake_case")]
 pub enum MethodName {
-    /// Time stepping (θ-scheme).
+    /// Time stepping (TR-BDF2 with adaptive steps by default, or the θ-scheme).
     Time,
     /// Periodic steady state by harmonics (not for runs: `boreflux check` prints it for
     /// linear cases).

@@ -1,5 +1,5 @@
 //! The one overwrite policy of every command that writes files (`run`, `sweep`, `merge`,
-//! `report`): checked before any work starts, so a refusal costs nothing and leaves
+//! `report`, `steptest`): checked before any work starts, so a refusal costs nothing and leaves
 //! nothing on disk.
 //!
 //! - An output must not be one of the command's inputs (compared as canonical paths),

@@ -1,6 +1,7 @@
 //! `boreflux steptest`: read a step-test CSV, fit B and C, print a table or JSON, and
 //! optionally write an HTML page (temporary file, renamed when complete).
 
+use super::outputs::{check_output, refuse_inputs};
 use super::{print_out, Failure};
 use crate::args::{SteptestArgs, WeightsArg};
 use crate::output::TempTarget;
@@ -13,12 +14,9 @@ use boreflux_solver::steptest::Weighting;
 pub fn steptest(a: &SteptestArgs) -> Result<(), Failure> {
     let input = |msg: String| Failure::Input(anyhow!("{}: {msg}", a.input.display()));
     if let Some(out) = &a.output {
-        if out.exists() && !a.force {
-            return Err(Failure::Input(anyhow!(
-                "output {} exists; pass --force to replace it",
-                out.display()
-            )));
-        }
+        // The overwrite policy every writing command follows.
+        refuse_inputs(&[(out, "-o")], std::slice::from_ref(&a.input)).map_err(Failure::Input)?;
+        check_output(out, "-o", a.force).map_err(Failure::Input)?;
     }
     if !(a.confidence > 0.0 && a.confidence < 1.0) {
         return Err(Failure::Input(anyhow!(

@@ -90,37 +90,29 @@ pub fn analyse(data: &StepData, opts: &Options) -> Result<Outcome, String> {
             None => e.to_string(),
         }
     };
+    // The Jacob line through end-of-step drawdowns.
+    let jacob_line = |steps: &[_]| -> Result<Outcome, String> {
+        let a = jacob::fit_steps(steps, opts.weighting, opts.confidence).map_err(locate)?;
+        Ok(Outcome {
+            method: "jacob",
+            measured_m: steps.iter().map(|s| s.drawdown_m).collect(),
+            fit: a.fit,
+            figures: a.figures,
+            series: None,
+            power: None,
+        }
+        .with_power(opts.power))
+    };
     match (data, opts.method) {
         (StepData::Steps { .. }, Method::Hantush) => Err(
             "the Hantush–Bierschenk method needs the time series (a time_<unit> column); \
              this file has one row per step"
                 .to_owned(),
         ),
-        (StepData::Steps { steps, .. }, _) => {
-            let a = jacob::fit_steps(steps, opts.weighting, opts.confidence).map_err(locate)?;
-            Ok(Outcome {
-                method: "jacob",
-                measured_m: steps.iter().map(|s| s.drawdown_m).collect(),
-                fit: a.fit,
-                figures: a.figures,
-                series: None,
-                power: None,
-            }
-            .with_power(opts.power))
-        }
+        (StepData::Steps { steps, .. }, _) => jacob_line(steps),
         (StepData::Series { samples, .. }, Method::Jacob) => {
             let spans = series::split_steps(samples).map_err(locate)?;
-            let steps = series::end_of_step(samples, &spans);
-            let a = jacob::fit_steps(&steps, opts.weighting, opts.confidence).map_err(locate)?;
-            Ok(Outcome {
-                method: "jacob",
-                measured_m: steps.iter().map(|s| s.drawdown_m).collect(),
-                fit: a.fit,
-                figures: a.figures,
-                series: None,
-                power: None,
-            }
-            .with_power(opts.power))
+            jacob_line(&series::end_of_step(samples, &spans))
         }
         (StepData::Series { samples, .. }, Method::Auto | Method::Hantush) => {
             let o = SeriesOptions {
