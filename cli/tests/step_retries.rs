@@ -116,3 +116,23 @@ fn a_vapour_gap_closes_when_the_sealed_stage_ends() {
     );
     assert!(adaptive.steps < 2 * theta.steps, "{} steps", adaptive.steps);
 }
+
+/// Behind a sealing cake (the irrigation demo with a 1e-10 m/s cake, invented data) a few
+/// steps after a pump switch end with a per-step volume residual above 1e-8: the pack heads
+/// are metres of drawdown and nearly equal, so each face flow carries about ε g |h| of
+/// round-off, and the rows are solved to that. The balance warning counts only the residual
+/// beyond each step's round-off floor (common practice for floating-point acceptance tests,
+/// no source), so such a run is not reported as poorly balanced.
+#[test]
+fn round_off_behind_a_sealing_cake_is_not_a_poor_balance() {
+    let mut v = case("irrigation-pump-surge.json");
+    v["cake"]["conductivity"] = json!("1e-10 m/s");
+    let m = model(&v);
+    let s = run(&m, &mut NullObserver, Reporting::default()).unwrap();
+    println!(
+        "volume residual {:.2e}, beyond round-off {:.2e}",
+        s.max_mass_residual, s.max_mass_excess
+    );
+    assert!(s.max_mass_residual > 1e-8, "{}", s.max_mass_residual);
+    assert!(s.max_mass_excess <= 1e-8, "{}", s.max_mass_excess);
+}

@@ -82,6 +82,9 @@ pub struct RunSummary {
     pub numerical_dissipation_j: f64,
     /// Largest per-step relative volume residual.
     pub max_mass_residual: f64,
+    /// Largest per-step relative volume residual beyond the step's round-off
+    /// (`StepBalance::mass_excess`).
+    pub max_mass_excess: f64,
     /// Largest per-step relative volume residual of the well node.
     pub max_well_residual: f64,
     /// Gross volume the device moved (Σ|displacement| Δt), m³.
@@ -301,6 +304,7 @@ pub fn run_from_state(
         storage_energy_j: 0.0,
         numerical_dissipation_j: 0.0,
         max_mass_residual: 0.0,
+        max_mass_excess: 0.0,
         max_energy_residual: 0.0,
         max_well_residual: 0.0,
         gross_device_volume_m3: 0.0,
@@ -386,6 +390,7 @@ pub fn run_from_state(
         summary.storage_energy_j += rho_g * b.storage_energy_change;
         summary.numerical_dissipation_j += rho_g * b.numerical_dissipation;
         summary.max_mass_residual = summary.max_mass_residual.max(b.mass_residual);
+        summary.max_mass_excess = summary.max_mass_excess.max(b.mass_excess);
         summary.max_energy_residual = summary.max_energy_residual.max(b.energy_residual);
         summary.max_newton_iterations = summary.max_newton_iterations.max(b.max_solve_iterations);
         summary.total_newton_iterations += b.newton_iterations as u64;

@@ -40,7 +40,7 @@
 //! filtered (see `filter_estimate`) and measured unknown by unknown (the well head too when
 //! it is a state) against `absolute + relative × max(|v|, |w|)` (max norm).
 
-use super::{left_limit, Stage, StepBalance, Stepper};
+use super::{beyond, left_limit, Stage, StepBalance, Stepper};
 use crate::devices::VapourState;
 use crate::drive::Control;
 use crate::error::SolverError;
@@ -289,6 +289,15 @@ impl Stepper {
             })
             .max(b1.mass_residual)
             .max(b2.mass_residual),
+            // Stage 1's volumes enter the step with weight a, stage 2's with 1.
+            round_off_m3: A * b1.round_off_m3 + b2.round_off_m3,
+            mass_excess: (if vscale > 0.0 {
+                beyond(mass.abs(), A * b1.round_off_m3 + b2.round_off_m3) / vscale
+            } else {
+                0.0
+            })
+            .max(b1.mass_excess)
+            .max(b2.mass_excess),
             well_residual: b1.well_residual.max(b2.well_residual),
             energy_residual: if escale > 0.0 {
                 e_res.abs() / escale
