@@ -390,12 +390,17 @@ impl Stepper {
     }
 
     /// Round-off of the cells' volume balance at the θ-point heads, m³/s: each cell row is
-    /// solved only to the round-off of its face flows, which are computed from differences of
-    /// heads, ε g max(|y_i|, |y_i+1|) per face and row (a sealing cake behind a stiff pack
-    /// makes them large beside the net flows); the rows' floors summed.
-    fn flow_round_off(&self) -> f64 {
+    /// solved only to the round-off of its terms, which are computed from differences of
+    /// heads: ε g max(|y_i|, |y_i+1|) per face flow (a sealing cake behind a stiff pack makes
+    /// them large beside the net flows) and ε S max(|y_j|, |h_j|)/(θΔt) for the storage term
+    /// (large in the short steps after a jump of the forcing); the rows' floors summed.
+    /// `tdt` is the stage's θΔt; `h` still holds the stage's old heads.
+    fn flow_round_off(&self, tdt: f64) -> f64 {
         let n = self.y.len();
         let mut sum = 0.0;
+        for j in 1..n {
+            sum += self.disc.storage[j] * self.y[j].abs().max(self.h[j].abs()) / tdt;
+        }
         for f in 0..n {
             let (dy, far) = if f + 1 < n {
                 (self.y[f] - self.y[f + 1], self.y[f + 1].abs())
@@ -616,7 +621,7 @@ impl Stepper {
         // The round-off floor of the volume balance, computed only when the residual is not
         // already negligible (it costs a pass over the faces).
         let round_off = if mass.abs() > NEGLIGIBLE_RESIDUAL * vscale {
-            dt * self.flow_round_off()
+            dt * self.flow_round_off(tdt)
         } else {
             0.0
         };
