@@ -3,7 +3,7 @@
 //! disk can be refused before it starts.
 //!
 //! The bound follows the step choice: the user's step (fixed, or a period over the steps
-//! per cycle, capped by the drive's shortest feature) is an upper bound on every step, so
+//! per cycle) is an upper bound on every step, so
 //! `ceil(interval / step)` steps fill each interval between the drive's breakpoints; every
 //! breakpoint adds at most one landing step, and every jump `startup_steps` more (each
 //! start-up step is two half steps). Geometric steps (non-periodic drives) restart at every
@@ -58,9 +58,9 @@ fn interval_steps(len: f64, mode: Mode) -> f64 {
     }
 }
 
-fn mode(model: &Model, d: &Drive, period: Option<f64>) -> Mode {
+fn mode(model: &Model, period: Option<f64>) -> Mode {
     let geometric = |first: f64, per_decade: f64| Mode::Geometric { first, per_decade };
-    let m = match (model.numerics.time, period) {
+    match (model.numerics.time, period) {
         (TimeSpec::Fixed(dt), _) => Mode::Bounded(dt),
         (TimeSpec::StepsPerCycle(n), Some(p)) => Mode::Bounded(p / n as f64),
         (TimeSpec::Auto, Some(p)) => Mode::Bounded(p / DEFAULT_STEPS_PER_CYCLE as f64),
@@ -72,11 +72,6 @@ fn mode(model: &Model, d: &Drive, period: Option<f64>) -> Mode {
             _,
         ) => geometric(first_step_s, per_decade),
         (_, None) => geometric(default_first_step(model), DEFAULT_STEPS_PER_DECADE),
-    };
-    match (m, d.max_step_s()) {
-        (Mode::Bounded(dt), Some(cap)) => Mode::Bounded(dt.min(cap)),
-        (Mode::Geometric { .. }, Some(cap)) => Mode::Bounded(cap),
-        (m, None) => m,
     }
 }
 
@@ -112,18 +107,18 @@ fn walk(model: &Model, d: &Drive, end: f64, mode: Mode) -> f64 {
 /// Upper bound on the steps of drive `d` over `duration` s.
 fn segment(model: &Model, d: &Drive, duration: f64) -> f64 {
     let Some(p) = d.period_s() else {
-        return walk(model, d, duration, mode(model, d, None));
+        return walk(model, d, duration, mode(model, None));
     };
     let periodic = match d {
         Drive::Swab(s) if s.strokes > 0 => duration.min(s.strokes as f64 * p),
         Drive::PumpBackwash(b) if b.cycles > 0 => duration.min(b.cycles as f64 * p),
         _ => duration,
     };
-    let per_period = walk(model, d, p.min(periodic), mode(model, d, Some(p)));
+    let per_period = walk(model, d, p.min(periodic), mode(model, Some(p)));
     let mut steps = per_period * (periodic / p).ceil();
     let rest = duration - periodic;
     if rest > 0.0 {
-        steps += interval_steps(rest, mode(model, d, None)) + model.numerics.startup_steps as f64;
+        steps += interval_steps(rest, mode(model, None)) + model.numerics.startup_steps as f64;
     }
     steps
 }

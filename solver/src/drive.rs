@@ -397,38 +397,12 @@ impl Drive {
         }
     }
 
-    /// Largest step that resolves the shortest feature of the stage active at time t, s
-    /// (a schedule's other stages keep their own steps).
-    pub fn max_step_at(&self, t: f64) -> Option<f64> {
-        self.stage_at(t).0.max_step_s()
-    }
-
     /// Index of the schedule stage active at time t and the number of stages (a drive that
     /// is not a schedule is stage 0 of 1).
     pub fn stage_index_at(&self, t: f64) -> (usize, usize) {
         match self {
-            Drive::Schedule(stages) => {
-                let mut start = 0.0;
-                for (k, s) in stages.iter().enumerate() {
-                    if t < start + s.duration_s {
-                        return (k, stages.len());
-                    }
-                    start += s.duration_s;
-                }
-                (stages.len() - 1, stages.len())
-            }
+            Drive::Schedule(stages) => (stage_index(stages, t), stages.len()),
             _ => (0, 1),
-        }
-    }
-
-    /// Largest step that resolves the drive's shortest feature, s.
-    pub fn max_step_s(&self) -> Option<f64> {
-        match self {
-            Drive::Schedule(stages) => stages
-                .iter()
-                .filter_map(|s| s.drive.max_step_s())
-                .reduce(f64::min),
-            _ => None,
         }
     }
 

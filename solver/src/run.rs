@@ -149,7 +149,7 @@ impl Default for Reporting {
 /// (geometric steps restart from it).
 fn nominal_dt(model: &Model, t: f64, since_jump: f64) -> f64 {
     let period = model.drive.period_at(t);
-    let dt = match (model.numerics.time, period) {
+    match (model.numerics.time, period) {
         (TimeSpec::Fixed(dt), _) => dt,
         (TimeSpec::StepsPerCycle(n), Some(p)) => p / n as f64,
         (TimeSpec::Auto, Some(p)) => p / DEFAULT_STEPS_PER_CYCLE as f64,
@@ -164,8 +164,7 @@ fn nominal_dt(model: &Model, t: f64, since_jump: f64) -> f64 {
             let first = default_first_step(model);
             first.max(since_jump * (10f64.powf(1.0 / DEFAULT_STEPS_PER_DECADE) - 1.0))
         }
-    };
-    model.drive.max_step_at(t).map_or(dt, |m| dt.min(m))
+    }
 }
 
 /// First step of the geometric sequence: 1e−8 of the duration, at least 1e−5 s.
