@@ -14,7 +14,7 @@
 
 use crate::cake;
 use crate::diagnostics::FaceState;
-use crate::model::Model;
+use crate::model::{Cake, Model};
 use crate::system::CakeState;
 
 /// Relative change of the wall face's linear resistance in one step above which a change
@@ -86,6 +86,26 @@ impl SlowState {
         (self.initial_skin, self.skin)
     }
 
+    /// The well as it stands now, as a model of its own: `base` with the cake (thickness,
+    /// coverage) replaced by the current state, and no erosion law (the snapshot is for
+    /// tests run on the well in this state, e.g. a virtual pumping test, which must not
+    /// change it). Contract for every slow quantity added later (invaded-zone fines, …):
+    /// the snapshot carries it, so a test on the snapshot sees exactly the damage the time
+    /// loop's faces see at this moment.
+    pub fn snapshot_model(&self, base: &Model) -> Model {
+        let mut m = base.clone();
+        m.cake = match (base.cake, self.cake) {
+            (Some(c), Some(st)) if st.thickness_m > 0.0 && st.coverage > 0.0 => Some(Cake {
+                thickness_m: st.thickness_m,
+                coverage: st.coverage,
+                erosion: None,
+                ..c
+            }),
+            _ => None,
+        };
+        m
+    }
+
     /// Advances over a step of `dt_s` that ended with `face` at the wall; `wall_r_lin` is
     /// the linear resistance of the wall face before the change, s/m².
     pub fn advance(
@@ -130,4 +150,88 @@ pub fn total_skin(model: &Model, cake: Option<CakeState>) -> f64 {
         s += cake::skin(model, c, st);
     }
     s
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::drive::{Drive, SineHead};
+    use crate::model::*;
+
+    /// A patchy cake over an invaded zone (invented numbers).
+    fn model() -> Model {
+        Model {
+            fluid: Fluid::WATER_20C,
+            well: Well {
+                screen_radius_m: 0.1,
+                screen_length_m: 6.0,
+                open_area: 0.12,
+                casing_radius_m: 0.1,
+                linear_loss_s: 0.0,
+                discharge_coefficient: None,
+                storage_m2: 0.0,
+            },
+            pack: Pack {
+                outer_radius_m: 0.2,
+                medium: Medium::darcy(5e-3, 1e-5),
+            },
+            cake: Some(Cake {
+                thickness_m: 2e-3,
+                conductivity_m_s: 1e-6,
+                coverage: 0.7,
+                erosion: Some(Erosion {
+                    critical_shear_pa: 0.0,
+                    erodibility_m_s_pa: 1e-3,
+                    inward_weight: 1.0,
+                    outward_weight: 1.0,
+                    coverage_exponent: 1.0,
+                }),
+            }),
+            invaded: Some(Invaded {
+                thickness_m: 0.05,
+                medium: Medium::darcy(5e-5, 1e-5),
+            }),
+            formation: Formation {
+                medium: Medium::darcy(2e-4, 1e-5),
+                outer_radius_m: Some(30.0),
+                outer_boundary: OuterBoundary::FixedHead,
+            },
+            drive: Drive::SineHead(SineHead {
+                amplitude_m: 1.5,
+                frequency_hz: 0.5,
+                offset_m: 0.0,
+                ramp_cycles: 0.0,
+            }),
+            duration_s: 2.0,
+            numerics: Numerics::default(),
+        }
+    }
+
+    #[test]
+    fn the_snapshot_carries_the_current_damage_and_no_removal_law() {
+        let base = model();
+        let thinned = CakeState {
+            thickness_m: 1.2e-3,
+            coverage: 0.4,
+        };
+        let slow = SlowState::with_cake(&base, Some(thinned));
+        let snap = slow.snapshot_model(&base);
+        let c = snap.cake.expect("a cake remains");
+        assert_eq!((c.thickness_m, c.coverage), (1.2e-3, 0.4));
+        assert!(
+            c.erosion.is_none(),
+            "a test on the snapshot must not erode it"
+        );
+        // The snapshot, started afresh, has the skin the state has now.
+        assert_eq!(SlowState::new(&snap).skin().1, slow.skin().1);
+        // A cake that is gone is no cake in the snapshot.
+        let gone = SlowState::with_cake(
+            &base,
+            Some(CakeState {
+                thickness_m: 0.0,
+                coverage: 0.0,
+            }),
+        );
+        assert!(gone.snapshot_model(&base).cake.is_none());
+    }
 }
