@@ -162,7 +162,7 @@ const UNITS_CASE: &str = r#"{
   "drive": { "kind": "sine_head", "amplitude": "1.5 psi", "frequency": "30 strokes/min",
              "offset": "-6 in" },
   "duration": "10 cycles",
-  "numerics": { "cells": { "per_decade": 25 }, "steps_per_cycle": 64, "theta": 0.6,
+  "numerics": { "cells": { "per_decade": 25 }, "steps_per_cycle": 64, "scheme": "theta", "theta": 0.6,
                 "startup_steps": 3, "output_every": 10 }
 }"#;
 
@@ -537,6 +537,7 @@ const BAD_CASES: &[(&str, &str, &[&str])] = &[
     ("too_few_cells", "numerics.cells", &["at least 10, got 5"]),
     ("per_decade_below_one", "numerics.cells.per_decade", &["at least 1, got 0.5"]),
     ("theta_below_half", "numerics.theta", &["got 0.3"]),
+    ("theta_under_tr_bdf2", "numerics.theta", &["is for the θ-scheme", "scheme"]),
     ("table_file_missing", "drive.file", &["cannot read table file", "no-such-table.csv"]),
     ("table_not_from_zero", "drive.points", &["first time must be 0 s, got 5 s"]),
     ("dimension_ratio_too_small", "well.dimension_ratio", &["greater than 2", "got 1.5"]),

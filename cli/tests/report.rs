@@ -108,7 +108,7 @@ fn write_run(path: &Path, spec: &Spec) {
     set_str(
         &file,
         "case_json",
-        r#"{"title":"t","well":{"screen_radius":0.1,"screen_length":6.0,"open_area":0.12,"material":"pvc <DR 21>"},"pack":{"outer_radius":0.2,"porosity":0.32,"d50":0.0016},"drive":{"kind":"sine_head","amplitude":1.5,"frequency":0.5},"duration":1000.0,"numerics":{"cells":"auto","theta":0.5}}"#,
+        r#"{"title":"t","well":{"screen_radius":0.1,"screen_length":6.0,"open_area":0.12,"material":"pvc <DR 21>"},"pack":{"outer_radius":0.2,"porosity":0.32,"d50":0.0016},"drive":{"kind":"sine_head","amplitude":1.5,"frequency":0.5},"duration":1000.0,"numerics":{"cells":"auto","scheme":"theta","theta":0.5}}"#,
     );
     set_str(&file, "case_file", "cases/test.json");
 

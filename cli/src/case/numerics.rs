@@ -194,15 +194,29 @@ pub fn numerics(raw: &RawNumerics, period_s: Option<f64>) -> Result<NumericsOut,
             }
             Scheme::Theta
         }
-        SchemeName::TrBdf2 => Scheme::TrBdf2 {
-            relative: raw.relative_tolerance.unwrap_or(DEFAULT_RELATIVE_TOLERANCE),
-            absolute_m: raw
-                .absolute_tolerance
-                .as_ref()
-                .map(|q| q.si("numerics.absolute_tolerance"))
-                .transpose()?
-                .unwrap_or(DEFAULT_ABSOLUTE_TOLERANCE_M),
-        },
+        SchemeName::TrBdf2 => {
+            for (given, key) in [
+                (raw.theta.is_some(), "numerics.theta"),
+                (raw.startup_steps.is_some(), "numerics.startup_steps"),
+            ] {
+                if given {
+                    return Err(CaseError::new(
+                        key,
+                        "is for the θ-scheme: set numerics.scheme to \"theta\" to use it (the \
+                         default scheme \"tr-bdf2\" has no θ and needs no start-up steps)",
+                    ));
+                }
+            }
+            Scheme::TrBdf2 {
+                relative: raw.relative_tolerance.unwrap_or(DEFAULT_RELATIVE_TOLERANCE),
+                absolute_m: raw
+                    .absolute_tolerance
+                    .as_ref()
+                    .map(|q| q.si("numerics.absolute_tolerance"))
+                    .transpose()?
+                    .unwrap_or(DEFAULT_ABSOLUTE_TOLERANCE_M),
+            }
+        }
     };
     Ok(NumericsOut {
         numerics: Numerics {
@@ -317,10 +331,10 @@ pub fn resolved(n: &Numerics, output_every: u64) -> Value {
         }
         Scheme::Theta => {
             m.insert("scheme".to_owned(), json!("theta"));
+            m.insert("theta".to_owned(), json!(n.theta));
+            m.insert("startup_steps".to_owned(), json!(n.startup_steps));
         }
     }
-    m.insert("theta".to_owned(), json!(n.theta));
-    m.insert("startup_steps".to_owned(), json!(n.startup_steps));
     m.insert("output_every".to_owned(), json!(output_every));
     Value::Object(m)
 }

@@ -246,9 +246,10 @@ pub struct RawNumerics {
     pub cells: Option<CellsValue>,
     /// Time steps per period of a periodic drive [auto = 200].
     pub steps_per_cycle: Option<StepsPerCycleValue>,
-    /// θ of the θ-scheme, in [0.5, 1]: 0.5 = Crank–Nicolson [0.5].
+    /// θ of the θ-scheme (scheme "theta" only), in [0.5, 1]: 0.5 = Crank–Nicolson [0.5].
     pub theta: Option<f64>,
-    /// Steps replaced by backward-Euler half steps after every jump of the forcing [2].
+    /// Steps replaced by backward-Euler half steps after every jump of the forcing (scheme
+    /// "theta" only) [2].
     pub startup_steps: Option<u64>,
     /// Fixed time step, instead of steps_per_cycle or steps_per_decade.
     pub time_step: Option<Q<Time>>,
