@@ -386,7 +386,8 @@ pub fn run_from_state(
             *w += rho_g * b.dissipated[k];
         }
         summary.energy_in_j += rho_g * b.energy_in;
-        summary.storage_energy_j += rho_g * b.storage_energy_change;
+        // Stored energy: the formation's elastic storage and the water column's kinetic energy.
+        summary.storage_energy_j += rho_g * (b.storage_energy_change + b.kinetic_energy_change);
         summary.numerical_dissipation_j += rho_g * b.numerical_dissipation;
         summary.max_mass_residual = summary.max_mass_residual.max(b.mass_residual);
         summary.max_mass_excess = summary.max_mass_excess.max(b.mass_excess);

@@ -290,13 +290,17 @@ impl Swab {
         self.lift_time(t).is_some()
     }
 
+    /// Depth of the cups below the static level at time t while they rise and seal, m
+    /// (`d(τ) = d₀ − U τ`); None while they do not seal.
+    pub fn cup_depth_m(&self, t: f64) -> Option<f64> {
+        self.lift_time(t)
+            .map(|tl| (self.submergence_m - self.lift_rate_m_s * tl).max(0.0))
+    }
+
     /// Vapour bound under the cups at time t, m (−∞ while they do not seal).
     pub fn min_head_m(&self, t: f64) -> f64 {
-        match self.lift_time(t) {
-            Some(tl) => {
-                let depth = (self.submergence_m - self.lift_rate_m_s * tl).max(0.0);
-                -(self.net_atmospheric_head_m + depth)
-            }
+        match self.cup_depth_m(t) {
+            Some(depth) => -(self.net_atmospheric_head_m + depth),
             None => f64::NEG_INFINITY,
         }
     }
