@@ -235,6 +235,12 @@ impl Stepper {
         h[0] = model.drive.initial_well_head_m();
         let disc_linear = disc.is_linear();
         let linear = disc_linear && !model.drive.is_head_dependent();
+        // The water is at rest at t = 0: a column with inertia starts with no flow (a slug
+        // is an initial head, not an initial flow).
+        let column = column::Column {
+            inertial: column_inertance(model, 0.0) > 0.0,
+            ..Default::default()
+        };
         Stepper {
             disc,
             y: h.clone(),
@@ -277,8 +283,8 @@ impl Stepper {
             damped_steps: 0,
             partings: 0,
             parted_time_s: 0.0,
-            column: column::Column::default(),
-            column_start: column::Column::default(),
+            column,
+            column_start: column,
         }
     }
 
