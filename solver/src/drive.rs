@@ -324,6 +324,23 @@ impl Drive {
         }
     }
 
+    /// Deepest tool of the drive below the static level, m: a surge block's depth, a swab's
+    /// submergence, a pump's intake depth (0 when none is given). The screen lies at least
+    /// this deep unless the tool works inside it; the case file uses it as the default
+    /// length of the water column above the screen.
+    pub fn deepest_tool_m(&self) -> f64 {
+        match self {
+            Drive::SurgeBlock(b) => b.depth_m,
+            Drive::Swab(s) => s.submergence_m,
+            Drive::PumpBackwash(p) if p.intake_depth_m.is_finite() => p.intake_depth_m,
+            Drive::Schedule(stages) => stages
+                .iter()
+                .map(|s| s.drive.deepest_tool_m())
+                .fold(0.0, f64::max),
+            _ => 0.0,
+        }
+    }
+
     /// Vapour bound of the in-well head at time t, m: the lowest head a sealed tool can
     /// pull (−∞ when no tool seals the well).
     pub fn vapour_bound_m(&self, t: f64) -> f64 {
