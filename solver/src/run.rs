@@ -512,10 +512,19 @@ pub fn run_from_state(
              head under it reached the vapour bound (atmospheric pressure less the vapour \
              pressure, plus the tool's depth below the static level) because the formation \
              could not supply the tool's displacement; the suction and the collapse load are \
-             capped there, and the tool's work beyond it went into the vapour gap; the column \
-             rejoins at once in this model (no water-column inertia), so the flows just after \
-             each rejoining are an upper bound",
-            summary.column_partings, summary.parted_time_s
+             capped there, and the tool's work beyond it went into the vapour gap; {}",
+            summary.column_partings,
+            summary.parted_time_s,
+            if model.well.column_length_m > 0.0 {
+                "the column keeps its momentum when it parts and rejoins (water-column \
+                 inertia), but water and casing are taken rigid: the head spike when the column \
+                 strikes the tool again is resolved only to the step length and is not a \
+                 reliable pressure (a water-hammer estimate, density x wave speed x the \
+                 velocity change, bounds it)"
+            } else {
+                "the column rejoins at once in this model (no water-column inertia), so the \
+                 flows just after each rejoining are an upper bound"
+            }
         ));
     }
     if let Some((t, what)) = oscillation {
