@@ -315,7 +315,7 @@ impl Drive {
     /// Depth below the static level of the top of the water column that moves with the
     /// screen flow at time t, m: the surge block, the rising swab cups (the water below a
     /// sealing tool), or 0 for a free surface (taken at the static level: the column's
-    /// length is not changed by the well's own drawdown, docs/physics.md §6.4).
+    /// length is not changed by the well's own drawdown, docs/physics.md §24).
     pub fn column_top_depth_m(&self, t: f64) -> f64 {
         match self.stage_at(t) {
             (Drive::SurgeBlock(b), _) => b.depth_m,

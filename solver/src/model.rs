@@ -76,7 +76,7 @@ pub struct Well {
     /// rate-controlled well without storage.
     pub storage_m2: f64,
     /// Effective length of the water column from the static level to the screen, L_e, m
-    /// (docs/physics.md §6.4): its mass L_e ρ A_c, A_c = π r_c², makes the head that
+    /// (docs/physics.md §24): its mass L_e ρ A_c, A_c = π r_c², makes the head that
     /// accelerates it, (L_e/g) dv/dt. Under a tool at depth d the column below the tool
     /// is L_e − d. 0: no column inertia (the quasi-static well of earlier versions).
     pub column_length_m: f64,

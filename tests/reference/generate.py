@@ -1601,7 +1601,7 @@ INERTIA_CASES = [
 def inertia_fbar(c, le=None):
     """Laplace transform of w(t)/w0 for a slug test with an inertial water column.
 
-    Written here from the equations of docs/physics.md section 6.4 (the form of Kipp 1985,
+    Written here from the equations of docs/physics.md section 24 (the form of Kipp 1985,
     Water Resour. Res. 21(9), 1397-1408, and of Butler & Zhan 2004, Water Resour. Res. 40,
     W12402; cited from memory - verify), with w the free-surface displacement, Q the column
     flow into the formation, H_s the head in the screen, A_c = pi rc^2, M = L_e/(g A_c):
@@ -1654,7 +1654,7 @@ def inertia():
             "Resour. Res. 21(9), 1397-1408; Butler, J.J., Jr., Zhan, X., 2004, 'Hydraulic "
             "tests in highly permeable aquifers', Water Resour. Res. 40, W12402 (both cited "
             "from memory - verify). Laplace-domain solution written from the equations "
-            "(docs/physics.md section 6.4), infinite homogeneous layer, no skin."
+            "(docs/physics.md section 24), infinite homogeneous layer, no skin."
         ),
         "computed_with": {
             "versions": versions(),

@@ -1,5 +1,5 @@
 //! Slug test with an inertial water column against the Laplace-domain solution written
-//! from the equations of docs/physics.md §6.4 (the form of Kipp 1985 and Butler & Zhan 2004),
+//! from the equations of docs/physics.md §24 (the form of Kipp 1985 and Butler & Zhan 2004),
 //! inverted with mpmath in tests/reference/generate.py (tests/data/inertia.json).
 
 use crate::checks::Recorder;
@@ -94,7 +94,7 @@ pub fn slug_with_inertia() -> Vec<CheckResult> {
         out.push(CheckResult::new(
             "inertia",
             format!("{name} slug, TR-BDF2: energy closure with the column's kinetic energy"),
-            "energy identity of docs/physics.md §6.4 (no outside value)",
+            "energy identity of docs/physics.md §24 (no outside value)",
             summary.energy_closure,
             1e-6,
             "relative",

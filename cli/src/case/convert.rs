@@ -125,7 +125,7 @@ pub fn convert(raw: RawCase, base_dir: &Path) -> Result<LoadedCase, CaseError> {
     })
 }
 
-/// The water column above the screen (docs/physics.md §6.4): its length D from the case or
+/// The water column above the screen (docs/physics.md §24): its length D from the case or
 /// the deepest tool, and the effective length the solver uses,
 /// `L_e = D + (r_c/r_s)² b/2` (the column plus half the screen's water moving at the
 /// screen's mean speed; Kipp 1985, Water Resour. Res. 21(9), cited from memory — verify).

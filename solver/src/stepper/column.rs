@@ -1,5 +1,5 @@
 //! The mass of the water column between the well node's head and the screen
-//! (docs/physics.md §6.4).
+//! (docs/physics.md §24).
 //!
 //! The well node's head H is the head at the top of the column that moves with the screen
 //! flow: the free surface, or the water just below a sealing tool. The column of effective
