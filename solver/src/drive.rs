@@ -341,6 +341,14 @@ impl Drive {
         }
     }
 
+    /// The surge block working at time t, if any.
+    pub fn surge_block_at(&self, t: f64) -> Option<&SurgeBlock> {
+        match self.stage_at(t).0 {
+            Drive::SurgeBlock(b) => Some(b),
+            _ => None,
+        }
+    }
+
     /// Vapour bound of the in-well head at time t, m: the lowest head a sealed tool can
     /// pull (−∞ when no tool seals the well).
     pub fn vapour_bound_m(&self, t: f64) -> f64 {
@@ -357,6 +365,10 @@ impl Drive {
     pub fn at_limit(&self, t: f64, h: f64) -> bool {
         match self.stage_at(t) {
             (Drive::PumpBackwash(p), tl) => p.is_on(tl) && p.suction_broken(h),
+            (Drive::SurgeBlock(b), _) => {
+                h < b.min_head_m() + crate::devices::VAPOUR_MARGIN_M
+                    || h > b.max_head_m() - crate::devices::VAPOUR_MARGIN_M
+            }
             _ => h < self.vapour_bound_m(t) + crate::devices::VAPOUR_MARGIN_M,
         }
     }

@@ -26,7 +26,8 @@ use crate::error::SolverError;
 use crate::grid::ZONE_COUNT;
 use crate::model::{Model, Scheme, TimeSpec};
 use crate::slow::{Change, SlowState};
-use crate::stepper::{Stepper, Tolerances};
+use crate::stepper::{left_limit, Stepper, Tolerances};
+use std::f64::consts::PI;
 use crate::water::GRAVITY_M_S2;
 use watch::{check_finite, Alternation};
 
@@ -43,6 +44,46 @@ pub const RESTART_FRACTION: f64 = 1e-2;
 /// Steps shorter than this fraction of the duration (and of 1 s) are accepted whatever
 /// their error estimate, counted and reported (round-off of the clock).
 const SMALLEST_STEP: f64 = 1e-12;
+
+/// The push of a surge block on its downstroke over a run (docs/devices.md §2).
+#[derive(Debug, Default)]
+struct BlockPush {
+    /// Highest head under the block, m.
+    peak_head_m: f64,
+    /// Area of the block there, m².
+    area_m2: f64,
+    /// Whether the block's thrust was bounded (`drive.max_thrust`).
+    bounded: bool,
+    /// Time the block was held at its thrust bound, s.
+    stalled_s: f64,
+}
+
+impl BlockPush {
+    /// The run's warning on the block's downstroke thrust, if any.
+    fn warn(&self, model: &Model, warnings: &mut Vec<String>) {
+        if self.peak_head_m <= 0.0 {
+            return;
+        }
+        let thrust_n = model.fluid.density_kg_m3 * GRAVITY_M_S2 * self.peak_head_m * self.area_m2;
+        if self.bounded && self.stalled_s > 0.0 {
+            warnings.push(format!(
+                "the surge block reached its downstroke thrust (drive.max_thrust) for {:.3} s in \
+                 all: the head under it was held at {:.2} m and the block lagged its stroke; \
+                 the stroke delivered less than its displacement",
+                self.stalled_s, self.peak_head_m
+            ));
+        } else if !self.bounded {
+            warnings.push(format!(
+                "the downstroke pushed the head under the surge block up to {:.2} m, a thrust \
+                 of {:.3} kN on the block (density x g x head x block area); a block worked on \
+                 a cable pushes only with its own and the string's weight in water: if that is \
+                 less, give drive.max_thrust, or the push and the outward flow are overstated",
+                self.peak_head_m,
+                thrust_n / 1e3
+            ));
+        }
+    }
+}
 
 /// Default steps per period for periodic drives.
 pub const DEFAULT_STEPS_PER_CYCLE: usize = 200;
@@ -327,6 +368,7 @@ pub fn run_from_state(
         min_step_s: f64::INFINITY,
         warnings: Vec::new(),
     };
+    let mut push = BlockPush::default();
     let mut chooser = StepChooser::new(model);
     let mut last_jump = 0.0;
     let mut cycles = model
@@ -423,12 +465,26 @@ pub fn run_from_state(
                 chooser.restart();
             }
         }
+        // The differential across the screen: the head inside it is the well head less the
+        // column's inertial head (docs/physics.md §24).
+        let h_screen = st.screen_head();
         summary.peak_collapse_head_m = summary
             .peak_collapse_head_m
-            .max(face.screen_outer_head_m - h_well);
+            .max(face.screen_outer_head_m - h_screen);
         summary.peak_burst_head_m = summary
             .peak_burst_head_m
-            .max(h_well - face.screen_outer_head_m);
+            .max(h_screen - face.screen_outer_head_m);
+        // The head a surge block pushed under it, and the time it was held at its thrust.
+        if let Some(block) = model.drive.surge_block_at(left_limit(st.time_s)) {
+            if h_well > push.peak_head_m {
+                push.peak_head_m = h_well;
+                push.area_m2 = PI * block.block_radius_m * block.block_radius_m;
+                push.bounded = block.max_head_m().is_finite();
+            }
+            if h_well > block.max_head_m() - crate::devices::VAPOUR_MARGIN_M {
+                push.stalled_s += b.dt_s;
+            }
+        }
         summary.well_head_range_m = (
             summary.well_head_range_m.0.min(h_well),
             summary.well_head_range_m.1.max(h_well),
@@ -527,6 +583,7 @@ pub fn run_from_state(
             }
         ));
     }
+    push.warn(model, &mut summary.warnings);
     if let Some((t, what)) = oscillation {
         summary.warnings.push(format!(
             "the {what} alternated in sign from step to step over {} steps in a row (first at \

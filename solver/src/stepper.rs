@@ -458,21 +458,17 @@ impl Stepper {
     /// device's limit holds the well head (a kink in the device's law, with a vapour gap or
     /// a broken suction carried from step to step): such a step, and a TR-BDF2 step that
     /// ends at a limit (redone), is one backward-Euler step, first order, as under the
-    /// θ-scheme. Its error norm is [`KEEP_STEP_NORM`], which keeps the step length. On error
-    /// the state is unchanged.
+    /// θ-scheme. Its error norm is its own first-order estimate capped at [`KEEP_STEP_NORM`]
+    /// (`Stepper::step_at_limit`): never rejected, growing where the limit holds smoothly. On
+    /// error the state is unchanged.
     pub fn step_adaptive(
         &mut self,
         model: &Model,
         dt: f64,
         tol: Tolerances,
     ) -> Result<ErrorNorm, SolverError> {
-        let kept = ErrorNorm {
-            value: KEEP_STEP_NORM,
-            index: 0,
-        };
         if self.at_device_limit(model, self.time_s + dt) {
-            self.step(model, dt, 1.0)?;
-            return Ok(kept);
+            return self.step_at_limit(model, dt, tol);
         }
         let saved = (
             self.vapour,
@@ -493,8 +489,7 @@ impl Stepper {
         if self.vapour.gap_m3 > 0.0 || model.drive.at_limit(self.time_s, self.h[0]) {
             self.undo_step();
             restore(self);
-            self.step(model, dt, 1.0)?;
-            return Ok(kept);
+            return self.step_at_limit(model, dt, tol);
         }
         Ok(err)
     }

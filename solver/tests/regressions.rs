@@ -99,6 +99,7 @@ fn swab_parting_is_reported_inside_a_schedule() {
 fn municipal_block(duration_s: f64) -> Model {
     use boreflux_solver::devices::{Kinematics, SurgeBlock};
     let block = SurgeBlock {
+        max_push_head_m: f64::INFINITY,
         block_radius_m: 0.178,
         casing_radius_m: 0.1905,
         stroke_m: 0.9,

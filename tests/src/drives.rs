@@ -23,6 +23,7 @@ const RW: f64 = 0.1;
 
 fn surge(clearance: f64, valve: f64) -> SurgeBlock {
     SurgeBlock {
+        max_push_head_m: f64::INFINITY,
         block_radius_m: RW - clearance,
         casing_radius_m: RW,
         stroke_m: 0.8,
@@ -449,6 +450,7 @@ pub fn vapour_bound() -> Vec<CheckResult> {
     let p = &v["parted_time"];
     let rc = p["casing_radius"].as_f64().unwrap();
     let block = SurgeBlock {
+        max_push_head_m: f64::INFINITY,
         block_radius_m: p["block_radius"].as_f64().unwrap(),
         casing_radius_m: rc,
         stroke_m: p["stroke"].as_f64().unwrap(),

@@ -409,6 +409,91 @@ impl Stepper {
         }
     }
 
+    /// One backward-Euler step at a device's limit (see `Stepper::step_adaptive`), with
+    /// the step's local-error estimate ½ Δt |f^{n+1} − fⁿ| (first order, from the slopes at
+    /// both ends, the column's flow included) measured like TR-BDF2's. The norm is capped at
+    /// [`super::KEEP_STEP_NORM`]: the step is never rejected (a kink of the device's law makes
+    /// the slopes jump, where no shorter step would do better) but it may grow where the
+    /// limit holds smoothly (a column parted over a whole swab lift). On error the state is
+    /// unchanged.
+    pub(super) fn step_at_limit(
+        &mut self,
+        model: &Model,
+        dt: f64,
+        tol: Tolerances,
+    ) -> Result<ErrorNorm, SolverError> {
+        let t0 = self.time_s;
+        self.undo_time = None;
+        self.h_start.copy_from_slice(&self.h);
+        let col = |st: &Stepper| st.column.inertial.then_some(st.column.q);
+        let well_before = well_storage(model, &self.disc, t0).is_some();
+        slopes(
+            model,
+            &self.disc,
+            self.vapour,
+            t0,
+            &self.h,
+            col(self),
+            &mut self.slope_mid,
+        );
+        let (q0, mass0) = (self.screen_flow(), super::column_inertance(model, t0));
+        let fq0 = self.column_slope(&self.h, q0, mass0);
+        self.step(model, dt, 1.0)?;
+        let t1 = left_limit(self.time_s);
+        slopes(
+            model,
+            &self.disc,
+            self.vapour,
+            t1,
+            &self.h,
+            col(self),
+            &mut self.slope_start,
+        );
+        self.end_slopes = None;
+        let first = if well_before && well_storage(model, &self.disc, t1).is_some() {
+            0
+        } else {
+            1
+        };
+        let mut worst = ErrorNorm {
+            value: 0.0,
+            index: 0,
+        };
+        for j in first..self.h.len() {
+            let e = 0.5 * dt * (self.slope_start[j] - self.slope_mid[j]).abs();
+            let den = tol.absolute_m + tol.relative * self.h[j].abs().max(self.h_start[j].abs());
+            if e.is_nan() || e > worst.value * den {
+                worst = ErrorNorm {
+                    value: e / den,
+                    index: j,
+                };
+            }
+        }
+        let mass1 = super::column_inertance(model, t1);
+        if self.column.inertial && mass0 > 0.0 && mass1 > 0.0 {
+            let q1 = self.column.q;
+            let fq1 = self.column_slope(&self.h, q1, mass1);
+            let face = &self.disc.faces[0];
+            let r_prime = face.r_lin() + 2.0 * face.r_nl() * q1.abs();
+            let e = 0.5 * dt * (fq1 - fq0).abs();
+            let den = tol.relative * q0.abs().max(q1.abs()) + tol.absolute_m / r_prime;
+            if e.is_nan() || e > worst.value * den {
+                worst = ErrorNorm {
+                    value: e / den,
+                    index: 0,
+                };
+            }
+        }
+        // The controller's factor 0.9 ν^(−1/3) assumes TR-BDF2's third-order local error;
+        // for this first-order step it is cautious, which suits a step at a limit.
+        worst.value = if worst.value.is_nan() {
+            super::KEEP_STEP_NORM
+        } else {
+            worst.value.min(super::KEEP_STEP_NORM)
+        };
+        Ok(worst)
+    }
+
     /// Puts back the state before the last [`Stepper::step_trbdf2`] (a step the error
     /// control rejected). Does nothing if there is no such step.
     pub fn undo_step(&mut self) {
