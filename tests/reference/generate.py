@@ -37,6 +37,7 @@ import mpmath as mp
 import numpy as np
 import scipy
 import scipy.integrate
+import scipy.interpolate
 import scipy.optimize
 import scipy.special
 
@@ -1425,6 +1426,33 @@ def devices():
     diffs.append(rel_diff(q_star, q_quad))
     pump_curve = dict(pk, skin=f(skin), Q_m3_s=f(q_star), H_well_m=f(-per_q * q_star))
 
+    # The same aquifer and discharge with a pump curve given by points (an invented curve,
+    # test input only), read as the rate for a lift by monotone cubic Hermite interpolation
+    # (scipy.interpolate.PchipInterpolator on lift -> rate); the pump runs where
+    # Q = Q_pchip(z_d + per_q Q).
+    pts = [[0.0, 40.0], [0.004, 39.0], [0.008, 36.5], [0.012, 32.0], [0.016, 25.5],
+           [0.020, 17.0]]
+    lifts = [p[1] for p in reversed(pts)]
+    rates = [p[0] for p in reversed(pts)]
+    pchip = scipy.interpolate.PchipInterpolator(lifts, rates)
+
+    def table_mismatch(q):
+        return float(pchip(pk["z_d"] + per_q * q)) - q
+
+    q_tab = scipy.optimize.brentq(table_mismatch, 0.0, pts[-1][0], xtol=1e-16, rtol=1e-15)
+    q_tab_bisect = scipy.optimize.bisect(table_mismatch, 0.0, pts[-1][0], xtol=1e-16,
+                                         rtol=1e-15)
+    diffs.append(rel_diff(q_tab, q_tab_bisect))
+    sample_lifts = [17.0, 18.3, 21.0, 25.5, 28.7, 33.3, 37.9, 39.5, 39.99]
+    pump_table = {
+        "points": pts,
+        "Q_m3_s": f(q_tab),
+        "H_well_m": f(-per_q * q_tab),
+        "sample_lifts": sample_lifts,
+        "sample_rates": [f(float(pchip(x))) for x in sample_lifts],
+        "sample_slopes": [f(float(pchip.derivative()(x))) for x in sample_lifts],
+    }
+
     # Jet: flow through n nozzles of diameter d at exit velocity v, and the stagnation
     # pressure of the share eta of the velocity head (Bernoulli, p = eta rho v^2/2).
     jet = {"n": 2, "d": 0.008, "v": 45.0, "eta": 0.5, "T_C": 16.0}
@@ -1454,6 +1482,9 @@ def devices():
                 "rho: iapws.IAPWS95(T, P=0.101325).rho",
                 "parted time: math.asin for the parting, scipy.optimize.brentq on the gap "
                 "volume for the closing, scipy.integrate.quad as cross-check",
+                "pump curve by points: scipy.interpolate.PchipInterpolator(lift, rate) and "
+                "its derivative(); operating point by scipy.optimize.brentq, cross-checked "
+                "by scipy.optimize.bisect",
             ],
         },
         "conventions": "SI units; pressures in Pa; heads in m relative to the static level",
@@ -1466,10 +1497,12 @@ def devices():
                         "t_part_s": f(t1), "t_close_s": f(t2),
                         "parted_per_cycle_s": f(t2 - t1)},
         "pump_curve": pump_curve,
+        "pump_table": pump_table,
         "jet": jet,
         "cross_check": ("closed-form first-yield pressure vs brentq on the Lame stress; gap "
                         "volume at closure by quadrature (relative to the stroke volume); pump "
-                        "operating point by brentq vs the quadratic formula"),
+                        "operating point by brentq vs the quadratic formula; tabulated pump "
+                        "curve's operating point by brentq vs bisect"),
         "cross_check_max_rel_diff": f(max(diffs)),
     }
 

@@ -11,7 +11,7 @@ pub mod pump;
 pub mod vapour;
 
 pub use jet::JetPulse;
-pub use pump::{Backflow, PumpBackwash, PumpLaw, SUCTION_BAND_M};
+pub use pump::{Backflow, PumpBackwash, PumpLaw, PumpTable, MAX_PUMP_POINTS, SUCTION_BAND_M};
 
 pub use vapour::{net_atmospheric_head_m, vapour_flow, VapourState, VAPOUR_MARGIN_M};
 
