@@ -27,8 +27,8 @@ use crate::grid::ZONE_COUNT;
 use crate::model::{Model, Scheme, TimeSpec};
 use crate::slow::{Change, SlowState};
 use crate::stepper::{left_limit, Stepper, Tolerances};
-use std::f64::consts::PI;
 use crate::water::GRAVITY_M_S2;
+use std::f64::consts::PI;
 use watch::{check_finite, Alternation};
 
 pub use crate::slow::total_skin;
@@ -56,6 +56,8 @@ struct BlockPush {
     bounded: bool,
     /// Time the block was held at its thrust bound, s.
     stalled_s: f64,
+    /// That bound, m.
+    bound_m: f64,
 }
 
 impl BlockPush {
@@ -70,7 +72,7 @@ impl BlockPush {
                 "the surge block reached its downstroke thrust (drive.max_thrust) for {:.3} s in \
                  all: the head under it was held at {:.2} m and the block lagged its stroke; \
                  the stroke delivered less than its displacement",
-                self.stalled_s, self.peak_head_m
+                self.stalled_s, self.bound_m
             ));
         } else if !self.bounded {
             warnings.push(format!(
@@ -483,6 +485,7 @@ pub fn run_from_state(
             }
             if h_well > block.max_head_m() - crate::devices::VAPOUR_MARGIN_M {
                 push.stalled_s += b.dt_s;
+                push.bound_m = block.max_head_m();
             }
         }
         summary.well_head_range_m = (

@@ -351,8 +351,7 @@ impl Stepper {
     /// sealed head gives way to one free surface, drawn down by the volume the tool took
     /// and the water did not fill: `H = −V/S_w` (0 when the column did not part).
     pub fn step(&mut self, model: &Model, dt: f64, theta: f64) -> Result<(), SolverError> {
-        let (h0, vapour, was_sealed, col) =
-            (self.h[0], self.vapour, self.was_sealed, self.column);
+        let (h0, vapour, was_sealed, col) = (self.h[0], self.vapour, self.was_sealed, self.column);
         // The step belongs to the stage it ends (as in `stage`): a step that lands on the end
         // of a sealed stage is still sealed.
         let t_theta = (self.time_s + theta * dt).min(left_limit(self.time_s + dt));

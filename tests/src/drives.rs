@@ -208,12 +208,22 @@ pub fn surge_limits() -> Vec<CheckResult> {
     // the block must never exceed H_push = F/(ρ g A_block) (the bound's definition) and the
     // well's volume balance still closes (the lag of the block is displacement not made).
     let mut b = surge(0.01, 0.0);
-    let unbounded = run(&model, &mut boreflux_solver::diagnostics::NullObserver, Reporting::default()).expect("run");
+    let unbounded = run(
+        &model,
+        &mut boreflux_solver::diagnostics::NullObserver,
+        Reporting::default(),
+    )
+    .expect("run");
     b.max_push_head_m = 0.25 * unbounded.well_head_range_m.1;
     let mut model = aquifer(Drive::SurgeBlock(b), 10.0);
     model.pack.medium.conductivity_m_s = 1e-12;
     model.formation.medium.conductivity_m_s = 1e-12;
-    let s = run(&model, &mut boreflux_solver::diagnostics::NullObserver, Reporting::default()).expect("run");
+    let s = run(
+        &model,
+        &mut boreflux_solver::diagnostics::NullObserver,
+        Reporting::default(),
+    )
+    .expect("run");
     let thrust = CheckResult::new(
         "drives",
         "downstroke thrust bound: highest head under the block minus H_push",
@@ -238,7 +248,6 @@ pub fn surge_limits() -> Vec<CheckResult> {
     );
     vec![flow, orifice, thrust, reached]
 }
-
 
 /// A fast single swab stroke, then recovery, against the slug solution (issue #5 check 3).
 ///

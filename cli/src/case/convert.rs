@@ -137,7 +137,11 @@ fn column_length(
     log: &mut Log,
 ) -> Result<(), CaseError> {
     let field = "well.column_length";
-    let given = raw.column_length.as_ref().map(|q| q.si(field)).transpose()?;
+    let given = raw
+        .column_length
+        .as_ref()
+        .map(|q| q.si(field))
+        .transpose()?;
     let d = match given {
         Some(d) if !(d.is_finite() && d >= 0.0) => {
             return Err(CaseError::new(

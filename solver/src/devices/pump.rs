@@ -61,7 +61,10 @@ impl PumpTable {
         if !(2..=MAX_PUMP_POINTS).contains(&n) {
             return bad(format!("needs 2 to {MAX_PUMP_POINTS} points, got {n}"));
         }
-        if points.iter().any(|(q, h)| !(q.is_finite() && h.is_finite())) {
+        if points
+            .iter()
+            .any(|(q, h)| !(q.is_finite() && h.is_finite()))
+        {
             return bad("every rate and head must be a finite number".into());
         }
         if points[0].0 != 0.0 {

@@ -10,10 +10,10 @@ use crate::case::checks::{non_negative, positive};
 use crate::case::error::CaseError;
 use crate::case::quantity::Pressure;
 use crate::case::quantity::{Area, Force, Frequency, Kind, Length, Time, Q};
+use crate::summary::G;
 use crate::units::{format_si, Quantity};
 use boreflux_solver::devices::{net_atmospheric_head_m, Kinematics, SurgeBlock, Swab};
 use boreflux_solver::water::{vapour_pressure_pa, GRAVITY_M_S2, STANDARD_ATMOSPHERE_PA};
-use crate::summary::G;
 use boreflux_solver::Drive;
 use schemars::JsonSchema;
 use serde::Deserialize;
@@ -268,8 +268,9 @@ pub fn surge_block(
         .as_ref()
         .map(|q| positive("drive.max_thrust", q.si("drive.max_thrust")?, "N"))
         .transpose()?;
-    let max_push_head_m =
-        max_thrust_n.map_or(f64::INFINITY, |f| f / (ctx.density_kg_m3 * GRAVITY_M_S2 * a_block));
+    let max_push_head_m = max_thrust_n.map_or(f64::INFINITY, |f| {
+        f / (ctx.density_kg_m3 * GRAVITY_M_S2 * a_block)
+    });
     let block = SurgeBlock {
         max_push_head_m,
         block_radius_m,
