@@ -127,7 +127,7 @@ impl PumpTable {
         if lift >= x[n - 1] {
             return (0.0, 0.0);
         }
-        if lift <= x[0] {
+        if lift < x[0] {
             return (y[0], 0.0);
         }
         let k = x.partition_point(|&xi| xi <= lift).clamp(1, n - 1) - 1;
