@@ -54,6 +54,8 @@ pub struct TableDrive {
 }
 
 /// A development or test drive.
+// A pump curve given by points is kept inline in `PumpBackwash` (see `PumpLaw`).
+#[allow(clippy::large_enum_variant)]
 #[derive(Debug, Clone, PartialEq)]
 pub enum Drive {
     /// Sinusoidal in-well head.

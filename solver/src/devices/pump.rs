@@ -11,6 +11,9 @@ use crate::water::GRAVITY_M_S2;
 pub const SUCTION_BAND_M: f64 = 0.05;
 
 /// What the pump delivers while it runs.
+// The tabulated curve is kept inline (a few hundred bytes): the law stays `Copy` and is read
+// in the time loop without a pointer to follow; a drive is built once per run.
+#[allow(clippy::large_enum_variant)]
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub enum PumpLaw {
     /// A constant rate, m³/s (positive = withdrawal), whatever the lift.
@@ -159,9 +162,9 @@ fn pchip_slopes(x: &[f64], y: &[f64], d: &mut [f64]) {
         d[1] = m(0);
         return;
     }
-    for k in 1..n - 1 {
+    for (k, dk) in d.iter_mut().enumerate().take(n - 1).skip(1) {
         let (m0, m1) = (m(k - 1), m(k));
-        d[k] = if m0 * m1 <= 0.0 {
+        *dk = if m0 * m1 <= 0.0 {
             0.0
         } else {
             let (w1, w2) = (2.0 * h(k) + h(k - 1), h(k) + 2.0 * h(k - 1));
