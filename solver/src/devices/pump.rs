@@ -397,3 +397,59 @@ fn pos(field: &str, v: f64) -> Result<(), SolverError> {
         ))
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// An invented curve (test input only), the one of tests/data/devices.json.
+    const POINTS: [(f64, f64); 6] = [
+        (0.0, 40.0),
+        (0.004, 39.0),
+        (0.008, 36.5),
+        (0.012, 32.0),
+        (0.016, 25.5),
+        (0.020, 17.0),
+    ];
+
+    #[test]
+    fn the_curve_passes_through_its_points_and_falls_between_them() {
+        // Interpolation and monotonicity are the interpolant's defining properties (no
+        // outside value needed).
+        let t = PumpTable::new(&POINTS).unwrap();
+        for &(q, h) in &POINTS {
+            assert!(
+                (t.rate(h).0 - q).abs() <= 1e-15,
+                "{h}: {} vs {q}",
+                t.rate(h).0
+            );
+        }
+        let mut last = f64::INFINITY;
+        for i in 0..=2400 {
+            let lift = 16.0 + 25.0 * i as f64 / 2400.0;
+            let (q, dq) = t.rate(lift);
+            assert!(
+                q <= last && dq <= 0.0,
+                "lift {lift}: {q} after {last}, slope {dq}"
+            );
+            last = q;
+        }
+        assert_eq!(t.rate(45.0), (0.0, 0.0));
+        assert_eq!(t.rate(10.0), (0.02, 0.0));
+    }
+
+    #[test]
+    fn a_curve_out_of_order_is_refused_naming_the_field() {
+        let cases: [&[(f64, f64)]; 5] = [
+            &[(0.0, 40.0)],
+            &[(0.001, 40.0), (0.004, 30.0)],
+            &[(0.0, 40.0), (0.004, 39.0), (0.003, 35.0)],
+            &[(0.0, 40.0), (0.004, 39.0), (0.008, 39.5)],
+            &[(0.0, 40.0), (0.004, f64::NAN)],
+        ];
+        for pts in cases {
+            let e = PumpTable::new(pts).unwrap_err().to_string();
+            assert!(e.contains("drive.pump_curve.points"), "{e}");
+        }
+    }
+}
