@@ -335,11 +335,14 @@ pub fn surge_block(
     ));
     notes.push(match max_thrust_n {
         Some(f) => format!(
-            "surge block: downstroke thrust at most {} N, so the head under the block stays              below {} (the block lags its stroke there)",
+            "surge block: downstroke thrust at most {} N, so the head under the block stays \
+             below {} (the block lags its stroke there)",
             G(f, 4),
             format_si(max_push_head_m, Quantity::Head)
         ),
-        None => "surge block: drive.max_thrust not given: the block follows its stroke                  whatever the head under it (a block on a cable pushes only with its and the                  string's weight in water; give it to bound the downstroke)"
+        None => "surge block: drive.max_thrust not given: the block follows its stroke \
+                 whatever the head under it (a block on a cable pushes only with its and the \
+                 string's weight in water; give it to bound the downstroke)"
             .to_owned(),
     });
     let mut resolved = into_map(json!({
