@@ -23,6 +23,7 @@ pub fn model(cells: usize, nonlinear: bool) -> Model {
             linear_loss_s: 0.0,
             discharge_coefficient: nonlinear.then_some(0.6),
             storage_m2: 0.0,
+            column_length_m: 0.0,
         },
         pack: Pack {
             outer_radius_m: 0.2,

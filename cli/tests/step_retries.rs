@@ -61,8 +61,14 @@ fn slug_stage_then_surge_block_stage_finishes() {
         s.steps, s.retried_solves, s.rejected_steps
     );
     m.numerics.scheme = Scheme::Theta;
+    // With the water column's inertia (the case's default column) the screen flow cannot
+    // jump when the block starts, and the θ-scheme finishes too.
+    let s = run(&m, &mut NullObserver, Reporting::default()).unwrap();
+    assert_eq!(s.end_time_s, 120.0);
+    // The quasi-static well (no column inertia) still defeats Crank–Nicolson here.
+    m.well.column_length_m = 0.0;
     let e = run(&m, &mut NullObserver, Reporting::default());
-    println!("theta: {e:?}");
+    println!("theta, no inertia: {e:?}");
     assert!(matches!(e, Err(SolverError::NewtonFailed { .. })), "{e:?}");
 }
 
@@ -127,7 +133,10 @@ fn a_vapour_gap_closes_when_the_sealed_stage_ends() {
 fn round_off_behind_a_sealing_cake_is_not_a_poor_balance() {
     let mut v = case("irrigation-pump-surge.json");
     v["cake"]["conductivity"] = json!("1e-10 m/s");
-    let m = model(&v);
+    let mut m = model(&v);
+    // The quasi-static well: the column's inertia smooths the pump switches enough that the
+    // raw residual stays below 1e-8, and this test is about the round-off floor.
+    m.well.column_length_m = 0.0;
     let s = run(&m, &mut NullObserver, Reporting::default()).unwrap();
     println!(
         "volume residual {:.2e}, beyond round-off {:.2e}",

@@ -151,7 +151,8 @@ pub fn face_state(model: &Model, st: &Stepper) -> FaceState {
     let h = st.heads();
     let g = &d.grid;
     let b = model.well.screen_length_m;
-    let (q_screen, _) = d.faces[0].flow(h[0] - h[1]);
+    // The column's flow when it has inertia, else face 0's law (`Stepper::screen_flow`).
+    let q_screen = st.screen_flow();
     let screen = d.faces[0].segments()[0];
     let screen_drop = crate::faces::Face::segment_drop(&screen, q_screen);
     let kb = g.borehole_face;
@@ -164,7 +165,7 @@ pub fn face_state(model: &Model, st: &Stepper) -> FaceState {
     let r_h = hydraulic_radius_m(pack, rho, model.fluid.viscosity_pa_s);
     FaceState {
         screen_flow_m3_s: q_screen,
-        screen_outer_head_m: h[0] - screen_drop,
+        screen_outer_head_m: st.screen_head() - screen_drop,
         wall_flow_m3_s: q_wall,
         flux_m_s: q,
         gradient: gradient(outer, q),

@@ -54,6 +54,8 @@ pub struct TableDrive {
 }
 
 /// A development or test drive.
+// A pump curve given by points is kept inline in `PumpBackwash` (see `PumpLaw`).
+#[allow(clippy::large_enum_variant)]
 #[derive(Debug, Clone, PartialEq)]
 pub enum Drive {
     /// Sinusoidal in-well head.
@@ -312,6 +314,43 @@ impl Drive {
         }
     }
 
+    /// Depth below the static level of the top of the water column that moves with the
+    /// screen flow at time t, m: the surge block, the rising swab cups (the water below a
+    /// sealing tool), or 0 for a free surface (taken at the static level: the column's
+    /// length is not changed by the well's own drawdown, docs/physics.md §24).
+    pub fn column_top_depth_m(&self, t: f64) -> f64 {
+        match self.stage_at(t) {
+            (Drive::SurgeBlock(b), _) => b.depth_m,
+            (Drive::Swab(s), tl) => s.cup_depth_m(tl).unwrap_or(0.0),
+            _ => 0.0,
+        }
+    }
+
+    /// Deepest tool of the drive below the static level, m: a surge block's depth, a swab's
+    /// submergence, a pump's intake depth (0 when none is given). The screen lies at least
+    /// this deep unless the tool works inside it; the case file uses it as the default
+    /// length of the water column above the screen.
+    pub fn deepest_tool_m(&self) -> f64 {
+        match self {
+            Drive::SurgeBlock(b) => b.depth_m,
+            Drive::Swab(s) => s.submergence_m,
+            Drive::PumpBackwash(p) if p.intake_depth_m.is_finite() => p.intake_depth_m,
+            Drive::Schedule(stages) => stages
+                .iter()
+                .map(|s| s.drive.deepest_tool_m())
+                .fold(0.0, f64::max),
+            _ => 0.0,
+        }
+    }
+
+    /// The surge block working at time t, if any.
+    pub fn surge_block_at(&self, t: f64) -> Option<&SurgeBlock> {
+        match self.stage_at(t).0 {
+            Drive::SurgeBlock(b) => Some(b),
+            _ => None,
+        }
+    }
+
     /// Vapour bound of the in-well head at time t, m: the lowest head a sealed tool can
     /// pull (−∞ when no tool seals the well).
     pub fn vapour_bound_m(&self, t: f64) -> f64 {
@@ -328,6 +367,10 @@ impl Drive {
     pub fn at_limit(&self, t: f64, h: f64) -> bool {
         match self.stage_at(t) {
             (Drive::PumpBackwash(p), tl) => p.is_on(tl) && p.suction_broken(h),
+            (Drive::SurgeBlock(b), _) => {
+                h < b.min_head_m() + crate::devices::VAPOUR_MARGIN_M
+                    || h > b.max_head_m() - crate::devices::VAPOUR_MARGIN_M
+            }
             _ => h < self.vapour_bound_m(t) + crate::devices::VAPOUR_MARGIN_M,
         }
     }

@@ -451,6 +451,7 @@ fn pump_backwash(p: &PumpBackwash) -> Result<(), SolverError> {
         PumpLaw::Quadratic { shutoff_head_m, .. } => {
             HEAD.check("drive.pump_curve.shutoff_head", shutoff_head_m)?
         }
+        PumpLaw::Table(t) => HEAD.check("drive.pump_curve.points", t.shutoff_head_m())?,
     }
     SWAB_LENGTH.check("drive.intake_depth", p.intake_depth_m)?;
     HEAD.check("drive.discharge_height", p.discharge_height_m)?;

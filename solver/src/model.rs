@@ -75,6 +75,11 @@ pub struct Well {
     /// Well-bore storage C = dV/dH, m². π r_c² for a free surface; may be 0 for a
     /// rate-controlled well without storage.
     pub storage_m2: f64,
+    /// Effective length of the water column from the static level to the screen, L_e, m
+    /// (docs/physics.md §24): its mass L_e ρ A_c, A_c = π r_c², makes the head that
+    /// accelerates it, (L_e/g) dv/dt. Under a tool at depth d the column below the tool
+    /// is L_e − d. 0: no column inertia (the quasi-static well of earlier versions).
+    pub column_length_m: f64,
 }
 
 impl Well {
@@ -347,6 +352,7 @@ impl Model {
         positive("well.casing_radius", w.casing_radius_m)?;
         non_negative("well.screen_loss", w.linear_loss_s)?;
         non_negative("well.storage", w.storage_m2)?;
+        non_negative("well.column_length", w.column_length_m)?;
         if let Some(cd) = w.discharge_coefficient {
             if !(cd.is_finite() && cd > 0.0 && cd <= 1.0) {
                 return Err(SolverError::invalid(

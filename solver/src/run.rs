@@ -26,8 +26,9 @@ use crate::error::SolverError;
 use crate::grid::ZONE_COUNT;
 use crate::model::{Model, Scheme, TimeSpec};
 use crate::slow::{Change, SlowState};
-use crate::stepper::{Stepper, Tolerances};
+use crate::stepper::{left_limit, Stepper, Tolerances};
 use crate::water::GRAVITY_M_S2;
+use std::f64::consts::PI;
 use watch::{check_finite, Alternation};
 
 pub use crate::slow::total_skin;
@@ -43,6 +44,48 @@ pub const RESTART_FRACTION: f64 = 1e-2;
 /// Steps shorter than this fraction of the duration (and of 1 s) are accepted whatever
 /// their error estimate, counted and reported (round-off of the clock).
 const SMALLEST_STEP: f64 = 1e-12;
+
+/// The push of a surge block on its downstroke over a run (docs/devices.md §2).
+#[derive(Debug, Default)]
+struct BlockPush {
+    /// Highest head under the block, m.
+    peak_head_m: f64,
+    /// Area of the block there, m².
+    area_m2: f64,
+    /// Whether the block's thrust was bounded (`drive.max_thrust`).
+    bounded: bool,
+    /// Time the block was held at its thrust bound, s.
+    stalled_s: f64,
+    /// That bound, m.
+    bound_m: f64,
+}
+
+impl BlockPush {
+    /// The run's warning on the block's downstroke thrust, if any.
+    fn warn(&self, model: &Model, warnings: &mut Vec<String>) {
+        if self.peak_head_m <= 0.0 {
+            return;
+        }
+        let thrust_n = model.fluid.density_kg_m3 * GRAVITY_M_S2 * self.peak_head_m * self.area_m2;
+        if self.bounded && self.stalled_s > 0.0 {
+            warnings.push(format!(
+                "the surge block reached its downstroke thrust (drive.max_thrust) for {:.3} s in \
+                 all: the head under it was held at {:.2} m and the block lagged its stroke; \
+                 the stroke delivered less than its displacement",
+                self.stalled_s, self.bound_m
+            ));
+        } else if !self.bounded {
+            warnings.push(format!(
+                "the downstroke pushed the head under the surge block up to {:.2} m, a thrust \
+                 of {:.3} kN on the block (density x g x head x block area); a block worked on \
+                 a cable pushes only with its own and the string's weight in water: if that is \
+                 less, give drive.max_thrust, or the push and the outward flow are overstated",
+                self.peak_head_m,
+                thrust_n / 1e3
+            ));
+        }
+    }
+}
 
 /// Default steps per period for periodic drives.
 pub const DEFAULT_STEPS_PER_CYCLE: usize = 200;
@@ -327,6 +370,7 @@ pub fn run_from_state(
         min_step_s: f64::INFINITY,
         warnings: Vec::new(),
     };
+    let mut push = BlockPush::default();
     let mut chooser = StepChooser::new(model);
     let mut last_jump = 0.0;
     let mut cycles = model
@@ -386,7 +430,8 @@ pub fn run_from_state(
             *w += rho_g * b.dissipated[k];
         }
         summary.energy_in_j += rho_g * b.energy_in;
-        summary.storage_energy_j += rho_g * b.storage_energy_change;
+        // Stored energy: the formation's elastic storage and the water column's kinetic energy.
+        summary.storage_energy_j += rho_g * (b.storage_energy_change + b.kinetic_energy_change);
         summary.numerical_dissipation_j += rho_g * b.numerical_dissipation;
         summary.max_mass_residual = summary.max_mass_residual.max(b.mass_residual);
         summary.max_mass_excess = summary.max_mass_excess.max(b.mass_excess);
@@ -422,12 +467,27 @@ pub fn run_from_state(
                 chooser.restart();
             }
         }
+        // The differential across the screen: the head inside it is the well head less the
+        // column's inertial head (docs/physics.md §24).
+        let h_screen = st.screen_head();
         summary.peak_collapse_head_m = summary
             .peak_collapse_head_m
-            .max(face.screen_outer_head_m - h_well);
+            .max(face.screen_outer_head_m - h_screen);
         summary.peak_burst_head_m = summary
             .peak_burst_head_m
-            .max(h_well - face.screen_outer_head_m);
+            .max(h_screen - face.screen_outer_head_m);
+        // The head a surge block pushed under it, and the time it was held at its thrust.
+        if let Some(block) = model.drive.surge_block_at(left_limit(st.time_s)) {
+            if h_well > push.peak_head_m {
+                push.peak_head_m = h_well;
+                push.area_m2 = PI * block.block_radius_m * block.block_radius_m;
+                push.bounded = block.max_head_m().is_finite();
+            }
+            if h_well > block.max_head_m() - crate::devices::VAPOUR_MARGIN_M {
+                push.stalled_s += b.dt_s;
+                push.bound_m = block.max_head_m();
+            }
+        }
         summary.well_head_range_m = (
             summary.well_head_range_m.0.min(h_well),
             summary.well_head_range_m.1.max(h_well),
@@ -511,12 +571,22 @@ pub fn run_from_state(
              head under it reached the vapour bound (atmospheric pressure less the vapour \
              pressure, plus the tool's depth below the static level) because the formation \
              could not supply the tool's displacement; the suction and the collapse load are \
-             capped there, and the tool's work beyond it went into the vapour gap; the column \
-             rejoins at once in this model (no water-column inertia), so the flows just after \
-             each rejoining are an upper bound",
-            summary.column_partings, summary.parted_time_s
+             capped there, and the tool's work beyond it went into the vapour gap; {}",
+            summary.column_partings,
+            summary.parted_time_s,
+            if model.well.column_length_m > 0.0 {
+                "the column keeps its momentum when it parts and rejoins (water-column \
+                 inertia), but water and casing are taken rigid: the head spike when the column \
+                 strikes the tool again is resolved only to the step length and is not a \
+                 reliable pressure (a water-hammer estimate, density x wave speed x the \
+                 velocity change, bounds it)"
+            } else {
+                "the column rejoins at once in this model (no water-column inertia), so the \
+                 flows just after each rejoining are an upper bound"
+            }
         ));
     }
+    push.warn(model, &mut summary.warnings);
     if let Some((t, what)) = oscillation {
         summary.warnings.push(format!(
             "the {what} alternated in sign from step to step over {} steps in a row (first at \

@@ -47,6 +47,7 @@ use crate::model::Model;
 use crate::system::{CakeState, Discretization};
 use crate::tridiag::Factored;
 
+mod column;
 mod newton;
 mod power;
 mod predictor;
@@ -54,6 +55,7 @@ mod residual;
 mod trbdf2;
 mod well;
 
+pub use column::column_inertance;
 pub use trbdf2::{ErrorNorm, Tolerances, GAMMA};
 
 /// A face flow within this many ulps of ε g |h| is round-off (as in Newton's acceptance).
@@ -111,6 +113,9 @@ pub struct StepBalance {
     pub dissipated: [f64; ZONE_COUNT],
     /// Change of elastic storage energy ½ Σ S h², m⁴.
     pub storage_energy_change: f64,
+    /// Change of the water column's kinetic energy ½ M Q², m⁴ (0 without column inertia;
+    /// see `stepper/column.rs`).
+    pub kinetic_energy_change: f64,
     /// Numerical dissipation of the θ-scheme (θ−½) Σ S Δh², m⁴ (zero for Crank–Nicolson).
     pub numerical_dissipation: f64,
     /// Energy the device put into the well column (in-well head × device flow), m⁴.
@@ -149,7 +154,8 @@ pub struct Stepper {
     rhs: Vec<f64>,
     scratch: Vec<f64>,
     factored: Factored,
-    factored_for: Option<(f64, Control, f64)>,
+    /// (θΔt, control, S_w/(θΔt), column inertance m) of the factored matrix.
+    factored_for: Option<(f64, Control, f64, f64)>,
     /// Whether the device flow depends on the in-well head.
     head_dependent: bool,
     /// Head drop, flow and dQ/dΔh of every face at the current Newton iterate.
@@ -214,6 +220,10 @@ pub struct Stepper {
     partings: u64,
     /// Time the column spent parted, s.
     parted_time_s: f64,
+    /// The water column's flow and the current stage's inertance (`stepper/column.rs`).
+    column: column::Column,
+    /// `column` at the start of the last TR-BDF2 step (for `undo_step`).
+    column_start: column::Column,
 }
 
 impl Stepper {
@@ -225,6 +235,12 @@ impl Stepper {
         h[0] = model.drive.initial_well_head_m();
         let disc_linear = disc.is_linear();
         let linear = disc_linear && !model.drive.is_head_dependent();
+        // The water is at rest at t = 0: a column with inertia starts with no flow (a slug
+        // is an initial head, not an initial flow).
+        let column = column::Column {
+            inertial: column_inertance(model, 0.0) > 0.0,
+            ..Default::default()
+        };
         Stepper {
             disc,
             y: h.clone(),
@@ -267,6 +283,8 @@ impl Stepper {
             damped_steps: 0,
             partings: 0,
             parted_time_s: 0.0,
+            column,
+            column_start: column,
         }
     }
 
@@ -333,7 +351,7 @@ impl Stepper {
     /// sealed head gives way to one free surface, drawn down by the volume the tool took
     /// and the water did not fill: `H = −V/S_w` (0 when the column did not part).
     pub fn step(&mut self, model: &Model, dt: f64, theta: f64) -> Result<(), SolverError> {
-        let (h0, vapour, was_sealed) = (self.h[0], self.vapour, self.was_sealed);
+        let (h0, vapour, was_sealed, col) = (self.h[0], self.vapour, self.was_sealed, self.column);
         // The step belongs to the stage it ends (as in `stage`): a step that lands on the end
         // of a sealed stage is still sealed.
         let t_theta = (self.time_s + theta * dt).min(left_limit(self.time_s + dt));
@@ -364,6 +382,7 @@ impl Stepper {
             self.parted_time_s,
             self.damped_steps,
             self.time_s,
+            self.column,
         );
         let mut r = self.step_inner(model, dt, theta);
         if r.is_ok() && theta != 1.0 && at_limit(self) {
@@ -377,6 +396,7 @@ impl Stepper {
                 self.parted_time_s,
                 self.damped_steps,
                 self.time_s,
+                self.column,
             ) = start;
             self.predictor.forget();
             r = self.step_inner(model, dt, 1.0);
@@ -385,6 +405,7 @@ impl Stepper {
             self.h[0] = h0;
             self.vapour = vapour;
             self.was_sealed = was_sealed;
+            self.column = col;
         }
         r
     }
@@ -436,21 +457,17 @@ impl Stepper {
     /// device's limit holds the well head (a kink in the device's law, with a vapour gap or
     /// a broken suction carried from step to step): such a step, and a TR-BDF2 step that
     /// ends at a limit (redone), is one backward-Euler step, first order, as under the
-    /// θ-scheme. Its error norm is [`KEEP_STEP_NORM`], which keeps the step length. On error
-    /// the state is unchanged.
+    /// θ-scheme. Its error norm is its own first-order estimate capped at [`KEEP_STEP_NORM`]
+    /// (`Stepper::step_at_limit`): never rejected, growing where the limit holds smoothly. On
+    /// error the state is unchanged.
     pub fn step_adaptive(
         &mut self,
         model: &Model,
         dt: f64,
         tol: Tolerances,
     ) -> Result<ErrorNorm, SolverError> {
-        let kept = ErrorNorm {
-            value: KEEP_STEP_NORM,
-            index: 0,
-        };
         if self.at_device_limit(model, self.time_s + dt) {
-            self.step(model, dt, 1.0)?;
-            return Ok(kept);
+            return self.step_at_limit(model, dt, tol);
         }
         let saved = (
             self.vapour,
@@ -471,8 +488,7 @@ impl Stepper {
         if self.vapour.gap_m3 > 0.0 || model.drive.at_limit(self.time_s, self.h[0]) {
             self.undo_step();
             restore(self);
-            self.step(model, dt, 1.0)?;
-            return Ok(kept);
+            return self.step_at_limit(model, dt, tol);
         }
         Ok(err)
     }
@@ -532,11 +548,20 @@ impl Stepper {
         // ends on a jump (a schedule's next stage, a pump switched) belongs to what it ends.
         let t_end = left_limit(t_new);
         let t_theta = t_theta.min(t_end);
-        let iterations = if self.linear {
-            self.solve_linear(model, tdt, theta, t_end, t_theta)?;
-            0
+        let column_start = self.column;
+        self.begin_column_stage(model, tdt, t_theta);
+        let solved = if self.linear {
+            self.solve_linear(model, tdt, theta, t_end, t_theta)
+                .map(|_| 0)
         } else {
-            self.solve_newton(model, tdt, theta, t_end, t_theta)?
+            self.solve_newton(model, tdt, theta, t_end, t_theta)
+        };
+        let iterations = match solved {
+            Ok(i) => i,
+            Err(e) => {
+                self.column = column_start;
+                return Err(e);
+            }
         };
         // Extrapolate to the end of the step and keep the balance, in one pass.
         let n = self.h.len();
@@ -580,7 +605,14 @@ impl Stepper {
             acc.map(|a| a.iter().sum::<f64>());
         energy_change *= 0.5;
         let numerical = (theta - 0.5) * dh2;
-        if !(energy_change.is_finite() && self.scratch[0].is_finite()) {
+        // The screen flow at the θ-point heads (through the column when it has inertia),
+        // and the column's new flow and energy.
+        let q_in = self.screen_path_flow(self.y[0] - self.y[1]).0;
+        let col_before = self.column;
+        let (kinetic, col_numerical) = self.end_column_stage(q_in, theta);
+        let numerical = numerical + col_numerical;
+        if !(energy_change.is_finite() && self.scratch[0].is_finite() && kinetic.is_finite()) {
+            self.column = column_start;
             let index = self
                 .scratch
                 .iter()
@@ -592,9 +624,18 @@ impl Stepper {
             });
         }
         let mut dissipated = [0.0; ZONE_COUNT];
+        // With column inertia the screen's losses are taken at the head inside the screen,
+        // H_s = y₁ + R(Q), not at the well head (the difference accelerates the column).
+        let y0 = self.y[0];
+        if col_before.m > 0.0 {
+            self.y[0] = self.path_screen_head(self.y[1], q_in);
+            self.face_dh[0] = self.y[0] - self.y[1];
+            self.face_q[0] = q_in;
+        }
         // The Newton iteration left the flows of the converged heads in face_q.
         let faces = (!self.linear).then_some((&self.face_q[..], &self.face_dh[..]));
         self.zone_power(&self.y, faces, &mut dissipated);
+        self.y[0] = y0;
         let faces = &self.disc.faces;
         let last = n - 1;
         let q_out = if self.disc.outer_open {
@@ -602,7 +643,6 @@ impl Stepper {
         } else {
             0.0
         };
-        let q_in = faces[0].flow(self.y[0] - self.y[1]).0;
         let dev = match model.drive.control_at(t_theta) {
             Control::Head => crate::drive::DeviceFlow::default(),
             Control::Flow => model.drive.device_flow(t_theta, self.y[0], self.vapour),
@@ -627,9 +667,10 @@ impl Stepper {
         };
         let energy_in = dt * self.y[0] * q_in;
         let diss: f64 = dissipated.iter().sum();
-        let e_res = energy_change + numerical + diss - energy_in;
+        let e_res = energy_change + kinetic + numerical + diss - energy_in;
         let escale = energy_change
             .abs()
+            .max(kinetic.abs())
             .max(numerical.abs())
             .max(diss)
             .max(energy_in.abs());
@@ -663,6 +704,7 @@ impl Stepper {
             energy_in,
             dissipated,
             storage_energy_change: energy_change,
+            kinetic_energy_change: kinetic,
             numerical_dissipation: numerical,
             device_energy: dt * self.y[0] * dev.total(),
             mass_residual: if vscale > 0.0 {
@@ -704,7 +746,16 @@ impl Stepper {
             self.update_vapour(model, dt, t_theta);
         }
         if model.drive.control_at(t_theta) == Control::Flow && well_storage <= 0.0 {
-            self.h[0] = self.algebraic_well_head(model, t_end)?;
+            if !self.column.inertial {
+                self.h[0] = self.algebraic_well_head(model, t_end)?;
+            } else if theta < 1.0 {
+                // The head under a sealing tool is set by the tool's law for the column's
+                // flow (the extrapolated θ-point head would ring); a tool without leakage
+                // fixes no head for a given flow, and keeps the extrapolated one.
+                if let Ok(h) = self.tool_head_for_flow(model, t_end, self.column.q) {
+                    self.h[0] = h;
+                }
+            }
         }
         Ok(())
     }
@@ -739,10 +790,14 @@ impl Stepper {
     ) -> Result<(), SolverError> {
         let n = self.h.len();
         let well = self.well_row(model, tdt, theta, t_new, t_theta);
+        let m = self.column.m;
         let key = match well {
-            WellRow::Fixed(_) => (tdt, Control::Head, 0.0),
-            WellRow::Storage { s_over_tdt, .. } => (tdt, Control::Flow, s_over_tdt),
+            WellRow::Fixed(_) => (tdt, Control::Head, 0.0, m),
+            WellRow::Storage { s_over_tdt, .. } => (tdt, Control::Flow, s_over_tdt, m),
         };
+        // The screen path: face 0, with the column in series when it has inertia
+        // (`stepper/column.rs`): Q = c₀ (y₀ − y₁ + m Qⁿ).
+        let c0 = 1.0 / (self.disc.faces[0].r_lin() + m);
         if self.factored_for != Some(key) {
             for j in 0..n {
                 self.lower[j] = 0.0;
@@ -755,7 +810,11 @@ impl Stepper {
             }
             let last = n - 1;
             for j in 0..last {
-                let c = self.disc.faces[j].conductance();
+                let c = if j == 0 {
+                    c0
+                } else {
+                    self.disc.faces[j].conductance()
+                };
                 self.diag[j] += c;
                 self.upper[j] = -c;
                 self.diag[j + 1] += c;
@@ -788,6 +847,11 @@ impl Stepper {
             .zip(&self.h[1..])
         {
             *y = g * h;
+        }
+        if m > 0.0 {
+            let shift = c0 * m * self.column.q_old;
+            self.y[0] -= shift;
+            self.y[1] += shift;
         }
         self.factored.solve(&mut self.y);
         Ok(())

@@ -18,6 +18,7 @@ fn model(drive: Drive, duration_s: f64) -> Model {
             linear_loss_s: 0.0,
             discharge_coefficient: Some(0.6),
             storage_m2: Well::free_surface_storage(0.077),
+            column_length_m: 0.0,
         },
         pack: Pack {
             outer_radius_m: 0.15,
@@ -98,6 +99,7 @@ fn swab_parting_is_reported_inside_a_schedule() {
 fn municipal_block(duration_s: f64) -> Model {
     use boreflux_solver::devices::{Kinematics, SurgeBlock};
     let block = SurgeBlock {
+        max_push_head_m: f64::INFINITY,
         block_radius_m: 0.178,
         casing_radius_m: 0.1905,
         stroke_m: 0.9,
@@ -120,6 +122,7 @@ fn municipal_block(duration_s: f64) -> Model {
         linear_loss_s: 0.0,
         discharge_coefficient: Some(0.6),
         storage_m2: Well::free_surface_storage(0.1905),
+        column_length_m: 0.0,
     };
     m
 }
@@ -312,6 +315,7 @@ fn pumped_cake_model(scheme: Scheme, dt: f64) -> Model {
         linear_loss_s: 0.0,
         discharge_coefficient: Some(0.6),
         storage_m2: Well::free_surface_storage(0.162),
+        column_length_m: 0.0,
     };
     m.pack = Pack {
         outer_radius_m: 0.28,

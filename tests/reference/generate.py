@@ -37,6 +37,7 @@ import mpmath as mp
 import numpy as np
 import scipy
 import scipy.integrate
+import scipy.interpolate
 import scipy.optimize
 import scipy.special
 
@@ -1425,6 +1426,33 @@ def devices():
     diffs.append(rel_diff(q_star, q_quad))
     pump_curve = dict(pk, skin=f(skin), Q_m3_s=f(q_star), H_well_m=f(-per_q * q_star))
 
+    # The same aquifer and discharge with a pump curve given by points (an invented curve,
+    # test input only), read as the rate for a lift by monotone cubic Hermite interpolation
+    # (scipy.interpolate.PchipInterpolator on lift -> rate); the pump runs where
+    # Q = Q_pchip(z_d + per_q Q).
+    pts = [[0.0, 40.0], [0.004, 39.0], [0.008, 36.5], [0.012, 32.0], [0.016, 25.5],
+           [0.020, 17.0]]
+    lifts = [p[1] for p in reversed(pts)]
+    rates = [p[0] for p in reversed(pts)]
+    pchip = scipy.interpolate.PchipInterpolator(lifts, rates)
+
+    def table_mismatch(q):
+        return float(pchip(pk["z_d"] + per_q * q)) - q
+
+    q_tab = scipy.optimize.brentq(table_mismatch, 0.0, pts[-1][0], xtol=1e-16, rtol=1e-15)
+    q_tab_bisect = scipy.optimize.bisect(table_mismatch, 0.0, pts[-1][0], xtol=1e-16,
+                                         rtol=1e-15)
+    diffs.append(rel_diff(q_tab, q_tab_bisect))
+    sample_lifts = [17.0, 18.3, 21.0, 25.5, 28.7, 33.3, 37.9, 39.5, 39.99]
+    pump_table = {
+        "points": pts,
+        "Q_m3_s": f(q_tab),
+        "H_well_m": f(-per_q * q_tab),
+        "sample_lifts": sample_lifts,
+        "sample_rates": [f(float(pchip(x))) for x in sample_lifts],
+        "sample_slopes": [f(float(pchip.derivative()(x))) for x in sample_lifts],
+    }
+
     # Jet: flow through n nozzles of diameter d at exit velocity v, and the stagnation
     # pressure of the share eta of the velocity head (Bernoulli, p = eta rho v^2/2).
     jet = {"n": 2, "d": 0.008, "v": 45.0, "eta": 0.5, "T_C": 16.0}
@@ -1454,6 +1482,9 @@ def devices():
                 "rho: iapws.IAPWS95(T, P=0.101325).rho",
                 "parted time: math.asin for the parting, scipy.optimize.brentq on the gap "
                 "volume for the closing, scipy.integrate.quad as cross-check",
+                "pump curve by points: scipy.interpolate.PchipInterpolator(lift, rate) and "
+                "its derivative(); operating point by scipy.optimize.brentq, cross-checked "
+                "by scipy.optimize.bisect",
             ],
         },
         "conventions": "SI units; pressures in Pa; heads in m relative to the static level",
@@ -1466,10 +1497,12 @@ def devices():
                         "t_part_s": f(t1), "t_close_s": f(t2),
                         "parted_per_cycle_s": f(t2 - t1)},
         "pump_curve": pump_curve,
+        "pump_table": pump_table,
         "jet": jet,
         "cross_check": ("closed-form first-yield pressure vs brentq on the Lame stress; gap "
                         "volume at closure by quadrature (relative to the stroke volume); pump "
-                        "operating point by brentq vs the quadratic formula"),
+                        "operating point by brentq vs the quadratic formula; tabulated pump "
+                        "curve's operating point by brentq vs bisect"),
         "cross_check_max_rel_diff": f(max(diffs)),
     }
 
@@ -1581,6 +1614,103 @@ def conductance_jump():
     }
 
 
+# ---------------------------------------------------------------------------------------
+# slug test with an inertial water column
+# ---------------------------------------------------------------------------------------
+
+INERTIA_CASES = [
+    # Underdamped: a long column over a highly transmissive screened layer (invented
+    # numbers chosen to ring, not a field case).
+    {"name": "underdamped", "rw": 0.1, "rc": 0.1, "b": 10.0, "k": 1e-2, "ss": 1e-5,
+     "le": 30.0, "w0": 1.0,
+     "times": [0.5, 1.0, 2.0, 3.0, 4.0, 5.0, 6.0, 8.0, 10.0, 12.0, 15.0, 20.0]},
+    # Overdamped: a short column over a moderately transmissive layer (invented numbers).
+    {"name": "overdamped", "rw": 0.1, "rc": 0.1, "b": 5.0, "k": 2e-4, "ss": 1e-5,
+     "le": 10.0, "w0": 1.0,
+     "times": [0.5, 1.0, 2.0, 5.0, 10.0, 20.0, 50.0, 100.0, 200.0]},
+]
+
+
+def inertia_fbar(c, le=None):
+    """Laplace transform of w(t)/w0 for a slug test with an inertial water column.
+
+    Written here from the equations of docs/physics.md section 24 (the form of Kipp 1985,
+    Water Resour. Res. 21(9), 1397-1408, and of Butler & Zhan 2004, Water Resour. Res. 40,
+    W12402; cited from memory - verify), with w the free-surface displacement, Q the column
+    flow into the formation, H_s the head in the screen, A_c = pi rc^2, M = L_e/(g A_c):
+
+        mass:      A_c w' = -Q
+        momentum:  M Q'   = w - H_s
+        formation: Qbar = Phi(p) Hbar_s,
+                   Phi = 2 pi T rw q K1(q rw)/K0(q rw),  q = sqrt(p S/T)   (infinite layer)
+
+    With w(0) = w0, Q(0) = 0: wbar/w0 = 1/(p + 1/(A_c (M p + 1/Phi))).
+    """
+    le = c["le"] if le is None else le
+    t_ = c["k"] * c["b"]
+    s_ = c["ss"] * c["b"]
+    a_c = mp.pi * c["rc"] ** 2
+    mass = le / (G * a_c)
+
+    def fbar(p):
+        q = mp.sqrt(p * s_ / t_)
+        x = q * c["rw"]
+        phi = 2 * mp.pi * t_ * x * mp.besselk(1, x) / mp.besselk(0, x)
+        return 1 / (p + 1 / (a_c * (mass * p + 1 / phi)))
+
+    return fbar
+
+
+def inertia():
+    """Slug test with an inertial water column (Kipp 1985; Butler & Zhan 2004)."""
+    cases, diffs = [], []
+    for c in INERTIA_CASES:
+        vals = []
+        for t in c["times"]:
+            talbot = invert(inertia_fbar(c), t, "talbot")
+            dehoog = invert(inertia_fbar(c), t, "dehoog")
+            # The response crosses zero: the disagreement is measured against w0 (= 1).
+            diffs.append(abs(f(talbot) - f(dehoog)))
+            vals.append(f(talbot))
+        # L_e = 0 must give the Cooper-Bredehoeft-Papadopulos response (slug_fbar).
+        alpha = c["rw"] ** 2 * c["ss"] * c["b"] / c["rc"] ** 2
+        for t in c["times"][:4]:
+            beta = c["k"] * c["b"] * t / c["rc"] ** 2
+            diffs.append(abs(f(invert(inertia_fbar(c, le=0.0), t, "talbot"))
+                             - f(invert(slug_fbar(alpha), beta, "talbot"))))
+        cases.append({**{k: v for k, v in c.items() if k != "times"},
+                      "t": c["times"], "w_over_w0": vals})
+    return {
+        "source": (
+            "Slug test with an inertial water column: Kipp, K.L., 1985, 'Type curve "
+            "analysis of inertial effects in the response of a well to a slug test', Water "
+            "Resour. Res. 21(9), 1397-1408; Butler, J.J., Jr., Zhan, X., 2004, 'Hydraulic "
+            "tests in highly permeable aquifers', Water Resour. Res. 40, W12402 (both cited "
+            "from memory - verify). Laplace-domain solution written from the equations "
+            "(docs/physics.md section 24), infinite homogeneous layer, no skin."
+        ),
+        "computed_with": {
+            "versions": versions(),
+            "calls": [
+                f"mpmath.invertlaplace(F, t, method='talbot') with mp.mp.dps = {MP_DPS}, "
+                "F(p) = 1/(p + 1/(A_c (M p + 1/Phi))), Phi = 2 pi T x K1(x)/K0(x), "
+                "x = rw sqrt(p S/T), mpmath.besselk",
+                "cross-check: method='dehoog'; L_e = 0 against the Cooper-Bredehoeft-"
+                "Papadopulos transform of slug_cbp.json",
+            ],
+        },
+        "conventions": (
+            "w is the free-surface displacement (head at the top of the column), w0 its "
+            "initial value, Q(0) = 0; rw screen radius, rc casing radius, b screen length, "
+            "k conductivity, ss specific storage, le effective column length L_e, m; "
+            f"g = {G} m/s^2"
+        ),
+        "cases": cases,
+        "cross_check": "Talbot vs de Hoog (absolute, in units of w0); L_e = 0 vs CBP",
+        "cross_check_max_rel_diff": f(max(diffs)),
+    }
+
+
 GENERATORS = [
     ("thiem_composite.json", thiem_composite),
     ("theis.json", theis),
@@ -1596,6 +1726,7 @@ GENERATORS = [
     ("step_drawdown.json", step_drawdown),
     ("devices.json", devices),
     ("conductance_jump.json", conductance_jump),
+    ("inertia.json", inertia),
 ]
 
 

@@ -125,6 +125,11 @@ pub fn all() -> Vec<Group> {
             run: crate::drives::vapour_bound,
         },
         Group {
+            id: "inertia",
+            title: "Slug test with an inertial water column (Kipp 1985 / Butler–Zhan 2004)",
+            run: crate::inertia::slug_with_inertia,
+        },
+        Group {
             id: "conductance_jump",
             title: "Sudden removal of a cake under a constant well head (Laplace solution)",
             run: crate::stepping::conductance_jump,

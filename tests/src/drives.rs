@@ -3,12 +3,12 @@
 
 use crate::checks::Recorder;
 use crate::models::homogeneous;
-use crate::reference::{data, load, nums, source};
+use crate::reference::{data, load, num, nums, source};
 use crate::CheckResult;
 use boreflux_solver::devices::net_atmospheric_head_m;
 use boreflux_solver::devices::SUCTION_BAND_M;
 use boreflux_solver::devices::{
-    Backflow, JetPulse, Kinematics, PumpBackwash, PumpLaw, SurgeBlock, Swab,
+    Backflow, JetPulse, Kinematics, PumpBackwash, PumpLaw, PumpTable, SurgeBlock, Swab,
 };
 use boreflux_solver::drive::{Drive, Stage};
 use boreflux_solver::model::TimeSpec;
@@ -23,6 +23,7 @@ const RW: f64 = 0.1;
 
 fn surge(clearance: f64, valve: f64) -> SurgeBlock {
     SurgeBlock {
+        max_push_head_m: f64::INFINITY,
         block_radius_m: RW - clearance,
         casing_radius_m: RW,
         stroke_m: 0.8,
@@ -203,7 +204,49 @@ pub fn surge_limits() -> Vec<CheckResult> {
         1e-3,
         "relative",
     );
-    vec![flow, orifice]
+    // The same sealed formation with the block's downstroke thrust bounded: the head under
+    // the block must never exceed H_push = F/(ρ g A_block) (the bound's definition) and the
+    // well's volume balance still closes (the lag of the block is displacement not made).
+    let mut b = surge(0.01, 0.0);
+    let unbounded = run(
+        &model,
+        &mut boreflux_solver::diagnostics::NullObserver,
+        Reporting::default(),
+    )
+    .expect("run");
+    b.max_push_head_m = 0.25 * unbounded.well_head_range_m.1;
+    let mut model = aquifer(Drive::SurgeBlock(b), 10.0);
+    model.pack.medium.conductivity_m_s = 1e-12;
+    model.formation.medium.conductivity_m_s = 1e-12;
+    let s = run(
+        &model,
+        &mut boreflux_solver::diagnostics::NullObserver,
+        Reporting::default(),
+    )
+    .expect("run");
+    let thrust = CheckResult::new(
+        "drives",
+        "downstroke thrust bound: highest head under the block minus H_push",
+        "definition: the block pushes at most its thrust F, H ≤ F/(ρ g A_block)",
+        (s.well_head_range_m.1 - b.max_push_head_m).max(0.0),
+        0.0,
+        "absolute",
+    );
+    let reached = CheckResult::new(
+        "drives",
+        "downstroke thrust bound: reached (within 1 mm) and warned",
+        "definition (the unbounded run pushes 4× higher)",
+        if s.well_head_range_m.1 > b.max_push_head_m - 2e-3
+            && s.warnings.iter().any(|w| w.contains("max_thrust"))
+        {
+            0.0
+        } else {
+            1.0
+        },
+        0.0,
+        "absolute",
+    );
+    vec![flow, orifice, thrust, reached]
 }
 
 /// A fast single swab stroke, then recovery, against the slug solution (issue #5 check 3).
@@ -449,6 +492,7 @@ pub fn vapour_bound() -> Vec<CheckResult> {
     let p = &v["parted_time"];
     let rc = p["casing_radius"].as_f64().unwrap();
     let block = SurgeBlock {
+        max_push_head_m: f64::INFINITY,
         block_radius_m: p["block_radius"].as_f64().unwrap(),
         casing_radius_m: rc,
         stroke_m: p["stroke"].as_f64().unwrap(),
@@ -602,7 +646,58 @@ pub fn pump_curve() -> Vec<CheckResult> {
         0.0,
         "absolute",
     );
-    vec![point, band]
+    // A curve given by points: the interpolant against scipy's PchipInterpolator at sample
+    // lifts (the same formula, so round-off only: 1e-12 relative to the largest rate and
+    // slope), and the steady operating point against brentq on that interpolant (0.1 %,
+    // as for the quadratic curve).
+    let t = &v["pump_table"];
+    let pts: Vec<(f64, f64)> = t["points"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|p| (p[0].as_f64().unwrap(), p[1].as_f64().unwrap()))
+        .collect();
+    let table = PumpTable::new(&pts).expect("a valid curve");
+    let lifts = nums(t, "/sample_lifts");
+    let rates = nums(t, "/sample_rates");
+    let slopes = nums(t, "/sample_slopes");
+    let q_scale = rates.iter().fold(0.0f64, |a, &b| a.max(b.abs()));
+    let d_scale = slopes.iter().fold(0.0f64, |a, &b| a.max(b.abs()));
+    let worst = lifts
+        .iter()
+        .zip(rates.iter().zip(&slopes))
+        .map(|(&l, (&q, &d))| {
+            let (qm, dm) = table.rate(l);
+            ((qm - q).abs() / q_scale).max((dm - d).abs() / d_scale)
+        })
+        .fold(0.0, f64::max);
+    let interp = CheckResult::new(
+        "drives",
+        "pump curve by points: rate and slope vs scipy PchipInterpolator",
+        "scipy.interpolate.PchipInterpolator (Fritsch & Carlson 1980 monotone cubic), \
+         tests/data/devices.json",
+        worst,
+        1e-12,
+        "relative",
+    );
+    let law = PumpLaw::Table(table);
+    let m = model(law, 1e3);
+    let mut st = Stepper::new(&m, None);
+    st.solve_steady(&m).expect("steady solve");
+    let h = st.heads()[0];
+    let q = pump(law, 1e3).pump_rate(h).0;
+    let table_point = CheckResult::new(
+        "drives",
+        "steady operating point of a pump curve by points vs Thiem with skin (brentq)",
+        "Thiem (1906) steady drawdown with Hawkins (1956) skin, met with the PCHIP pump curve \
+         by scipy.optimize.brentq (cross-checked by bisect), tests/data/devices.json",
+        (q / num(t, "/Q_m3_s") - 1.0)
+            .abs()
+            .max((h / num(t, "/H_well_m") - 1.0).abs()),
+        1e-3,
+        "relative",
+    );
+    vec![point, band, interp, table_point]
 }
 
 /// Jetting with a volume balance: the nozzle flow and stagnation pressure against the

@@ -11,6 +11,7 @@ pub mod development;
 pub mod drives;
 pub mod fit;
 pub mod harmonic;
+pub mod inertia;
 pub mod models;
 pub mod reference;
 pub mod stepping;

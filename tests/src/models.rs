@@ -18,6 +18,7 @@ pub fn homogeneous(k: f64, ss: f64, b: f64, rw: f64, drive: Drive, duration_s: f
             linear_loss_s: 0.0,
             discharge_coefficient: None,
             storage_m2: 0.0,
+            column_length_m: 0.0,
         },
         pack: Pack {
             outer_radius_m: 2.0 * rw,

@@ -50,4 +50,6 @@ pub mod data {
     pub const ORIFICE: &str = include_str!("../data/screen_orifice.json");
     /// Collapse limits of pipe and the vapour bound of a sealed tool.
     pub const DEVICES: &str = include_str!("../data/devices.json");
+    /// Slug test with an inertial water column (Kipp 1985; Butler & Zhan 2004).
+    pub const INERTIA: &str = include_str!("../data/inertia.json");
 }

@@ -146,3 +146,8 @@ fn vapour_bound_and_column_parting() {
 fn conductance_jump_against_laplace_solution() {
     assert_group("conductance_jump");
 }
+
+#[test]
+fn slug_with_an_inertial_column() {
+    assert_group("inertia");
+}

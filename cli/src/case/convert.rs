@@ -60,6 +60,9 @@ pub fn convert(raw: RawCase, base_dir: &Path) -> Result<LoadedCase, CaseError> {
     for n in &drive.notes {
         log.note(n.clone());
     }
+    let mut well = well;
+    let mut well_json = well_json;
+    column_length(&raw.well, &mut well, &drive.drive, &mut well_json, &mut log)?;
     let duration_s = run_duration(raw.duration.as_ref(), &drive.drive)?;
     let raw_numerics = raw.numerics.unwrap_or_default();
     let num = numerics(&raw_numerics, stepping_period(&drive.drive))?;
@@ -120,6 +123,52 @@ pub fn convert(raw: RawCase, base_dir: &Path) -> Result<LoadedCase, CaseError> {
         notes: log.notes,
         warnings: log.warnings,
     })
+}
+
+/// The water column above the screen (docs/physics.md §24): its length D from the case or
+/// the deepest tool, and the effective length the solver uses,
+/// `L_e = D + (r_c/r_s)² b/2` (the column plus half the screen's water moving at the
+/// screen's mean speed; Kipp 1985, Water Resour. Res. 21(9), cited from memory — verify).
+fn column_length(
+    raw: &super::raw::RawWell,
+    well: &mut boreflux_solver::model::Well,
+    drive: &boreflux_solver::drive::Drive,
+    well_json: &mut Value,
+    log: &mut Log,
+) -> Result<(), CaseError> {
+    let field = "well.column_length";
+    let given = raw
+        .column_length
+        .as_ref()
+        .map(|q| q.si(field))
+        .transpose()?;
+    let d = match given {
+        Some(d) if !(d.is_finite() && d >= 0.0) => {
+            return Err(CaseError::new(
+                field,
+                format!("must be zero or positive (a depth below the static level), got {d} m"),
+            ))
+        }
+        Some(d) => d,
+        None => {
+            let d = drive.deepest_tool_m();
+            log.note(format!(
+                "well.column_length not given: {d} m, the deepest tool's depth (assumption: measure the depth of the screen's top below the static water level)"
+            ));
+            d
+        }
+    };
+    let ratio = well.casing_radius_m / well.screen_radius_m;
+    let le = d + ratio * ratio * well.screen_length_m / 2.0;
+    well.column_length_m = le;
+    log.note(format!(
+        "water column: {d} m above the screen, effective length {le:.3} m with half the screen's water (column inertia, natural period 2 pi sqrt(L/g) = {:.2} s for the whole column)",
+        2.0 * std::f64::consts::PI * (le / boreflux_solver::water::GRAVITY_M_S2).sqrt()
+    ));
+    if let Value::Object(m) = well_json {
+        m.insert("column_length".to_owned(), json!(d));
+    }
+    Ok(())
 }
 
 fn fluid(raw: &RawCase, log: &mut Log) -> Result<(Fluid, Water, Value), CaseError> {

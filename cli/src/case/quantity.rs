@@ -70,6 +70,8 @@ kinds! {
     Beta => Quantity::Coefficient { si_unit: "s2/m2" };
     /// Cake erodibility, m/(s·Pa).
     Erodibility => Quantity::Coefficient { si_unit: "m/s/Pa" };
+    /// Force, N.
+    Force => Quantity::Coefficient { si_unit: "N" };
 }
 
 /// A dimensional value as written in the case file, read as kind `K`.

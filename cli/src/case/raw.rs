@@ -80,6 +80,11 @@ pub struct RawWell {
     pub discharge_coefficient: Option<DischargeCoefficientValue>,
     /// Well-bore storage dV/dH as an area [π casing_radius²].
     pub storage: Option<Q<Area>>,
+    /// Length of the water column above the screen: depth of the screen's top below the
+    /// static water level [the deepest tool's depth: block, swab cups or pump intake; 0
+    /// without a tool]. Its mass (with half the screen's water) resists the column's
+    /// acceleration; "0 m" and a screen of no length would give the quasi-static well.
+    pub column_length: Option<Q<Length>>,
     /// Screen and casing material for the collapse check: "pvc", "steel", "stainless" or
     /// another name.
     pub material: Option<String>,

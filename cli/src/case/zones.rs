@@ -187,6 +187,7 @@ pub fn well(r: &RawWell, log: &mut Log) -> Result<(Well, SafetyInputs, Value), C
         linear_loss_s: linear,
         discharge_coefficient: cd,
         storage_m2: storage,
+        column_length_m: 0.0,
     };
     let resolved = json!({
         "screen_radius": rs,

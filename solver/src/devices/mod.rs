@@ -11,7 +11,7 @@ pub mod pump;
 pub mod vapour;
 
 pub use jet::JetPulse;
-pub use pump::{Backflow, PumpBackwash, PumpLaw, SUCTION_BAND_M};
+pub use pump::{Backflow, PumpBackwash, PumpLaw, PumpTable, MAX_PUMP_POINTS, SUCTION_BAND_M};
 
 pub use vapour::{net_atmospheric_head_m, vapour_flow, VapourState, VAPOUR_MARGIN_M};
 
@@ -96,9 +96,36 @@ pub struct SurgeBlock {
     pub depth_m: f64,
     /// (p_atm − p_v)/(ρ g), m ([`net_atmospheric_head_m`]); infinite: no vapour bound.
     pub net_atmospheric_head_m: f64,
+    /// Highest head the block can push under it on the downstroke, m: its largest thrust
+    /// over ρ g A_block (the block's and the string's weight in water, plus any pull-down);
+    /// infinite: no bound (the block follows its stroke whatever the head).
+    pub max_push_head_m: f64,
 }
 
 impl SurgeBlock {
+    /// Highest in-well head the block can push, m (+∞: no bound).
+    pub fn max_head_m(&self) -> f64 {
+        self.max_push_head_m
+    }
+
+    /// Flow by which the block falls behind its stroke when the head under it reaches the
+    /// thrust bound, m³/s (≤ 0, at most the downstroke's displacement `displacement` > 0),
+    /// and its derivative in H. The steep linear law of the vapour bound, mirrored: the
+    /// head stays within [`VAPOUR_MARGIN_M`] below the bound (devices.md §2).
+    pub fn stall_flow(&self, h: f64, displacement: f64) -> (f64, f64) {
+        if !self.max_push_head_m.is_finite() || displacement <= 0.0 {
+            return (0.0, 0.0);
+        }
+        let k = 2.0 * self.max_pull_m3_s().max(f64::MIN_POSITIVE) / VAPOUR_MARGIN_M;
+        let q = -k * (h - (self.max_push_head_m - VAPOUR_MARGIN_M));
+        if q >= 0.0 {
+            (0.0, 0.0)
+        } else if q <= -displacement {
+            (-displacement, 0.0)
+        } else {
+            (q, -k)
+        }
+    }
     /// Lowest in-well head the water under the block can have, m: the vapour bound.
     pub fn min_head_m(&self) -> f64 {
         -(self.net_atmospheric_head_m + self.depth_m)
@@ -153,12 +180,15 @@ impl SurgeBlock {
     pub fn flows(&self, t: f64, h: f64) -> (f64, f64, f64) {
         let a_block = PI * self.block_radius_m * self.block_radius_m;
         let a_gap = PI * (self.casing_radius_m.powi(2) - self.block_radius_m.powi(2));
-        let displacement = -a_block * self.velocity_m_s(t);
+        let mut displacement = -a_block * self.velocity_m_s(t);
+        // On the downstroke the block cannot push harder than its thrust: it lags its stroke.
+        let (q_stall, d_stall) = self.stall_flow(h, displacement);
+        displacement += q_stall;
         let cd = self.discharge_coefficient;
         // Leakage from above (head 0) to below (head H): Δ = 0 − H.
         let (q_gap, dq_gap) = orifice_flow(cd * a_gap, -h);
         let mut bypass = q_gap;
-        let mut d_bypass = -dq_gap;
+        let mut d_bypass = -dq_gap + d_stall;
         if self.valve_area_m2 > 0.0 && h > 0.0 {
             let (q_v, dq_v) = orifice_flow(cd * self.valve_area_m2, h);
             bypass -= q_v;
@@ -198,6 +228,15 @@ impl SurgeBlock {
             ));
         }
         depth_and_atmosphere(self.depth_m, self.net_atmospheric_head_m)?;
+        if self.max_push_head_m.is_nan() || self.max_push_head_m <= VAPOUR_MARGIN_M {
+            return Err(SolverError::invalid(
+                "drive.max_thrust",
+                format!(
+                    "must give a positive head under the block, got {} m",
+                    self.max_push_head_m
+                ),
+            ));
+        }
         if let Kinematics::Trapezoidal { reversal_s } = self.kinematics {
             if !(reversal_s > 0.0 && reversal_s < 0.5 / self.frequency_hz) {
                 return Err(SolverError::invalid(
@@ -290,13 +329,17 @@ impl Swab {
         self.lift_time(t).is_some()
     }
 
+    /// Depth of the cups below the static level at time t while they rise and seal, m
+    /// (`d(τ) = d₀ − U τ`); None while they do not seal.
+    pub fn cup_depth_m(&self, t: f64) -> Option<f64> {
+        self.lift_time(t)
+            .map(|tl| (self.submergence_m - self.lift_rate_m_s * tl).max(0.0))
+    }
+
     /// Vapour bound under the cups at time t, m (−∞ while they do not seal).
     pub fn min_head_m(&self, t: f64) -> f64 {
-        match self.lift_time(t) {
-            Some(tl) => {
-                let depth = (self.submergence_m - self.lift_rate_m_s * tl).max(0.0);
-                -(self.net_atmospheric_head_m + depth)
-            }
+        match self.cup_depth_m(t) {
+            Some(depth) => -(self.net_atmospheric_head_m + depth),
             None => f64::NEG_INFINITY,
         }
     }

@@ -96,9 +96,9 @@ impl Stepper {
     ///
     /// ```text
     /// y₁(Q) = y1a + (Q − q_now) w₁                                  m
-    /// H(Q)  = y₁(Q) + R_lin Q + R_nl Q|Q|                           m
+    /// H(Q)  = y₁(Q) + R_lin Q + R_nl Q|Q|  (+ m (Q − Qⁿ), the column)   m
     /// φ(Q)  = s (H − h₀) + Q − Q_device(t, H) = 0                   m³/s
-    /// dφ/dQ = (s − dQ_device/dH)(w₁ + R_lin + 2 R_nl |Q|) + 1 ≥ 1
+    /// dφ/dQ = (s − dQ_device/dH)(w₁ + R_lin + m + 2 R_nl |Q|) + 1 ≥ 1
     /// ```
     /// φ increases strictly (storage, screen and leakage all resist), so the bracketed
     /// iteration of [`bracketed_root`] finds the one root. The unknown is a flow: the head
@@ -114,9 +114,11 @@ impl Stepper {
         w1: f64,
     ) -> Result<f64, SolverError> {
         let (h0, face) = (self.h[0], &self.disc.faces[0]);
-        let (r_lin, r_nl) = (face.r_lin(), face.r_nl());
+        // The column's inertance m in series with the screen (`stepper/column.rs`).
+        let (m, q_old) = (self.column.m, self.column.q_old);
+        let (r_lin, r_nl) = (face.r_lin() + m, face.r_nl());
         let f = |q: f64| {
-            let hw = y1a + (q - q_now) * w1 + r_lin * q + r_nl * q * q.abs();
+            let hw = y1a + (q - q_now) * w1 + r_lin * q - m * q_old + r_nl * q * q.abs();
             let dev = model.drive.device_flow(t, hw, self.vapour);
             let st = s * (hw - h0);
             (
@@ -273,6 +275,10 @@ impl Stepper {
                 );
             } else {
                 self.face_q[last] = 0.0;
+            }
+            // With column inertia the screen path is face 0 and the column in series.
+            if self.column.m > 0.0 {
+                (self.face_q[0], self.face_g[0]) = self.screen_path_flow(self.face_dh[0]);
             }
             // −R in rhs, cells 1..n in one pass, with the largest |R| and the largest flow
             // term of a row: R_j = S_j (y_j − h_j)/(θΔt) − Q_{j−1} + Q_j.

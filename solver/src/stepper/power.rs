@@ -79,6 +79,9 @@ impl Stepper {
     pub fn end_power(&mut self) -> [f64; ZONE_COUNT] {
         let n = self.h.len();
         let last = n - 1;
+        // With column inertia the screen's losses are at the head inside the screen.
+        let h0 = self.h[0];
+        self.h[0] = self.screen_head();
         let nonlinear = !self.faces_linear;
         if nonlinear {
             crate::faces::flows(
@@ -104,6 +107,7 @@ impl Stepper {
         let mut out = [0.0; ZONE_COUNT];
         let faces = nonlinear.then_some((&self.end_q[..], &self.end_dh[..]));
         self.zone_power(&self.h, faces, &mut out);
+        self.h[0] = h0;
         out
     }
 }
@@ -132,6 +136,7 @@ mod tests {
                 linear_loss_s: 0.0,
                 discharge_coefficient: nonlinear.then_some(0.6),
                 storage_m2: 0.0,
+                column_length_m: 0.0,
             },
             pack: Pack {
                 outer_radius_m: 0.2,

@@ -88,17 +88,20 @@ fn well_storage(model: &Model, disc: &Discretization, t: f64) -> Option<f64> {
 
 /// Slopes dh/dt from the face laws at heads `h` at time t: the cells, and the well node
 /// when it stores water (S_w dH/dt = Q_device − Q_screen); otherwise entry 0 is 0.
+///
+/// `column`: the column's flow when it is a state (it is then the screen's flow).
 fn slopes(
     model: &Model,
     disc: &Discretization,
     vapour: VapourState,
     t: f64,
     h: &[f64],
+    column: Option<f64>,
     out: &mut [f64],
 ) {
     let n = h.len();
     let last = n - 1;
-    let mut q_in = disc.faces[0].flow(h[0] - h[1]).0;
+    let mut q_in = column.unwrap_or_else(|| disc.faces[0].flow(h[0] - h[1]).0);
     out[0] = match well_storage(model, disc, t) {
         Some(sw) => (model.drive.device_flow(t, h[0], vapour).total() - q_in) / sw,
         None => 0.0,
@@ -135,6 +138,11 @@ impl Stepper {
             self.forget_history();
         }
         self.h_start.copy_from_slice(&self.h);
+        self.column_start = self.column;
+        // The column's flow at the start, v, and its slope there (`stepper/column.rs`).
+        let q_v = self.screen_flow();
+        let col_state = |st: &Stepper| st.column.inertial.then_some(st.column.q);
+        let col_slope_start = self.column_slope(&self.h, q_v, super::column_inertance(model, t0));
         // The slopes at the start are the last step's end slopes (its BDF2 stage gives them
         // exactly) unless the faces or the forcing changed since, or the well's role did.
         let well_now = well_storage(model, &self.disc, t0).is_some();
@@ -145,6 +153,7 @@ impl Stepper {
                 self.vapour,
                 t0,
                 &self.h,
+                col_state(self),
                 &mut self.slope_start,
             );
         }
@@ -162,14 +171,17 @@ impl Stepper {
             },
         )?;
         let b1 = self.balance;
+        let (mass_1, q_u) = (self.column.mass, self.screen_flow());
         slopes(
             model,
             &self.disc,
             self.vapour,
             t0 + 2.0 * tdt,
             &self.h,
+            col_state(self),
             &mut self.slope_mid,
         );
+        let col_slope_mid = self.column_slope(&self.h, q_u, mass_1);
         let mut du2 = 0.0;
         for j in 1..n {
             let d = self.h[j] - self.h_start[j];
@@ -177,6 +189,11 @@ impl Stepper {
         }
         for (h, &v) in self.h.iter_mut().zip(&self.h_start) {
             *h = A * *h - B * v;
+        }
+        // The column's flow is a state like the heads: stage 2 starts from Q̃ = a Q_u − b Q_v.
+        let q_tilde = A * q_u - B * q_v;
+        if self.column.inertial {
+            self.column.q = q_tilde;
         }
         let second = self.stage(
             model,
@@ -190,6 +207,7 @@ impl Stepper {
         );
         if let Err(e) = second {
             self.h.copy_from_slice(&self.h_start);
+            self.column = self.column_start;
             self.time_s = t0;
             self.forget_history();
             return Err(e);
@@ -247,7 +265,33 @@ impl Stepper {
                 };
             }
         }
-        let numerical = b2.numerical_dissipation - 0.5 * A * B * du2;
+        // The column's flow: its local error, like the heads' (its stage-2 slope is
+        // (Q_w − Q̃)/(dΔt)), filtered by its own stiffness 1 + dΔt R'(Q)/M (the heads held),
+        // measured as a flow against relative × |Q| + absolute × the screen face's
+        // conductance (a flow error δQ moves the head inside the screen by R' δQ).
+        let mut col_du2 = 0.0;
+        if self.column.inertial && self.column.mass > 0.0 {
+            let (q_w, mass) = (self.column.q, self.column.mass);
+            let f1 = (q_w - q_tilde) * inv_tdt;
+            let face = &self.disc.faces[0];
+            let r_prime = face.r_lin() + 2.0 * face.r_nl() * q_w.abs();
+            let est = (c0 * col_slope_start - c1 * col_slope_mid + c2 * f1)
+                / (1.0 + tdt * r_prime / mass);
+            let den = tol.relative * q_v.abs().max(q_w.abs()) + tol.absolute_m / r_prime;
+            if est.is_nan() || est.abs() > worst.value * den {
+                worst = ErrorNorm {
+                    value: est.abs() / den,
+                    index: 0,
+                };
+            }
+            col_du2 = mass_1 * (q_u - q_v) * (q_u - q_v);
+        }
+        // Column: a × stage 1's and stage 2's kinetic energy changes plus ½ab M (Q_u − Q_v)²
+        // is ½ M (Q_w² − Q_v²) when M is constant over the step; the same term leaves the
+        // numerical dissipation (as for the heads' du2).
+        let kinetic =
+            A * b1.kinetic_energy_change + b2.kinetic_energy_change + 0.5 * A * B * col_du2;
+        let numerical = b2.numerical_dissipation - 0.5 * A * B * (du2 + col_du2);
         let mut dissipated = b2.dissipated;
         for (d, &d1) in dissipated.iter_mut().zip(&b1.dissipated) {
             *d += A * d1;
@@ -261,9 +305,10 @@ impl Stepper {
             .max(storage.abs());
         let energy_in = A * b1.energy_in + b2.energy_in;
         let diss: f64 = dissipated.iter().sum();
-        let e_res = energy + numerical + diss - energy_in;
+        let e_res = energy + kinetic + numerical + diss - energy_in;
         let escale = energy
             .abs()
+            .max(kinetic.abs())
             .max(numerical.abs())
             .max(diss)
             .max(energy_in.abs())
@@ -280,6 +325,7 @@ impl Stepper {
             energy_in,
             dissipated,
             storage_energy_change: energy,
+            kinetic_energy_change: kinetic,
             numerical_dissipation: numerical,
             device_energy: A * b1.device_energy + b2.device_energy,
             mass_residual: (if vscale > 0.0 {
@@ -363,12 +409,98 @@ impl Stepper {
         }
     }
 
+    /// One backward-Euler step at a device's limit (see `Stepper::step_adaptive`), with
+    /// the step's local-error estimate ½ Δt |f^{n+1} − fⁿ| (first order, from the slopes at
+    /// both ends, the column's flow included) measured like TR-BDF2's. The norm is capped at
+    /// [`super::KEEP_STEP_NORM`]: the step is never rejected (a kink of the device's law makes
+    /// the slopes jump, where no shorter step would do better) but it may grow where the
+    /// limit holds smoothly (a column parted over a whole swab lift). On error the state is
+    /// unchanged.
+    pub(super) fn step_at_limit(
+        &mut self,
+        model: &Model,
+        dt: f64,
+        tol: Tolerances,
+    ) -> Result<ErrorNorm, SolverError> {
+        let t0 = self.time_s;
+        self.undo_time = None;
+        self.h_start.copy_from_slice(&self.h);
+        let col = |st: &Stepper| st.column.inertial.then_some(st.column.q);
+        let well_before = well_storage(model, &self.disc, t0).is_some();
+        slopes(
+            model,
+            &self.disc,
+            self.vapour,
+            t0,
+            &self.h,
+            col(self),
+            &mut self.slope_mid,
+        );
+        let (q0, mass0) = (self.screen_flow(), super::column_inertance(model, t0));
+        let fq0 = self.column_slope(&self.h, q0, mass0);
+        self.step(model, dt, 1.0)?;
+        let t1 = left_limit(self.time_s);
+        slopes(
+            model,
+            &self.disc,
+            self.vapour,
+            t1,
+            &self.h,
+            col(self),
+            &mut self.slope_start,
+        );
+        self.end_slopes = None;
+        let first = if well_before && well_storage(model, &self.disc, t1).is_some() {
+            0
+        } else {
+            1
+        };
+        let mut worst = ErrorNorm {
+            value: 0.0,
+            index: 0,
+        };
+        for j in first..self.h.len() {
+            let e = 0.5 * dt * (self.slope_start[j] - self.slope_mid[j]).abs();
+            let den = tol.absolute_m + tol.relative * self.h[j].abs().max(self.h_start[j].abs());
+            if e.is_nan() || e > worst.value * den {
+                worst = ErrorNorm {
+                    value: e / den,
+                    index: j,
+                };
+            }
+        }
+        let mass1 = super::column_inertance(model, t1);
+        if self.column.inertial && mass0 > 0.0 && mass1 > 0.0 {
+            let q1 = self.column.q;
+            let fq1 = self.column_slope(&self.h, q1, mass1);
+            let face = &self.disc.faces[0];
+            let r_prime = face.r_lin() + 2.0 * face.r_nl() * q1.abs();
+            let e = 0.5 * dt * (fq1 - fq0).abs();
+            let den = tol.relative * q0.abs().max(q1.abs()) + tol.absolute_m / r_prime;
+            if e.is_nan() || e > worst.value * den {
+                worst = ErrorNorm {
+                    value: e / den,
+                    index: 0,
+                };
+            }
+        }
+        // The controller's factor 0.9 ν^(−1/3) assumes TR-BDF2's third-order local error;
+        // for this first-order step it is cautious, which suits a step at a limit.
+        worst.value = if worst.value.is_nan() {
+            super::KEEP_STEP_NORM
+        } else {
+            worst.value.min(super::KEEP_STEP_NORM)
+        };
+        Ok(worst)
+    }
+
     /// Puts back the state before the last [`Stepper::step_trbdf2`] (a step the error
     /// control rejected). Does nothing if there is no such step.
     pub fn undo_step(&mut self) {
         self.end_slopes = None;
         if let Some(t0) = self.undo_time.take() {
             self.h.copy_from_slice(&self.h_start);
+            self.column = self.column_start;
             self.time_s = t0;
             self.forget_history();
         }

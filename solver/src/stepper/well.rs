@@ -36,9 +36,8 @@ impl Stepper {
         h0: f64,
         h1: f64,
     ) -> Result<f64, SolverError> {
-        let face = &self.disc.faces[0];
         let f = |h: f64| {
-            let (q, g) = face.flow(h - h1);
+            let (q, g) = self.screen_path_flow(h - h1);
             let dev = model.drive.device_flow(t, h, self.vapour);
             let st = s * (h - h0);
             (
@@ -51,6 +50,29 @@ impl Stepper {
         // the head is settled when it moves by less than that.
         let settled = 1e-15 * h1.abs().max(h0.abs());
         bracketed_root(t, guess, HEAD_UNIT_M, settled, f)
+    }
+}
+
+impl Stepper {
+    /// Head under a sealing tool at which the tool's law passes the column flow `q`:
+    /// `Q_device(t, H) = q`, increasing in −Q_device (leakage and the vapour law fall
+    /// with H). Fails when the law does not depend on H (no leakage) or has no root.
+    pub(super) fn tool_head_for_flow(
+        &self,
+        model: &Model,
+        t: f64,
+        q: f64,
+    ) -> Result<f64, SolverError> {
+        let f = |h: f64| {
+            let dev = model.drive.device_flow(t, h, self.vapour);
+            (
+                q - dev.total(),
+                -dev.d_dh_m2_s,
+                q.abs() + dev.displacement_m3_s.abs() + dev.bypass_m3_s.abs(),
+            )
+        };
+        let settled = 1e-15 * self.h[0].abs().max(self.h[1].abs());
+        bracketed_root(t, self.h[0], HEAD_UNIT_M, settled, f)
     }
 }
 

@@ -9,10 +9,11 @@ use super::{into_map, read_keys, DriveContext, ParsedDrive};
 use crate::case::checks::{non_negative, positive};
 use crate::case::error::CaseError;
 use crate::case::quantity::Pressure;
-use crate::case::quantity::{Area, Frequency, Kind, Length, Time, Q};
+use crate::case::quantity::{Area, Force, Frequency, Kind, Length, Time, Q};
+use crate::summary::G;
 use crate::units::{format_si, Quantity};
 use boreflux_solver::devices::{net_atmospheric_head_m, Kinematics, SurgeBlock, Swab};
-use boreflux_solver::water::{vapour_pressure_pa, STANDARD_ATMOSPHERE_PA};
+use boreflux_solver::water::{vapour_pressure_pa, GRAVITY_M_S2, STANDARD_ATMOSPHERE_PA};
 use boreflux_solver::Drive;
 use schemars::JsonSchema;
 use serde::Deserialize;
@@ -94,6 +95,12 @@ pub struct SurgeBlockKeys {
     /// Open area of the flap valves of a vented block, which open when the water below
     /// pushes up [0 = solid block].
     pub valve_area: Option<Q<Area>>,
+    /// Largest downward thrust on the block on the downstroke, in N ("12 kN" is not read;
+    /// write 12000): the weight in water of the block and its string (a block on a cable),
+    /// plus any pull-down of the rig. The head under the block cannot exceed it over
+    /// ρ g × block area; the block lags its stroke instead [none: the block follows its
+    /// stroke whatever the head, and the run reports the thrust that needed].
+    pub max_thrust: Option<Q<Force>>,
     /// The stroke grows linearly from 0 over this many cycles [0].
     pub ramp_cycles: Option<f64>,
 }
@@ -255,7 +262,17 @@ pub fn surge_block(
         Some(q) => non_negative("drive.valve_area", q.si("drive.valve_area")?, "m2")?,
         None => 0.0,
     };
+    let a_block = PI * block_radius_m * block_radius_m;
+    let max_thrust_n = k
+        .max_thrust
+        .as_ref()
+        .map(|q| positive("drive.max_thrust", q.si("drive.max_thrust")?, "N"))
+        .transpose()?;
+    let max_push_head_m = max_thrust_n.map_or(f64::INFINITY, |f| {
+        f / (ctx.density_kg_m3 * GRAVITY_M_S2 * a_block)
+    });
     let block = SurgeBlock {
+        max_push_head_m,
         block_radius_m,
         casing_radius_m: rc,
         stroke_m,
@@ -279,7 +296,6 @@ pub fn surge_block(
             Some(reversal_s),
         ),
     };
-    let a_block = PI * block_radius_m * block_radius_m;
     let a_gap = PI * (rc * rc - block_radius_m * block_radius_m);
     notes.insert(
         0,
@@ -317,6 +333,18 @@ pub fn surge_block(
         "surge block: vapour bound {} (the water under the block parts from it there)",
         format_si(block.min_head_m(), Quantity::Head)
     ));
+    notes.push(match max_thrust_n {
+        Some(f) => format!(
+            "surge block: downstroke thrust at most {} N, so the head under the block stays \
+             below {} (the block lags its stroke there)",
+            G(f, 4),
+            format_si(max_push_head_m, Quantity::Head)
+        ),
+        None => "surge block: drive.max_thrust not given: the block follows its stroke \
+                 whatever the head under it (a block on a cable pushes only with its and the \
+                 string's weight in water; give it to bound the downstroke)"
+            .to_owned(),
+    });
     let mut resolved = into_map(json!({
         "block_radius": block_radius_m,
         "stroke": stroke_m,
@@ -331,6 +359,9 @@ pub fn surge_block(
         "depth": depth_m,
         "atmospheric_pressure": atmospheric_pa(&k.atmospheric_pressure)?,
     }));
+    if let Some(f) = max_thrust_n {
+        resolved.insert("max_thrust".to_owned(), json!(f));
+    }
     if let Some(r) = reversal {
         resolved.insert("reversal_time".to_owned(), json!(r));
     }

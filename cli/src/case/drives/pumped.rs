@@ -12,7 +12,7 @@ use crate::case::error::CaseError;
 use crate::case::quantity::{FlowRate, Length, Time, Q};
 use crate::summary::G;
 use crate::units::{format_si, Quantity};
-use boreflux_solver::devices::{Backflow, JetPulse, PumpBackwash, PumpLaw};
+use boreflux_solver::devices::{Backflow, JetPulse, PumpBackwash, PumpLaw, PumpTable};
 use boreflux_solver::water::GRAVITY_M_S2;
 use boreflux_solver::Drive;
 use schemars::JsonSchema;
@@ -33,16 +33,22 @@ pub const DEFAULT_NOZZLES: u32 = 2;
 /// 7–10 mm nozzle held within 13 mm of the screen (docs/practice.md §1.8), spread a little.
 pub const DEFAULT_JET_WIDTH_M: f64 = 0.010;
 
-/// A pump's head–flow curve as a quadratic through its shut-off head and one rated point.
+/// A pump's head–flow curve: a quadratic through its shut-off head and one rated point
+/// (`shutoff_head`, `rated_rate`, `rated_head`), or the maker's curve read at points
+/// (`points`), one of the two.
 #[derive(Debug, Deserialize, JsonSchema)]
 #[serde(deny_unknown_fields)]
 pub struct PumpCurveKeys {
     /// Head at zero flow (shut-off head).
-    pub shutoff_head: Q<Length>,
+    pub shutoff_head: Option<Q<Length>>,
     /// Rate at the rated point.
-    pub rated_rate: Q<FlowRate>,
+    pub rated_rate: Option<Q<FlowRate>>,
     /// Head at the rated point, below the shut-off head.
-    pub rated_head: Q<Length>,
+    pub rated_head: Option<Q<Length>>,
+    /// Points of the curve `[[rate_m3_s, head_m], …]` in SI, from the shut-off head at
+    /// rate 0, rates increasing and heads falling (2 to 16 points); read by monotone
+    /// cubic interpolation, the rate held beyond the last point.
+    pub points: Option<Vec<[f64; 2]>>,
 }
 
 /// Keys of `pump_backwash`: the pump as a constant `pumping_rate` or a `pump_curve`; the
@@ -128,20 +134,61 @@ fn pump_law(k: &PumpBackwashKeys) -> Result<(PumpLaw, String), CaseError> {
                 ),
             ))
         }
+        (None, Some(c)) if c.points.is_some() => {
+            if c.shutoff_head.is_some() || c.rated_rate.is_some() || c.rated_head.is_some() {
+                return Err(CaseError::new(
+                    "drive.pump_curve.points",
+                    "give either points or shutoff_head, rated_rate and rated_head, not both",
+                ));
+            }
+            let pts: Vec<(f64, f64)> = c
+                .points
+                .as_ref()
+                .expect("points were given")
+                .iter()
+                .map(|p| (p[0], p[1]))
+                .collect();
+            let table = PumpTable::new(&pts).map_err(CaseError::from)?;
+            Ok((
+                PumpLaw::Table(table),
+                format!(
+                    "pump curve through {} points (shut-off head {}), monotone cubic between \
+                     them, the rate held beyond the last ({} at {}): the rate falls as the \
+                     lift from the well level to the discharge grows",
+                    pts.len(),
+                    format_si(table.shutoff_head_m(), Quantity::Head),
+                    format_si(pts[pts.len() - 1].0, Quantity::FlowRate),
+                    format_si(pts[pts.len() - 1].1, Quantity::Head),
+                ),
+            ))
+        }
         (None, Some(c)) => {
+            let need = |v: &Option<Q<Length>>, f: &str| {
+                v.as_ref()
+                    .ok_or_else(|| CaseError::new(f, "required key is missing (or give points)"))
+                    .and_then(|q| q.si(f))
+            };
             let h0 = positive(
                 "drive.pump_curve.shutoff_head",
-                c.shutoff_head.si("drive.pump_curve.shutoff_head")?,
+                need(&c.shutoff_head, "drive.pump_curve.shutoff_head")?,
                 "m",
             )?;
             let qr = positive(
                 "drive.pump_curve.rated_rate",
-                c.rated_rate.si("drive.pump_curve.rated_rate")?,
+                c.rated_rate
+                    .as_ref()
+                    .ok_or_else(|| {
+                        CaseError::new(
+                            "drive.pump_curve.rated_rate",
+                            "required key is missing (or give points)",
+                        )
+                    })?
+                    .si("drive.pump_curve.rated_rate")?,
                 "m3/s",
             )?;
             let hr = non_negative(
                 "drive.pump_curve.rated_head",
-                c.rated_head.si("drive.pump_curve.rated_head")?,
+                need(&c.rated_head, "drive.pump_curve.rated_head")?,
                 "m",
             )?;
             if hr >= h0 {
@@ -271,14 +318,19 @@ pub fn pump_backwash(
         }
         PumpLaw::Quadratic { .. } => {
             let c = k.pump_curve.as_ref().expect("a curve was read");
+            let si = |v: &Option<Q<Length>>, f: &str| v.as_ref().map(|q| q.si(f)).transpose();
             resolved.insert(
                 "pump_curve".to_owned(),
                 json!({
-                    "shutoff_head": c.shutoff_head.si("drive.pump_curve.shutoff_head")?,
-                    "rated_rate": c.rated_rate.si("drive.pump_curve.rated_rate")?,
-                    "rated_head": c.rated_head.si("drive.pump_curve.rated_head")?,
+                    "shutoff_head": si(&c.shutoff_head, "drive.pump_curve.shutoff_head")?,
+                    "rated_rate": c.rated_rate.as_ref().map(|q| q.si("drive.pump_curve.rated_rate")).transpose()?,
+                    "rated_head": si(&c.rated_head, "drive.pump_curve.rated_head")?,
                 }),
             );
+        }
+        PumpLaw::Table(_) => {
+            let c = k.pump_curve.as_ref().expect("a curve was read");
+            resolved.insert("pump_curve".to_owned(), json!({ "points": c.points }));
         }
     }
     match p.backflow {
