@@ -14,6 +14,7 @@ pub mod harmonic;
 pub mod models;
 pub mod reference;
 pub mod stepping;
+pub mod virtual_tests;
 
 /// Outcome of one comparison.
 #[derive(Debug, Clone, PartialEq, serde::Serialize)]

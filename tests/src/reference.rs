@@ -50,4 +50,6 @@ pub mod data {
     pub const ORIFICE: &str = include_str!("../data/screen_orifice.json");
     /// Collapse limits of pipe and the vapour bound of a sealed tool.
     pub const DEVICES: &str = include_str!("../data/devices.json");
+    /// Virtual pumping tests: Theis with skin, Papadopulos–Cooper, step-test C.
+    pub const VIRTUAL_TESTS: &str = include_str!("../data/virtual_tests.json");
 }

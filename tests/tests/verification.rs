@@ -146,3 +146,8 @@ fn vapour_bound_and_column_parting() {
 fn conductance_jump_against_laplace_solution() {
     assert_group("conductance_jump");
 }
+
+#[test]
+fn virtual_pumping_and_step_tests() {
+    assert_group("virtual_tests");
+}

@@ -1,0 +1,203 @@
+//! Assessment of the well as a driller and a consultant see it: the figures of virtual
+//! pumping tests on the model (specific capacity, efficiency, step-test coefficients B and C)
+//! before and after development (docs/physics.md §24). No I/O.
+//!
+//! - [`virtual_test`]: constant-rate and step-drawdown tests on a model, each on a domain and
+//!   grid of its own.
+//! - [`assess`]: the figures of one state of the well (a [`SlowState`] on its base model),
+//!   against the same tests on the well with no damage.
+//! - [`progress`]: the same figures during the run, cheaply, from the near-well losses of
+//!   the current state.
+
+pub mod progress;
+pub mod virtual_test;
+
+use crate::error::SolverError;
+use crate::model::Model;
+use crate::slow::SlowState;
+use crate::steptest::hantush::{fit_series, SeriesOptions};
+use crate::steptest::Estimate;
+
+/// What the virtual tests pump and for how long (the case's `assessment` section).
+#[derive(Debug, Clone, PartialEq)]
+pub struct TestPlan {
+    /// Design pumping rate Q_d, m³/s (withdrawal, > 0).
+    pub design_rate_m3_s: f64,
+    /// Duration of the constant-rate test: the specific capacity is read at its end, s.
+    pub constant_duration_s: f64,
+    /// Rates of the step test as fractions of the design rate, increasing.
+    pub step_fractions: Vec<f64>,
+    /// Duration of each step, s.
+    pub step_duration_s: f64,
+}
+
+/// Default step rates as fractions of the design rate (common practice, no source: four or
+/// more steps up to and beyond the design rate; docs/practice.md §step tests).
+pub const DEFAULT_STEP_FRACTIONS: [f64; 4] = [0.5, 0.75, 1.0, 1.25];
+/// Default duration of a step, s (common practice, no source: 1 to 2 h per step).
+pub const DEFAULT_STEP_DURATION_S: f64 = 3600.0;
+/// Default duration of the constant-rate test, s (common practice, no source: 24 h).
+pub const DEFAULT_CONSTANT_DURATION_S: f64 = 86_400.0;
+
+impl TestPlan {
+    /// Checks the plan; errors name the case-file path.
+    pub fn validate(&self) -> Result<(), SolverError> {
+        let pos = |field: &str, v: f64| {
+            if v.is_finite() && v > 0.0 {
+                Ok(())
+            } else {
+                Err(SolverError::invalid(
+                    field,
+                    format!("must be a positive finite number, got {v}"),
+                ))
+            }
+        };
+        pos("assessment.design_rate", self.design_rate_m3_s)?;
+        pos("assessment.duration", self.constant_duration_s)?;
+        pos("assessment.step_duration", self.step_duration_s)?;
+        let f = &self.step_fractions;
+        if f.len() < 3
+            || !f.iter().all(|x| x.is_finite() && *x > 0.0)
+            || !f.windows(2).all(|w| w[0] < w[1])
+        {
+            return Err(SolverError::invalid(
+                "assessment.step_fractions",
+                format!("needs at least three positive, increasing fractions, got {f:?}"),
+            ));
+        }
+        Ok(())
+    }
+
+    /// The step rates, m³/s.
+    pub fn step_rates_m3_s(&self) -> Vec<f64> {
+        self.step_fractions
+            .iter()
+            .map(|f| f * self.design_rate_m3_s)
+            .collect()
+    }
+}
+
+/// Step-test coefficients of a virtual step test (Hantush–Bierschenk, docs/step-test.md).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct StepCoefficients {
+    /// B at the end of one step (the common elapsed time), s/m².
+    pub b_s_m2: f64,
+    /// C, s²/m⁵.
+    pub c_s2_m5: f64,
+    /// C with its standard error from the fit (model error only: the readings are exact).
+    pub c_estimate: Estimate,
+    /// Share of the linear loss B Q_d / (B Q_d + C Q_d²) at the design rate, –.
+    pub linear_share: f64,
+    /// Share of the nonlinear loss C Q_d² / (B Q_d + C Q_d²) at the design rate, –.
+    pub nonlinear_share: f64,
+}
+
+/// The figures of one state of the well.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct WellFigures {
+    /// Drawdown at the end of the constant-rate test, m.
+    pub drawdown_m: f64,
+    /// Drawdown of the same test on the well with no damage, m.
+    pub undamaged_drawdown_m: f64,
+    /// Specific capacity Q_d / s at the end of the constant-rate test, m²/s.
+    pub specific_capacity_m2_s: f64,
+    /// Efficiency s(no damage) / s(this state), –. Above 1 only when the damage zones
+    /// conduct better than the formation (a negative skin): see [`Self::negative_skin`].
+    pub efficiency: f64,
+    /// Whether the efficiency exceeds 1 because of a negative skin.
+    pub negative_skin: bool,
+    /// Step-test coefficients, when the step test ran and could be fitted.
+    pub step: Option<StepCoefficients>,
+}
+
+/// The assessment of a run: the figures before (t = 0) and after (the state at the end).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Assessment {
+    /// The well at t = 0.
+    pub before: WellFigures,
+    /// The well at the end of the run.
+    pub after: WellFigures,
+}
+
+/// Figures of the well `base` in the state `slow` (its snapshot), given the drawdown of the
+/// undamaged well in the same constant-rate test (it does not change during a run).
+pub fn figures_with(
+    base: &Model,
+    slow: &SlowState,
+    plan: &TestPlan,
+    undamaged_drawdown_m: f64,
+) -> Result<WellFigures, SolverError> {
+    let snap = slow.snapshot_model(base);
+    let q = plan.design_rate_m3_s;
+    let s = virtual_test::constant_rate(&snap, q, &[plan.constant_duration_s])?[0];
+    let efficiency = undamaged_drawdown_m / s;
+    let step = step_coefficients(&snap, plan)?;
+    Ok(WellFigures {
+        drawdown_m: s,
+        undamaged_drawdown_m,
+        specific_capacity_m2_s: q / s,
+        efficiency,
+        negative_skin: efficiency > 1.0,
+        step,
+    })
+}
+
+/// Fraction of each step the Hantush–Bierschenk fit leaves out at its start: the larger of
+/// a quarter (the fit's default) and the end of well-bore storage effects,
+/// t_ws ≈ (60 + 3.5 Sk) C_D · S r_s²/T (Ramey's rule for the end of the unit-slope and
+/// transition period; from memory — verify), capped at 3/4 so each step keeps readings.
+pub fn skip_fraction(model: &Model, step_duration_s: f64) -> f64 {
+    let f = &model.formation.medium;
+    let b = model.well.screen_length_m;
+    let (t, s) = (f.conductivity_m_s * b, f.specific_storage_per_m * b);
+    let rs = model.well.screen_radius_m;
+    let c_d = model.well.storage_m2 / (2.0 * std::f64::consts::PI * s * rs * rs);
+    let skin = crate::slow::total_skin(model, SlowState::new(model).cake()).max(0.0);
+    let t_ws = (60.0 + 3.5 * skin) * c_d * s * rs * rs / t;
+    (t_ws / step_duration_s).clamp(0.25, 0.75)
+}
+
+/// B and C of the plan's step test on `model` (the well as it stands), fitted by the
+/// Hantush–Bierschenk procedure with B read at the end of one step; `None` when the fit
+/// fails (it says why only for field data: a virtual test that cannot be fitted has no
+/// coefficients to show).
+pub fn step_coefficients(
+    model: &Model,
+    plan: &TestPlan,
+) -> Result<Option<StepCoefficients>, SolverError> {
+    let samples = virtual_test::step_test(model, &plan.step_rates_m3_s(), plan.step_duration_s)?;
+    let opts = SeriesOptions {
+        reference_time_s: Some(plan.step_duration_s),
+        skip_fraction: skip_fraction(model, plan.step_duration_s),
+        ..SeriesOptions::default()
+    };
+    let q = plan.design_rate_m3_s;
+    Ok(fit_series(&samples, &opts).ok().map(|a| {
+        let (b, c) = (a.corrected.fit.b.value, a.corrected.fit.c.value);
+        let lin = b * q;
+        let non = c * q * q;
+        StepCoefficients {
+            b_s_m2: b,
+            c_s2_m5: c,
+            c_estimate: a.corrected.fit.c,
+            linear_share: lin / (lin + non),
+            nonlinear_share: non / (lin + non),
+        }
+    }))
+}
+
+/// Drawdown of the undamaged well of `base` at the end of the plan's constant-rate test, m.
+pub fn undamaged_drawdown_m(base: &Model, plan: &TestPlan) -> Result<f64, SolverError> {
+    let clean = virtual_test::undamaged(&SlowState::new(base).snapshot_model(base));
+    Ok(virtual_test::constant_rate(&clean, plan.design_rate_m3_s, &[plan.constant_duration_s])?[0])
+}
+
+/// The assessment of a run of `base` that ended in the state `end`.
+pub fn assess(base: &Model, end: &SlowState, plan: &TestPlan) -> Result<Assessment, SolverError> {
+    plan.validate()?;
+    let clean = undamaged_drawdown_m(base, plan)?;
+    Ok(Assessment {
+        before: figures_with(base, &SlowState::new(base), plan, clean)?,
+        after: figures_with(base, end, plan, clean)?,
+    })
+}
