@@ -754,7 +754,7 @@ pub fn table(h: &Headline) -> String {
     row(
         "nonlinear share at the design rate",
         pair(h.nonlinear_share_start, h.nonlinear_share_end, &|x| {
-            format!("{:.1} %", 100.0 * x)
+            format!("{} %", G(100.0 * x, 3))
         }),
     );
     row(

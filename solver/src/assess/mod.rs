@@ -15,8 +15,8 @@ pub mod virtual_test;
 use crate::error::SolverError;
 use crate::model::Model;
 use crate::slow::SlowState;
-use crate::steptest::hantush::{fit_series, SeriesOptions};
-use crate::steptest::Estimate;
+use crate::steptest::jacob::fit_steps;
+use crate::steptest::{Estimate, Step, Weighting};
 
 /// What the virtual tests pump and for how long (the case's `assessment` section).
 #[derive(Debug, Clone, PartialEq)]
@@ -77,14 +77,16 @@ impl TestPlan {
     }
 }
 
-/// Step-test coefficients of a virtual step test (Hantush–Bierschenk, docs/step-test.md).
+/// Step-test coefficients of a virtual step test (Jacob's line, docs/step-test.md).
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct StepCoefficients {
-    /// B at the end of one step (the common elapsed time), s/m².
+    /// B after one step's duration of pumping, s/m².
     pub b_s_m2: f64,
     /// C, s²/m⁵.
     pub c_s2_m5: f64,
-    /// C with its standard error from the fit (model error only: the readings are exact).
+    /// C with its standard error from the fit: the readings are exact, so the error says
+    /// how far the model's losses depart from B Q + C Q² (e.g. Forchheimer loss in cells
+    /// still filling at the reading, or a screen orifice law).
     pub c_estimate: Estimate,
     /// Share of the linear loss B Q_d / (B Q_d + C Q_d²) at the design rate, –.
     pub linear_share: f64,
@@ -142,44 +144,34 @@ pub fn figures_with(
     })
 }
 
-/// Fraction of each step the Hantush–Bierschenk fit leaves out at its start: the larger of
-/// a quarter (the fit's default) and the end of well-bore storage effects,
-/// t_ws ≈ (60 + 3.5 Sk) C_D · S r_s²/T (Ramey's rule for the end of the unit-slope and
-/// transition period; from memory — verify), capped at 3/4 so each step keeps readings.
-pub fn skip_fraction(model: &Model, step_duration_s: f64) -> f64 {
-    let f = &model.formation.medium;
-    let b = model.well.screen_length_m;
-    let (t, s) = (f.conductivity_m_s * b, f.specific_storage_per_m * b);
-    let rs = model.well.screen_radius_m;
-    let c_d = model.well.storage_m2 / (2.0 * std::f64::consts::PI * s * rs * rs);
-    let skin = crate::slow::total_skin(model, SlowState::new(model).cake()).max(0.0);
-    let t_ws = (60.0 + 3.5 * skin) * c_d * s * rs * rs / t;
-    (t_ws / step_duration_s).clamp(0.25, 0.75)
-}
-
-/// B and C of the plan's step test on `model` (the well as it stands), fitted by the
-/// Hantush–Bierschenk procedure with B read at the end of one step; `None` when the fit
-/// fails (it says why only for field data: a virtual test that cannot be fitted has no
-/// coefficients to show).
+/// B and C of the plan's step test on `model` (the well as it stands): each step rate pumped
+/// from rest for one step's duration (a test of its own), and Jacob's line through s/Q
+/// against Q (docs/physics.md §24.2). The linear part of the model (formation, well-bore
+/// storage, laminar skins) is proportional to the rate whatever the time, so B is B(Δt) at
+/// the step duration and C is the nonlinear loss exactly where the near-well flow is
+/// steady: what the Hantush–Bierschenk correction of a continuous field test estimates,
+/// without its Cooper–Jacob approximation. `None` when the line cannot be fitted.
 pub fn step_coefficients(
     model: &Model,
     plan: &TestPlan,
 ) -> Result<Option<StepCoefficients>, SolverError> {
-    let samples = virtual_test::step_test(model, &plan.step_rates_m3_s(), plan.step_duration_s)?;
-    let opts = SeriesOptions {
-        reference_time_s: Some(plan.step_duration_s),
-        skip_fraction: skip_fraction(model, plan.step_duration_s),
-        ..SeriesOptions::default()
-    };
+    let mut steps = Vec::with_capacity(plan.step_fractions.len());
+    for q in plan.step_rates_m3_s() {
+        let s = virtual_test::constant_rate(model, q, &[plan.step_duration_s])?[0];
+        steps.push(Step {
+            rate_m3_s: q,
+            drawdown_m: s,
+        });
+    }
     let q = plan.design_rate_m3_s;
-    Ok(fit_series(&samples, &opts).ok().map(|a| {
-        let (b, c) = (a.corrected.fit.b.value, a.corrected.fit.c.value);
+    Ok(fit_steps(&steps, Weighting::Drawdown, 0.95).ok().map(|a| {
+        let (b, c) = (a.fit.b.value, a.fit.c.value);
         let lin = b * q;
         let non = c * q * q;
         StepCoefficients {
             b_s_m2: b,
             c_s2_m5: c,
-            c_estimate: a.corrected.fit.c,
+            c_estimate: a.fit.c,
             linear_share: lin / (lin + non),
             nonlinear_share: non / (lin + non),
         }
