@@ -9,7 +9,6 @@ use boreflux_solver::grid::{Zone, ZONE_COUNT};
 use boreflux_solver::model::Model;
 use boreflux_solver::safety::{self, ENTRANCE_VELOCITY_RULE_M_S};
 use boreflux_solver::slow::SlowState;
-use boreflux_solver::water::GRAVITY_M_S2;
 use boreflux_solver::SolverError;
 use boreflux_solver::{RunSummary, StepObserver, StepView};
 use serde::Serialize;
@@ -463,9 +462,6 @@ pub fn headline(
     a: &Result<Assessment, SolverError>,
 ) -> Headline {
     let m = &case.model;
-    let rho_g = m.fluid.density_kg_m3 * GRAVITY_M_S2;
-    let rs = m.well.screen_radius_m;
-    let b = m.well.screen_length_m;
     let r_out = s.outer_radius_m;
     let n_pack = m.pack.medium.porosity;
     let mut warnings = case.warnings.clone();
@@ -502,18 +498,19 @@ pub fn headline(
         f.and_then(|f| f.step.as_ref()).map(g)
     };
     let plan = &case.assessment;
-    let slot = s.peak_screen_flow_m3_s / (2.0 * std::f64::consts::PI * rs * b * m.well.open_area);
+    let checks = assess::checks::run_checks(
+        m,
+        s,
+        t.peak_face_gradient,
+        case.safety.formation_specific_gravity,
+    );
+    let slot = checks.peak_slot_velocity_m_s;
     if slot > ENTRANCE_VELOCITY_RULE_M_S {
         warnings.push(format!(
             "peak slot velocity {slot:.3} m/s exceeds the common 0.03 m/s (0.1 ft/s) rule of thumb; a rule of thumb, not a limit"
         ));
     }
-    let peak_q = s.peak_outward_flux_m_s.max(s.peak_inward_flux_m_s);
-    let reynolds = m
-        .pack
-        .medium
-        .grain_diameter_m
-        .map(|d| m.fluid.density_kg_m3 * peak_q * d / m.fluid.viscosity_pa_s);
+    let reynolds = checks.peak_grain_reynolds;
     if let Some(re) = reynolds {
         if re > REYNOLDS_HARD_LIMIT {
             warnings.push(format!("grain Reynolds number at the wall reaches {re:.1} (> 10): flow is well outside the Darcy range; non-Darcy losses dominate"));
@@ -521,29 +518,18 @@ pub fn headline(
             warnings.push(format!("grain Reynolds number at the wall reaches {re:.2} (> 1): Darcy's law is doubtful there"));
         }
     }
-    let outer = m.invaded.map_or(m.formation.medium, |z| z.medium);
-    let piping = (t.peak_face_gradient > 0.0).then(|| {
-        t.peak_face_gradient
-            / safety::terzaghi_critical_gradient(
-                case.safety.formation_specific_gravity,
-                outer.porosity,
-            )
-    });
+    let piping = checks.piping_ratio;
     if let Some(p) = piping.filter(|&p| p > 1.0) {
         warnings.push(format!("gradient at the borehole wall reaches {p:.2} × Terzaghi's critical gradient: grains there may be mobilised (an indicator for horizontal flow, not a heave criterion)"));
     }
-    // Collapse load: the larger of the differential across the screen (pack side over
-    // inside) and the in-well drawdown below static, which loads the blank casing against
-    // the formation's undisturbed pore pressure.
-    let drawdown_m = (-s.well_head_range_m.0).max(0.0);
-    let collapse_pa = s.peak_collapse_head_m.max(drawdown_m) * rho_g;
+    let drawdown_m = checks.peak_in_well_drawdown_m;
+    let collapse_pa = checks.peak_collapse_pressure_pa;
     let sf = case.safety.safety_factor;
     let ratings = collapse_ratings(&case.safety, pipe_temperature_c(case));
     let screen_pa = collapse_pa;
-    let casing_pa = drawdown_m * rho_g;
-    let margin_of = |r: Option<f64>, load: f64| r.filter(|_| load > 0.0).map(|r| r / (sf * load));
-    let casing_margin = margin_of(ratings.casing_pa, casing_pa);
-    let screen_margin = margin_of(ratings.screen_pa, screen_pa);
+    let casing_pa = checks.casing_load_pa;
+    let casing_margin = assess::checks::collapse_margin(ratings.casing_pa, sf, casing_pa);
+    let screen_margin = assess::checks::collapse_margin(ratings.screen_pa, sf, screen_pa);
     let margin = match (casing_margin, screen_margin) {
         (Some(a), Some(b)) => Some(a.min(b)),
         (a, b) => a.or(b),
@@ -632,9 +618,9 @@ pub fn headline(
         peak_grain_reynolds: reynolds,
         piping_ratio: piping,
         peak_collapse_pressure_pa: collapse_pa,
-        peak_screen_differential_pa: s.peak_collapse_head_m * rho_g,
+        peak_screen_differential_pa: checks.peak_screen_differential_pa,
         peak_in_well_drawdown_m: drawdown_m,
-        peak_burst_pressure_pa: s.peak_burst_head_m * rho_g,
+        peak_burst_pressure_pa: checks.peak_burst_pressure_pa,
         collapse_rating_pa: ratings.casing_pa,
         screen_collapse_rating_pa: ratings.screen_pa,
         collapse_rating_basis: ratings.how,

@@ -9,6 +9,7 @@
 //! - [`progress`]: the same figures during the run, cheaply, from the near-well losses of
 //!   the current state.
 
+pub mod checks;
 pub mod progress;
 pub mod virtual_test;
 
