@@ -454,6 +454,26 @@ pub fn assessment(
     })
 }
 
+/// The deepest level below static the drive shows to exist in the well: a pump intake or a
+/// surge block's depth, with what it is.
+fn deepest_known_depth_m(drive: &boreflux_solver::Drive) -> Option<(&'static str, f64)> {
+    use boreflux_solver::Drive;
+    match drive {
+        Drive::PumpBackwash(p) => Some(("pump intake", p.intake_depth_m)),
+        Drive::SurgeBlock(b) => Some(("surge block", b.depth_m)),
+        Drive::Schedule(stages) => stages
+            .iter()
+            .filter_map(|s| deepest_known_depth_m(&s.drive))
+            .max_by(|a, b| a.1.total_cmp(&b.1)),
+        Drive::SineHead(_)
+        | Drive::ConstantRate { .. }
+        | Drive::Slug { .. }
+        | Drive::Table(_)
+        | Drive::Swab(_)
+        | Drive::JetPulse(_) => None,
+    }
+}
+
 /// Computes the headline figures and the warnings; `a` is the run's [`assessment`].
 pub fn headline(
     case: &LoadedCase,
@@ -559,6 +579,40 @@ pub fn headline(
             screen_pa / 1e3,
             ratings.casing_pa.unwrap_or(0.0) / 1e3
         ));
+    }
+    // A pumping test at the design rate loads the blank casing with its drawdown too, and
+    // cannot draw the level below what the drive's own tool or intake shows is there.
+    if let Some(f) = before {
+        if let Some((what, depth)) =
+            deepest_known_depth_m(&m.drive).filter(|&(_, d)| f.drawdown_m > d)
+        {
+            warnings.push(format!(
+                "the virtual constant-rate test at the design rate {} L/s draws the well down \
+                 {} m, below the {what} {} m under the static level: the model's confined \
+                 layer keeps the screen submerged, a real well may not; the figures hold only \
+                 if that much drawdown is available; otherwise give a lower \
+                 assessment.design_rate",
+                G(case.assessment.design_rate_m3_s * 1e3, 4),
+                G(f.drawdown_m, 4),
+                G(depth, 4)
+            ));
+        }
+        let load = f.drawdown_m * m.fluid.density_kg_m3 * boreflux_solver::water::GRAVITY_M_S2;
+        if let Some(mg) = assess::checks::collapse_margin(ratings.casing_pa, sf, load) {
+            if mg < 1.0 {
+                warnings.push(format!(
+                    "the virtual constant-rate test at the design rate {} L/s draws the well down \
+                     {} m, a collapse load of {} kPa on the blank casing above its rating over \
+                     the safety factor {sf}: a real test at this rate could collapse it, and a \
+                     pump cannot lift from below its intake; test at a lower \
+                     assessment.design_rate and check the manufacturer's rating and the local \
+                     well code",
+                    G(case.assessment.design_rate_m3_s * 1e3, 4),
+                    G(f.drawdown_m, 4),
+                    G(load / 1e3, 4)
+                ));
+            }
+        }
     }
     let collapse_risk = warnings.iter().any(|w| w.starts_with("COLLAPSE RISK"));
     warnings.extend(pump_warnings(&m.drive, s, collapse_risk));

@@ -81,6 +81,17 @@ fn every_shipped_case_runs_cleanly() {
             "{name}: energy closure {}",
             summary.energy_closure
         );
+        if name.starts_with("irrigation-pump") {
+            // The default design rate (0.03 m/s at the screen) draws this well down far below
+            // its pump's 12 m intake in the virtual test: the headline must say so.
+            assert!(
+                h.warnings
+                    .iter()
+                    .any(|w| w.contains("below the pump intake")),
+                "{name}: design-rate drawdown warning missing: {:?}",
+                h.warnings
+            );
+        }
         if name.starts_with("swab") {
             assert!(
                 h.warnings.iter().any(|w| w.contains("parted")),

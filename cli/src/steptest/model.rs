@@ -79,11 +79,11 @@ pub fn to_json(m: &ModelSteps) -> Value {
 pub fn text(m: &ModelSteps) -> String {
     let line = |label: &str, c: &Option<StepCoefficients>| match c {
         Some(c) => format!(
-            "  {label:<26} B = {} s/m², C = {} s²/m⁵\n",
+            "  {label:<30} B = {} s/m², C = {} s²/m⁵\n",
             super::text::sig(c.b_s_m2),
             super::text::sig(c.c_s2_m5)
         ),
-        None => format!("  {label:<26} (the line could not be fitted)\n"),
+        None => format!("  {label:<30} (the line could not be fitted)\n"),
     };
     let mut s = format!(
         "\nModel of the case{}: virtual step test at the same rates, {} min per step, each \

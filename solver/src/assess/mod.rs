@@ -194,3 +194,91 @@ pub fn assess(base: &Model, end: &SlowState, plan: &TestPlan) -> Result<Assessme
         after: figures_with(base, end, plan, clean)?,
     })
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::drive::Drive;
+    use crate::model::*;
+
+    /// A small well with an invaded ring of conductivity `k_invaded` (invented numbers).
+    fn well(k_invaded: Option<f64>) -> Model {
+        Model {
+            fluid: Fluid::WATER_20C,
+            well: Well {
+                screen_radius_m: 0.1,
+                screen_length_m: 5.0,
+                open_area: 0.1,
+                casing_radius_m: 0.1,
+                linear_loss_s: 0.0,
+                discharge_coefficient: None,
+                storage_m2: Well::free_surface_storage(0.1),
+            },
+            pack: Pack {
+                outer_radius_m: 0.2,
+                medium: Medium::darcy(2e-3, 1e-5),
+            },
+            cake: None,
+            invaded: k_invaded.map(|k| Invaded {
+                thickness_m: 0.1,
+                medium: Medium::darcy(k, 1e-5),
+            }),
+            formation: Formation {
+                medium: Medium::darcy(2e-4, 1e-5),
+                outer_radius_m: None,
+                outer_boundary: OuterBoundary::FixedHead,
+            },
+            drive: Drive::ConstantRate {
+                pumping_rate_m3_s: 0.0,
+            },
+            duration_s: 1.0,
+            numerics: Numerics::default(),
+        }
+    }
+
+    fn plan() -> TestPlan {
+        TestPlan {
+            design_rate_m3_s: 2e-3,
+            constant_duration_s: 3600.0,
+            step_fractions: vec![0.5, 0.75, 1.0],
+            step_duration_s: 600.0,
+        }
+    }
+
+    /// Definition (docs/physics.md §24.1): a well with no damage is its own undamaged well.
+    #[test]
+    fn a_clean_well_has_an_efficiency_of_exactly_one() {
+        let m = well(None);
+        let a = assess(&m, &SlowState::new(&m), &plan()).unwrap();
+        assert_eq!(a.before.efficiency, 1.0);
+        assert!(!a.before.negative_skin);
+    }
+
+    /// A ring four times more conductive than the formation has Hawkins skin
+    /// (1/4 − 1) ln(0.3/0.2) < 0 (docs/physics.md §2.4): the efficiency exceeds one and
+    /// says why; a ring a quarter as conductive lowers it.
+    #[test]
+    fn only_a_negative_skin_lifts_the_efficiency_above_one() {
+        let better = well(Some(8e-4));
+        let a = assess(&better, &SlowState::new(&better), &plan()).unwrap();
+        assert!(a.before.efficiency > 1.0 && a.before.negative_skin);
+        let worse = well(Some(5e-5));
+        let a = assess(&worse, &SlowState::new(&worse), &plan()).unwrap();
+        assert!(a.before.efficiency < 1.0 && !a.before.negative_skin);
+    }
+
+    #[test]
+    fn a_bad_plan_names_its_field() {
+        let mut p = plan();
+        p.step_fractions = vec![1.0, 0.5, 0.75];
+        let e = p.validate().unwrap_err().to_string();
+        assert!(e.starts_with("assessment.step_fractions"), "{e}");
+        let mut p = plan();
+        p.design_rate_m3_s = -1.0;
+        assert!(p
+            .validate()
+            .unwrap_err()
+            .to_string()
+            .starts_with("assessment.design_rate"));
+    }
+}
