@@ -245,7 +245,7 @@ fn progress(v: &serde_json::Value, out: &mut Vec<CheckResult>) {
     );
     for (label, slow) in [("start", SlowState::new(&m)), ("thinned cake", thinned)] {
         let full = assess::figures_with(&m, &slow, &plan, clean).expect("runs");
-        let cheap = basis.point(&m, &slow);
+        let cheap = basis.point(&slow);
         out.push(CheckResult::new(
             GROUP,
             format!("progress estimate vs full virtual test, {label}"),

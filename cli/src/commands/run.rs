@@ -34,20 +34,19 @@ const PROGRESS_POINTS: usize = 100;
 
 /// Specific capacity and efficiency during the run, from the cheap estimate of
 /// `assess::progress` at evenly spaced times (the first report at or after each).
-struct Progress<'a> {
+struct Progress {
     basis: Option<ProgressBasis>,
-    model: &'a boreflux_solver::Model,
     next_s: f64,
     every_s: f64,
     time_s: Vec<f64>,
     points: Vec<ProgressPoint>,
 }
 
-impl Progress<'_> {
+impl Progress {
     fn record(&mut self, time_s: f64, slow: &SlowState) {
         if let Some(b) = &self.basis {
             self.time_s.push(time_s);
-            self.points.push(b.point(self.model, slow));
+            self.points.push(b.point(slow));
         }
     }
 
@@ -62,15 +61,15 @@ impl Progress<'_> {
 }
 
 /// Everything the run observes, in one observer.
-struct Observers<'a, 'p> {
+struct Observers<'a> {
     sink: &'a mut ResultSink,
     tracker: &'a mut Tracker,
-    progress: &'a mut Progress<'p>,
+    progress: &'a mut Progress,
     bar: &'a ProgressBar,
     duration_s: f64,
 }
 
-impl StepObserver for Observers<'_, '_> {
+impl StepObserver for Observers<'_> {
     fn on_step(&mut self, s: &StepView<'_>) -> bool {
         if interrupted() {
             return false;
@@ -171,10 +170,7 @@ fn write_summary(sink: &mut ResultSink, h: &Headline) -> Result<(), crate::outpu
 
 /// Writes the `/progress` group: specific capacity and efficiency during the run
 /// (docs/formats.md). Nothing when the virtual tests failed.
-fn write_progress(
-    sink: &mut ResultSink,
-    p: &Progress<'_>,
-) -> Result<(), crate::output::OutputError> {
+fn write_progress(sink: &mut ResultSink, p: &Progress) -> Result<(), crate::output::OutputError> {
     if p.points.is_empty() {
         return Ok(());
     }
@@ -237,7 +233,6 @@ pub fn run(a: &RunArgs) -> Result<(), Failure> {
             .as_ref()
             .ok()
             .map(|&c| ProgressBasis::new(model, case.assessment.design_rate_m3_s, c)),
-        model,
         next_s: model.duration_s / PROGRESS_POINTS as f64,
         every_s: model.duration_s / PROGRESS_POINTS as f64,
         time_s: Vec::with_capacity(PROGRESS_POINTS + 2),
