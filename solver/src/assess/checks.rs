@@ -81,7 +81,7 @@ pub fn collapse_margin(rating_pa: Option<f64>, safety_factor: f64, load_pa: f64)
 }
 
 /// Resistance of each zone to steady radial flow at vanishing flow, s/m² (index by
-/// [`Zone`]): the linear resistances of the faces' segments, summed by zone.
+/// [`crate::grid::Zone`]): the linear resistances of the faces' segments, summed by zone.
 pub fn zone_resistances(d: &Discretization) -> [f64; ZONE_COUNT] {
     let mut r = [0.0; ZONE_COUNT];
     let used = if d.outer_open {
