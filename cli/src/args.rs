@@ -246,6 +246,11 @@ pub struct SteptestArgs {
     /// Also fit the power law s = B Q + C Q^n (Rorabaugh) to the same steps (4 or more).
     #[arg(long)]
     pub power: bool,
+    /// A case file of the same well: its model's virtual step test at the field rates and
+    /// step duration (as built and after the case's development run) is shown beside the
+    /// field fit.
+    #[arg(long, value_name = "CASE")]
+    pub case: Option<PathBuf>,
 }
 
 /// Weighting of the step line (see `--weights`).

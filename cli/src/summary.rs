@@ -4,11 +4,12 @@
 
 use crate::case::LoadedCase;
 use crate::units::{FT_M, PSI_PA, US_GAL_M3};
+use boreflux_solver::assess::{self, Assessment, WellFigures};
 use boreflux_solver::grid::{Zone, ZONE_COUNT};
 use boreflux_solver::model::Model;
 use boreflux_solver::safety::{self, ENTRANCE_VELOCITY_RULE_M_S};
-use boreflux_solver::skin::{efficiency, thiem_specific_capacity};
-use boreflux_solver::water::GRAVITY_M_S2;
+use boreflux_solver::slow::SlowState;
+use boreflux_solver::SolverError;
 use boreflux_solver::{RunSummary, StepObserver, StepView};
 use serde::Serialize;
 
@@ -18,10 +19,12 @@ pub const REYNOLDS_SOFT_LIMIT: f64 = 1.0;
 /// Grain Reynolds number above which the warning is strong.
 pub const REYNOLDS_HARD_LIMIT: f64 = 10.0;
 
-/// Definition of the efficiency reported (docs/physics.md §2.4).
-pub const EFFICIENCY_DEFINITION: &str = "steady-state efficiency E = ln(R/r_s) / (ln(R/r_s) + s), \
-ideal formation drawdown over actual drawdown at the screen, screen losses excluded; R is the \
-model's outer radius (Thiem with Hawkins skin)";
+/// Definition of the efficiency reported (docs/physics.md §25).
+pub const EFFICIENCY_DEFINITION: &str = "efficiency E = s0 / s: the drawdown of the same well \
+with no damage (no cake, no invaded zone; screen and pack kept) over the drawdown of the well \
+as it stands, both read at the end of the virtual constant-rate test at the design rate \
+(assessment section); above 100 % only for a negative skin. Specific capacity Q/s from the \
+same test";
 
 /// A number shown with N significant digits: fixed notation between 1e-3 and 1e5,
 /// scientific outside.
@@ -138,14 +141,39 @@ pub struct Headline {
     pub skin_start: f64,
     /// Skin at the end.
     pub skin_end: f64,
-    /// Efficiency at the start (see `efficiency_definition`).
-    pub efficiency_start: f64,
+    /// Efficiency at the start (see `efficiency_definition`); none when the virtual tests
+    /// failed (a warning says why).
+    pub efficiency_start: Option<f64>,
     /// Efficiency at the end.
-    pub efficiency_end: f64,
-    /// Predicted specific capacity at the start, m²/s.
-    pub specific_capacity_start_m2_s: f64,
-    /// Predicted specific capacity at the end, m²/s.
-    pub specific_capacity_end_m2_s: f64,
+    pub efficiency_end: Option<f64>,
+    /// Specific capacity of the virtual constant-rate test at the start, m²/s.
+    pub specific_capacity_start_m2_s: Option<f64>,
+    /// Specific capacity of the virtual constant-rate test at the end, m²/s.
+    pub specific_capacity_end_m2_s: Option<f64>,
+    /// Design rate of the virtual tests, m³/s.
+    pub design_rate_m3_s: f64,
+    /// Duration of the virtual constant-rate test, s.
+    pub test_duration_s: f64,
+    /// Duration of each step of the virtual step test, s.
+    pub step_duration_s: f64,
+    /// Drawdown at the end of the constant-rate test at the start, m.
+    pub test_drawdown_start_m: Option<f64>,
+    /// Drawdown at the end of the constant-rate test at the end, m.
+    pub test_drawdown_end_m: Option<f64>,
+    /// Drawdown of the same test on the undamaged well, m.
+    pub test_drawdown_undamaged_m: Option<f64>,
+    /// Step-test B at the start (one step's duration), s/m².
+    pub step_b_start_s_m2: Option<f64>,
+    /// Step-test B at the end, s/m².
+    pub step_b_end_s_m2: Option<f64>,
+    /// Step-test C at the start, s²/m⁵.
+    pub step_c_start_s2_m5: Option<f64>,
+    /// Step-test C at the end, s²/m⁵.
+    pub step_c_end_s2_m5: Option<f64>,
+    /// Nonlinear share C Q/(B + C Q) of the step-test drawdown at the design rate, start.
+    pub nonlinear_share_start: Option<f64>,
+    /// Nonlinear share at the end.
+    pub nonlinear_share_end: Option<f64>,
     /// Definition of the efficiency.
     pub efficiency_definition: &'static str,
     /// Largest slot velocity, m/s.
@@ -407,29 +435,102 @@ fn pump_warnings(
     out
 }
 
-/// Computes the headline figures and the warnings.
-pub fn headline(case: &LoadedCase, s: &RunSummary, t: &Tracker) -> Headline {
+/// The virtual tests of a run (docs/physics.md §25): the well at t = 0 and as it stands at
+/// the end, against the undamaged well; `undamaged_drawdown_m` when already computed (for
+/// the progress series), else it is computed here.
+pub fn assessment(
+    case: &LoadedCase,
+    undamaged_drawdown_m: Option<f64>,
+    s: &RunSummary,
+) -> Result<Assessment, SolverError> {
+    let (m, plan) = (&case.model, &case.assessment);
+    let clean = match undamaged_drawdown_m {
+        Some(c) => c,
+        None => assess::undamaged_drawdown_m(m, plan)?,
+    };
+    Ok(Assessment {
+        before: assess::figures_with(m, &SlowState::new(m), plan, clean)?,
+        after: assess::figures_with(m, &s.final_state, plan, clean)?,
+    })
+}
+
+/// The deepest level below static the drive shows to exist in the well: a pump intake or a
+/// surge block's depth, with what it is.
+fn deepest_known_depth_m(drive: &boreflux_solver::Drive) -> Option<(&'static str, f64)> {
+    use boreflux_solver::Drive;
+    match drive {
+        Drive::PumpBackwash(p) => Some(("pump intake", p.intake_depth_m)),
+        Drive::SurgeBlock(b) => Some(("surge block", b.depth_m)),
+        Drive::Schedule(stages) => stages
+            .iter()
+            .filter_map(|s| deepest_known_depth_m(&s.drive))
+            .max_by(|a, b| a.1.total_cmp(&b.1)),
+        Drive::SineHead(_)
+        | Drive::ConstantRate { .. }
+        | Drive::Slug { .. }
+        | Drive::Table(_)
+        | Drive::Swab(_)
+        | Drive::JetPulse(_) => None,
+    }
+}
+
+/// Computes the headline figures and the warnings; `a` is the run's [`assessment`].
+pub fn headline(
+    case: &LoadedCase,
+    s: &RunSummary,
+    t: &Tracker,
+    a: &Result<Assessment, SolverError>,
+) -> Headline {
     let m = &case.model;
-    let rho_g = m.fluid.density_kg_m3 * GRAVITY_M_S2;
-    let rs = m.well.screen_radius_m;
-    let b = m.well.screen_length_m;
     let r_out = s.outer_radius_m;
-    let transmissivity = m.formation.medium.conductivity_m_s * b;
     let n_pack = m.pack.medium.porosity;
     let mut warnings = case.warnings.clone();
     warnings.extend(s.warnings.iter().cloned());
-    let slot = s.peak_screen_flow_m3_s / (2.0 * std::f64::consts::PI * rs * b * m.well.open_area);
+    let (before, after): (Option<&WellFigures>, Option<&WellFigures>) = match a {
+        Ok(a) => {
+            for (when, f) in [("at the start", &a.before), ("at the end", &a.after)] {
+                if f.negative_skin {
+                    warnings.push(format!(
+                        "efficiency {when} is {:.1} % (above 100 %): the damage zones conduct \
+                         better than the formation (a negative skin), so the well draws down \
+                         less than the same well without them",
+                        100.0 * f.efficiency
+                    ));
+                }
+                if f.step.is_none() {
+                    warnings.push(format!(
+                        "the virtual step test {when} could not be fitted (B and C not shown)"
+                    ));
+                }
+            }
+            (Some(&a.before), Some(&a.after))
+        }
+        Err(e) => {
+            warnings.push(format!(
+                "the virtual pumping tests failed, so no specific capacity or efficiency is \
+                 shown: {e}"
+            ));
+            (None, None)
+        }
+    };
+    let fig = |f: Option<&WellFigures>, g: &dyn Fn(&WellFigures) -> f64| f.map(g);
+    let step = |f: Option<&WellFigures>, g: &dyn Fn(&assess::StepCoefficients) -> f64| {
+        f.and_then(|f| f.step.as_ref()).map(g)
+    };
+    let plan = &case.assessment;
+    let checks = assess::checks::run_checks(
+        m,
+        s,
+        t.peak_face_gradient,
+        case.safety.formation_specific_gravity,
+    );
+    let slot = checks.peak_slot_velocity_m_s;
     if slot > ENTRANCE_VELOCITY_RULE_M_S {
         warnings.push(format!(
             "peak slot velocity {slot:.3} m/s exceeds the common 0.03 m/s (0.1 ft/s) rule of thumb; a rule of thumb, not a limit"
         ));
     }
-    let peak_q = s.peak_outward_flux_m_s.max(s.peak_inward_flux_m_s);
-    let reynolds = m
-        .pack
-        .medium
-        .grain_diameter_m
-        .map(|d| m.fluid.density_kg_m3 * peak_q * d / m.fluid.viscosity_pa_s);
+    let reynolds = checks.peak_grain_reynolds;
     if let Some(re) = reynolds {
         if re > REYNOLDS_HARD_LIMIT {
             warnings.push(format!("grain Reynolds number at the wall reaches {re:.1} (> 10): flow is well outside the Darcy range; non-Darcy losses dominate"));
@@ -437,29 +538,18 @@ pub fn headline(case: &LoadedCase, s: &RunSummary, t: &Tracker) -> Headline {
             warnings.push(format!("grain Reynolds number at the wall reaches {re:.2} (> 1): Darcy's law is doubtful there"));
         }
     }
-    let outer = m.invaded.map_or(m.formation.medium, |z| z.medium);
-    let piping = (t.peak_face_gradient > 0.0).then(|| {
-        t.peak_face_gradient
-            / safety::terzaghi_critical_gradient(
-                case.safety.formation_specific_gravity,
-                outer.porosity,
-            )
-    });
+    let piping = checks.piping_ratio;
     if let Some(p) = piping.filter(|&p| p > 1.0) {
         warnings.push(format!("gradient at the borehole wall reaches {p:.2} × Terzaghi's critical gradient: grains there may be mobilised (an indicator for horizontal flow, not a heave criterion)"));
     }
-    // Collapse load: the larger of the differential across the screen (pack side over
-    // inside) and the in-well drawdown below static, which loads the blank casing against
-    // the formation's undisturbed pore pressure.
-    let drawdown_m = (-s.well_head_range_m.0).max(0.0);
-    let collapse_pa = s.peak_collapse_head_m.max(drawdown_m) * rho_g;
+    let drawdown_m = checks.peak_in_well_drawdown_m;
+    let collapse_pa = checks.peak_collapse_pressure_pa;
     let sf = case.safety.safety_factor;
     let ratings = collapse_ratings(&case.safety, pipe_temperature_c(case));
     let screen_pa = collapse_pa;
-    let casing_pa = drawdown_m * rho_g;
-    let margin_of = |r: Option<f64>, load: f64| r.filter(|_| load > 0.0).map(|r| r / (sf * load));
-    let casing_margin = margin_of(ratings.casing_pa, casing_pa);
-    let screen_margin = margin_of(ratings.screen_pa, screen_pa);
+    let casing_pa = checks.casing_load_pa;
+    let casing_margin = assess::checks::collapse_margin(ratings.casing_pa, sf, casing_pa);
+    let screen_margin = assess::checks::collapse_margin(ratings.screen_pa, sf, screen_pa);
     let margin = match (casing_margin, screen_margin) {
         (Some(a), Some(b)) => Some(a.min(b)),
         (a, b) => a.or(b),
@@ -489,6 +579,40 @@ pub fn headline(case: &LoadedCase, s: &RunSummary, t: &Tracker) -> Headline {
             screen_pa / 1e3,
             ratings.casing_pa.unwrap_or(0.0) / 1e3
         ));
+    }
+    // A pumping test at the design rate loads the blank casing with its drawdown too, and
+    // cannot draw the level below what the drive's own tool or intake shows is there.
+    if let Some(f) = before {
+        if let Some((what, depth)) =
+            deepest_known_depth_m(&m.drive).filter(|&(_, d)| f.drawdown_m > d)
+        {
+            warnings.push(format!(
+                "the virtual constant-rate test at the design rate {} L/s draws the well down \
+                 {} m, below the {what} {} m under the static level: the model's confined \
+                 layer keeps the screen submerged, a real well may not; the figures hold only \
+                 if that much drawdown is available; otherwise give a lower \
+                 assessment.design_rate",
+                G(case.assessment.design_rate_m3_s * 1e3, 4),
+                G(f.drawdown_m, 4),
+                G(depth, 4)
+            ));
+        }
+        let load = f.drawdown_m * m.fluid.density_kg_m3 * boreflux_solver::water::GRAVITY_M_S2;
+        if let Some(mg) = assess::checks::collapse_margin(ratings.casing_pa, sf, load) {
+            if mg < 1.0 {
+                warnings.push(format!(
+                    "the virtual constant-rate test at the design rate {} L/s draws the well down \
+                     {} m, a collapse load of {} kPa on the blank casing above its rating over \
+                     the safety factor {sf}: a real test at this rate could collapse it, and a \
+                     pump cannot lift from below its intake; test at a lower \
+                     assessment.design_rate and check the manufacturer's rating and the local \
+                     well code",
+                    G(case.assessment.design_rate_m3_s * 1e3, 4),
+                    G(f.drawdown_m, 4),
+                    G(load / 1e3, 4)
+                ));
+            }
+        }
     }
     let collapse_risk = warnings.iter().any(|w| w.starts_with("COLLAPSE RISK"));
     warnings.extend(pump_warnings(&m.drive, s, collapse_risk));
@@ -527,18 +651,30 @@ pub fn headline(case: &LoadedCase, s: &RunSummary, t: &Tracker) -> Headline {
         cycles_to_90pct_cake: t.tenth_cake_s.zip(m.drive.period_s()).map(|(x, p)| x / p),
         skin_start: s.skin.0,
         skin_end: s.skin.1,
-        efficiency_start: efficiency(r_out, rs, s.skin.0),
-        efficiency_end: efficiency(r_out, rs, s.skin.1),
-        specific_capacity_start_m2_s: thiem_specific_capacity(transmissivity, r_out, rs, s.skin.0),
-        specific_capacity_end_m2_s: thiem_specific_capacity(transmissivity, r_out, rs, s.skin.1),
+        efficiency_start: fig(before, &|f| f.efficiency),
+        efficiency_end: fig(after, &|f| f.efficiency),
+        specific_capacity_start_m2_s: fig(before, &|f| f.specific_capacity_m2_s),
+        specific_capacity_end_m2_s: fig(after, &|f| f.specific_capacity_m2_s),
+        design_rate_m3_s: plan.design_rate_m3_s,
+        test_duration_s: plan.constant_duration_s,
+        step_duration_s: plan.step_duration_s,
+        test_drawdown_start_m: fig(before, &|f| f.drawdown_m),
+        test_drawdown_end_m: fig(after, &|f| f.drawdown_m),
+        test_drawdown_undamaged_m: fig(before, &|f| f.undamaged_drawdown_m),
+        step_b_start_s_m2: step(before, &|c| c.b_s_m2),
+        step_b_end_s_m2: step(after, &|c| c.b_s_m2),
+        step_c_start_s2_m5: step(before, &|c| c.c_s2_m5),
+        step_c_end_s2_m5: step(after, &|c| c.c_s2_m5),
+        nonlinear_share_start: step(before, &|c| c.nonlinear_share),
+        nonlinear_share_end: step(after, &|c| c.nonlinear_share),
         efficiency_definition: EFFICIENCY_DEFINITION,
         peak_slot_velocity_m_s: slot,
         peak_grain_reynolds: reynolds,
         piping_ratio: piping,
         peak_collapse_pressure_pa: collapse_pa,
-        peak_screen_differential_pa: s.peak_collapse_head_m * rho_g,
+        peak_screen_differential_pa: checks.peak_screen_differential_pa,
         peak_in_well_drawdown_m: drawdown_m,
-        peak_burst_pressure_pa: s.peak_burst_head_m * rho_g,
+        peak_burst_pressure_pa: checks.peak_burst_pressure_pa,
         collapse_rating_pa: ratings.casing_pa,
         screen_collapse_rating_pa: ratings.screen_pa,
         collapse_rating_basis: ratings.how,
@@ -616,22 +752,50 @@ pub fn table(h: &Headline) -> String {
         format!("{} → {}", G(h.skin_start, 4), G(h.skin_end, 4)),
     );
     row(
-        "efficiency start → end (steady, see report)",
+        "virtual tests: design rate / test / steps",
         format!(
-            "{:.1} % → {:.1} %",
-            100.0 * h.efficiency_start,
-            100.0 * h.efficiency_end
+            "{} L/s ({} gpm) / {} h / {} h each",
+            G(h.design_rate_m3_s * 1e3, 4),
+            G(h.design_rate_m3_s * gpm, 4),
+            G(h.test_duration_s / 3600.0, 4),
+            G(h.step_duration_s / 3600.0, 4)
         ),
+    );
+    let pair = |a: Option<f64>, b: Option<f64>, f: &dyn Fn(f64) -> String| match (a, b) {
+        (Some(a), Some(b)) => format!("{} → {}", f(a), f(b)),
+        _ => "— (virtual tests failed, see warnings)".to_owned(),
+    };
+    row(
+        "efficiency start → end (virtual test)",
+        pair(h.efficiency_start, h.efficiency_end, &|x| {
+            format!("{:.1} %", 100.0 * x)
+        }),
     );
     row(
         "specific capacity start → end",
-        format!(
-            "{} → {} L/s/m ({} → {} gpm/ft)",
-            G(h.specific_capacity_start_m2_s * 1e3, 4),
-            G(h.specific_capacity_end_m2_s * 1e3, 4),
-            G(h.specific_capacity_start_m2_s * gpm * FT_M, 3),
-            G(h.specific_capacity_end_m2_s * gpm * FT_M, 3)
+        pair(
+            h.specific_capacity_start_m2_s,
+            h.specific_capacity_end_m2_s,
+            &|x| format!("{} L/s/m ({} gpm/ft)", G(x * 1e3, 4), G(x * gpm * FT_M, 3)),
         ),
+    );
+    row(
+        "step test B start → end",
+        pair(h.step_b_start_s_m2, h.step_b_end_s_m2, &|x| {
+            format!("{} s/m²", G(x, 4))
+        }),
+    );
+    row(
+        "step test C start → end",
+        pair(h.step_c_start_s2_m5, h.step_c_end_s2_m5, &|x| {
+            format!("{} s²/m⁵", G(x, 4))
+        }),
+    );
+    row(
+        "nonlinear share at the design rate",
+        pair(h.nonlinear_share_start, h.nonlinear_share_end, &|x| {
+            format!("{} %", G(100.0 * x, 3))
+        }),
     );
     row(
         "peak slot velocity (rule of thumb 0.03 m/s)",

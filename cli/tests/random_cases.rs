@@ -13,7 +13,7 @@
 mod gen;
 
 use boreflux::case::parse_case;
-use boreflux::summary::{headline, Tracker};
+use boreflux::summary::{assessment, headline, Tracker};
 use boreflux_solver::{run, CycleView, Reporting, StepObserver, StepView};
 use std::path::Path;
 
@@ -114,7 +114,13 @@ fn random_valid_cases_run_cleanly() {
                         k_fail += 1;
                         eprintln!("NON-FINITE {kind} #{i}: {b}\n  case: {text}");
                     }
-                    let h = headline(&loaded, &summary, &watch.tracker);
+                    let a = assessment(&loaded, None, &summary);
+                    if let Err(e) = &a {
+                        failures += 1;
+                        k_fail += 1;
+                        eprintln!("VIRTUAL TESTS FAILED {kind} #{i}: {e}\n  case: {text}");
+                    }
+                    let h = headline(&loaded, &summary, &watch.tracker, &a);
                     if h.warnings.iter().any(|w| w.contains("numerical balance")) {
                         balance += 1;
                         k_bal += 1;

@@ -293,3 +293,51 @@ fn steptest_never_writes_over_its_input() {
     assert!(e.contains("never writes over its inputs"), "{e}");
     assert_eq!(std::fs::read_to_string(&csv).unwrap(), before);
 }
+
+/// `--case` puts the model's virtual step test beside the field fit, as built and after
+/// the case's development (the coefficients themselves are verified against the analytic
+/// nonlinear loss in the `virtual_tests` group); a missing case is bad input (exit 2).
+#[test]
+fn steptest_with_a_case_shows_the_model_beside_the_field() {
+    let steps = cases_dir().join("step-tests/demo-series.csv");
+    let case = cases_dir().join("municipal-sand-gravel.json");
+    let v = json_of(&[
+        "steptest",
+        steps.to_str().unwrap(),
+        "--json",
+        "--case",
+        case.to_str().unwrap(),
+    ]);
+    let m = &v["model"];
+    let rates = m["rates_m3_s"].as_array().unwrap();
+    assert_eq!(rates.len(), v["steps"].as_array().unwrap().len());
+    // The field series has 60-min steps; Hantush–Bierschenk corrects to the shortest.
+    assert_eq!(m["step_duration_s"].as_f64(), Some(3600.0));
+    for state in ["as_built", "after_development"] {
+        let b = m[state]["B_s_m2"].as_f64().unwrap();
+        assert!(b > 0.0, "{state}: B = {b}");
+        assert!(m[state]["C_s2_m5"].as_f64().unwrap().is_finite());
+    }
+    // Development removes damage: B after is not above B as built.
+    assert!(
+        m["after_development"]["B_s_m2"].as_f64().unwrap()
+            <= m["as_built"]["B_s_m2"].as_f64().unwrap()
+    );
+    let out = boreflux()
+        .args(["steptest", steps.to_str().unwrap(), "--case"])
+        .arg(&case)
+        .output()
+        .unwrap();
+    assert!(out.status.success());
+    assert!(String::from_utf8_lossy(&out.stdout).contains("Model of the case"));
+    let err = stderr_of_failure(
+        &[
+            "steptest",
+            steps.to_str().unwrap(),
+            "--case",
+            "no-such-case.json",
+        ],
+        2,
+    );
+    assert!(err.contains("no-such-case.json"), "{err}");
+}

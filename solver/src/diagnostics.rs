@@ -68,6 +68,9 @@ pub struct StepView<'a> {
     pub heads: &'a [f64],
     /// The grid.
     pub grid: &'a Grid,
+    /// The well's slow state after the step (what a virtual test on the well as it stands
+    /// now starts from: `SlowState::snapshot_model`).
+    pub slow: &'a crate::slow::SlowState,
 }
 
 /// Aggregates of one cycle of a periodic drive.

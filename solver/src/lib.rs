@@ -9,6 +9,7 @@
 //! relative to the static level, m.
 #![deny(missing_docs)]
 
+pub mod assess;
 pub mod cake;
 pub mod cost;
 pub mod devices;

@@ -173,6 +173,10 @@ pub struct RunSummary {
     pub min_step_s: f64,
     /// Warnings that did not stop the run.
     pub warnings: Vec<String>,
+    /// The well's slow state at the end (cake, and every damage the run removes): with the
+    /// model, what a virtual test of the developed well starts from
+    /// (`SlowState::snapshot_model`, `assess::assess`).
+    pub final_state: SlowState,
 }
 
 /// How often the observer is called.
@@ -369,6 +373,7 @@ pub fn run_from_state(
         total_newton_iterations: 0,
         min_step_s: f64::INFINITY,
         warnings: Vec::new(),
+        final_state: slow.clone(),
     };
     let mut push = BlockPush::default();
     let mut chooser = StepChooser::new(model);
@@ -528,6 +533,7 @@ pub fn run_from_state(
                 newton_iterations: b.newton_iterations,
                 heads: &st.heads()[1..],
                 grid: &st.disc.grid,
+                slow: &slow,
             };
             if let Some(acc) = cycles.as_mut() {
                 if let Some(c) = acc.add(&view) {
@@ -564,6 +570,7 @@ pub fn run_from_state(
     };
     summary.cake_thickness_m.1 = slow.cake_thickness_m().1;
     summary.skin.1 = slow.skin().1;
+    summary.final_state = slow.clone();
     (summary.column_partings, summary.parted_time_s) = st.column_parting();
     if summary.column_partings > 0 {
         summary.warnings.push(format!(

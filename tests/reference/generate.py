@@ -1711,6 +1711,107 @@ def inertia():
     }
 
 
+# ---------------------------------------------------------------------------------------
+# 16. virtual pumping tests on a model (docs/physics.md section 25)
+# ---------------------------------------------------------------------------------------
+
+
+def virtual_tests():
+    """Reference drawdowns and well-loss coefficients for the virtual tests of
+    docs/physics.md section 25 (the `virtual_tests` verification group).
+
+    Theis (1935) with skin (van Everdingen & Hurst 1949 with an infinitesimal skin,
+    Agarwal et al. 1970), Cooper & Jacob (1946) where u is small, Papadopulos & Cooper
+    (1967) with well-bore storage, and the steady nonlinear loss of a Forchheimer pack
+    (docs/physics.md section 4.3) plus the screen orifice loss (section 3) for C of Jacob's
+    (1947) s = B Q + C Q^2. Model parameters are invented for the check.
+    """
+    k, ss, b, rs, rb = 1e-4, 1e-5, 10.0, 0.1, 0.2
+    t_f, s_f = k * b, ss * b
+    q = 0.01
+    diffs = []
+
+    # (a) Theis with skin: an invaded ring r_b..r_d of K_i, no well-bore storage.
+    r_d, k_i = 0.5, 2e-5
+    skin = (k / k_i - 1.0) * math.log(r_d / rb)  # Hawkins 1956, docs/physics.md section 2.4
+    times_a = [600.0, 3600.0, 86400.0]
+    theis_skin, cj = [], []
+    for t in times_a:
+        td = t_f * t / (s_f * rs * rs)
+        val, d = inverted_pair(storage_skin_fbar(0.0, skin), td)
+        diffs.append(d)
+        theis_skin.append(f(q / (2.0 * math.pi * t_f) * val))
+        u = rs * rs * s_f / (4.0 * t_f * t)
+        cj.append(f(q / (4.0 * math.pi * t_f) * (math.log(2.25 * t_f * t / (rs * rs * s_f))
+                                                 + 2.0 * skin)))
+        # cross-check the inversion against scipy's exponential integral plus skin
+        # (Theis W(u) = E1(u); the infinitesimal skin adds Q Sk / (2 pi T) at late time)
+        w = scipy.special.exp1(u)
+        diffs.append(rel_diff(val, 0.5 * w + skin) if u < 1e-8 else 0.0)
+
+    # (b) Papadopulos-Cooper: homogeneous, casing radius r_c = r_s, no skin.
+    rc = 0.1
+    c_d = rc * rc / (2.0 * s_f * rs * rs)
+    times_b = [100.0, 1000.0, 10000.0, 86400.0]
+    pc = []
+    for t in times_b:
+        td = t_f * t / (s_f * rs * rs)
+        val, d = inverted_pair(storage_skin_fbar(c_d, 0.0), td)
+        diffs.append(d)
+        pc.append(f(q / (2.0 * math.pi * t_f) * val))
+
+    # (c) nonlinear loss of a Forchheimer pack and a screen orifice: C in s = B Q + C Q^2.
+    fc = {"K_pack": 1e-3, "beta_pack": 1e6, "K": 5e-4, "Ss": 1e-5, "b": 5.0, "rs": 0.1,
+          "rb": 0.2, "open_area": 0.05, "Cd": 0.6, "Q_design": 0.004,
+          "fractions": [0.5, 0.75, 1.0, 1.25], "step_s": 3600.0}
+    pack_c = fc["beta_pack"] * (1.0 / fc["rs"] - 1.0 / fc["rb"]) / (2.0 * math.pi * fc["b"]) ** 2
+    pack_c_q, _ = scipy.integrate.quad(
+        lambda r: fc["beta_pack"] / (2.0 * math.pi * r * fc["b"]) ** 2, fc["rs"], fc["rb"],
+        epsabs=0.0, epsrel=1e-13)
+    diffs.append(rel_diff(pack_c, pack_c_q))
+    area = 2.0 * math.pi * fc["rs"] * fc["b"] * fc["open_area"] * fc["Cd"]
+    orifice_c = 1.0 / (2.0 * G * area * area)
+    c_total = pack_c + orifice_c
+
+    return {
+        "source": (
+            "Theis, C.V., 1935, Trans. AGU 16, 519-524, with an infinitesimal skin (van "
+            "Everdingen, A.F., Hurst, W., 1949, Trans. AIME 186, 305-324; Agarwal, R.G., "
+            "Al-Hussainy, R., Ramey, H.J., 1970, SPE J. 10(3), 279-290); Cooper, H.H., "
+            "Jacob, C.E., 1946, Trans. AGU 27(4), 526-534; Papadopulos, I.S., Cooper, H.H., "
+            "1967, Water Resour. Res. 3(1), 241-244; Hawkins, M.F., 1956, Trans. AIME 207, "
+            "356-357 (skin of a ring); Jacob, C.E., 1947, Trans. ASCE 112, 1047-1070 "
+            "(s = B Q + C Q^2); Forchheimer loss closed form docs/physics.md section 4.3; "
+            "orifice loss section 3 (citations from memory - verify). Model parameters "
+            "invented for the check."
+        ),
+        "computed_with": {
+            "versions": versions(),
+            "calls": [
+                f"mpmath.invertlaplace(F, tD, method='talbot') with mp.mp.dps = {MP_DPS}, "
+                "F(p) = [K0(x) + Sk x K1(x)] / (p {x K1(x) + C_D p [K0(x) + Sk x K1(x)]}), "
+                "x = sqrt(p), mpmath.besselk",
+                "cross-check: method='stehfest'; at u < 1e-8 Theis with skin 0.5 E1(u) + Sk "
+                "with scipy.special.exp1",
+                "C_pack = beta (1/rs - 1/rb)/(2 pi b)^2, cross-check scipy.integrate.quad of "
+                "beta/(2 pi r b)^2 over [rs, rb]; C_screen = 1/(2 g (2 pi rs b A_o C_d)^2)",
+            ],
+        },
+        "conventions": (
+            "drawdown s = -h (m), positive for pumping at rate Q (m^3/s, withdrawal); "
+            "T = K b, S = Ss b, tD = T t/(S rs^2), C_D = rc^2/(2 S rs^2)"
+        ),
+        "params": {"K": k, "Ss": ss, "b": b, "rs": rs, "rb": rb, "Q": q},
+        "theis_skin": {"r_d": r_d, "K_invaded": k_i, "skin": f(skin), "t": times_a,
+                       "drawdown": theis_skin, "cooper_jacob": cj},
+        "storage": {"rc": rc, "C_D": f(c_d), "t": times_b, "drawdown": pc},
+        "forchheimer": {**fc, "C_pack": f(pack_c), "C_screen": f(orifice_c),
+                        "C": f(c_total)},
+        "cross_check": "Talbot vs Stehfest; late-time E1 + skin; closed form vs quad",
+        "cross_check_max_rel_diff": f(max(diffs)),
+    }
+
+
 GENERATORS = [
     ("thiem_composite.json", thiem_composite),
     ("theis.json", theis),
@@ -1727,6 +1828,7 @@ GENERATORS = [
     ("devices.json", devices),
     ("conductance_jump.json", conductance_jump),
     ("inertia.json", inertia),
+    ("virtual_tests.json", virtual_tests),
 ]
 
 

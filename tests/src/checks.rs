@@ -139,6 +139,12 @@ pub fn all() -> Vec<Group> {
             title: "Annulus width: planar limit and radial departure",
             run: crate::development::annulus,
         },
+        Group {
+            id: "virtual_tests",
+            title: "Virtual pumping and step tests vs Theis with skin, Papadopulos–Cooper, \
+                    analytic nonlinear loss",
+            run: crate::virtual_tests::virtual_tests,
+        },
     ]
 }
 

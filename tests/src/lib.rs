@@ -15,6 +15,7 @@ pub mod inertia;
 pub mod models;
 pub mod reference;
 pub mod stepping;
+pub mod virtual_tests;
 
 /// Outcome of one comparison.
 #[derive(Debug, Clone, PartialEq, serde::Serialize)]

@@ -52,4 +52,6 @@ pub mod data {
     pub const DEVICES: &str = include_str!("../data/devices.json");
     /// Slug test with an inertial water column (Kipp 1985; Butler & Zhan 2004).
     pub const INERTIA: &str = include_str!("../data/inertia.json");
+    /// Virtual pumping tests: Theis with skin, Papadopulos–Cooper, step-test C.
+    pub const VIRTUAL_TESTS: &str = include_str!("../data/virtual_tests.json");
 }

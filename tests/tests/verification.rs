@@ -151,3 +151,8 @@ fn conductance_jump_against_laplace_solution() {
 fn slug_with_an_inertial_column() {
     assert_group("inertia");
 }
+
+#[test]
+fn virtual_pumping_and_step_tests() {
+    assert_group("virtual_tests");
+}

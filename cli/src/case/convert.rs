@@ -87,6 +87,16 @@ pub fn convert(raw: RawCase, base_dir: &Path) -> Result<LoadedCase, CaseError> {
         .validate()
         .map_err(|e| rate_key_as_written(CaseError::from(e), &raw.drive))?;
     time_notes(&model, &raw_numerics, &mut log);
+    let (assessment, rate_source, assessment_json) =
+        super::assessment::plan(raw.assessment.as_ref(), &model)?;
+    log.note(format!(
+        "virtual tests: design rate {} L/s, {rate_source}; constant rate for {} h; steps \
+         at {:?} of it, {} h each",
+        crate::summary::G(assessment.design_rate_m3_s * 1e3, 4),
+        crate::summary::G(assessment.constant_duration_s / 3600.0, 4),
+        assessment.step_fractions,
+        crate::summary::G(assessment.step_duration_s / 3600.0, 4),
+    ));
 
     let mut resolved = Map::new();
     resolved.insert(
@@ -113,6 +123,7 @@ pub fn convert(raw: RawCase, base_dir: &Path) -> Result<LoadedCase, CaseError> {
         "numerics".to_owned(),
         resolved_numerics(&model.numerics, num.output_every),
     );
+    resolved.insert("assessment".to_owned(), assessment_json);
     Ok(LoadedCase {
         model,
         title: raw.title.unwrap_or_default(),
@@ -120,6 +131,7 @@ pub fn convert(raw: RawCase, base_dir: &Path) -> Result<LoadedCase, CaseError> {
         resolved: Value::Object(resolved),
         safety,
         output_every: num.output_every,
+        assessment,
         notes: log.notes,
         warnings: log.warnings,
     })

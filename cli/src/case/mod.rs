@@ -11,6 +11,7 @@
 //! line 4 column 7: invalid JSON: expected `,` or `}`
 //! ```
 
+pub mod assessment;
 mod checks;
 mod convert;
 mod drives;
@@ -74,6 +75,8 @@ pub struct LoadedCase {
     pub safety: SafetyInputs,
     /// Report every n-th step (`numerics.output_every`, at least 1).
     pub output_every: u64,
+    /// The virtual tests of the `assessment` section, defaults filled.
+    pub assessment: boreflux_solver::assess::TestPlan,
     /// Derivations the user should see in `check` (which estimate, which default).
     pub notes: Vec<String>,
     /// Doubts about the inputs that do not stop the run.

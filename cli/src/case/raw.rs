@@ -48,6 +48,8 @@ pub struct RawCase {
     pub duration: Option<DurationValue>,
     /// Numerical settings [all automatic].
     pub numerics: Option<RawNumerics>,
+    /// Virtual pumping tests of the well before and after development [all automatic].
+    pub assessment: Option<super::assessment::RawAssessment>,
 }
 
 /// Pore water.

@@ -8,7 +8,7 @@ use crate::args::CheckArgs;
 use crate::case::{load_case, LoadedCase};
 use crate::summary::G;
 use anyhow::anyhow;
-use boreflux_solver::grid::{Zone, ZONE_COUNT};
+use boreflux_solver::grid::Zone;
 use boreflux_solver::harmonic;
 use boreflux_solver::model::Medium;
 use boreflux_solver::run::{default_first_step, total_skin, DEFAULT_STEPS_PER_CYCLE};
@@ -17,22 +17,6 @@ use boreflux_solver::system::{CakeState, Discretization};
 use boreflux_solver::{run, Model, Reporting};
 use serde_json::json;
 use std::f64::consts::PI;
-
-/// Resistance of each zone to steady radial flow at vanishing flow, s/m².
-fn zone_resistances(d: &Discretization) -> [f64; ZONE_COUNT] {
-    let mut r = [0.0; ZONE_COUNT];
-    let used = if d.outer_open {
-        d.faces.len()
-    } else {
-        d.faces.len() - 1
-    };
-    for f in &d.faces[..used] {
-        for s in f.segments() {
-            r[s.zone as usize] += s.r_lin;
-        }
-    }
-    r
-}
 
 fn penetration_depth(m: &Medium, period: f64) -> f64 {
     (m.diffusivity_m2_s() * period / PI).sqrt()
@@ -125,7 +109,7 @@ pub fn check(a: &CheckArgs) -> Result<(), Failure> {
     });
     let d = Discretization::new(m, cake);
     let g = &d.grid;
-    let res = zone_resistances(&d);
+    let res = boreflux_solver::assess::checks::zone_resistances(&d);
     let total: f64 = res.iter().sum();
     let period = m.drive.slowest_period_s();
     let rs = m.well.screen_radius_m;

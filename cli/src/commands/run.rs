@@ -14,10 +14,12 @@ use super::{print_out, Failure};
 use crate::args::RunArgs;
 use crate::case::{load_case, LoadedCase};
 use crate::output::sink::ResultSink;
-use crate::summary::{headline, table, Headline, Tracker};
+use crate::summary::{assessment, headline, table, Headline, Tracker};
 use anyhow::{anyhow, Context};
+use boreflux_solver::assess::progress::{ProgressBasis, ProgressPoint};
 use boreflux_solver::grid::Grid;
 use boreflux_solver::safety::CAUTION;
+use boreflux_solver::slow::SlowState;
 use boreflux_solver::system::Discretization;
 use boreflux_solver::{run as simulate, CycleView, Reporting, SolverError, StepObserver, StepView};
 use indicatif::{ProgressBar, ProgressDrawTarget, ProgressStyle};
@@ -27,10 +29,42 @@ use std::path::Path;
 /// Steps between progress-bar updates.
 const PROGRESS_EVERY: u64 = 256;
 
+/// Points of the development-progress series (docs/formats.md, `/progress`).
+const PROGRESS_POINTS: usize = 100;
+
+/// Specific capacity and efficiency during the run, from the cheap estimate of
+/// `assess::progress` at evenly spaced times (the first report at or after each).
+struct Progress {
+    basis: Option<ProgressBasis>,
+    next_s: f64,
+    every_s: f64,
+    time_s: Vec<f64>,
+    points: Vec<ProgressPoint>,
+}
+
+impl Progress {
+    fn record(&mut self, time_s: f64, slow: &SlowState) {
+        if let Some(b) = &self.basis {
+            self.time_s.push(time_s);
+            self.points.push(b.point(slow));
+        }
+    }
+
+    fn on_step(&mut self, s: &StepView<'_>) {
+        if s.time_s >= self.next_s {
+            self.record(s.time_s, s.slow);
+            while self.next_s <= s.time_s {
+                self.next_s += self.every_s;
+            }
+        }
+    }
+}
+
 /// Everything the run observes, in one observer.
 struct Observers<'a> {
     sink: &'a mut ResultSink,
     tracker: &'a mut Tracker,
+    progress: &'a mut Progress,
     bar: &'a ProgressBar,
     duration_s: f64,
 }
@@ -41,6 +75,7 @@ impl StepObserver for Observers<'_> {
             return false;
         }
         self.tracker.on_step(s);
+        self.progress.on_step(s);
         if s.step % PROGRESS_EVERY == 0 {
             self.bar
                 .set_position((1000.0 * s.time_s / self.duration_s) as u64);
@@ -133,6 +168,33 @@ fn write_summary(sink: &mut ResultSink, h: &Headline) -> Result<(), crate::outpu
     Ok(())
 }
 
+/// Writes the `/progress` group: specific capacity and efficiency during the run
+/// (docs/formats.md). Nothing when the virtual tests failed.
+fn write_progress(sink: &mut ResultSink, p: &Progress) -> Result<(), crate::output::OutputError> {
+    if p.points.is_empty() {
+        return Ok(());
+    }
+    let w = sink.writer();
+    w.group("/progress")?;
+    w.write_vector("/progress/time", &p.time_s, "s", "time of the estimate")?;
+    let sc: Vec<f64> = p.points.iter().map(|x| x.specific_capacity_m2_s).collect();
+    w.write_vector(
+        "/progress/specific_capacity",
+        &sc,
+        "m2/s",
+        "specific capacity of the virtual constant-rate test for the well as it stands, \
+         estimated from the near-well steady losses (docs/physics.md §25.3)",
+    )?;
+    let eff: Vec<f64> = p.points.iter().map(|x| x.efficiency).collect();
+    w.write_vector(
+        "/progress/efficiency",
+        &eff,
+        "1",
+        "efficiency s0/s of the same estimate against the undamaged well",
+    )?;
+    Ok(())
+}
+
 /// Runs the command.
 pub fn run(a: &RunArgs) -> Result<(), Failure> {
     let case =
@@ -163,11 +225,26 @@ pub fn run(a: &RunArgs) -> Result<(), Failure> {
     write_metadata(&mut sink, &case, a, &grid).map_err(|e| Failure::Runtime(e.into()))?;
     let mut tracker = Tracker::new(model);
     let bar = progress_bar(a.quiet);
+    // The undamaged well's test, once: the basis of the progress series and of the
+    // efficiencies. A failure is reported with the figures, it does not stop the run.
+    let clean = boreflux_solver::assess::undamaged_drawdown_m(model, &case.assessment);
+    let mut progress = Progress {
+        basis: clean
+            .as_ref()
+            .ok()
+            .map(|&c| ProgressBasis::new(model, case.assessment.design_rate_m3_s, c)),
+        next_s: model.duration_s / PROGRESS_POINTS as f64,
+        every_s: model.duration_s / PROGRESS_POINTS as f64,
+        time_s: Vec::with_capacity(PROGRESS_POINTS + 2),
+        points: Vec::with_capacity(PROGRESS_POINTS + 2),
+    };
+    progress.record(0.0, &SlowState::new(model));
     let started = std::time::Instant::now();
     let result = {
         let mut obs = Observers {
             sink: &mut sink,
             tracker: &mut tracker,
+            progress: &mut progress,
             bar: &bar,
             duration_s: model.duration_s,
         };
@@ -194,8 +271,16 @@ pub fn run(a: &RunArgs) -> Result<(), Failure> {
         SolverError::InvalidInput { .. } => Failure::Input(anyhow!("{}: {e}", a.case.display())),
         e => Failure::Runtime(anyhow!("simulation failed: {e}")),
     })?;
-    let h = headline(&case, &summary, &tracker);
+    if progress.time_s.last() != Some(&summary.end_time_s) {
+        progress.record(summary.end_time_s, &summary.final_state);
+    }
+    let assessed = match clean {
+        Ok(c) => assessment(&case, Some(c), &summary),
+        Err(e) => Err(e),
+    };
+    let h = headline(&case, &summary, &tracker, &assessed);
     write_summary(&mut sink, &h).map_err(|e| Failure::Runtime(e.into()))?;
+    write_progress(&mut sink, &progress).map_err(|e| Failure::Runtime(e.into()))?;
     if interrupted() {
         return Err(Failure::Runtime(anyhow!(INTERRUPTED_MESSAGE)));
     }

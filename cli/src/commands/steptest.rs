@@ -58,13 +58,39 @@ pub fn steptest(a: &SteptestArgs) -> Result<(), Failure> {
         power: a.power,
     };
     let outcome = analyse(&data, &opts).map_err(input)?;
+    let model = match &a.case {
+        None => None,
+        Some(path) => {
+            let case = crate::case::load_case(path)
+                .map_err(|e| Failure::Input(anyhow!("{}: {e}", path.display())))?;
+            // The field test's step duration: the common time of Hantush–Bierschenk, or the
+            // case's assessment.step_duration when the file has one row per step.
+            let duration = outcome
+                .series
+                .as_ref()
+                .map(|h| h.reference_time_s)
+                .or(reference_time_s)
+                .unwrap_or(case.assessment.step_duration_s);
+            let rates: Vec<f64> = outcome.figures.iter().map(|f| f.rate_m3_s).collect();
+            Some(
+                crate::steptest::model::model_steps(&case, &rates, duration)
+                    .map_err(|e| Failure::Runtime(anyhow!("{}: {e}", path.display())))?,
+            )
+        }
+    };
 
     if let Some(out) = &a.output {
         let source = a.input.file_name().map_or_else(
             || a.input.display().to_string(),
             |n| n.to_string_lossy().into_owned(),
         );
-        let page = crate::report::steptest::page(&outcome, &source);
+        let mut page = crate::report::steptest::page(&outcome, &source);
+        if let Some(m) = &model {
+            let block = crate::report::steptest::model_section(&crate::steptest::model::text(m));
+            if let Some(at) = page.rfind("</body>") {
+                page.insert_str(at, &block);
+            }
+        }
         let runtime = |e: String| Failure::Runtime(anyhow!("{}: {e}", out.display()));
         let mut target = TempTarget::new(out).map_err(|e| runtime(e.to_string()))?;
         std::fs::write(target.tmp(), page.as_bytes()).map_err(|e| runtime(e.to_string()))?;
@@ -72,10 +98,16 @@ pub fn steptest(a: &SteptestArgs) -> Result<(), Failure> {
         eprintln!("step-test page written to {}", out.display());
     }
     if a.json {
-        let v = text::to_json(&outcome);
+        let mut v = text::to_json(&outcome);
+        if let Some(m) = &model {
+            v["model"] = crate::steptest::model::to_json(m);
+        }
         let s = serde_json::to_string_pretty(&v).map_err(|e| Failure::Runtime(e.into()))?;
         print_out(&(s + "\n"))
     } else {
-        print_out(&text::table(&outcome))
+        let extra = model
+            .as_ref()
+            .map_or(String::new(), crate::steptest::model::text);
+        print_out(&(text::table(&outcome) + &extra))
     }
 }

@@ -176,6 +176,9 @@ pub fn figures(runs: &[Run]) -> Vec<Figure> {
     if runs.iter().any(|r| !r.cycles.index.is_empty()) {
         out.push(cycle_figure(runs, &mut next_id));
     }
+    if runs.iter().any(|r| !r.progress.time.is_empty()) {
+        out.push(progress_figure(runs, &time_axis, t_factor, &mut next_id));
+    }
     if runs.iter().any(|r| !r.snapshots.time.is_empty()) {
         out.push(Figure {
             title: "Head against radius".into(),
@@ -291,6 +294,58 @@ fn cycle_figure(runs: &[Run], next_id: &mut impl FnMut() -> String) -> Figure {
                 super::format::ENERGY,
                 |r| &r.cycles.work_cake,
             ),
+        ],
+    }
+}
+
+/// Specific capacity and efficiency of the virtual constant-rate test during the run.
+fn progress_figure(
+    runs: &[Run],
+    time_axis: &str,
+    t_factor: f64,
+    next_id: &mut impl FnMut() -> String,
+) -> Figure {
+    let mut chart = |title: &str, quantity: &str, shown: Shown, get: fn(&Run) -> &[f64]| {
+        let mut c = Chart::new(
+            &next_id(),
+            title,
+            time_axis,
+            &axis_label(quantity, shown.si.label),
+        );
+        c.x_factor = t_factor;
+        c.y_factor = shown.si.per_si;
+        c.y2 = shown.us.map(|us| SecondAxis {
+            label: axis_label(quantity, us.label),
+            per_primary: us.per_si / shown.si.per_si,
+        });
+        for (i, run) in runs.iter().enumerate() {
+            c.series.push(Series {
+                label: legend_name(i, run),
+                x: &run.progress.time,
+                y: get(run),
+                style: run_style(i),
+            });
+        }
+        render(&c)
+    };
+    Figure {
+        title: "Development progress: specific capacity and efficiency".into(),
+        caption: "Specific capacity and efficiency of the virtual constant-rate test (design \
+                  rate and duration of the assessment section) for the well as it stood at \
+                  each time, estimated from its near-well losses (docs/physics.md §25.3); to \
+                  lay over the driller's log of specific capacity. Efficiency is against the \
+                  same well with no damage."
+            .into(),
+        svgs: vec![
+            chart(
+                "Specific capacity during development",
+                "Specific capacity",
+                super::format::SPECIFIC_CAPACITY,
+                |r| &r.progress.specific_capacity,
+            ),
+            chart("Efficiency during development", "Efficiency", NUMBER, |r| {
+                &r.progress.efficiency
+            }),
         ],
     }
 }

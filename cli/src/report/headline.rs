@@ -179,6 +179,68 @@ pub fn headline(runs: &[Run]) -> (String, BTreeSet<String>) {
     );
     row(
         &mut t,
+        "Virtual tests: design rate; constant-rate test; step duration",
+        &["design_rate_m3_s", "test_duration_s", "step_duration_s"],
+        &|s: &Summary| match (
+            s.get("design_rate_m3_s"),
+            s.get("test_duration_s"),
+            s.get("step_duration_s"),
+        ) {
+            (Some(q), Some(t), Some(st)) => Cell::plain(format!(
+                "{}; {}; {}",
+                with_units(q, &FLOW),
+                duration(t),
+                duration(st)
+            )),
+            _ => Cell::missing(),
+        },
+    );
+    row(
+        &mut t,
+        "Drawdown at the end of the constant-rate test, start → end (undamaged well)",
+        &[
+            "test_drawdown_start_m",
+            "test_drawdown_end_m",
+            "test_drawdown_undamaged_m",
+        ],
+        &|s: &Summary| match (
+            s.get("test_drawdown_start_m"),
+            s.get("test_drawdown_end_m"),
+            s.get("test_drawdown_undamaged_m"),
+        ) {
+            (Some(a), Some(b), Some(c)) => Cell::plain(format!(
+                "{} ({})",
+                change(a, b, &HEAD),
+                with_units(c, &HEAD)
+            )),
+            _ => Cell::missing(),
+        },
+    );
+    row(
+        &mut t,
+        "Step test B (after one step), start → end [s/m²]",
+        &["step_b_start_s_m2", "step_b_end_s_m2"],
+        &pair("step_b_start_s_m2", "step_b_end_s_m2", NUMBER),
+    );
+    row(
+        &mut t,
+        "Step test C, start → end [s²/m⁵]",
+        &["step_c_start_s2_m5", "step_c_end_s2_m5"],
+        &pair("step_c_start_s2_m5", "step_c_end_s2_m5", NUMBER),
+    );
+    row(
+        &mut t,
+        "Nonlinear share C Q/(B + C Q) at the design rate, start → end",
+        &["nonlinear_share_start", "nonlinear_share_end"],
+        &|s: &Summary| match (s.get("nonlinear_share_start"), s.get("nonlinear_share_end")) {
+            (Some(a), Some(b)) => {
+                Cell::plain(format!("{} % → {} %", sig(100.0 * a), sig(100.0 * b)))
+            }
+            _ => Cell::missing(),
+        },
+    );
+    row(
+        &mut t,
         "Well efficiency, start → end (definition below)",
         &["efficiency_start", "efficiency_end"],
         &|s: &Summary| match (s.get("efficiency_start"), s.get("efficiency_end")) {

@@ -40,6 +40,8 @@ pub struct Run {
     pub cycles: Cycles,
     /// Head profiles.
     pub snapshots: Snapshots,
+    /// Development progress (`/progress`; empty when the file has none).
+    pub progress: Progress,
     /// The `/summary` group.
     pub summary: Summary,
 }
@@ -116,6 +118,17 @@ pub struct Cycles {
     pub cake_removed: Vec<f64>,
 }
 
+/// `/progress`: specific capacity and efficiency during the run (docs/physics.md §25.3).
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct Progress {
+    /// Times, s.
+    pub time: Vec<f64>,
+    /// Specific capacity, m²/s.
+    pub specific_capacity: Vec<f64>,
+    /// Efficiency, –.
+    pub efficiency: Vec<f64>,
+}
+
 /// `/snapshots`.
 #[derive(Debug, Clone, Default, PartialEq)]
 pub struct Snapshots {
@@ -175,6 +188,7 @@ pub fn read_run(path: &Path) -> Result<Run, String> {
         grid: read_grid(&file)?,
         cycles: read_cycles(&file)?,
         snapshots: read_snapshots(&file)?,
+        progress: read_progress(&file)?,
         summary: read_summary(&file)?,
         series,
     })
@@ -274,6 +288,26 @@ fn read_cycles(file: &File) -> Result<Cycles, String> {
         work_cake: column("work_cake", "J")?,
         cake_removed: column("cake_removed", "m")?,
         index,
+    })
+}
+
+/// `/progress`, optional: files written before it existed, or whose virtual tests failed,
+/// have none.
+fn read_progress(file: &File) -> Result<Progress, String> {
+    if !file.link_exists("progress") {
+        return Ok(Progress::default());
+    }
+    let time = vector(file, "progress/time", "s")?;
+    let column = |name: &str, units: &str| -> Result<Vec<f64>, String> {
+        let path = format!("progress/{name}");
+        let v = vector(file, &path, units)?;
+        same_length(&format!("/{path}"), v.len(), "/progress/time", time.len())?;
+        Ok(v)
+    };
+    Ok(Progress {
+        specific_capacity: column("specific_capacity", "m2/s")?,
+        efficiency: column("efficiency", "1")?,
+        time,
     })
 }
 

@@ -238,3 +238,12 @@ pub fn page(o: &Outcome, source: &str) -> String {
     h.push_str("</tbody></table>\n</body>\n</html>\n");
     h
 }
+
+/// The section that shows the model's virtual step test beside the field fit
+/// (`steptest --case`), from its printed text.
+pub fn model_section(text: &str) -> String {
+    format!(
+        "<h2>Model of the same well</h2>\n<pre>{}</pre>\n",
+        esc(text)
+    )
+}

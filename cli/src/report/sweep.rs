@@ -16,7 +16,7 @@ use crate::sweep::table::Table;
 
 /// The figures charted and tabled, with their chart titles and table headings: what a
 /// development plan is judged by.
-const KEY: [(&str, &str, &str); 9] = [
+const KEY: [(&str, &str, &str); 15] = [
     (
         "peak_outward_flux_m_s",
         "Peak outward Darcy flux at the wall",
@@ -36,8 +36,18 @@ const KEY: [(&str, &str, &str); 9] = [
     ("skin_end", "Skin at the end", "Skin end"),
     (
         "efficiency_end",
-        "Well efficiency at the end",
+        "Well efficiency at the end (virtual test)",
         "Efficiency end",
+    ),
+    (
+        "specific_capacity_end_m2_s",
+        "Specific capacity at the end (virtual test)",
+        "Spec. capacity end",
+    ),
+    (
+        "step_c_end_s2_m5",
+        "Step-test C at the end (virtual test)",
+        "C end",
     ),
     ("work_cake_j", "Work dissipated in the cake", "Cake work"),
     (
@@ -50,7 +60,41 @@ const KEY: [(&str, &str, &str); 9] = [
         "Peak collapse load on screen or casing",
         "Collapse load",
     ),
+    (
+        "collapse_margin",
+        "Collapse margin, rating / (safety factor × load), the lower of screen and casing",
+        "Collapse margin",
+    ),
+    (
+        "piping_ratio",
+        "Wall gradient over the critical gradient",
+        "Gradient ratio",
+    ),
+    (
+        "peak_grain_reynolds",
+        "Peak grain Reynolds number (pack d50)",
+        "Reynolds",
+    ),
+    (
+        "column_partings",
+        "Column partings at the vapour bound",
+        "Partings",
+    ),
 ];
+
+/// Whether a key figure's value is a warning in a single-run report too: a collapse margin
+/// below 1, a gradient above the critical one, a slot velocity above the rule of thumb, a
+/// grain Reynolds number above 1, a parted column.
+fn flagged(name: &str, v: f64) -> bool {
+    match name {
+        "collapse_margin" => v < 1.0,
+        "piping_ratio" => v > 1.0,
+        "peak_slot_velocity_m_s" => v > boreflux_solver::safety::ENTRANCE_VELOCITY_RULE_M_S,
+        "peak_grain_reynolds" => v > 1.0,
+        "column_partings" => v > 0.0,
+        _ => false,
+    }
+}
 
 /// How a figure is shown: the unit of its name's suffix, plain numbers otherwise.
 fn shown(name: &str) -> Shown {
@@ -114,12 +158,16 @@ pub fn page(t: &Table) -> String {
                 esc(&r.status)
             );
         }
-        if warned > 0 {
+        for r in t.rows.iter().filter(|r| !r.warnings.is_empty()) {
             let _ = writeln!(
                 h,
-                "<li>{warned} of {} scenarios carry warnings from their runs; the table below \
-                 counts them and the sweep table holds their text.</li>",
-                t.rows.len()
+                "<li>Scenario {} ({}):<ul>{}</ul></li>",
+                r.scenario,
+                esc(&r.labels.join(", ")),
+                r.warnings
+                    .lines()
+                    .map(|w| format!("<li>{}</li>", esc(w)))
+                    .collect::<String>()
             );
         }
         h.push_str("</ul>\n</section>\n");
@@ -254,24 +302,27 @@ fn charts(h: &mut String, t: &Table) {
 
 /// The table of every scenario: its values, the key figures and its status.
 fn table(h: &mut String, t: &Table) {
-    let cols: Vec<(usize, &str, Shown)> = KEY
+    let cols: Vec<(usize, &str, &str, Shown)> = KEY
         .iter()
         .filter_map(|(name, _, heading)| {
             t.figures
                 .iter()
                 .position(|f| f == name)
-                .map(|i| (i, *heading, shown(name)))
+                .map(|i| (i, *name, *heading, shown(name)))
         })
         .collect();
     h.push_str(
         "<h2>Scenarios</h2>\n<p>Peaks are at the borehole wall (flux, shear) and on the screen \
-         or casing (collapse load); the sweep table holds every figure of every run.</p>\n\
+         or casing (collapse load); highlighted cells are the checks a single-run report \
+         warns of (collapse margin below 1, gradient above critical, slot velocity above the \
+         rule of thumb, grain Reynolds number above 1, a parted column); the sweep table holds \
+         every figure of every run.</p>\n\
          <div style=\"overflow-x:auto\">\n<table>\n<thead><tr><th>#</th>",
     );
     for p in &t.paths {
         let _ = write!(h, "<th><code>{}</code></th>", esc(p));
     }
-    for (_, title, s) in &cols {
+    for (_, _, title, s) in &cols {
         let unit = if s.si.label.is_empty() {
             String::new()
         } else {
@@ -285,8 +336,14 @@ fn table(h: &mut String, t: &Table) {
         for l in &r.labels {
             let _ = write!(h, "<td>{}</td>", esc(l));
         }
-        for (i, _, s) in &cols {
-            let _ = write!(h, "<td>{}</td>", sig(r.figures[*i] * s.si.per_si));
+        for (i, name, _, s) in &cols {
+            let v = r.figures[*i];
+            let class = if flagged(name, v) {
+                " class=\"flag\""
+            } else {
+                ""
+            };
+            let _ = write!(h, "<td{class}>{}</td>", sig(v * s.si.per_si));
         }
         let warnings = r.warnings.lines().count();
         let status = match (r.status.as_str(), warnings) {

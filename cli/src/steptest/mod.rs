@@ -1,6 +1,7 @@
 //! `boreflux steptest`: the step-test file, the choice of method, and the printed and
 //! JSON results. The analysis itself is `boreflux_solver::steptest`.
 
+pub mod model;
 pub mod read;
 pub mod text;
 

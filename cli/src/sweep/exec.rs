@@ -9,7 +9,7 @@ use super::plan::{Plan, Shard};
 use super::spec::Segment;
 use super::table::{figures, Row};
 use crate::case::{parse_case, LoadedCase};
-use crate::summary::{headline, Tracker};
+use crate::summary::{assessment, headline, Tracker};
 use boreflux_solver::{run as simulate, Reporting, StepObserver, StepView};
 use serde_json::Value;
 use std::path::Path;
@@ -189,7 +189,8 @@ fn run_case(
     };
     match simulate(&case.model, &mut obs, reporting) {
         Ok(summary) => {
-            let h = headline(case, &summary, &obs.tracker);
+            let a = assessment(case, None, &summary);
+            let h = headline(case, &summary, &obs.tracker, &a);
             row.warnings = h.warnings.join("\n");
             (row, figures(&h))
         }

@@ -1,0 +1,284 @@
+//! Assessment of the well as a driller and a consultant see it: the figures of virtual
+//! pumping tests on the model (specific capacity, efficiency, step-test coefficients B and C)
+//! before and after development (docs/physics.md §25). No I/O.
+//!
+//! - [`virtual_test`]: constant-rate and step-drawdown tests on a model, each on a domain and
+//!   grid of its own.
+//! - [`assess`]: the figures of one state of the well (a [`SlowState`] on its base model),
+//!   against the same tests on the well with no damage.
+//! - [`progress`]: the same figures during the run, cheaply, from the near-well losses of
+//!   the current state.
+
+pub mod checks;
+pub mod progress;
+pub mod virtual_test;
+
+use crate::error::SolverError;
+use crate::model::Model;
+use crate::slow::SlowState;
+use crate::steptest::jacob::fit_steps;
+use crate::steptest::{Estimate, Step, Weighting};
+
+/// What the virtual tests pump and for how long (the case's `assessment` section).
+#[derive(Debug, Clone, PartialEq)]
+pub struct TestPlan {
+    /// Design pumping rate Q_d, m³/s (withdrawal, > 0).
+    pub design_rate_m3_s: f64,
+    /// Duration of the constant-rate test: the specific capacity is read at its end, s.
+    pub constant_duration_s: f64,
+    /// Rates of the step test as fractions of the design rate, increasing.
+    pub step_fractions: Vec<f64>,
+    /// Duration of each step, s.
+    pub step_duration_s: f64,
+}
+
+/// Default step rates as fractions of the design rate (common practice, no source: four or
+/// more steps up to and beyond the design rate; docs/practice.md §step tests).
+pub const DEFAULT_STEP_FRACTIONS: [f64; 4] = [0.5, 0.75, 1.0, 1.25];
+/// Default duration of a step, s (common practice, no source: 1 to 2 h per step).
+pub const DEFAULT_STEP_DURATION_S: f64 = 3600.0;
+/// Default duration of the constant-rate test, s (common practice, no source: 24 h).
+pub const DEFAULT_CONSTANT_DURATION_S: f64 = 86_400.0;
+
+impl TestPlan {
+    /// Checks the plan; errors name the case-file path.
+    pub fn validate(&self) -> Result<(), SolverError> {
+        let pos = |field: &str, v: f64| {
+            if v.is_finite() && v > 0.0 {
+                Ok(())
+            } else {
+                Err(SolverError::invalid(
+                    field,
+                    format!("must be a positive finite number, got {v}"),
+                ))
+            }
+        };
+        pos("assessment.design_rate", self.design_rate_m3_s)?;
+        pos("assessment.duration", self.constant_duration_s)?;
+        pos("assessment.step_duration", self.step_duration_s)?;
+        let f = &self.step_fractions;
+        if f.len() < 3
+            || !f.iter().all(|x| x.is_finite() && *x > 0.0)
+            || !f.windows(2).all(|w| w[0] < w[1])
+        {
+            return Err(SolverError::invalid(
+                "assessment.step_fractions",
+                format!("needs at least three positive, increasing fractions, got {f:?}"),
+            ));
+        }
+        Ok(())
+    }
+
+    /// The step rates, m³/s.
+    pub fn step_rates_m3_s(&self) -> Vec<f64> {
+        self.step_fractions
+            .iter()
+            .map(|f| f * self.design_rate_m3_s)
+            .collect()
+    }
+}
+
+/// Step-test coefficients of a virtual step test (Jacob's line, docs/step-test.md).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct StepCoefficients {
+    /// B after one step's duration of pumping, s/m².
+    pub b_s_m2: f64,
+    /// C, s²/m⁵.
+    pub c_s2_m5: f64,
+    /// C with its standard error from the fit: the readings are exact, so the error says
+    /// how far the model's losses depart from B Q + C Q² (e.g. Forchheimer loss in cells
+    /// still filling at the reading, or a screen orifice law).
+    pub c_estimate: Estimate,
+    /// Share of the linear loss B Q_d / (B Q_d + C Q_d²) at the design rate, –.
+    pub linear_share: f64,
+    /// Share of the nonlinear loss C Q_d² / (B Q_d + C Q_d²) at the design rate, –.
+    pub nonlinear_share: f64,
+}
+
+/// The figures of one state of the well.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct WellFigures {
+    /// Drawdown at the end of the constant-rate test, m.
+    pub drawdown_m: f64,
+    /// Drawdown of the same test on the well with no damage, m.
+    pub undamaged_drawdown_m: f64,
+    /// Specific capacity Q_d / s at the end of the constant-rate test, m²/s.
+    pub specific_capacity_m2_s: f64,
+    /// Efficiency s(no damage) / s(this state), –. Above 1 only when the damage zones
+    /// conduct better than the formation (a negative skin): see [`Self::negative_skin`].
+    pub efficiency: f64,
+    /// Whether the efficiency exceeds 1 because of a negative skin.
+    pub negative_skin: bool,
+    /// Step-test coefficients, when the step test ran and could be fitted.
+    pub step: Option<StepCoefficients>,
+}
+
+/// The assessment of a run: the figures before (t = 0) and after (the state at the end).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Assessment {
+    /// The well at t = 0.
+    pub before: WellFigures,
+    /// The well at the end of the run.
+    pub after: WellFigures,
+}
+
+/// Figures of the well `base` in the state `slow` (its snapshot), given the drawdown of the
+/// undamaged well in the same constant-rate test (it does not change during a run).
+pub fn figures_with(
+    base: &Model,
+    slow: &SlowState,
+    plan: &TestPlan,
+    undamaged_drawdown_m: f64,
+) -> Result<WellFigures, SolverError> {
+    let snap = slow.snapshot_model(base);
+    let q = plan.design_rate_m3_s;
+    let s = virtual_test::constant_rate(&snap, q, &[plan.constant_duration_s])?[0];
+    let efficiency = undamaged_drawdown_m / s;
+    let step = step_coefficients(&snap, plan)?;
+    Ok(WellFigures {
+        drawdown_m: s,
+        undamaged_drawdown_m,
+        specific_capacity_m2_s: q / s,
+        efficiency,
+        negative_skin: efficiency > 1.0,
+        step,
+    })
+}
+
+/// B and C of the plan's step test on `model` (the well as it stands): each step rate pumped
+/// from rest for one step's duration (a test of its own), and Jacob's line through s/Q
+/// against Q (docs/physics.md §25.2). The linear part of the model (formation, well-bore
+/// storage, laminar skins) is proportional to the rate whatever the time, so B is B(Δt) at
+/// the step duration and C is the nonlinear loss exactly where the near-well flow is
+/// steady: what the Hantush–Bierschenk correction of a continuous field test estimates,
+/// without its Cooper–Jacob approximation. `None` when the line cannot be fitted.
+pub fn step_coefficients(
+    model: &Model,
+    plan: &TestPlan,
+) -> Result<Option<StepCoefficients>, SolverError> {
+    let mut steps = Vec::with_capacity(plan.step_fractions.len());
+    for q in plan.step_rates_m3_s() {
+        let s = virtual_test::constant_rate(model, q, &[plan.step_duration_s])?[0];
+        steps.push(Step {
+            rate_m3_s: q,
+            drawdown_m: s,
+        });
+    }
+    let q = plan.design_rate_m3_s;
+    Ok(fit_steps(&steps, Weighting::Drawdown, 0.95).ok().map(|a| {
+        let (b, c) = (a.fit.b.value, a.fit.c.value);
+        let lin = b * q;
+        let non = c * q * q;
+        StepCoefficients {
+            b_s_m2: b,
+            c_s2_m5: c,
+            c_estimate: a.fit.c,
+            linear_share: lin / (lin + non),
+            nonlinear_share: non / (lin + non),
+        }
+    }))
+}
+
+/// Drawdown of the undamaged well of `base` at the end of the plan's constant-rate test, m.
+pub fn undamaged_drawdown_m(base: &Model, plan: &TestPlan) -> Result<f64, SolverError> {
+    let clean = virtual_test::undamaged(&SlowState::new(base).snapshot_model(base));
+    Ok(virtual_test::constant_rate(&clean, plan.design_rate_m3_s, &[plan.constant_duration_s])?[0])
+}
+
+/// The assessment of a run of `base` that ended in the state `end`.
+pub fn assess(base: &Model, end: &SlowState, plan: &TestPlan) -> Result<Assessment, SolverError> {
+    plan.validate()?;
+    let clean = undamaged_drawdown_m(base, plan)?;
+    Ok(Assessment {
+        before: figures_with(base, &SlowState::new(base), plan, clean)?,
+        after: figures_with(base, end, plan, clean)?,
+    })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::drive::Drive;
+    use crate::model::*;
+
+    /// A small well with an invaded ring of conductivity `k_invaded` (invented numbers).
+    fn well(k_invaded: Option<f64>) -> Model {
+        Model {
+            fluid: Fluid::WATER_20C,
+            well: Well {
+                screen_radius_m: 0.1,
+                screen_length_m: 5.0,
+                open_area: 0.1,
+                casing_radius_m: 0.1,
+                linear_loss_s: 0.0,
+                discharge_coefficient: None,
+                storage_m2: Well::free_surface_storage(0.1),
+            },
+            pack: Pack {
+                outer_radius_m: 0.2,
+                medium: Medium::darcy(2e-3, 1e-5),
+            },
+            cake: None,
+            invaded: k_invaded.map(|k| Invaded {
+                thickness_m: 0.1,
+                medium: Medium::darcy(k, 1e-5),
+            }),
+            formation: Formation {
+                medium: Medium::darcy(2e-4, 1e-5),
+                outer_radius_m: None,
+                outer_boundary: OuterBoundary::FixedHead,
+            },
+            drive: Drive::ConstantRate {
+                pumping_rate_m3_s: 0.0,
+            },
+            duration_s: 1.0,
+            numerics: Numerics::default(),
+        }
+    }
+
+    fn plan() -> TestPlan {
+        TestPlan {
+            design_rate_m3_s: 2e-3,
+            constant_duration_s: 3600.0,
+            step_fractions: vec![0.5, 0.75, 1.0],
+            step_duration_s: 600.0,
+        }
+    }
+
+    /// Definition (docs/physics.md §25.1): a well with no damage is its own undamaged well.
+    #[test]
+    fn a_clean_well_has_an_efficiency_of_exactly_one() {
+        let m = well(None);
+        let a = assess(&m, &SlowState::new(&m), &plan()).unwrap();
+        assert_eq!(a.before.efficiency, 1.0);
+        assert!(!a.before.negative_skin);
+    }
+
+    /// A ring four times more conductive than the formation has Hawkins skin
+    /// (1/4 − 1) ln(0.3/0.2) < 0 (docs/physics.md §2.4): the efficiency exceeds one and
+    /// says why; a ring a quarter as conductive lowers it.
+    #[test]
+    fn only_a_negative_skin_lifts_the_efficiency_above_one() {
+        let better = well(Some(8e-4));
+        let a = assess(&better, &SlowState::new(&better), &plan()).unwrap();
+        assert!(a.before.efficiency > 1.0 && a.before.negative_skin);
+        let worse = well(Some(5e-5));
+        let a = assess(&worse, &SlowState::new(&worse), &plan()).unwrap();
+        assert!(a.before.efficiency < 1.0 && !a.before.negative_skin);
+    }
+
+    #[test]
+    fn a_bad_plan_names_its_field() {
+        let mut p = plan();
+        p.step_fractions = vec![1.0, 0.5, 0.75];
+        let e = p.validate().unwrap_err().to_string();
+        assert!(e.starts_with("assessment.step_fractions"), "{e}");
+        let mut p = plan();
+        p.design_rate_m3_s = -1.0;
+        assert!(p
+            .validate()
+            .unwrap_err()
+            .to_string()
+            .starts_with("assessment.design_rate"));
+    }
+}
