@@ -118,6 +118,7 @@ mod tests {
                 linear_loss_s: 0.0,
                 discharge_coefficient: None,
                 storage_m2: 0.0,
+                column_length_m: 0.0,
             },
             pack: Pack {
                 outer_radius_m: 0.2,
