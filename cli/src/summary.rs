@@ -437,7 +437,7 @@ pub fn headline(case: &LoadedCase, s: &RunSummary, t: &Tracker) -> Headline {
             warnings.push(format!("grain Reynolds number at the wall reaches {re:.2} (> 1): Darcy's law is doubtful there"));
         }
     }
-    let outer = m.invaded.map_or(m.formation.medium, |z| z.medium);
+    let outer = m.invaded.as_ref().map_or(m.formation.medium, |z| z.medium);
     let piping = (t.peak_face_gradient > 0.0).then(|| {
         t.peak_face_gradient
             / safety::terzaghi_critical_gradient(

@@ -14,6 +14,9 @@
 //! small uncovered fraction already short-circuits a tight cake; treat results for
 //! coverage below 1 as a lower bound on the cake's effect.
 //!
+//! Lift-off of patches (the main mechanism under inward flow) is in
+//! [`crate::damage::liftoff`]; the coverage combines both ([`coverage`]).
+//!
 //! Erosion law (an assumption of this model, calibrate before use):
 //! ```text
 //! dδ/dt = −E · max(0, w τ − τ_c)       w = w_in for inward flow, w_out for outward flow
@@ -30,7 +33,8 @@
 //! t(δ) = (1/(aE)) [ (u − u₀)/τ_c + (B/τ_c²) ln((B − τ_c u)/(B − τ_c u₀)) ]    (τ_c > 0)
 //! t(δ) = (u₀² − u²) / (2 a E B)                                          (τ_c = 0)
 //! ```
-//! with τ the pack-side shear proxy at the wall (Pa), τ_c the critical shear (Pa) and E the
+//! with τ the mean wall shear of the pore channels on the pack side of the wall (Pa; the
+//! force balance of Kozeny's capillary picture, τ = ρ g |i| R_h, docs/physics.md §6.1), τ_c the critical shear (Pa) and E the
 //! erodibility (m/(s·Pa)). It is integrated explicitly once per time step.
 
 use crate::model::{Cake, Model};
@@ -70,18 +74,32 @@ pub fn erosion_rate(cake: &Cake, shear_pa: f64, flux_m_s: f64) -> f64 {
     }
 }
 
-/// Advances the cake over `dt_s`; returns true when it changed.
+/// Thins the cake over `dt_s` by erosion; returns true when it changed. The coverage is
+/// set by [`coverage`].
 pub fn erode(cake: &Cake, st: &mut CakeState, shear_pa: f64, flux_m_s: f64, dt_s: f64) -> bool {
     let rate = erosion_rate(cake, shear_pa, flux_m_s);
     if rate <= 0.0 || st.thickness_m <= 0.0 {
         return false;
     }
     st.thickness_m = (st.thickness_m - rate * dt_s).max(0.0);
-    let m = cake.erosion.map_or(0.0, |e| e.coverage_exponent);
-    st.coverage = if st.thickness_m > 0.0 {
-        cake.coverage * (st.thickness_m / cake.thickness_m).powf(m)
-    } else {
-        0.0
-    };
     true
+}
+
+/// Covered fraction for thickness `thickness_m` after the inward pressure difference has
+/// reached `lift_peak_pa`: c = c₀ (δ/δ₀)^m (1 − F(P_peak)) (erosion, docs/physics.md §13;
+/// lift-off, §13a). Zero once the cake is gone.
+pub fn coverage(cake: &Cake, thickness_m: f64, lift_peak_pa: f64) -> f64 {
+    if thickness_m <= 0.0 {
+        return 0.0;
+    }
+    let m = cake.erosion.map_or(0.0, |e| e.coverage_exponent);
+    let thinning = if m == 0.0 {
+        1.0
+    } else {
+        (thickness_m / cake.thickness_m).powf(m)
+    };
+    let intact = cake.lift_off.map_or(1.0, |l| {
+        1.0 - crate::damage::liftoff::failed_fraction(&l, lift_peak_pa)
+    });
+    cake.coverage * thinning * intact
 }

@@ -11,6 +11,7 @@
 
 pub mod cake;
 pub mod cost;
+pub mod damage;
 pub mod devices;
 pub mod diagnostics;
 pub mod drive;

@@ -412,12 +412,11 @@ pub fn run_from_state(
             oscillation.get_or_insert((st.time_s, what));
             chooser.refine();
         }
-        let wall_r = st.disc.faces[st.disc.grid.borehole_face].r_lin();
-        match slow.advance(model, &face, b.dt_s, wall_r) {
+        match slow.advance(model, &face, st.time_s, b.dt_s, &st.disc, st.heads()) {
             Change::None => {}
-            Change::Smooth => st.set_cake(model, slow.cake()),
+            Change::Smooth => st.set_slow(model, &slow),
             Change::Jump => {
-                st.set_cake(model, slow.cake());
+                st.set_slow(model, &slow);
                 st.forget_history();
                 chooser.restart();
             }

@@ -205,10 +205,13 @@ pub fn set_a(v: &serde_json::Value) -> Model {
         conductivity_m_s: p("K_cake"),
         coverage: 1.0,
         erosion: None,
+        lift_off: None,
     });
     m.invaded = Some(Invaded {
         thickness_m: p("rd") - p("rb"),
         medium: Medium::darcy(p("K_invaded"), 1e-5),
+        fines: None,
+        profile: None,
     });
     m.formation.outer_radius_m = Some(p("R"));
     m
@@ -525,6 +528,7 @@ fn storage() -> Vec<CheckResult> {
                 conductivity_m_s: k * delta / (skin * rb),
                 coverage: 1.0,
                 erosion: None,
+                lift_off: None,
             });
         }
         model.numerics.sync_times_s = times.clone();

@@ -70,6 +70,12 @@ kinds! {
     Beta => Quantity::Coefficient { si_unit: "s2/m2" };
     /// Cake erodibility, m/(s·Pa).
     Erodibility => Quantity::Coefficient { si_unit: "m/s/Pa" };
+    /// Velocity, m/s.
+    Velocity => Quantity::Velocity;
+    /// Rate coefficient per length of travel, 1/m.
+    PerMetre => Quantity::Coefficient { si_unit: "1/m" };
+    /// Density of solids, kg/m³.
+    Density => Quantity::Coefficient { si_unit: "kg/m3" };
 }
 
 /// A dimensional value as written in the case file, read as kind `K`.

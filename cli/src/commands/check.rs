@@ -133,7 +133,7 @@ pub fn check(a: &CheckArgs) -> Result<(), Failure> {
     let rd = m.invaded_outer_radius_m();
     let kf = m.formation.medium.conductivity_m_s;
     let skin_pack = boreflux_solver::skin::hawkins_skin(kf, m.pack.medium.conductivity_m_s, rs, rb);
-    let skin_inv = m.invaded.map_or(0.0, |z| {
+    let skin_inv = m.invaded.as_ref().map_or(0.0, |z| {
         boreflux_solver::skin::hawkins_skin(kf, z.medium.conductivity_m_s, rb, rd)
     });
     let skin_total = total_skin(m, cake);
@@ -149,7 +149,7 @@ pub fn check(a: &CheckArgs) -> Result<(), Failure> {
         _ => format!("geometric, first {} s", G(default_first_step(m), 3)),
     };
     let mut zones = vec![("pack", rs, rb, Some(m.pack.medium))];
-    if let Some(z) = m.invaded {
+    if let Some(z) = &m.invaded {
         zones.push(("invaded", rb, rd, Some(z.medium)));
     }
     zones.push((
