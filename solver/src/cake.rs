@@ -42,12 +42,46 @@ use crate::system::CakeState;
 use std::f64::consts::PI;
 
 /// Interface resistance of the cake in state `st`, s/m².
+///
+/// Without a lift-off law: the area-weighted parallel layer above. With one, the opened
+/// patches are holes of radius a in the cake; the flow converges toward them from the
+/// formation side and spreads from them into the pack, a constriction resistance per hole of
+/// ψ(ε)/(4 K a) on each side (a disc on a half-space, ψ = 1 for an isolated hole; for holes
+/// in a regular pattern ψ(ε) = (1 − ε)^1.5 with ε the hole radius over the radius of the
+/// wall area each hole drains, ε = √(1 − c); Cooper, Mikic & Yovanovich 1969, from memory —
+/// verify). With N = (1 − c) A/(π a²) holes on the wall area A = 2π r_b b:
+/// ```text
+/// G_cake = c A K_c / δ
+/// R_open = δ/((1 − c) A K_p) + ψ π a (1/K_out + 1/K_p) / (4 (1 − c) A)
+/// R_i    = 1 / (G_cake + 1/R_open)
+/// ```
+/// K_out is the conductivity just outside the wall as given (invaded zone, or formation).
+/// For c → 0 this is δ/(A K_p), the parallel layer's limit; for c → 1 the cake alone. A
+/// small opened fraction therefore no longer short-circuits a tight cake at once.
 pub fn interface_resistance(model: &Model, cake: &Cake, st: CakeState) -> f64 {
     let rb = model.borehole_radius_m();
     let b = model.well.screen_length_m;
-    let k = st.coverage * cake.conductivity_m_s
-        + (1.0 - st.coverage) * model.pack.medium.conductivity_m_s;
-    st.thickness_m / (2.0 * PI * rb * b * k)
+    let kp = model.pack.medium.conductivity_m_s;
+    let Some(l) = cake.lift_off else {
+        let k = st.coverage * cake.conductivity_m_s + (1.0 - st.coverage) * kp;
+        return st.thickness_m / (2.0 * PI * rb * b * k);
+    };
+    let area = 2.0 * PI * rb * b;
+    let g_cake = st.coverage * area * cake.conductivity_m_s / st.thickness_m;
+    let open = 1.0 - st.coverage;
+    if open <= 0.0 {
+        return 1.0 / g_cake;
+    }
+    let k_out = model
+        .invaded
+        .as_ref()
+        .map_or(model.formation.medium.conductivity_m_s, |z| {
+            z.medium.conductivity_m_s
+        });
+    let psi = (1.0 - open.sqrt()).powf(1.5);
+    let r_open = st.thickness_m / (open * area * kp)
+        + psi * PI * l.patch_radius_m * (1.0 / k_out + 1.0 / kp) / (4.0 * open * area);
+    1.0 / (g_cake + 1.0 / r_open)
 }
 
 /// Skin of the cake in state `st`, referred to the formation conductivity.

@@ -200,6 +200,9 @@ pub const LIFT_OFF_PRESSURE: Range = r(1.0, 1e7, "Pa", "lift-off pressures of wa
 /// Spread (σ of ln strength) of patch strengths. Documented range 0.3 to 1.5 (assumption:
 /// calibrate); accepted 0 (one strength) to 5.
 pub const LIFT_OFF_SPREAD: Range = r(0.0, 5.0, "", "spreads of ln patch strength");
+/// Radius of an opened cake patch. Documented range 1 mm to 25 mm (assumption: calibrate);
+/// accepted 10 µm to 1 m.
+pub const PATCH_RADIUS: Range = r(1e-5, 1.0, "m", "radii of opened cake patches");
 /// Deposited mud fines, volume per bulk volume. Documented range 0.002 to 0.05 (from memory —
 /// verify: a few per cent of the bulk fills a sand's pores enough to cut K tenfold).
 pub const FINES_DEPOSIT: Range = r(1e-6, 0.5, "", "volume fractions of deposited fines");
@@ -295,6 +298,7 @@ pub fn check(model: &Model) -> Result<(), SolverError> {
         if let Some(l) = &c.lift_off {
             LIFT_OFF_PRESSURE.check("cake.lift_off.median", l.median_pa)?;
             LIFT_OFF_SPREAD.check("cake.lift_off.spread", l.spread)?;
+            PATCH_RADIUS.check("cake.lift_off.patch_radius", l.patch_radius_m)?;
         }
         if let Some(e) = &c.erosion {
             CRITICAL_SHEAR.check("cake.erosion.critical_shear", e.critical_shear_pa)?;

@@ -133,6 +133,9 @@ pub struct LiftOff {
     /// Spread: standard deviation of the natural log of the patch strengths, –. 0 = every
     /// patch has the median strength.
     pub spread: f64,
+    /// Radius of an opened patch (a hole in the cake), m: sets the constriction resistance
+    /// of the flow toward the holes ([`crate::cake::interface_resistance`]).
+    pub patch_radius_m: f64,
 }
 
 /// Mud fines held in the invaded zone and their transport (docs/physics.md §13b).
@@ -452,6 +455,7 @@ impl Model {
             if let Some(l) = &c.lift_off {
                 positive("cake.lift_off.median", l.median_pa)?;
                 non_negative("cake.lift_off.spread", l.spread)?;
+                positive("cake.lift_off.patch_radius", l.patch_radius_m)?;
             }
             if let Some(e) = &c.erosion {
                 non_negative("cake.erosion.critical_shear", e.critical_shear_pa)?;

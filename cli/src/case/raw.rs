@@ -174,6 +174,8 @@ pub struct RawLiftOff {
     /// Spread of the patch strengths: standard deviation of ln(strength) [0.9]; 0 = every
     /// patch has the median strength.
     pub spread: Option<f64>,
+    /// Radius of an opened patch (a hole in the cake) [5 mm, middle of 1–25 mm].
+    pub patch_radius: Option<Q<Length>>,
 }
 
 /// Mud fines in the invaded zone that flow can carry out (docs/physics.md §13b).

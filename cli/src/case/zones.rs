@@ -35,6 +35,9 @@ pub const DEFAULT_LIFT_OFF_MEDIAN_PA: f64 = 1e4;
 /// Spread of ln(patch strength) when none is given: the middle of the documented 0.3–1.5
 /// (assumption: calibrate).
 pub const DEFAULT_LIFT_OFF_SPREAD: f64 = 0.9;
+/// Radius of an opened cake patch when none is given, m: about the geometric middle of the
+/// documented 1–25 mm (assumption: calibrate).
+pub const DEFAULT_PATCH_RADIUS_M: f64 = 5e-3;
 /// Deposited fines when `invaded.fines` gives none: about the geometric middle of the
 /// documented 0.002–0.05 (from memory — verify).
 pub const DEFAULT_FINES_DEPOSIT: f64 = 0.01;
@@ -395,7 +398,11 @@ pub fn cake(r: &RawCake, log: &mut Log) -> Result<(Cake, Value), CaseError> {
         "thickness": thickness,
         "conductivity": k,
         "coverage": coverage,
-        "lift_off": lift_off.map(|l| json!({"median": l.median_pa, "spread": l.spread})),
+        "lift_off": lift_off.map(|l| json!({
+            "median": l.median_pa,
+            "spread": l.spread,
+            "patch_radius": l.patch_radius_m,
+        })),
         "erosion": erosion.map(|e| json!({
             "critical_shear": e.critical_shear_pa,
             "erodibility": e.erodibility_m_s_pa,
@@ -423,12 +430,25 @@ fn lift_off(l: &RawLiftOff, log: &mut Log) -> Result<LiftOff, CaseError> {
         Some(s) => non_negative("cake.lift_off.spread", s, "")?,
         None => DEFAULT_LIFT_OFF_SPREAD,
     };
+    let patch_radius_m = match &l.patch_radius {
+        Some(q) => positive(
+            "cake.lift_off.patch_radius",
+            q.si("cake.lift_off.patch_radius")?,
+            "m",
+        )?,
+        None => DEFAULT_PATCH_RADIUS_M,
+    };
     log.note(format!(
         "cake lift-off: patches fail when the inward pressure difference across the cake \
          exceeds their strength, log-normal with median {median_pa:.3e} Pa and spread {spread} \
-         (documented ranges 1-100 kPa and 0.3-1.5, from memory - verify; calibrate)"
+         (documented ranges 1-100 kPa and 0.3-1.5, from memory - verify; calibrate); opened \
+         patches are holes of radius {patch_radius_m} m (1-25 mm, assumption: calibrate)"
     ));
-    Ok(LiftOff { median_pa, spread })
+    Ok(LiftOff {
+        median_pa,
+        spread,
+        patch_radius_m,
+    })
 }
 
 fn fines(f: &RawFines, log: &mut Log) -> Result<Fines, CaseError> {

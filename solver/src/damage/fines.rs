@@ -159,6 +159,11 @@ impl FinesState {
         self.pushed_m3
     }
 
+    /// Density of the fines' solids, kg/m³.
+    pub fn grain_density(&self) -> f64 {
+        self.params.grain_density_kg_m3
+    }
+
     /// Fines removed so far, kg.
     pub fn removed_kg(&self) -> f64 {
         self.removed_m3 * self.params.grain_density_kg_m3

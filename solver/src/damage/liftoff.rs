@@ -60,6 +60,7 @@ mod tests {
         let l = LiftOff {
             median_pa: 5000.0,
             spread: 0.0,
+            patch_radius_m: 5e-3,
         };
         assert_eq!(failed_fraction(&l, 4999.999), 0.0);
         assert_eq!(failed_fraction(&l, 5000.0), 1.0);
