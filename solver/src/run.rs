@@ -111,6 +111,8 @@ pub struct RunSummary {
     pub fines_removed_kg: f64,
     /// Fines carried outward beyond the invaded zone, kg.
     pub fines_pushed_out_kg: f64,
+    /// Fines in the invaded zone at the end (deposited and mobile), kg.
+    pub fines_in_place_kg: f64,
     /// Volume displaced into the well by the device (pumping, lifting, block), m³.
     pub device_volume_m3: f64,
     /// Volume leaked into the well node past the device, m³.
@@ -331,6 +333,7 @@ pub fn run_from_state(
             .map_or(0.0, |f| f.initial_m3() * f.grain_density()),
         fines_removed_kg: 0.0,
         fines_pushed_out_kg: 0.0,
+        fines_in_place_kg: 0.0,
         device_volume_m3: 0.0,
         bypass_volume_m3: 0.0,
         screen_volume_m3: 0.0,
@@ -531,6 +534,7 @@ pub fn run_from_state(
     if let Some(f) = slow.fines() {
         summary.fines_removed_kg = f.removed_kg();
         summary.fines_pushed_out_kg = f.pushed_out_m3() * f.grain_density();
+        summary.fines_in_place_kg = f.in_place_m3() * f.grain_density();
     }
     (summary.column_partings, summary.parted_time_s) = st.column_parting();
     if summary.column_partings > 0 {

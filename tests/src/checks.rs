@@ -80,6 +80,26 @@ pub fn all() -> Vec<Group> {
             run: crate::development::erosion,
         },
         Group {
+            id: "lift_off",
+            title: "Cake lift-off: log-normal strengths (scipy) and the one-strength threshold",
+            run: crate::damage::lift_off,
+        },
+        Group {
+            id: "fines",
+            title: "Invaded-zone fines: closed form at constant velocity, conservation",
+            run: crate::damage::fines,
+        },
+        Group {
+            id: "damage_monotonic",
+            title: "Damage removal: stronger loading, tighter cake",
+            run: crate::damage::monotonic,
+        },
+        Group {
+            id: "retention",
+            title: "Pack and slot retention criteria at their published limits",
+            run: crate::damage::retention,
+        },
+        Group {
             id: "nonlinear_energy",
             title: "Energy identity with nonlinear losses",
             run: crate::development::nonlinear_energy,
