@@ -218,6 +218,9 @@ pub struct Headline {
     pub max_newton_iterations: usize,
     /// Warnings.
     pub warnings: Vec<String>,
+    /// The damage-removal constants used, with their documented ranges and provenance, widest
+    /// range first (docs/physics.md §13–§13b).
+    pub assumptions: Vec<String>,
 }
 
 /// Collapse ratings of the blank casing and of the screen, and how they were found.
@@ -595,6 +598,21 @@ pub fn headline(case: &LoadedCase, s: &RunSummary, t: &Tracker) -> Headline {
         energy_closure: s.energy_closure,
         max_newton_iterations: s.max_newton_iterations,
         warnings,
+        assumptions: boreflux_solver::damage::assumptions(m)
+            .iter()
+            .map(|p| {
+                format!(
+                    "{} = {} {} (documented range {}–{}, {:.1} decades; {})",
+                    p.path,
+                    G(p.value, 3),
+                    p.unit,
+                    G(p.range.0, 2),
+                    G(p.range.1, 2),
+                    p.decades(),
+                    p.provenance
+                )
+            })
+            .collect(),
     }
 }
 

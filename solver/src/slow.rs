@@ -448,4 +448,60 @@ mod tests {
         );
         assert!(gone.snapshot_model(&base).cake.is_none());
     }
+
+    #[test]
+    fn the_snapshot_carries_the_invaded_zone_as_the_faces_see_it() {
+        let mut base = model();
+        base.cake = None;
+        if let Some(z) = base.invaded.as_mut() {
+            z.fines = Some(Fines {
+                deposit: 0.01,
+                critical_velocity_m_s: 1e-5,
+                entrainment_per_m: 100.0,
+                deposition_per_m: 10.0,
+                grain_density_kg_m3: 2650.0,
+            });
+        }
+        let mut slow = SlowState::new(&base);
+        let disc = Discretization::new(&base, None);
+        // Heads rising outward: steady inward flow that entrains fines (invented numbers).
+        let heads: Vec<f64> = (0..disc.unknowns())
+            .map(|i| {
+                if i == 0 {
+                    -2.0
+                } else {
+                    -2.0 + (disc.grid.r_center[i - 1] / 0.1).ln()
+                }
+            })
+            .collect();
+        let face = crate::diagnostics::FaceState {
+            screen_flow_m3_s: 0.0,
+            screen_outer_head_m: 0.0,
+            wall_flow_m3_s: 0.0,
+            flux_m_s: 0.0,
+            gradient: 0.0,
+            shear_pa: 0.0,
+            cake_pressure_pa: 0.0,
+        };
+        let mut changed = false;
+        for k in 0..50 {
+            changed |= slow.advance(&base, &face, k as f64, 1.0, &disc, &heads) != Change::None;
+        }
+        assert!(changed && slow.fines_removed_kg() > 0.0, "fines moved");
+        let snap = slow.snapshot_model(&base);
+        let z = snap.invaded.as_ref().expect("invaded zone");
+        assert!(
+            z.fines.is_none(),
+            "a test on the snapshot must not move fines"
+        );
+        let (first, k) = slow.invaded_conductivity().expect("fines state");
+        let d2 = Discretization::new(&snap, None);
+        for (i, &ki) in k.iter().enumerate() {
+            let got = d2.media[first + i].conductivity_m_s;
+            assert!((got - ki).abs() <= 1e-14 * ki, "cell {i}: {got} vs {ki}");
+        }
+        assert!(k[0] > base.invaded.as_ref().unwrap().medium.conductivity_m_s);
+        let s_snap = SlowState::new(&snap).skin().1;
+        assert!((s_snap - slow.skin().1).abs() <= 1e-12 * slow.skin().1.abs().max(1.0));
+    }
 }

@@ -72,9 +72,12 @@ impl Discretization {
         // the rings' equivalent conductivity over its own radii.
         if let Some(p) = model.invaded.as_ref().and_then(|z| z.profile.as_ref()) {
             let rb = model.borehole_radius_m();
-            for c in grid.borehole_face..grid.invaded_face {
-                media[c].conductivity_m_s =
-                    p.equivalent_conductivity(rb, grid.r_face[c], grid.r_face[c + 1]);
+            let cells = grid.borehole_face..grid.invaded_face;
+            for (m, w) in media[cells.clone()]
+                .iter_mut()
+                .zip(grid.r_face[cells.start..=cells.end].windows(2))
+            {
+                m.conductivity_m_s = p.equivalent_conductivity(rb, w[0], w[1]);
             }
         }
         let mut storage = Vec::with_capacity(n + 1);

@@ -35,7 +35,7 @@ pub fn normal_cdf(z: f64) -> f64 {
 /// Fraction of the patches that have failed once the inward pressure difference reached
 /// `peak_pa`, –.
 pub fn failed_fraction(l: &LiftOff, peak_pa: f64) -> f64 {
-    if !(peak_pa > 0.0) {
+    if peak_pa.is_nan() || peak_pa <= 0.0 {
         return 0.0;
     }
     if l.spread == 0.0 {
