@@ -744,7 +744,7 @@ pub fn table(h: &Headline) -> String {
         ),
     );
     row(
-        "time to remove 50 % / 90 % of the cake",
+        "time to erode 50 % / 90 % of the cake thickness",
         format!(
             "{} / {}{}",
             fmt_opt(h.time_to_half_cake_s, "s"),
