@@ -24,10 +24,13 @@ fn damaged() -> Model {
         conductivity_m_s: 1e-7,
         coverage: 0.8,
         erosion: None,
+        lift_off: None,
     });
     m.invaded = Some(Invaded {
         thickness_m: 0.05,
         medium: Medium::darcy(5e-5, 1e-5),
+        fines: None,
+        profile: None,
     });
     m
 }

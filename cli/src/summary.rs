@@ -5,6 +5,7 @@
 use crate::case::LoadedCase;
 use crate::units::{FT_M, PSI_PA, US_GAL_M3};
 use boreflux_solver::assess::{self, Assessment, WellFigures};
+use boreflux_solver::damage::sand;
 use boreflux_solver::grid::{Zone, ZONE_COUNT};
 use boreflux_solver::model::Model;
 use boreflux_solver::safety::{self, ENTRANCE_VELOCITY_RULE_M_S};
@@ -137,6 +138,36 @@ pub struct Headline {
     pub cycles_to_half_cake: Option<f64>,
     /// Cycles of a periodic drive until 90 % of the cake was gone.
     pub cycles_to_90pct_cake: Option<f64>,
+    /// Time until the cake's skin was down to a tenth of its start (lift-off and erosion),
+    /// s: the cake removal time.
+    pub cake_removal_time_s: Option<f64>,
+    /// Largest inward pressure difference across the cake, Pa.
+    pub peak_cake_pressure_pa: f64,
+    /// Skin of the pack (start; it does not change).
+    pub skin_pack: f64,
+    /// Skin of the cake at the start.
+    pub skin_cake_start: f64,
+    /// Skin of the cake at the end.
+    pub skin_cake_end: f64,
+    /// Skin of the invaded zone at the start.
+    pub skin_invaded_start: f64,
+    /// Skin of the invaded zone at the end.
+    pub skin_invaded_end: f64,
+    /// Mud fines in the invaded zone at the start, kg.
+    pub fines_initial_kg: f64,
+    /// Mud fines carried across the wall toward the well, kg (what shows as turbidity).
+    pub fines_removed_kg: f64,
+    /// Mud fines pushed beyond the invaded zone into the formation, kg.
+    pub fines_pushed_out_kg: f64,
+    /// D50(pack)/D50(formation), when both are known (docs/physics.md §9c).
+    pub pack_formation_ratio: Option<f64>,
+    /// Slot width over the pack D10 (or D50 without D10), when known.
+    pub slot_pack_ratio: Option<f64>,
+    /// Settling velocity of a formation D50 grain, the critical interstitial velocity at the
+    /// wall (docs/physics.md §9e), m/s.
+    pub grain_critical_velocity_m_s: Option<f64>,
+    /// Largest inward interstitial velocity on the formation side of the wall, m/s.
+    pub peak_wall_interstitial_velocity_m_s: f64,
     /// Skin at the start.
     pub skin_start: f64,
     /// Skin at the end.
@@ -215,6 +246,9 @@ pub struct Headline {
     pub max_newton_iterations: usize,
     /// Warnings.
     pub warnings: Vec<String>,
+    /// The damage-removal constants used, with their documented ranges and provenance, widest
+    /// range first (docs/physics.md §13–§13b).
+    pub assumptions: Vec<String>,
 }
 
 /// Collapse ratings of the blank casing and of the screen, and how they were found.
@@ -538,10 +572,12 @@ pub fn headline(
             warnings.push(format!("grain Reynolds number at the wall reaches {re:.2} (> 1): Darcy's law is doubtful there"));
         }
     }
+    // The wall gradient over Terzaghi's critical gradient stays a figure; it is no warning (it
+    // exceeded 1 in every shipped case): the sand indicators below warn where a published
+    // criterion is exceeded.
     let piping = checks.piping_ratio;
-    if let Some(p) = piping.filter(|&p| p > 1.0) {
-        warnings.push(format!("gradient at the borehole wall reaches {p:.2} × Terzaghi's critical gradient: grains there may be mobilised (an indicator for horizontal flow, not a heave criterion)"));
-    }
+    let sand = sand_indicators(case, s);
+    warnings.extend(sand.warnings.iter().cloned());
     let drawdown_m = checks.peak_in_well_drawdown_m;
     let collapse_pa = checks.peak_collapse_pressure_pa;
     let sf = case.safety.safety_factor;
@@ -649,6 +685,20 @@ pub fn headline(
         time_to_90pct_cake_s: t.tenth_cake_s,
         cycles_to_half_cake: t.half_cake_s.zip(m.drive.period_s()).map(|(x, p)| x / p),
         cycles_to_90pct_cake: t.tenth_cake_s.zip(m.drive.period_s()).map(|(x, p)| x / p),
+        cake_removal_time_s: s.cake_removed_at_s,
+        peak_cake_pressure_pa: s.peak_cake_pressure_pa,
+        skin_pack: s.skin_parts.0.pack,
+        skin_cake_start: s.skin_parts.0.cake,
+        skin_cake_end: s.skin_parts.1.cake,
+        skin_invaded_start: s.skin_parts.0.invaded,
+        skin_invaded_end: s.skin_parts.1.invaded,
+        fines_initial_kg: s.fines_initial_kg,
+        fines_removed_kg: s.fines_removed_kg,
+        fines_pushed_out_kg: s.fines_pushed_out_kg,
+        pack_formation_ratio: sand.retention.pack_ratio,
+        slot_pack_ratio: sand.retention.slot_ratio,
+        grain_critical_velocity_m_s: sand.critical_velocity_m_s,
+        peak_wall_interstitial_velocity_m_s: sand.wall_velocity_m_s,
         skin_start: s.skin.0,
         skin_end: s.skin.1,
         efficiency_start: fig(before, &|f| f.efficiency),
@@ -686,6 +736,104 @@ pub fn headline(
         max_mass_residual: s.max_mass_residual,
         energy_closure: s.energy_closure,
         max_newton_iterations: s.max_newton_iterations,
+        warnings,
+        assumptions: boreflux_solver::damage::assumptions(m)
+            .iter()
+            .map(|p| {
+                format!(
+                    "{} = {} {} (documented range {}–{}, {:.1} decades; {})",
+                    p.path,
+                    G(p.value, 3),
+                    p.unit,
+                    G(p.range.0, 2),
+                    G(p.range.1, 2),
+                    p.decades(),
+                    p.provenance
+                )
+            })
+            .collect(),
+    }
+}
+
+/// The sand-production and pack-stability indicators of a run (docs/physics.md §9c, §9e).
+pub struct SandIndicators {
+    /// Retention criteria.
+    pub retention: sand::Retention,
+    /// Settling velocity of a formation D50 grain, m/s.
+    pub critical_velocity_m_s: Option<f64>,
+    /// Largest inward interstitial velocity on the formation side of the wall, m/s.
+    pub wall_velocity_m_s: f64,
+    /// Warnings, only where a criterion is exceeded.
+    pub warnings: Vec<String>,
+}
+
+fn resolved_size(case: &LoadedCase, section: &str, key: &str) -> Option<f64> {
+    case.resolved
+        .get(section)
+        .and_then(|s| s.get(key))
+        .and_then(serde_json::Value::as_f64)
+        .filter(|d| *d > 0.0)
+}
+
+/// Evaluates the retention criteria from the case's grain sizes and slot, and the critical
+/// velocity of formation grains at the wall against the run's peak inward flux.
+pub fn sand_indicators(case: &LoadedCase, s: &RunSummary) -> SandIndicators {
+    let m = &case.model;
+    let g = sand::Gradation {
+        pack_d10: resolved_size(case, "pack", "d10"),
+        pack_d15: None,
+        pack_d50: m.pack.medium.grain_diameter_m,
+        formation_d50: m.formation.medium.grain_diameter_m,
+        formation_d85: None,
+        slot_width: resolved_size(case, "well", "slot_width"),
+    };
+    let retention = sand::retention(&g);
+    let outer = m.invaded.as_ref().map_or(m.formation.medium, |z| z.medium);
+    let wall_velocity_m_s = s.peak_inward_flux_m_s / outer.porosity;
+    let rho = m.fluid.density_kg_m3;
+    let rho_s = case.safety.formation_specific_gravity * rho;
+    let critical_velocity_m_s = g
+        .formation_d50
+        .map(|d| sand::settling_velocity_m_s(d, rho_s, rho, m.fluid.viscosity_pa_s));
+    let moving = critical_velocity_m_s.is_some_and(|w| wall_velocity_m_s > w);
+    let mut warnings = Vec::new();
+    if retention.formation_unretained {
+        let ratio = retention
+            .pack_ratio
+            .map_or(String::new(), |r| format!("{}", G(r, 3)));
+        let flow = match critical_velocity_m_s {
+            Some(w) if moving => format!(
+                "; the inward interstitial velocity at the wall ({} m/s) exceeds the settling \
+                 velocity of formation grains ({} m/s), so the flow can carry them into it",
+                G(wall_velocity_m_s, 3),
+                G(w, 3)
+            ),
+            _ => String::new(),
+        };
+        warnings.push(format!(
+            "SAND: the pack may not retain the formation (D50 pack/formation {ratio} above \
+             the coarse-formation limit {}){flow}; expect sand in the discharge and check the \
+             pack design against the local code and a sieve analysis",
+            safety::PACK_AQUIFER_RATIO_COARSE_MAX
+        ));
+    }
+    if retention.pack_unretained {
+        let against = if retention.slot_against_d10 {
+            "D10"
+        } else {
+            "D50"
+        };
+        warnings.push(format!(
+            "SAND: the screen slot is wider than the pack's {against} (ratio {}): the slot \
+             may pass pack grains (the usual design retains about 90 % of the pack); the pack \
+             can settle and the well can pump sand",
+            G(retention.slot_ratio.unwrap_or(f64::NAN), 3)
+        ));
+    }
+    SandIndicators {
+        retention,
+        critical_velocity_m_s,
+        wall_velocity_m_s,
         warnings,
     }
 }
@@ -735,7 +883,7 @@ pub fn table(h: &Headline) -> String {
         ),
     );
     row(
-        "time to remove 50 % / 90 % of the cake",
+        "time to erode 50 % / 90 % of the cake thickness",
         format!(
             "{} / {}{}",
             fmt_opt(h.time_to_half_cake_s, "s"),
@@ -748,9 +896,39 @@ pub fn table(h: &Headline) -> String {
         ),
     );
     row(
+        "cake removal time (cake skin down to a tenth)",
+        fmt_opt(h.cake_removal_time_s, "s"),
+    );
+    row(
         "skin start → end",
         format!("{} → {}", G(h.skin_start, 4), G(h.skin_end, 4)),
     );
+    row(
+        "  of which pack / cake / invaded",
+        format!(
+            "{} / {} → {} / {} → {}",
+            G(h.skin_pack, 3),
+            G(h.skin_cake_start, 3),
+            G(h.skin_cake_end, 3),
+            G(h.skin_invaded_start, 3),
+            G(h.skin_invaded_end, 3)
+        ),
+    );
+    row(
+        "peak inward pressure across the cake",
+        format!("{} kPa", G(h.peak_cake_pressure_pa / 1e3, 4)),
+    );
+    if h.fines_initial_kg > 0.0 {
+        row(
+            "invaded-zone fines removed / pushed out / at start",
+            format!(
+                "{} / {} / {} kg",
+                G(h.fines_removed_kg, 4),
+                G(h.fines_pushed_out_kg, 4),
+                G(h.fines_initial_kg, 4)
+            ),
+        );
+    }
     row(
         "virtual tests: design rate / test / steps",
         format!(
@@ -805,6 +983,27 @@ pub fn table(h: &Headline) -> String {
         "peak grain Reynolds number (pack d50)",
         h.peak_grain_reynolds
             .map_or("— (no d50)".into(), |r| format!("{}", G(r, 3))),
+    );
+    row(
+        "D50 pack/formation (4–6, up to 9) · slot/pack D10",
+        format!(
+            "{} · {}",
+            h.pack_formation_ratio
+                .map_or("—".into(), |r| format!("{}", G(r, 3))),
+            h.slot_pack_ratio
+                .map_or("—".into(), |r| format!("{}", G(r, 3)))
+        ),
+    );
+    row(
+        "wall interstitial velocity / grain settling velocity",
+        match h.grain_critical_velocity_m_s {
+            Some(w) => format!(
+                "{} / {} m/s",
+                G(h.peak_wall_interstitial_velocity_m_s, 3),
+                G(w, 3)
+            ),
+            None => "— (no formation d50)".into(),
+        },
     );
     row(
         "wall gradient / critical gradient",

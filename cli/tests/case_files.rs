@@ -176,7 +176,7 @@ fn units_land_on_the_solver_in_si() {
     assert!(rel(m.well.casing_radius_m, 0.1524) < EXACT);
     assert!(rel(m.pack.outer_radius_m, 0.1778) < EXACT);
     assert!(rel(m.cake.unwrap().thickness_m, 0.002) < EXACT);
-    assert!(rel(m.invaded.unwrap().thickness_m, 0.03) < EXACT);
+    assert!(rel(m.invaded.as_ref().unwrap().thickness_m, 0.03) < EXACT);
     assert!(rel(m.formation.outer_radius_m.unwrap(), 91.44) < EXACT);
     assert_eq!(m.formation.outer_boundary, OuterBoundary::NoFlow);
     // Percent: 1 % = 0.01, exact by definition.
@@ -195,7 +195,12 @@ fn units_land_on_the_solver_in_si() {
     assert!(rel(m.cake.unwrap().conductivity_m_s, 1e-9) < EXACT);
     // Invaded zone: 25 % of the formation's conductivity.
     let kf = m.formation.medium.conductivity_m_s;
-    assert!(rel(m.invaded.unwrap().medium.conductivity_m_s, 0.25 * kf) < EXACT);
+    assert!(
+        rel(
+            m.invaded.as_ref().unwrap().medium.conductivity_m_s,
+            0.25 * kf
+        ) < EXACT
+    );
     // Specific storage: 3e-6 1/ft = 3e-6/0.3048 1/m (NIST SP 811).
     assert!(
         rel(

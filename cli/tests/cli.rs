@@ -237,7 +237,7 @@ const ZONES: [&str; 5] = ["screen", "pack", "cake", "invaded", "formation"];
 /// Per-step series and their units, in CSV column order (hdf5-layout.md, checked against
 /// `output/sink.rs`; dimensionless quantities are written with unit "1" there, shown as
 /// "-" in the note).
-const SERIES: [(&str, &str); 14] = [
+const SERIES: [(&str, &str); 16] = [
     ("time", "s"),
     ("well_head", "m"),
     ("screen_outer_head", "m"),
@@ -249,6 +249,8 @@ const SERIES: [(&str, &str); 14] = [
     ("cake_thickness", "m"),
     ("cake_coverage", "1"),
     ("skin", "1"),
+    ("cake_pressure", "Pa"),
+    ("fines_removed", "kg"),
     ("mass_residual", "1"),
     ("energy_residual", "1"),
     ("newton_iterations", "1"),

@@ -48,6 +48,11 @@ pub struct StepView<'a> {
     pub cake_coverage: f64,
     /// Total skin referred to the formation (Hawkins), –.
     pub skin: f64,
+    /// Inward pressure difference across the cake at the end of the step, Pa (0 for
+    /// outward flow or without a cake).
+    pub cake_pressure_pa: f64,
+    /// Fines carried inward across the wall so far, kg.
+    pub fines_removed_kg: f64,
     /// Power dissipated per zone, W (index by [`crate::grid::Zone`]).
     pub power_w: [f64; ZONE_COUNT],
     /// Cumulative work dissipated per zone, J.
@@ -146,6 +151,8 @@ pub struct FaceState {
     pub gradient: f64,
     /// Shear proxy on the pack side, Pa.
     pub shear_pa: f64,
+    /// Inward pressure difference across the cake, Pa (≥ 0; docs/physics.md §13a).
+    pub cake_pressure_pa: f64,
 }
 
 /// Computes the face state from the heads at the end of the step.
@@ -173,7 +180,26 @@ pub fn face_state(model: &Model, st: &Stepper) -> FaceState {
         flux_m_s: q,
         gradient: gradient(outer, q),
         shear_pa: rho * GRAVITY_M_S2 * gradient(pack, q).abs() * r_h,
+        cake_pressure_pa: cake_pressure_pa(model, d, kb, q_wall),
     }
+}
+
+/// Inward pressure difference across the cake segment of the wall face for the wall flow
+/// `q_wall`, Pa (docs/physics.md §13a).
+fn cake_pressure_pa(
+    model: &Model,
+    d: &crate::system::Discretization,
+    kb: usize,
+    q_wall: f64,
+) -> f64 {
+    let rho_g = model.fluid.density_kg_m3 * GRAVITY_M_S2;
+    d.faces[kb]
+        .segments()
+        .iter()
+        .find(|s| s.zone == crate::grid::Zone::Cake)
+        .map_or(0.0, |s| {
+            crate::damage::liftoff::inward_pressure_pa(rho_g, s.r_lin, q_wall)
+        })
 }
 
 /// Instantaneous power per zone at the end of the step, W.

@@ -89,6 +89,15 @@ pub enum HarmonicError {
         /// The cake's erodibility, m/(s·Pa).
         erodibility_m_s_pa: f64,
     },
+    /// Cake lift-off or fines transport change the face laws during the run.
+    #[error(
+        "the harmonic method needs face laws that do not change: {what} changes the well \
+         during the run; use time stepping"
+    )]
+    DamageRemoval {
+        /// The mechanism (`cake.lift_off`, `invaded.fines`).
+        what: &'static str,
+    },
     /// A face law is nonlinear for another reason.
     #[error("the harmonic method needs linear face laws: face {face} is nonlinear")]
     NonlinearFace {
@@ -166,6 +175,16 @@ fn check_linear(model: &Model, disc: &Discretization) -> Result<(), HarmonicErro
                 erodibility_m_s_pa: e.erodibility_m_s_pa,
             });
         }
+    }
+    if model.cake.is_some_and(|c| c.lift_off.is_some()) {
+        return Err(HarmonicError::DamageRemoval {
+            what: "cake.lift_off",
+        });
+    }
+    if model.invaded.as_ref().is_some_and(|z| z.fines.is_some()) {
+        return Err(HarmonicError::DamageRemoval {
+            what: "invaded.fines",
+        });
     }
     match disc.faces.iter().position(|f| !f.is_linear()) {
         Some(face) => Err(HarmonicError::NonlinearFace { face }),
@@ -385,10 +404,13 @@ mod tests {
                 conductivity_m_s: 2e-6,
                 coverage: 1.0,
                 erosion: None,
+                lift_off: None,
             }),
             invaded: Some(Invaded {
                 thickness_m: 0.1,
                 medium: Medium::darcy(5e-5, 1e-5),
+                fines: None,
+                profile: None,
             }),
             formation: Formation {
                 medium: Medium::darcy(2e-4, 1e-5),

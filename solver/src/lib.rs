@@ -12,6 +12,7 @@
 pub mod assess;
 pub mod cake;
 pub mod cost;
+pub mod damage;
 pub mod devices;
 pub mod diagnostics;
 pub mod drive;

@@ -193,6 +193,28 @@ pub const CRITICAL_SHEAR: Range = r(0.0, 1e4, "Pa", "critical shear stresses of 
 pub const ERODIBILITY: Range = r(0.0, 1.0, "m/(s Pa)", "erodibilities of cakes");
 /// Cake erosion: weights and exponent. Assumption.
 pub const WEIGHT: Range = r(0.0, 100.0, "", "dimensionless weights of the erosion law");
+/// Lift-off pressure of cake patches (median). Documented range 1 kPa to 100 kPa for the
+/// pressure that opens a water-based mud cake under back-flow (from memory — verify;
+/// assumption: calibrate); the accepted range is wider.
+pub const LIFT_OFF_PRESSURE: Range = r(1.0, 1e7, "Pa", "lift-off pressures of wall cakes");
+/// Spread (σ of ln strength) of patch strengths. Documented range 0.3 to 1.5 (assumption:
+/// calibrate); accepted 0 (one strength) to 5.
+pub const LIFT_OFF_SPREAD: Range = r(0.0, 5.0, "", "spreads of ln patch strength");
+/// Radius of an opened cake patch. Documented range 1 mm to 25 mm (assumption: calibrate);
+/// accepted 10 µm to 1 m.
+pub const PATCH_RADIUS: Range = r(1e-5, 1.0, "m", "radii of opened cake patches");
+/// Deposited mud fines, volume per bulk volume. Documented range 0.002 to 0.05 (from memory —
+/// verify: a few per cent of the bulk fills a sand's pores enough to cut K tenfold).
+pub const FINES_DEPOSIT: Range = r(1e-6, 0.5, "", "volume fractions of deposited fines");
+/// Critical interstitial velocity of fines mobilisation. Documented range 1e-5 to 1e-2 m/s
+/// (from memory — verify; strongly dependent on salinity and pH).
+pub const FINES_CRITICAL_VELOCITY: Range = r(0.0, 1.0, "m/s", "critical interstitial velocities");
+/// Entrainment and deposition coefficients of the fines rate law. Documented range 1 to
+/// 1000 1/m (from memory — verify; assumption: calibrate).
+pub const FINES_RATE_COEFFICIENT: Range =
+    r(0.0, 1e6, "1/m", "rate coefficients of fines transport");
+/// Density of fines' solids. Common practice, no source: quartz 2650, clays 2600 to 2800.
+pub const GRAIN_DENSITY: Range = r(1000.0, 8000.0, "kg/m3", "densities of mineral solids");
 /// Slot width of a screen. Common practice, no source: slots are about 0.25 to 5 mm.
 pub const SLOT_WIDTH: Range = r(1e-5, 0.05, "m", "slot widths of well screens");
 /// Collapse rating. Assumption: ratings of well screens and casings reach tens of MPa;
@@ -273,6 +295,11 @@ pub fn check(model: &Model) -> Result<(), SolverError> {
     if let Some(c) = &model.cake {
         CAKE_THICKNESS.check("cake.thickness", c.thickness_m)?;
         CONDUCTIVITY.check("cake.conductivity", c.conductivity_m_s)?;
+        if let Some(l) = &c.lift_off {
+            LIFT_OFF_PRESSURE.check("cake.lift_off.median", l.median_pa)?;
+            LIFT_OFF_SPREAD.check("cake.lift_off.spread", l.spread)?;
+            PATCH_RADIUS.check("cake.lift_off.patch_radius", l.patch_radius_m)?;
+        }
         if let Some(e) = &c.erosion {
             CRITICAL_SHEAR.check("cake.erosion.critical_shear", e.critical_shear_pa)?;
             ERODIBILITY.check("cake.erosion.erodibility", e.erodibility_m_s_pa)?;
@@ -284,6 +311,14 @@ pub fn check(model: &Model) -> Result<(), SolverError> {
     if let Some(z) = &model.invaded {
         INVADED_THICKNESS.check("invaded.thickness", z.thickness_m)?;
         medium("invaded", &z.medium)?;
+        if let Some(f) = &z.fines {
+            FINES_DEPOSIT.check("invaded.fines.deposit", f.deposit)?;
+            FINES_CRITICAL_VELOCITY
+                .check("invaded.fines.critical_velocity", f.critical_velocity_m_s)?;
+            FINES_RATE_COEFFICIENT.check("invaded.fines.entrainment", f.entrainment_per_m)?;
+            FINES_RATE_COEFFICIENT.check("invaded.fines.deposition", f.deposition_per_m)?;
+            GRAIN_DENSITY.check("invaded.fines.grain_density", f.grain_density_kg_m3)?;
+        }
     }
     medium("formation", &model.formation.medium)?;
     if let Some(r) = model.formation.outer_radius_m {

@@ -125,15 +125,86 @@ pub struct Cake {
     pub coverage: f64,
     /// Erosion law; `None` keeps the cake as given.
     pub erosion: Option<Erosion>,
+    /// Lift-off of patches under an inward pressure difference; `None`: no lift-off.
+    pub lift_off: Option<LiftOff>,
+}
+
+/// Lift-off of cake patches (docs/physics.md §13a): a patch fails when the inward pressure
+/// difference across the cake exceeds its strength; strengths are log-normal.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct LiftOff {
+    /// Median lift-off pressure of the patches, Pa.
+    pub median_pa: f64,
+    /// Spread: standard deviation of the natural log of the patch strengths, –. 0 = every
+    /// patch has the median strength.
+    pub spread: f64,
+    /// Radius of an opened patch (a hole in the cake), m: sets the constriction resistance
+    /// of the flow toward the holes ([`crate::cake::interface_resistance`]).
+    pub patch_radius_m: f64,
+    /// No more patches fail: the cake's coverage is already what development left, and the
+    /// opened patches keep their hole geometry (a snapshot of the well for tests run on it,
+    /// [`crate::slow::SlowState::snapshot_model`]). `false` in a case.
+    pub frozen: bool,
+}
+
+/// Mud fines held in the invaded zone and their transport (docs/physics.md §13b).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Fines {
+    /// Deposited fines at the start, volume per bulk volume σ₀, –.
+    pub deposit: f64,
+    /// Critical interstitial velocity v_c below which deposited fines stay put, m/s.
+    pub critical_velocity_m_s: f64,
+    /// Entrainment coefficient α_e, 1/m.
+    pub entrainment_per_m: f64,
+    /// Deposition (filtration) coefficient α_d, 1/m.
+    pub deposition_per_m: f64,
+    /// Density of the fines' solids, kg/m³ (turns volumes into masses).
+    pub grain_density_kg_m3: f64,
+}
+
+/// Conductivity of the invaded zone ring by ring, from r_b outward (the zone as it stands
+/// after some development; see [`crate::slow::SlowState::snapshot_model`]).
+#[derive(Debug, Clone, PartialEq)]
+pub struct RingProfile {
+    /// Outer radius of each ring, m, increasing; the last is r_d, the first ring starts at r_b.
+    pub outer_radius_m: Vec<f64>,
+    /// Conductivity of each ring, m/s.
+    pub conductivity_m_s: Vec<f64>,
+}
+
+impl RingProfile {
+    /// Equivalent conductivity of the radii r₁ < r₂ (inside the zone) for steady radial flow:
+    /// the rings in series, ln(r₂/r₁)/K = Σ ln(r_out/r_in)/K_ring over the overlaps.
+    pub fn equivalent_conductivity(&self, r_b: f64, r1: f64, r2: f64) -> f64 {
+        let mut inner = r_b;
+        let mut sum = 0.0;
+        for (&ro, &k) in self.outer_radius_m.iter().zip(&self.conductivity_m_s) {
+            let (a, b) = (inner.max(r1), ro.min(r2));
+            if b > a {
+                sum += (b / a).ln() / k;
+            }
+            inner = ro;
+        }
+        if sum > 0.0 {
+            (r2 / r1).ln() / sum
+        } else {
+            *self.conductivity_m_s.last().unwrap_or(&f64::NAN)
+        }
+    }
 }
 
 /// Zone of reduced conductivity just outside the borehole wall.
-#[derive(Debug, Clone, Copy, PartialEq)]
+#[derive(Debug, Clone, PartialEq)]
 pub struct Invaded {
     /// Radial thickness r_d − r_b, m.
     pub thickness_m: f64,
-    /// Properties of the invaded zone.
+    /// Properties of the invaded zone (its conductivity as drilled).
     pub medium: Medium,
+    /// Mud fines that flow can carry out; `None`: the zone stays as given.
+    pub fines: Option<Fines>,
+    /// Conductivity ring by ring when the zone is no longer uniform (a snapshot after
+    /// development); `None`: uniform `medium.conductivity_m_s`.
+    pub profile: Option<RingProfile>,
 }
 
 /// Condition at the outer radius R.
@@ -333,7 +404,7 @@ impl Model {
 
     /// Outer radius of the invaded zone r_d (= r_b without one), m.
     pub fn invaded_outer_radius_m(&self) -> f64 {
-        self.pack.outer_radius_m + self.invaded.map_or(0.0, |z| z.thickness_m)
+        self.pack.outer_radius_m + self.invaded.as_ref().map_or(0.0, |z| z.thickness_m)
     }
 
     /// Checks every range once. Errors name the case-file path of the bad value.
@@ -391,6 +462,11 @@ impl Model {
                     format!("must be in (0, 1], got {}", c.coverage),
                 ));
             }
+            if let Some(l) = &c.lift_off {
+                positive("cake.lift_off.median", l.median_pa)?;
+                non_negative("cake.lift_off.spread", l.spread)?;
+                positive("cake.lift_off.patch_radius", l.patch_radius_m)?;
+            }
             if let Some(e) = &c.erosion {
                 non_negative("cake.erosion.critical_shear", e.critical_shear_pa)?;
                 non_negative("cake.erosion.erodibility", e.erodibility_m_s_pa)?;
@@ -402,6 +478,36 @@ impl Model {
         if let Some(z) = &self.invaded {
             positive("invaded.thickness", z.thickness_m)?;
             check_medium("invaded", &z.medium)?;
+            if let Some(f) = &z.fines {
+                fraction_open("invaded.fines.deposit", f.deposit)?;
+                if f.deposit >= z.medium.porosity {
+                    return Err(SolverError::invalid(
+                        "invaded.fines.deposit",
+                        format!(
+                            "must be below the zone's porosity ({}), got {}",
+                            z.medium.porosity, f.deposit
+                        ),
+                    ));
+                }
+                non_negative("invaded.fines.critical_velocity", f.critical_velocity_m_s)?;
+                non_negative("invaded.fines.entrainment", f.entrainment_per_m)?;
+                non_negative("invaded.fines.deposition", f.deposition_per_m)?;
+                positive("invaded.fines.grain_density", f.grain_density_kg_m3)?;
+            }
+            if let Some(p) = &z.profile {
+                let ok = !p.outer_radius_m.is_empty()
+                    && p.outer_radius_m.len() == p.conductivity_m_s.len()
+                    && p.conductivity_m_s.iter().all(|k| k.is_finite() && *k > 0.0)
+                    && p.outer_radius_m.windows(2).all(|w| w[1] > w[0])
+                    && p.outer_radius_m[0] > self.pack.outer_radius_m;
+                if !ok {
+                    return Err(SolverError::invalid(
+                        "invaded.profile",
+                        "needs increasing ring radii beyond the wall and a positive \
+                         conductivity for each ring",
+                    ));
+                }
+            }
         }
         check_medium("formation", &self.formation.medium)?;
         if let Some(r) = self.formation.outer_radius_m {

@@ -25,7 +25,7 @@ use crate::diagnostics::{face_state, power_now, CycleAccumulator, StepObserver, 
 use crate::error::SolverError;
 use crate::grid::ZONE_COUNT;
 use crate::model::{Model, Scheme, TimeSpec};
-use crate::slow::{Change, SlowState};
+use crate::slow::{Change, SkinParts, SlowState};
 use crate::stepper::{left_limit, Stepper, Tolerances};
 use crate::water::GRAVITY_M_S2;
 use std::f64::consts::PI;
@@ -142,6 +142,20 @@ pub struct RunSummary {
     pub cake_thickness_m: (f64, f64),
     /// Skin at the start and at the end, –.
     pub skin: (f64, f64),
+    /// Skin by zone at the start and at the end.
+    pub skin_parts: (SkinParts, SkinParts),
+    /// First time the cake's skin was down to a tenth of its start, s.
+    pub cake_removed_at_s: Option<f64>,
+    /// Largest inward pressure difference across the cake, Pa.
+    pub peak_cake_pressure_pa: f64,
+    /// Fines in the invaded zone at the start, kg (0 without `invaded.fines`).
+    pub fines_initial_kg: f64,
+    /// Fines carried inward across the wall, kg.
+    pub fines_removed_kg: f64,
+    /// Fines carried outward beyond the invaded zone, kg.
+    pub fines_pushed_out_kg: f64,
+    /// Fines in the invaded zone at the end (deposited and mobile), kg.
+    pub fines_in_place_kg: f64,
     /// Volume displaced into the well by the device (pumping, lifting, block), m³.
     pub device_volume_m3: f64,
     /// Volume leaked into the well node past the device, m³.
@@ -358,6 +372,15 @@ pub fn run_from_state(
         max_newton_iterations: 0,
         cake_thickness_m: (cake0, cake0),
         skin: (skin0, skin0),
+        skin_parts: slow.skin_parts_now(),
+        cake_removed_at_s: None,
+        peak_cake_pressure_pa: 0.0,
+        fines_initial_kg: slow
+            .fines()
+            .map_or(0.0, |f| f.initial_m3() * f.grain_density()),
+        fines_removed_kg: 0.0,
+        fines_pushed_out_kg: 0.0,
+        fines_in_place_kg: 0.0,
         device_volume_m3: 0.0,
         bypass_volume_m3: 0.0,
         screen_volume_m3: 0.0,
@@ -462,12 +485,11 @@ pub fn run_from_state(
             oscillation.get_or_insert((st.time_s, what));
             chooser.refine();
         }
-        let wall_r = st.disc.faces[st.disc.grid.borehole_face].r_lin();
-        match slow.advance(model, &face, b.dt_s, wall_r) {
+        match slow.advance(model, &face, st.time_s, b.dt_s, &st.disc, st.heads()) {
             Change::None => {}
-            Change::Smooth => st.set_cake(model, slow.cake()),
+            Change::Smooth => st.set_slow(model, &slow),
             Change::Jump => {
-                st.set_cake(model, slow.cake());
+                st.set_slow(model, &slow);
                 st.forget_history();
                 chooser.restart();
             }
@@ -523,6 +545,8 @@ pub fn run_from_state(
                 cake_thickness_m: slow.cake_thickness_m().1,
                 cake_coverage: slow.cake_coverage(),
                 skin: slow.skin().1,
+                cake_pressure_pa: face.cake_pressure_pa,
+                fines_removed_kg: slow.fines_removed_kg(),
                 power_w,
                 work_j: summary.work_j,
                 screen_volume_m3: b.volume_in_m3,
@@ -570,6 +594,14 @@ pub fn run_from_state(
     };
     summary.cake_thickness_m.1 = slow.cake_thickness_m().1;
     summary.skin.1 = slow.skin().1;
+    summary.skin_parts = slow.skin_parts_now();
+    summary.cake_removed_at_s = slow.cake_removed_at_s();
+    summary.peak_cake_pressure_pa = slow.lift_peak_pa();
+    if let Some(f) = slow.fines() {
+        summary.fines_removed_kg = f.removed_kg();
+        summary.fines_pushed_out_kg = f.pushed_out_m3() * f.grain_density();
+        summary.fines_in_place_kg = f.in_place_m3() * f.grain_density();
+    }
     summary.final_state = slow.clone();
     (summary.column_partings, summary.parted_time_s) = st.column_parting();
     if summary.column_partings > 0 {

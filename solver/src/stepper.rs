@@ -308,6 +308,14 @@ impl Stepper {
         &self.y
     }
 
+    /// Rebuilds the face laws after the slow state changed (cake and invaded zone).
+    pub fn set_slow(&mut self, model: &Model, slow: &crate::slow::SlowState) {
+        if let Some((first, k)) = slow.invaded_conductivity() {
+            self.disc.set_conductivity(first, k);
+        }
+        self.set_cake(model, slow.cake());
+    }
+
     /// Rebuilds the face laws after the cake changed.
     pub fn set_cake(&mut self, model: &Model, cake: Option<CakeState>) {
         self.end_slopes = None;

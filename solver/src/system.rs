@@ -53,7 +53,10 @@ pub struct Discretization {
 fn medium_of(model: &Model, zone: Zone) -> Medium {
     match zone {
         Zone::Pack => model.pack.medium,
-        Zone::Invaded => model.invaded.map_or(model.formation.medium, |z| z.medium),
+        Zone::Invaded => model
+            .invaded
+            .as_ref()
+            .map_or(model.formation.medium, |z| z.medium),
         _ => model.formation.medium,
     }
 }
@@ -64,7 +67,19 @@ impl Discretization {
         let grid = Grid::build(model);
         let n = grid.cells();
         let b = model.well.screen_length_m;
-        let media: Vec<Medium> = grid.zone.iter().map(|&z| medium_of(model, z)).collect();
+        let mut media: Vec<Medium> = grid.zone.iter().map(|&z| medium_of(model, z)).collect();
+        // An invaded zone given ring by ring (a snapshot after development): each cell takes
+        // the rings' equivalent conductivity over its own radii.
+        if let Some(p) = model.invaded.as_ref().and_then(|z| z.profile.as_ref()) {
+            let rb = model.borehole_radius_m();
+            let cells = grid.borehole_face..grid.invaded_face;
+            for (m, w) in media[cells.clone()]
+                .iter_mut()
+                .zip(grid.r_face[cells.start..=cells.end].windows(2))
+            {
+                m.conductivity_m_s = p.equivalent_conductivity(rb, w[0], w[1]);
+            }
+        }
         let mut storage = Vec::with_capacity(n + 1);
         storage.push(model.well.storage_m2);
         for (c, m) in media.iter().enumerate() {
@@ -85,6 +100,14 @@ impl Discretization {
         };
         d.rebuild_faces(model, cake);
         d
+    }
+
+    /// Sets the conductivity of the cells `first..first + k.len()` (the invaded zone as the
+    /// fines leave); call [`Discretization::rebuild_faces`] next. Allocates nothing.
+    pub fn set_conductivity(&mut self, first: usize, k: &[f64]) {
+        for (m, &ki) in self.media[first..first + k.len()].iter_mut().zip(k) {
+            m.conductivity_m_s = ki;
+        }
     }
 
     /// Recomputes the face laws (after the cake changed). Allocates nothing once built.

@@ -142,6 +142,7 @@ fn surge_block_against_a_sealing_cake_runs() {
         conductivity_m_s: 1e-9,
         coverage: 1.0,
         erosion: None,
+        lift_off: None,
     });
     m.formation.medium = Medium::darcy(4e-4, 5e-5);
     let s = run(&m, &mut NullObserver, Reporting::default()).unwrap();
@@ -184,10 +185,13 @@ fn surge_block_stroke_reversals_converge_within_eight_newton_iterations() {
             outward_weight: 0.5,
             coverage_exponent: 0.0,
         }),
+        lift_off: None,
     });
     m.invaded = Some(Invaded {
         thickness_m: 0.075,
         medium: medium(4e-5, 5e-5, 7.711e3),
+        fines: None,
+        profile: None,
     });
     m.formation.medium = medium(4e-4, 5e-5, 7.711e3);
     m.numerics.time = TimeSpec::StepsPerCycle(200);
@@ -276,6 +280,7 @@ fn slow_surge_block_against_a_sealing_cake_converges() {
         conductivity_m_s: 1e-9,
         coverage: 1.0,
         erosion: None,
+        lift_off: None,
     });
     m.formation.medium = Medium::darcy(4e-4, 5e-5);
     m.numerics.time = TimeSpec::StepsPerCycle(200);
@@ -332,6 +337,7 @@ fn pumped_cake_model(scheme: Scheme, dt: f64) -> Model {
             outward_weight: 0.5,
             coverage_exponent: 0.0,
         }),
+        lift_off: None,
     });
     m.formation.medium = Medium::darcy(1e-3, 1e-5);
     m.numerics.time = TimeSpec::Fixed(dt);
@@ -498,6 +504,8 @@ fn deep_swab_in_a_tight_formation_runs() {
     m.invaded = Some(Invaded {
         thickness_m: 0.02,
         medium: Medium::darcy(5e-6, 2e-4),
+        fines: None,
+        profile: None,
     });
     m.formation.medium = Medium::darcy(1e-9, 2e-4);
     let s = run(&m, &mut NullObserver, Reporting::default()).unwrap();

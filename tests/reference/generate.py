@@ -1812,6 +1812,76 @@ def virtual_tests():
     }
 
 
+# ---------------------------------------------------------------------------------------
+# 17. damage removal: cake lift-off distribution, fines rate law at constant velocity
+# ---------------------------------------------------------------------------------------
+
+
+def damage():
+    """Cake lift-off coverage and the fines rate law, docs/physics.md sections 13a and 13b.
+
+    Lift-off: coverage c = c0 (1 - F(P)) with F the log-normal distribution function of the
+    patch strengths (median P_m, spread s = standard deviation of ln P):
+    scipy.stats.lognorm.cdf(P, s, scale=P_m); cross-check mpmath 0.5 erfc(-ln(P/P_m)/(s sqrt 2)).
+
+    Fines: with no deposition (alpha_d = 0) and a constant flow Q the deposited fines of a
+    ring obey d sigma/dt = -alpha_e (v - v_c)+ sigma, so sigma(t) = sigma0 exp(-alpha_e (v -
+    v_c)+ t), v the ring's interstitial speed (mean of |Q|/(2 pi r b n) at its two faces).
+    Cross-check: scipy.integrate.solve_ivp of the same rate law (Radau, rtol 1e-12).
+    """
+    import scipy.stats
+
+    c0, median, spread = 0.85, 8000.0, 0.7
+    pressures = [300.0, 2000.0, 5000.0, 8000.0, 12000.0, 30000.0, 1.0e5]
+    coverage, diffs = [], []
+    for p_ in pressures:
+        cdf = scipy.stats.lognorm.cdf(p_, spread, scale=median)
+        with mp.workdps(MP_DPS):
+            cdf_mp = 0.5 * mp.erfc(-mp.log(mp.mpf(p_) / median) / (spread * mp.sqrt(2)))
+        diffs.append(rel_diff(cdf, cdf_mp))
+        coverage.append(c0 * (1.0 - cdf))
+
+    q, b, n = -0.02, 4.0, 0.3
+    sigma0, alpha_e, v_c, t_end = 0.02, 40.0, 2e-3, 3.0
+    faces = [0.15 * 1.04**i for i in range(13)]
+    sigma = []
+    for r1, r2 in zip(faces[:-1], faces[1:]):
+        v = abs(q) / (2 * math.pi * b * n) * 0.5 * (1 / r1 + 1 / r2)
+        k = alpha_e * max(v - v_c, 0.0)
+        exact = sigma0 * math.exp(-k * t_end)
+        sol = scipy.integrate.solve_ivp(lambda t, y: -k * y, (0.0, t_end), [sigma0],
+                                        method="Radau", rtol=1e-12, atol=1e-20)
+        diffs.append(rel_diff(exact, sol.y[0, -1]))
+        sigma.append(exact)
+
+    return {
+        "source": (
+            "Lift-off: log-normal distribution function of patch strengths "
+            "(scipy.stats.lognorm.cdf). Fines: first-order entrainment above a critical "
+            "velocity, the rate law of Gruesbeck, C. & Collins, R.E., 1982, 'Entrainment and "
+            "deposition of fine particles in porous media', SPE Journal 22(6), 847-856 (from "
+            "memory - verify), integrated in closed form at constant velocity."
+        ),
+        "computed_with": {
+            "versions": versions(),
+            "calls": [
+                "scipy.stats.lognorm.cdf(P, spread, scale=median)",
+                "cross-check: mpmath 0.5*erfc(-ln(P/median)/(spread*sqrt(2)))",
+                "sigma0*exp(-alpha_e*max(v - v_c, 0)*t)",
+                "cross-check: scipy.integrate.solve_ivp(Radau, rtol=1e-12)",
+            ],
+        },
+        "lift_off": {"coverage0": c0, "median": median, "spread": spread,
+                     "pressure": [f(x) for x in pressures],
+                     "coverage": [f(x) for x in coverage]},
+        "fines": {"flow": q, "length": b, "porosity": n, "deposit": sigma0,
+                  "entrainment": alpha_e, "critical_velocity": v_c, "time": t_end,
+                  "faces": [f(x) for x in faces], "sigma": [f(x) for x in sigma]},
+        "cross_check": "scipy against mpmath (CDF); closed form against solve_ivp (fines)",
+        "cross_check_max_rel_diff": f(max(diffs)),
+    }
+
+
 GENERATORS = [
     ("thiem_composite.json", thiem_composite),
     ("theis.json", theis),
@@ -1829,6 +1899,7 @@ GENERATORS = [
     ("conductance_jump.json", conductance_jump),
     ("inertia.json", inertia),
     ("virtual_tests.json", virtual_tests),
+    ("damage.json", damage),
 ]
 
 

@@ -80,6 +80,26 @@ pub fn all() -> Vec<Group> {
             run: crate::development::erosion,
         },
         Group {
+            id: "lift_off",
+            title: "Cake lift-off: log-normal strengths (scipy) and the one-strength threshold",
+            run: crate::damage::lift_off,
+        },
+        Group {
+            id: "fines",
+            title: "Invaded-zone fines: closed form at constant velocity, conservation",
+            run: crate::damage::fines,
+        },
+        Group {
+            id: "damage_monotonic",
+            title: "Damage removal: stronger loading, tighter cake",
+            run: crate::damage::monotonic,
+        },
+        Group {
+            id: "retention",
+            title: "Pack and slot retention criteria at their published limits",
+            run: crate::damage::retention,
+        },
+        Group {
             id: "nonlinear_energy",
             title: "Energy identity with nonlinear losses",
             run: crate::development::nonlinear_energy,
@@ -216,10 +236,13 @@ pub fn set_a(v: &serde_json::Value) -> Model {
         conductivity_m_s: p("K_cake"),
         coverage: 1.0,
         erosion: None,
+        lift_off: None,
     });
     m.invaded = Some(Invaded {
         thickness_m: p("rd") - p("rb"),
         medium: Medium::darcy(p("K_invaded"), 1e-5),
+        fines: None,
+        profile: None,
     });
     m.formation.outer_radius_m = Some(p("R"));
     m
@@ -536,6 +559,7 @@ fn storage() -> Vec<CheckResult> {
                 conductivity_m_s: k * delta / (skin * rb),
                 coverage: 1.0,
                 erosion: None,
+                lift_off: None,
             });
         }
         model.numerics.sync_times_s = times.clone();

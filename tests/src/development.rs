@@ -148,6 +148,7 @@ pub fn cake_skin() -> Vec<CheckResult> {
         conductivity_m_s: kc,
         coverage: 1.0,
         erosion: None,
+        lift_off: None,
     });
     let st = steady(&model);
     let h = st.heads();
@@ -238,6 +239,7 @@ pub fn erosion() -> Vec<CheckResult> {
         conductivity_m_s: kc,
         coverage: 1.0,
         erosion: Some(erosion),
+        lift_off: None,
     });
     // Closed form (solver::cake docs): quasi-steady, outward flow, so w = outward_weight.
     let two_pi_b = 2.0 * PI * b;
@@ -381,6 +383,7 @@ pub fn annulus() -> Vec<CheckResult> {
         conductivity_m_s: 1e-8,
         coverage: 1.0,
         erosion: None,
+        lift_off: None,
     });
     let ratio_c =
         pack_energy_density(0.1, 0.1, cake, 1e-4) / pack_energy_density(0.1, 0.08, cake, 1e-4);

@@ -7,6 +7,7 @@
 //! (`boreflux verify`).
 
 pub mod checks;
+pub mod damage;
 pub mod development;
 pub mod drives;
 pub mod fit;

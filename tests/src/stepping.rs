@@ -60,6 +60,7 @@ fn model(v: &serde_json::Value, scheme: Scheme) -> (Model, Vec<f64>) {
         conductivity_m_s: p("cake_K"),
         coverage: 1.0,
         erosion: None,
+        lift_off: None,
     });
     m.numerics.sync_times_s = times.clone();
     m.numerics.scheme = scheme;

@@ -48,6 +48,8 @@ fn theis_skin(v: &serde_json::Value, src: &str, out: &mut Vec<CheckResult>) {
     m.invaded = Some(Invaded {
         thickness_m: num(v, "/theis_skin/r_d") - m.pack.outer_radius_m,
         medium: Medium::darcy(num(v, "/theis_skin/K_invaded"), num(v, "/params/Ss")),
+        fines: None,
+        profile: None,
     });
     let times = nums(v, "/theis_skin/t");
     let want = nums(v, "/theis_skin/drawdown");
@@ -223,12 +225,15 @@ fn progress(v: &serde_json::Value, out: &mut Vec<CheckResult>) {
     m.invaded = Some(Invaded {
         thickness_m: 0.2,
         medium: Medium::darcy(num(v, "/forchheimer/K") / 4.0, num(v, "/forchheimer/Ss")),
+        fines: None,
+        profile: None,
     });
     m.cake = Some(Cake {
         thickness_m: 2e-3,
         conductivity_m_s: 1e-6,
         coverage: 0.8,
         erosion: None,
+        lift_off: None,
     });
     let plan = TestPlan {
         step_fractions: vec![0.5, 0.75, 1.0],

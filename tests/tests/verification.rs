@@ -93,6 +93,26 @@ fn cake_erosion_closed_form() {
 }
 
 #[test]
+fn cake_lift_off_distribution_and_threshold() {
+    assert_group("lift_off");
+}
+
+#[test]
+fn invaded_zone_fines_closed_form_and_conservation() {
+    assert_group("fines");
+}
+
+#[test]
+fn damage_removal_is_monotonic() {
+    assert_group("damage_monotonic");
+}
+
+#[test]
+fn retention_criteria_at_published_limits() {
+    assert_group("retention");
+}
+
+#[test]
 fn energy_identity_with_nonlinear_losses() {
     assert_group("nonlinear_energy");
 }

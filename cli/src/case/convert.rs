@@ -71,7 +71,7 @@ pub fn convert(raw: RawCase, base_dir: &Path) -> Result<LoadedCase, CaseError> {
         well,
         pack,
         cake: cake.as_ref().map(|c| c.0),
-        invaded: invaded.as_ref().map(|z| z.0),
+        invaded: invaded.as_ref().map(|z| z.0.clone()),
         formation,
         drive: drive.drive,
         duration_s,

@@ -72,6 +72,12 @@ kinds! {
     Erodibility => Quantity::Coefficient { si_unit: "m/s/Pa" };
     /// Force, N.
     Force => Quantity::Coefficient { si_unit: "N" };
+    /// Velocity, m/s.
+    Velocity => Quantity::Velocity;
+    /// Rate coefficient per length of travel, 1/m.
+    PerMetre => Quantity::Coefficient { si_unit: "1/m" };
+    /// Density of solids, kg/m³.
+    Density => Quantity::Coefficient { si_unit: "kg/m3" };
 }
 
 /// A dimensional value as written in the case file, read as kind `K`.

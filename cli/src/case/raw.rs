@@ -6,9 +6,9 @@
 //! the JSON Schema (`boreflux schema`); defaults are given in brackets.
 
 use super::quantity::{
-    Area, Beta, CellsValue, Conductivity, DischargeCoefficientValue, DurationValue, Erodibility,
-    Fraction, Length, OuterRadiusValue, Pressure, Seconds, SpecificStorage, StepsPerCycleValue,
-    Temperature, Time, Q,
+    Area, Beta, CellsValue, Conductivity, Density, DischargeCoefficientValue, DurationValue,
+    Erodibility, Fraction, Length, OuterRadiusValue, PerMetre, Pressure, Seconds, SpecificStorage,
+    StepsPerCycleValue, Temperature, Time, Velocity, Q,
 };
 use schemars::JsonSchema;
 use serde::Deserialize;
@@ -172,6 +172,35 @@ pub struct RawErosion {
     pub coverage_exponent: Option<f64>,
 }
 
+/// Lift-off of cake patches under an inward pressure difference (docs/physics.md §13a).
+#[derive(Debug, Deserialize, JsonSchema)]
+#[serde(deny_unknown_fields)]
+pub struct RawLiftOff {
+    /// Median lift-off pressure of the patches [10 kPa, mid-range of 1–100 kPa].
+    pub median: Option<Q<Pressure>>,
+    /// Spread of the patch strengths: standard deviation of ln(strength) [0.9]; 0 = every
+    /// patch has the median strength.
+    pub spread: Option<f64>,
+    /// Radius of an opened patch (a hole in the cake) [5 mm, middle of 1–25 mm].
+    pub patch_radius: Option<Q<Length>>,
+}
+
+/// Mud fines in the invaded zone that flow can carry out (docs/physics.md §13b).
+#[derive(Debug, Deserialize, JsonSchema)]
+#[serde(deny_unknown_fields)]
+pub struct RawFines {
+    /// Deposited fines at the start, volume per bulk volume [1 %].
+    pub deposit: Option<Q<Fraction>>,
+    /// Critical interstitial velocity of mobilisation [0.3 mm/s].
+    pub critical_velocity: Option<Q<Velocity>>,
+    /// Entrainment coefficient, 1/m [30].
+    pub entrainment: Option<Q<PerMetre>>,
+    /// Deposition (filtration) coefficient, 1/m [30].
+    pub deposition: Option<Q<PerMetre>>,
+    /// Density of the fines' solids, kg/m3 [2650].
+    pub grain_density: Option<Q<Density>>,
+}
+
 /// Wall cake.
 #[derive(Debug, Deserialize, JsonSchema)]
 #[serde(deny_unknown_fields)]
@@ -184,6 +213,8 @@ pub struct RawCake {
     pub coverage: Option<Q<Fraction>>,
     /// Erosion law [none: the cake stays as given].
     pub erosion: Option<RawErosion>,
+    /// Lift-off of patches under inward flow [none].
+    pub lift_off: Option<RawLiftOff>,
 }
 
 /// Invaded zone: give exactly one of `conductivity_ratio` and `conductivity`.
@@ -198,6 +229,8 @@ pub struct RawInvaded {
     pub conductivity: Option<Q<Conductivity>>,
     /// Specific storage [the formation's].
     pub specific_storage: Option<Q<SpecificStorage>>,
+    /// Mud fines that flow can carry out [none: the zone stays as given].
+    pub fines: Option<RawFines>,
 }
 
 /// Outer boundary condition of the model.

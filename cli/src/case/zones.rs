@@ -4,14 +4,16 @@
 use super::checks::{fraction, non_negative, open_fraction, positive};
 use super::error::CaseError;
 use super::grains::{check_grains, forchheimer_beta, grain_shape, pack_conductivity, Grains};
-use super::quantity::{Kind, Length, Q};
-use super::raw::{OuterBoundaryName, RawCake, RawFormation, RawInvaded, RawPack, RawWell};
+use super::quantity::{Kind, Length, PerMetre, Q};
+use super::raw::{
+    OuterBoundaryName, RawCake, RawFines, RawFormation, RawInvaded, RawLiftOff, RawPack, RawWell,
+};
 use super::{Log, SafetyInputs};
 use crate::units::parse_quantity;
 use boreflux_solver::limits;
 use boreflux_solver::media::GrainShape;
 use boreflux_solver::model::{
-    Cake, Erosion, Formation, Invaded, Medium, OuterBoundary, Pack, Well,
+    Cake, Erosion, Fines, Formation, Invaded, LiftOff, Medium, OuterBoundary, Pack, Well,
 };
 use boreflux_solver::water::Water;
 use serde_json::{json, Value};
@@ -27,6 +29,28 @@ pub const DEFAULT_SPECIFIC_GRAVITY: f64 = 2.65;
 /// Safety factor on the collapse pressure when the case gives none (docs/formats.md; the
 /// upper end of the 1.5–2 usually quoted, common practice, no source).
 pub const DEFAULT_SAFETY_FACTOR: f64 = 2.0;
+/// Median lift-off pressure when `cake.lift_off` gives none, Pa: the geometric middle of the
+/// documented 1–100 kPa (from memory — verify; assumption: calibrate), not tuned to any case.
+pub const DEFAULT_LIFT_OFF_MEDIAN_PA: f64 = 1e4;
+/// Spread of ln(patch strength) when none is given: the middle of the documented 0.3–1.5
+/// (assumption: calibrate).
+pub const DEFAULT_LIFT_OFF_SPREAD: f64 = 0.9;
+/// Radius of an opened cake patch when none is given, m: about the geometric middle of the
+/// documented 1–25 mm (assumption: calibrate).
+pub const DEFAULT_PATCH_RADIUS_M: f64 = 5e-3;
+/// Deposited fines when `invaded.fines` gives none: about the geometric middle of the
+/// documented 0.002–0.05 (from memory — verify).
+pub const DEFAULT_FINES_DEPOSIT: f64 = 0.01;
+/// Critical interstitial velocity when none is given, m/s: about the geometric middle of the
+/// documented 1e-5–1e-2 m/s (from memory — verify).
+pub const DEFAULT_FINES_CRITICAL_VELOCITY: f64 = 3e-4;
+/// Entrainment and deposition coefficients when none are given, 1/m: about the geometric
+/// middle of the documented 1–1000 1/m (from memory — verify; assumption: calibrate).
+pub const DEFAULT_FINES_RATE: f64 = 30.0;
+/// Density of the fines' solids when none is given, kg/m³ (common practice, no source: quartz
+/// and most clay minerals 2600–2800).
+pub const DEFAULT_FINES_GRAIN_DENSITY: f64 = 2650.0;
+
 /// Weight on the shear during inward flow when the case gives none.
 pub const DEFAULT_INWARD_WEIGHT: f64 = 1.0;
 /// Weight on the shear during outward flow when the case gives none.
@@ -367,10 +391,19 @@ pub fn cake(r: &RawCake, log: &mut Log) -> Result<(Cake, Value), CaseError> {
             })
         }
     };
+    let lift_off = match &r.lift_off {
+        None => None,
+        Some(l) => Some(lift_off(l, log)?),
+    };
     let resolved = json!({
         "thickness": thickness,
         "conductivity": k,
         "coverage": coverage,
+        "lift_off": lift_off.map(|l| json!({
+            "median": l.median_pa,
+            "spread": l.spread,
+            "patch_radius": l.patch_radius_m,
+        })),
         "erosion": erosion.map(|e| json!({
             "critical_shear": e.critical_shear_pa,
             "erodibility": e.erodibility_m_s_pa,
@@ -384,8 +417,84 @@ pub fn cake(r: &RawCake, log: &mut Log) -> Result<(Cake, Value), CaseError> {
         conductivity_m_s: k,
         coverage,
         erosion,
+        lift_off,
     };
     Ok((cake, drop_nulls(resolved)))
+}
+
+fn lift_off(l: &RawLiftOff, log: &mut Log) -> Result<LiftOff, CaseError> {
+    let median_pa = match &l.median {
+        Some(q) => positive("cake.lift_off.median", q.si("cake.lift_off.median")?, "Pa")?,
+        None => DEFAULT_LIFT_OFF_MEDIAN_PA,
+    };
+    let spread = match l.spread {
+        Some(s) => non_negative("cake.lift_off.spread", s, "")?,
+        None => DEFAULT_LIFT_OFF_SPREAD,
+    };
+    let patch_radius_m = match &l.patch_radius {
+        Some(q) => positive(
+            "cake.lift_off.patch_radius",
+            q.si("cake.lift_off.patch_radius")?,
+            "m",
+        )?,
+        None => DEFAULT_PATCH_RADIUS_M,
+    };
+    log.note(format!(
+        "cake lift-off: patches fail when the inward pressure difference across the cake \
+         exceeds their strength, log-normal with median {median_pa:.3e} Pa and spread {spread} \
+         (documented ranges 1-100 kPa and 0.3-1.5, from memory - verify; calibrate); opened \
+         patches are holes of radius {patch_radius_m} m (1-25 mm, assumption: calibrate)"
+    ));
+    Ok(LiftOff {
+        median_pa,
+        spread,
+        patch_radius_m,
+        frozen: false,
+    })
+}
+
+fn fines(f: &RawFines, log: &mut Log) -> Result<Fines, CaseError> {
+    let deposit = match &f.deposit {
+        Some(q) => open_fraction("invaded.fines.deposit", q.si("invaded.fines.deposit")?)?,
+        None => DEFAULT_FINES_DEPOSIT,
+    };
+    let critical_velocity_m_s = match &f.critical_velocity {
+        Some(q) => non_negative(
+            "invaded.fines.critical_velocity",
+            q.si("invaded.fines.critical_velocity")?,
+            "m/s",
+        )?,
+        None => DEFAULT_FINES_CRITICAL_VELOCITY,
+    };
+    let rate = |q: &Option<Q<PerMetre>>, field: &str| -> Result<f64, CaseError> {
+        match q {
+            Some(q) => non_negative(field, q.si(field)?, "1/m"),
+            None => Ok(DEFAULT_FINES_RATE),
+        }
+    };
+    let entrainment_per_m = rate(&f.entrainment, "invaded.fines.entrainment")?;
+    let deposition_per_m = rate(&f.deposition, "invaded.fines.deposition")?;
+    let grain_density_kg_m3 = match &f.grain_density {
+        Some(q) => positive(
+            "invaded.fines.grain_density",
+            q.si("invaded.fines.grain_density")?,
+            "kg/m3",
+        )?,
+        None => DEFAULT_FINES_GRAIN_DENSITY,
+    };
+    log.note(format!(
+        "invaded-zone fines: {deposit} of the bulk at the start, mobilised above an \
+         interstitial velocity of {critical_velocity_m_s:.2e} m/s, entrainment \
+         {entrainment_per_m} 1/m, deposition {deposition_per_m} 1/m (documented ranges \
+         0.002-0.05, 1e-5-1e-2 m/s and 1-1000 1/m, from memory - verify; calibrate)"
+    ));
+    Ok(Fines {
+        deposit,
+        critical_velocity_m_s,
+        entrainment_per_m,
+        deposition_per_m,
+        grain_density_kg_m3,
+    })
 }
 
 /// The invaded zone; porosity, d50 and Forchheimer β are the formation's.
@@ -434,10 +543,21 @@ pub fn invaded(
          Forchheimer beta taken from the formation",
         k / kf
     ));
+    let fines = match &r.fines {
+        None => None,
+        Some(f) => Some(fines(f, log)?),
+    };
     let resolved = json!({
         "thickness": thickness,
         "conductivity": k,
         "specific_storage": ss,
+        "fines": fines.map(|f| json!({
+            "deposit": f.deposit,
+            "critical_velocity": f.critical_velocity_m_s,
+            "entrainment": f.entrainment_per_m,
+            "deposition": f.deposition_per_m,
+            "grain_density": f.grain_density_kg_m3,
+        })),
     });
     let invaded = Invaded {
         thickness_m: thickness,
@@ -446,8 +566,10 @@ pub fn invaded(
             specific_storage_per_m: ss,
             ..*formation
         },
+        fines,
+        profile: None,
     };
-    Ok((invaded, resolved))
+    Ok((invaded, drop_nulls(resolved)))
 }
 
 /// Removes keys whose value is null, so the resolved case stays loadable.

@@ -36,6 +36,10 @@ fn annulus_run(model: &Model, width: f64) -> Result<(f64, f64, f64), Failure> {
     m.duration_s = cycles * period;
     if let Some(c) = m.cake.as_mut() {
         c.erosion = None; // same cake in every variant
+        c.lift_off = None;
+    }
+    if let Some(z) = m.invaded.as_mut() {
+        z.fines = None; // same invaded zone in every variant
     }
     m.validate().map_err(|e| {
         Failure::Input(anyhow!(
@@ -117,7 +121,7 @@ pub fn check(a: &CheckArgs) -> Result<(), Failure> {
     let rd = m.invaded_outer_radius_m();
     let kf = m.formation.medium.conductivity_m_s;
     let skin_pack = boreflux_solver::skin::hawkins_skin(kf, m.pack.medium.conductivity_m_s, rs, rb);
-    let skin_inv = m.invaded.map_or(0.0, |z| {
+    let skin_inv = m.invaded.as_ref().map_or(0.0, |z| {
         boreflux_solver::skin::hawkins_skin(kf, z.medium.conductivity_m_s, rb, rd)
     });
     let skin_total = total_skin(m, cake);
@@ -133,7 +137,7 @@ pub fn check(a: &CheckArgs) -> Result<(), Failure> {
         _ => format!("geometric, first {} s", G(default_first_step(m), 3)),
     };
     let mut zones = vec![("pack", rs, rb, Some(m.pack.medium))];
-    if let Some(z) = m.invaded {
+    if let Some(z) = &m.invaded {
         zones.push(("invaded", rb, rd, Some(z.medium)));
     }
     zones.push((
@@ -167,6 +171,9 @@ pub fn check(a: &CheckArgs) -> Result<(), Failure> {
                 "estimated_output_bytes": cost.bytes, "over_limits": crate::cost::refuse_large(&cost, false).is_err()},
             "annulus": widths.iter().map(|(w, q, wc, wp)| json!({"width_m": w, "peak_face_flux_m_s": q, "cake_work_per_cycle_j": wc, "pack_work_per_cycle_j": wp})).collect::<Vec<_>>(),
             "notes": case.notes, "warnings": case.warnings,
+            "damage_constants": boreflux_solver::damage::assumptions(m).iter().map(|p| json!({
+                "path": p.path, "value": p.value, "range": [p.range.0, p.range.1],
+                "unit": p.unit, "decades": p.decades(), "provenance": p.provenance})).collect::<Vec<_>>(),
         });
         return print_out(
             &(serde_json::to_string_pretty(&v).map_err(|e| Failure::Runtime(e.into()))? + "\n"),
@@ -265,7 +272,7 @@ pub fn check(a: &CheckArgs) -> Result<(), Failure> {
         }
     }
     if !widths.is_empty() {
-        t += "\nAnnulus width (simulated, cake erosion off, ≤ 5 cycles):\n  width (mm)   peak face flux (m/s)   cake work/cycle (J)   pack work/cycle (J)\n";
+        t += "\nAnnulus width (simulated, cake erosion, lift-off and fines off, ≤ 5 cycles):\n  width (mm)   peak face flux (m/s)   cake work/cycle (J)   pack work/cycle (J)\n";
         for (w, q, wc, wp) in &widths {
             t += &format!(
                 "  {:>10.1}   {:>20.4e}   {:>19.4e}   {:>19.4e}\n",
@@ -289,6 +296,24 @@ pub fn check(a: &CheckArgs) -> Result<(), Failure> {
             ratings.how
         ),
     };
+    let assumed = boreflux_solver::damage::assumptions(m);
+    if !assumed.is_empty() {
+        t += "\nDamage-removal constants, widest documented range first (these dominate the \
+              uncertainty of removal times and final skin; a prior ranking from the ranges, \
+              not a sensitivity run):\n";
+        for p in &assumed {
+            t += &format!(
+                "  {:34} {:>10} {:8} range {} – {} ({:.1} decades; {})\n",
+                p.path,
+                format!("{}", G(p.value, 3)),
+                p.unit,
+                G(p.range.0, 2),
+                G(p.range.1, 2),
+                p.decades(),
+                p.provenance
+            );
+        }
+    }
     if !case.notes.is_empty() {
         t += "\nNotes:\n";
         for n in &case.notes {

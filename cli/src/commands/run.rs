@@ -164,6 +164,9 @@ fn write_summary(sink: &mut ResultSink, h: &Headline) -> Result<(), crate::outpu
     }
     w.set_attr_str("/summary", "warnings", &h.warnings.join("\n"))?;
     w.set_attr_str("/summary", "cautions", CAUTION)?;
+    if !h.assumptions.is_empty() {
+        w.set_attr_str("/summary", "assumptions", &h.assumptions.join("\n"))?;
+    }
     w.set_attr_str("/summary", "efficiency_definition", h.efficiency_definition)?;
     Ok(())
 }

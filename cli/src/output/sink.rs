@@ -12,7 +12,7 @@ use std::path::Path;
 const CHUNK: usize = 4096;
 
 /// Name, unit and description of each per-step series, in CSV column order.
-const SERIES: [(&str, &str, &str); 14] = [
+const SERIES: [(&str, &str, &str); 16] = [
     ("time", "s", "time at the end of the step"),
     (
         "well_head",
@@ -57,6 +57,16 @@ const SERIES: [(&str, &str, &str); 14] = [
         "total skin referred to the formation (Hawkins)",
     ),
     (
+        "cake_pressure",
+        "Pa",
+        "inward pressure difference across the wall cake (0 for outward flow)",
+    ),
+    (
+        "fines_removed",
+        "kg",
+        "mud fines carried from the invaded zone across the wall so far",
+    ),
+    (
         "mass_residual",
         "1",
         "relative volume-balance residual of the step",
@@ -69,7 +79,7 @@ const SERIES: [(&str, &str, &str); 14] = [
     ("newton_iterations", "1", "Newton iterations of the step"),
 ];
 
-fn values(s: &StepView<'_>) -> [f64; 14] {
+fn values(s: &StepView<'_>) -> [f64; 16] {
     [
         s.time_s,
         s.well_head_m,
@@ -82,6 +92,8 @@ fn values(s: &StepView<'_>) -> [f64; 14] {
         s.cake_thickness_m,
         s.cake_coverage,
         s.skin,
+        s.cake_pressure_pa,
+        s.fines_removed_kg,
         s.mass_residual,
         s.energy_residual,
         s.newton_iterations as f64,
@@ -215,7 +227,7 @@ impl ResultSink {
             snap_head,
             snapshot_every: snapshot_every.max(1),
             csv,
-            row: Vec::with_capacity(14 + 2 * ZONE_COUNT),
+            row: Vec::with_capacity(SERIES.len() + 2 * ZONE_COUNT),
             error: None,
         })
     }

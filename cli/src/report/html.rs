@@ -82,6 +82,7 @@ pub fn page(runs: &[Run]) -> String {
     );
     cautions(&mut h, runs);
     warnings(&mut h, runs);
+    assumptions(&mut h, runs);
     describe_runs(&mut h, runs);
 
     h.push_str("<h2>Headline results</h2>\n");
@@ -175,6 +176,29 @@ fn warnings(h: &mut String, runs: &[Run]) {
             esc(&run_title(run))
         );
         for line in w {
+            let _ = writeln!(h, "<li>{}</li>", esc(line));
+        }
+        h.push_str("</ul>\n");
+    }
+    h.push_str("</section>\n");
+}
+
+/// The damage-removal constants each run used, with their documented ranges.
+fn assumptions(h: &mut String, runs: &[Run]) {
+    if runs.iter().all(|r| r.summary.assumptions.is_empty()) {
+        return;
+    }
+    h.push_str(
+        "<section>\n<h2>Model assumptions: damage removal</h2>\n<p>Removal times and final \
+         skin rest on these constants (widest documented range first). They are literature \
+         ranges to be calibrated against the well's own response, not measured values.</p>\n",
+    );
+    for (i, run) in runs.iter().enumerate() {
+        if run.summary.assumptions.is_empty() {
+            continue;
+        }
+        let _ = writeln!(h, "<p><strong>Run {}</strong>:</p>\n<ul>", run_letter(i));
+        for line in &run.summary.assumptions {
             let _ = writeln!(h, "<li>{}</li>", esc(line));
         }
         h.push_str("</ul>\n");

@@ -149,6 +149,8 @@ pub struct Summary {
     pub cautions: Option<String>,
     /// `efficiency_definition`.
     pub efficiency_definition: Option<String>,
+    /// `assumptions`: the damage-removal constants and their provenance, one per line.
+    pub assumptions: Vec<String>,
 }
 
 impl Summary {
@@ -382,6 +384,14 @@ fn read_summary(file: &File) -> Result<Summary, String> {
                             .collect();
                     }
                     "cautions" => summary.cautions = Some(text),
+                    "assumptions" => {
+                        summary.assumptions = text
+                            .lines()
+                            .map(str::trim)
+                            .filter(|l| !l.is_empty())
+                            .map(str::to_owned)
+                            .collect();
+                    }
                     "efficiency_definition" => summary.efficiency_definition = Some(text),
                     _ => {}
                 }

@@ -91,7 +91,7 @@ pub fn figures(h: &Headline) -> Vec<(String, f64)> {
 /// Units of a figure from its name's suffix (`_m_s` → m/s, `_pa` → Pa, …); "1" for a
 /// count or ratio.
 pub fn units_of(name: &str) -> &'static str {
-    const SUFFIXES: [(&str, &str); 8] = [
+    const SUFFIXES: [(&str, &str); 9] = [
         ("_m2_s", "m2/s"),
         ("_m3_s", "m3/s"),
         ("_m_s", "m/s"),
@@ -100,6 +100,7 @@ pub fn units_of(name: &str) -> &'static str {
         ("_s", "s"),
         ("_m", "m"),
         ("_m3", "m3"),
+        ("_kg", "kg"),
     ];
     SUFFIXES
         .iter()

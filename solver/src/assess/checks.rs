@@ -56,7 +56,10 @@ pub fn run_checks(
         .medium
         .grain_diameter_m
         .map(|d| model.fluid.density_kg_m3 * peak_q * d / model.fluid.viscosity_pa_s);
-    let outer = model.invaded.map_or(model.formation.medium, |z| z.medium);
+    let outer = model
+        .invaded
+        .as_ref()
+        .map_or(model.formation.medium, |z| z.medium);
     let piping = (peak_face_gradient > 0.0).then(|| {
         peak_face_gradient / safety::terzaghi_critical_gradient(specific_gravity, outer.porosity)
     });

@@ -223,6 +223,8 @@ mod tests {
             invaded: k_invaded.map(|k| Invaded {
                 thickness_m: 0.1,
                 medium: Medium::darcy(k, 1e-5),
+                fines: None,
+                profile: None,
             }),
             formation: Formation {
                 medium: Medium::darcy(2e-4, 1e-5),

@@ -70,16 +70,21 @@ pub fn near_well_loss_m(model: &Model, r_d: f64, q_m3_s: f64) -> f64 {
         });
     }
     if r_d > rb {
-        let m = model.invaded.map_or(model.formation.medium, |z| z.medium);
         let r_inv = model.invaded_outer_radius_m().min(r_d);
-        push(half_cell(
-            Zone::Invaded,
-            rb,
-            r_inv,
-            b,
-            m.conductivity_m_s,
-            m.forchheimer_beta_s2_m2,
-        ));
+        // The zone as it stands: ring by ring after fines left it (rings in series).
+        let (k, beta) = model.invaded.as_ref().map_or(
+            (
+                model.formation.medium.conductivity_m_s,
+                model.formation.medium.forchheimer_beta_s2_m2,
+            ),
+            |z| {
+                let k = z.profile.as_ref().map_or(z.medium.conductivity_m_s, |p| {
+                    p.equivalent_conductivity(rb, rb, r_inv)
+                });
+                (k, z.medium.forchheimer_beta_s2_m2)
+            },
+        );
+        push(half_cell(Zone::Invaded, rb, r_inv, b, k, beta));
         if r_d > r_inv {
             let f = model.formation.medium;
             push(half_cell(

@@ -147,10 +147,13 @@ mod tests {
                 conductivity_m_s: 1e-6,
                 coverage: 0.7,
                 erosion: None,
+                lift_off: None,
             }),
             invaded: Some(Invaded {
                 thickness_m: 0.05,
                 medium: medium(5e-5, 2e4),
+                fines: None,
+                profile: None,
             }),
             formation: Formation {
                 medium: medium(2e-4, 1.35e4),
