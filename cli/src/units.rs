@@ -44,29 +44,29 @@ const CELSIUS_ZERO_K: f64 = 273.15;
 /// The physical kind of a case-file value, which fixes its SI unit and accepted units.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum Quantity {
-    /// Length or radius [m].
+    /// Length or radius, in m.
     Length,
-    /// Time or duration [s].
+    /// Time or duration, in s.
     Time,
-    /// Frequency, stroke or rotation rate [Hz].
+    /// Frequency, stroke or rotation rate, in Hz.
     Frequency,
-    /// Hydraulic conductivity [m/s].
+    /// Hydraulic conductivity, in m/s.
     Conductivity,
-    /// Volumetric flow rate [m³/s].
+    /// Volumetric flow rate, in m³/s.
     FlowRate,
-    /// Pressure [Pa].
+    /// Pressure, in Pa.
     Pressure,
-    /// Hydraulic head [m]; a pressure is converted with ρ g (see [`parse_head`]).
+    /// Hydraulic head, in m; a pressure is converted with ρ g (see [`parse_head`]).
     Head,
-    /// Specific storage [1/m].
+    /// Specific storage, in 1/m.
     SpecificStorage,
-    /// Absolute temperature [K]; a bare number is kelvin.
+    /// Absolute temperature, in K; a bare number is kelvin.
     Temperature,
-    /// Velocity [m/s].
+    /// Velocity, in m/s.
     Velocity,
-    /// Area [m²].
+    /// Area, in m².
     Area,
-    /// Volume [m³].
+    /// Volume, in m³.
     Volume,
     /// Pure number; `"12 %"` is accepted as 0.12.
     Dimensionless,
@@ -393,7 +393,7 @@ pub fn parse_quantity(value: &Value, q: Quantity) -> Result<f64, UnitError> {
     parse_with_density(value, q, DEFAULT_WATER_DENSITY_KG_M3)
 }
 
-/// Reads a head [m]: a length, or a pressure converted with the water density `rho_kg_m3`.
+/// Reads a head (m): a length, or a pressure converted with the water density `rho_kg_m3`.
 ///
 /// ```text
 /// h = p / (ρ g)        h [m], p [Pa], ρ [kg/m³], g = 9.80665 m/s²

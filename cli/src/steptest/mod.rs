@@ -33,7 +33,7 @@ pub struct Options {
     pub confidence: f64,
     /// Early fraction of each step left out of the series fit.
     pub skip_fraction: f64,
-    /// Common elapsed time [s], or the shortest step.
+    /// Common elapsed time, s, or the shortest step.
     pub reference_time_s: Option<f64>,
     /// Also fit s = B Q + C Qⁿ (Rorabaugh).
     pub power: bool,
@@ -48,7 +48,7 @@ pub struct Outcome {
     pub fit: LineFit,
     /// Per-step figures (drawdowns as fitted: corrected for Hantush–Bierschenk).
     pub figures: Vec<StepFigures>,
-    /// Measured drawdown at the end of each step [m].
+    /// Measured drawdown at the end of each step, m.
     pub measured_m: Vec<f64>,
     /// The series fit, for Hantush–Bierschenk.
     pub series: Option<HantushAnalysis>,
