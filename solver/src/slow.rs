@@ -13,9 +13,9 @@
 //! The erosion law itself is in [`crate::cake`] and is unchanged by this module.
 
 use crate::cake;
+use crate::cake::CakeState;
 use crate::diagnostics::FaceState;
 use crate::model::{Cake, Model};
-use crate::system::CakeState;
 
 /// Relative change of the wall face's linear resistance in one step above which a change
 /// counts as a jump (assumption: a tenth keeps the step's error estimate meaningful across

@@ -16,13 +16,13 @@
 mod devices;
 mod pumped;
 mod schedule;
+mod table;
 
 pub use schedule::{run_duration, stepping_period};
 
 use super::error::CaseError;
 use super::hints::suggestion;
 use super::quantity::{FlowRate, Frequency, Head, Time, Q};
-use super::table;
 use crate::units::{format_si, Quantity};
 use boreflux_solver::drive::SineHead;
 use boreflux_solver::model::Well;

@@ -1,8 +1,8 @@
 //! Case files: parsing, units, validation and conversion to the solver model.
 //!
 //! A case file (JSON, see docs/formats.md "Case file") is read in two steps: serde reads it into
-//! the raw structs of [`raw`] (user units kept as written, unknown keys rejected with a
-//! hint), then [`convert`] turns those into a checked [`boreflux_solver::Model`] in SI,
+//! the raw structs of `raw` (user units kept as written, unknown keys rejected with a
+//! hint), then `convert` turns those into a checked [`boreflux_solver::Model`] in SI,
 //! filling every default and recording what it derived. Errors name the key path:
 //!
 //! ```text
@@ -23,7 +23,6 @@ mod raw;
 mod scenarios;
 mod schema;
 mod strict;
-mod table;
 mod zones;
 
 pub use error::CaseError;
@@ -52,7 +51,7 @@ pub struct SafetyInputs {
     pub youngs_modulus_pa: Option<f64>,
     /// `well.poisson_ratio`.
     pub poisson_ratio: Option<f64>,
-    /// `well.safety_factor` [2].
+    /// `well.safety_factor` (default 2).
     pub safety_factor: f64,
     /// `formation.specific_gravity` of the grains [2.65].
     pub formation_specific_gravity: f64,

@@ -6,8 +6,8 @@
 //! lines starting with `#` are skipped. A time written twice makes a jump. The resolved
 //! case carries the points themselves, so it reproduces the run without the file.
 
-use super::drives::{into_map, read_keys, DriveContext, ParsedDrive};
-use super::error::CaseError;
+use super::{into_map, read_keys, DriveContext, ParsedDrive};
+use crate::case::error::CaseError;
 use boreflux_solver::drive::{TableDrive, TableQuantity};
 use boreflux_solver::Drive;
 use schemars::JsonSchema;
@@ -41,13 +41,13 @@ pub struct TableKeys {
     pub repeat: Option<bool>,
 }
 
-/// Parser of the `table` drive (registered in [`super::drives::DRIVE_KINDS`]).
+/// Parser of the `table` drive (registered in [`super::DRIVE_KINDS`]).
 pub fn table(map: Map<String, Value>, ctx: &DriveContext<'_>) -> Result<ParsedDrive, CaseError> {
     let k: TableKeys = read_keys(map)?;
     let (field, rows, source) = match (&k.file, &k.points) {
         (Some(file), None) => {
             let path = ctx.base_dir.join(file);
-            let text = super::read_limited(&path, MAX_TABLE_BYTES, "table file")
+            let text = crate::case::read_limited(&path, MAX_TABLE_BYTES, "table file")
                 .map_err(|m| CaseError::new("drive.file", m))?;
             let rows = read_csv(&text)
                 .map_err(|m| CaseError::new("drive.file", format!("{file}: {m}")))?;
