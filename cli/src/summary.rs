@@ -318,10 +318,13 @@ fn collapse_cause(drive: &boreflux_solver::Drive, s: &RunSummary) -> String {
                     Drive::Swab(_) => Some("swab"),
                     Drive::PumpBackwash(_) | Drive::ConstantRate { .. } => Some("pump"),
                     Drive::JetPulse(_) => Some("jet"),
-                    _ => None,
+                    Drive::SineHead(_)
+                    | Drive::Slug { .. }
+                    | Drive::Table(_)
+                    | Drive::Schedule(_) => None,
                 })
                 .collect(),
-            _ => vec![],
+            Drive::SineHead(_) | Drive::Slug { .. } => vec![],
         }
     };
     let mut k = kinds(drive);
@@ -371,10 +374,23 @@ fn pump_warnings(
             .iter()
             .filter_map(|x| match &x.drive {
                 Drive::PumpBackwash(p) => Some(*p),
-                _ => None,
+                Drive::SineHead(_)
+                | Drive::ConstantRate { .. }
+                | Drive::Slug { .. }
+                | Drive::Table(_)
+                | Drive::SurgeBlock(_)
+                | Drive::Swab(_)
+                | Drive::JetPulse(_)
+                | Drive::Schedule(_) => None,
             })
             .collect(),
-        _ => vec![],
+        Drive::SineHead(_)
+        | Drive::ConstantRate { .. }
+        | Drive::Slug { .. }
+        | Drive::Table(_)
+        | Drive::SurgeBlock(_)
+        | Drive::Swab(_)
+        | Drive::JetPulse(_) => vec![],
     };
     let mut out = Vec::new();
     for p in pumps {
