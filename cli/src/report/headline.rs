@@ -7,11 +7,11 @@ use std::fmt::Write;
 
 use boreflux_solver::safety::ENTRANCE_VELOCITY_RULE_M_S;
 
+use super::escape::esc;
 use super::format::{
     change, count, duration, sig, summary_unit, with_units, Shown, ENERGY, FLOW, FLUX, HEAD,
     NUMBER, PORE_VELOCITY, PRESSURE, SHEAR, SLOT_VELOCITY, SMALL_LENGTH, SPECIFIC_CAPACITY,
 };
-use super::html::esc;
 use super::read::{Run, Summary, ZONES};
 use super::tables::header_row;
 use super::{run_letter, run_title};

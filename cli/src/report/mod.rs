@@ -22,6 +22,7 @@
 //! the destination and renamed over it only when complete.
 
 mod decimate;
+mod escape;
 mod figures;
 mod format;
 mod headline;

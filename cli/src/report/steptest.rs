@@ -4,7 +4,8 @@
 
 use std::fmt::Write;
 
-use super::html::{esc, STYLE};
+use super::escape::esc;
+use super::html::STYLE;
 use super::svg::{render, Chart, Series, Style};
 use crate::steptest::text::{sig, EFFICIENCY_DEFINITION, INTERVAL_NOTE};
 use crate::steptest::Outcome;

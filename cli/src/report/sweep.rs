@@ -7,9 +7,10 @@ use std::fmt::Write;
 
 use boreflux_solver::safety::CAUTION;
 
+use super::escape::esc;
 use super::figures::run_style;
 use super::format::{sig, summary_unit, Shown, NUMBER};
-use super::html::{esc, STYLE};
+use super::html::STYLE;
 use super::svg::{render, Chart, SecondAxis, Series};
 use super::ticks::Scale;
 use crate::sweep::table::Table;
