@@ -116,6 +116,8 @@ pub struct Headline {
     pub peak_inward_pore_velocity_m_s: f64,
     /// RMS face flux, m/s.
     pub rms_face_flux_m_s: f64,
+    /// Largest flow through the screen (magnitude), m³/s.
+    pub peak_screen_flow_m3_s: f64,
     /// Largest shear proxy at the wall, Pa.
     pub peak_shear_pa: f64,
     /// Work dissipated per zone, J.
@@ -532,6 +534,7 @@ pub fn headline(case: &LoadedCase, s: &RunSummary, t: &Tracker) -> Headline {
         peak_outward_pore_velocity_m_s: s.peak_outward_flux_m_s / n_pack,
         peak_inward_pore_velocity_m_s: s.peak_inward_flux_m_s / n_pack,
         rms_face_flux_m_s: s.rms_face_flux_m_s,
+        peak_screen_flow_m3_s: s.peak_screen_flow_m3_s,
         peak_shear_pa: s.peak_shear_pa,
         work_j: s.work_j,
         zones: Zone::ALL.map(Zone::name),
