@@ -68,7 +68,8 @@ pub fn dispatch(command: Command) -> Result<(), Failure> {
         Command::Verify(a) => verify::verify(&a),
         Command::Steptest(a) => steptest::steptest(&a),
         Command::New(a) => new::new(&a),
-        Command::Schema => {
+        Command::Schema(a) if a.outputs => print_out(&crate::output::schema::markdown()),
+        Command::Schema(_) => {
             let text = serde_json::to_string_pretty(&crate::case::schema())
                 .map_err(|e| Failure::Runtime(e.into()))?;
             print_out(&(text + "\n"))

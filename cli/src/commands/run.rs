@@ -13,6 +13,7 @@ use super::outputs::{check_output, same_file_key};
 use super::{print_out, Failure};
 use crate::args::RunArgs;
 use crate::case::{load_case, LoadedCase};
+use crate::output::schema::{figure_values, SummaryText};
 use crate::output::sink::ResultSink;
 use crate::summary::{headline, table, Headline, Tracker};
 use anyhow::{anyhow, Context};
@@ -109,27 +110,20 @@ fn write_metadata(
 fn write_summary(sink: &mut ResultSink, h: &Headline) -> Result<(), crate::output::OutputError> {
     let w = sink.writer();
     w.group("/summary")?;
-    let json = serde_json::to_value(h).unwrap_or_default();
-    if let Some(map) = json.as_object() {
-        for (k, v) in map {
-            match (k.as_str(), v) {
-                ("work_j", serde_json::Value::Array(a)) => {
-                    for (z, x) in h.zones.iter().zip(a) {
-                        if let Some(x) = x.as_f64() {
-                            w.set_attr_f64("/summary", &format!("work_{z}_j"), x)?;
-                        }
-                    }
-                }
-                (_, serde_json::Value::Number(n)) => {
-                    w.set_attr_f64("/summary", k, n.as_f64().unwrap_or(f64::NAN))?
-                }
-                _ => {}
-            }
+    for (figure, value) in figure_values(h) {
+        // A figure that was not computed is left out (the report shows a dash).
+        if let Some(x) = value {
+            w.set_attr_f64("/summary", &figure.name(), x)?;
         }
     }
-    w.set_attr_str("/summary", "warnings", &h.warnings.join("\n"))?;
-    w.set_attr_str("/summary", "cautions", CAUTION)?;
-    w.set_attr_str("/summary", "efficiency_definition", h.efficiency_definition)?;
+    for text in SummaryText::ALL {
+        let value = match text {
+            SummaryText::Warnings => h.warnings.join("\n"),
+            SummaryText::Cautions => CAUTION.to_owned(),
+            SummaryText::EfficiencyDefinition => h.efficiency_definition.to_owned(),
+        };
+        w.set_attr_str("/summary", text.name(), &value)?;
+    }
     Ok(())
 }
 

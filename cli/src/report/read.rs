@@ -9,18 +9,10 @@
 use std::collections::BTreeMap;
 use std::path::{Path, PathBuf};
 
-use boreflux_solver::grid::{Zone, ZONE_COUNT};
+use crate::output::schema::{Cycle, Figure, Step, SummaryText, CYCLE_INDEX};
+use boreflux_solver::grid::Zone;
 use hdf5::types::{TypeDescriptor, VarLenAscii, VarLenUnicode};
 use hdf5::{Attribute, File, Location};
-
-/// Zone names, inner to outer, as used in `/series/work/<zone>` and `/cycles/work_<zone>`.
-pub const ZONES: [&str; ZONE_COUNT] = [
-    Zone::Screen.name(),
-    Zone::Pack.name(),
-    Zone::Cake.name(),
-    Zone::Invaded.name(),
-    Zone::Formation.name(),
-];
 
 /// Zone code of filter-pack cells in `/grid/zone`.
 pub const ZONE_CODE_PACK: i64 = 1;
@@ -89,8 +81,8 @@ pub struct Series {
     pub cake_thickness: Vec<f64>,
     /// Skin, –.
     pub skin: Vec<f64>,
-    /// Cumulative work per zone present in the file, J, in [`ZONES`] order.
-    pub work: Vec<(&'static str, Vec<f64>)>,
+    /// Cumulative work per zone present in the file, J, inner to outer.
+    pub work: Vec<(Zone, Vec<f64>)>,
 }
 
 /// `/cycles`, all of the length of `index`.
@@ -128,7 +120,8 @@ pub struct Snapshots {
 /// `/summary` attributes.
 #[derive(Debug, Clone, Default, PartialEq)]
 pub struct Summary {
-    /// Numeric attributes by name (units in the name suffix).
+    /// Numeric attributes by name (the schema's [`Figure`] names, and any others the file
+    /// holds).
     pub values: BTreeMap<String, f64>,
     /// `warnings`, one per line, blank lines dropped.
     pub warnings: Vec<String>,
@@ -139,8 +132,13 @@ pub struct Summary {
 }
 
 impl Summary {
-    /// A numeric summary value.
-    pub fn get(&self, name: &str) -> Option<f64> {
+    /// A headline figure, when the file has it.
+    pub fn get(&self, figure: Figure) -> Option<f64> {
+        self.values.get(&figure.name()).copied()
+    }
+
+    /// A numeric attribute by name (for attributes the schema does not know).
+    pub fn get_named(&self, name: &str) -> Option<f64> {
         self.values.get(name).copied()
     }
 }
@@ -165,8 +163,9 @@ pub fn read_run(path: &Path) -> Result<Run, String> {
     }
     let file = File::open(path)
         .map_err(|e| format!("not a boreflux result file (cannot open it as HDF5: {e})"))?;
-    if !file.link_exists("series") || !file.link_exists("series/time") {
-        return Err("not a boreflux result file (no /series/time)".to_owned());
+    let time = format!("series/{}", Step::Time.entry().name);
+    if !file.link_exists("series") || !file.link_exists(&time) {
+        return Err(format!("not a boreflux result file (no /{time})"));
     }
     let series = read_series(&file)?;
     Ok(Run {
@@ -228,51 +227,60 @@ fn read_grid(file: &File) -> Result<Grid, String> {
 }
 
 fn read_series(file: &File) -> Result<Series, String> {
-    let time = vector(file, "series/time", "s")?;
+    let path = |step: Step| format!("series/{}", step.entry().name);
+    let time = vector(file, &path(Step::Time), Step::Time.entry().unit.symbol())?;
     let n = time.len();
-    let column = |name: &str, units: &str| -> Result<Vec<f64>, String> {
-        let path = format!("series/{name}");
-        let v = vector(file, &path, units)?;
-        same_length(&format!("/{path}"), v.len(), "/series/time", n)?;
+    let column = |step: Step| -> Result<Vec<f64>, String> {
+        let p = path(step);
+        let v = vector(file, &p, step.entry().unit.symbol())?;
+        same_length(
+            &format!("/{p}"),
+            v.len(),
+            &format!("/{}", path(Step::Time)),
+            n,
+        )?;
         Ok(v)
     };
     let mut work = Vec::new();
-    for zone in ZONES {
-        let path = format!("series/work/{zone}");
-        if file.link_exists("series/work") && file.link_exists(&path) {
-            work.push((zone, column(&format!("work/{zone}"), "J")?));
+    for zone in Zone::ALL {
+        let p = path(Step::Work(zone));
+        let group = p.rsplit_once('/').map_or("", |(g, _)| g);
+        if file.link_exists(group) && file.link_exists(&p) {
+            work.push((zone, column(Step::Work(zone))?));
         }
     }
     Ok(Series {
-        well_head: column("well_head", "m")?,
-        screen_flow: column("screen_flow", "m3/s")?,
-        face_flux: column("face_flux", "m/s")?,
-        shear_proxy: column("shear_proxy", "Pa")?,
-        cake_thickness: column("cake_thickness", "m")?,
-        skin: column("skin", "")?,
+        well_head: column(Step::WellHead)?,
+        screen_flow: column(Step::ScreenFlow)?,
+        face_flux: column(Step::FaceFlux)?,
+        shear_proxy: column(Step::ShearProxy)?,
+        cake_thickness: column(Step::CakeThickness)?,
+        skin: column(Step::Skin)?,
         work,
         time,
     })
 }
 
 fn read_cycles(file: &File) -> Result<Cycles, String> {
-    let index = vector(file, "cycles/index", "")?;
+    let index_path = format!("cycles/{CYCLE_INDEX}");
+    let index = vector(file, &index_path, "1")?;
     let n = index.len();
-    let column = |name: &str, units: &str| -> Result<Vec<f64>, String> {
-        let path = format!("cycles/{name}");
-        let v = vector(file, &path, units)?;
-        same_length(&format!("/{path}"), v.len(), "/cycles/index", n)?;
+    let column = |cycle: Cycle| -> Result<Vec<f64>, String> {
+        let e = cycle.entry();
+        let path = format!("cycles/{}", e.name);
+        let v = vector(file, &path, e.unit.symbol())?;
+        same_length(&format!("/{path}"), v.len(), &format!("/{index_path}"), n)?;
         Ok(v)
     };
     Ok(Cycles {
-        start_time: column("start_time", "s")?,
-        end_time: column("end_time", "s")?,
-        peak_outward_flux: column("peak_outward_flux", "m/s")?,
-        peak_inward_flux: column("peak_inward_flux", "m/s")?,
-        rms_face_flux: column("rms_face_flux", "m/s")?,
-        peak_shear: column("peak_shear", "Pa")?,
-        work_cake: column("work_cake", "J")?,
-        cake_removed: column("cake_removed", "m")?,
+        start_time: column(Cycle::StartTime)?,
+        end_time: column(Cycle::EndTime)?,
+        peak_outward_flux: column(Cycle::PeakOutwardFlux)?,
+        peak_inward_flux: column(Cycle::PeakInwardFlux)?,
+        rms_face_flux: column(Cycle::RmsFaceFlux)?,
+        peak_shear: column(Cycle::PeakShear)?,
+        work_cake: column(Cycle::Work(Zone::Cake))?,
+        cake_removed: column(Cycle::CakeRemoved)?,
         index,
     })
 }
@@ -338,8 +346,9 @@ fn read_summary(file: &File) -> Result<Summary, String> {
             }
             TypeDescriptor::VarLenUnicode | TypeDescriptor::VarLenAscii => {
                 let text = read_string(&attr).map_err(what)?;
-                match name.as_str() {
-                    "warnings" => {
+                // Text attributes the schema does not list are not shown.
+                match SummaryText::from_name(&name) {
+                    Some(SummaryText::Warnings) => {
                         summary.warnings = text
                             .lines()
                             .map(str::trim)
@@ -347,9 +356,11 @@ fn read_summary(file: &File) -> Result<Summary, String> {
                             .map(str::to_owned)
                             .collect();
                     }
-                    "cautions" => summary.cautions = Some(text),
-                    "efficiency_definition" => summary.efficiency_definition = Some(text),
-                    _ => {}
+                    Some(SummaryText::Cautions) => summary.cautions = Some(text),
+                    Some(SummaryText::EfficiencyDefinition) => {
+                        summary.efficiency_definition = Some(text)
+                    }
+                    None => {}
                 }
             }
             _ => {}

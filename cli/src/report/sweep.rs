@@ -9,57 +9,64 @@ use boreflux_solver::safety::CAUTION;
 
 use super::escape::esc;
 use super::figures::run_style;
-use super::format::{sig, summary_unit, Shown, NUMBER};
+use super::format::{shown_for, sig, Shown};
 use super::html::STYLE;
 use super::svg::{render, Chart, SecondAxis, Series};
 use super::ticks::Scale;
+use crate::output::schema::Figure;
 use crate::sweep::table::Table;
+use boreflux_solver::grid::Zone;
 
 /// The figures charted and tabled, with their chart titles and table headings: what a
 /// development plan is judged by.
-const KEY: [(&str, &str, &str); 9] = [
+const KEY: [(Figure, &str, &str); 9] = [
     (
-        "peak_outward_flux_m_s",
+        Figure::PeakOutwardFlux,
         "Peak outward Darcy flux at the wall",
         "Flux out",
     ),
     (
-        "peak_inward_flux_m_s",
+        Figure::PeakInwardFlux,
         "Peak inward Darcy flux at the wall",
         "Flux in",
     ),
-    ("peak_shear_pa", "Peak shear proxy at the wall", "Shear"),
+    (Figure::PeakShear, "Peak shear proxy at the wall", "Shear"),
     (
-        "cake_thickness_end_m",
+        Figure::CakeThicknessEnd,
         "Cake thickness at the end",
         "Cake end",
     ),
-    ("skin_end", "Skin at the end", "Skin end"),
+    (Figure::SkinEnd, "Skin at the end", "Skin end"),
     (
-        "efficiency_end",
+        Figure::EfficiencyEnd,
         "Well efficiency at the end",
         "Efficiency end",
     ),
-    ("work_cake_j", "Work dissipated in the cake", "Cake work"),
     (
-        "peak_slot_velocity_m_s",
+        Figure::Work(Zone::Cake),
+        "Work dissipated in the cake",
+        "Cake work",
+    ),
+    (
+        Figure::PeakSlotVelocity,
         "Peak slot velocity",
         "Slot velocity",
     ),
     (
-        "peak_collapse_pressure_pa",
+        Figure::PeakCollapsePressure,
         "Peak collapse load on screen or casing",
         "Collapse load",
     ),
 ];
 
-/// How a figure is shown: the unit of its name's suffix, plain numbers otherwise.
-fn shown(name: &str) -> Shown {
-    match name {
-        "cake_thickness_end_m" => super::format::SMALL_LENGTH,
-        "peak_slot_velocity_m_s" => super::format::SLOT_VELOCITY,
-        "peak_shear_pa" => super::format::SHEAR,
-        _ => summary_unit(name).unwrap_or(NUMBER),
+/// How a figure is shown: in the display unit of its schema unit, with finer units for the
+/// cake thickness, the slot velocity and the shear.
+fn shown(figure: Figure) -> Shown {
+    match figure {
+        Figure::CakeThicknessEnd => super::format::SMALL_LENGTH,
+        Figure::PeakSlotVelocity => super::format::SLOT_VELOCITY,
+        Figure::PeakShear => super::format::SHEAR,
+        other => shown_for(other.entry().unit),
     }
 }
 
@@ -205,8 +212,9 @@ fn charts(h: &mut String, t: &Table) {
             String::new()
         }
     );
-    for (n, (name, title, _)) in KEY.iter().enumerate() {
-        let Some(col) = t.figures.iter().position(|f| f == name) else {
+    for (n, (figure, title, _)) in KEY.iter().enumerate() {
+        let name = figure.name();
+        let Some(col) = t.figures.iter().position(|f| *f == name) else {
             continue;
         };
         let ys: Vec<Vec<f64>> = lines
@@ -216,7 +224,7 @@ fn charts(h: &mut String, t: &Table) {
         if ys.iter().flatten().all(|y| !y.is_finite()) {
             continue;
         }
-        let s = shown(name);
+        let s = shown(*figure);
         let mut c = Chart::new(
             &format!("sweep{n}"),
             title,
@@ -257,11 +265,12 @@ fn charts(h: &mut String, t: &Table) {
 fn table(h: &mut String, t: &Table) {
     let cols: Vec<(usize, &str, Shown)> = KEY
         .iter()
-        .filter_map(|(name, _, heading)| {
+        .filter_map(|(figure, _, heading)| {
+            let name = figure.name();
             t.figures
                 .iter()
-                .position(|f| f == name)
-                .map(|i| (i, *heading, shown(name)))
+                .position(|f| *f == name)
+                .map(|i| (i, *heading, shown(*figure)))
         })
         .collect();
     h.push_str(

@@ -18,6 +18,7 @@
 //! ```
 
 use crate::output::h5::H5Writer;
+use crate::output::schema::{figure_values, Figure};
 use crate::output::TempTarget;
 use crate::summary::Headline;
 use hdf5::types::{TypeDescriptor, VarLenUnicode};
@@ -65,46 +66,20 @@ pub struct Table {
     pub rows: Vec<Row>,
 }
 
-/// The headline figures of a run as (name, value): numbers, each zone's work as
-/// `work_<zone>_j`, absent optional figures as NaN. The names are those of the /summary
-/// attributes of a run file.
+/// The headline figures of a run as (name, value), in the schema's order
+/// ([`crate::output::schema::Figure::all`]); a figure that was not computed is NaN. The names
+/// are those of the /summary attributes of a run file.
 pub fn figures(h: &Headline) -> Vec<(String, f64)> {
-    let mut out = Vec::new();
-    let json = serde_json::to_value(h).unwrap_or_default();
-    if let Some(map) = json.as_object() {
-        for (k, v) in map {
-            match (k.as_str(), v) {
-                ("work_j", Value::Array(a)) => {
-                    for (z, x) in h.zones.iter().zip(a) {
-                        out.push((format!("work_{z}_j"), x.as_f64().unwrap_or(f64::NAN)));
-                    }
-                }
-                (_, Value::Number(n)) => out.push((k.clone(), n.as_f64().unwrap_or(f64::NAN))),
-                (_, Value::Null) => out.push((k.clone(), f64::NAN)),
-                _ => {}
-            }
-        }
-    }
-    out
+    figure_values(h)
+        .into_iter()
+        .map(|(f, v)| (f.name(), v.unwrap_or(f64::NAN)))
+        .collect()
 }
 
-/// Units of a figure from its name's suffix (`_m_s` → m/s, `_pa` → Pa, …); "1" for a
-/// count or ratio.
-pub fn units_of(name: &str) -> &'static str {
-    const SUFFIXES: [(&str, &str); 8] = [
-        ("_m2_s", "m2/s"),
-        ("_m3_s", "m3/s"),
-        ("_m_s", "m/s"),
-        ("_pa", "Pa"),
-        ("_j", "J"),
-        ("_s", "s"),
-        ("_m", "m"),
-        ("_m3", "m3"),
-    ];
-    SUFFIXES
-        .iter()
-        .find(|(s, _)| name.ends_with(s))
-        .map_or("1", |&(_, u)| u)
+/// The SI unit of a figure column, from the output schema; `None` for a name that is no
+/// headline figure.
+pub fn units_of(name: &str) -> Option<&'static str> {
+    Figure::from_name(name).map(|f| f.entry().unit.symbol())
 }
 
 /// CSV field: quoted when it holds a comma, quote or line break.
@@ -248,7 +223,8 @@ impl Table {
             w.write_vector(
                 &format!("/table/{name}"),
                 &v,
-                units_of(name),
+                units_of(name)
+                    .ok_or_else(|| anyhow::anyhow!("{name}: not a headline figure of boreflux"))?,
                 "headline figure of the scenario's run (as in a run file's /summary)",
             )?;
         }
@@ -335,6 +311,12 @@ impl Table {
             })?;
         let mut figures = Vec::new();
         for name in &names {
+            if units_of(name).is_none() {
+                return Err(format!(
+                    "/table figure_columns: {name} is not a headline figure of this version \
+                     of boreflux"
+                ));
+            }
             figures.push((name.clone(), f64s(&format!("table/{name}"))?));
         }
         let columns = [status.len(), warnings.len()]
@@ -452,11 +434,13 @@ mod tests {
     }
 
     #[test]
-    fn units_follow_the_name() {
-        assert_eq!(units_of("peak_outward_flux_m_s"), "m/s");
-        assert_eq!(units_of("specific_capacity_end_m2_s"), "m2/s");
-        assert_eq!(units_of("work_cake_j"), "J");
-        assert_eq!(units_of("time_to_half_cake_s"), "s");
-        assert_eq!(units_of("max_newton_iterations"), "1");
+    fn units_come_from_the_schema() {
+        // The schema's units agree with the unit suffix of each name (docs/formats.md).
+        assert_eq!(units_of("peak_outward_flux_m_s"), Some("m/s"));
+        assert_eq!(units_of("specific_capacity_end_m2_s"), Some("m2/s"));
+        assert_eq!(units_of("work_cake_j"), Some("J"));
+        assert_eq!(units_of("time_to_half_cake_s"), Some("s"));
+        assert_eq!(units_of("max_newton_iterations"), Some("1"));
+        assert_eq!(units_of("no_such_figure_m"), None);
     }
 }
