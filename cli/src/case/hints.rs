@@ -1,20 +1,9 @@
 //! "Did you mean …?" hints for misspelt keys and names, by edit distance.
 
-/// Levenshtein distance between `a` and `b`, counted in characters, letter case ignored.
+/// Levenshtein distance between `a` and `b`, counted in characters, letter case ignored
+/// (the `strsim` crate's, which clap's suggestions use too).
 pub fn edit_distance(a: &str, b: &str) -> usize {
-    let a: Vec<char> = a.to_lowercase().chars().collect();
-    let b: Vec<char> = b.to_lowercase().chars().collect();
-    let mut prev: Vec<usize> = (0..=b.len()).collect();
-    let mut cur = vec![0; b.len() + 1];
-    for (i, ca) in a.iter().enumerate() {
-        cur[0] = i + 1;
-        for (j, cb) in b.iter().enumerate() {
-            let substitute = prev[j] + usize::from(ca != cb);
-            cur[j + 1] = substitute.min(prev[j + 1] + 1).min(cur[j] + 1);
-        }
-        std::mem::swap(&mut prev, &mut cur);
-    }
-    prev[b.len()]
+    strsim::levenshtein(&a.to_lowercase(), &b.to_lowercase())
 }
 
 /// The candidate closest to `word`, if it is close enough to be a likely misspelling: at
@@ -65,6 +54,8 @@ mod tests {
         assert_eq!(edit_distance("", "abc"), 3);
         assert_eq!(edit_distance("Porosity", "porosity"), 0);
         assert_eq!(edit_distance("porosty", "porosity"), 1);
+        // Counted in characters, not bytes: one substitution of a two-byte letter.
+        assert_eq!(edit_distance("bär", "bar"), 1);
     }
 
     #[test]
