@@ -7,6 +7,7 @@ pub mod commands;
 pub mod cost;
 pub mod output;
 pub mod report;
+pub mod sigfig;
 pub mod steptest;
 pub mod summary;
 pub mod sweep;

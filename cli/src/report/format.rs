@@ -83,30 +83,10 @@ pub const FORCHHEIMER_BETA: Shown = shown(unit("s²/m²", 1.0), None);
 /// A dimensionless number.
 pub const NUMBER: Shown = shown(unit("", 1.0), None);
 
-/// `value` with about three significant digits: fixed notation from 0.001 to 10⁵,
-/// otherwise `1.23×10⁻⁵` (HTML-safe text).
+/// `value` with three significant digits: fixed notation from 0.001 to 10⁵, otherwise
+/// `1.23×10⁻⁵` (HTML-safe text; [`crate::sigfig`]).
 pub fn sig(value: f64) -> String {
-    if !value.is_finite() {
-        return if value.is_nan() {
-            "n/a".to_owned()
-        } else if value > 0.0 {
-            "∞".to_owned()
-        } else {
-            "−∞".to_owned()
-        };
-    }
-    if value == 0.0 {
-        return "0".to_owned();
-    }
-    let mag = value.abs().log10().floor() as i32;
-    if (-3..5).contains(&mag) {
-        let decimals = (2 - mag).max(0) as usize;
-        format!("{value:.decimals$}")
-    } else {
-        let s = format!("{value:.2e}");
-        let (mantissa, exp) = s.split_once('e').expect("exponent format");
-        format!("{mantissa}×10{}", superscript(exp))
-    }
+    crate::sigfig::html(value, 3)
 }
 
 /// A whole number, e.g. a count of cells or steps.
