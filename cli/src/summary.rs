@@ -24,22 +24,12 @@ ideal formation drawdown over actual drawdown at the screen, screen losses exclu
 model's outer radius (Thiem with Hawkins skin)";
 
 /// A number shown with N significant digits: fixed notation between 1e-3 and 1e5,
-/// scientific outside.
+/// scientific outside ([`crate::sigfig`]).
 pub struct G(pub f64, pub usize);
 
 impl std::fmt::Display for G {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
-        let (x, n) = (self.0, self.1.max(1));
-        if x == 0.0 || !x.is_finite() {
-            return write!(f, "{x}");
-        }
-        let mag = x.abs().log10().floor() as i32;
-        if (-3..5).contains(&mag) {
-            let decimals = (n as i32 - 1 - mag).max(0) as usize;
-            write!(f, "{x:.decimals$}")
-        } else {
-            write!(f, "{x:.prec$e}", prec = n - 1)
-        }
+        f.write_str(&crate::sigfig::text(self.0, self.1))
     }
 }
 
