@@ -82,33 +82,22 @@ pub fn units_of(name: &str) -> Option<&'static str> {
     Figure::from_name(name).map(|f| f.entry().unit.symbol())
 }
 
-/// CSV field: quoted when it holds a comma, quote or line break.
-fn csv_field(s: &str) -> String {
-    // A text cell that a spreadsheet would run as a formula gets a leading apostrophe;
-    // numbers (-1.5, +3) stay numbers.
-    let guarded;
-    let s = if s.starts_with(['=', '+', '-', '@', '\t', '\r']) && s.trim().parse::<f64>().is_err() {
-        guarded = format!("'{s}");
-        guarded.as_str()
-    } else {
-        s
-    };
-    if s.contains([',', '"', '\n', '\r']) {
-        format!("\"{}\"", s.replace('"', "\"\""))
+/// A text field, guarded: a text cell that a spreadsheet would run as a formula gets a
+/// leading apostrophe; numbers (-1.5, +3) stay numbers. Quoting is the `csv` writer's.
+fn text_field(s: &str) -> String {
+    if s.starts_with(['=', '+', '-', '@', '\t', '\r']) && s.trim().parse::<f64>().is_err() {
+        format!("'{s}")
     } else {
         s.to_owned()
     }
 }
 
-/// CSV number: empty for NaN, whole numbers as integers, others in full precision.
-fn csv_number(x: f64) -> String {
-    if x.is_nan() {
-        String::new()
-    } else if x.fract() == 0.0 && x.abs() < 1e15 {
-        format!("{}", x as i64)
-    } else {
-        format!("{x:e}")
-    }
+/// A number field in the convention of every boreflux CSV (`output::csv`): shortest form
+/// that reads back to the same value, NaN as an empty field.
+fn number_field(x: f64) -> String {
+    let mut out = String::new();
+    crate::output::csv::push_number(&mut out, x);
+    out
 }
 
 /// Most rows read from a sweep table: ten million scenarios. A crafted file declaring more
@@ -118,27 +107,25 @@ pub const MAX_ROWS: usize = 10_000_000;
 impl Table {
     /// The CSV text.
     pub fn csv(&self) -> String {
+        let mut w = csv::WriterBuilder::new()
+            .terminator(csv::Terminator::Any(b'\n'))
+            .from_writer(Vec::new());
         let mut header = vec!["scenario".to_owned(), "status".to_owned()];
         header.extend(self.paths.iter().cloned());
         header.extend(self.paths.iter().map(|p| format!("{p}_value")));
         header.extend(self.figures.iter().cloned());
         header.push("warnings".to_owned());
-        let mut out = header
-            .iter()
-            .map(|h| csv_field(h))
-            .collect::<Vec<_>>()
-            .join(",");
-        out.push('\n');
+        // Writing into memory cannot fail.
+        let _ = w.write_record(header.iter().map(|h| text_field(h)));
         for r in &self.rows {
-            let mut f = vec![r.scenario.to_string(), csv_field(&r.status)];
-            f.extend(r.labels.iter().map(|l| csv_field(l)));
-            f.extend(r.si.iter().map(|&x| csv_number(x)));
-            f.extend(r.figures.iter().map(|&x| csv_number(x)));
-            f.push(csv_field(&r.warnings.replace('\n', "; ")));
-            out.push_str(&f.join(","));
-            out.push('\n');
+            let mut f = vec![r.scenario.to_string(), text_field(&r.status)];
+            f.extend(r.labels.iter().map(|l| text_field(l)));
+            f.extend(r.si.iter().map(|&x| number_field(x)));
+            f.extend(r.figures.iter().map(|&x| number_field(x)));
+            f.push(text_field(&r.warnings.replace('\n', "; ")));
+            let _ = w.write_record(&f);
         }
-        out
+        String::from_utf8(w.into_inner().unwrap_or_default()).unwrap_or_default()
     }
 
     /// Writes `<stem>.csv` and `<stem>.h5`, each through a temporary file renamed when
@@ -396,26 +383,35 @@ mod tests {
         );
         assert_eq!(
             lines[1],
-            "0,ok,0.3 m,3e-1,1.5e-3,1200,\"first, with a comma; second\""
+            "0,ok,0.3 m,0.3,0.0015,1200,\"first, with a comma; second\""
         );
         assert_eq!(
             lines[2],
-            "1,\"simulation failed: \"\"Newton\"\"\",0.6 m,6e-1,,,"
+            "1,\"simulation failed: \"\"Newton\"\"\",0.6 m,0.6,,,"
         );
     }
 
     #[test]
     fn csv_text_cells_cannot_run_as_formulas() {
         // The injection characters of the OWASP "CSV Injection" page: = + - @ tab CR.
-        assert_eq!(csv_field("=HYPERLINK(\"x\")"), "\"'=HYPERLINK(\"\"x\"\")\"");
-        assert_eq!(csv_field("+cmd"), "'+cmd");
-        assert_eq!(csv_field("-2+3"), "'-2+3");
-        assert_eq!(csv_field("@SUM(A1)"), "'@SUM(A1)");
-        assert_eq!(csv_field("-1.5 m"), "'-1.5 m");
-        assert_eq!(csv_field("-1.5"), "-1.5");
-        assert_eq!(csv_field("+3e-2"), "+3e-2");
-        assert_eq!(csv_field("0.3 m"), "0.3 m");
-        assert_eq!(csv_number(-1.5), "-1.5e0");
+        assert_eq!(text_field("=HYPERLINK(\"x\")"), "'=HYPERLINK(\"x\")");
+        assert_eq!(text_field("+cmd"), "'+cmd");
+        assert_eq!(text_field("-2+3"), "'-2+3");
+        assert_eq!(text_field("@SUM(A1)"), "'@SUM(A1)");
+        assert_eq!(text_field("-1.5 m"), "'-1.5 m");
+        assert_eq!(text_field("-1.5"), "-1.5");
+        assert_eq!(text_field("+3e-2"), "+3e-2");
+        assert_eq!(text_field("0.3 m"), "0.3 m");
+        assert_eq!(number_field(-1.5), "-1.5");
+        assert_eq!(number_field(f64::NAN), "");
+        // Quoting by the csv writer (RFC 4180 §2, rules 6 and 7).
+        let mut t = table();
+        t.rows[0].status = "=HYPERLINK(\"x\")".to_owned();
+        let text = t.csv();
+        assert_eq!(
+            text.lines().nth(1).unwrap().split_once(',').unwrap().1,
+            "\"'=HYPERLINK(\"\"x\"\")\",0.3 m,0.3,0.0015,1200,\"first, with a comma; second\""
+        );
     }
 
     #[test]
