@@ -6,6 +6,7 @@ pub mod case;
 pub mod commands;
 pub mod cost;
 pub mod output;
+pub mod read_error;
 pub mod report;
 pub mod sigfig;
 pub mod steptest;

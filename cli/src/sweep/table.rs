@@ -20,6 +20,7 @@
 use crate::output::h5::H5Writer;
 use crate::output::schema::{figure_values, Figure};
 use crate::output::TempTarget;
+use crate::read_error::{FileKind, ReadError};
 use crate::summary::Headline;
 use hdf5::types::{TypeDescriptor, VarLenUnicode};
 use hdf5::File;
@@ -219,33 +220,42 @@ impl Table {
     }
 
     /// Reads a table written by [`Table::write`] (at most [`MAX_ROWS`] rows). The error text does not repeat the path.
-    pub fn read(path: &Path) -> Result<Table, String> {
-        let file = File::open(path).map_err(|e| format!("cannot open it as HDF5: {e}"))?;
-        let attr = |name: &str| -> Result<String, String> {
-            let a = file
-                .attr(name)
-                .map_err(|_| format!("not a boreflux sweep table (no `{name}` attribute)"))?;
+    pub fn read(path: &Path) -> Result<Table, ReadError> {
+        if !path.exists() {
+            return Err(ReadError::Missing);
+        }
+        let kind = FileKind::SweepTable;
+        let file = File::open(path).map_err(|source| ReadError::NotHdf5 { kind, source })?;
+        let attr = |name: &str| -> Result<String, ReadError> {
+            let a = file.attr(name).map_err(|_| ReadError::NotOurs {
+                kind,
+                lacks: format!("no `{name}` attribute"),
+            })?;
+            let object = format!("attribute {name}");
             match a.dtype().and_then(|t| t.to_descriptor()) {
                 Ok(TypeDescriptor::VarLenUnicode) => a
                     .read_scalar::<VarLenUnicode>()
                     .map(|s| s.as_str().to_owned())
-                    .map_err(|e| format!("attribute {name}: {e}")),
+                    .map_err(ReadError::hdf5(object)),
                 Ok(TypeDescriptor::Float(_)) => a
                     .read_scalar::<f64>()
                     .map(|x| x.to_string())
-                    .map_err(|e| format!("attribute {name}: {e}")),
-                _ => Err(format!("attribute {name}: unexpected type")),
+                    .map_err(ReadError::hdf5(object)),
+                _ => Err(ReadError::invalid(object, "unexpected type")),
             }
         };
         if attr("kind")? != "sweep" {
-            return Err("not a boreflux sweep table (kind is not \"sweep\")".into());
+            return Err(ReadError::NotOurs {
+                kind,
+                lacks: "kind is not \"sweep\"".to_owned(),
+            });
         }
         let total: f64 = attr("scenarios_total")?
             .parse()
-            .map_err(|_| "scenarios_total is not a number".to_owned())?;
+            .map_err(|_| ReadError::invalid("attribute scenarios_total", "not a number"))?;
         let vary_json = attr("vary_json")?;
-        let vary: Value =
-            serde_json::from_str(&vary_json).map_err(|e| format!("vary_json: {e}"))?;
+        let vary: Value = serde_json::from_str(&vary_json)
+            .map_err(|e| ReadError::invalid("attribute vary_json", e.to_string()))?;
         let paths: Vec<String> = vary
             .as_array()
             .map(|a| {
@@ -254,30 +264,34 @@ impl Table {
                     .collect()
             })
             .unwrap_or_default();
-        let dataset = |name: &str| -> Result<hdf5::Dataset, String> {
-            let d = file.dataset(name).map_err(|e| format!("/{name}: {e}"))?;
+        let dataset = |name: &str| -> Result<hdf5::Dataset, ReadError> {
+            let d = file
+                .dataset(name)
+                .map_err(ReadError::hdf5(format!("/{name}")))?;
             if d.size() > MAX_ROWS {
-                return Err(format!(
-                    "/{name}: declares {} values, more than a sweep table holds ({MAX_ROWS})",
-                    d.size()
-                ));
+                return Err(ReadError::TooLarge {
+                    object: format!("/{name}"),
+                    values: d.size(),
+                    max: MAX_ROWS,
+                    kind,
+                });
             }
             Ok(d)
         };
-        let f64s = |name: &str| -> Result<Vec<f64>, String> {
+        let f64s = |name: &str| -> Result<Vec<f64>, ReadError> {
             dataset(name)?
                 .read_raw::<f64>()
-                .map_err(|e| format!("/{name}: {e}"))
+                .map_err(ReadError::hdf5(format!("/{name}")))
         };
-        let texts = |name: &str| -> Result<Vec<String>, String> {
+        let texts = |name: &str| -> Result<Vec<String>, ReadError> {
             dataset(name)?
                 .read_raw::<VarLenUnicode>()
                 .map(|v| v.iter().map(|s| s.as_str().to_owned()).collect())
-                .map_err(|e| format!("/{name}: {e}"))
+                .map_err(ReadError::hdf5(format!("/{name}")))
         };
         let index: Vec<u64> = dataset("table/scenario")?
             .read_raw::<u64>()
-            .map_err(|e| format!("/table/scenario: {e}"))?;
+            .map_err(ReadError::hdf5("/table/scenario"))?;
         let n = index.len();
         let status = texts("table/status")?;
         let warnings = texts("table/warnings")?;
@@ -292,16 +306,17 @@ impl Table {
             .group("table")
             .and_then(|g| g.attr("figure_columns"))
             .and_then(|a| a.read_scalar::<VarLenUnicode>())
-            .map_err(|e| format!("/table figure_columns: {e}"))
+            .map_err(ReadError::hdf5("/table figure_columns"))
             .and_then(|t| {
-                serde_json::from_str(t.as_str()).map_err(|e| format!("/table figure_columns: {e}"))
+                serde_json::from_str(t.as_str())
+                    .map_err(|e| ReadError::invalid("/table figure_columns", e.to_string()))
             })?;
         let mut figures = Vec::new();
         for name in &names {
             if units_of(name).is_none() {
-                return Err(format!(
-                    "/table figure_columns: {name} is not a headline figure of this version \
-                     of boreflux"
+                return Err(ReadError::invalid(
+                    "/table figure_columns",
+                    format!("{name} is not a headline figure of this version of boreflux"),
                 ));
             }
             figures.push((name.clone(), f64s(&format!("table/{name}"))?));
@@ -312,8 +327,9 @@ impl Table {
             .chain(si.iter().map(Vec::len))
             .chain(figures.iter().map(|f| f.1.len()));
         if let Some(bad) = columns.into_iter().find(|&l| l != n) {
-            return Err(format!(
-                "/table columns differ in length ({bad} against {n} scenarios)"
+            return Err(ReadError::invalid(
+                "/table",
+                format!("columns differ in length ({bad} against {n} scenarios)"),
             ));
         }
         let rows = (0..n)
