@@ -150,6 +150,80 @@ impl ReadError {
     }
 }
 
+/// Why a text input (a case file, a table drive's CSV) could not be read: the file itself,
+/// before any of its content is parsed. The message never quotes the content.
+#[derive(Debug, thiserror::Error)]
+pub enum TextReadError {
+    /// The operating system refused or failed (missing, no permission, I/O error).
+    #[error("cannot read {what} {path}: {source}")]
+    Io {
+        /// What the file is (`case file`).
+        what: &'static str,
+        /// The path as given.
+        path: String,
+        /// The error.
+        #[source]
+        source: std::io::Error,
+    },
+    /// A folder, device or pipe (which could block or never end).
+    #[error("cannot read {what} {path}: not a regular file (a folder, device or pipe)")]
+    NotRegular {
+        /// What the file is.
+        what: &'static str,
+        /// The path as given.
+        path: String,
+    },
+    /// Larger than the reader takes.
+    #[error("{what} {path} is {size} bytes, more than the {max} bytes read")]
+    TooLarge {
+        /// What the file is.
+        what: &'static str,
+        /// The path as given.
+        path: String,
+        /// Its size.
+        size: u64,
+        /// The limit.
+        max: u64,
+    },
+    /// It grew past the limit while being read.
+    #[error("{what} {path} grew beyond {max} bytes while read")]
+    Grew {
+        /// What the file is.
+        what: &'static str,
+        /// The path as given.
+        path: String,
+        /// The limit.
+        max: u64,
+    },
+    /// Not UTF-8.
+    #[error("cannot read {what} {path}: not UTF-8 text (invalid byte at offset {offset})")]
+    NotUtf8 {
+        /// What the file is.
+        what: &'static str,
+        /// The path as given.
+        path: String,
+        /// Offset of the first invalid byte.
+        offset: usize,
+    },
+}
+
+impl TextReadError {
+    /// The exit code (docs/formats.md, "Exit codes"): bad input, 2, except an I/O failure
+    /// other than a missing file or a refused permission, which is a runtime failure, 1.
+    pub fn exit_code(&self) -> u8 {
+        match self {
+            TextReadError::Io { source, .. } => match source.kind() {
+                std::io::ErrorKind::NotFound | std::io::ErrorKind::PermissionDenied => 2,
+                _ => 1,
+            },
+            TextReadError::NotRegular { .. }
+            | TextReadError::TooLarge { .. }
+            | TextReadError::Grew { .. }
+            | TextReadError::NotUtf8 { .. } => 2,
+        }
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

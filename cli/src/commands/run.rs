@@ -231,7 +231,7 @@ pub(super) fn refuse_overwriting_inputs(
         .filter(|p| !p.as_os_str().is_empty())
         .unwrap_or(Path::new("."));
     let text = crate::case::read_limited(case, crate::case::MAX_CASE_BYTES, "case file")
-        .map_err(|e| anyhow!(e))?;
+        .map_err(|e| anyhow!("{e}"))?;
     let value: Value =
         crate::case::read_json(&text).map_err(|e| anyhow!("{}: {e}", case.display()))?;
     let mut inputs = vec![(case.to_path_buf(), "the case file itself".to_owned())];

@@ -100,7 +100,7 @@ pub(super) fn overview(t: &Table) -> String {
 /// Runs the command.
 pub fn sweep(a: &SweepArgs) -> Result<(), Failure> {
     let text = crate::case::read_limited(&a.case, crate::case::MAX_CASE_BYTES, "case file")
-        .map_err(|e| Failure::Input(anyhow!(e)))?;
+        .map_err(|e| Failure::with_code(e.exit_code(), e))?;
     let base: Value = crate::case::read_case_json(&text)
         .map_err(|e| Failure::Input(anyhow!("{}: {e}", a.case.display())))?;
     let variables = a

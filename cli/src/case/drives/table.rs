@@ -48,7 +48,7 @@ pub fn table(map: Map<String, Value>, ctx: &DriveContext<'_>) -> Result<ParsedDr
         (Some(file), None) => {
             let path = ctx.base_dir.join(file);
             let text = crate::case::read_limited(&path, MAX_TABLE_BYTES, "table file")
-                .map_err(|m| CaseError::new("drive.file", m))?;
+                .map_err(|e| CaseError::new("drive.file", e.to_string()))?;
             let rows = read_csv(&text)
                 .map_err(|m| CaseError::new("drive.file", format!("{file}: {m}")))?;
             ("drive.file", rows, format!("file {file}"))
