@@ -27,12 +27,6 @@ pub fn closest<'a>(word: &str, candidates: &[&'a str]) -> Option<&'a str> {
     }
 }
 
-/// Names between backticks in a serde message: "unknown field `x`, expected `a` or `b`"
-/// gives `["x", "a", "b"]`.
-pub fn backticked(message: &str) -> Vec<&str> {
-    message.split('`').skip(1).step_by(2).collect()
-}
-
 /// `did you mean `x`?` for `word` among `candidates`, or the list of candidates when none
 /// is close.
 pub fn suggestion(word: &str, candidates: &[&str]) -> String {
@@ -66,13 +60,5 @@ mod tests {
         assert_eq!(closest("d5", &keys), Some("d50"));
         assert_eq!(closest("cond", &keys), Some("conductivity"));
         assert_eq!(closest("zzzzzz", &keys), None);
-    }
-
-    #[test]
-    fn backticked_works() {
-        assert_eq!(
-            backticked("unknown field `x`, expected `a` or `b`"),
-            ["x", "a", "b"]
-        );
     }
 }

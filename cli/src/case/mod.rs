@@ -23,6 +23,7 @@ mod raw;
 mod scenarios;
 mod schema;
 mod strict;
+mod structured;
 mod zones;
 
 pub use error::CaseError;
@@ -161,7 +162,7 @@ pub fn load_case(path: &Path) -> Result<LoadedCase, CaseError> {
 /// Converts and checks case-file text; `base_dir` resolves relative drive files.
 pub fn parse_case(text: &str, base_dir: &Path) -> Result<LoadedCase, CaseError> {
     let value = read_case_json(text)?;
-    let raw: raw::RawCase =
-        serde_path_to_error::deserialize(value).map_err(|e| CaseError::structure(e, ""))?;
+    let raw: raw::RawCase = serde_path_to_error::deserialize(structured::ValueDeserializer(value))
+        .map_err(|e| CaseError::structure(e, ""))?;
     convert::convert(raw, base_dir)
 }
