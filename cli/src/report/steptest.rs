@@ -178,7 +178,7 @@ pub fn page(o: &Outcome, source: &str) -> String {
             let _ = writeln!(
                 h,
                 "<tr><th>power law s = B Q + C Qⁿ</th><td colspan=\"4\">not fitted: {}</td></tr>",
-                esc(e)
+                esc(&e.to_string())
             );
         }
         Some(Ok(p)) => {

@@ -198,7 +198,7 @@ pub fn to_json(o: &Outcome) -> Value {
     });
     match &o.power {
         None => {}
-        Some(Err(e)) => v["power"] = json!({ "error": e }),
+        Some(Err(e)) => v["power"] = json!({ "error": e.to_string() }),
         Some(Ok(p)) => {
             v["power"] = json!({
                 "law": "s = B Q + C Q^n",
