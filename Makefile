@@ -1,12 +1,13 @@
 # boreflux: common tasks. `make demo` runs the example case and writes a report;
-# `make test` runs the whole test suite (what CI runs).
+# `make test` runs what a reviewer checks (format, lints, docs, minimum Rust version) and then
+# the whole test suite; CI runs `make test`.
 
 CARGO   ?= cargo
 BIN     := target/release/boreflux
 DEMO    := cases/municipal-sand-gravel.json
 OUT     := out
 
-.PHONY: all help setup build demo test bench fmt lint clean
+.PHONY: all help setup build demo test check-fmt doc msrv bench fmt lint clean
 
 all: build
 
@@ -32,9 +33,21 @@ demo: build
 	@echo "  results (HDF5): $(OUT)/demo.h5"
 	@echo "  report (HTML):  $(OUT)/demo-report.html"
 
-## test: run every test of the workspace in release mode
-test: setup
+## test: format, lints, docs and the minimum Rust version checked, then every test in release mode
+test: setup check-fmt lint doc msrv
 	$(CARGO) test --workspace --release
+
+## check-fmt: fail when a file is not formatted as `cargo fmt` would
+check-fmt:
+	$(CARGO) fmt --all --check
+
+## doc: API documentation of the workspace, warnings are errors
+doc: setup
+	RUSTDOCFLAGS="-D warnings" $(CARGO) doc --workspace --no-deps --release
+
+## msrv: compile with the minimum supported Rust version (Debian's Rust 1.85.0; scripts/msrv-check.sh)
+msrv: setup
+	@bash scripts/msrv-check.sh
 
 ## bench: run the benchmarks
 bench: setup
@@ -46,7 +59,7 @@ fmt:
 
 ## lint: clippy on every target, warnings are errors
 lint: setup
-	$(CARGO) clippy --workspace --all-targets -- -D warnings
+	$(CARGO) clippy --workspace --all-targets --release -- -D warnings
 
 ## clean: remove build products and demo outputs
 clean:

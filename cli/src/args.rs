@@ -63,9 +63,11 @@ pub enum Command {
         after_help = "Examples:\n  boreflux new > my-case.json\n  boreflux new --scenario domestic-fine-sand-pvc > domestic.json\n  boreflux new --list"
     )]
     New(NewArgs),
-    /// Print the JSON Schema of the case file.
-    #[command(after_help = "Example:\n  boreflux schema > boreflux.schema.json")]
-    Schema,
+    /// Print the JSON Schema of the case file, or with --outputs the table of every output.
+    #[command(
+        after_help = "Examples:\n  boreflux schema > boreflux.schema.json\n  boreflux schema --outputs   # name, unit, description, how computed, where"
+    )]
+    Schema(SchemaArgs),
     /// Print shell completions.
     #[command(
         after_help = "Example:\n  boreflux completions bash > ~/.local/share/bash-completion/completions/boreflux"
@@ -290,4 +292,13 @@ mod tests {
     fn cli_definition_is_consistent() {
         Cli::command().debug_assert();
     }
+}
+
+/// Arguments of `schema`.
+#[derive(Debug, clap::Args)]
+pub struct SchemaArgs {
+    /// Print the output schema (every series, cycle value and summary figure a run writes)
+    /// as Markdown tables instead of the case file's JSON Schema.
+    #[arg(long)]
+    pub outputs: bool,
 }

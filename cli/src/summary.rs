@@ -28,22 +28,12 @@ as it stands, both read at the end of the virtual constant-rate test at the desi
 same test";
 
 /// A number shown with N significant digits: fixed notation between 1e-3 and 1e5,
-/// scientific outside.
+/// scientific outside ([`crate::sigfig`]).
 pub struct G(pub f64, pub usize);
 
 impl std::fmt::Display for G {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
-        let (x, n) = (self.0, self.1.max(1));
-        if x == 0.0 || !x.is_finite() {
-            return write!(f, "{x}");
-        }
-        let mag = x.abs().log10().floor() as i32;
-        if (-3..5).contains(&mag) {
-            let decimals = (n as i32 - 1 - mag).max(0) as usize;
-            write!(f, "{x:.decimals$}")
-        } else {
-            write!(f, "{x:.prec$e}", prec = n - 1)
-        }
+        f.write_str(&crate::sigfig::text(self.0, self.1))
     }
 }
 
@@ -120,6 +110,8 @@ pub struct Headline {
     pub peak_inward_pore_velocity_m_s: f64,
     /// RMS face flux, m/s.
     pub rms_face_flux_m_s: f64,
+    /// Largest flow through the screen (magnitude), m³/s.
+    pub peak_screen_flow_m3_s: f64,
     /// Largest shear proxy at the wall, Pa.
     pub peak_shear_pa: f64,
     /// Work dissipated per zone, J.
@@ -380,10 +372,13 @@ fn collapse_cause(drive: &boreflux_solver::Drive, s: &RunSummary) -> String {
                     Drive::Swab(_) => Some("swab"),
                     Drive::PumpBackwash(_) | Drive::ConstantRate { .. } => Some("pump"),
                     Drive::JetPulse(_) => Some("jet"),
-                    _ => None,
+                    Drive::SineHead(_)
+                    | Drive::Slug { .. }
+                    | Drive::Table(_)
+                    | Drive::Schedule(_) => None,
                 })
                 .collect(),
-            _ => vec![],
+            Drive::SineHead(_) | Drive::Slug { .. } => vec![],
         }
     };
     let mut k = kinds(drive);
@@ -433,10 +428,23 @@ fn pump_warnings(
             .iter()
             .filter_map(|x| match &x.drive {
                 Drive::PumpBackwash(p) => Some(*p),
-                _ => None,
+                Drive::SineHead(_)
+                | Drive::ConstantRate { .. }
+                | Drive::Slug { .. }
+                | Drive::Table(_)
+                | Drive::SurgeBlock(_)
+                | Drive::Swab(_)
+                | Drive::JetPulse(_)
+                | Drive::Schedule(_) => None,
             })
             .collect(),
-        _ => vec![],
+        Drive::SineHead(_)
+        | Drive::ConstantRate { .. }
+        | Drive::Slug { .. }
+        | Drive::Table(_)
+        | Drive::SurgeBlock(_)
+        | Drive::Swab(_)
+        | Drive::JetPulse(_) => vec![],
     };
     let mut out = Vec::new();
     for p in pumps {
@@ -676,6 +684,7 @@ pub fn headline(
         peak_outward_pore_velocity_m_s: s.peak_outward_flux_m_s / n_pack,
         peak_inward_pore_velocity_m_s: s.peak_inward_flux_m_s / n_pack,
         rms_face_flux_m_s: s.rms_face_flux_m_s,
+        peak_screen_flow_m3_s: s.peak_screen_flow_m3_s,
         peak_shear_pa: s.peak_shear_pa,
         work_j: s.work_j,
         zones: Zone::ALL.map(Zone::name),

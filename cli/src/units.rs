@@ -33,7 +33,9 @@ pub const IN_M: f64 = 0.0254;
 pub const FT_M: f64 = 0.3048;
 /// Cubic metres per US gallon (231 in³, exact by definition, NIST SP 811).
 pub const US_GAL_M3: f64 = 3.785_411_784e-3;
-const LBF_N: f64 = 0.453_592_37 * GRAVITY_M_S2;
+/// Kilograms per avoirdupois pound (exact by definition, NIST SP 811).
+pub const LB_KG: f64 = 0.453_592_37;
+const LBF_N: f64 = LB_KG * GRAVITY_M_S2;
 /// Pascals per psi (pound-force per square inch, exact by definition, NIST SP 811).
 pub const PSI_PA: f64 = LBF_N / (IN_M * IN_M);
 const MIN_S: f64 = 60.0;
@@ -44,29 +46,29 @@ const CELSIUS_ZERO_K: f64 = 273.15;
 /// The physical kind of a case-file value, which fixes its SI unit and accepted units.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum Quantity {
-    /// Length or radius [m].
+    /// Length or radius, in m.
     Length,
-    /// Time or duration [s].
+    /// Time or duration, in s.
     Time,
-    /// Frequency, stroke or rotation rate [Hz].
+    /// Frequency, stroke or rotation rate, in Hz.
     Frequency,
-    /// Hydraulic conductivity [m/s].
+    /// Hydraulic conductivity, in m/s.
     Conductivity,
-    /// Volumetric flow rate [m³/s].
+    /// Volumetric flow rate, in m³/s.
     FlowRate,
-    /// Pressure [Pa].
+    /// Pressure, in Pa.
     Pressure,
-    /// Hydraulic head [m]; a pressure is converted with ρ g (see [`parse_head`]).
+    /// Hydraulic head, in m; a pressure is converted with ρ g (see [`parse_head`]).
     Head,
-    /// Specific storage [1/m].
+    /// Specific storage, in 1/m.
     SpecificStorage,
-    /// Absolute temperature [K]; a bare number is kelvin.
+    /// Absolute temperature, in K; a bare number is kelvin.
     Temperature,
-    /// Velocity [m/s].
+    /// Velocity, in m/s.
     Velocity,
-    /// Area [m²].
+    /// Area, in m².
     Area,
-    /// Volume [m³].
+    /// Volume, in m³.
     Volume,
     /// Pure number; `"12 %"` is accepted as 0.12.
     Dimensionless,
@@ -393,7 +395,7 @@ pub fn parse_quantity(value: &Value, q: Quantity) -> Result<f64, UnitError> {
     parse_with_density(value, q, DEFAULT_WATER_DENSITY_KG_M3)
 }
 
-/// Reads a head [m]: a length, or a pressure converted with the water density `rho_kg_m3`.
+/// Reads a head (m): a length, or a pressure converted with the water density `rho_kg_m3`.
 ///
 /// ```text
 /// h = p / (ρ g)        h [m], p [Pa], ρ [kg/m³], g = 9.80665 m/s²

@@ -243,6 +243,7 @@ fn write_run(path: &Path, spec: &Spec) {
             ("outer_radius_m", 10.0),
             ("end_time_s", 1_000.0),
             ("mystery_volume_m3", 2.0),
+            ("peak_in_well_drawdown_m", 1.5),
         ] {
             set_f64(&s, name, v);
         }
@@ -370,8 +371,12 @@ fn report_has_figures_cautions_units_and_escaped_text() {
         .contains(r#"<td class="flag">0.0450 m/s (0.148 ft/s): 1.48 × the rule, above it</td>"#));
     // Efficiency shown as a fraction and in per cent.
     assert!(html.contains("0.600 → 0.900 (60.0 % → 90.0 %)"));
-    // Unknown summary values are listed with the unit of their suffix.
-    assert!(html.contains("<code>mystery_volume_m3</code></th><td>2.00 m³ (528 US gal)</td>"));
+    // A summary value the output schema does not know is listed by its name as a bare
+    // number: its unit is not guessed from the name.
+    assert!(html.contains("<code>mystery_volume_m3</code></th><td>2.00</td>"));
+    // A schema figure the headline table does not show is listed with its schema unit:
+    // 1.5 m / 0.3048 m/ft = 4.92 ft (NIST SP 811, 2008, Appendix B).
+    assert!(html.contains("<code>peak_in_well_drawdown_m</code></th><td>1.50 m (4.92 ft)</td>"));
     // Inputs from case_json, escaped, with units.
     assert!(html.contains("pvc &lt;DR 21&gt;"));
     assert!(html.contains("1.60 mm (0.0630 in)"));

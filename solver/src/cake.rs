@@ -38,8 +38,16 @@
 //! erodibility (m/(s·Pa)). It is integrated explicitly once per time step.
 
 use crate::model::{Cake, Model};
-use crate::system::CakeState;
 use std::f64::consts::PI;
+
+/// Current state of the wall cake (it may erode during a run).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct CakeState {
+    /// Thickness δ_c, m.
+    pub thickness_m: f64,
+    /// Covered fraction of the borehole face, –.
+    pub coverage: f64,
+}
 
 /// Interface resistance of the cake in state `st`, s/m².
 ///

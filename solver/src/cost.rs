@@ -11,7 +11,7 @@
 //! of length L takes at most `1/(r−1) + ln(L (r−1)/d₀)/ln r + 1` steps. Periodic drives are
 //! walked over one period and the count multiplied by the number of periods. Under the
 //! adaptive scheme (the default) that count is multiplied by an allowance
-//! ([`ADAPTIVE_FACTOR`]) for its restarts and refinements: measured, not a proof.
+//! (`ADAPTIVE_FACTOR`) for its restarts and refinements: measured, not a proof.
 
 use crate::drive::Drive;
 use crate::model::{Model, Scheme, TimeSpec};
@@ -112,7 +112,15 @@ fn segment(model: &Model, d: &Drive, duration: f64) -> f64 {
     let periodic = match d {
         Drive::Swab(s) if s.strokes > 0 => duration.min(s.strokes as f64 * p),
         Drive::PumpBackwash(b) if b.cycles > 0 => duration.min(b.cycles as f64 * p),
-        _ => duration,
+        Drive::Swab(_)
+        | Drive::PumpBackwash(_)
+        | Drive::SineHead(_)
+        | Drive::ConstantRate { .. }
+        | Drive::Slug { .. }
+        | Drive::Table(_)
+        | Drive::SurgeBlock(_)
+        | Drive::JetPulse(_)
+        | Drive::Schedule(_) => duration,
     };
     let per_period = walk(model, d, p.min(periodic), mode(model, Some(p)));
     let mut steps = per_period * (periodic / p).ceil();

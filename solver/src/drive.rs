@@ -226,8 +226,18 @@ impl Drive {
     pub fn control_at(&self, t: f64) -> Control {
         match self.stage_at(t).0 {
             Drive::SineHead(_) => Control::Head,
-            Drive::Table(t) if t.quantity == TableQuantity::Head => Control::Head,
-            _ => Control::Flow,
+            Drive::Table(t) => match t.quantity {
+                TableQuantity::Head => Control::Head,
+                TableQuantity::PumpingRate => Control::Flow,
+            },
+            Drive::ConstantRate { .. }
+            | Drive::Slug { .. }
+            | Drive::SurgeBlock(_)
+            | Drive::Swab(_)
+            | Drive::PumpBackwash(_)
+            | Drive::JetPulse(_) => Control::Flow,
+            // `stage_at` never returns a schedule: stages are not schedules (validated).
+            Drive::Schedule(_) => Control::Flow,
         }
     }
 
@@ -244,8 +254,17 @@ impl Drive {
                 };
                 s.offset_m + ramp * s.amplitude_m * (2.0 * PI * s.frequency_hz * t).sin()
             }
-            Drive::Table(tab) if tab.quantity == TableQuantity::Head => tab.value_at(t),
-            _ => 0.0,
+            Drive::Table(tab) => match tab.quantity {
+                TableQuantity::Head => tab.value_at(t),
+                TableQuantity::PumpingRate => 0.0,
+            },
+            Drive::ConstantRate { .. }
+            | Drive::Slug { .. }
+            | Drive::SurgeBlock(_)
+            | Drive::Swab(_)
+            | Drive::PumpBackwash(_)
+            | Drive::JetPulse(_)
+            | Drive::Schedule(_) => 0.0,
         }
     }
 
@@ -259,9 +278,10 @@ impl Drive {
         };
         match d {
             Drive::ConstantRate { pumping_rate_m3_s } => displacement(-pumping_rate_m3_s),
-            Drive::Table(tab) if tab.quantity == TableQuantity::PumpingRate => {
-                displacement(-tab.value_at(t))
-            }
+            Drive::Table(tab) => match tab.quantity {
+                TableQuantity::PumpingRate => displacement(-tab.value_at(t)),
+                TableQuantity::Head => DeviceFlow::default(),
+            },
             Drive::SurgeBlock(b) => {
                 let (q, bypass, d) = b.flows(t, h_well_m);
                 let (qv, dv) = vapour_flow(h_well_m, b.min_head_m(), b.max_pull_m3_s(), vapour);
@@ -299,7 +319,9 @@ impl Drive {
                     ..DeviceFlow::default()
                 }
             }
-            _ => DeviceFlow::default(),
+            // Head-controlled, or recovering with no device: nothing added. A schedule
+            // never reaches here (`stage_at` returns its stage).
+            Drive::SineHead(_) | Drive::Slug { .. } | Drive::Schedule(_) => DeviceFlow::default(),
         }
     }
 
@@ -309,8 +331,23 @@ impl Drive {
     pub fn well_storage_m2(&self, t: f64, well_storage_m2: f64) -> f64 {
         match self.stage_at(t) {
             (Drive::SurgeBlock(_), _) => 0.0,
-            (Drive::Swab(s), tl) if s.lifting(tl) => 0.0,
-            _ => well_storage_m2,
+            (Drive::Swab(s), tl) => {
+                if s.lifting(tl) {
+                    0.0
+                } else {
+                    well_storage_m2
+                }
+            }
+            (
+                Drive::SineHead(_)
+                | Drive::ConstantRate { .. }
+                | Drive::Slug { .. }
+                | Drive::Table(_)
+                | Drive::PumpBackwash(_)
+                | Drive::JetPulse(_)
+                | Drive::Schedule(_),
+                _,
+            ) => well_storage_m2,
         }
     }
 
@@ -357,7 +394,16 @@ impl Drive {
         match self.stage_at(t) {
             (Drive::SurgeBlock(b), _) => b.min_head_m(),
             (Drive::Swab(s), tl) => s.min_head_m(tl),
-            _ => f64::NEG_INFINITY,
+            (
+                Drive::SineHead(_)
+                | Drive::ConstantRate { .. }
+                | Drive::Slug { .. }
+                | Drive::Table(_)
+                | Drive::PumpBackwash(_)
+                | Drive::JetPulse(_)
+                | Drive::Schedule(_),
+                _,
+            ) => f64::NEG_INFINITY,
         }
     }
 
@@ -371,7 +417,16 @@ impl Drive {
                 h < b.min_head_m() + crate::devices::VAPOUR_MARGIN_M
                     || h > b.max_head_m() - crate::devices::VAPOUR_MARGIN_M
             }
-            _ => h < self.vapour_bound_m(t) + crate::devices::VAPOUR_MARGIN_M,
+            (
+                Drive::SineHead(_)
+                | Drive::ConstantRate { .. }
+                | Drive::Slug { .. }
+                | Drive::Table(_)
+                | Drive::Swab(_)
+                | Drive::JetPulse(_)
+                | Drive::Schedule(_),
+                _,
+            ) => h < self.vapour_bound_m(t) + crate::devices::VAPOUR_MARGIN_M,
         }
     }
 
@@ -381,7 +436,11 @@ impl Drive {
             Drive::SurgeBlock(_) | Drive::Swab(_) => true,
             Drive::PumpBackwash(p) => p.is_head_dependent(),
             Drive::Schedule(stages) => stages.iter().any(|s| s.drive.is_head_dependent()),
-            _ => false,
+            Drive::SineHead(_)
+            | Drive::ConstantRate { .. }
+            | Drive::Slug { .. }
+            | Drive::Table(_)
+            | Drive::JetPulse(_) => false,
         }
     }
 
@@ -390,7 +449,13 @@ impl Drive {
         match self.stage_at(0.0).0 {
             Drive::Slug { initial_head_m } => *initial_head_m,
             Drive::JetPulse(j) => j.offset_m(0.0),
-            _ => self.head_m(0.0),
+            Drive::SineHead(_)
+            | Drive::ConstantRate { .. }
+            | Drive::Table(_)
+            | Drive::SurgeBlock(_)
+            | Drive::Swab(_)
+            | Drive::PumpBackwash(_)
+            | Drive::Schedule(_) => self.head_m(0.0),
         }
     }
 
@@ -398,7 +463,13 @@ impl Drive {
     pub fn period_s(&self) -> Option<f64> {
         match self {
             Drive::SineHead(s) => Some(1.0 / s.frequency_hz),
-            Drive::Table(t) if t.repeat => t.times_s.last().copied(),
+            Drive::Table(t) => {
+                if t.repeat {
+                    t.times_s.last().copied()
+                } else {
+                    None
+                }
+            }
             Drive::SurgeBlock(b) => Some(1.0 / b.frequency_hz),
             Drive::Swab(s) => Some(s.period_s()),
             Drive::PumpBackwash(p) => Some(p.period_s()),
@@ -413,7 +484,7 @@ impl Drive {
                     })
                     .then_some(p)
             }
-            _ => None,
+            Drive::ConstantRate { .. } | Drive::Slug { .. } => None,
         }
     }
 
@@ -445,7 +516,14 @@ impl Drive {
     pub fn stage_index_at(&self, t: f64) -> (usize, usize) {
         match self {
             Drive::Schedule(stages) => (stage_index(stages, t), stages.len()),
-            _ => (0, 1),
+            Drive::SineHead(_)
+            | Drive::ConstantRate { .. }
+            | Drive::Slug { .. }
+            | Drive::Table(_)
+            | Drive::SurgeBlock(_)
+            | Drive::Swab(_)
+            | Drive::PumpBackwash(_)
+            | Drive::JetPulse(_) => (0, 1),
         }
     }
 
@@ -456,7 +534,13 @@ impl Drive {
             Drive::SineHead(s) => s.offset_m == 0.0,
             Drive::SurgeBlock(_) => true,
             Drive::Schedule(stages) => stages.iter().all(|s| s.drive.is_zero_mean_periodic()),
-            _ => false,
+            // A table may average zero, but that is not checked: treated as net flow.
+            Drive::ConstantRate { .. }
+            | Drive::Slug { .. }
+            | Drive::Table(_)
+            | Drive::Swab(_)
+            | Drive::PumpBackwash(_)
+            | Drive::JetPulse(_) => false,
         }
     }
 
@@ -465,9 +549,13 @@ impl Drive {
     pub fn next_event_s(&self, t: f64) -> Option<(f64, bool)> {
         match self {
             Drive::Table(tab) => tab.next_event(t),
-            Drive::SineHead(s) if s.ramp_cycles > 0.0 => {
-                let end = s.ramp_cycles / s.frequency_hz;
-                (end > t).then_some((end, false))
+            Drive::SineHead(s) => {
+                if s.ramp_cycles > 0.0 {
+                    let end = s.ramp_cycles / s.frequency_hz;
+                    (end > t).then_some((end, false))
+                } else {
+                    None
+                }
             }
             Drive::Swab(s) => s.events(t),
             Drive::PumpBackwash(p) => p.events(t),
@@ -492,7 +580,8 @@ impl Drive {
                     k += 1;
                 }
             }
-            _ => None,
+            // Smooth forcing with no breakpoints.
+            Drive::ConstantRate { .. } | Drive::Slug { .. } | Drive::SurgeBlock(_) => None,
         }
     }
 

@@ -50,10 +50,11 @@ mod fourier;
 
 pub use complex::{solve_tridiagonal, Complex};
 
+use crate::cake::CakeState;
 use crate::error::SolverError;
 use crate::grid::{Zone, ZONE_COUNT};
 use crate::model::Model;
-use crate::system::{CakeState, Discretization};
+use crate::system::Discretization;
 use std::f64::consts::PI;
 
 /// Why a model cannot be solved by the harmonic method.

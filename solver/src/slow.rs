@@ -13,11 +13,12 @@
 //! The laws are in [`crate::damage`] (lift-off, fines) and [`crate::cake`] (erosion).
 
 use crate::cake;
+use crate::cake::CakeState;
 use crate::damage::fines::FinesState;
 use crate::diagnostics::FaceState;
 use crate::grid::Grid;
 use crate::model::{Cake, Invaded, LiftOff, Model, RingProfile};
-use crate::system::{CakeState, Discretization};
+use crate::system::Discretization;
 
 /// Relative change of the wall face's linear resistance (or of an invaded cell's
 /// conductivity) in one step above which a change counts as a jump (assumption: a tenth

@@ -39,12 +39,13 @@
 //! When the cells are linear (Darcy faces) the update is exact in one step, whatever the
 //! well's laws.
 
+use crate::cake::CakeState;
 use crate::devices::VapourState;
 use crate::drive::Control;
 use crate::error::SolverError;
 use crate::grid::ZONE_COUNT;
 use crate::model::Model;
-use crate::system::{CakeState, Discretization};
+use crate::system::Discretization;
 use crate::tridiag::Factored;
 
 mod column;

@@ -13,16 +13,10 @@ use crate::faces::{half_cell, Face, Segment};
 use crate::grid::{Grid, Zone};
 use crate::model::{Medium, Model, OuterBoundary};
 use crate::water::GRAVITY_M_S2;
-use std::f64::consts::PI;
 
-/// Current state of the wall cake (it may erode during a run).
-#[derive(Debug, Clone, Copy, PartialEq)]
-pub struct CakeState {
-    /// Thickness δ_c, m.
-    pub thickness_m: f64,
-    /// Covered fraction of the borehole face, –.
-    pub coverage: f64,
-}
+/// The cake's state is defined in [`crate::cake`]; re-exported for the users of the face laws.
+pub use crate::cake::CakeState;
+use std::f64::consts::PI;
 
 /// Grid, storage and face laws of a model.
 #[derive(Debug, Clone)]

@@ -131,7 +131,7 @@ pub fn viscosity_pa_s(temp_c: f64) -> f64 {
     viscosity_vogel_pa_s(temp_c) * r.exp()
 }
 
-/// Standard atmospheric pressure at sea level [Pa] (ISO 2533 standard atmosphere; the
+/// Standard atmospheric pressure at sea level, in Pa (ISO 2533 standard atmosphere; the
 /// definition of the standard atmosphere, 101 325 Pa exactly).
 pub const STANDARD_ATMOSPHERE_PA: f64 = 101_325.0;
 
@@ -149,7 +149,7 @@ const IF97_SAT: [f64; 10] = [
     0.650_175_348_447_98e3,
 ];
 
-/// Vapour (saturation) pressure of water [Pa] at a temperature in °C.
+/// Vapour (saturation) pressure of water, in Pa at a temperature in °C.
 ///
 /// ```text
 /// ϑ = T + n9/(T − n10),  A = ϑ² + n1 ϑ + n2,  B = n3 ϑ² + n4 ϑ + n5,  C = n6 ϑ² + n7 ϑ + n8

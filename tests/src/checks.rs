@@ -4,10 +4,10 @@ use crate::fit::sin_cos;
 use crate::models::homogeneous;
 use crate::reference::{data, load, num, nums, source};
 use crate::{CheckResult, Group};
+use boreflux_solver::cake::CakeState;
 use boreflux_solver::drive::{Drive, SineHead};
 use boreflux_solver::model::{Cake, GridSpec, Invaded, Medium, Model, TimeSpec, Well};
 use boreflux_solver::stepper::Stepper;
-use boreflux_solver::system::CakeState;
 use boreflux_solver::{run, Reporting, StepObserver, StepView};
 use std::f64::consts::PI;
 

@@ -24,12 +24,12 @@ use crate::checks::Recorder;
 use crate::models::homogeneous;
 use crate::reference::{load, num, source};
 use crate::CheckResult;
+use boreflux_solver::cake::CakeState;
 use boreflux_solver::drive::{Drive, TableDrive, TableQuantity};
 use boreflux_solver::model::{Cake, Model, Scheme, TimeSpec};
 use boreflux_solver::run::run_from_state;
 use boreflux_solver::slow::SlowState;
 use boreflux_solver::stepper::Stepper;
-use boreflux_solver::system::CakeState;
 use boreflux_solver::Reporting;
 
 /// Reference file.

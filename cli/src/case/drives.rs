@@ -16,13 +16,13 @@
 mod devices;
 mod pumped;
 mod schedule;
+mod table;
 
 pub use schedule::{run_duration, stepping_period};
 
 use super::error::CaseError;
 use super::hints::suggestion;
 use super::quantity::{FlowRate, Frequency, Head, Time, Q};
-use super::table;
 use crate::units::{format_si, Quantity};
 use boreflux_solver::drive::SineHead;
 use boreflux_solver::model::Well;
@@ -200,7 +200,7 @@ fn parse_kind(
 /// Reads a drive's keys into its key struct; errors carry the `drive.` path and a
 /// "did you mean" hint for unknown keys.
 pub fn read_keys<T: DeserializeOwned>(map: Map<String, Value>) -> Result<T, CaseError> {
-    serde_path_to_error::deserialize(Value::Object(map))
+    serde_path_to_error::deserialize(super::structured::ValueDeserializer(Value::Object(map)))
         .map_err(|e| CaseError::structure(e, "drive"))
 }
 

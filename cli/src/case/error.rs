@@ -4,7 +4,8 @@
 //! field is empty for errors that concern no single key (a file that cannot be read, JSON
 //! syntax); the message then carries the location (`line 4 column 7: …`).
 
-use super::hints::{backticked, suggestion};
+use super::hints::suggestion;
+use super::structured::StructError;
 use boreflux_solver::SolverError;
 use std::fmt;
 
@@ -55,38 +56,33 @@ impl CaseError {
 
     /// A structural error (unknown key, missing key, wrong type) found while reading the
     /// JSON into the case structs. `prefix` is the path of the value that was read (empty
-    /// for the whole case).
-    pub fn structure(err: serde_path_to_error::Error<serde_json::Error>, prefix: &str) -> Self {
+    /// for the whole case). The hint is computed from the error's data (the word written
+    /// and the names accepted), not from a message text.
+    pub fn structure(err: serde_path_to_error::Error<StructError>, prefix: &str) -> Self {
         let path = err.path().to_string();
-        let message = err.into_inner().to_string();
         let join = |a: &str, b: &str| match (a, b) {
             ("", b) | (".", b) => b.to_owned(),
             (a, "") | (a, ".") => a.to_owned(),
             (a, b) => format!("{a}.{b}"),
         };
         let at = join(prefix, &path);
-        if let Some(rest) = message.strip_prefix("unknown field ") {
-            let names = backticked(rest);
-            let (word, known) = names.split_first().map_or(("", &[][..]), |(w, k)| (*w, k));
-            return CaseError::new(
+        match err.into_inner() {
+            StructError::UnknownField { field, expected } => CaseError::new(
                 at,
-                format!("unknown key `{word}`; {}", suggestion(word, known)),
-            );
-        }
-        if let Some(rest) = message.strip_prefix("missing field ") {
-            let key = backticked(rest).first().copied().unwrap_or(rest);
-            return CaseError::new(join(&at, key), "required key is missing");
-        }
-        if let Some(rest) = message.strip_prefix("unknown variant ") {
-            let names = backticked(rest);
-            if let Some((word, known)) = names.split_first() {
-                return CaseError::new(
-                    at,
-                    format!("unknown value \"{word}\"; {}", suggestion(word, known)),
-                );
+                format!("unknown key `{field}`; {}", suggestion(&field, expected)),
+            ),
+            StructError::MissingField(key) => {
+                CaseError::new(join(&at, key), "required key is missing")
             }
+            StructError::UnknownVariant { variant, expected } => CaseError::new(
+                at,
+                format!(
+                    "unknown value \"{variant}\"; {}",
+                    suggestion(&variant, expected)
+                ),
+            ),
+            StructError::Other(message) => CaseError::new(at, message),
         }
-        CaseError::new(at, message)
     }
 }
 

@@ -1,20 +1,9 @@
 //! "Did you mean …?" hints for misspelt keys and names, by edit distance.
 
-/// Levenshtein distance between `a` and `b`, counted in characters, letter case ignored.
+/// Levenshtein distance between `a` and `b`, counted in characters, letter case ignored
+/// (the `strsim` crate's, which clap's suggestions use too).
 pub fn edit_distance(a: &str, b: &str) -> usize {
-    let a: Vec<char> = a.to_lowercase().chars().collect();
-    let b: Vec<char> = b.to_lowercase().chars().collect();
-    let mut prev: Vec<usize> = (0..=b.len()).collect();
-    let mut cur = vec![0; b.len() + 1];
-    for (i, ca) in a.iter().enumerate() {
-        cur[0] = i + 1;
-        for (j, cb) in b.iter().enumerate() {
-            let substitute = prev[j] + usize::from(ca != cb);
-            cur[j + 1] = substitute.min(prev[j + 1] + 1).min(cur[j] + 1);
-        }
-        std::mem::swap(&mut prev, &mut cur);
-    }
-    prev[b.len()]
+    strsim::levenshtein(&a.to_lowercase(), &b.to_lowercase())
 }
 
 /// The candidate closest to `word`, if it is close enough to be a likely misspelling: at
@@ -38,12 +27,6 @@ pub fn closest<'a>(word: &str, candidates: &[&'a str]) -> Option<&'a str> {
     }
 }
 
-/// Names between backticks in a serde message: "unknown field `x`, expected `a` or `b`"
-/// gives `["x", "a", "b"]`.
-pub fn backticked(message: &str) -> Vec<&str> {
-    message.split('`').skip(1).step_by(2).collect()
-}
-
 /// `did you mean `x`?` for `word` among `candidates`, or the list of candidates when none
 /// is close.
 pub fn suggestion(word: &str, candidates: &[&str]) -> String {
@@ -65,6 +48,8 @@ mod tests {
         assert_eq!(edit_distance("", "abc"), 3);
         assert_eq!(edit_distance("Porosity", "porosity"), 0);
         assert_eq!(edit_distance("porosty", "porosity"), 1);
+        // Counted in characters, not bytes: one substitution of a two-byte letter.
+        assert_eq!(edit_distance("bär", "bar"), 1);
     }
 
     #[test]
@@ -75,13 +60,5 @@ mod tests {
         assert_eq!(closest("d5", &keys), Some("d50"));
         assert_eq!(closest("cond", &keys), Some("conductivity"));
         assert_eq!(closest("zzzzzz", &keys), None);
-    }
-
-    #[test]
-    fn backticked_works() {
-        assert_eq!(
-            backticked("unknown field `x`, expected `a` or `b`"),
-            ["x", "a", "b"]
-        );
     }
 }

@@ -1,8 +1,8 @@
 //! Case files: parsing, units, validation and conversion to the solver model.
 //!
 //! A case file (JSON, see docs/formats.md "Case file") is read in two steps: serde reads it into
-//! the raw structs of [`raw`] (user units kept as written, unknown keys rejected with a
-//! hint), then [`convert`] turns those into a checked [`boreflux_solver::Model`] in SI,
+//! the raw structs of `raw` (user units kept as written, unknown keys rejected with a
+//! hint), then `convert` turns those into a checked [`boreflux_solver::Model`] in SI,
 //! filling every default and recording what it derived. Errors name the key path:
 //!
 //! ```text
@@ -24,7 +24,7 @@ mod raw;
 mod scenarios;
 mod schema;
 mod strict;
-mod table;
+mod structured;
 mod zones;
 
 pub use error::CaseError;
@@ -32,6 +32,7 @@ pub use scenarios::{scenario_companions, scenarios};
 pub use schema::schema;
 pub use strict::{read_case_json, read_json};
 
+use crate::read_error::TextReadError;
 use std::path::Path;
 
 /// Inputs of the screen and casing collapse check, from the optional `well` keys.
@@ -53,7 +54,7 @@ pub struct SafetyInputs {
     pub youngs_modulus_pa: Option<f64>,
     /// `well.poisson_ratio`.
     pub poisson_ratio: Option<f64>,
-    /// `well.safety_factor` [2].
+    /// `well.safety_factor` (default 2).
     pub safety_factor: f64,
     /// `formation.specific_gravity` of the grains [2.65].
     pub formation_specific_gravity: f64,
@@ -110,41 +111,50 @@ pub const MAX_CASE_BYTES: u64 = 200_000_000;
 
 /// Reads a regular file of at most `max` bytes as UTF-8 text. FIFOs, devices and folders
 /// are refused (they could block or never end); the error never quotes the file's content.
-pub fn read_limited(path: &Path, max: u64, what: &str) -> Result<String, String> {
+pub fn read_limited(path: &Path, max: u64, what: &'static str) -> Result<String, TextReadError> {
     use std::io::Read;
-    let shown = path.display();
-    let meta = std::fs::metadata(path).map_err(|e| format!("cannot read {what} {shown}: {e}"))?;
+    let shown = || path.display().to_string();
+    let io = |source| TextReadError::Io {
+        what,
+        path: shown(),
+        source,
+    };
+    let meta = std::fs::metadata(path).map_err(io)?;
     if !meta.is_file() {
-        return Err(format!(
-            "cannot read {what} {shown}: not a regular file (a folder, device or pipe)"
-        ));
+        return Err(TextReadError::NotRegular {
+            what,
+            path: shown(),
+        });
     }
     if meta.len() > max {
-        return Err(format!(
-            "{what} {shown} is {} bytes, more than the {max} bytes read",
-            meta.len()
-        ));
+        return Err(TextReadError::TooLarge {
+            what,
+            path: shown(),
+            size: meta.len(),
+            max,
+        });
     }
-    let file = std::fs::File::open(path).map_err(|e| format!("cannot read {what} {shown}: {e}"))?;
+    let file = std::fs::File::open(path).map_err(io)?;
     let mut bytes = Vec::new();
-    file.take(max + 1)
-        .read_to_end(&mut bytes)
-        .map_err(|e| format!("cannot read {what} {shown}: {e}"))?;
+    file.take(max + 1).read_to_end(&mut bytes).map_err(io)?;
     if bytes.len() as u64 > max {
-        return Err(format!("{what} {shown} grew beyond {max} bytes while read"));
+        return Err(TextReadError::Grew {
+            what,
+            path: shown(),
+            max,
+        });
     }
-    String::from_utf8(bytes).map_err(|e| {
-        format!(
-            "cannot read {what} {shown}: not UTF-8 text (invalid byte at offset {})",
-            e.utf8_error().valid_up_to()
-        )
+    String::from_utf8(bytes).map_err(|e| TextReadError::NotUtf8 {
+        what,
+        path: shown(),
+        offset: e.utf8_error().valid_up_to(),
     })
 }
 
 /// Reads, converts and checks the case file at `path`; drive files are found beside it.
 pub fn load_case(path: &Path) -> Result<LoadedCase, CaseError> {
-    let text =
-        read_limited(path, MAX_CASE_BYTES, "case file").map_err(|m| CaseError::new("", m))?;
+    let text = read_limited(path, MAX_CASE_BYTES, "case file")
+        .map_err(|e| CaseError::new("", e.to_string()))?;
     let base = path
         .parent()
         .filter(|p| !p.as_os_str().is_empty())
@@ -155,7 +165,7 @@ pub fn load_case(path: &Path) -> Result<LoadedCase, CaseError> {
 /// Converts and checks case-file text; `base_dir` resolves relative drive files.
 pub fn parse_case(text: &str, base_dir: &Path) -> Result<LoadedCase, CaseError> {
     let value = read_case_json(text)?;
-    let raw: raw::RawCase =
-        serde_path_to_error::deserialize(value).map_err(|e| CaseError::structure(e, ""))?;
+    let raw: raw::RawCase = serde_path_to_error::deserialize(structured::ValueDeserializer(value))
+        .map_err(|e| CaseError::structure(e, ""))?;
     convert::convert(raw, base_dir)
 }

@@ -8,12 +8,13 @@ use crate::args::CheckArgs;
 use crate::case::{load_case, LoadedCase};
 use crate::summary::G;
 use anyhow::anyhow;
+use boreflux_solver::cake::CakeState;
 use boreflux_solver::grid::Zone;
 use boreflux_solver::harmonic;
 use boreflux_solver::model::Medium;
 use boreflux_solver::run::{default_first_step, total_skin, DEFAULT_STEPS_PER_CYCLE};
 use boreflux_solver::safety::CAUTION;
-use boreflux_solver::system::{CakeState, Discretization};
+use boreflux_solver::system::Discretization;
 use boreflux_solver::{run, Model, Reporting};
 use serde_json::json;
 use std::f64::consts::PI;
@@ -79,8 +80,8 @@ const PERIODIC_HARMONICS: usize = 32;
 /// The periodic steady state by the harmonic method (linear cases under a periodic
 /// prescribed head): period, peak screen flow and wall face flux over a period, mean power
 /// per zone; or why the method does not apply.
-fn periodic_state(m: &Model) -> Result<serde_json::Value, String> {
-    let sol = harmonic::solve(m, PERIODIC_HARMONICS).map_err(|e| e.to_string())?;
+fn periodic_state(m: &Model) -> Result<serde_json::Value, harmonic::HarmonicError> {
+    let sol = harmonic::solve(m, PERIODIC_HARMONICS)?;
     let p = sol.period_s();
     let wall = sol.disc.grid.borehole_face;
     let area = 2.0 * PI * m.borehole_radius_m() * m.well.screen_length_m;
@@ -158,7 +159,7 @@ pub fn check(a: &CheckArgs) -> Result<(), Failure> {
         let v = json!({
             "periodic_state": match &periodic {
                 Ok(v) => v.clone(),
-                Err(why) => json!({"not_applicable": why}),
+                Err(why) => json!({"not_applicable": why.to_string()}),
             },
             "title": case.title,
             "zones": zones.iter().map(|(n, r1, r2, med)| json!({"zone": n, "inner_radius_m": r1, "outer_radius_m": r2,

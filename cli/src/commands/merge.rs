@@ -17,7 +17,15 @@ const LISTED_MISSING: usize = 10;
 pub fn merge(a: &MergeArgs) -> Result<(), Failure> {
     let mut tables = Vec::new();
     for p in &a.inputs {
-        let t = Table::read(p).map_err(|e| Failure::Input(anyhow!("{}: {e}", p.display())))?;
+        let t = Table::read(p).map_err(|e| {
+            Failure::with_code(
+                e.exit_code(),
+                ReadFailure {
+                    path: p.to_path_buf(),
+                    source: e,
+                },
+            )
+        })?;
         tables.push((p, t));
     }
     let (first_path, first) = &tables[0];
@@ -108,4 +116,13 @@ pub fn merge(a: &MergeArgs) -> Result<(), Failure> {
         h5.display(),
         overview(&merged)
     ))
+}
+
+/// A table that could not be read, with its path.
+#[derive(Debug, thiserror::Error)]
+#[error("{}: {source}", path.display())]
+struct ReadFailure {
+    path: std::path::PathBuf,
+    #[source]
+    source: crate::read_error::ReadError,
 }

@@ -37,6 +37,20 @@ impl Failure {
     }
 }
 
+impl Failure {
+    /// The failure of the exit code `code` (2 bad input, otherwise a runtime failure) for
+    /// an error that knows its own code. The message is the error's own text, which already
+    /// holds its causes (printing the chain again would repeat them).
+    pub fn with_code(code: u8, e: impl std::fmt::Display) -> Failure {
+        let e = anyhow::anyhow!("{e}");
+        if code == 2 {
+            Failure::Input(e)
+        } else {
+            Failure::Runtime(e)
+        }
+    }
+}
+
 impl fmt::Display for Failure {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
         match self {
@@ -68,7 +82,8 @@ pub fn dispatch(command: Command) -> Result<(), Failure> {
         Command::Verify(a) => verify::verify(&a),
         Command::Steptest(a) => steptest::steptest(&a),
         Command::New(a) => new::new(&a),
-        Command::Schema => {
+        Command::Schema(a) if a.outputs => print_out(&crate::output::schema::markdown()),
+        Command::Schema(_) => {
             let text = serde_json::to_string_pretty(&crate::case::schema())
                 .map_err(|e| Failure::Runtime(e.into()))?;
             print_out(&(text + "\n"))

@@ -13,6 +13,7 @@ use super::outputs::{check_output, same_file_key};
 use super::{print_out, Failure};
 use crate::args::RunArgs;
 use crate::case::{load_case, LoadedCase};
+use crate::output::schema::{figure_values, ProgressSeries, SummaryText};
 use crate::output::sink::ResultSink;
 use crate::summary::{assessment, headline, table, Headline, Tracker};
 use anyhow::{anyhow, Context};
@@ -144,30 +145,21 @@ fn write_metadata(
 fn write_summary(sink: &mut ResultSink, h: &Headline) -> Result<(), crate::output::OutputError> {
     let w = sink.writer();
     w.group("/summary")?;
-    let json = serde_json::to_value(h).unwrap_or_default();
-    if let Some(map) = json.as_object() {
-        for (k, v) in map {
-            match (k.as_str(), v) {
-                ("work_j", serde_json::Value::Array(a)) => {
-                    for (z, x) in h.zones.iter().zip(a) {
-                        if let Some(x) = x.as_f64() {
-                            w.set_attr_f64("/summary", &format!("work_{z}_j"), x)?;
-                        }
-                    }
-                }
-                (_, serde_json::Value::Number(n)) => {
-                    w.set_attr_f64("/summary", k, n.as_f64().unwrap_or(f64::NAN))?
-                }
-                _ => {}
-            }
+    for (figure, value) in figure_values(h) {
+        // A figure that was not computed is left out (the report shows a dash).
+        if let Some(x) = value {
+            w.set_attr_f64("/summary", &figure.name(), x)?;
         }
     }
-    w.set_attr_str("/summary", "warnings", &h.warnings.join("\n"))?;
-    w.set_attr_str("/summary", "cautions", CAUTION)?;
-    if !h.assumptions.is_empty() {
-        w.set_attr_str("/summary", "assumptions", &h.assumptions.join("\n"))?;
+    for text in SummaryText::ALL {
+        let value = match text {
+            SummaryText::Warnings => h.warnings.join("\n"),
+            SummaryText::Cautions => CAUTION.to_owned(),
+            SummaryText::EfficiencyDefinition => h.efficiency_definition.to_owned(),
+            SummaryText::Assumptions => h.assumptions.join("\n"),
+        };
+        w.set_attr_str("/summary", text.name(), &value)?;
     }
-    w.set_attr_str("/summary", "efficiency_definition", h.efficiency_definition)?;
     Ok(())
 }
 
@@ -178,23 +170,18 @@ fn write_progress(sink: &mut ResultSink, p: &Progress) -> Result<(), crate::outp
         return Ok(());
     }
     let w = sink.writer();
-    w.group("/progress")?;
-    w.write_vector("/progress/time", &p.time_s, "s", "time of the estimate")?;
-    let sc: Vec<f64> = p.points.iter().map(|x| x.specific_capacity_m2_s).collect();
-    w.write_vector(
-        "/progress/specific_capacity",
-        &sc,
-        "m2/s",
-        "specific capacity of the virtual constant-rate test for the well as it stands, \
-         estimated from the near-well steady losses (docs/physics.md §25.3)",
-    )?;
-    let eff: Vec<f64> = p.points.iter().map(|x| x.efficiency).collect();
-    w.write_vector(
-        "/progress/efficiency",
-        &eff,
-        "1",
-        "efficiency s0/s of the same estimate against the undamaged well",
-    )?;
+    w.group(&format!("/{}", ProgressSeries::GROUP))?;
+    for series in ProgressSeries::ALL {
+        let values: Vec<f64> = match series {
+            ProgressSeries::Time => p.time_s.clone(),
+            ProgressSeries::SpecificCapacity => {
+                p.points.iter().map(|x| x.specific_capacity_m2_s).collect()
+            }
+            ProgressSeries::Efficiency => p.points.iter().map(|x| x.efficiency).collect(),
+        };
+        let e = series.entry();
+        w.write_vector(&series.path(), &values, e.unit.symbol(), &e.description)?;
+    }
     Ok(())
 }
 
@@ -325,7 +312,7 @@ pub(super) fn refuse_overwriting_inputs(
         .filter(|p| !p.as_os_str().is_empty())
         .unwrap_or(Path::new("."));
     let text = crate::case::read_limited(case, crate::case::MAX_CASE_BYTES, "case file")
-        .map_err(|e| anyhow!(e))?;
+        .map_err(|e| anyhow!("{e}"))?;
     let value: Value =
         crate::case::read_json(&text).map_err(|e| anyhow!("{}: {e}", case.display()))?;
     let mut inputs = vec![(case.to_path_buf(), "the case file itself".to_owned())];

@@ -12,7 +12,8 @@ use boreflux_solver::steptest::Weighting;
 
 /// Runs the command.
 pub fn steptest(a: &SteptestArgs) -> Result<(), Failure> {
-    let input = |msg: String| Failure::Input(anyhow!("{}: {msg}", a.input.display()));
+    let input =
+        |msg: &dyn std::fmt::Display| Failure::Input(anyhow!("{}: {msg}", a.input.display()));
     if let Some(out) = &a.output {
         // The overwrite policy every writing command follows.
         refuse_inputs(&[(out, "-o")], std::slice::from_ref(&a.input)).map_err(Failure::Input)?;
@@ -45,7 +46,7 @@ pub fn steptest(a: &SteptestArgs) -> Result<(), Failure> {
     };
     let text_in = std::fs::read_to_string(&a.input)
         .map_err(|e| Failure::Input(anyhow!("cannot read {}: {e}", a.input.display())))?;
-    let data = read::parse(&text_in).map_err(input)?;
+    let data = read::parse(&text_in).map_err(|e| input(&e))?;
     let opts = Options {
         method: a.method,
         weighting: match a.weights {
@@ -57,7 +58,7 @@ pub fn steptest(a: &SteptestArgs) -> Result<(), Failure> {
         reference_time_s,
         power: a.power,
     };
-    let outcome = analyse(&data, &opts).map_err(input)?;
+    let outcome = analyse(&data, &opts).map_err(|e| input(&e))?;
     let model = match &a.case {
         None => None,
         Some(path) => {

@@ -45,22 +45,33 @@ fn progress_bar(quiet: bool, n: usize) -> ProgressBar {
 
 /// A short text table of the key figures, one line per scenario.
 pub(super) fn overview(t: &Table) -> String {
+    use crate::output::schema::Figure;
     let key = [
-        ("peak_outward_flux_m_s", "peak flux out m/s"),
-        ("peak_inward_flux_m_s", "peak flux in m/s"),
-        ("peak_shear_pa", "peak shear Pa"),
-        ("cake_thickness_end_m", "cake end m"),
-        ("skin_end", "skin end"),
-        ("peak_collapse_pressure_pa", "collapse load Pa"),
+        (Figure::PeakOutwardFlux, "peak flux out"),
+        (Figure::PeakInwardFlux, "peak flux in"),
+        (Figure::PeakShear, "peak shear"),
+        (Figure::CakeThicknessEnd, "cake end"),
+        (Figure::SkinEnd, "skin end"),
+        (Figure::PeakCollapsePressure, "collapse load"),
     ];
-    let cols: Vec<(usize, &str)> = key
+    let cols: Vec<(usize, String)> = key
         .iter()
-        .filter_map(|(name, head)| t.figures.iter().position(|f| f == name).map(|i| (i, *head)))
+        .filter_map(|(figure, head)| {
+            let e = figure.entry();
+            let head = match e.unit.symbol() {
+                "1" => (*head).to_owned(),
+                unit => format!("{head} {unit}"),
+            };
+            t.figures
+                .iter()
+                .position(|f| *f == e.name)
+                .map(|i| (i, head))
+        })
         .collect();
     let mut lines = vec![{
         let mut h = vec!["scenario".to_owned()];
         h.extend(t.paths.iter().cloned());
-        h.extend(cols.iter().map(|(_, head)| head.to_string()));
+        h.extend(cols.iter().map(|(_, head)| head.clone()));
         h.push("status".into());
         h.join(" | ")
     }];
@@ -89,7 +100,7 @@ pub(super) fn overview(t: &Table) -> String {
 /// Runs the command.
 pub fn sweep(a: &SweepArgs) -> Result<(), Failure> {
     let text = crate::case::read_limited(&a.case, crate::case::MAX_CASE_BYTES, "case file")
-        .map_err(|e| Failure::Input(anyhow!(e)))?;
+        .map_err(|e| Failure::with_code(e.exit_code(), e))?;
     let base: Value = crate::case::read_case_json(&text)
         .map_err(|e| Failure::Input(anyhow!("{}: {e}", a.case.display())))?;
     let variables = a

@@ -7,24 +7,28 @@
 //! 0.5,1.25,0.32
 //! ```
 //!
-//! Numbers are written in Rust's shortest form that reads back to the same `f64`, in
-//! scientific notation below 1e-4 or from 1e15 in magnitude; NaN and infinities as `NaN`,
-//! `inf`, `-inf`. Like the HDF5 writer, the file appears at its path only on
-//! [`CsvWriter::finish`]; a writer dropped before that deletes its temporary file.
+//! Records are written by the `csv` crate (RFC 4180 quoting where a field needs it, `\n`
+//! line ends). Numbers are written in Rust's shortest form that reads back to the same
+//! `f64`, in scientific notation below 1e-4 or from 1e15 in magnitude. The one NaN
+//! convention of every CSV boreflux writes (run series and sweep tables): **NaN is an empty
+//! field**; infinities are `inf` and `-inf`. Like the HDF5 writer, the file appears at its
+//! path only on [`CsvWriter::finish`]; a writer dropped before that deletes its temporary
+//! file.
 
 use std::fmt::Write as _;
 use std::fs::File;
-use std::io::{BufWriter, Write};
+use std::io::BufWriter;
 use std::path::{Path, PathBuf};
 
 use super::{OutputError, TempTarget};
 
 /// A CSV file being written; see the module docs.
 pub struct CsvWriter {
-    out: Option<BufWriter<File>>,
+    out: Option<csv::Writer<BufWriter<File>>>,
     target: TempTarget,
     ncols: usize,
-    line: String,
+    /// One field's text, reused so that a row allocates nothing.
+    field: String,
 }
 
 /// One column: its name and unit (empty for a pure number or a label).
@@ -55,14 +59,19 @@ impl CsvWriter {
             source,
         })?;
         let mut w = Self {
-            out: Some(BufWriter::new(file)),
+            out: Some(
+                csv::WriterBuilder::new()
+                    .terminator(csv::Terminator::Any(b'\n'))
+                    .from_writer(BufWriter::new(file)),
+            ),
             target,
             ncols: columns.len(),
-            line: String::new(),
+            field: String::new(),
         };
         let header: Vec<String> = columns.iter().map(header_cell).collect();
-        w.line = header.join(",");
-        w.write_line()?;
+        let out = w.out.as_mut().expect("writer is open until finish");
+        let result = out.write_record(&header);
+        result.map_err(|e| w.csv_err(e))?;
         Ok(w)
     }
 
@@ -75,31 +84,37 @@ impl CsvWriter {
                 got: values.len(),
             });
         }
-        self.line.clear();
-        for (i, &v) in values.iter().enumerate() {
-            if i > 0 {
-                self.line.push(',');
-            }
-            push_number(&mut self.line, v);
+        let out = self.out.as_mut().expect("writer is open until finish");
+        let mut result = Ok(());
+        for &v in values {
+            self.field.clear();
+            push_number(&mut self.field, v);
+            result = result.and_then(|()| out.write_field(self.field.as_bytes()));
         }
-        self.write_line()
+        let result = result.and_then(|()| out.write_record(None::<&[u8]>));
+        result.map_err(|e| self.csv_err(e))
     }
 
     /// Flushes, closes and renames the file to its final path, which it returns.
     pub fn finish(mut self) -> Result<PathBuf, OutputError> {
         let out = self.out.take().expect("writer is open until finish");
-        let file = out.into_inner().map_err(|e| self.io_err(e.into_error()))?;
+        let buffered = out.into_inner().map_err(|e| self.io_err(e.into_error()))?;
+        let file = buffered
+            .into_inner()
+            .map_err(|e| self.io_err(e.into_error()))?;
         drop(file);
         self.target.commit()?;
         Ok(self.target.dest().to_path_buf())
     }
 
-    fn write_line(&mut self) -> Result<(), OutputError> {
-        let out = self.out.as_mut().expect("writer is open until finish");
-        let result = out
-            .write_all(self.line.as_bytes())
-            .and_then(|()| out.write_all(b"\n"));
-        result.map_err(|e| self.io_err(e))
+    fn csv_err(&self, e: csv::Error) -> OutputError {
+        match e.into_kind() {
+            csv::ErrorKind::Io(source) => self.io_err(source),
+            other => OutputError::Invalid {
+                object: self.target.dest().display().to_string(),
+                message: format!("{other:?}"),
+            },
+        }
     }
 
     fn io_err(&self, source: std::io::Error) -> OutputError {
@@ -110,21 +125,20 @@ impl CsvWriter {
     }
 }
 
-/// `name [unit]`, quoted as RFC 4180 asks when it holds a comma, quote or line break.
+/// `name [unit]` (the `csv` writer quotes it when it holds a comma, quote or line break).
 fn header_cell(c: &Column<'_>) -> String {
-    let cell = if c.unit.is_empty() {
+    if c.unit.is_empty() {
         c.name.to_owned()
     } else {
         format!("{} [{}]", c.name, c.unit)
-    };
-    if cell.contains([',', '"', '\n', '\r']) {
-        format!("\"{}\"", cell.replace('"', "\"\""))
-    } else {
-        cell
     }
 }
 
-fn push_number(line: &mut String, v: f64) {
+/// A number as the module doc says; NaN as an empty field.
+pub(crate) fn push_number(line: &mut String, v: f64) {
+    if v.is_nan() {
+        return;
+    }
     let a = v.abs();
     // Writing to a String cannot fail.
     let _ = if a != 0.0 && a.is_finite() && !(1e-4..1e15).contains(&a) {
@@ -165,7 +179,7 @@ mod tests {
         let text = std::fs::read_to_string(&path).unwrap();
         assert_eq!(
             text,
-            "time [s],well_head [m],porosity\n0,0,0.32\n0.5,-1.25,1e-5\n2e15,NaN,-inf\n"
+            "time [s],well_head [m],porosity\n0,0,0.32\n0.5,-1.25,1e-5\n2e15,,-inf\n"
         );
         // Every number reads back exactly.
         let back: Vec<f64> = text
@@ -206,26 +220,28 @@ mod tests {
 
     #[test]
     fn header_cells_are_quoted_when_needed() {
-        assert_eq!(
-            header_cell(&Column {
+        // RFC 4180 §2, rules 6 and 7: a field holding a comma or a quote is enclosed in
+        // quotes, and a quote inside is doubled.
+        let dir = tempfile::tempdir().unwrap();
+        let cols = [
+            Column {
                 name: "a,b",
-                unit: "m"
-            }),
-            "\"a,b [m]\""
-        );
-        assert_eq!(
-            header_cell(&Column {
+                unit: "m",
+            },
+            Column {
                 name: "say \"hi\"",
-                unit: ""
-            }),
-            "\"say \"\"hi\"\"\""
-        );
-        assert_eq!(
-            header_cell(&Column {
+                unit: "",
+            },
+            Column {
                 name: "flow",
-                unit: "m3/s"
-            }),
-            "flow [m3/s]"
+                unit: "m3/s",
+            },
+        ];
+        let w = CsvWriter::create(dir.path().join("h.csv"), &cols).unwrap();
+        let path = w.finish().unwrap();
+        assert_eq!(
+            std::fs::read_to_string(path).unwrap(),
+            "\"a,b [m]\",\"say \"\"hi\"\"\",flow [m3/s]\n"
         );
     }
 

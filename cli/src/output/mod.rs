@@ -9,6 +9,7 @@
 
 pub mod csv;
 pub mod h5;
+pub mod schema;
 pub mod sink;
 
 use std::path::{Path, PathBuf};

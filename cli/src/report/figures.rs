@@ -24,7 +24,7 @@ const RUN_STYLES: [Style; 6] = [
 ];
 
 /// Line styles of the zones screen, pack, cake, invaded, formation.
-const ZONE_STYLES: [Style; 5] = [
+const ZONE_STYLES: [Style; boreflux_solver::grid::ZONE_COUNT] = [
     style("#7f8c8d", "1 3"),
     style("#b7950b", "8 4"),
     style("#a04000", ""),
@@ -225,15 +225,13 @@ fn work_chart(id: &str, i: usize, run: &Run, time_axis: &str, t_factor: f64) -> 
         c.title.push_str(" (log scale)");
     }
     for (zone, w) in &run.series.work {
-        let k = super::read::ZONES
-            .iter()
-            .position(|z| z == zone)
-            .unwrap_or(0);
+        let k = *zone as usize;
+        let name = zone.name();
         let last = w.last().copied().unwrap_or(0.0);
         let label = match c.y_min {
-            Some(_) if last <= 0.0 => format!("{zone} (zero, not drawn)"),
-            Some(floor) if last < floor => format!("{zone} (below the axis)"),
-            _ => (*zone).to_owned(),
+            Some(_) if last <= 0.0 => format!("{name} (zero, not drawn)"),
+            Some(floor) if last < floor => format!("{name} (below the axis)"),
+            Some(_) | None => name.to_owned(),
         };
         c.series.push(Series {
             label,

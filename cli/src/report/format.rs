@@ -83,30 +83,10 @@ pub const FORCHHEIMER_BETA: Shown = shown(unit("s²/m²", 1.0), None);
 /// A dimensionless number.
 pub const NUMBER: Shown = shown(unit("", 1.0), None);
 
-/// `value` with about three significant digits: fixed notation from 0.001 to 10⁵,
-/// otherwise `1.23×10⁻⁵` (HTML-safe text).
+/// `value` with three significant digits: fixed notation from 0.001 to 10⁵, otherwise
+/// `1.23×10⁻⁵` (HTML-safe text; [`crate::sigfig`]).
 pub fn sig(value: f64) -> String {
-    if !value.is_finite() {
-        return if value.is_nan() {
-            "n/a".to_owned()
-        } else if value > 0.0 {
-            "∞".to_owned()
-        } else {
-            "−∞".to_owned()
-        };
-    }
-    if value == 0.0 {
-        return "0".to_owned();
-    }
-    let mag = value.abs().log10().floor() as i32;
-    if (-3..5).contains(&mag) {
-        let decimals = (2 - mag).max(0) as usize;
-        format!("{value:.decimals$}")
-    } else {
-        let s = format!("{value:.2e}");
-        let (mantissa, exp) = s.split_once('e').expect("exponent format");
-        format!("{mantissa}×10{}", superscript(exp))
-    }
+    crate::sigfig::html(value, 3)
 }
 
 /// A whole number, e.g. a count of cells or steps.
@@ -160,27 +140,24 @@ pub fn temperature(kelvin: f64) -> String {
     format!("{} K ({} °C)", sig(kelvin), sig(kelvin - 273.15))
 }
 
-/// The unit encoded in a `/summary` attribute name suffix (`peak_shear_pa` → Pa), and how
-/// the report shows it. `None`: dimensionless or unknown suffix.
-pub fn summary_unit(name: &str) -> Option<Shown> {
-    const SUFFIXES: [(&str, Shown); 9] = [
-        ("_m3_s", FLOW),
-        ("_m2_s", SPECIFIC_CAPACITY),
-        ("_m_s", FLUX),
-        ("_pa", PRESSURE),
-        ("_j", ENERGY),
-        ("_w", shown(unit("W", 1.0), None)),
-        (
-            "_m3",
-            shown(unit("m³", 1.0), Some(unit("US gal", 1.0 / US_GAL_M3))),
-        ),
-        ("_m", HEAD),
-        ("_s", TIME),
-    ];
-    SUFFIXES
-        .iter()
-        .find(|(suffix, _)| name.ends_with(suffix))
-        .map(|(_, s)| *s)
+/// How the report shows a quantity of the given SI unit (from the output schema), unless a
+/// figure chooses a finer display (mm for the cake, m/s for slot velocities).
+pub fn shown_for(si: crate::output::schema::Unit) -> Shown {
+    use crate::output::schema::Unit;
+    match si {
+        Unit::M => HEAD,
+        Unit::S => TIME,
+        Unit::MPerS => FLUX,
+        Unit::M2PerS => SPECIFIC_CAPACITY,
+        Unit::M3PerS => FLOW,
+        Unit::Pa => PRESSURE,
+        Unit::W => shown(unit("W", 1.0), None),
+        Unit::J => ENERGY,
+        Unit::Kg => shown(unit("kg", 1.0), Some(unit("lb", 1.0 / crate::units::LB_KG))),
+        Unit::SPerM2 => shown(unit("s/m²", 1.0), None),
+        Unit::S2PerM5 => shown(unit("s²/m⁵", 1.0), None),
+        Unit::One => NUMBER,
+    }
 }
 
 fn join(number: String, label: &str) -> String {
@@ -249,15 +226,14 @@ mod tests {
     }
 
     #[test]
-    fn summary_unit_works() {
-        assert_eq!(summary_unit("peak_outward_flux_m_s"), Some(FLUX));
-        assert_eq!(summary_unit("peak_screen_flow_m3_s"), Some(FLOW));
-        assert_eq!(
-            summary_unit("specific_capacity_end_m2_s"),
-            Some(SPECIFIC_CAPACITY)
-        );
-        assert_eq!(summary_unit("work_cake_j"), Some(ENERGY));
-        assert_eq!(summary_unit("outer_radius_m"), Some(HEAD));
-        assert_eq!(summary_unit("skin_end"), None);
+    fn figures_are_shown_in_their_schema_unit() {
+        use crate::output::schema::Figure;
+        let of = |f: Figure| shown_for(f.entry().unit);
+        assert_eq!(of(Figure::PeakOutwardFlux), FLUX);
+        assert_eq!(of(Figure::PeakScreenFlow), FLOW);
+        assert_eq!(of(Figure::SpecificCapacityEnd), SPECIFIC_CAPACITY);
+        assert_eq!(of(Figure::Work(boreflux_solver::grid::Zone::Cake)), ENERGY);
+        assert_eq!(of(Figure::OuterRadius), HEAD);
+        assert_eq!(of(Figure::SkinEnd), NUMBER);
     }
 }

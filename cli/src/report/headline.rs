@@ -7,14 +7,16 @@ use std::fmt::Write;
 
 use boreflux_solver::safety::ENTRANCE_VELOCITY_RULE_M_S;
 
+use super::escape::esc;
 use super::format::{
-    change, count, duration, sig, summary_unit, with_units, Shown, ENERGY, FLOW, FLUX, HEAD,
-    NUMBER, PORE_VELOCITY, PRESSURE, SHEAR, SLOT_VELOCITY, SMALL_LENGTH, SPECIFIC_CAPACITY,
+    change, count, duration, shown_for, sig, with_units, Shown, ENERGY, FLOW, FLUX, HEAD, NUMBER,
+    PORE_VELOCITY, PRESSURE, SHEAR, SLOT_VELOCITY, SMALL_LENGTH, SPECIFIC_CAPACITY,
 };
-use super::html::esc;
-use super::read::{Run, Summary, ZONES};
+use super::read::{Run, Summary};
 use super::tables::header_row;
 use super::{run_letter, run_title};
+use crate::output::schema::Figure;
+use boreflux_solver::grid::Zone;
 
 /// A table cell: HTML-safe text and a CSS class ("" for none).
 struct Cell {
@@ -60,26 +62,27 @@ pub fn headline(runs: &[Run]) -> (String, BTreeSet<String>) {
             r#"<tr class="section"><th colspan="{ncols}">{name}</th></tr>"#
         );
     };
-    let mut row = |t: &mut String, label: &str, keys: &[&str], cell: &dyn Fn(&Summary) -> Cell| {
-        used.extend(keys.iter().map(|k| (*k).to_owned()));
-        let _ = write!(t, r#"<tr><th scope="row">{label}</th>"#);
-        for summary in &summaries {
-            let c = cell(summary);
-            if c.class.is_empty() {
-                let _ = write!(t, "<td>{}</td>", c.html);
-            } else {
-                let _ = write!(t, r#"<td class="{}">{}</td>"#, c.class, c.html);
+    let mut row =
+        |t: &mut String, label: &str, keys: &[Figure], cell: &dyn Fn(&Summary) -> Cell| {
+            used.extend(keys.iter().map(|k| k.name()));
+            let _ = write!(t, r#"<tr><th scope="row">{label}</th>"#);
+            for summary in &summaries {
+                let c = cell(summary);
+                if c.class.is_empty() {
+                    let _ = write!(t, "<td>{}</td>", c.html);
+                } else {
+                    let _ = write!(t, r#"<td class="{}">{}</td>"#, c.class, c.html);
+                }
             }
-        }
-        t.push_str("</tr>");
-    };
-    let one = |key: &'static str, shown: Shown| {
+            t.push_str("</tr>");
+        };
+    let one = |key: Figure, shown: Shown| {
         move |s: &Summary| {
             s.get(key)
                 .map_or_else(Cell::missing, |v| Cell::plain(with_units(v, &shown)))
         }
     };
-    let pair = |a: &'static str, b: &'static str, shown: Shown| {
+    let pair = |a: Figure, b: Figure, shown: Shown| {
         move |s: &Summary| match (s.get(a), s.get(b)) {
             (Some(x), Some(y)) => Cell::plain(change(x, y, &shown)),
             _ => Cell::missing(),
@@ -90,58 +93,52 @@ pub fn headline(runs: &[Run]) -> (String, BTreeSet<String>) {
     row(
         &mut t,
         "Peak outward face flux (Darcy)",
-        &["peak_outward_flux_m_s"],
-        &one("peak_outward_flux_m_s", FLUX),
+        &[Figure::PeakOutwardFlux],
+        &one(Figure::PeakOutwardFlux, FLUX),
     );
     row(
         &mut t,
         "Peak inward face flux (Darcy, magnitude)",
-        &["peak_inward_flux_m_s"],
-        &one("peak_inward_flux_m_s", FLUX),
+        &[Figure::PeakInwardFlux],
+        &one(Figure::PeakInwardFlux, FLUX),
     );
     row(
         &mut t,
         "Peak outward pore velocity",
-        &["peak_outward_pore_velocity_m_s"],
-        &one("peak_outward_pore_velocity_m_s", PORE_VELOCITY),
+        &[Figure::PeakOutwardPoreVelocity],
+        &one(Figure::PeakOutwardPoreVelocity, PORE_VELOCITY),
     );
     row(
         &mut t,
         "Peak inward pore velocity (magnitude)",
-        &["peak_inward_pore_velocity_m_s"],
-        &one("peak_inward_pore_velocity_m_s", PORE_VELOCITY),
+        &[Figure::PeakInwardPoreVelocity],
+        &one(Figure::PeakInwardPoreVelocity, PORE_VELOCITY),
     );
     row(
         &mut t,
         "RMS face flux",
-        &["rms_face_flux_m_s"],
-        &one("rms_face_flux_m_s", FLUX),
+        &[Figure::RmsFaceFlux],
+        &one(Figure::RmsFaceFlux, FLUX),
     );
     row(
         &mut t,
         "Peak shear proxy (pack side)",
-        &["peak_shear_pa"],
-        &one("peak_shear_pa", SHEAR),
+        &[Figure::PeakShear],
+        &one(Figure::PeakShear, SHEAR),
     );
     row(
         &mut t,
         "Peak flow through the screen (magnitude)",
-        &["peak_screen_flow_m3_s"],
-        &one("peak_screen_flow_m3_s", FLOW),
+        &[Figure::PeakScreenFlow],
+        &one(Figure::PeakScreenFlow, FLOW),
     );
 
     section(&mut t, "Energy dissipated over the run (work)");
-    for zone in ZONES {
-        let key: &'static str = match zone {
-            "screen" => "work_screen_j",
-            "pack" => "work_pack_j",
-            "cake" => "work_cake_j",
-            "invaded" => "work_invaded_j",
-            _ => "work_formation_j",
-        };
+    for zone in Zone::ALL {
+        let key = Figure::Work(zone);
         row(
             &mut t,
-            &format!("Work in the {zone}"),
+            &format!("Work in the {}", zone.name()),
             &[key],
             &one(key, ENERGY),
         );
@@ -151,40 +148,44 @@ pub fn headline(runs: &[Run]) -> (String, BTreeSet<String>) {
     row(
         &mut t,
         "Cake thickness, start → end",
-        &["cake_thickness_start_m", "cake_thickness_end_m"],
+        &[Figure::CakeThicknessStart, Figure::CakeThicknessEnd],
         &pair(
-            "cake_thickness_start_m",
-            "cake_thickness_end_m",
+            Figure::CakeThicknessStart,
+            Figure::CakeThicknessEnd,
             SMALL_LENGTH,
         ),
     );
     row(
         &mut t,
         "Time to remove 50 % / 90 % of the cake",
-        &["time_to_half_cake_s", "time_to_90pct_cake_s"],
+        &[Figure::TimeToHalfCake, Figure::TimeTo90pctCake],
         &|s: &Summary| {
             let f = |k| s.get(k).map_or_else(|| "not reached".to_owned(), duration);
             Cell::plain(format!(
                 "{} / {}",
-                f("time_to_half_cake_s"),
-                f("time_to_90pct_cake_s")
+                f(Figure::TimeToHalfCake),
+                f(Figure::TimeTo90pctCake)
             ))
         },
     );
     row(
         &mut t,
         "Skin, start → end",
-        &["skin_start", "skin_end"],
-        &pair("skin_start", "skin_end", NUMBER),
+        &[Figure::SkinStart, Figure::SkinEnd],
+        &pair(Figure::SkinStart, Figure::SkinEnd, NUMBER),
     );
     row(
         &mut t,
         "Virtual tests: design rate; constant-rate test; step duration",
-        &["design_rate_m3_s", "test_duration_s", "step_duration_s"],
+        &[
+            Figure::DesignRate,
+            Figure::TestDuration,
+            Figure::StepDuration,
+        ],
         &|s: &Summary| match (
-            s.get("design_rate_m3_s"),
-            s.get("test_duration_s"),
-            s.get("step_duration_s"),
+            s.get(Figure::DesignRate),
+            s.get(Figure::TestDuration),
+            s.get(Figure::StepDuration),
         ) {
             (Some(q), Some(t), Some(st)) => Cell::plain(format!(
                 "{}; {}; {}",
@@ -199,14 +200,14 @@ pub fn headline(runs: &[Run]) -> (String, BTreeSet<String>) {
         &mut t,
         "Drawdown at the end of the constant-rate test, start → end (undamaged well)",
         &[
-            "test_drawdown_start_m",
-            "test_drawdown_end_m",
-            "test_drawdown_undamaged_m",
+            Figure::TestDrawdownStart,
+            Figure::TestDrawdownEnd,
+            Figure::TestDrawdownUndamaged,
         ],
         &|s: &Summary| match (
-            s.get("test_drawdown_start_m"),
-            s.get("test_drawdown_end_m"),
-            s.get("test_drawdown_undamaged_m"),
+            s.get(Figure::TestDrawdownStart),
+            s.get(Figure::TestDrawdownEnd),
+            s.get(Figure::TestDrawdownUndamaged),
         ) {
             (Some(a), Some(b), Some(c)) => Cell::plain(format!(
                 "{} ({})",
@@ -219,20 +220,23 @@ pub fn headline(runs: &[Run]) -> (String, BTreeSet<String>) {
     row(
         &mut t,
         "Step test B (after one step), start → end [s/m²]",
-        &["step_b_start_s_m2", "step_b_end_s_m2"],
-        &pair("step_b_start_s_m2", "step_b_end_s_m2", NUMBER),
+        &[Figure::StepBStart, Figure::StepBEnd],
+        &pair(Figure::StepBStart, Figure::StepBEnd, NUMBER),
     );
     row(
         &mut t,
         "Step test C, start → end [s²/m⁵]",
-        &["step_c_start_s2_m5", "step_c_end_s2_m5"],
-        &pair("step_c_start_s2_m5", "step_c_end_s2_m5", NUMBER),
+        &[Figure::StepCStart, Figure::StepCEnd],
+        &pair(Figure::StepCStart, Figure::StepCEnd, NUMBER),
     );
     row(
         &mut t,
         "Nonlinear share C Q/(B + C Q) at the design rate, start → end",
-        &["nonlinear_share_start", "nonlinear_share_end"],
-        &|s: &Summary| match (s.get("nonlinear_share_start"), s.get("nonlinear_share_end")) {
+        &[Figure::NonlinearShareStart, Figure::NonlinearShareEnd],
+        &|s: &Summary| match (
+            s.get(Figure::NonlinearShareStart),
+            s.get(Figure::NonlinearShareEnd),
+        ) {
             (Some(a), Some(b)) => {
                 Cell::plain(format!("{} % → {} %", sig(100.0 * a), sig(100.0 * b)))
             }
@@ -242,8 +246,8 @@ pub fn headline(runs: &[Run]) -> (String, BTreeSet<String>) {
     row(
         &mut t,
         "Well efficiency, start → end (definition below)",
-        &["efficiency_start", "efficiency_end"],
-        &|s: &Summary| match (s.get("efficiency_start"), s.get("efficiency_end")) {
+        &[Figure::EfficiencyStart, Figure::EfficiencyEnd],
+        &|s: &Summary| match (s.get(Figure::EfficiencyStart), s.get(Figure::EfficiencyEnd)) {
             (Some(a), Some(b)) if (0.0..=1.0).contains(&a) && (0.0..=1.0).contains(&b) => {
                 Cell::plain(format!(
                     "{} → {} ({} % → {} %)",
@@ -260,10 +264,10 @@ pub fn headline(runs: &[Run]) -> (String, BTreeSet<String>) {
     row(
         &mut t,
         "Specific capacity, start → end",
-        &["specific_capacity_start_m2_s", "specific_capacity_end_m2_s"],
+        &[Figure::SpecificCapacityStart, Figure::SpecificCapacityEnd],
         &pair(
-            "specific_capacity_start_m2_s",
-            "specific_capacity_end_m2_s",
+            Figure::SpecificCapacityStart,
+            Figure::SpecificCapacityEnd,
             SPECIFIC_CAPACITY,
         ),
     );
@@ -272,9 +276,9 @@ pub fn headline(runs: &[Run]) -> (String, BTreeSet<String>) {
     row(
         &mut t,
         "Peak slot (entrance) velocity vs the 0.03 m/s (0.1 ft/s) rule of thumb (not a limit)",
-        &["peak_slot_velocity_m_s"],
+        &[Figure::PeakSlotVelocity],
         &|s: &Summary| {
-            let Some(v) = s.get("peak_slot_velocity_m_s") else {
+            let Some(v) = s.get(Figure::PeakSlotVelocity) else {
                 return Cell::missing();
             };
             let ratio = v / ENTRANCE_VELOCITY_RULE_M_S;
@@ -293,9 +297,9 @@ pub fn headline(runs: &[Run]) -> (String, BTreeSet<String>) {
     row(
         &mut t,
         "Peak grain Reynolds number (pack d50)",
-        &["peak_grain_reynolds"],
+        &[Figure::PeakGrainReynolds],
         &|s: &Summary| {
-            s.get("peak_grain_reynolds").map_or_else(
+            s.get(Figure::PeakGrainReynolds).map_or_else(
                 || Cell::plain("— (no pack d50 given)".into()),
                 |v| Cell::plain(sig(v)),
             )
@@ -304,32 +308,33 @@ pub fn headline(runs: &[Run]) -> (String, BTreeSet<String>) {
     row(
         &mut t,
         "Wall gradient ÷ critical gradient (formation side)",
-        &["piping_ratio"],
+        &[Figure::PipingRatio],
         &|s: &Summary| {
-            s.get("piping_ratio").map_or_else(Cell::missing, |v| Cell {
-                html: esc(&sig(v)),
-                class: if v > 1.0 { "flag" } else { "" },
-            })
+            s.get(Figure::PipingRatio)
+                .map_or_else(Cell::missing, |v| Cell {
+                    html: esc(&sig(v)),
+                    class: if v > 1.0 { "flag" } else { "" },
+                })
         },
     );
     row(
         &mut t,
         "Peak collapse load: inward difference across the screen, or in-well drawdown against the formation (larger)",
-        &["peak_collapse_pressure_pa"],
-        &one("peak_collapse_pressure_pa", PRESSURE),
+        &[Figure::PeakCollapsePressure],
+        &one(Figure::PeakCollapsePressure, PRESSURE),
     );
     row(
         &mut t,
         "Peak outward (burst-direction) pressure difference",
-        &["peak_burst_pressure_pa"],
-        &one("peak_burst_pressure_pa", PRESSURE),
+        &[Figure::PeakBurstPressure],
+        &one(Figure::PeakBurstPressure, PRESSURE),
     );
     row(
         &mut t,
         "Collapse rating of screen or casing",
-        &["collapse_rating_pa"],
+        &[Figure::CollapseRating],
         &|s: &Summary| {
-            s.get("collapse_rating_pa").map_or_else(
+            s.get(Figure::CollapseRating).map_or_else(
                 || Cell::plain("not given — enter the manufacturer's rating".into()),
                 |v| Cell::plain(with_units(v, &PRESSURE)),
             )
@@ -338,8 +343,8 @@ pub fn headline(runs: &[Run]) -> (String, BTreeSet<String>) {
     row(
         &mut t,
         "Collapse margin: rating ÷ (safety factor × peak); below 1 is a warning",
-        &["collapse_margin"],
-        &|s: &Summary| match s.get("collapse_margin") {
+        &[Figure::CollapseMargin],
+        &|s: &Summary| match s.get(Figure::CollapseMargin) {
             Some(m) if m < 1.0 => Cell {
                 html: esc(&format!("{} — BELOW 1", sig(m))),
                 class: "alarm",
@@ -353,42 +358,52 @@ pub fn headline(runs: &[Run]) -> (String, BTreeSet<String>) {
     row(
         &mut t,
         "Largest step volume-balance residual (relative)",
-        &["max_mass_residual"],
-        &one("max_mass_residual", NUMBER),
+        &[Figure::MaxMassResidual],
+        &one(Figure::MaxMassResidual, NUMBER),
     );
     row(
         &mut t,
         "Energy closure over the run (relative)",
-        &["energy_closure"],
-        &one("energy_closure", NUMBER),
+        &[Figure::EnergyClosure],
+        &one(Figure::EnergyClosure, NUMBER),
     );
     row(
         &mut t,
         "Grid cells / time steps / complete cycles",
-        &["cells", "steps", "cycles"],
+        &[Figure::Cells, Figure::Steps, Figure::Cycles],
         &|s: &Summary| {
             let f = |k| s.get(k).map_or_else(|| "—".to_owned(), count);
-            Cell::plain(format!("{} / {} / {}", f("cells"), f("steps"), f("cycles")))
+            Cell::plain(format!(
+                "{} / {} / {}",
+                f(Figure::Cells),
+                f(Figure::Steps),
+                f(Figure::Cycles)
+            ))
         },
     );
     row(
         &mut t,
         "Most Newton iterations in one step",
-        &["max_newton_iterations"],
+        &[Figure::MaxNewtonIterations],
         &|s: &Summary| {
-            s.get("max_newton_iterations")
+            s.get(Figure::MaxNewtonIterations)
                 .map_or_else(Cell::missing, |v| Cell::plain(count(v)))
         },
     );
-    row(&mut t, "Simulated time", &["end_time_s"], &|s: &Summary| {
-        s.get("end_time_s")
-            .map_or_else(Cell::missing, |v| Cell::plain(duration(v)))
-    });
+    row(
+        &mut t,
+        "Simulated time",
+        &[Figure::EndTime],
+        &|s: &Summary| {
+            s.get(Figure::EndTime)
+                .map_or_else(Cell::missing, |v| Cell::plain(duration(v)))
+        },
+    );
     row(
         &mut t,
         "Outer radius of the model",
-        &["outer_radius_m"],
-        &one("outer_radius_m", HEAD),
+        &[Figure::OuterRadius],
+        &one(Figure::OuterRadius, HEAD),
     );
     t.push_str("</tbody></table>");
     (t, used)
@@ -398,9 +413,9 @@ pub fn headline(runs: &[Run]) -> (String, BTreeSet<String>) {
 fn completed_summary(run: &Run) -> Summary {
     let mut s = run.summary.clone();
     let flow = &run.series.screen_flow;
-    if s.get("peak_screen_flow_m3_s").is_none() && !flow.is_empty() {
+    if s.get(Figure::PeakScreenFlow).is_none() && !flow.is_empty() {
         let peak = flow.iter().fold(0.0, |m: f64, q| m.max(q.abs()));
-        s.values.insert("peak_screen_flow_m3_s".to_owned(), peak);
+        s.values.insert(Figure::PeakScreenFlow.name(), peak);
     }
     s
 }
@@ -419,7 +434,8 @@ pub fn other_values(runs: &[Run], used: &BTreeSet<String>) -> Option<String> {
     for key in keys {
         let _ = write!(t, r#"<tr><th scope="row"><code>{}</code></th>"#, esc(key));
         for run in runs {
-            let cell = match (run.summary.get(key), summary_unit(key)) {
+            let shown = Figure::from_name(key).map(|f| shown_for(f.entry().unit));
+            let cell = match (run.summary.get_named(key), shown) {
                 (Some(v), Some(shown)) => with_units(v, &shown),
                 (Some(v), None) => sig(v),
                 (None, _) => "—".to_owned(),

@@ -6,25 +6,10 @@ use std::fmt::Write;
 
 use boreflux_solver::safety::CAUTION;
 
+use super::escape::esc;
 use super::figures::{figures, run_style};
 use super::read::Run;
 use super::{headline, run_letter, run_title, tables};
-
-/// Escapes text for HTML and SVG content and attribute values.
-pub fn esc(text: &str) -> String {
-    let mut out = String::with_capacity(text.len());
-    for c in text.chars() {
-        match c {
-            '&' => out.push_str("&amp;"),
-            '<' => out.push_str("&lt;"),
-            '>' => out.push_str("&gt;"),
-            '"' => out.push_str("&quot;"),
-            '\'' => out.push_str("&#39;"),
-            c => out.push(c),
-        }
-    }
-    out
-}
 
 pub(super) const STYLE: &str = "\
 body{font-family:sans-serif;max-width:1000px;margin:1.5em auto;padding:0 1em;color:#111;line-height:1.4}

@@ -22,6 +22,7 @@
 //! the destination and renamed over it only when complete.
 
 mod decimate;
+mod escape;
 mod figures;
 mod format;
 mod headline;
@@ -36,6 +37,7 @@ mod ticks;
 use std::path::{Path, PathBuf};
 
 use crate::output::{OutputError, TempTarget};
+use crate::read_error::ReadError;
 use read::Run;
 
 /// Why a report could not be written.
@@ -45,12 +47,19 @@ pub enum ReportError {
     #[error("no run files given; name one or more .h5 files written by `boreflux run`")]
     NoInputs,
     /// A run file is missing, not a boreflux result file, or lacks a dataset.
-    #[error("{}: {message}", path.display())]
+    #[error("{}: {source}", path.display())]
     Input {
         /// The run file as given.
         path: PathBuf,
         /// What is wrong with it, naming the missing or bad object.
-        message: String,
+        #[source]
+        source: ReadError,
+    },
+    /// A sweep table was named with other files.
+    #[error("{}: a sweep table is reported on its own; name it alone", path.display())]
+    SweepNotAlone {
+        /// The sweep table.
+        path: PathBuf,
     },
     /// The report file could not be written.
     #[error("cannot write report {}: {source}", path.display())]
@@ -79,19 +88,16 @@ pub fn write_report(inputs: &[PathBuf], output: &Path) -> Result<(), ReportError
         .collect();
     let page = if let Some((path, table)) = sweeps.into_iter().next() {
         if inputs.len() > 1 {
-            return Err(ReportError::Input {
-                path: path.clone(),
-                message: "a sweep table is reported on its own; name it alone".to_owned(),
-            });
+            return Err(ReportError::SweepNotAlone { path: path.clone() });
         }
         sweep::page(&table)
     } else {
         let runs = inputs
             .iter()
             .map(|path| {
-                read::read_run(path).map_err(|message| ReportError::Input {
+                read::read_run(path).map_err(|source| ReportError::Input {
                     path: path.clone(),
-                    message,
+                    source,
                 })
             })
             .collect::<Result<Vec<Run>, _>>()?;

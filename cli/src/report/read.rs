@@ -9,18 +9,11 @@
 use std::collections::BTreeMap;
 use std::path::{Path, PathBuf};
 
-use boreflux_solver::grid::{Zone, ZONE_COUNT};
+use crate::output::schema::{Cycle, Figure, ProgressSeries, Step, SummaryText, CYCLE_INDEX};
+use crate::read_error::{FileKind, ReadError};
+use boreflux_solver::grid::Zone;
 use hdf5::types::{TypeDescriptor, VarLenAscii, VarLenUnicode};
 use hdf5::{Attribute, File, Location};
-
-/// Zone names, inner to outer, as used in `/series/work/<zone>` and `/cycles/work_<zone>`.
-pub const ZONES: [&str; ZONE_COUNT] = [
-    Zone::Screen.name(),
-    Zone::Pack.name(),
-    Zone::Cake.name(),
-    Zone::Invaded.name(),
-    Zone::Formation.name(),
-];
 
 /// Zone code of filter-pack cells in `/grid/zone`.
 pub const ZONE_CODE_PACK: i64 = 1;
@@ -91,8 +84,8 @@ pub struct Series {
     pub cake_thickness: Vec<f64>,
     /// Skin, –.
     pub skin: Vec<f64>,
-    /// Cumulative work per zone present in the file, J, in [`ZONES`] order.
-    pub work: Vec<(&'static str, Vec<f64>)>,
+    /// Cumulative work per zone present in the file, J, inner to outer.
+    pub work: Vec<(Zone, Vec<f64>)>,
 }
 
 /// `/cycles`, all of the length of `index`.
@@ -141,7 +134,8 @@ pub struct Snapshots {
 /// `/summary` attributes.
 #[derive(Debug, Clone, Default, PartialEq)]
 pub struct Summary {
-    /// Numeric attributes by name (units in the name suffix).
+    /// Numeric attributes by name (the schema's [`Figure`] names, and any others the file
+    /// holds).
     pub values: BTreeMap<String, f64>,
     /// `warnings`, one per line, blank lines dropped.
     pub warnings: Vec<String>,
@@ -154,8 +148,13 @@ pub struct Summary {
 }
 
 impl Summary {
-    /// A numeric summary value.
-    pub fn get(&self, name: &str) -> Option<f64> {
+    /// A headline figure, when the file has it.
+    pub fn get(&self, figure: Figure) -> Option<f64> {
+        self.values.get(&figure.name()).copied()
+    }
+
+    /// A numeric attribute by name (for attributes the schema does not know).
+    pub fn get_named(&self, name: &str) -> Option<f64> {
         self.values.get(name).copied()
     }
 }
@@ -174,14 +173,20 @@ impl Run {
 }
 
 /// Reads the run file at `path`. The error text does not repeat the path.
-pub fn read_run(path: &Path) -> Result<Run, String> {
+pub fn read_run(path: &Path) -> Result<Run, ReadError> {
     if !path.exists() {
-        return Err("no such file".to_owned());
+        return Err(ReadError::Missing);
     }
-    let file = File::open(path)
-        .map_err(|e| format!("not a boreflux result file (cannot open it as HDF5: {e})"))?;
-    if !file.link_exists("series") || !file.link_exists("series/time") {
-        return Err("not a boreflux result file (no /series/time)".to_owned());
+    let file = File::open(path).map_err(|source| ReadError::NotHdf5 {
+        kind: FileKind::Run,
+        source,
+    })?;
+    let time = format!("series/{}", Step::Time.entry().name);
+    if !file.link_exists("series") || !file.link_exists(&time) {
+        return Err(ReadError::NotOurs {
+            kind: FileKind::Run,
+            lacks: format!("no /{time}"),
+        });
     }
     let series = read_series(&file)?;
     Ok(Run {
@@ -196,17 +201,17 @@ pub fn read_run(path: &Path) -> Result<Run, String> {
     })
 }
 
-fn read_meta(file: &File) -> Result<Meta, String> {
+fn read_meta(file: &File) -> Result<Meta, ReadError> {
     let s = |name: &str| string_attr(file, "/", name);
     let mut case_json = s("case_json")?;
     if case_json.is_none() && file.link_exists("case_json") {
         // Older writers kept the case as a scalar string dataset.
         let ds = file
             .dataset("case_json")
-            .map_err(|e| format!("/case_json: {e}"))?;
+            .map_err(ReadError::hdf5("/case_json"))?;
         case_json = Some(
             ds.read_scalar::<VarLenUnicode>()
-                .map_err(|e| format!("/case_json: {e}"))?
+                .map_err(ReadError::hdf5("/case_json"))?
                 .as_str()
                 .to_owned(),
         );
@@ -221,7 +226,7 @@ fn read_meta(file: &File) -> Result<Meta, String> {
     })
 }
 
-fn read_grid(file: &File) -> Result<Grid, String> {
+fn read_grid(file: &File) -> Result<Grid, ReadError> {
     let r_center = vector(file, "grid/r_center", "m")?;
     let r_face = vector(file, "grid/r_face", "m")?;
     let zone: Vec<i64> = vector(file, "grid/zone", "")?
@@ -229,10 +234,13 @@ fn read_grid(file: &File) -> Result<Grid, String> {
         .map(|&z| z.round() as i64)
         .collect();
     if r_face.len() != r_center.len() + 1 {
-        return Err(format!(
-            "/grid/r_face has {} values, expected {} (one more than /grid/r_center)",
-            r_face.len(),
-            r_center.len() + 1
+        return Err(ReadError::invalid(
+            "/grid/r_face",
+            format!(
+                "{} values, expected {} (one more than /grid/r_center)",
+                r_face.len(),
+                r_center.len() + 1
+            ),
         ));
     }
     same_length("/grid/zone", zone.len(), "/grid/r_center", r_center.len())?;
@@ -243,87 +251,109 @@ fn read_grid(file: &File) -> Result<Grid, String> {
     })
 }
 
-fn read_series(file: &File) -> Result<Series, String> {
-    let time = vector(file, "series/time", "s")?;
+fn read_series(file: &File) -> Result<Series, ReadError> {
+    let path = |step: Step| format!("series/{}", step.entry().name);
+    let time = vector(file, &path(Step::Time), Step::Time.entry().unit.symbol())?;
     let n = time.len();
-    let column = |name: &str, units: &str| -> Result<Vec<f64>, String> {
-        let path = format!("series/{name}");
-        let v = vector(file, &path, units)?;
-        same_length(&format!("/{path}"), v.len(), "/series/time", n)?;
+    let column = |step: Step| -> Result<Vec<f64>, ReadError> {
+        let p = path(step);
+        let v = vector(file, &p, step.entry().unit.symbol())?;
+        same_length(
+            &format!("/{p}"),
+            v.len(),
+            &format!("/{}", path(Step::Time)),
+            n,
+        )?;
         Ok(v)
     };
     let mut work = Vec::new();
-    for zone in ZONES {
-        let path = format!("series/work/{zone}");
-        if file.link_exists("series/work") && file.link_exists(&path) {
-            work.push((zone, column(&format!("work/{zone}"), "J")?));
+    for zone in Zone::ALL {
+        let p = path(Step::Work(zone));
+        let group = p.rsplit_once('/').map_or("", |(g, _)| g);
+        if file.link_exists(group) && file.link_exists(&p) {
+            work.push((zone, column(Step::Work(zone))?));
         }
     }
     Ok(Series {
-        well_head: column("well_head", "m")?,
-        screen_flow: column("screen_flow", "m3/s")?,
-        face_flux: column("face_flux", "m/s")?,
-        shear_proxy: column("shear_proxy", "Pa")?,
-        cake_thickness: column("cake_thickness", "m")?,
-        skin: column("skin", "")?,
+        well_head: column(Step::WellHead)?,
+        screen_flow: column(Step::ScreenFlow)?,
+        face_flux: column(Step::FaceFlux)?,
+        shear_proxy: column(Step::ShearProxy)?,
+        cake_thickness: column(Step::CakeThickness)?,
+        skin: column(Step::Skin)?,
         work,
         time,
     })
 }
 
-fn read_cycles(file: &File) -> Result<Cycles, String> {
-    let index = vector(file, "cycles/index", "")?;
+fn read_cycles(file: &File) -> Result<Cycles, ReadError> {
+    let index_path = format!("cycles/{CYCLE_INDEX}");
+    let index = vector(file, &index_path, "1")?;
     let n = index.len();
-    let column = |name: &str, units: &str| -> Result<Vec<f64>, String> {
-        let path = format!("cycles/{name}");
-        let v = vector(file, &path, units)?;
-        same_length(&format!("/{path}"), v.len(), "/cycles/index", n)?;
+    let column = |cycle: Cycle| -> Result<Vec<f64>, ReadError> {
+        let e = cycle.entry();
+        let path = format!("cycles/{}", e.name);
+        let v = vector(file, &path, e.unit.symbol())?;
+        same_length(&format!("/{path}"), v.len(), &format!("/{index_path}"), n)?;
         Ok(v)
     };
     Ok(Cycles {
-        start_time: column("start_time", "s")?,
-        end_time: column("end_time", "s")?,
-        peak_outward_flux: column("peak_outward_flux", "m/s")?,
-        peak_inward_flux: column("peak_inward_flux", "m/s")?,
-        rms_face_flux: column("rms_face_flux", "m/s")?,
-        peak_shear: column("peak_shear", "Pa")?,
-        work_cake: column("work_cake", "J")?,
-        cake_removed: column("cake_removed", "m")?,
+        start_time: column(Cycle::StartTime)?,
+        end_time: column(Cycle::EndTime)?,
+        peak_outward_flux: column(Cycle::PeakOutwardFlux)?,
+        peak_inward_flux: column(Cycle::PeakInwardFlux)?,
+        rms_face_flux: column(Cycle::RmsFaceFlux)?,
+        peak_shear: column(Cycle::PeakShear)?,
+        work_cake: column(Cycle::Work(Zone::Cake))?,
+        cake_removed: column(Cycle::CakeRemoved)?,
         index,
     })
 }
 
 /// `/progress`, optional: files written before it existed, or whose virtual tests failed,
 /// have none.
-fn read_progress(file: &File) -> Result<Progress, String> {
-    if !file.link_exists("progress") {
+fn read_progress(file: &File) -> Result<Progress, ReadError> {
+    if !file.link_exists(ProgressSeries::GROUP) {
         return Ok(Progress::default());
     }
-    let time = vector(file, "progress/time", "s")?;
-    let column = |name: &str, units: &str| -> Result<Vec<f64>, String> {
-        let path = format!("progress/{name}");
-        let v = vector(file, &path, units)?;
-        same_length(&format!("/{path}"), v.len(), "/progress/time", time.len())?;
+    let read = |series: ProgressSeries| {
+        let path = series.path();
+        vector(file, &path[1..], series.entry().unit.symbol())
+    };
+    let time = read(ProgressSeries::Time)?;
+    let column = |series: ProgressSeries| -> Result<Vec<f64>, ReadError> {
+        let v = read(series)?;
+        same_length(
+            &series.path(),
+            v.len(),
+            &ProgressSeries::Time.path(),
+            time.len(),
+        )?;
         Ok(v)
     };
     Ok(Progress {
-        specific_capacity: column("specific_capacity", "m2/s")?,
-        efficiency: column("efficiency", "1")?,
+        specific_capacity: column(ProgressSeries::SpecificCapacity)?,
+        efficiency: column(ProgressSeries::Efficiency)?,
         time,
     })
 }
 
-fn read_snapshots(file: &File) -> Result<Snapshots, String> {
+fn read_snapshots(file: &File) -> Result<Snapshots, ReadError> {
     let time = vector(file, "snapshots/time", "s")?;
     let path = "snapshots/head";
     if !file.link_exists(path) {
-        return Err(format!("missing dataset /{path}"));
+        return Err(ReadError::MissingDataset {
+            object: format!("/{path}"),
+        });
     }
-    let ds = file.dataset(path).map_err(|e| format!("/{path}: {e}"))?;
+    let ds = file
+        .dataset(path)
+        .map_err(ReadError::hdf5(format!("/{path}")))?;
     let shape = ds.shape();
     if shape.len() != 2 {
-        return Err(format!(
-            "/{path}: expected 2-D (time × cell), found shape {shape:?}"
+        return Err(ReadError::invalid(
+            format!("/{path}"),
+            format!("expected 2-D (time × cell), found shape {shape:?}"),
         ));
     }
     same_length(
@@ -345,28 +375,29 @@ fn read_snapshots(file: &File) -> Result<Snapshots, String> {
     } else {
         let m = ds
             .read_2d::<f64>()
-            .map_err(|e| format!("/{path}: cannot read: {e}"))?;
+            .map_err(ReadError::hdf5(format!("/{path}")))?;
         m.outer_iter().map(|row| row.to_vec()).collect()
     };
     Ok(Snapshots { time, head })
 }
 
-fn read_summary(file: &File) -> Result<Summary, String> {
+fn read_summary(file: &File) -> Result<Summary, ReadError> {
     if !file.link_exists("summary") {
-        return Err("missing group /summary (the run may not have finished)".to_owned());
+        return Err(ReadError::MissingGroup {
+            object: "/summary".to_owned(),
+            hint: " (the run may not have finished)",
+        });
     }
-    let group = file
-        .group("summary")
-        .map_err(|e| format!("/summary: {e}"))?;
-    let names = group
-        .attr_names()
-        .map_err(|e| format!("/summary: cannot list attributes: {e}"))?;
+    let group = file.group("summary").map_err(ReadError::hdf5("/summary"))?;
+    let names = group.attr_names().map_err(ReadError::hdf5("/summary"))?;
     let mut summary = Summary::default();
     for name in names {
-        let attr = group
-            .attr(&name)
-            .map_err(|e| format!("/summary attribute {name}: {e}"))?;
-        let what = |e: hdf5::Error| format!("/summary attribute {name}: {e}");
+        let object = format!("/summary attribute {name}");
+        let attr = group.attr(&name).map_err(ReadError::hdf5(&object))?;
+        let what = |e: hdf5::Error| ReadError::Hdf5 {
+            object: object.clone(),
+            source: e,
+        };
         match attr.dtype().and_then(|t| t.to_descriptor()).map_err(what)? {
             TypeDescriptor::Float(_) | TypeDescriptor::Integer(_) | TypeDescriptor::Unsigned(_) => {
                 let v = attr.read_scalar::<f64>().map_err(what)?;
@@ -374,8 +405,9 @@ fn read_summary(file: &File) -> Result<Summary, String> {
             }
             TypeDescriptor::VarLenUnicode | TypeDescriptor::VarLenAscii => {
                 let text = read_string(&attr).map_err(what)?;
-                match name.as_str() {
-                    "warnings" => {
+                // Text attributes the schema does not list are not shown.
+                match SummaryText::from_name(&name) {
+                    Some(SummaryText::Warnings) => {
                         summary.warnings = text
                             .lines()
                             .map(str::trim)
@@ -383,8 +415,8 @@ fn read_summary(file: &File) -> Result<Summary, String> {
                             .map(str::to_owned)
                             .collect();
                     }
-                    "cautions" => summary.cautions = Some(text),
-                    "assumptions" => {
+                    Some(SummaryText::Cautions) => summary.cautions = Some(text),
+                    Some(SummaryText::Assumptions) => {
                         summary.assumptions = text
                             .lines()
                             .map(str::trim)
@@ -392,8 +424,10 @@ fn read_summary(file: &File) -> Result<Summary, String> {
                             .map(str::to_owned)
                             .collect();
                     }
-                    "efficiency_definition" => summary.efficiency_definition = Some(text),
-                    _ => {}
+                    Some(SummaryText::EfficiencyDefinition) => {
+                        summary.efficiency_definition = Some(text)
+                    }
+                    None => {}
                 }
             }
             _ => {}
@@ -408,40 +442,46 @@ fn read_summary(file: &File) -> Result<Summary, String> {
 pub(crate) const MAX_VALUES: usize = 50_000_000;
 
 /// Refuses a dataset of more than [`MAX_VALUES`] values.
-pub(crate) fn bounded(path: &str, n: usize) -> Result<(), String> {
+pub(crate) fn bounded(path: &str, n: usize) -> Result<(), ReadError> {
     if n > MAX_VALUES {
-        return Err(format!(
-            "/{}: declares {n} values, more than a report reads ({MAX_VALUES}); not a \
-             boreflux result file, or one too large to report",
-            path.trim_start_matches('/')
-        ));
+        return Err(ReadError::TooLarge {
+            object: format!("/{}", path.trim_start_matches('/')),
+            values: n,
+            max: MAX_VALUES,
+            kind: FileKind::Run,
+        });
     }
     Ok(())
 }
 
 /// A 1-D dataset as `f64`, with its `units` attribute checked against `units` ("" for a
 /// dimensionless quantity, which accepts "", "1" and "-").
-fn vector(file: &File, path: &str, units: &str) -> Result<Vec<f64>, String> {
+fn vector(file: &File, path: &str, units: &str) -> Result<Vec<f64>, ReadError> {
     let (group, _) = path.split_once('/').unwrap_or(("", path));
     if (!group.is_empty() && !file.link_exists(group)) || !file.link_exists(path) {
-        return Err(format!("missing dataset /{path}"));
+        return Err(ReadError::MissingDataset {
+            object: format!("/{path}"),
+        });
     }
-    let ds = file.dataset(path).map_err(|e| format!("/{path}: {e}"))?;
+    let ds = file
+        .dataset(path)
+        .map_err(ReadError::hdf5(format!("/{path}")))?;
     let shape = ds.shape();
     if shape.len() != 1 {
-        return Err(format!(
-            "/{path}: expected a 1-D dataset, found shape {shape:?}"
+        return Err(ReadError::invalid(
+            format!("/{path}"),
+            format!("expected a 1-D dataset, found shape {shape:?}"),
         ));
     }
     check_units(&ds, path, units)?;
     bounded(path, ds.size())?;
     ds.read_raw::<f64>()
-        .map_err(|e| format!("/{path}: cannot read as numbers: {e}"))
+        .map_err(ReadError::hdf5(format!("/{path}")))
 }
 
 /// Fails when the dataset's `units` attribute names another unit than the layout says
 /// (a wrong unit would scale every figure wrongly). A missing attribute is accepted.
-fn check_units(loc: &Location, path: &str, expected: &str) -> Result<(), String> {
+fn check_units(loc: &Location, path: &str, expected: &str) -> Result<(), ReadError> {
     let Some(found) = string_attr(loc, &format!("/{path}"), "units")? else {
         return Ok(());
     };
@@ -464,36 +504,38 @@ fn check_units(loc: &Location, path: &str, expected: &str) -> Result<(), String>
     if norm(&found) == norm(expected) {
         Ok(())
     } else {
-        Err(format!(
-            "/{path} has units \"{found}\", the report expects \"{expected}\""
-        ))
+        Err(ReadError::WrongUnits {
+            object: format!("/{path}"),
+            found,
+            expected: expected.to_owned(),
+        })
     }
 }
 
-fn same_length(what: &str, n: usize, reference: &str, expected: usize) -> Result<(), String> {
+fn same_length(what: &str, n: usize, reference: &str, expected: usize) -> Result<(), ReadError> {
     if n == expected {
         Ok(())
     } else {
-        Err(format!(
-            "{what} has {n} values but {reference} has {expected}"
-        ))
+        Err(ReadError::Length {
+            object: what.to_owned(),
+            found: n,
+            reference: reference.to_owned(),
+            expected,
+        })
     }
 }
 
 /// A string attribute of `loc`, or `None` when it does not exist.
-fn string_attr(loc: &Location, object: &str, name: &str) -> Result<Option<String>, String> {
-    let names = loc
-        .attr_names()
-        .map_err(|e| format!("{object}: cannot list attributes: {e}"))?;
+fn string_attr(loc: &Location, object: &str, name: &str) -> Result<Option<String>, ReadError> {
+    let names = loc.attr_names().map_err(ReadError::hdf5(object))?;
     if !names.iter().any(|n| n == name) {
         return Ok(None);
     }
-    let attr = loc
-        .attr(name)
-        .map_err(|e| format!("{object} attribute {name}: {e}"))?;
+    let object = format!("{object} attribute {name}");
+    let attr = loc.attr(name).map_err(ReadError::hdf5(&object))?;
     read_string(&attr)
         .map(Some)
-        .map_err(|e| format!("{object} attribute {name}: {e}"))
+        .map_err(ReadError::hdf5(object))
 }
 
 fn read_string(attr: &Attribute) -> hdf5::Result<String> {

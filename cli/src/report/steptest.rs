@@ -4,7 +4,8 @@
 
 use std::fmt::Write;
 
-use super::html::{esc, STYLE};
+use super::escape::esc;
+use super::html::STYLE;
 use super::svg::{render, Chart, Series, Style};
 use crate::steptest::text::{sig, EFFICIENCY_DEFINITION, INTERVAL_NOTE};
 use crate::steptest::Outcome;
@@ -177,7 +178,7 @@ pub fn page(o: &Outcome, source: &str) -> String {
             let _ = writeln!(
                 h,
                 "<tr><th>power law s = B Q + C Qⁿ</th><td colspan=\"4\">not fitted: {}</td></tr>",
-                esc(e)
+                esc(&e.to_string())
             );
         }
         Some(Ok(p)) => {

@@ -10,7 +10,7 @@
 use std::fmt::Write;
 
 use super::decimate::decimate;
-use super::html::esc;
+use super::escape::esc;
 pub use super::ticks::Scale;
 use super::ticks::{linear_labels, multiples, nice_step, ticks_for, Tick};
 

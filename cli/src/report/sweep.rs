@@ -7,76 +7,83 @@ use std::fmt::Write;
 
 use boreflux_solver::safety::CAUTION;
 
+use super::escape::esc;
 use super::figures::run_style;
-use super::format::{sig, summary_unit, Shown, NUMBER};
-use super::html::{esc, STYLE};
+use super::format::{shown_for, sig, Shown};
+use super::html::STYLE;
 use super::svg::{render, Chart, SecondAxis, Series};
 use super::ticks::Scale;
+use crate::output::schema::Figure;
 use crate::sweep::table::Table;
+use boreflux_solver::grid::Zone;
 
 /// The figures charted and tabled, with their chart titles and table headings: what a
 /// development plan is judged by.
-const KEY: [(&str, &str, &str); 15] = [
+const KEY: [(Figure, &str, &str); 15] = [
     (
-        "peak_outward_flux_m_s",
+        Figure::PeakOutwardFlux,
         "Peak outward Darcy flux at the wall",
         "Flux out",
     ),
     (
-        "peak_inward_flux_m_s",
+        Figure::PeakInwardFlux,
         "Peak inward Darcy flux at the wall",
         "Flux in",
     ),
-    ("peak_shear_pa", "Peak shear proxy at the wall", "Shear"),
+    (Figure::PeakShear, "Peak shear proxy at the wall", "Shear"),
     (
-        "cake_thickness_end_m",
+        Figure::CakeThicknessEnd,
         "Cake thickness at the end",
         "Cake end",
     ),
-    ("skin_end", "Skin at the end", "Skin end"),
+    (Figure::SkinEnd, "Skin at the end", "Skin end"),
     (
-        "efficiency_end",
+        Figure::EfficiencyEnd,
         "Well efficiency at the end (virtual test)",
         "Efficiency end",
     ),
     (
-        "specific_capacity_end_m2_s",
+        Figure::SpecificCapacityEnd,
         "Specific capacity at the end (virtual test)",
         "Spec. capacity end",
     ),
     (
-        "step_c_end_s2_m5",
+        Figure::StepCEnd,
         "Step-test C at the end (virtual test)",
         "C end",
     ),
-    ("work_cake_j", "Work dissipated in the cake", "Cake work"),
     (
-        "peak_slot_velocity_m_s",
+        Figure::Work(Zone::Cake),
+        "Work dissipated in the cake",
+        "Cake work",
+    ),
+    (
+        Figure::PeakSlotVelocity,
         "Peak slot velocity",
         "Slot velocity",
     ),
     (
-        "peak_collapse_pressure_pa",
+        Figure::PeakCollapsePressure,
         "Peak collapse load on screen or casing",
         "Collapse load",
     ),
     (
-        "collapse_margin",
+        Figure::CollapseMargin,
         "Collapse margin, rating / (safety factor × load), the lower of screen and casing",
         "Collapse margin",
     ),
     (
-        "piping_ratio",
+        Figure::PipingRatio,
         "Wall gradient over the critical gradient",
         "Gradient ratio",
     ),
     (
-        "peak_grain_reynolds",
+        Figure::PeakGrainReynolds,
         "Peak grain Reynolds number (pack d50)",
         "Reynolds",
     ),
     (
-        "column_partings",
+        Figure::ColumnPartings,
         "Column partings at the vapour bound",
         "Partings",
     ),
@@ -85,24 +92,25 @@ const KEY: [(&str, &str, &str); 15] = [
 /// Whether a key figure's value is a warning in a single-run report too: a collapse margin
 /// below 1, a gradient above the critical one, a slot velocity above the rule of thumb, a
 /// grain Reynolds number above 1, a parted column.
-fn flagged(name: &str, v: f64) -> bool {
-    match name {
-        "collapse_margin" => v < 1.0,
-        "piping_ratio" => v > 1.0,
-        "peak_slot_velocity_m_s" => v > boreflux_solver::safety::ENTRANCE_VELOCITY_RULE_M_S,
-        "peak_grain_reynolds" => v > 1.0,
-        "column_partings" => v > 0.0,
+fn flagged(figure: Figure, v: f64) -> bool {
+    match figure {
+        Figure::CollapseMargin => v < 1.0,
+        Figure::PipingRatio => v > 1.0,
+        Figure::PeakSlotVelocity => v > boreflux_solver::safety::ENTRANCE_VELOCITY_RULE_M_S,
+        Figure::PeakGrainReynolds => v > 1.0,
+        Figure::ColumnPartings => v > 0.0,
         _ => false,
     }
 }
 
-/// How a figure is shown: the unit of its name's suffix, plain numbers otherwise.
-fn shown(name: &str) -> Shown {
-    match name {
-        "cake_thickness_end_m" => super::format::SMALL_LENGTH,
-        "peak_slot_velocity_m_s" => super::format::SLOT_VELOCITY,
-        "peak_shear_pa" => super::format::SHEAR,
-        _ => summary_unit(name).unwrap_or(NUMBER),
+/// How a figure is shown: in the display unit of its schema unit, with finer units for the
+/// cake thickness, the slot velocity and the shear.
+fn shown(figure: Figure) -> Shown {
+    match figure {
+        Figure::CakeThicknessEnd => super::format::SMALL_LENGTH,
+        Figure::PeakSlotVelocity => super::format::SLOT_VELOCITY,
+        Figure::PeakShear => super::format::SHEAR,
+        other => shown_for(other.entry().unit),
     }
 }
 
@@ -252,8 +260,9 @@ fn charts(h: &mut String, t: &Table) {
             String::new()
         }
     );
-    for (n, (name, title, _)) in KEY.iter().enumerate() {
-        let Some(col) = t.figures.iter().position(|f| f == name) else {
+    for (n, (figure, title, _)) in KEY.iter().enumerate() {
+        let name = figure.name();
+        let Some(col) = t.figures.iter().position(|f| *f == name) else {
             continue;
         };
         let ys: Vec<Vec<f64>> = lines
@@ -263,7 +272,7 @@ fn charts(h: &mut String, t: &Table) {
         if ys.iter().flatten().all(|y| !y.is_finite()) {
             continue;
         }
-        let s = shown(name);
+        let s = shown(*figure);
         let mut c = Chart::new(
             &format!("sweep{n}"),
             title,
@@ -302,13 +311,14 @@ fn charts(h: &mut String, t: &Table) {
 
 /// The table of every scenario: its values, the key figures and its status.
 fn table(h: &mut String, t: &Table) {
-    let cols: Vec<(usize, &str, &str, Shown)> = KEY
+    let cols: Vec<(usize, Figure, &str, Shown)> = KEY
         .iter()
-        .filter_map(|(name, _, heading)| {
+        .filter_map(|(figure, _, heading)| {
+            let name = figure.name();
             t.figures
                 .iter()
-                .position(|f| f == name)
-                .map(|i| (i, *name, *heading, shown(name)))
+                .position(|f| *f == name)
+                .map(|i| (i, *figure, *heading, shown(*figure)))
         })
         .collect();
     h.push_str(
@@ -336,9 +346,9 @@ fn table(h: &mut String, t: &Table) {
         for l in &r.labels {
             let _ = write!(h, "<td>{}</td>", esc(l));
         }
-        for (i, name, _, s) in &cols {
+        for (i, figure, _, s) in &cols {
             let v = r.figures[*i];
-            let class = if flagged(name, v) {
+            let class = if flagged(*figure, v) {
                 " class=\"flag\""
             } else {
                 ""

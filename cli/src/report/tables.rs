@@ -5,11 +5,11 @@ use std::fmt::Write;
 
 use serde_json::Value;
 
+use super::escape::esc;
 use super::format::{
     count, duration, sig, temperature, with_units, Shown, AREA, CONDUCTIVITY, ERODIBILITY, FLOW,
     FORCHHEIMER_BETA, FREQUENCY, HEAD, NUMBER, PRESSURE, SHEAR, SMALL_LENGTH, SPECIFIC_STORAGE,
 };
-use super::html::esc;
 use super::read::Run;
 use super::run_letter;
 

@@ -34,7 +34,7 @@ pub struct Options {
     pub confidence: f64,
     /// Early fraction of each step left out of the series fit.
     pub skip_fraction: f64,
-    /// Common elapsed time [s], or the shortest step.
+    /// Common elapsed time, s, or the shortest step.
     pub reference_time_s: Option<f64>,
     /// Also fit s = B Q + C Qⁿ (Rorabaugh).
     pub power: bool,
@@ -49,12 +49,12 @@ pub struct Outcome {
     pub fit: LineFit,
     /// Per-step figures (drawdowns as fitted: corrected for Hantush–Bierschenk).
     pub figures: Vec<StepFigures>,
-    /// Measured drawdown at the end of each step [m].
+    /// Measured drawdown at the end of each step, m.
     pub measured_m: Vec<f64>,
     /// The series fit, for Hantush–Bierschenk.
     pub series: Option<HantushAnalysis>,
     /// The power-law fit when asked for: the fit, or why it could not be made.
-    pub power: Option<Result<PowerFit, String>>,
+    pub power: Option<Result<PowerFit, StepTestError>>,
 }
 
 impl Outcome {
@@ -68,17 +68,35 @@ impl Outcome {
                     drawdown_m: g.drawdown_m,
                 })
                 .collect();
-            self.power =
-                Some(rorabaugh::fit_power(&steps, self.fit.confidence).map_err(|e| e.to_string()));
+            self.power = Some(rorabaugh::fit_power(&steps, self.fit.confidence));
         }
         self
     }
 }
 
+/// Why a step test could not be analysed; bad input (exit 2).
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+pub enum AnalysisError {
+    /// The fit failed; `line` is the file line of the step or reading at fault, if any.
+    #[error("{}{source}", line.map(|l| format!("line {l}: ")).unwrap_or_default())]
+    Fit {
+        /// File line, from 1.
+        line: Option<usize>,
+        /// The fit's error.
+        source: StepTestError,
+    },
+    /// Hantush–Bierschenk asked of a file of one row per step.
+    #[error(
+        "the Hantush–Bierschenk method needs the time series (a time_<unit> column); this \
+         file has one row per step"
+    )]
+    HantushNeedsSeries,
+}
+
 /// Runs the analysis. Errors are bad input (exit 2); they name the file line where a step
 /// or reading is at fault.
-pub fn analyse(data: &StepData, opts: &Options) -> Result<Outcome, String> {
-    let locate = |e: StepTestError| -> String {
+pub fn analyse(data: &StepData, opts: &Options) -> Result<Outcome, AnalysisError> {
+    let locate = |e: StepTestError| -> AnalysisError {
         let row = match &e {
             StepTestError::BadStep { step, .. } if matches!(data, StepData::Steps { .. }) => {
                 Some(*step)
@@ -86,13 +104,13 @@ pub fn analyse(data: &StepData, opts: &Options) -> Result<Outcome, String> {
             StepTestError::BadSample { row, .. } => Some(*row),
             _ => None,
         };
-        match row.and_then(|r| data.line_of(r)) {
-            Some(line) => format!("line {line}: {e}"),
-            None => e.to_string(),
+        AnalysisError::Fit {
+            line: row.and_then(|r| data.line_of(r)),
+            source: e,
         }
     };
     // The Jacob line through end-of-step drawdowns.
-    let jacob_line = |steps: &[_]| -> Result<Outcome, String> {
+    let jacob_line = |steps: &[_]| -> Result<Outcome, AnalysisError> {
         let a = jacob::fit_steps(steps, opts.weighting, opts.confidence).map_err(locate)?;
         Ok(Outcome {
             method: "jacob",
@@ -105,11 +123,7 @@ pub fn analyse(data: &StepData, opts: &Options) -> Result<Outcome, String> {
         .with_power(opts.power))
     };
     match (data, opts.method) {
-        (StepData::Steps { .. }, Method::Hantush) => Err(
-            "the Hantush–Bierschenk method needs the time series (a time_<unit> column); \
-             this file has one row per step"
-                .to_owned(),
-        ),
+        (StepData::Steps { .. }, Method::Hantush) => Err(AnalysisError::HantushNeedsSeries),
         (StepData::Steps { steps, .. }, _) => jacob_line(steps),
         (StepData::Series { samples, .. }, Method::Jacob) => {
             let spans = series::split_steps(samples).map_err(locate)?;

@@ -16,18 +16,10 @@ error, with n − 2 degrees of freedom; they assume independent, normally distri
 of the stated weighting and that s = B Q + C Q² holds. The efficiency's interval is first \
 order (delta method).";
 
-/// `v` to 4 significant digits: plain between 1e-3 and 1e5, else scientific.
+/// `v` to 4 significant digits: plain between 1e-3 and 1e5, else scientific
+/// ([`crate::sigfig`]).
 pub fn sig(v: f64) -> String {
-    if v == 0.0 || !v.is_finite() {
-        return format!("{v}");
-    }
-    let a = v.abs();
-    if (1e-3..1e5).contains(&a) {
-        let decimals = (3 - a.log10().floor() as i32).max(0) as usize;
-        format!("{v:.decimals$}")
-    } else {
-        format!("{v:.3e}")
-    }
+    crate::sigfig::text(v, 4)
 }
 
 fn weighting_name(w: Weighting) -> &'static str {
@@ -206,7 +198,7 @@ pub fn to_json(o: &Outcome) -> Value {
     });
     match &o.power {
         None => {}
-        Some(Err(e)) => v["power"] = json!({ "error": e }),
+        Some(Err(e)) => v["power"] = json!({ "error": e.to_string() }),
         Some(Ok(p)) => {
             v["power"] = json!({
                 "law": "s = B Q + C Q^n",

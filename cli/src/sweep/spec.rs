@@ -48,15 +48,84 @@ impl fmt::Display for SpecError {
 
 impl std::error::Error for SpecError {}
 
+/// What is wrong with one `--vary` path or value list (the caller adds `--vary PATH=…`).
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+pub enum VaryError {
+    /// `PATH=` with no path.
+    #[error("the path is empty")]
+    EmptyPath,
+    /// `a..b` with an empty key.
+    #[error("empty key in path `{0}`")]
+    EmptyKey(String),
+    /// `PATH=` with no values.
+    #[error("no values")]
+    NoValues,
+    /// `a,,b`.
+    #[error("empty value in `{0}`")]
+    EmptyValue(String),
+    /// A range end that does not start with a number.
+    #[error("`{0}` does not start with a number")]
+    NotANumber(String),
+    /// A range end that is not finite.
+    #[error("`{0}` is not a finite number")]
+    NotFinite(String),
+    /// A range not written `A..B:N` or `A..B:N:log`.
+    #[error("a range is A..B:N or A..B:N:log")]
+    RangeUsage,
+    /// A range option other than `log`.
+    #[error("unknown range option `{0}`; a range is A..B:N or A..B:N:log")]
+    RangeOption(String),
+    /// Range ends in different units.
+    #[error("both ends of a range need the same unit, got `{0}` and `{1}`")]
+    RangeUnits(String, String),
+    /// A count that is not a whole number.
+    #[error("`{0}` is not a count of values; a range is A..B:N or A..B:N:log")]
+    RangeCount(String),
+    /// A count out of bounds.
+    #[error("a range needs 2 to {MAX_VALUES} values, got {0}")]
+    RangeSize(usize),
+    /// A log range through or at zero.
+    #[error("a log range needs two ends of one sign, neither zero")]
+    LogRangeSign,
+    /// A key below a value that is not an object.
+    #[error("`{walked}` is not an object, cannot set `{key}`")]
+    NotAnObject {
+        /// The path walked so far.
+        walked: String,
+        /// The key to set.
+        key: String,
+    },
+    /// An index below a value that is not an array.
+    #[error("`{walked}` is not an array, cannot index [{index}]")]
+    NotAnArray {
+        /// The path walked so far.
+        walked: String,
+        /// The index.
+        index: usize,
+    },
+    /// An index past the end of an array.
+    #[error("`{walked}` has {len} entries, index {index} is out of range")]
+    IndexOutOfRange {
+        /// The path walked so far.
+        walked: String,
+        /// Entries in the array.
+        len: usize,
+        /// The index.
+        index: usize,
+    },
+}
+
 /// Largest number of values in one range, and of scenarios in one sweep.
 pub const MAX_VALUES: usize = 100_000;
 
 /// Parses `PATH=SPEC`.
 pub fn parse_vary(arg: &str) -> Result<Variable, SpecError> {
-    let err = |m: String| SpecError(format!("--vary {arg}: {m}"));
-    let (path, spec) = arg
-        .split_once('=')
-        .ok_or_else(|| err("expected PATH=VALUES, e.g. drive.stroke=0.3m,0.6m".into()))?;
+    let err = |m: VaryError| SpecError(format!("--vary {arg}: {m}"));
+    let (path, spec) = arg.split_once('=').ok_or_else(|| {
+        SpecError(format!(
+            "--vary {arg}: expected PATH=VALUES, e.g. drive.stroke=0.3m,0.6m"
+        ))
+    })?;
     let path = path.trim();
     let segments = parse_path(path).map_err(err)?;
     let values = parse_values(spec.trim()).map_err(err)?;
@@ -67,15 +136,15 @@ pub fn parse_vary(arg: &str) -> Result<Variable, SpecError> {
     })
 }
 
-fn parse_path(path: &str) -> Result<Vec<Segment>, String> {
+fn parse_path(path: &str) -> Result<Vec<Segment>, VaryError> {
     if path.is_empty() {
-        return Err("the path is empty".into());
+        return Err(VaryError::EmptyPath);
     }
     path.split('.')
         .map(|s| {
             let s = s.trim();
             if s.is_empty() {
-                Err(format!("empty key in path `{path}`"))
+                Err(VaryError::EmptyKey(path.to_owned()))
             } else if let Ok(i) = s.parse::<usize>() {
                 Ok(Segment::Index(i))
             } else {
@@ -85,9 +154,9 @@ fn parse_path(path: &str) -> Result<Vec<Segment>, String> {
         .collect()
 }
 
-fn parse_values(spec: &str) -> Result<Vec<Value>, String> {
+fn parse_values(spec: &str) -> Result<Vec<Value>, VaryError> {
     if spec.is_empty() {
-        return Err("no values".into());
+        return Err(VaryError::NoValues);
     }
     if let Some((a, rest)) = spec.split_once("..") {
         return parse_range(a.trim(), rest.trim());
@@ -96,7 +165,7 @@ fn parse_values(spec: &str) -> Result<Vec<Value>, String> {
         .map(|v| {
             let v = v.trim();
             if v.is_empty() {
-                Err(format!("empty value in `{spec}`"))
+                Err(VaryError::EmptyValue(spec.to_owned()))
             } else {
                 Ok(scalar(v))
             }
@@ -127,7 +196,7 @@ fn number(x: f64) -> Value {
 }
 
 /// Splits `0.3 m`, `0.3m` or `0.3` into the number and the unit text (possibly empty).
-fn number_and_unit(text: &str) -> Result<(f64, String), String> {
+fn number_and_unit(text: &str) -> Result<(f64, String), VaryError> {
     let end = text
         .char_indices()
         .find(|&(i, c)| {
@@ -142,41 +211,36 @@ fn number_and_unit(text: &str) -> Result<(f64, String), String> {
         .map_or(text.len(), |(i, _)| i);
     let x: f64 = text[..end]
         .parse()
-        .map_err(|_| format!("`{text}` does not start with a number"))?;
+        .map_err(|_| VaryError::NotANumber(text.to_owned()))?;
     if !x.is_finite() {
-        return Err(format!("`{text}` is not a finite number"));
+        return Err(VaryError::NotFinite(text.to_owned()));
     }
     Ok((x, text[end..].trim().to_owned()))
 }
 
-fn parse_range(a: &str, rest: &str) -> Result<Vec<Value>, String> {
-    let usage = "a range is A..B:N or A..B:N:log";
+fn parse_range(a: &str, rest: &str) -> Result<Vec<Value>, VaryError> {
     let mut parts = rest.split(':');
     let b = parts.next().unwrap_or("").trim();
-    let n = parts.next().ok_or_else(|| usage.to_owned())?.trim();
+    let n = parts.next().ok_or(VaryError::RangeUsage)?.trim();
     let log = match parts.next().map(str::trim) {
         None => false,
         Some("log") => true,
-        Some(other) => return Err(format!("unknown range option `{other}`; {usage}")),
+        Some(other) => return Err(VaryError::RangeOption(other.to_owned())),
     };
     if parts.next().is_some() {
-        return Err(usage.into());
+        return Err(VaryError::RangeUsage);
     }
     let (x0, u0) = number_and_unit(a)?;
     let (x1, u1) = number_and_unit(b)?;
     if u0 != u1 {
-        return Err(format!(
-            "both ends of a range need the same unit, got `{u0}` and `{u1}`"
-        ));
+        return Err(VaryError::RangeUnits(u0, u1));
     }
-    let n: usize = n
-        .parse()
-        .map_err(|_| format!("`{n}` is not a count of values; {usage}"))?;
+    let n: usize = n.parse().map_err(|_| VaryError::RangeCount(n.to_owned()))?;
     if !(2..=MAX_VALUES).contains(&n) {
-        return Err(format!("a range needs 2 to {MAX_VALUES} values, got {n}"));
+        return Err(VaryError::RangeSize(n));
     }
     if log && (x0 == 0.0 || x1 == 0.0 || (x0 < 0.0) != (x1 < 0.0)) {
-        return Err("a log range needs two ends of one sign, neither zero".into());
+        return Err(VaryError::LogRangeSign);
     }
     let at = |k: usize| {
         let f = k as f64 / (n - 1) as f64;
@@ -209,7 +273,7 @@ fn parse_range(a: &str, rest: &str) -> Result<Vec<Value>, String> {
 /// Writes `value` at `segments` in `case`, creating missing objects on the way. An array
 /// index must exist; a key that is not one of the case file's is left for the case loader
 /// to reject (with its suggestion of the key meant).
-pub fn set_path(case: &mut Value, segments: &[Segment], value: Value) -> Result<(), String> {
+pub fn set_path(case: &mut Value, segments: &[Segment], value: Value) -> Result<(), VaryError> {
     let mut here = case;
     let mut walked = String::new();
     for (k, seg) in segments.iter().enumerate() {
@@ -219,9 +283,10 @@ pub fn set_path(case: &mut Value, segments: &[Segment], value: Value) -> Result<
                 if here.is_null() {
                     *here = Value::Object(Default::default());
                 }
-                let map = here
-                    .as_object_mut()
-                    .ok_or_else(|| format!("`{walked}` is not an object, cannot set `{key}`"))?;
+                let map = here.as_object_mut().ok_or_else(|| VaryError::NotAnObject {
+                    walked: walked.clone(),
+                    key: key.clone(),
+                })?;
                 if last {
                     map.insert(key.clone(), value);
                     return Ok(());
@@ -229,13 +294,18 @@ pub fn set_path(case: &mut Value, segments: &[Segment], value: Value) -> Result<
                 map.entry(key.clone()).or_insert(Value::Null)
             }
             Segment::Index(i) => {
-                let items = here
-                    .as_array_mut()
-                    .ok_or_else(|| format!("`{walked}` is not an array, cannot index [{i}]"))?;
-                let len = items.len();
-                let slot = items.get_mut(*i).ok_or_else(|| {
-                    format!("`{walked}` has {len} entries, index {i} is out of range")
+                let items = here.as_array_mut().ok_or_else(|| VaryError::NotAnArray {
+                    walked: walked.clone(),
+                    index: *i,
                 })?;
+                let len = items.len();
+                let slot = items
+                    .get_mut(*i)
+                    .ok_or_else(|| VaryError::IndexOutOfRange {
+                        walked: walked.clone(),
+                        len,
+                        index: *i,
+                    })?;
                 if last {
                     *slot = value;
                     return Ok(());
@@ -251,7 +321,7 @@ pub fn set_path(case: &mut Value, segments: &[Segment], value: Value) -> Result<
             Segment::Index(i) => walked.push_str(&i.to_string()),
         }
     }
-    Err("the path is empty".into())
+    Err(VaryError::EmptyPath)
 }
 
 /// A value as text for tables: strings without quotes, numbers as JSON writes them.
@@ -358,12 +428,18 @@ mod tests {
             &parse_path("drive.stages.3.drive").unwrap(),
             json!(1),
         );
-        assert!(e.unwrap_err().contains("has 1 entries, index 3"));
+        assert!(e
+            .unwrap_err()
+            .to_string()
+            .contains("has 1 entries, index 3"));
         let e = set_path(
             &mut case,
             &parse_path("numerics.theta.x").unwrap(),
             json!(1),
         );
-        assert!(e.unwrap_err().contains("`numerics.theta` is not an object"));
+        assert!(e
+            .unwrap_err()
+            .to_string()
+            .contains("`numerics.theta` is not an object"));
     }
 }

@@ -18,7 +18,9 @@
 //! ```
 
 use crate::output::h5::H5Writer;
+use crate::output::schema::{figure_values, Figure};
 use crate::output::TempTarget;
+use crate::read_error::{FileKind, ReadError};
 use crate::summary::Headline;
 use hdf5::types::{TypeDescriptor, VarLenUnicode};
 use hdf5::File;
@@ -65,76 +67,38 @@ pub struct Table {
     pub rows: Vec<Row>,
 }
 
-/// The headline figures of a run as (name, value): numbers, each zone's work as
-/// `work_<zone>_j`, absent optional figures as NaN. The names are those of the /summary
-/// attributes of a run file.
+/// The headline figures of a run as (name, value), in the schema's order
+/// ([`crate::output::schema::Figure::all`]); a figure that was not computed is NaN. The names
+/// are those of the /summary attributes of a run file.
 pub fn figures(h: &Headline) -> Vec<(String, f64)> {
-    let mut out = Vec::new();
-    let json = serde_json::to_value(h).unwrap_or_default();
-    if let Some(map) = json.as_object() {
-        for (k, v) in map {
-            match (k.as_str(), v) {
-                ("work_j", Value::Array(a)) => {
-                    for (z, x) in h.zones.iter().zip(a) {
-                        out.push((format!("work_{z}_j"), x.as_f64().unwrap_or(f64::NAN)));
-                    }
-                }
-                (_, Value::Number(n)) => out.push((k.clone(), n.as_f64().unwrap_or(f64::NAN))),
-                (_, Value::Null) => out.push((k.clone(), f64::NAN)),
-                _ => {}
-            }
-        }
-    }
-    out
+    figure_values(h)
+        .into_iter()
+        .map(|(f, v)| (f.name(), v.unwrap_or(f64::NAN)))
+        .collect()
 }
 
-/// Units of a figure from its name's suffix (`_m_s` → m/s, `_pa` → Pa, …); "1" for a
-/// count or ratio.
-pub fn units_of(name: &str) -> &'static str {
-    const SUFFIXES: [(&str, &str); 9] = [
-        ("_m2_s", "m2/s"),
-        ("_m3_s", "m3/s"),
-        ("_m_s", "m/s"),
-        ("_pa", "Pa"),
-        ("_j", "J"),
-        ("_s", "s"),
-        ("_m", "m"),
-        ("_m3", "m3"),
-        ("_kg", "kg"),
-    ];
-    SUFFIXES
-        .iter()
-        .find(|(s, _)| name.ends_with(s))
-        .map_or("1", |&(_, u)| u)
+/// The SI unit of a figure column, from the output schema; `None` for a name that is no
+/// headline figure.
+pub fn units_of(name: &str) -> Option<&'static str> {
+    Figure::from_name(name).map(|f| f.entry().unit.symbol())
 }
 
-/// CSV field: quoted when it holds a comma, quote or line break.
-fn csv_field(s: &str) -> String {
-    // A text cell that a spreadsheet would run as a formula gets a leading apostrophe;
-    // numbers (-1.5, +3) stay numbers.
-    let guarded;
-    let s = if s.starts_with(['=', '+', '-', '@', '\t', '\r']) && s.trim().parse::<f64>().is_err() {
-        guarded = format!("'{s}");
-        guarded.as_str()
-    } else {
-        s
-    };
-    if s.contains([',', '"', '\n', '\r']) {
-        format!("\"{}\"", s.replace('"', "\"\""))
+/// A text field, guarded: a text cell that a spreadsheet would run as a formula gets a
+/// leading apostrophe; numbers (-1.5, +3) stay numbers. Quoting is the `csv` writer's.
+fn text_field(s: &str) -> String {
+    if s.starts_with(['=', '+', '-', '@', '\t', '\r']) && s.trim().parse::<f64>().is_err() {
+        format!("'{s}")
     } else {
         s.to_owned()
     }
 }
 
-/// CSV number: empty for NaN, whole numbers as integers, others in full precision.
-fn csv_number(x: f64) -> String {
-    if x.is_nan() {
-        String::new()
-    } else if x.fract() == 0.0 && x.abs() < 1e15 {
-        format!("{}", x as i64)
-    } else {
-        format!("{x:e}")
-    }
+/// A number field in the convention of every boreflux CSV (`output::csv`): shortest form
+/// that reads back to the same value, NaN as an empty field.
+fn number_field(x: f64) -> String {
+    let mut out = String::new();
+    crate::output::csv::push_number(&mut out, x);
+    out
 }
 
 /// Most rows read from a sweep table: ten million scenarios. A crafted file declaring more
@@ -144,27 +108,25 @@ pub const MAX_ROWS: usize = 10_000_000;
 impl Table {
     /// The CSV text.
     pub fn csv(&self) -> String {
+        let mut w = csv::WriterBuilder::new()
+            .terminator(csv::Terminator::Any(b'\n'))
+            .from_writer(Vec::new());
         let mut header = vec!["scenario".to_owned(), "status".to_owned()];
         header.extend(self.paths.iter().cloned());
         header.extend(self.paths.iter().map(|p| format!("{p}_value")));
         header.extend(self.figures.iter().cloned());
         header.push("warnings".to_owned());
-        let mut out = header
-            .iter()
-            .map(|h| csv_field(h))
-            .collect::<Vec<_>>()
-            .join(",");
-        out.push('\n');
+        // Writing into memory cannot fail.
+        let _ = w.write_record(header.iter().map(|h| text_field(h)));
         for r in &self.rows {
-            let mut f = vec![r.scenario.to_string(), csv_field(&r.status)];
-            f.extend(r.labels.iter().map(|l| csv_field(l)));
-            f.extend(r.si.iter().map(|&x| csv_number(x)));
-            f.extend(r.figures.iter().map(|&x| csv_number(x)));
-            f.push(csv_field(&r.warnings.replace('\n', "; ")));
-            out.push_str(&f.join(","));
-            out.push('\n');
+            let mut f = vec![r.scenario.to_string(), text_field(&r.status)];
+            f.extend(r.labels.iter().map(|l| text_field(l)));
+            f.extend(r.si.iter().map(|&x| number_field(x)));
+            f.extend(r.figures.iter().map(|&x| number_field(x)));
+            f.push(text_field(&r.warnings.replace('\n', "; ")));
+            let _ = w.write_record(&f);
         }
-        out
+        String::from_utf8(w.into_inner().unwrap_or_default()).unwrap_or_default()
     }
 
     /// Writes `<stem>.csv` and `<stem>.h5`, each through a temporary file renamed when
@@ -249,7 +211,8 @@ impl Table {
             w.write_vector(
                 &format!("/table/{name}"),
                 &v,
-                units_of(name),
+                units_of(name)
+                    .ok_or_else(|| anyhow::anyhow!("{name}: not a headline figure of boreflux"))?,
                 "headline figure of the scenario's run (as in a run file's /summary)",
             )?;
         }
@@ -257,33 +220,42 @@ impl Table {
     }
 
     /// Reads a table written by [`Table::write`] (at most [`MAX_ROWS`] rows). The error text does not repeat the path.
-    pub fn read(path: &Path) -> Result<Table, String> {
-        let file = File::open(path).map_err(|e| format!("cannot open it as HDF5: {e}"))?;
-        let attr = |name: &str| -> Result<String, String> {
-            let a = file
-                .attr(name)
-                .map_err(|_| format!("not a boreflux sweep table (no `{name}` attribute)"))?;
+    pub fn read(path: &Path) -> Result<Table, ReadError> {
+        if !path.exists() {
+            return Err(ReadError::Missing);
+        }
+        let kind = FileKind::SweepTable;
+        let file = File::open(path).map_err(|source| ReadError::NotHdf5 { kind, source })?;
+        let attr = |name: &str| -> Result<String, ReadError> {
+            let a = file.attr(name).map_err(|_| ReadError::NotOurs {
+                kind,
+                lacks: format!("no `{name}` attribute"),
+            })?;
+            let object = format!("attribute {name}");
             match a.dtype().and_then(|t| t.to_descriptor()) {
                 Ok(TypeDescriptor::VarLenUnicode) => a
                     .read_scalar::<VarLenUnicode>()
                     .map(|s| s.as_str().to_owned())
-                    .map_err(|e| format!("attribute {name}: {e}")),
+                    .map_err(ReadError::hdf5(object)),
                 Ok(TypeDescriptor::Float(_)) => a
                     .read_scalar::<f64>()
                     .map(|x| x.to_string())
-                    .map_err(|e| format!("attribute {name}: {e}")),
-                _ => Err(format!("attribute {name}: unexpected type")),
+                    .map_err(ReadError::hdf5(object)),
+                _ => Err(ReadError::invalid(object, "unexpected type")),
             }
         };
         if attr("kind")? != "sweep" {
-            return Err("not a boreflux sweep table (kind is not \"sweep\")".into());
+            return Err(ReadError::NotOurs {
+                kind,
+                lacks: "kind is not \"sweep\"".to_owned(),
+            });
         }
         let total: f64 = attr("scenarios_total")?
             .parse()
-            .map_err(|_| "scenarios_total is not a number".to_owned())?;
+            .map_err(|_| ReadError::invalid("attribute scenarios_total", "not a number"))?;
         let vary_json = attr("vary_json")?;
-        let vary: Value =
-            serde_json::from_str(&vary_json).map_err(|e| format!("vary_json: {e}"))?;
+        let vary: Value = serde_json::from_str(&vary_json)
+            .map_err(|e| ReadError::invalid("attribute vary_json", e.to_string()))?;
         let paths: Vec<String> = vary
             .as_array()
             .map(|a| {
@@ -292,30 +264,34 @@ impl Table {
                     .collect()
             })
             .unwrap_or_default();
-        let dataset = |name: &str| -> Result<hdf5::Dataset, String> {
-            let d = file.dataset(name).map_err(|e| format!("/{name}: {e}"))?;
+        let dataset = |name: &str| -> Result<hdf5::Dataset, ReadError> {
+            let d = file
+                .dataset(name)
+                .map_err(ReadError::hdf5(format!("/{name}")))?;
             if d.size() > MAX_ROWS {
-                return Err(format!(
-                    "/{name}: declares {} values, more than a sweep table holds ({MAX_ROWS})",
-                    d.size()
-                ));
+                return Err(ReadError::TooLarge {
+                    object: format!("/{name}"),
+                    values: d.size(),
+                    max: MAX_ROWS,
+                    kind,
+                });
             }
             Ok(d)
         };
-        let f64s = |name: &str| -> Result<Vec<f64>, String> {
+        let f64s = |name: &str| -> Result<Vec<f64>, ReadError> {
             dataset(name)?
                 .read_raw::<f64>()
-                .map_err(|e| format!("/{name}: {e}"))
+                .map_err(ReadError::hdf5(format!("/{name}")))
         };
-        let texts = |name: &str| -> Result<Vec<String>, String> {
+        let texts = |name: &str| -> Result<Vec<String>, ReadError> {
             dataset(name)?
                 .read_raw::<VarLenUnicode>()
                 .map(|v| v.iter().map(|s| s.as_str().to_owned()).collect())
-                .map_err(|e| format!("/{name}: {e}"))
+                .map_err(ReadError::hdf5(format!("/{name}")))
         };
         let index: Vec<u64> = dataset("table/scenario")?
             .read_raw::<u64>()
-            .map_err(|e| format!("/table/scenario: {e}"))?;
+            .map_err(ReadError::hdf5("/table/scenario"))?;
         let n = index.len();
         let status = texts("table/status")?;
         let warnings = texts("table/warnings")?;
@@ -330,12 +306,19 @@ impl Table {
             .group("table")
             .and_then(|g| g.attr("figure_columns"))
             .and_then(|a| a.read_scalar::<VarLenUnicode>())
-            .map_err(|e| format!("/table figure_columns: {e}"))
+            .map_err(ReadError::hdf5("/table figure_columns"))
             .and_then(|t| {
-                serde_json::from_str(t.as_str()).map_err(|e| format!("/table figure_columns: {e}"))
+                serde_json::from_str(t.as_str())
+                    .map_err(|e| ReadError::invalid("/table figure_columns", e.to_string()))
             })?;
         let mut figures = Vec::new();
         for name in &names {
+            if units_of(name).is_none() {
+                return Err(ReadError::invalid(
+                    "/table figure_columns",
+                    format!("{name} is not a headline figure of this version of boreflux"),
+                ));
+            }
             figures.push((name.clone(), f64s(&format!("table/{name}"))?));
         }
         let columns = [status.len(), warnings.len()]
@@ -344,8 +327,9 @@ impl Table {
             .chain(si.iter().map(Vec::len))
             .chain(figures.iter().map(|f| f.1.len()));
         if let Some(bad) = columns.into_iter().find(|&l| l != n) {
-            return Err(format!(
-                "/table columns differ in length ({bad} against {n} scenarios)"
+            return Err(ReadError::invalid(
+                "/table",
+                format!("columns differ in length ({bad} against {n} scenarios)"),
             ));
         }
         let rows = (0..n)
@@ -415,26 +399,35 @@ mod tests {
         );
         assert_eq!(
             lines[1],
-            "0,ok,0.3 m,3e-1,1.5e-3,1200,\"first, with a comma; second\""
+            "0,ok,0.3 m,0.3,0.0015,1200,\"first, with a comma; second\""
         );
         assert_eq!(
             lines[2],
-            "1,\"simulation failed: \"\"Newton\"\"\",0.6 m,6e-1,,,"
+            "1,\"simulation failed: \"\"Newton\"\"\",0.6 m,0.6,,,"
         );
     }
 
     #[test]
     fn csv_text_cells_cannot_run_as_formulas() {
         // The injection characters of the OWASP "CSV Injection" page: = + - @ tab CR.
-        assert_eq!(csv_field("=HYPERLINK(\"x\")"), "\"'=HYPERLINK(\"\"x\"\")\"");
-        assert_eq!(csv_field("+cmd"), "'+cmd");
-        assert_eq!(csv_field("-2+3"), "'-2+3");
-        assert_eq!(csv_field("@SUM(A1)"), "'@SUM(A1)");
-        assert_eq!(csv_field("-1.5 m"), "'-1.5 m");
-        assert_eq!(csv_field("-1.5"), "-1.5");
-        assert_eq!(csv_field("+3e-2"), "+3e-2");
-        assert_eq!(csv_field("0.3 m"), "0.3 m");
-        assert_eq!(csv_number(-1.5), "-1.5e0");
+        assert_eq!(text_field("=HYPERLINK(\"x\")"), "'=HYPERLINK(\"x\")");
+        assert_eq!(text_field("+cmd"), "'+cmd");
+        assert_eq!(text_field("-2+3"), "'-2+3");
+        assert_eq!(text_field("@SUM(A1)"), "'@SUM(A1)");
+        assert_eq!(text_field("-1.5 m"), "'-1.5 m");
+        assert_eq!(text_field("-1.5"), "-1.5");
+        assert_eq!(text_field("+3e-2"), "+3e-2");
+        assert_eq!(text_field("0.3 m"), "0.3 m");
+        assert_eq!(number_field(-1.5), "-1.5");
+        assert_eq!(number_field(f64::NAN), "");
+        // Quoting by the csv writer (RFC 4180 §2, rules 6 and 7).
+        let mut t = table();
+        t.rows[0].status = "=HYPERLINK(\"x\")".to_owned();
+        let text = t.csv();
+        assert_eq!(
+            text.lines().nth(1).unwrap().split_once(',').unwrap().1,
+            "\"'=HYPERLINK(\"\"x\"\")\",0.3 m,0.3,0.0015,1200,\"first, with a comma; second\""
+        );
     }
 
     #[test]
@@ -453,11 +446,13 @@ mod tests {
     }
 
     #[test]
-    fn units_follow_the_name() {
-        assert_eq!(units_of("peak_outward_flux_m_s"), "m/s");
-        assert_eq!(units_of("specific_capacity_end_m2_s"), "m2/s");
-        assert_eq!(units_of("work_cake_j"), "J");
-        assert_eq!(units_of("time_to_half_cake_s"), "s");
-        assert_eq!(units_of("max_newton_iterations"), "1");
+    fn units_come_from_the_schema() {
+        // The schema's units agree with the unit suffix of each name (docs/formats.md).
+        assert_eq!(units_of("peak_outward_flux_m_s"), Some("m/s"));
+        assert_eq!(units_of("specific_capacity_end_m2_s"), Some("m2/s"));
+        assert_eq!(units_of("work_cake_j"), Some("J"));
+        assert_eq!(units_of("time_to_half_cake_s"), Some("s"));
+        assert_eq!(units_of("max_newton_iterations"), Some("1"));
+        assert_eq!(units_of("no_such_figure_m"), None);
     }
 }

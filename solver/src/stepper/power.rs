@@ -177,7 +177,7 @@ mod tests {
             let m = model(nonlinear);
             let mut st = Stepper::new(
                 &m,
-                m.cake.map(|c| crate::system::CakeState {
+                m.cake.map(|c| crate::cake::CakeState {
                     thickness_m: c.thickness_m,
                     coverage: c.coverage,
                 }),

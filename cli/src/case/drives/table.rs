@@ -6,8 +6,8 @@
 //! lines starting with `#` are skipped. A time written twice makes a jump. The resolved
 //! case carries the points themselves, so it reproduces the run without the file.
 
-use super::drives::{into_map, read_keys, DriveContext, ParsedDrive};
-use super::error::CaseError;
+use super::{into_map, read_keys, DriveContext, ParsedDrive};
+use crate::case::error::CaseError;
 use boreflux_solver::drive::{TableDrive, TableQuantity};
 use boreflux_solver::Drive;
 use schemars::JsonSchema;
@@ -41,14 +41,14 @@ pub struct TableKeys {
     pub repeat: Option<bool>,
 }
 
-/// Parser of the `table` drive (registered in [`super::drives::DRIVE_KINDS`]).
+/// Parser of the `table` drive (registered in [`super::DRIVE_KINDS`]).
 pub fn table(map: Map<String, Value>, ctx: &DriveContext<'_>) -> Result<ParsedDrive, CaseError> {
     let k: TableKeys = read_keys(map)?;
     let (field, rows, source) = match (&k.file, &k.points) {
         (Some(file), None) => {
             let path = ctx.base_dir.join(file);
-            let text = super::read_limited(&path, MAX_TABLE_BYTES, "table file")
-                .map_err(|m| CaseError::new("drive.file", m))?;
+            let text = crate::case::read_limited(&path, MAX_TABLE_BYTES, "table file")
+                .map_err(|e| CaseError::new("drive.file", e.to_string()))?;
             let rows = read_csv(&text)
                 .map_err(|m| CaseError::new("drive.file", format!("{file}: {m}")))?;
             ("drive.file", rows, format!("file {file}"))
@@ -74,7 +74,7 @@ pub fn table(map: Map<String, Value>, ctx: &DriveContext<'_>) -> Result<ParsedDr
             ))
         }
     };
-    check_rows(&rows).map_err(|m| CaseError::new(field, m))?;
+    check_rows(&rows).map_err(|e| CaseError::new(field, e.to_string()))?;
     let span = rows.last().map_or(0.0, |r| r.1);
     boreflux_solver::limits::DURATION
         .check(field, span)
@@ -124,8 +124,69 @@ pub fn table(map: Map<String, Value>, ctx: &DriveContext<'_>) -> Result<ParsedDr
     })
 }
 
+/// What is wrong with a table's rows; each names the line (from 1) where it can.
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+pub enum RowsError {
+    /// A line without exactly two columns.
+    #[error("line {line}: expected two columns (time_s,value), got {columns}")]
+    Columns {
+        /// Line number.
+        line: usize,
+        /// Columns found.
+        columns: usize,
+    },
+    /// A value that is not finite.
+    #[error("line {line}: expected finite numbers, got {value}")]
+    NotFinite {
+        /// Line number.
+        line: usize,
+        /// The value.
+        value: f64,
+    },
+    /// A column that is not a number (after the optional header).
+    #[error("line {line}: expected two numbers (time_s,value); column {column} is not a number")]
+    NotANumber {
+        /// Line number.
+        line: usize,
+        /// Column, from 1.
+        column: usize,
+    },
+    /// Fewer than two rows.
+    #[error("needs at least two rows of time and value, got {0}")]
+    TooFew(usize),
+    /// The first time is not 0.
+    #[error("row at line {line}: the first time must be 0 s, got {time} s")]
+    FirstTime {
+        /// Line number.
+        line: usize,
+        /// The first time, s.
+        time: f64,
+    },
+    /// A time smaller than the one before.
+    #[error("row at line {line}: times must not decrease, got {time} s after {previous} s")]
+    Decreasing {
+        /// Line number.
+        line: usize,
+        /// The time, s.
+        time: f64,
+        /// The time before, s.
+        previous: f64,
+    },
+    /// A time written three times.
+    #[error("row at line {line}: time {time} s appears three times (a jump needs two)")]
+    ThreeTimes {
+        /// Line number.
+        line: usize,
+        /// The time, s.
+        time: f64,
+    },
+    /// The last time is not positive.
+    #[error("the table must span a positive time, got {0} s")]
+    NoSpan(f64),
+}
+
 /// Rows `(line, time, value)` of a CSV table. Errors name the line.
-pub fn read_csv(text: &str) -> Result<Vec<(usize, f64, f64)>, String> {
+pub fn read_csv(text: &str) -> Result<Vec<(usize, f64, f64)>, RowsError> {
     let mut rows = Vec::new();
     let mut header_allowed = true;
     for (i, line) in text.lines().enumerate() {
@@ -136,16 +197,19 @@ pub fn read_csv(text: &str) -> Result<Vec<(usize, f64, f64)>, String> {
         }
         let cols: Vec<&str> = line.split(',').map(str::trim).collect();
         if cols.len() != 2 {
-            return Err(format!(
-                "line {n}: expected two columns (time_s,value), got {}",
-                cols.len()
-            ));
+            return Err(RowsError::Columns {
+                line: n,
+                columns: cols.len(),
+            });
         }
         let parsed: Result<Vec<f64>, _> = cols.iter().map(|c| c.parse::<f64>()).collect();
         match parsed {
             Ok(v) => {
                 if let Some(bad) = v.iter().find(|x| !x.is_finite()) {
-                    return Err(format!("line {n}: expected finite numbers, got {bad}"));
+                    return Err(RowsError::NotFinite {
+                        line: n,
+                        value: *bad,
+                    });
                 }
                 rows.push((n, v[0], v[1]));
             }
@@ -156,10 +220,10 @@ pub fn read_csv(text: &str) -> Result<Vec<(usize, f64, f64)>, String> {
                     .iter()
                     .position(|c| c.parse::<f64>().is_err())
                     .unwrap_or(0);
-                return Err(format!(
-                    "line {n}: expected two numbers (time_s,value); column {} is not a number",
-                    col + 1
-                ));
+                return Err(RowsError::NotANumber {
+                    line: n,
+                    column: col + 1,
+                });
             }
         }
         header_allowed = false;
@@ -169,35 +233,32 @@ pub fn read_csv(text: &str) -> Result<Vec<(usize, f64, f64)>, String> {
 
 /// Checks the shape of a time series: at least two rows, starting at 0 s, times
 /// non-decreasing, a time repeated at most once (a jump), spanning a positive time.
-pub fn check_rows(rows: &[(usize, f64, f64)]) -> Result<(), String> {
+pub fn check_rows(rows: &[(usize, f64, f64)]) -> Result<(), RowsError> {
     if rows.len() < 2 {
-        return Err(format!(
-            "needs at least two rows of time and value, got {}",
-            rows.len()
-        ));
+        return Err(RowsError::TooFew(rows.len()));
     }
     if rows[0].1 != 0.0 {
-        return Err(format!(
-            "row at line {}: the first time must be 0 s, got {} s",
-            rows[0].0, rows[0].1
-        ));
+        return Err(RowsError::FirstTime {
+            line: rows[0].0,
+            time: rows[0].1,
+        });
     }
     for (i, w) in rows.windows(2).enumerate() {
         let ((_, t0, _), (n1, t1, _)) = (w[0], w[1]);
         if t1 < t0 {
-            return Err(format!(
-                "row at line {n1}: times must not decrease, got {t1} s after {t0} s"
-            ));
+            return Err(RowsError::Decreasing {
+                line: n1,
+                time: t1,
+                previous: t0,
+            });
         }
         if t1 == t0 && i > 0 && rows[i - 1].1 == t0 {
-            return Err(format!(
-                "row at line {n1}: time {t1} s appears three times (a jump needs two)"
-            ));
+            return Err(RowsError::ThreeTimes { line: n1, time: t1 });
         }
     }
     let last = rows[rows.len() - 1].1;
     if last <= 0.0 {
-        return Err(format!("the table must span a positive time, got {last} s"));
+        return Err(RowsError::NoSpan(last));
     }
     Ok(())
 }
@@ -220,34 +281,42 @@ mod tests {
     #[test]
     fn read_csv_captures_errors() {
         assert_eq!(
-            read_csv("t,v\n0,1\nx,2\n").unwrap_err(),
+            read_csv("t,v\n0,1\nx,2\n").unwrap_err().to_string(),
             "line 3: expected two numbers (time_s,value); column 1 is not a number"
         );
         assert_eq!(
-            read_csv("0,1\n1,NaN\n").unwrap_err(),
+            read_csv("0,1\n1,NaN\n").unwrap_err().to_string(),
             "line 2: expected finite numbers, got NaN"
         );
-        assert!(read_csv("0,1,2\n").unwrap_err().contains("two columns"));
+        assert!(read_csv("0,1,2\n")
+            .unwrap_err()
+            .to_string()
+            .contains("two columns"));
     }
 
     #[test]
     fn check_rows_captures_errors() {
         assert!(check_rows(&[(1, 0.0, 1.0)])
             .unwrap_err()
+            .to_string()
             .contains("two rows"));
         assert!(check_rows(&[(1, 1.0, 1.0), (2, 2.0, 1.0)])
             .unwrap_err()
+            .to_string()
             .contains("first time must be 0 s, got 1 s"));
         assert!(check_rows(&[(1, 0.0, 1.0), (2, 5.0, 1.0), (3, 4.0, 1.0)])
             .unwrap_err()
+            .to_string()
             .contains("got 4 s after 5 s"));
         assert!(
             check_rows(&[(1, 0.0, 1.0), (2, 5.0, 1.0), (3, 5.0, 1.0), (4, 5.0, 2.0)])
                 .unwrap_err()
+                .to_string()
                 .contains("three times")
         );
         assert!(check_rows(&[(1, 0.0, 1.0), (2, 0.0, 1.0)])
             .unwrap_err()
+            .to_string()
             .contains("positive time"));
         assert!(check_rows(&[(1, 0.0, 1.0), (2, 3.0, 1.0), (3, 3.0, 0.0)]).is_ok());
     }
