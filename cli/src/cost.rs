@@ -20,11 +20,19 @@ pub const MAX_OUTPUT_BYTES: f64 = 2e9;
 /// development machine (2-core virtual machine) with the shipped demo cases: 100 to
 /// 180 ns; the upper figure is used.
 const SECONDS_PER_CELL_STEP: f64 = 180e-9;
-/// Bytes per reported step in the HDF5 file: 26 series of 8-byte floats.
-const H5_BYTES_PER_ROW: f64 = 26.0 * 8.0;
-/// Bytes per reported step in the CSV file: 26 columns of up to 24 characters each
+/// Series written per reported step (the output schema's per-step entries).
+fn series_per_row() -> f64 {
+    crate::output::schema::Step::all().len() as f64
+}
+/// Bytes per reported step in the HDF5 file: one 8-byte float per series.
+fn h5_bytes_per_row() -> f64 {
+    series_per_row() * 8.0
+}
+/// Bytes per reported step in the CSV file: one column of up to 24 characters per series
 /// (`-1.2345678901234567e-300,`).
-const CSV_BYTES_PER_ROW: f64 = 26.0 * 25.0;
+fn csv_bytes_per_row() -> f64 {
+    series_per_row() * 25.0
+}
 /// Fixed part of an HDF5 file: grid, attributes, cycle tables, headers. Measured: the
 /// shipped cases' files are 1.2 to 2.8 MB, of which the series take all but about 0.5 MB.
 const H5_FIXED_BYTES: f64 = 1e6;
@@ -54,9 +62,9 @@ pub fn run_cost(case: &LoadedCase, csv: bool, snapshot_every: u64) -> RunCost {
     } else {
         (c.steps / snapshot_every as f64).ceil()
     };
-    let mut bytes = H5_FIXED_BYTES + rows * H5_BYTES_PER_ROW + snapshots * c.cells * 8.0;
+    let mut bytes = H5_FIXED_BYTES + rows * h5_bytes_per_row() + snapshots * c.cells * 8.0;
     if csv {
-        bytes += rows * CSV_BYTES_PER_ROW;
+        bytes += rows * csv_bytes_per_row();
     }
     RunCost {
         steps: c.steps,

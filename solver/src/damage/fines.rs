@@ -54,7 +54,7 @@ pub struct FinesState {
 
 impl FinesState {
     /// The state at t = 0 for the invaded cells of `model`'s grid, whose faces are
-    /// `r_face` (cell i spans r_face[i]..r_face[i+1]); `first_cell` is the grid index of
+    /// `r_face` (cell i spans `r_face[i]..r_face[i+1]`); `first_cell` is the grid index of
     /// the first one. `None` without an invaded zone with fines.
     pub fn new(model: &Model, first_cell: usize, r_face: &[f64]) -> Option<FinesState> {
         let z = model.invaded.as_ref()?;
