@@ -151,7 +151,8 @@ impl ProgressBasis {
     }
 
     /// The estimate for the well of the basis in state `slow` (a slow state of the model the
-    /// basis was built from). Allocates nothing (benches/assess.rs: about 0.15 µs).
+    /// basis was built from). Allocates nothing without invaded-zone fines; with them the
+    /// snapshot copies the zone's ring profile (benches/assess.rs: about 0.15 µs without).
     pub fn point(&self, slow: &SlowState) -> ProgressPoint {
         let snap = slow.snapshot_model(&self.light);
         let loss = near_well_loss_m(&snap, self.r_d_m, self.rate_m3_s);
