@@ -14,7 +14,16 @@ use std::path::Path;
 
 #[test]
 fn snapshot_after_lift_off_and_fines_matches_the_run_and_the_full_test() {
-    let path = Path::new(env!("CARGO_MANIFEST_DIR")).join("../cases/municipal-sand-gravel.json");
+    // A surge run, and the same well developed in stages ending with pumping.
+    for name in ["municipal-sand-gravel.json", "staged-development.json"] {
+        check(name);
+    }
+}
+
+fn check(name: &str) {
+    let path = Path::new(env!("CARGO_MANIFEST_DIR"))
+        .join("../cases")
+        .join(name);
     let case = load_case(&path).expect("demo case loads");
     let m = &case.model;
     let lift = m
@@ -43,7 +52,7 @@ fn snapshot_after_lift_off_and_fines_matches_the_run_and_the_full_test() {
     let again = SlowState::new(&snap).skin().1;
     assert!(
         (again - skin1).abs() <= 1e-9 * skin1.abs().max(1.0),
-        "snapshot skin {again} vs run {skin1}"
+        "{name}: snapshot skin {again} vs run {skin1}"
     );
 
     // The cheap progress estimate against the full virtual test on the same state, to the
@@ -55,7 +64,7 @@ fn snapshot_after_lift_off_and_fines_matches_the_run_and_the_full_test() {
     let rel = (est.drawdown_m / full.drawdown_m - 1.0).abs();
     assert!(
         rel < 1e-3,
-        "estimate {} m vs full test {} m ({rel:.2e})",
+        "{name}: estimate {} m vs full test {} m ({rel:.2e})",
         est.drawdown_m,
         full.drawdown_m
     );
