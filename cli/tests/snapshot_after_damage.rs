@@ -48,7 +48,7 @@ fn check(name: &str) {
     let snap = end.snapshot_model(m);
     assert!(snap
         .cake
-        .map_or(true, |c| c.lift_off.is_none_or(|l| l.frozen)));
+        .is_none_or(|c| c.lift_off.is_none_or(|l| l.frozen)));
     let again = SlowState::new(&snap).skin().1;
     assert!(
         (again - skin1).abs() <= 1e-9 * skin1.abs().max(1.0),

@@ -7,6 +7,7 @@ use crate::case::LoadedCase;
 use boreflux_solver::assess::{self, StepCoefficients, TestPlan};
 use boreflux_solver::diagnostics::NullObserver;
 use boreflux_solver::slow::SlowState;
+use boreflux_solver::SolverError;
 use boreflux_solver::{run, Reporting};
 use serde_json::{json, Value};
 
@@ -25,13 +26,41 @@ pub struct ModelSteps {
     pub after: Option<StepCoefficients>,
 }
 
+/// Why the model's side of a step-test comparison could not be computed.
+#[derive(Debug, Clone, PartialEq)]
+pub enum ModelStepsError {
+    /// The field rates do not make a valid virtual step test.
+    Plan(SolverError),
+    /// The case's development run failed.
+    Development(SolverError),
+    /// A virtual step test failed.
+    StepTest(SolverError),
+}
+
+impl std::fmt::Display for ModelStepsError {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        match self {
+            ModelStepsError::Plan(e) => write!(
+                f,
+                "the field rates cannot be pumped as a virtual step test: {e}"
+            ),
+            ModelStepsError::Development(e) => {
+                write!(f, "the case's development run failed: {e}")
+            }
+            ModelStepsError::StepTest(e) => write!(f, "the virtual step test failed: {e}"),
+        }
+    }
+}
+
+impl std::error::Error for ModelStepsError {}
+
 /// Runs the case's development and the virtual step tests at `rates_m3_s` (increasing)
 /// for `step_duration_s` each. Errors are the solver's, worded for the user.
 pub fn model_steps(
     case: &LoadedCase,
     rates_m3_s: &[f64],
     step_duration_s: f64,
-) -> Result<ModelSteps, String> {
+) -> Result<ModelSteps, ModelStepsError> {
     let q_max = rates_m3_s.iter().copied().fold(0.0, f64::max);
     let plan = TestPlan {
         design_rate_m3_s: q_max,
@@ -39,14 +68,12 @@ pub fn model_steps(
         step_fractions: rates_m3_s.iter().map(|q| q / q_max).collect(),
         step_duration_s,
     };
-    plan.validate()
-        .map_err(|e| format!("the field rates cannot be pumped as a virtual step test: {e}"))?;
+    plan.validate().map_err(ModelStepsError::Plan)?;
     let m = &case.model;
     let developed = run(m, &mut NullObserver, Reporting { every: u64::MAX })
-        .map_err(|e| format!("the case's development run failed: {e}"))?;
+        .map_err(ModelStepsError::Development)?;
     let coeffs = |slow: &SlowState| {
-        assess::step_coefficients(&slow.snapshot_model(m), &plan)
-            .map_err(|e| format!("the virtual step test failed: {e}"))
+        assess::step_coefficients(&slow.snapshot_model(m), &plan).map_err(ModelStepsError::StepTest)
     };
     Ok(ModelSteps {
         title: case.title.clone(),

@@ -18,6 +18,124 @@ use crate::units::{parse_quantity, Quantity};
 use boreflux_solver::steptest::{Sample, Step};
 use serde_json::Value;
 
+/// What is wrong with a step-test file; its text names the line (and column).
+#[derive(Debug, Clone, PartialEq)]
+pub enum StepFileError {
+    /// No header line: the file is empty or only comments.
+    NoHeader,
+    /// A header cell that is not `time`, `rate` or `drawdown` (with a unit).
+    UnknownColumn {
+        /// Header line.
+        line: usize,
+        /// The cell.
+        cell: String,
+    },
+    /// A header cell whose unit is not understood.
+    BadUnit {
+        /// Header line.
+        line: usize,
+        /// The cell.
+        cell: String,
+        /// Why the unit was refused.
+        reason: String,
+    },
+    /// Two columns of the same kind.
+    DuplicateColumn {
+        /// Header line.
+        line: usize,
+        /// The first column's header.
+        first: String,
+        /// The second column's header.
+        second: String,
+        /// The kind (`time`, `rate`, `drawdown`).
+        kind: &'static str,
+    },
+    /// The rate or drawdown column is missing.
+    MissingColumns {
+        /// Header line.
+        line: usize,
+        /// The kinds missing.
+        kinds: Vec<&'static str>,
+    },
+    /// A row with a different number of fields than the header.
+    FieldCount {
+        /// Row line.
+        line: usize,
+        /// Fields in the row.
+        got: usize,
+        /// Fields in the header.
+        want: usize,
+    },
+    /// A field that is not a number, or not a finite one.
+    NotANumber {
+        /// Row line.
+        line: usize,
+        /// The column's header.
+        column: String,
+        /// The field.
+        cell: String,
+        /// Whether it parsed but is infinite or NaN.
+        parsed: bool,
+    },
+    /// No data rows after the header.
+    NoData {
+        /// Header line.
+        line: usize,
+    },
+}
+
+impl std::fmt::Display for StepFileError {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        match self {
+            StepFileError::NoHeader => {
+                write!(f, "no header line: the file is empty or only comments")
+            }
+            StepFileError::UnknownColumn { line, cell } => write!(
+                f,
+                "line {line}: unknown column \"{cell}\"; expected time_<unit>, rate_<unit> and \
+                 drawdown_<unit>, e.g. time_min,rate_L/s,drawdown_m (or rate_L/s,drawdown_m, one \
+                 row per step)"
+            ),
+            StepFileError::BadUnit { line, cell, reason } => {
+                write!(f, "line {line}: column \"{cell}\": {reason}")
+            }
+            StepFileError::DuplicateColumn {
+                line,
+                first,
+                second,
+                kind,
+            } => write!(
+                f,
+                "line {line}: columns \"{first}\" and \"{second}\" are both {kind}"
+            ),
+            StepFileError::MissingColumns { line, kinds } => write!(
+                f,
+                "line {line}: no {} column; the header needs rate_<unit> and drawdown_<unit>, \
+                 and time_<unit> for a time series",
+                kinds.join(" or ")
+            ),
+            StepFileError::FieldCount { line, got, want } => {
+                write!(f, "line {line}: {got} field(s), the header has {want}")
+            }
+            StepFileError::NotANumber {
+                line,
+                column,
+                cell,
+                parsed,
+            } => write!(
+                f,
+                "line {line}, column \"{column}\": \"{cell}\" is not a{} number",
+                if *parsed { " finite" } else { "" }
+            ),
+            StepFileError::NoData { line } => {
+                write!(f, "no data rows after the header on line {line}")
+            }
+        }
+    }
+}
+
+impl std::error::Error for StepFileError {}
+
 /// The data of a step-test file, in SI.
 #[derive(Debug, Clone, PartialEq)]
 pub enum StepData {
@@ -61,22 +179,27 @@ struct Column {
     factor: f64,
 }
 
-fn parse_header_cell(cell: &str) -> Result<Column, String> {
+fn parse_header_cell(line: usize, cell: &str) -> Result<Column, StepFileError> {
     let (name, unit) = match cell.split_once('_') {
         Some((n, u)) => (n, Some(u)),
         None => (cell, None),
     };
     let Some(kind) = COLUMNS.iter().position(|(n, _)| *n == name) else {
-        return Err(format!(
-            "unknown column \"{cell}\"; expected time_<unit>, rate_<unit> and drawdown_<unit>, \
-             e.g. time_min,rate_L/s,drawdown_m (or rate_L/s,drawdown_m, one row per step)"
-        ));
+        return Err(StepFileError::UnknownColumn {
+            line,
+            cell: cell.to_owned(),
+        });
     };
     let q = COLUMNS[kind].1;
     let factor = match unit {
         None => 1.0,
-        Some(u) => parse_quantity(&Value::String(format!("1 {u}")), q)
-            .map_err(|e| format!("column \"{cell}\": {e}"))?,
+        Some(u) => parse_quantity(&Value::String(format!("1 {u}")), q).map_err(|e| {
+            StepFileError::BadUnit {
+                line,
+                cell: cell.to_owned(),
+                reason: e.to_string(),
+            }
+        })?,
     };
     Ok(Column {
         kind,
@@ -87,27 +210,29 @@ fn parse_header_cell(cell: &str) -> Result<Column, String> {
 
 /// Parses the text of a step-test file. Errors are one line of text naming the line and
 /// column.
-pub fn parse(text: &str) -> Result<StepData, String> {
+pub fn parse(text: &str) -> Result<StepData, StepFileError> {
     let mut rows = text
         .lines()
         .enumerate()
         .map(|(i, l)| (i + 1, l.trim()))
         .filter(|(_, l)| !l.is_empty() && !l.starts_with('#'));
     let Some((header_line, header)) = rows.next() else {
-        return Err("no header line: the file is empty or only comments".to_owned());
+        return Err(StepFileError::NoHeader);
     };
     let cols = header
         .split(',')
-        .map(|c| parse_header_cell(c.trim()).map_err(|e| format!("line {header_line}: {e}")))
-        .collect::<Result<Vec<Column>, String>>()?;
+        .map(|c| parse_header_cell(header_line, c.trim()))
+        .collect::<Result<Vec<Column>, StepFileError>>()?;
     let mut index = [None; 3];
     for (i, c) in cols.iter().enumerate() {
         if let Some(j) = index[c.kind] {
             let first: &Column = &cols[j];
-            return Err(format!(
-                "line {header_line}: columns \"{}\" and \"{}\" are both {}",
-                first.header, c.header, COLUMNS[c.kind].0
-            ));
+            return Err(StepFileError::DuplicateColumn {
+                line: header_line,
+                first: first.header.clone(),
+                second: c.header.clone(),
+                kind: COLUMNS[c.kind].0,
+            });
         }
         index[c.kind] = Some(i);
     }
@@ -117,36 +242,33 @@ pub fn parse(text: &str) -> Result<StepData, String> {
         .map(|&k| COLUMNS[k].0)
         .collect();
     if !missing.is_empty() {
-        return Err(format!(
-            "line {header_line}: no {} column; the header needs rate_<unit> and \
-             drawdown_<unit>, and time_<unit> for a time series",
-            missing.join(" or ")
-        ));
+        return Err(StepFileError::MissingColumns {
+            line: header_line,
+            kinds: missing,
+        });
     }
     let mut values: Vec<[f64; 3]> = Vec::new();
     let mut lines = Vec::new();
     for (line, row) in rows {
         let cells: Vec<&str> = row.split(',').map(str::trim).collect();
         if cells.len() != cols.len() {
-            return Err(format!(
-                "line {line}: {} field(s), the header has {}",
-                cells.len(),
-                cols.len()
-            ));
+            return Err(StepFileError::FieldCount {
+                line,
+                got: cells.len(),
+                want: cols.len(),
+            });
         }
         let mut v = [f64::NAN; 3];
         for (cell, col) in cells.iter().zip(&cols) {
-            let x: f64 = cell.parse().map_err(|_| {
-                format!(
-                    "line {line}, column \"{}\": \"{cell}\" is not a number",
-                    col.header
-                )
-            })?;
+            let bad = |parsed: bool| StepFileError::NotANumber {
+                line,
+                column: col.header.clone(),
+                cell: (*cell).to_owned(),
+                parsed,
+            };
+            let x: f64 = cell.parse().map_err(|_| bad(false))?;
             if !x.is_finite() {
-                return Err(format!(
-                    "line {line}, column \"{}\": \"{cell}\" is not a finite number",
-                    col.header
-                ));
+                return Err(bad(true));
             }
             v[col.kind] = x * col.factor;
         }
@@ -154,9 +276,7 @@ pub fn parse(text: &str) -> Result<StepData, String> {
         lines.push(line);
     }
     if values.is_empty() {
-        return Err(format!(
-            "no data rows after the header on line {header_line}"
-        ));
+        return Err(StepFileError::NoData { line: header_line });
     }
     Ok(if index[0].is_some() {
         StepData::Series {
@@ -219,24 +339,31 @@ mod tests {
 
     #[test]
     fn errors_name_line_and_column() {
-        let e = parse("rate_L/s,drawdown_m\n5,abc\n").unwrap_err();
+        let e = parse("rate_L/s,drawdown_m\n5,abc\n")
+            .unwrap_err()
+            .to_string();
         assert!(
             e.contains("line 2") && e.contains("drawdown_m") && e.contains("abc"),
             "{e}"
         );
-        let e = parse("rate_L/s,level_m\n5,1\n").unwrap_err();
+        let e = parse("rate_L/s,level_m\n5,1\n").unwrap_err().to_string();
         assert!(e.contains("line 1") && e.contains("level_m"), "{e}");
-        let e = parse("rate_furlongs,drawdown_m\n5,1\n").unwrap_err();
+        let e = parse("rate_furlongs,drawdown_m\n5,1\n")
+            .unwrap_err()
+            .to_string();
         assert!(e.contains("rate_furlongs") && e.contains("L/s"), "{e}");
-        let e = parse("rate_L/s,drawdown_m\n5\n").unwrap_err();
+        let e = parse("rate_L/s,drawdown_m\n5\n").unwrap_err().to_string();
         assert!(e.contains("line 2"), "{e}");
-        let e = parse("rate_L/s,rate_m3/s,drawdown_m\n5,1,1\n").unwrap_err();
+        let e = parse("rate_L/s,rate_m3/s,drawdown_m\n5,1,1\n")
+            .unwrap_err()
+            .to_string();
         assert!(e.contains("both rate"), "{e}");
-        let e = parse("time_s,drawdown_m\n5,1\n").unwrap_err();
+        let e = parse("time_s,drawdown_m\n5,1\n").unwrap_err().to_string();
         assert!(e.contains("no rate column"), "{e}");
-        assert!(parse("# only\n\n").is_err());
+        assert_eq!(parse("# only\n\n"), Err(StepFileError::NoHeader));
         assert!(parse("rate_L/s,drawdown_m\n")
             .unwrap_err()
+            .to_string()
             .contains("no data rows"));
     }
 }
