@@ -45,7 +45,7 @@ pub fn format(x: f64, n: usize, style: Style) -> String {
     } else {
         match style {
             Style::Text => scientific,
-            Style::Html => format!("{mantissa}×10{}", superscript(exp)),
+            Style::Html => format!("{mantissa}×10{}", superscript(&exp.to_string())),
         }
     }
 }
@@ -60,9 +60,10 @@ pub fn html(x: f64, n: usize) -> String {
     format(x, n, Style::Html)
 }
 
-/// `-5` → `⁻⁵`.
-fn superscript(exp: i32) -> String {
-    exp.to_string()
+/// An exponent as superscript digits: `-5` → `⁻⁵` (a leading `+` is dropped; other
+/// characters are kept).
+pub fn superscript(exp: &str) -> String {
+    exp.trim_start_matches('+')
         .chars()
         .map(|c| match c {
             '-' => '⁻',
@@ -75,7 +76,8 @@ fn superscript(exp: i32) -> String {
             '6' => '⁶',
             '7' => '⁷',
             '8' => '⁸',
-            _ => '⁹',
+            '9' => '⁹',
+            other => other,
         })
         .collect()
 }

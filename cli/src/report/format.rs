@@ -170,26 +170,7 @@ fn join(number: String, label: &str) -> String {
     }
 }
 
-/// `-5` → `⁻⁵`.
-pub fn superscript(exp: &str) -> String {
-    exp.trim_start_matches('+')
-        .chars()
-        .map(|c| match c {
-            '-' => '⁻',
-            '0' => '⁰',
-            '1' => '¹',
-            '2' => '²',
-            '3' => '³',
-            '4' => '⁴',
-            '5' => '⁵',
-            '6' => '⁶',
-            '7' => '⁷',
-            '8' => '⁸',
-            '9' => '⁹',
-            other => other,
-        })
-        .collect()
-}
+pub use crate::sigfig::superscript;
 
 #[cfg(test)]
 mod tests {
