@@ -82,18 +82,8 @@ pub fn figures(runs: &[Run]) -> Vec<Figure> {
     };
     let mut time_chart =
         |title: &str, quantity: &str, shown: Shown, get: fn(&RunSeries) -> &[f64]| {
-            let mut c = Chart::new(
-                &next_id(),
-                title,
-                &time_axis,
-                &axis_label(quantity, shown.si.label),
-            );
+            let mut c = quantity_chart(&next_id(), title, &time_axis, quantity, shown);
             c.x_factor = t_factor;
-            c.y_factor = shown.si.per_si;
-            c.y2 = shown.us.map(|us| SecondAxis {
-                label: axis_label(quantity, us.label),
-                per_primary: us.per_si / shown.si.per_si,
-            });
             for (i, run) in runs.iter().enumerate() {
                 c.series.push(Series {
                     label: legend_name(i, run),
@@ -206,6 +196,24 @@ fn axis_label(quantity: &str, unit: &str) -> String {
     }
 }
 
+/// An empty chart whose y axis shows `quantity` as `shown` says: the SI-side display unit on
+/// the left, the US-customary one (when there is one) on the right.
+pub(super) fn quantity_chart<'a>(
+    id: &str,
+    title: &str,
+    x_label: &str,
+    quantity: &str,
+    shown: Shown,
+) -> Chart<'a> {
+    let mut c = Chart::new(id, title, x_label, &axis_label(quantity, shown.si.label));
+    c.y_factor = shown.si.per_si;
+    c.y2 = shown.us.map(|us| SecondAxis {
+        label: axis_label(quantity, us.label),
+        per_primary: us.per_si / shown.si.per_si,
+    });
+    c
+}
+
 fn work_chart(id: &str, i: usize, run: &Run, time_axis: &str, t_factor: f64) -> String {
     let title = format!("Cumulative work per zone, run {}", run_letter(i));
     let mut c = Chart::new(id, &title, time_axis, "Work [J]");
@@ -250,17 +258,7 @@ fn cycle_figure(runs: &[Run], next_id: &mut impl FnMut() -> String) -> Figure {
         .map(|r| r.cycles.index.iter().map(|k| k + 1.0).collect())
         .collect();
     let mut chart = |title: &str, quantity: &str, shown: Shown, get: fn(&Run) -> &[f64]| {
-        let mut c = Chart::new(
-            &next_id(),
-            title,
-            "Cycle number",
-            &axis_label(quantity, shown.si.label),
-        );
-        c.y_factor = shown.si.per_si;
-        c.y2 = shown.us.map(|us| SecondAxis {
-            label: axis_label(quantity, us.label),
-            per_primary: us.per_si / shown.si.per_si,
-        });
+        let mut c = quantity_chart(&next_id(), title, "Cycle number", quantity, shown);
         for (i, run) in runs.iter().enumerate() {
             c.series.push(Series {
                 label: legend_name(i, run),
@@ -304,18 +302,8 @@ fn progress_figure(
     next_id: &mut impl FnMut() -> String,
 ) -> Figure {
     let mut chart = |title: &str, quantity: &str, shown: Shown, get: fn(&Run) -> &[f64]| {
-        let mut c = Chart::new(
-            &next_id(),
-            title,
-            time_axis,
-            &axis_label(quantity, shown.si.label),
-        );
+        let mut c = quantity_chart(&next_id(), title, time_axis, quantity, shown);
         c.x_factor = t_factor;
-        c.y_factor = shown.si.per_si;
-        c.y2 = shown.us.map(|us| SecondAxis {
-            label: axis_label(quantity, us.label),
-            per_primary: us.per_si / shown.si.per_si,
-        });
         for (i, run) in runs.iter().enumerate() {
             c.series.push(Series {
                 label: legend_name(i, run),
@@ -350,17 +338,14 @@ fn progress_figure(
 
 fn profile_chart(id: &str, i: usize, run: &Run) -> String {
     let title = format!("Head against radius, run {}", run_letter(i));
-    let mut c = Chart::new(
+    let mut c = quantity_chart(
         id,
         &title,
         "Radius from the well axis [m] (log scale)",
-        "Head [m]",
+        "Head",
+        HEAD,
     );
     c.x_scale = Scale::Log;
-    c.y2 = HEAD.us.map(|us| SecondAxis {
-        label: format!("Head [{}]", us.label),
-        per_primary: us.per_si,
-    });
     if let Some(rs) = run.screen_radius() {
         c.marks.push(Mark {
             x: rs,

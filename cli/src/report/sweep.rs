@@ -8,10 +8,10 @@ use std::fmt::Write;
 use boreflux_solver::safety::CAUTION;
 
 use super::escape::esc;
-use super::figures::run_style;
+use super::figures::{quantity_chart, run_style};
 use super::format::{shown_for, sig, Shown};
 use super::html::STYLE;
-use super::svg::{render, Chart, SecondAxis, Series};
+use super::svg::{render, Series};
 use super::ticks::Scale;
 use crate::output::schema::Figure;
 use crate::sweep::table::Table;
@@ -111,14 +111,6 @@ fn shown(figure: Figure) -> Shown {
         Figure::PeakSlotVelocity => super::format::SLOT_VELOCITY,
         Figure::PeakShear => super::format::SHEAR,
         other => shown_for(other.entry().unit),
-    }
-}
-
-fn axis_label(title: &str, unit: &str) -> String {
-    if unit.is_empty() {
-        format!("{title} [–]")
-    } else {
-        format!("{title} [{unit}]")
     }
 }
 
@@ -273,18 +265,8 @@ fn charts(h: &mut String, t: &Table) {
             continue;
         }
         let s = shown(*figure);
-        let mut c = Chart::new(
-            &format!("sweep{n}"),
-            title,
-            x_path,
-            &axis_label(title, s.si.label),
-        );
+        let mut c = quantity_chart(&format!("sweep{n}"), title, x_path, title, s);
         c.x_scale = x_scale;
-        c.y_factor = s.si.per_si;
-        c.y2 = s.us.map(|us| SecondAxis {
-            label: axis_label(title, us.label),
-            per_primary: us.per_si / s.si.per_si,
-        });
         for (i, (key, (x, y))) in lines.keys().zip(xs.iter().zip(&ys)).enumerate() {
             let label = t.paths[1..]
                 .iter()
