@@ -196,7 +196,7 @@ fn number(x: f64) -> Value {
 }
 
 /// Splits `0.3 m`, `0.3m` or `0.3` into the number and the unit text (possibly empty).
-fn number_and_unit(text: &str) -> Result<(f64, String), VaryError> {
+pub(crate) fn number_and_unit(text: &str) -> Result<(f64, String), VaryError> {
     let end = text
         .char_indices()
         .find(|&(i, c)| {
