@@ -120,7 +120,24 @@ Examples:
   boreflux sweep cases/swab-deep.json -o out/swab \\
       --vary drive.stroke=\"2 m,4 m,6 m\" --vary drive.lift_rate=0.5,1,1.5
   boreflux sweep CASE --vary ... -o out/part-2 --shard 2/8
-  boreflux merge out/part-*.h5 -o out/all";
+  boreflux merge out/part-*.h5 -o out/all
+
+Sampled sweeps (uncertainty runs) draw N scenarios instead of a grid: --sample
+PATH=DISTRIBUTION per input, with --samples N and --seed S (and --design lhs, the
+default, or random). The sample is a function of (distributions, design, N, seed) only,
+so shards of one sampled sweep merge to exactly the unsharded table. DISTRIBUTION is
+  uniform(A, B)               loguniform(A, B)             triangular(MIN, MODE, MAX)
+  normal(MEAN, SD)            lognormal(MEDIAN, SDLN)      (SDLN: sd of ln X, no unit)
+normal and lognormal take bounds: normal(0.3 m, 0.1 m, min=0.05 m, max=0.6 m). The
+numbers of one distribution share one unit. --sample-file reads the same from JSON:
+  {\"design\": \"lhs\", \"samples\": 200, \"seed\": 7, \"inputs\": [
+     {\"path\": \"pack.conductivity\", \"distribution\": \"lognormal(8e-3 m/s, 0.7)\"}]}
+
+Examples:
+  boreflux sweep cases/municipal-sand-gravel.json -o out/mc --samples 200 --seed 7 \\
+      --sample \"pack.conductivity=lognormal(8e-3 m/s, 0.7, max=0.1 m/s)\" \\
+      --sample \"drive.stroke=triangular(0.3 m, 0.6 m, 0.9 m)\"
+  boreflux sweep CASE --sample-file mc.json -o out/mc-3 --shard 3/16";
 
 /// Arguments of `sweep`.
 #[derive(Debug, clap::Args)]
@@ -128,8 +145,28 @@ pub struct SweepArgs {
     /// Case file (JSON) every scenario starts from.
     pub case: PathBuf,
     /// A case-file value to vary, and its values (see below); repeat for a Cartesian product.
-    #[arg(long = "vary", value_name = "PATH=VALUES", required = true)]
+    #[arg(
+        long = "vary",
+        value_name = "PATH=VALUES",
+        required_unless_present_any = ["sample", "sample_file"],
+        conflicts_with_all = ["sample", "sample_file"]
+    )]
     pub vary: Vec<String>,
+    /// A case-file value to draw from a distribution (see below); repeat for more inputs.
+    #[arg(long = "sample", value_name = "PATH=DISTRIBUTION")]
+    pub sample: Vec<String>,
+    /// A JSON file of sampled inputs (and optionally design, samples, seed; see below).
+    #[arg(long, value_name = "FILE")]
+    pub sample_file: Option<PathBuf>,
+    /// Number of sampled scenarios.
+    #[arg(long, value_name = "N")]
+    pub samples: Option<usize>,
+    /// Seed of the sample's generator (any whole number from 0 to 2^64 − 1).
+    #[arg(long, value_name = "S")]
+    pub seed: Option<u64>,
+    /// How the sample is drawn: lhs (Latin hypercube) or random [default: lhs].
+    #[arg(long, value_name = "DESIGN")]
+    pub design: Option<String>,
     /// Output name: NAME.csv and NAME.h5 are written (a .csv or .h5 ending is dropped),
     /// each to a temporary file renamed when complete.
     #[arg(short, long, value_name = "NAME")]

@@ -33,7 +33,9 @@ pub fn merge(a: &MergeArgs) -> Result<(), Failure> {
         let differs = if t.base_case_json != first.base_case_json {
             Some("case file")
         } else if t.vary_json != first.vary_json {
-            Some("--vary values")
+            Some("--vary values or --sample distributions")
+        } else if t.sampling_json != first.sampling_json {
+            Some("sample design, count or seed")
         } else if t.total != first.total {
             Some("scenario count")
         } else if t.figures != first.figures {

@@ -12,6 +12,7 @@ use super::{print_out, Failure};
 use crate::args::SweepArgs;
 use crate::sweep::exec::{prepare, run_all, tabulate};
 use crate::sweep::plan::{Plan, Shard};
+use crate::sweep::sampled::{sampled_plan, SampleArgs};
 use crate::sweep::spec::parse_vary;
 use crate::sweep::table::Table;
 use anyhow::anyhow;
@@ -97,19 +98,54 @@ pub(super) fn overview(t: &Table) -> String {
     lines.join("\n") + "\n"
 }
 
-/// Runs the command.
-pub fn sweep(a: &SweepArgs) -> Result<(), Failure> {
-    let text = crate::case::read_limited(&a.case, crate::case::MAX_CASE_BYTES, "case file")
-        .map_err(|e| Failure::with_code(e.exit_code(), e))?;
-    let base: Value = crate::case::read_case_json(&text)
-        .map_err(|e| Failure::Input(anyhow!("{}: {e}", a.case.display())))?;
+/// The plan: a grid of `--vary` values or a sample (`--sample`, `--sample-file`).
+fn plan(a: &SweepArgs, base: &Value) -> Result<Plan, Failure> {
+    if a.vary.is_empty() {
+        let file = match &a.sample_file {
+            Some(p) => Some((
+                p.display().to_string(),
+                crate::case::read_limited(p, crate::case::MAX_CASE_BYTES, "sample file")
+                    .map_err(|e| Failure::with_code(e.exit_code(), e))?,
+            )),
+            None => None,
+        };
+        let args = SampleArgs {
+            sample: &a.sample,
+            file: file.as_ref().map(|(n, t)| (n.as_str(), t.clone())),
+            samples: a.samples,
+            seed: a.seed,
+            design: a.design.as_deref(),
+        };
+        return sampled_plan(base.clone(), &args).map_err(|e| Failure::Input(e.into()));
+    }
+    if let Some(flag) = [
+        (a.samples.is_some(), "--samples"),
+        (a.seed.is_some(), "--seed"),
+        (a.design.is_some(), "--design"),
+    ]
+    .into_iter()
+    .find_map(|(given, flag)| given.then_some(flag))
+    {
+        return Err(Failure::Input(anyhow!(
+            "{flag} belongs to a sampled sweep (--sample); a --vary sweep runs every value"
+        )));
+    }
     let variables = a
         .vary
         .iter()
         .map(|v| parse_vary(v))
         .collect::<Result<Vec<_>, _>>()
         .map_err(|e| Failure::Input(e.into()))?;
-    let plan = Plan::new(base.clone(), variables).map_err(|e| Failure::Input(e.into()))?;
+    Plan::new(base.clone(), variables).map_err(|e| Failure::Input(e.into()))
+}
+
+/// Runs the command.
+pub fn sweep(a: &SweepArgs) -> Result<(), Failure> {
+    let text = crate::case::read_limited(&a.case, crate::case::MAX_CASE_BYTES, "case file")
+        .map_err(|e| Failure::with_code(e.exit_code(), e))?;
+    let base: Value = crate::case::read_case_json(&text)
+        .map_err(|e| Failure::Input(anyhow!("{}: {e}", a.case.display())))?;
+    let plan = plan(a, &base)?;
     let shard = match &a.shard {
         Some(s) => Shard::parse(s).map_err(|e| Failure::Input(e.into()))?,
         None => Shard::WHOLE,
@@ -161,6 +197,7 @@ pub fn sweep(a: &SweepArgs) -> Result<(), Failure> {
         case_file: a.case.display().to_string(),
         base_case_json: base.to_string(),
         vary_json: plan.definition().to_string(),
+        sampling_json: plan.sampling.as_ref().map(|s| s.definition().to_string()),
         total,
         shard: shard.to_string(),
         paths: plan.variables.iter().map(|v| v.path.clone()).collect(),

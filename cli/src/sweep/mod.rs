@@ -12,6 +12,7 @@ pub mod dist;
 pub mod exec;
 pub mod normal;
 pub mod plan;
+pub mod sampled;
 pub mod spec;
 pub mod stats;
 pub mod table;

@@ -1,7 +1,11 @@
-//! The scenarios of a sweep: the Cartesian product of the `--vary` values, numbered in
-//! odometer order (the last `--vary` changes fastest), and the share of one shard.
+//! The scenarios of a sweep, and the share of one shard. A grid sweep (`--vary`) is the
+//! Cartesian product of the values, numbered in odometer order (the last `--vary` changes
+//! fastest); a sampled sweep (`--sample`) has N scenarios, scenario i taking row i of the
+//! sample matrix ([`super::design`]) through each input's quantile function.
 
-use super::spec::{label, set_path, SpecError, Variable, MAX_VALUES};
+use super::design::{column, Design};
+use super::dist::Distribution;
+use super::spec::{label, parse_path, quantity, set_path, SpecError, Variable, MAX_VALUES};
 use serde_json::Value;
 
 /// A sweep: the base case and the variables.
@@ -9,8 +13,35 @@ use serde_json::Value;
 pub struct Plan {
     /// The case file as read (JSON, user units).
     pub base: Value,
-    /// The `--vary` variables, in the order given.
+    /// The varied inputs, in the order given; for a sampled sweep `values[i]` is
+    /// scenario i's value.
     pub variables: Vec<Variable>,
+    /// How the sample was drawn; None for a grid sweep.
+    pub sampling: Option<Sampling>,
+}
+
+/// What defines a sampled sweep besides the base case.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Sampling {
+    /// Random or Latin hypercube.
+    pub design: Design,
+    /// Number of scenarios.
+    pub samples: usize,
+    /// The generator's seed.
+    pub seed: u64,
+    /// Each input's distribution, in the order of [`Plan::variables`].
+    pub distributions: Vec<Distribution>,
+}
+
+impl Sampling {
+    /// Design, sample count and seed as JSON, stored with the table.
+    pub fn definition(&self) -> Value {
+        serde_json::json!({
+            "design": self.design.name(),
+            "samples": self.samples,
+            "seed": self.seed,
+        })
+    }
 }
 
 /// `--shard K/N`: this process runs scenarios whose index i has i mod N = K − 1.
@@ -70,7 +101,11 @@ impl Plan {
                 )));
             }
         }
-        let plan = Plan { base, variables };
+        let plan = Plan {
+            base,
+            variables,
+            sampling: None,
+        };
         if plan.count().is_none_or(|c| c > MAX_VALUES) {
             return Err(SpecError(format!(
                 "the --vary values make more than {MAX_VALUES} scenarios; split the sweep"
@@ -79,15 +114,70 @@ impl Plan {
         Ok(plan)
     }
 
+    /// A sampled sweep: `inputs` (path, distribution) drawn `samples` times by `design`
+    /// from `seed`. Refuses a path given twice and more than [`MAX_VALUES`] samples.
+    pub fn sampled(
+        base: Value,
+        inputs: Vec<(String, Distribution)>,
+        design: Design,
+        samples: usize,
+        seed: u64,
+    ) -> Result<Plan, SpecError> {
+        if inputs.is_empty() {
+            return Err(SpecError("give at least one --sample PATH=DISTRIBUTION".into()));
+        }
+        if !(1..=MAX_VALUES).contains(&samples) {
+            return Err(SpecError(format!(
+                "--samples: 1 to {MAX_VALUES} scenarios, got {samples}"
+            )));
+        }
+        let mut variables = Vec::new();
+        let mut distributions = Vec::new();
+        for (j, (path, dist)) in inputs.into_iter().enumerate() {
+            if variables.iter().any(|v: &Variable| v.path == path) {
+                return Err(SpecError(format!("--sample {path}: the path is given twice")));
+            }
+            let segments =
+                parse_path(&path).map_err(|e| SpecError(format!("--sample {path}: {e}")))?;
+            let values = column(design, samples, seed, j)
+                .into_iter()
+                .map(|u| quantity(dist.quantile(u), &dist.unit))
+                .collect();
+            variables.push(Variable {
+                path,
+                segments,
+                values,
+            });
+            distributions.push(dist);
+        }
+        Ok(Plan {
+            base,
+            variables,
+            sampling: Some(Sampling {
+                design,
+                samples,
+                seed,
+                distributions,
+            }),
+        })
+    }
+
     /// Number of scenarios (None on overflow).
     pub fn count(&self) -> Option<usize> {
+        if let Some(s) = &self.sampling {
+            return Some(s.samples);
+        }
         self.variables
             .iter()
             .try_fold(1usize, |acc, v| acc.checked_mul(v.values.len()))
     }
 
-    /// The value index of each variable in scenario `i` (odometer order).
+    /// The value index of each variable in scenario `i` (odometer order; row i of a
+    /// sample).
     pub fn choice(&self, mut i: usize) -> Vec<usize> {
+        if self.sampling.is_some() {
+            return vec![i; self.variables.len()];
+        }
         let mut out = vec![0; self.variables.len()];
         for (slot, v) in out.iter_mut().zip(&self.variables).rev() {
             *slot = i % v.values.len();
@@ -117,7 +207,18 @@ impl Plan {
 
     /// The variables as JSON (path and values), stored with every table so shards can be
     /// checked to come from one sweep.
+    /// A sampled sweep stores each path with its distribution instead (the values are a
+    /// function of it and of [`Sampling::definition`]).
     pub fn definition(&self) -> Value {
+        if let Some(s) = &self.sampling {
+            return Value::Array(
+                self.variables
+                    .iter()
+                    .zip(&s.distributions)
+                    .map(|(v, d)| serde_json::json!({"path": v.path, "distribution": d.text}))
+                    .collect(),
+            );
+        }
         Value::Array(
             self.variables
                 .iter()
@@ -168,6 +269,35 @@ mod tests {
         for bad in ["0/3", "4/3", "3", "a/b", "1/0"] {
             assert!(Shard::parse(bad).is_err(), "{bad}");
         }
+    }
+
+    #[test]
+    fn a_sampled_plan_takes_row_i_of_every_column() {
+        use super::super::dist::parse;
+        let inputs = vec![
+            ("drive.stroke".to_owned(), parse("uniform(0.3 m, 0.9 m)").unwrap()),
+            ("drive.strokes_per_minute".to_owned(), parse("triangular(10, 20, 40)").unwrap()),
+        ];
+        let p = Plan::sampled(json!({"drive": {}}), inputs, Design::Lhs, 8, 11).unwrap();
+        assert_eq!(p.count(), Some(8));
+        assert_eq!(p.choice(5), [5, 5]);
+        let u = column(Design::Lhs, 8, 11, 0);
+        let case = p.scenario(5).unwrap();
+        let stroke = case["drive"]["stroke"].as_str().unwrap();
+        let x: f64 = stroke.strip_suffix(" m").unwrap().parse().unwrap();
+        assert_eq!(x, 0.3 + u[5] * (0.9 - 0.3));
+        assert!(case["drive"]["strokes_per_minute"].is_number());
+        assert_eq!(
+            p.definition()[1],
+            json!({"path": "drive.strokes_per_minute", "distribution": "triangular(10, 20, 40)"})
+        );
+        let twice = vec![
+            ("a".to_owned(), parse("uniform(1, 2)").unwrap()),
+            ("a".to_owned(), parse("uniform(1, 2)").unwrap()),
+        ];
+        assert!(Plan::sampled(json!({}), twice, Design::Lhs, 8, 1).is_err());
+        let one = vec![("a".to_owned(), parse("uniform(1, 2)").unwrap())];
+        assert!(Plan::sampled(json!({}), one, Design::Random, 0, 1).is_err());
     }
 
     #[test]

@@ -136,7 +136,7 @@ pub fn parse_vary(arg: &str) -> Result<Variable, SpecError> {
     })
 }
 
-fn parse_path(path: &str) -> Result<Vec<Segment>, VaryError> {
+pub(crate) fn parse_path(path: &str) -> Result<Vec<Segment>, VaryError> {
     if path.is_empty() {
         return Err(VaryError::EmptyPath);
     }
@@ -322,6 +322,19 @@ pub fn set_path(case: &mut Value, segments: &[Segment], value: Value) -> Result<
         }
     }
     Err(VaryError::EmptyPath)
+}
+
+/// A drawn value as it goes into the case file: a bare number without a unit, otherwise
+/// `"<x> <unit>"` with x in the shortest form that reads back to the same double
+/// (exponent form below 1e-4 and from 1e9).
+pub fn quantity(x: f64, unit: &str) -> Value {
+    if unit.is_empty() {
+        serde_json::Number::from_f64(x).map_or(Value::Null, Value::Number)
+    } else if x != 0.0 && (x.abs() < 1e-4 || x.abs() >= 1e9) {
+        Value::String(format!("{x:e} {unit}"))
+    } else {
+        Value::String(format!("{x} {unit}"))
+    }
 }
 
 /// A value as text for tables: strings without quotes, numbers as JSON writes them.

@@ -4,7 +4,9 @@
 //! ```text
 //! HDF5   / attributes: kind = "sweep", tool_version, created_utc, case_file,
 //!          base_case_json (the case file as read), vary_json ([{path, values}]),
-//!          scenarios_total, shard ("K/N", or "merged")
+//!          scenarios_total, shard ("K/N", or "merged"); a sampled sweep adds
+//!          sampling_json ({design, samples, seed}) and its vary_json is
+//!          [{path, distribution}]
 //!        /table                     attribute figure_columns: the figure names in order
 //!        /table/scenario            index in the whole sweep, from 0
 //!        /table/status              "ok", or why the scenario failed
@@ -14,7 +16,8 @@
 //!                                   unit, otherwise as given (NaN for a word)
 //!        /table/<figure>            the run's headline figures (the names of a run file's
 //!                                   /summary attributes; units in the suffix and attribute)
-//! CSV    scenario, status, <path>…, <path>_value…, <figure>…, warnings
+//! CSV    scenario, status, <path>…, <path>_value…, <figure>…, warnings; a sampled sweep
+//!        adds design and seed after status
 //! ```
 
 use crate::output::h5::H5Writer;
@@ -22,6 +25,7 @@ use crate::output::schema::{figure_values, Figure};
 use crate::output::TempTarget;
 use crate::read_error::{FileKind, ReadError};
 use crate::summary::Headline;
+use super::spec::label;
 use hdf5::types::{TypeDescriptor, VarLenUnicode};
 use hdf5::File;
 use serde_json::Value;
@@ -53,8 +57,10 @@ pub struct Table {
     pub case_file: String,
     /// The case file as read (JSON text).
     pub base_case_json: String,
-    /// The `--vary` variables as JSON.
+    /// The `--vary` variables as JSON (for a sampled sweep: the paths and distributions).
     pub vary_json: String,
+    /// A sampled sweep's design, sample count and seed as JSON; None for a grid sweep.
+    pub sampling_json: Option<String>,
     /// Scenarios in the whole sweep.
     pub total: usize,
     /// `K/N` of this shard, or "merged".
@@ -112,6 +118,13 @@ impl Table {
             .terminator(csv::Terminator::Any(b'\n'))
             .from_writer(Vec::new());
         let mut header = vec!["scenario".to_owned(), "status".to_owned()];
+        let sampling: Option<(String, String)> = self.sampling_json.as_deref().map(|j| {
+            let v: Value = serde_json::from_str(j).unwrap_or_default();
+            (label(&v["design"]), label(&v["seed"]))
+        });
+        if sampling.is_some() {
+            header.extend(["design".to_owned(), "seed".to_owned()]);
+        }
         header.extend(self.paths.iter().cloned());
         header.extend(self.paths.iter().map(|p| format!("{p}_value")));
         header.extend(self.figures.iter().cloned());
@@ -120,6 +133,9 @@ impl Table {
         let _ = w.write_record(header.iter().map(|h| text_field(h)));
         for r in &self.rows {
             let mut f = vec![r.scenario.to_string(), text_field(&r.status)];
+            if let Some((design, seed)) = &sampling {
+                f.extend([text_field(design), seed.clone()]);
+            }
             f.extend(r.labels.iter().map(|l| text_field(l)));
             f.extend(r.si.iter().map(|&x| number_field(x)));
             f.extend(r.figures.iter().map(|&x| number_field(x)));
@@ -155,6 +171,9 @@ impl Table {
         w.set_root_attr_str("case_file", &self.case_file)?;
         w.set_root_attr_str("base_case_json", &self.base_case_json)?;
         w.set_root_attr_str("vary_json", &self.vary_json)?;
+        if let Some(j) = &self.sampling_json {
+            w.set_root_attr_str("sampling_json", j)?;
+        }
         w.set_attr_f64("/", "scenarios_total", self.total as f64)?;
         w.set_root_attr_str("shard", &self.shard)?;
         w.group("/table")?;
@@ -346,6 +365,12 @@ impl Table {
             case_file: attr("case_file")?,
             base_case_json: attr("base_case_json")?,
             vary_json,
+            sampling_json: file
+                .attr_names()
+                .ok()
+                .filter(|n| n.iter().any(|n| n == "sampling_json"))
+                .map(|_| attr("sampling_json"))
+                .transpose()?,
             total: total as usize,
             shard: attr("shard")?,
             paths,
@@ -364,6 +389,7 @@ mod tests {
             case_file: "cases/x.json".into(),
             base_case_json: "{\"a\":1}".into(),
             vary_json: "[{\"path\":\"drive.stroke\",\"values\":[\"0.3 m\",\"0.6 m\"]}]".into(),
+            sampling_json: None,
             total: 2,
             shard: "1/1".into(),
             paths: vec!["drive.stroke".into()],
