@@ -739,6 +739,119 @@ impl ProgressSeries {
     }
 }
 
+/// A key series of a sweep table (`/table/series/<name>`): one row per scenario, one
+/// column per point of the common grid of run fractions k/[`SweepSeries::INTERVALS`],
+/// k = 0…INTERVALS, so that a sampled sweep's report can draw bands across scenarios
+/// (docs/sweeps.md).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum SweepSeries {
+    /// The common grid: the fraction of the run, k/INTERVALS (one row).
+    RunFraction,
+    /// Time of the reported step each point takes its values from.
+    Time,
+    /// Total skin of the well as it stands.
+    Skin,
+    /// Specific capacity of the virtual constant-rate test.
+    SpecificCapacity,
+    /// Efficiency against the undamaged well.
+    Efficiency,
+    /// Largest outward face flux of the cycles ending in the interval.
+    PeakOutwardFlux,
+    /// Largest inward face flux of the cycles ending in the interval.
+    PeakInwardFlux,
+}
+
+impl SweepSeries {
+    /// Intervals of the common grid (points: one more).
+    pub const INTERVALS: usize = 50;
+
+    /// All, in file order.
+    pub const ALL: [SweepSeries; 7] = [
+        SweepSeries::RunFraction,
+        SweepSeries::Time,
+        SweepSeries::Skin,
+        SweepSeries::SpecificCapacity,
+        SweepSeries::Efficiency,
+        SweepSeries::PeakOutwardFlux,
+        SweepSeries::PeakInwardFlux,
+    ];
+
+    /// The series with one row per scenario (all but the grid).
+    pub const PER_SCENARIO: [SweepSeries; 6] = [
+        SweepSeries::Time,
+        SweepSeries::Skin,
+        SweepSeries::SpecificCapacity,
+        SweepSeries::Efficiency,
+        SweepSeries::PeakOutwardFlux,
+        SweepSeries::PeakInwardFlux,
+    ];
+
+    /// The group the series live in.
+    pub const GROUP: &'static str = "table/series";
+
+    /// Its schema entry; `name` is the path below `/table/series`.
+    pub fn entry(self) -> Entry {
+        let s = |n: &str, u, d: &str, c, p| entry(n.to_owned(), u, d.to_owned(), c, p);
+        let at = "at the first reported step at or after each grid time (the start state at k = 0)";
+        match self {
+            SweepSeries::RunFraction => s(
+                "run_fraction",
+                Unit::One,
+                "the common grid: fraction k/50 of the run, k = 0…50 (one row)",
+                "k/50",
+                Place::Model,
+            ),
+            SweepSeries::Time => s(
+                "time",
+                Unit::S,
+                "time of the values at each grid point, per scenario (row) and point (column)",
+                at,
+                Place::Model,
+            ),
+            SweepSeries::Skin => s(
+                "skin",
+                Unit::One,
+                "total skin of the well as it stands, per scenario and grid point",
+                at,
+                Place::Wall,
+            ),
+            SweepSeries::SpecificCapacity => s(
+                "specific_capacity",
+                Unit::M2PerS,
+                "specific capacity of the virtual constant-rate test, per scenario and grid point; NaN when the virtual test failed",
+                "as /progress/specific_capacity, docs/physics.md §25.3",
+                Place::Model,
+            ),
+            SweepSeries::Efficiency => s(
+                "efficiency",
+                Unit::One,
+                "efficiency against the undamaged well, per scenario and grid point; NaN when the virtual test failed",
+                "as /progress/efficiency",
+                Place::Model,
+            ),
+            SweepSeries::PeakOutwardFlux => s(
+                "peak_outward_flux",
+                Unit::MPerS,
+                "largest outward Darcy flux at the wall of the cycles ending in the interval before each grid point; NaN at k = 0 and where no cycle ended",
+                "max of /cycles/peak_outward_flux",
+                Place::Wall,
+            ),
+            SweepSeries::PeakInwardFlux => s(
+                "peak_inward_flux",
+                Unit::MPerS,
+                "largest inward Darcy flux at the wall of the cycles ending in the interval before each grid point; NaN at k = 0 and where no cycle ended",
+                "max of /cycles/peak_inward_flux",
+                Place::Wall,
+            ),
+        }
+    }
+
+    /// The HDF5 path, `/table/series/<name>`.
+    pub fn path(self) -> String {
+        format!("/{}/{}", Self::GROUP, self.entry().name)
+    }
+}
+
 /// The schema as the Markdown tables of docs/formats.md ("Output schema"), which
 /// `boreflux schema --outputs` prints and a test compares with the docs.
 pub fn markdown() -> String {
@@ -788,6 +901,16 @@ pub fn markdown() -> String {
         ProgressSeries::ALL
             .into_iter()
             .map(ProgressSeries::entry)
+            .collect(),
+    );
+    table(
+        &mut out,
+        "Key series of a sweep table (`/table/series/<name>`; rows scenarios in table order, \
+         columns the grid points; NaN rows for failed scenarios):",
+        "",
+        SweepSeries::ALL
+            .into_iter()
+            .map(SweepSeries::entry)
             .collect(),
     );
     out.push_str("Text attributes of `/summary`:\n\n| name | description |\n| --- | --- |\n");

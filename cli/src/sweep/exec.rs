@@ -6,11 +6,13 @@
 //! fails or panics at run time keeps its row, with the reason in `status`; the others run.
 
 use super::plan::{Plan, Shard};
+use super::series::Recorder;
 use super::spec::Segment;
 use super::table::{figures, Row};
 use crate::case::{parse_case, LoadedCase};
 use crate::summary::{assessment, headline, Tracker};
-use boreflux_solver::{run as simulate, Reporting, StepObserver, StepView};
+use boreflux_solver::assess::progress::ProgressBasis;
+use boreflux_solver::{run as simulate, CycleView, Reporting, StepObserver, StepView};
 use serde_json::Value;
 use std::path::Path;
 use std::sync::atomic::{AtomicUsize, Ordering};
@@ -31,15 +33,21 @@ pub struct Prepared {
 /// A finished scenario: its row (figures not yet in columns) and its figures by name.
 pub type Outcome = (Row, Vec<(String, f64)>);
 
-/// The tracker, stopping the run when `stop` says so.
+/// The tracker and the key series, stopping the run when `stop` says so.
 struct Observer<'a> {
     tracker: Tracker,
+    series: Recorder,
     stop: &'a (dyn Fn() -> bool + Sync),
 }
 
 impl StepObserver for Observer<'_> {
     fn on_step(&mut self, s: &StepView<'_>) -> bool {
+        self.series.on_step(s);
         !(self.stop)() && self.tracker.on_step(s)
+    }
+
+    fn on_cycle(&mut self, c: &CycleView) {
+        self.series.on_cycle(c);
     }
 }
 
@@ -137,6 +145,7 @@ fn run_one(
             status,
             figures: Vec::new(),
             warnings: String::new(),
+            series: Vec::new(),
         };
         (row, Vec::new())
     };
@@ -179,9 +188,19 @@ fn run_case(
         status: "ok".into(),
         figures: Vec::new(),
         warnings: String::new(),
+        series: Vec::new(),
     };
+    // The undamaged well's test, once: the basis of the progress series and of the
+    // assessment, as in `boreflux run`.
+    let model = &case.model;
+    let clean = boreflux_solver::assess::undamaged_drawdown_m(model, &case.assessment);
+    let basis = clean
+        .as_ref()
+        .ok()
+        .map(|&c| ProgressBasis::new(model, case.assessment.design_rate_m3_s, c));
     let mut obs = Observer {
-        tracker: Tracker::new(&case.model),
+        tracker: Tracker::new(model),
+        series: Recorder::new(model, basis),
         stop,
     };
     let reporting = Reporting {
@@ -189,9 +208,14 @@ fn run_case(
     };
     match simulate(&case.model, &mut obs, reporting) {
         Ok(summary) => {
-            let a = assessment(case, None, &summary);
+            let a = match clean {
+                Ok(c) => assessment(case, Some(c), &summary),
+                Err(e) => Err(e),
+            };
             let h = headline(case, &summary, &obs.tracker, &a);
             row.warnings = h.warnings.join("\n");
+            obs.series.finish(summary.end_time_s, &summary.final_state);
+            row.series = obs.series.values;
             (row, figures(&h))
         }
         Err(e) => {

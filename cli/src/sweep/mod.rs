@@ -13,6 +13,7 @@ pub mod exec;
 pub mod normal;
 pub mod plan;
 pub mod sampled;
+pub mod series;
 pub mod spec;
 pub mod stats;
 pub mod table;

@@ -124,7 +124,9 @@ impl Plan {
         seed: u64,
     ) -> Result<Plan, SpecError> {
         if inputs.is_empty() {
-            return Err(SpecError("give at least one --sample PATH=DISTRIBUTION".into()));
+            return Err(SpecError(
+                "give at least one --sample PATH=DISTRIBUTION".into(),
+            ));
         }
         if !(1..=MAX_VALUES).contains(&samples) {
             return Err(SpecError(format!(
@@ -135,7 +137,9 @@ impl Plan {
         let mut distributions = Vec::new();
         for (j, (path, dist)) in inputs.into_iter().enumerate() {
             if variables.iter().any(|v: &Variable| v.path == path) {
-                return Err(SpecError(format!("--sample {path}: the path is given twice")));
+                return Err(SpecError(format!(
+                    "--sample {path}: the path is given twice"
+                )));
             }
             let segments =
                 parse_path(&path).map_err(|e| SpecError(format!("--sample {path}: {e}")))?;
@@ -275,8 +279,14 @@ mod tests {
     fn a_sampled_plan_takes_row_i_of_every_column() {
         use super::super::dist::parse;
         let inputs = vec![
-            ("drive.stroke".to_owned(), parse("uniform(0.3 m, 0.9 m)").unwrap()),
-            ("drive.strokes_per_minute".to_owned(), parse("triangular(10, 20, 40)").unwrap()),
+            (
+                "drive.stroke".to_owned(),
+                parse("uniform(0.3 m, 0.9 m)").unwrap(),
+            ),
+            (
+                "drive.strokes_per_minute".to_owned(),
+                parse("triangular(10, 20, 40)").unwrap(),
+            ),
         ];
         let p = Plan::sampled(json!({"drive": {}}), inputs, Design::Lhs, 8, 11).unwrap();
         assert_eq!(p.count(), Some(8));

@@ -58,7 +58,12 @@ fn quantile_functions_match_scipy_ppf() {
         let text = d["distribution"].as_str().unwrap();
         let dist = parse(text).unwrap();
         let tol = if text.contains("min=") { 1e-12 } else { 1e-14 };
-        for (u, q) in d["u"].as_array().unwrap().iter().zip(d["quantile"].as_array().unwrap()) {
+        for (u, q) in d["u"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .zip(d["quantile"].as_array().unwrap())
+        {
             let (u, q) = (f(u), f(q));
             let got = dist.quantile(u);
             assert!(rel(got, q) < tol, "{text} at u = {u}: {got}, scipy {q}");
@@ -74,7 +79,12 @@ fn quantile_functions_match_scipy_ppf() {
 /// from memory — verify). Four standard errors: a fixed seed, so the check is
 /// deterministic; it would fail by chance for about 1 seed in 16 000 per figure.
 fn moments_match(design: Design, n: usize) {
-    for (j, d) in data()["distributions"].as_array().unwrap().iter().enumerate() {
+    for (j, d) in data()["distributions"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .enumerate()
+    {
         if d.get("mean").is_none() {
             continue;
         }
@@ -89,9 +99,15 @@ fn moments_match(design: Design, n: usize) {
         let var = x.iter().map(|v| (v - mean).powi(2)).sum::<f64>() / (nf - 1.0);
         let (m, v, k) = (f(&d["mean"]), f(&d["variance"]), f(&d["excess_kurtosis"]));
         let se_mean = (v / nf).sqrt();
-        assert!((mean - m).abs() < 4.0 * se_mean, "{text}: mean {mean} vs {m} ± {se_mean}");
+        assert!(
+            (mean - m).abs() < 4.0 * se_mean,
+            "{text}: mean {mean} vs {m} ± {se_mean}"
+        );
         let se_var = v * ((k + 2.0) / nf).sqrt();
-        assert!((var - v).abs() < 4.0 * se_var, "{text}: variance {var} vs {v} ± {se_var}");
+        assert!(
+            (var - v).abs() < 4.0 * se_var,
+            "{text}: variance {var} vs {v} ± {se_var}"
+        );
         let sorted = sorted_finite(x);
         let ps = d["p"].as_array().unwrap();
         for ((p, q), pdf) in ps
@@ -102,7 +118,10 @@ fn moments_match(design: Design, n: usize) {
             let (p, q, pdf) = (f(p), f(q), f(pdf));
             let se = (p * (1.0 - p) / nf).sqrt() / pdf;
             let got = percentile(&sorted, 100.0 * p);
-            assert!((got - q).abs() < 4.0 * se, "{text}: P{p} {got} vs {q} ± {se}");
+            assert!(
+                (got - q).abs() < 4.0 * se,
+                "{text}: P{p} {got} vs {q} ± {se}"
+            );
         }
     }
 }
@@ -144,17 +163,28 @@ fn percentiles_match_numpy_and_wilson_matches_scipy() {
     let d = data();
     let p = &d["percentile"];
     let sorted = sorted_finite(p["data"].as_array().unwrap().iter().map(f));
-    for (q, v) in p["q"].as_array().unwrap().iter().zip(p["value"].as_array().unwrap()) {
+    for (q, v) in p["q"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .zip(p["value"].as_array().unwrap())
+    {
         let got = percentile(&sorted, f(q));
         assert!(rel(got, f(v)) < 1e-15, "P{} = {got}, numpy {}", f(q), f(v));
     }
     // scipy.stats.binomtest(k, n).proportion_ci(0.95, method="wilson"): the same closed
     // form with z from scipy's ndtri; 1e-14 relative (absolute near 0).
     for w in d["wilson95"].as_array().unwrap() {
-        let (k, n) = (w["k"].as_u64().unwrap() as usize, w["n"].as_u64().unwrap() as usize);
+        let (k, n) = (
+            w["k"].as_u64().unwrap() as usize,
+            w["n"].as_u64().unwrap() as usize,
+        );
         let (lo, hi) = wilson(k, n, 0.95).unwrap();
         let (wl, wh) = (f(&w["low"]), f(&w["high"]));
-        assert!((lo - wl).abs() < 1e-14 * wl.max(1e-2), "{k}/{n}: low {lo} vs {wl}");
+        assert!(
+            (lo - wl).abs() < 1e-14 * wl.max(1e-2),
+            "{k}/{n}: low {lo} vs {wl}"
+        );
         assert!(rel(hi, wh) < 1e-14, "{k}/{n}: high {hi} vs {wh}");
     }
 }

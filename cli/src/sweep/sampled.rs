@@ -63,9 +63,8 @@ pub fn sampled_plan(base: Value, a: &SampleArgs<'_>) -> Result<Plan, SpecError> 
         from_file = serde_json::from_str(text)
             .map_err(|e| SpecError(format!("--sample-file {text_name}: {e}", text_name = name)))?;
         for (k, i) in from_file.inputs.iter().enumerate() {
-            let d = parse(&i.distribution).map_err(|e| {
-                SpecError(format!("{name}: inputs.{k} ({}): {e}", i.path))
-            })?;
+            let d = parse(&i.distribution)
+                .map_err(|e| SpecError(format!("{name}: inputs.{k} ({}): {e}", i.path)))?;
             inputs.push((i.path.trim().to_owned(), d));
         }
     }
@@ -81,12 +80,13 @@ pub fn sampled_plan(base: Value, a: &SampleArgs<'_>) -> Result<Plan, SpecError> 
     let design_text = a.design.map(str::to_owned).or(from_file.design);
     let design = match design_text.as_deref() {
         None => Design::Lhs,
-        Some(t) => Design::parse(t).ok_or_else(|| {
-            SpecError(format!("--design {t}: expected lhs or random"))
-        })?,
+        Some(t) => Design::parse(t)
+            .ok_or_else(|| SpecError(format!("--design {t}: expected lhs or random")))?,
     };
     let samples = a.samples.or(from_file.samples).ok_or_else(|| {
-        SpecError("--samples: a sampled sweep needs the number of scenarios, e.g. --samples 200".into())
+        SpecError(
+            "--samples: a sampled sweep needs the number of scenarios, e.g. --samples 200".into(),
+        )
     })?;
     let seed = a.seed.or(from_file.seed).ok_or_else(|| {
         SpecError(

@@ -14,18 +14,21 @@
 //!        /table/vary/<path>         the value as written in the case (text)
 //!        /table/vary_value/<path>   the same as a number: in SI base units when it carries a
 //!                                   unit, otherwise as given (NaN for a word)
+//!        /table/series/<name>       key series on a common grid (scenario × point;
+//!                                   schema SweepSeries); absent in tables of earlier versions
 //!        /table/<figure>            the run's headline figures (the names of a run file's
 //!                                   /summary attributes; units in the suffix and attribute)
 //! CSV    scenario, status, <path>…, <path>_value…, <figure>…, warnings; a sampled sweep
 //!        adds design and seed after status
 //! ```
 
+use super::series::{run_fraction, POINTS};
+use super::spec::label;
 use crate::output::h5::H5Writer;
-use crate::output::schema::{figure_values, Figure};
+use crate::output::schema::{figure_values, Figure, SweepSeries};
 use crate::output::TempTarget;
 use crate::read_error::{FileKind, ReadError};
 use crate::summary::Headline;
-use super::spec::label;
 use hdf5::types::{TypeDescriptor, VarLenUnicode};
 use hdf5::File;
 use serde_json::Value;
@@ -48,6 +51,9 @@ pub struct Row {
     pub figures: Vec<f64>,
     /// Warnings of the run, one per line.
     pub warnings: String,
+    /// Key series on the common grid, one vector per entry of
+    /// [`SweepSeries::PER_SCENARIO`]; empty when the scenario failed.
+    pub series: Vec<Vec<f64>>,
 }
 
 /// A sweep's table and what defines the sweep.
@@ -154,14 +160,14 @@ impl Table {
         std::fs::File::create(csv.tmp())
             .and_then(|mut f| f.write_all(self.csv().as_bytes()))
             .map_err(|e| anyhow::anyhow!("writing {}: {e}", csv_path.display()))?;
-        let w = H5Writer::create(&h5_path)?;
-        self.write_h5(&w)?;
+        let mut w = H5Writer::create(&h5_path)?;
+        self.write_h5(&mut w)?;
         w.finish()?;
         csv.commit()?;
         Ok((csv_path, h5_path))
     }
 
-    fn write_h5(&self, w: &H5Writer) -> anyhow::Result<()> {
+    fn write_h5(&self, w: &mut H5Writer) -> anyhow::Result<()> {
         w.set_root_attr_str("kind", "sweep")?;
         w.set_root_attr_str("tool_version", env!("CARGO_PKG_VERSION"))?;
         w.set_root_attr_str(
@@ -234,6 +240,32 @@ impl Table {
                     .ok_or_else(|| anyhow::anyhow!("{name}: not a headline figure of boreflux"))?,
                 "headline figure of the scenario's run (as in a run file's /summary)",
             )?;
+        }
+        if self.rows.iter().any(|r| !r.series.is_empty()) {
+            self.write_series(w)?;
+        }
+        Ok(())
+    }
+
+    /// The key series (`/table/series`): the grid, then one matrix per series, a row per
+    /// scenario (NaN for a failed one).
+    fn write_series(&self, w: &mut H5Writer) -> anyhow::Result<()> {
+        w.group(&format!("/{}", SweepSeries::GROUP))?;
+        let grid = SweepSeries::RunFraction;
+        let e = grid.entry();
+        w.write_vector(
+            &grid.path(),
+            &run_fraction(),
+            e.unit.symbol(),
+            &e.description,
+        )?;
+        let missing = vec![f64::NAN; POINTS];
+        for (j, s) in SweepSeries::PER_SCENARIO.into_iter().enumerate() {
+            let e = s.entry();
+            let mut m = w.growable_matrix(&s.path(), POINTS, e.unit.symbol(), &e.description)?;
+            for r in &self.rows {
+                m.append_row(r.series.get(j).unwrap_or(&missing))?;
+            }
         }
         Ok(())
     }
@@ -351,8 +383,27 @@ impl Table {
                 format!("columns differ in length ({bad} against {n} scenarios)"),
             ));
         }
+        // The key series, when the table has them (tables of earlier versions do not).
+        let mut series: Vec<Vec<f64>> = Vec::new();
+        if file.group(SweepSeries::GROUP).is_ok() {
+            for s in SweepSeries::PER_SCENARIO {
+                let name = &s.path()[1..];
+                let d = dataset(name)?;
+                if d.shape() != [n, POINTS] {
+                    return Err(ReadError::invalid(
+                        s.path(),
+                        format!("shape {:?}, expected [{n}, {POINTS}]", d.shape()),
+                    ));
+                }
+                series.push(d.read_raw::<f64>().map_err(ReadError::hdf5(s.path()))?);
+            }
+        }
         let rows = (0..n)
             .map(|i| Row {
+                series: series
+                    .iter()
+                    .map(|m| m[i * POINTS..(i + 1) * POINTS].to_vec())
+                    .collect(),
                 scenario: index[i] as usize,
                 labels: labels.iter().map(|c| c[i].clone()).collect(),
                 si: si.iter().map(|c| c[i]).collect(),
@@ -402,6 +453,7 @@ mod tests {
                     status: "ok".into(),
                     figures: vec![1.5e-3, 1200.0],
                     warnings: "first, with a comma\nsecond".into(),
+                    series: vec![vec![0.5; POINTS]; SweepSeries::PER_SCENARIO.len()],
                 },
                 Row {
                     scenario: 1,
@@ -410,6 +462,7 @@ mod tests {
                     status: "simulation failed: \"Newton\"".into(),
                     figures: vec![f64::NAN, f64::NAN],
                     warnings: String::new(),
+                    series: Vec::new(),
                 },
             ],
         }
@@ -464,6 +517,8 @@ mod tests {
         assert!(csv.ends_with("sweep.csv") && h5.ends_with("sweep.h5"));
         let back = Table::read(&h5).unwrap();
         assert_eq!(back.rows[0], t.rows[0]);
+        // The failed scenario's series come back as NaN rows.
+        assert!(back.rows[1].series.iter().flatten().all(|x| x.is_nan()));
         assert_eq!(back.rows[1].status, t.rows[1].status);
         assert!(back.rows[1].figures.iter().all(|x| x.is_nan()));
         assert_eq!(back.figures, t.figures);
