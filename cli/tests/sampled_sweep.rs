@@ -328,3 +328,86 @@ fn a_scenarios_key_series_match_its_run_file() {
         skin[50]
     );
 }
+
+#[test]
+fn a_sampled_sweep_report_shows_bands_distributions_and_the_collapse_probability() {
+    let dir = tempfile::tempdir().unwrap();
+    let case = write_case(dir.path());
+    let out = dir.path().join("mc");
+    boreflux()
+        .arg("sweep")
+        .arg(&case)
+        .args(["-q", "-o"])
+        .arg(&out)
+        .args(SAMPLE)
+        .args(["--samples", "9", "--seed", "4"])
+        .assert()
+        .success();
+    let html = dir.path().join("mc.html");
+    boreflux()
+        .arg("report")
+        .arg(out.with_extension("h5"))
+        .arg("-o")
+        .arg(&html)
+        .assert()
+        .success();
+    let page = std::fs::read_to_string(&html).unwrap();
+    for want in [
+        "9 scenarios drawn by Latin hypercube, seed 4",
+        "<code>drive.amplitude</code> ~ <code>uniform(0.5 m, 1.5 m)</code>",
+        "Hyndman &amp; Fan 1996, definition 7",
+        "Headline figures across the scenarios",
+        "Key series: P10, P50 and P90",
+        "manufacturer",
+        "Peak collapse load: distribution across the scenarios",
+    ] {
+        assert!(page.contains(want), "missing: {want}");
+    }
+    // This demo case has no collapse rating: the page says so instead of a probability.
+    assert!(page.contains("No scenario has a collapse margin"));
+}
+
+#[test]
+fn the_collapse_probability_counts_the_tables_margins() {
+    // A shipped case with a PVC casing (so a collapse rating and margin), one minute long.
+    let dir = tempfile::tempdir().unwrap();
+    let text = std::fs::read_to_string(
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("../cases/domestic-fine-sand-pvc.json"),
+    )
+    .unwrap();
+    let mut v: serde_json::Value = serde_json::from_str(&text).unwrap();
+    v["duration"] = serde_json::json!("1 min");
+    let case = dir.path().join("short.json");
+    std::fs::write(&case, v.to_string()).unwrap();
+    let out = dir.path().join("mc");
+    boreflux()
+        .arg("sweep")
+        .arg(&case)
+        .args(["-q", "-o"])
+        .arg(&out)
+        .args(["--sample", "cake.thickness=triangular(2 mm, 4 mm, 8 mm)"])
+        .args(["--samples", "6", "--seed", "2"])
+        .assert()
+        .success();
+    let f = hdf5::File::open(out.with_extension("h5")).unwrap();
+    let m = f
+        .dataset("/table/collapse_margin")
+        .unwrap()
+        .read_raw::<f64>()
+        .unwrap();
+    let n = m.iter().filter(|x| x.is_finite()).count();
+    let k = m.iter().filter(|&&x| x < 1.0).count();
+    assert_eq!(n, 6, "every scenario has a margin: {m:?}");
+    let html = dir.path().join("mc.html");
+    boreflux()
+        .arg("report")
+        .arg(out.with_extension("h5"))
+        .arg("-o")
+        .arg(&html)
+        .assert()
+        .success();
+    let page = std::fs::read_to_string(&html).unwrap();
+    let want = format!("Probability that the collapse margin is below 1: {k} of {n} scenarios");
+    assert!(page.contains(&want), "missing: {want}");
+    assert!(page.contains("Wilson score interval"));
+}

@@ -16,6 +16,7 @@
 //! tables.rs   cycle log, inputs
 //! html.rs     the page, escaping, the cautions box
 //! sweep.rs    the page of a sweep table (`boreflux sweep`): charts against the varied value
+//! uncertainty.rs  a sampled sweep's section: bands, distributions, collapse probability
 //! ```
 //!
 //! Nothing partial is left behind: the page is written to a hidden temporary file beside
@@ -33,6 +34,7 @@ mod svg;
 mod sweep;
 mod tables;
 mod ticks;
+mod uncertainty;
 
 use std::path::{Path, PathBuf};
 

@@ -174,6 +174,33 @@ pub fn page(t: &Table) -> String {
     }
     h.push_str("<h2>What was varied</h2>\n<ul>\n");
     let vary: serde_json::Value = serde_json::from_str(&t.vary_json).unwrap_or_default();
+    if let Some(s) = &t.sampling_json {
+        let s: serde_json::Value = serde_json::from_str(s).unwrap_or_default();
+        let design = match s["design"].as_str() {
+            Some("lhs") => "Latin hypercube",
+            Some("random") => "independent random draws",
+            _ => "unknown design",
+        };
+        let _ = writeln!(
+            h,
+            "<li>{} scenarios drawn by {design}, seed {} (the sample is a function of the \
+             distributions, the design, the count and the seed):</li>",
+            esc(&crate::sweep::spec::label(&s["samples"])),
+            esc(&crate::sweep::spec::label(&s["seed"]))
+        );
+        for v in vary.as_array().into_iter().flatten() {
+            let _ = writeln!(
+                h,
+                "<li><code>{}</code> ~ <code>{}</code></li>",
+                esc(v["path"].as_str().unwrap_or("")),
+                esc(v["distribution"].as_str().unwrap_or(""))
+            );
+        }
+        h.push_str("</ul>\n");
+        super::uncertainty::section(&mut h, t);
+        table(&mut h, t);
+        return finish(h, t);
+    }
     for v in vary.as_array().into_iter().flatten() {
         let values: Vec<String> = v["values"]
             .as_array()
@@ -191,6 +218,11 @@ pub fn page(t: &Table) -> String {
     h.push_str("</ul>\n");
     charts(&mut h, t);
     table(&mut h, t);
+    finish(h, t)
+}
+
+/// The base case and the end of the page.
+fn finish(mut h: String, t: &Table) -> String {
     let _ = write!(
         h,
         "<h2>Case file the sweep started from</h2>\n<pre>{}</pre>\n</body>\n</html>\n",

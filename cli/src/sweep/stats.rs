@@ -43,5 +43,17 @@ pub fn wilson(k: usize, n: usize, level: f64) -> Option<(f64, f64)> {
     let z2 = z * z;
     let centre = (p + z2 / (2.0 * nf)) / (1.0 + z2 / nf);
     let half = z / (1.0 + z2 / nf) * (p * (1.0 - p) / nf + z2 / (4.0 * nf * nf)).sqrt();
-    Some(((centre - half).max(0.0), (centre + half).min(1.0)))
+    // At k = 0 (k = n) the lower (upper) end is exactly 0 (1) in the closed form; say so
+    // rather than keep the round-off.
+    let lo = if k == 0 {
+        0.0
+    } else {
+        (centre - half).max(0.0)
+    };
+    let hi = if k == n {
+        1.0
+    } else {
+        (centre + half).min(1.0)
+    };
+    Some((lo, hi))
 }

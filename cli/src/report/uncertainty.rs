@@ -1,0 +1,364 @@
+//! The uncertainty section of a sampled sweep's report (`boreflux sweep --sample`):
+//! P10/P50/P90 bands of the key series across the scenarios, the distribution of the
+//! headline figures (percentiles and empirical CDFs), and the probability that the
+//! collapse margin is below 1 with its 95 % Wilson interval. Percentiles are numpy's
+//! default (linear, Hyndman & Fan definition 7), [`crate::sweep::stats`].
+
+use std::fmt::Write;
+
+use boreflux_solver::safety::CAUTION;
+
+use super::escape::esc;
+use super::figures::quantity_chart;
+use super::format::{shown_for, sig, Shown};
+use super::svg::{render, Mark, Series, Style};
+use crate::output::schema::{Figure, SweepSeries};
+use crate::sweep::stats::{percentile, sorted_finite, wilson};
+use crate::sweep::table::Table;
+
+/// The headline figures whose distribution is shown, with their headings.
+const HEADLINE: [(Figure, &str); 8] = [
+    (
+        Figure::CyclesTo90pctCake,
+        "Cycles until 90 % of the cake was gone",
+    ),
+    (
+        Figure::TimeTo90pctCake,
+        "Time until 90 % of the cake was gone",
+    ),
+    (Figure::SpecificCapacityEnd, "Specific capacity at the end"),
+    (Figure::EfficiencyEnd, "Well efficiency at the end"),
+    (Figure::SkinEnd, "Skin at the end"),
+    (Figure::PeakCollapsePressure, "Peak collapse load"),
+    (Figure::CollapseRating, "Collapse rating of the casing"),
+    (
+        Figure::CollapseMargin,
+        "Collapse margin (lower of screen and casing)",
+    ),
+];
+
+/// The key series drawn as bands.
+const BANDS: [(SweepSeries, &str); 4] = [
+    (SweepSeries::Skin, "Skin"),
+    (
+        SweepSeries::SpecificCapacity,
+        "Specific capacity (virtual test)",
+    ),
+    (SweepSeries::Efficiency, "Well efficiency (virtual test)"),
+    (
+        SweepSeries::PeakOutwardFlux,
+        "Peak outward flux at the wall, per interval",
+    ),
+];
+
+const P50: Style = Style {
+    color: "#1f5fa8",
+    dash: "",
+    width: 2.0,
+};
+const P10_90: Style = Style {
+    color: "#1f5fa8",
+    dash: "5 3",
+    width: 1.2,
+};
+
+/// A figure's column, if the table has it.
+fn column(t: &Table, f: Figure) -> Option<Vec<f64>> {
+    let name = f.name();
+    let k = t.figures.iter().position(|c| *c == name)?;
+    Some(t.rows.iter().map(|r| r.figures[k]).collect())
+}
+
+/// The whole section.
+pub(super) fn section(h: &mut String, t: &Table) {
+    let ok = t.rows.iter().filter(|r| r.status == "ok").count();
+    h.push_str("<h2>Uncertainty</h2>\n");
+    let _ = writeln!(
+        h,
+        "<p>{ok} of {} scenarios ran to the end. P10, P50 and P90 are percentiles across \
+         those scenarios, by numpy's default definition (linear interpolation between order \
+         statistics: for n sorted values x₀…x<sub>n−1</sub>, h = (n − 1) q/100 and \
+         P<sub>q</sub> = x<sub>⌊h⌋</sub> + (h − ⌊h⌋)(x<sub>⌊h⌋+1</sub> − x<sub>⌊h⌋</sub>); \
+         Hyndman &amp; Fan 1996, definition 7). They describe the model's response to the \
+         input distributions as given; they are no statement about inputs left fixed or \
+         about the model's own error. With few scenarios the outer percentiles are rough: \
+         rerun with more samples before relying on P10 or P90.</p>",
+        t.rows.len()
+    );
+    collapse(h, t);
+    headline_table(h, t);
+    cdfs(h, t);
+    bands(h, t);
+}
+
+/// The probability that the collapse margin is below 1, with its Wilson interval.
+fn collapse(h: &mut String, t: &Table) {
+    let margins: Vec<f64> = column(t, Figure::CollapseMargin)
+        .unwrap_or_default()
+        .into_iter()
+        .filter(|x| x.is_finite())
+        .collect();
+    h.push_str("<section class=\"caution\">\n<h3>Collapse</h3>\n");
+    if margins.is_empty() {
+        h.push_str(
+            "<p>No scenario has a collapse margin (no collapse rating was given or \
+             computed); the collapse load is shown below without a margin.</p>\n",
+        );
+    } else {
+        let n = margins.len();
+        let k = margins.iter().filter(|&&m| m < 1.0).count();
+        let (lo, hi) = wilson(k, n, 0.95).unwrap_or((f64::NAN, f64::NAN));
+        let _ = writeln!(
+            h,
+            "<p><strong>Probability that the collapse margin is below 1: {k} of {n} \
+             scenarios ({}), 95 % interval {} to {}.</strong> The interval is the Wilson \
+             score interval for a proportion (E. B. Wilson, JASA 22, 209–212, 1927); it \
+             covers only the sampling error of {n} scenarios, not the input distributions' \
+             own uncertainty. A probability near zero from a few hundred scenarios does not \
+             show that collapse cannot happen.</p>",
+            pct(k as f64 / n as f64),
+            pct(lo),
+            pct(hi)
+        );
+    }
+    let _ = writeln!(
+        h,
+        "<p>{}</p>\n<p>Compare the collapse loads with the manufacturer's ratings for this \
+         screen and casing, follow the local well construction code and licensed practice, \
+         and start gently.</p>\n</section>",
+        esc(CAUTION)
+    );
+}
+
+fn pct(p: f64) -> String {
+    if p.is_finite() {
+        format!("{} %", sig(100.0 * p))
+    } else {
+        "—".into()
+    }
+}
+
+/// How a headline figure is shown.
+fn shown(f: Figure) -> Shown {
+    shown_for(f.entry().unit)
+}
+
+/// Percentiles of each headline figure, and how many scenarios have it.
+fn headline_table(h: &mut String, t: &Table) {
+    h.push_str(
+        "<h3>Headline figures across the scenarios</h3>\n<p>A figure is missing from a \
+         scenario when it failed or the figure was not reached (a cake not cleared by the \
+         end of the run has no time to clean).</p>\n<table>\n<thead><tr><th>Figure</th>\
+         <th>Unit</th><th>Scenarios with it</th><th>Min</th><th>P10</th><th>P50</th>\
+         <th>P90</th><th>Max</th></tr></thead>\n<tbody>\n",
+    );
+    for (f, title) in HEADLINE {
+        let Some(col) = column(t, f) else { continue };
+        let v = sorted_finite(col);
+        if v.is_empty() {
+            continue;
+        }
+        let s = shown(f);
+        let cell = |x: f64| sig(x * s.si.per_si);
+        let _ = writeln!(
+            h,
+            "<tr><td>{}</td><td>{}</td><td>{} of {}</td><td>{}</td><td>{}</td><td>{}</td>\
+             <td>{}</td><td>{}</td></tr>",
+            esc(title),
+            esc(s.si.label),
+            v.len(),
+            t.rows.len(),
+            cell(v[0]),
+            cell(percentile(&v, 10.0)),
+            cell(percentile(&v, 50.0)),
+            cell(percentile(&v, 90.0)),
+            cell(v[v.len() - 1]),
+        );
+    }
+    h.push_str("</tbody>\n</table>\n");
+}
+
+/// The empirical CDF of `v` (sorted) as a staircase: (x_i, i/n) to (x_i, (i+1)/n).
+fn staircase(v: &[f64]) -> (Vec<f64>, Vec<f64>) {
+    let n = v.len() as f64;
+    let mut x = Vec::with_capacity(2 * v.len());
+    let mut y = Vec::with_capacity(2 * v.len());
+    for (i, &xi) in v.iter().enumerate() {
+        x.extend([xi, xi]);
+        y.extend([i as f64 / n, (i + 1) as f64 / n]);
+    }
+    (x, y)
+}
+
+/// Empirical CDFs of time to clean, final specific capacity, collapse load and margin.
+fn cdfs(h: &mut String, t: &Table) {
+    let clean =
+        if column(t, Figure::CyclesTo90pctCake).is_some_and(|c| c.iter().any(|x| x.is_finite())) {
+            Figure::CyclesTo90pctCake
+        } else {
+            Figure::TimeTo90pctCake
+        };
+    let charts = [
+        clean,
+        Figure::SpecificCapacityEnd,
+        Figure::PeakCollapsePressure,
+        Figure::CollapseMargin,
+    ];
+    let mut n = 0;
+    for f in charts {
+        let Some(col) = column(t, f) else { continue };
+        let v = sorted_finite(col.iter().copied());
+        if v.is_empty() {
+            continue;
+        }
+        let title = HEADLINE
+            .iter()
+            .find(|(g, _)| *g == f)
+            .map_or("", |(_, title)| *title);
+        let s = shown(f);
+        let (x, y) = staircase(&v);
+        let mut c = quantity_chart(&format!("ecdf{n}"), title, "", title, s);
+        // The quantity on x, the share of scenarios on y.
+        c.x_label = if s.si.label.is_empty() {
+            title.to_owned()
+        } else {
+            format!("{title} [{}]", s.si.label)
+        };
+        c.y_label = "Share of scenarios at or below".into();
+        c.x_factor = s.si.per_si;
+        c.y_factor = 1.0;
+        c.y2 = None;
+        if f == Figure::CollapseMargin {
+            c.marks.push(Mark {
+                x: 1.0,
+                label: "margin 1".into(),
+            });
+        }
+        if f == Figure::PeakCollapsePressure {
+            let ratings = sorted_finite(column(t, Figure::CollapseRating).unwrap_or_default());
+            if let (Some(&lo), Some(&hi)) = (ratings.first(), ratings.last()) {
+                if lo == hi {
+                    c.marks.push(Mark {
+                        x: lo * s.si.per_si,
+                        label: "casing rating".into(),
+                    });
+                }
+            }
+        }
+        c.series.push(Series {
+            label: String::new(),
+            x: &x,
+            y: &y,
+            style: P50,
+        });
+        n += 1;
+        let missing = col.len() - v.len();
+        let _ = write!(
+            h,
+            "<figure>\n<h3>{}: distribution across the scenarios</h3>\n{}\n<figcaption>\
+             Empirical cumulative distribution of {} scenarios{}.</figcaption>\n</figure>\n",
+            esc(title),
+            render(&c),
+            v.len(),
+            if missing > 0 {
+                format!("; {missing} without the figure are left out")
+            } else {
+                String::new()
+            }
+        );
+    }
+}
+
+/// P10/P50/P90 of each key series at every grid point.
+fn bands(h: &mut String, t: &Table) {
+    let rows: Vec<_> = t.rows.iter().filter(|r| !r.series.is_empty()).collect();
+    if rows.is_empty() {
+        h.push_str("<p>No key series in this table (written by an earlier version?).</p>\n");
+        return;
+    }
+    let slot = |s: SweepSeries| {
+        SweepSeries::PER_SCENARIO
+            .iter()
+            .position(|&x| x == s)
+            .unwrap_or(0)
+    };
+    let points = rows[0].series[0].len();
+    // One time axis when every scenario ran the same time; else the fraction of the run.
+    let time = slot(SweepSeries::Time);
+    let ends: Vec<f64> = rows.iter().map(|r| r.series[time][points - 1]).collect();
+    let same_end = ends.iter().all(|&e| e == ends[0]);
+    let x: Vec<f64> = (0..points)
+        .map(|k| {
+            let f = k as f64 / (points - 1) as f64;
+            if same_end {
+                f * ends[0]
+            } else {
+                100.0 * f
+            }
+        })
+        .collect();
+    let x_label = if same_end {
+        "Time [s]"
+    } else {
+        "Share of the run [%] (the scenarios' durations differ)"
+    };
+    h.push_str(
+        "<h3>Key series: P10, P50 and P90 across the scenarios</h3>\n<p>At each of 51 \
+         points of the run, the percentiles of the scenarios' values (solid P50, dashed P10 \
+         and P90). The values at a point are those of the first step at or after it; the \
+         flux is the largest of the cycles ending in the interval before it. The lines join \
+         percentiles point by point: no single scenario need follow them.</p>\n",
+    );
+    for (n, (s, title)) in BANDS.iter().enumerate() {
+        let j = slot(*s);
+        let mut p = [
+            vec![f64::NAN; points],
+            vec![f64::NAN; points],
+            vec![f64::NAN; points],
+        ];
+        for k in 0..points {
+            let v = sorted_finite(rows.iter().map(|r| r.series[j][k]));
+            if v.is_empty() {
+                continue;
+            }
+            for (q, line) in [10.0, 50.0, 90.0].into_iter().zip(p.iter_mut()) {
+                line[k] = percentile(&v, q);
+            }
+        }
+        if p[1].iter().all(|y| !y.is_finite()) {
+            continue;
+        }
+        let shown = shown_for(s.entry().unit);
+        let mut c = quantity_chart(&format!("band{n}"), title, x_label, title, shown);
+        for (label, y, style) in [
+            ("P90", &p[2], P10_90),
+            ("P50", &p[1], P50),
+            ("P10", &p[0], P10_90),
+        ] {
+            c.series.push(Series {
+                label: label.into(),
+                x: &x,
+                y,
+                style,
+            });
+        }
+        let _ = write!(
+            h,
+            "<figure>\n<h3>{}</h3>\n{}\n</figure>\n",
+            esc(title),
+            render(&c)
+        );
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn the_staircase_rises_by_one_over_n_at_each_value() {
+        let (x, y) = staircase(&[1.0, 2.0, 4.0]);
+        assert_eq!(x, [1.0, 1.0, 2.0, 2.0, 4.0, 4.0]);
+        assert_eq!(y, [0.0, 1.0 / 3.0, 1.0 / 3.0, 2.0 / 3.0, 2.0 / 3.0, 1.0]);
+    }
+}
