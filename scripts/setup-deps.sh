@@ -1,6 +1,6 @@
 #!/usr/bin/env bash
-# Installs the system libraries boreflux needs to build (HDF5 with headers, pkg-config)
-# and checks that a Rust toolchain is present. Safe to run any number of times: it prints
+# Installs the system libraries boreflux needs to build (HDF5 with headers, pkg-config),
+# GNU parallel for the sharded-sweep test, and checks that a Rust toolchain is present. Safe to run any number of times: it prints
 # nothing and changes nothing when everything is already there.
 set -euo pipefail
 
@@ -62,6 +62,20 @@ if [ -z "${HDF5_DIR:-}" ] && ! have_hdf5; then
     if ! have_hdf5; then
         say "HDF5 was installed but is still not found by pkg-config; set HDF5_DIR and retry"
         exit 1
+    fi
+fi
+
+# GNU parallel: the test of the batch recipe in docs/sweeps.md runs shards with it (it is
+# skipped when parallel is missing, except in CI, where it fails). Optional elsewhere.
+if ! command -v parallel >/dev/null 2>&1; then
+    if command -v apt-get >/dev/null 2>&1; then
+        say "installing GNU parallel with apt-get (for the sharded-sweep test)"
+        as_root env DEBIAN_FRONTEND=noninteractive apt-get install -y -q parallel ||
+            say "GNU parallel could not be installed; the sharded-sweep test will be skipped"
+    elif command -v brew >/dev/null 2>&1; then
+        brew install parallel || say "GNU parallel could not be installed"
+    else
+        say "GNU parallel not found (optional: the sharded-sweep test is skipped without it)"
     fi
 fi
 

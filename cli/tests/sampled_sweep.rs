@@ -411,3 +411,66 @@ fn the_collapse_probability_counts_the_tables_margins() {
     assert!(page.contains(&want), "missing: {want}");
     assert!(page.contains("Wilson score interval"));
 }
+
+#[test]
+fn the_gnu_parallel_recipe_runs_shards_that_merge_into_the_whole() {
+    // examples/sampled-sweep-parallel.sh, as docs/sweeps.md gives it. GNU parallel comes
+    // from the distribution's packages (scripts/setup-deps.sh installs it); without it the
+    // test is skipped, except in CI, where it fails.
+    let found = std::process::Command::new("parallel")
+        .arg("--version")
+        .output()
+        .is_ok_and(|o| String::from_utf8_lossy(&o.stdout).contains("GNU parallel"));
+    if !found {
+        assert!(
+            std::env::var("CI").as_deref() != Ok("true"),
+            "GNU parallel is not installed in CI: scripts/setup-deps.sh installs it"
+        );
+        eprintln!(
+            "SKIPPED the_gnu_parallel_recipe_runs_shards_that_merge_into_the_whole: GNU \
+             parallel is not installed (scripts/setup-deps.sh installs it)"
+        );
+        return;
+    }
+    let dir = tempfile::tempdir().unwrap();
+    let case = write_case(dir.path());
+    let spec = dir.path().join("mc.json");
+    std::fs::write(
+        &spec,
+        r#"{"design": "random", "samples": 5, "seed": 8, "inputs": [
+            {"path": "drive.amplitude", "distribution": "normal(1 m, 0.2 m, min=0.2 m)"},
+            {"path": "pack.conductivity", "distribution": "loguniform(2e-3 m/s, 2e-2 m/s)"}]}"#,
+    )
+    .unwrap();
+    let script =
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("../examples/sampled-sweep-parallel.sh");
+    let shards = dir.path().join("shards");
+    let status = std::process::Command::new("bash")
+        .arg(&script)
+        .arg(&case)
+        .arg(&shards)
+        .arg("3")
+        .arg(&spec)
+        .env("BOREFLUX", assert_cmd::cargo::cargo_bin("boreflux"))
+        .status()
+        .unwrap();
+    assert!(status.success());
+    boreflux()
+        .arg("sweep")
+        .arg(&case)
+        .args(["-q", "-o"])
+        .arg(dir.path().join("whole"))
+        .arg("--sample-file")
+        .arg(&spec)
+        .assert()
+        .success();
+    let read = |p: PathBuf| std::fs::read(p).unwrap();
+    assert_eq!(
+        read(shards.join("all.csv")),
+        read(dir.path().join("whole.csv"))
+    );
+    assert_eq!(
+        all_datasets(&shards.join("all.h5")),
+        all_datasets(&dir.path().join("whole.h5"))
+    );
+}
