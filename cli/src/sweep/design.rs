@@ -12,11 +12,11 @@
 //!
 //! * A uniform draw is u = (⌊x / 2¹¹⌋ + ½) · 2⁻⁵³ for the next 64-bit output x: one of
 //!   2⁵³ equally likely midpoints, never 0 or 1.
-//! * `random`: u[i][j] is the i-th draw of column j's stream.
+//! * `random`: `u[i][j]` is the i-th draw of column j's stream.
 //! * `lhs` (Latin hypercube; M. D. McKay, R. J. Beckman, W. J. Conover, Technometrics
 //!   21(2), 239–245, 1979): column j first draws N jitters v_i, then a permutation π of
 //!   0…N−1 by Fisher–Yates (Knuth, TAOCP vol. 2, §3.4.2, algorithm P) from the same
-//!   stream; u[i][j] = (π(i) + v_i)/N, so each of the N strata [k/N, (k+1)/N) holds
+//!   stream; `u[i][j]` = (π(i) + v_i)/N, so each of the N strata [k/N, (k+1)/N) holds
 //!   exactly one row. A whole number below n is drawn by rejection from the 64-bit
 //!   output (no modulo bias).
 
