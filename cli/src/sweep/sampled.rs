@@ -61,7 +61,7 @@ pub fn sampled_plan(base: Value, a: &SampleArgs<'_>) -> Result<Plan, SpecError> 
     };
     if let Some((name, text)) = &a.file {
         from_file = serde_json::from_str(text)
-            .map_err(|e| SpecError(format!("--sample-file {text_name}: {e}", text_name = name)))?;
+            .map_err(|e| SpecError(format!("--sample-file {name}: {e}")))?;
         for (k, i) in from_file.inputs.iter().enumerate() {
             let d = parse(&i.distribution)
                 .map_err(|e| SpecError(format!("{name}: inputs.{k} ({}): {e}", i.path)))?;
