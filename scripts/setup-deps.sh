@@ -70,6 +70,8 @@ fi
 if ! command -v parallel >/dev/null 2>&1; then
     if command -v apt-get >/dev/null 2>&1; then
         say "installing GNU parallel with apt-get (for the sharded-sweep test)"
+        # A fresh machine has no package lists yet: update them first.
+        as_root env DEBIAN_FRONTEND=noninteractive apt-get update -q || true
         as_root env DEBIAN_FRONTEND=noninteractive apt-get install -y -q parallel ||
             say "GNU parallel could not be installed; the sharded-sweep test will be skipped"
     elif command -v brew >/dev/null 2>&1; then
