@@ -155,7 +155,7 @@ fn write_summary(sink: &mut ResultSink, h: &Headline) -> Result<(), crate::outpu
         let value = match text {
             SummaryText::Warnings => h.warnings.join("\n"),
             SummaryText::Cautions => CAUTION.to_owned(),
-            SummaryText::EfficiencyDefinition => h.efficiency_definition.to_owned(),
+            SummaryText::EfficiencyDefinition => crate::summary::EFFICIENCY_DEFINITION.to_owned(),
             SummaryText::Assumptions => h.assumptions.join("\n"),
         };
         w.set_attr_str("/summary", text.name(), &value)?;
