@@ -13,6 +13,12 @@
 //! Zone-resolved quantities carry their [`Zone`]: a new zone gets its own names, never
 //! another zone's values.
 
+mod documents;
+mod file;
+
+pub use documents::{check_json, estimate, steptest_json, JsonKey, Shape};
+pub use file::{GridData, Group, RootAttr, SnapshotData};
+
 use crate::summary::Headline;
 use boreflux_solver::assess::figures::RunFigures;
 use boreflux_solver::assess::{StepCoefficients, WellFigures};
@@ -890,7 +896,7 @@ impl ProgressSeries {
     ];
 
     /// The group the series live in.
-    pub const GROUP: &'static str = "progress";
+    pub const GROUP: &'static str = Group::Progress.name();
 
     /// Its schema entry; `name` is the path below `/progress`.
     pub fn entry(self) -> Entry {
@@ -978,6 +984,29 @@ pub fn markdown() -> String {
     for t in SummaryText::ALL {
         out.push_str(&format!("| `{}` | {} |\n", t.name(), t.description()));
     }
+    out.push('\n');
+    file::markdown(&mut out, &|out, title, rows| table(out, title, "", rows));
+    out.push_str(
+        "Keys of `run --json`, in the order printed (figures as in `/summary`, `null` when not \
+         computed):\n\n| key | unit | description |\n| --- | --- | --- |\n",
+    );
+    for k in run_json_keys() {
+        let e = k.entry();
+        out.push_str(&format!(
+            "| `{}` | {} | {} |\n",
+            k.name(),
+            e.unit.symbol(),
+            e.description
+        ));
+    }
+    out.push('\n');
+    documents::table(&mut out, "Keys of `check --json`:", check_json::ALL);
+    documents::table(&mut out, "Keys of `steptest --json`:", steptest_json::ALL);
+    documents::table(
+        &mut out,
+        "Keys of an estimate (`steptest --json`, shape \"estimate\"):",
+        estimate::ALL,
+    );
     out
 }
 
