@@ -27,6 +27,7 @@ mod figures;
 mod format;
 mod headline;
 mod html;
+mod input_units;
 mod read;
 pub mod steptest;
 mod svg;
