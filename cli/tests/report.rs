@@ -383,6 +383,29 @@ fn report_has_figures_cautions_units_and_escaped_text() {
     assert!(html.contains("0.500 Hz (30.0/min)"));
 }
 
+/// Checks: `--title` (through `write_titled_report`) sets the page's title and heading,
+/// escaped; without it the default heading stays.
+#[test]
+fn the_report_title_can_be_set_and_is_escaped() {
+    let dir = tempfile::tempdir().unwrap();
+    let run = dir.path().join("run.h5");
+    write_run(&run, &Spec::default());
+    let out = dir.path().join("titled.html");
+    boreflux::report::write_titled_report(
+        std::slice::from_ref(&run),
+        &out,
+        Some("Well 7 <east> & \"B\""),
+    )
+    .unwrap();
+    let html = std::fs::read_to_string(&out).unwrap();
+    let want = "Well 7 &lt;east&gt; &amp; &quot;B&quot;";
+    assert!(html.contains(&format!("<title>{want}</title>")), "title");
+    assert!(html.contains(&format!("<h1>{want}</h1>")), "heading");
+    assert!(!html.contains("<east>"));
+    let plain = report_of(dir.path(), &[run]);
+    assert!(plain.contains("<h1>Well development simulation report</h1>"));
+}
+
 #[test]
 fn two_runs_give_two_columns_and_overlaid_lines() {
     let dir = tempfile::tempdir().unwrap();

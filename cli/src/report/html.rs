@@ -39,20 +39,29 @@ code{font-size:.95em}
 @media print{body{max-width:none;margin:0}h2,h3{break-after:avoid}.caution,.warnings,td.flag,td.alarm,tr.section th{-webkit-print-color-adjust:exact;print-color-adjust:exact}}
 ";
 
-/// The whole page for the runs (already read).
-pub fn page(runs: &[Run]) -> String {
+/// The whole page for the runs (already read), under `title` when given (else the default
+/// heading, and the run titles in the browser's title).
+pub fn page(runs: &[Run], title: Option<&str>) -> String {
     let titles: Vec<String> = runs.iter().map(run_title).collect();
+    let head_title = match title {
+        Some(t) => t.to_owned(),
+        None => format!("Well development report: {}", titles.join("; ")),
+    };
     let mut h = String::new();
     let _ = write!(
         h,
         "<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n\
          <meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">\n\
-         <meta name=\"generator\" content=\"boreflux {}\">\n<title>Well development report: {}</title>\n\
+         <meta name=\"generator\" content=\"boreflux {}\">\n<title>{}</title>\n\
          <style>\n{STYLE}</style>\n</head>\n<body>\n",
         env!("CARGO_PKG_VERSION"),
-        esc(&titles.join("; "))
+        esc(&head_title)
     );
-    h.push_str("<h1>Well development simulation report</h1>\n");
+    let _ = writeln!(
+        h,
+        "<h1>{}</h1>",
+        esc(title.unwrap_or("Well development simulation report"))
+    );
     let _ = writeln!(
         h,
         r#"<p class="lead">{} from the result {} listed under “Runs”; every number and figure below is read from {}. Built by boreflux {}.</p>"#,
