@@ -460,6 +460,13 @@ fn two_runs_give_two_columns_and_overlaid_lines() {
     // Run B has no cycles: the cycle log lists run A only.
     let log = html.split("<h2>Cycle log</h2>").nth(1).unwrap();
     let log = log.split("<h2>").next().unwrap();
+    // Cycle numbering: the file's /cycles/index starts at 0 (written above), the log's
+    // first row is cycle 1, and the caption says how the two relate.
+    assert!(
+        log.contains("<tbody><tr><td>1</td>"),
+        "first cycle is numbered 1"
+    );
+    assert!(log.contains("<code>/cycles/index</code> counts from 0 (cycle 1 is index 0)"));
     assert!(log.contains("Run A: Slow surge") && !log.contains("Run B"));
 }
 

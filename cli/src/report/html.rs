@@ -107,7 +107,7 @@ pub fn page(runs: &[Run], title: Option<&str>) -> String {
         .filter_map(|(i, r)| tables::cycle_log(r).map(|t| (i, t)))
         .collect();
     if !logs.is_empty() {
-        h.push_str("<h2>Cycle log</h2>\n<p>Per complete cycle of the drive: flux at the borehole wall, shear, work in the cake and cake removed.</p>\n");
+        h.push_str("<h2>Cycle log</h2>\n<p>Per complete cycle of the drive: flux at the borehole wall, shear, work in the cake and cake removed. Cycles are numbered from 1 here and in the progress bar; the run file's <code>/cycles/index</code> counts from 0 (cycle 1 is index 0).</p>\n");
         for (i, t) in logs {
             let _ = write!(
                 h,
