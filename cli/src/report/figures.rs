@@ -391,10 +391,8 @@ mod style_tests {
     /// first six in both.
     #[test]
     fn run_styles_do_not_repeat_after_six() {
-        let pairs: std::collections::BTreeSet<(&str, &str)> = (0..36)
-            .map(|i| run_style(i))
-            .map(|s| (s.color, s.dash))
-            .collect();
+        let pairs: std::collections::BTreeSet<(&str, &str)> =
+            (0..36).map(run_style).map(|s| (s.color, s.dash)).collect();
         assert_eq!(pairs.len(), 36);
         let first: std::collections::BTreeSet<&str> = (0..6).map(|i| run_style(i).dash).collect();
         assert_eq!(first.len(), 6);
