@@ -57,6 +57,8 @@ pub struct Headline {
     /// The damage-removal constants used, with their documented ranges and provenance, widest
     /// range first (docs/physics.md §13–§13b).
     pub assumptions: Vec<String>,
+    /// The case's notes: defaults and approximations the model used (`/summary` only).
+    pub notes: Vec<String>,
 }
 
 impl Headline {
@@ -94,6 +96,7 @@ impl Serialize for Headline {
                     m.serialize_entry(&name, EFFICIENCY_DEFINITION)?
                 }
                 RunKey::Text(SummaryText::Cautions) => m.serialize_entry(&name, CAUTION)?,
+                RunKey::Text(SummaryText::Notes) => m.serialize_entry(&name, &self.notes)?,
             }
         }
         m.end()
@@ -525,6 +528,7 @@ pub fn headline(
         title: case.title.clone(),
         figures: r,
         collapse_rating_basis: ratings.how,
+        notes: case.notes.clone(),
         warnings,
         assumptions: boreflux_solver::damage::assumptions(m)
             .iter()

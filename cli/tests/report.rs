@@ -251,6 +251,11 @@ fn write_run(path: &Path, spec: &Spec) {
         set_str(&s, "cautions", CAUTION);
         set_str(
             &s,
+            "notes",
+            "jet: 1-D approximation <test>\nwell.efficiency: 0.5 assumed",
+        );
+        set_str(
+            &s,
             "efficiency_definition",
             "ideal over actual drawdown (test text)",
         );
@@ -310,6 +315,10 @@ fn report_has_figures_cautions_units_and_escaped_text() {
 
     // Title escaped, cautions and warnings shown.
     assert!(html.contains("Surge &lt;test&gt; &amp; &quot;quotes&quot;"));
+    // The model's notes (defaults and approximations, as `check` prints them) listed, escaped.
+    assert!(html.contains("<h2>Model assumptions: defaults and approximations</h2>"));
+    assert!(html.contains("<li>jet: 1-D approximation &lt;test&gt;</li>"));
+    assert!(html.contains("<li>well.efficiency: 0.5 assumed</li>"));
     assert!(!html.contains("Surge <test>"));
     assert!(html.contains(&CAUTION.replace('\'', "&#39;")));
     assert!(html.contains("<li>second &lt;warning&gt; &amp; more</li>"));

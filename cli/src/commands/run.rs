@@ -154,6 +154,7 @@ fn write_summary(sink: &mut ResultSink, h: &Headline) -> Result<(), crate::outpu
             SummaryText::Cautions => CAUTION.to_owned(),
             SummaryText::EfficiencyDefinition => crate::summary::EFFICIENCY_DEFINITION.to_owned(),
             SummaryText::Assumptions => h.assumptions.join("\n"),
+            SummaryText::Notes => h.notes.join("\n"),
         };
         w.set_attr_str(&summary, text.name(), &value)?;
     }

@@ -742,15 +742,18 @@ pub enum SummaryText {
     EfficiencyDefinition,
     /// The model's assumptions (damage constants with range and provenance).
     Assumptions,
+    /// The case's notes: defaults and approximations the model used.
+    Notes,
 }
 
 impl SummaryText {
     /// All, in file order.
-    pub const ALL: [SummaryText; 4] = [
+    pub const ALL: [SummaryText; 5] = [
         SummaryText::Warnings,
         SummaryText::Cautions,
         SummaryText::EfficiencyDefinition,
         SummaryText::Assumptions,
+        SummaryText::Notes,
     ];
 
     /// The attribute name.
@@ -760,6 +763,7 @@ impl SummaryText {
             SummaryText::Cautions => "cautions",
             SummaryText::EfficiencyDefinition => "efficiency_definition",
             SummaryText::Assumptions => "assumptions",
+            SummaryText::Notes => "notes",
         }
     }
 
@@ -772,6 +776,11 @@ impl SummaryText {
             SummaryText::Assumptions => {
                 "the model's assumptions, one per line: each damage-removal constant with its \
                  documented range and provenance (empty without damage-removal laws)"
+            }
+            SummaryText::Notes => {
+                "the case's notes, one per line: the defaults and approximations the model used \
+                 (assumed efficiencies and depths, the 1-D jet approximation, …), as `check` \
+                 prints them"
             }
         }
     }
@@ -843,6 +852,7 @@ impl RunKey {
                     SummaryText::Warnings | SummaryText::Assumptions => {
                         format!("{} (an array of lines)", t.description())
                     }
+                    SummaryText::Notes => t.description().to_owned(),
                     SummaryText::Cautions | SummaryText::EfficiencyDefinition => {
                         format!("{} (text)", t.description())
                     }

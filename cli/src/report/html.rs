@@ -178,7 +178,32 @@ fn warnings(h: &mut String, runs: &[Run]) {
 }
 
 /// The damage-removal constants each run used, with their documented ranges.
+/// The case's notes of each run: the defaults and approximations the model used (what
+/// `check` prints), from `/summary` `notes`.
+fn model_notes(h: &mut String, runs: &[Run]) {
+    if runs.iter().all(|r| r.summary.notes.is_empty()) {
+        return;
+    }
+    h.push_str(
+        "<section>\n<h2>Model assumptions: defaults and approximations</h2>\n<p>What the \
+         model assumed where the case gave no value, and the approximations it made (as \
+         <code>boreflux check</code> lists them).</p>\n",
+    );
+    for (i, run) in runs.iter().enumerate() {
+        if run.summary.notes.is_empty() {
+            continue;
+        }
+        let _ = writeln!(h, "<p><strong>Run {}</strong>:</p>\n<ul>", run_letter(i));
+        for line in &run.summary.notes {
+            let _ = writeln!(h, "<li>{}</li>", esc(line));
+        }
+        h.push_str("</ul>\n");
+    }
+    h.push_str("</section>\n");
+}
+
 fn assumptions(h: &mut String, runs: &[Run]) {
+    model_notes(h, runs);
     if runs.iter().all(|r| r.summary.assumptions.is_empty()) {
         return;
     }

@@ -148,6 +148,8 @@ pub struct Summary {
     pub efficiency_definition: Option<String>,
     /// `assumptions`: the damage-removal constants and their provenance, one per line.
     pub assumptions: Vec<String>,
+    /// `notes`: the case's defaults and approximations, one per line.
+    pub notes: Vec<String>,
 }
 
 impl Summary {
@@ -445,6 +447,14 @@ fn read_summary(file: &File) -> Result<Summary, ReadError> {
                             .collect();
                     }
                     Some(SummaryText::Cautions) => summary.cautions = Some(text),
+                    Some(SummaryText::Notes) => {
+                        summary.notes = text
+                            .lines()
+                            .map(str::trim)
+                            .filter(|l| !l.is_empty())
+                            .map(str::to_owned)
+                            .collect();
+                    }
                     Some(SummaryText::Assumptions) => {
                         summary.assumptions = text
                             .lines()
