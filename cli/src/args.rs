@@ -229,6 +229,10 @@ pub struct ReportArgs {
     /// Output HTML file.
     #[arg(short, long)]
     pub output: PathBuf,
+    /// Title of the report page (default: "Well development simulation report"; run
+    /// reports only).
+    #[arg(long)]
+    pub title: Option<String>,
     /// Replace output files that already exist (without it an existing output is refused).
     #[arg(long)]
     pub force: bool,

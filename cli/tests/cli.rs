@@ -1072,23 +1072,27 @@ fn schema_and_completions() {
 // 6. run --json
 // ---------------------------------------------------------------------------------------
 
+/// Runs the demo case with `--json` into `h5` and returns the printed document.
+fn run_demo_json(h5: &Path) -> Value {
+    let o = output(
+        boreflux()
+            .arg("run")
+            .arg(demo_case())
+            .arg("-o")
+            .arg(h5)
+            .args(["--json", "-q"]),
+    );
+    assert_code(&o, 0, "run --json");
+    serde_json::from_str(&stdout_of(&o)).expect("stdout is one JSON document")
+}
+
 /// Checks: `run --json` prints only JSON with the headline keys, and its figures are the
 /// ones stored in the file's `/summary`.
 #[test]
 fn run_json_prints_the_headline() {
     let dir = tempfile::tempdir().unwrap();
     let h5 = dir.path().join("out.h5");
-    let case = demo_case();
-    let o = output(
-        boreflux()
-            .arg("run")
-            .arg(&case)
-            .arg("-o")
-            .arg(&h5)
-            .args(["--json", "-q"]),
-    );
-    assert_code(&o, 0, "run --json");
-    let j: Value = serde_json::from_str(&stdout_of(&o)).expect("stdout is one JSON document");
+    let j = run_demo_json(&h5);
     for k in [
         "peak_outward_flux_m_s",
         "peak_inward_flux_m_s",
@@ -1147,6 +1151,53 @@ fn run_json_prints_the_headline() {
         attr_str(&summary, "warnings", "/summary"),
         warnings.join("\n")
     );
+}
+
+/// Checks: a library user who runs the demo case through the crate (solver run, the
+/// solver's `Extremes` observer, the virtual tests, the headline) gets every figure of the
+/// output schema exactly as `run --json` prints it, and `/summary` holds the same ones.
+/// Source: the same run, once through the binary (runs are deterministic).
+#[test]
+fn a_library_user_gets_the_figures_of_run_json() {
+    use boreflux::output::schema::{Figure, Num};
+    let dir = tempfile::tempdir().unwrap();
+    let h5 = dir.path().join("out.h5");
+    let j = run_demo_json(&h5);
+    let case = demo_case();
+
+    let loaded = load_case(&case).unwrap();
+    let mut extremes = boreflux_solver::assess::figures::Extremes::new(&loaded.model);
+    let s = boreflux_solver::run(
+        &loaded.model,
+        &mut extremes,
+        Reporting {
+            every: loaded.output_every,
+        },
+    )
+    .unwrap();
+    let a = boreflux::summary::assessment(&loaded, None, &s);
+    let h = boreflux::summary::headline(&loaded, &s, &extremes, &a);
+    let file = hdf5::File::open(&h5).unwrap();
+    let summary = file.group("summary").unwrap();
+    for f in Figure::all() {
+        let lib = f.value(&h.figures);
+        let cli = match f {
+            Figure::Work(z) => &j["work_j"][z as usize],
+            _ => &j[f.name().as_str()],
+        };
+        match lib {
+            Some(Num::Count(n)) => assert_eq!(cli.as_u64(), Some(n), "{}", f.name()),
+            Some(Num::Real(x)) if x.is_finite() => {
+                let c = cli.as_f64().unwrap_or(f64::NAN);
+                assert!(rel_diff(c, x) <= JSON_PARSE, "{}: {c} vs {x}", f.name());
+                assert_eq!(attr_f64(&summary, &f.name()), Some(x), "{}", f.name());
+            }
+            _ => {
+                assert!(cli.is_null(), "{}: {cli}", f.name());
+                assert_eq!(attr_f64(&summary, &f.name()), None, "{}", f.name());
+            }
+        }
+    }
 }
 
 // ---------------------------------------------------------------------------------------

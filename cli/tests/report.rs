@@ -251,6 +251,11 @@ fn write_run(path: &Path, spec: &Spec) {
         set_str(&s, "cautions", CAUTION);
         set_str(
             &s,
+            "notes",
+            "jet: 1-D approximation <test>\nwell.efficiency: 0.5 assumed",
+        );
+        set_str(
+            &s,
             "efficiency_definition",
             "ideal over actual drawdown (test text)",
         );
@@ -310,6 +315,10 @@ fn report_has_figures_cautions_units_and_escaped_text() {
 
     // Title escaped, cautions and warnings shown.
     assert!(html.contains("Surge &lt;test&gt; &amp; &quot;quotes&quot;"));
+    // The model's notes (defaults and approximations, as `check` prints them) listed, escaped.
+    assert!(html.contains("<h2>Model assumptions: defaults and approximations</h2>"));
+    assert!(html.contains("<li>jet: 1-D approximation &lt;test&gt;</li>"));
+    assert!(html.contains("<li>well.efficiency: 0.5 assumed</li>"));
     assert!(!html.contains("Surge <test>"));
     assert!(html.contains(&CAUTION.replace('\'', "&#39;")));
     assert!(html.contains("<li>second &lt;warning&gt; &amp; more</li>"));
@@ -383,6 +392,29 @@ fn report_has_figures_cautions_units_and_escaped_text() {
     assert!(html.contains("0.500 Hz (30.0/min)"));
 }
 
+/// Checks: `--title` (through `write_titled_report`) sets the page's title and heading,
+/// escaped; without it the default heading stays.
+#[test]
+fn the_report_title_can_be_set_and_is_escaped() {
+    let dir = tempfile::tempdir().unwrap();
+    let run = dir.path().join("run.h5");
+    write_run(&run, &Spec::default());
+    let out = dir.path().join("titled.html");
+    boreflux::report::write_titled_report(
+        std::slice::from_ref(&run),
+        &out,
+        Some("Well 7 <east> & \"B\""),
+    )
+    .unwrap();
+    let html = std::fs::read_to_string(&out).unwrap();
+    let want = "Well 7 &lt;east&gt; &amp; &quot;B&quot;";
+    assert!(html.contains(&format!("<title>{want}</title>")), "title");
+    assert!(html.contains(&format!("<h1>{want}</h1>")), "heading");
+    assert!(!html.contains("<east>"));
+    let plain = report_of(dir.path(), &[run]);
+    assert!(plain.contains("<h1>Well development simulation report</h1>"));
+}
+
 #[test]
 fn two_runs_give_two_columns_and_overlaid_lines() {
     let dir = tempfile::tempdir().unwrap();
@@ -437,6 +469,13 @@ fn two_runs_give_two_columns_and_overlaid_lines() {
     // Run B has no cycles: the cycle log lists run A only.
     let log = html.split("<h2>Cycle log</h2>").nth(1).unwrap();
     let log = log.split("<h2>").next().unwrap();
+    // Cycle numbering: the file's /cycles/index starts at 0 (written above), the log's
+    // first row is cycle 1, and the caption says how the two relate.
+    assert!(
+        log.contains("<tbody><tr><td>1</td>"),
+        "first cycle is numbered 1"
+    );
+    assert!(log.contains("<code>/cycles/index</code> counts from 0 (cycle 1 is index 0)"));
     assert!(log.contains("Run A: Slow surge") && !log.contains("Run B"));
 }
 

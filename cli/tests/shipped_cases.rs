@@ -3,6 +3,7 @@
 //! every drive kind is used by at least one shipped case (issue #5).
 
 use boreflux::case::load_case;
+use boreflux::output::schema::Figure;
 use boreflux::summary::{assessment, headline, Tracker};
 use boreflux_solver::{run, Reporting, StepObserver, StepView};
 use std::collections::BTreeSet;
@@ -214,8 +215,9 @@ fn the_same_well_gives_the_same_before_figures_whatever_the_drive() {
         let h = headline(&case, &summary, &obs.tracker, &a);
         figures.push((
             label,
-            h.specific_capacity_start_m2_s.expect("virtual tests ran"),
-            h.efficiency_start.expect("virtual tests ran"),
+            h.get(Figure::SpecificCapacityStart)
+                .expect("virtual tests ran"),
+            h.get(Figure::EfficiencyStart).expect("virtual tests ran"),
         ));
     }
     let (_, sc0, e0) = figures[0];

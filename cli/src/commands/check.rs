@@ -6,6 +6,7 @@
 use super::{print_out, Failure};
 use crate::args::CheckArgs;
 use crate::case::{load_case, LoadedCase};
+use crate::output::schema::check_json as K;
 use crate::summary::G;
 use anyhow::anyhow;
 use boreflux_solver::cake::CakeState;
@@ -96,10 +97,10 @@ fn periodic_state(m: &Model) -> Result<serde_json::Value, harmonic::HarmonicErro
     let rho_g = m.fluid.density_kg_m3 * boreflux_solver::water::GRAVITY_M_S2;
     let power = sol.mean_dissipation_m4_s();
     Ok(json!({
-        "period_s": p,
-        "peak_screen_flow_m3_s": peak(0),
-        "peak_wall_face_flux_m_s": peak(wall) / area,
-        "mean_power_w": Zone::ALL.iter().map(|z| (z.name().to_string(), json!(rho_g * power[*z as usize]))).collect::<serde_json::Map<_, _>>(),
+        (K::PERIOD.key()): p,
+        (K::PEAK_SCREEN_FLOW.key()): peak(0),
+        (K::PEAK_WALL_FACE_FLUX.key()): peak(wall) / area,
+        (K::MEAN_POWER.key()): Zone::ALL.iter().map(|z| (z.name().to_string(), json!(rho_g * power[*z as usize]))).collect::<serde_json::Map<_, _>>(),
     }))
 }
 
@@ -157,24 +158,24 @@ pub fn check(a: &CheckArgs) -> Result<(), Failure> {
     let cost = crate::cost::run_cost(&case, false, 0);
     if a.json {
         let v = json!({
-            "periodic_state": match &periodic {
+            (K::PERIODIC_STATE.key()): match &periodic {
                 Ok(v) => v.clone(),
-                Err(why) => json!({"not_applicable": why.to_string()}),
+                Err(why) => json!({(K::NOT_APPLICABLE.key()): why.to_string()}),
             },
-            "title": case.title,
-            "zones": zones.iter().map(|(n, r1, r2, med)| json!({"zone": n, "inner_radius_m": r1, "outer_radius_m": r2,
-                "conductivity_m_s": med.map(|x| x.conductivity_m_s), "diffusivity_m2_s": med.map(|x| x.diffusivity_m2_s()),
-                "penetration_depth_m": period.and_then(|p| med.map(|x| penetration_depth(&x, p)))})).collect::<Vec<_>>(),
-            "resistance_s_m2": Zone::ALL.iter().map(|z| (z.name().to_string(), json!(res[*z as usize]))).collect::<serde_json::Map<_, _>>(),
-            "skin": {"pack": skin_pack, "cake": skin_total - skin_pack - skin_inv, "invaded": skin_inv, "total": skin_total},
-            "cells": g.cells(), "outer_radius_m": g.outer_radius_m(), "time_step": step,
-            "cost": {"steps_at_most": cost.steps, "cell_steps": cost.cell_steps, "estimated_seconds": cost.seconds,
-                "estimated_output_bytes": cost.bytes, "over_limits": crate::cost::refuse_large(&cost, false).is_err()},
-            "annulus": widths.iter().map(|(w, q, wc, wp)| json!({"width_m": w, "peak_face_flux_m_s": q, "cake_work_per_cycle_j": wc, "pack_work_per_cycle_j": wp})).collect::<Vec<_>>(),
-            "notes": case.notes, "warnings": case.warnings,
-            "damage_constants": boreflux_solver::damage::assumptions(m).iter().map(|p| json!({
-                "path": p.path, "value": p.value, "range": [p.range.0, p.range.1],
-                "unit": p.unit, "decades": p.decades(), "provenance": p.provenance})).collect::<Vec<_>>(),
+            (K::TITLE.key()): case.title,
+            (K::ZONES.key()): zones.iter().map(|(n, r1, r2, med)| json!({(K::ZONE.key()): n, (K::INNER_RADIUS.key()): r1, (K::ZONE_OUTER_RADIUS.key()): r2,
+                (K::CONDUCTIVITY.key()): med.map(|x| x.conductivity_m_s), (K::DIFFUSIVITY.key()): med.map(|x| x.diffusivity_m2_s()),
+                (K::PENETRATION_DEPTH.key()): period.and_then(|p| med.map(|x| penetration_depth(&x, p)))})).collect::<Vec<_>>(),
+            (K::RESISTANCE.key()): Zone::ALL.iter().map(|z| (z.name().to_string(), json!(res[*z as usize]))).collect::<serde_json::Map<_, _>>(),
+            (K::SKIN.key()): {(K::SKIN_PACK.key()): skin_pack, (K::SKIN_CAKE.key()): skin_total - skin_pack - skin_inv, (K::SKIN_INVADED.key()): skin_inv, (K::SKIN_TOTAL.key()): skin_total},
+            (K::CELLS.key()): g.cells(), (K::OUTER_RADIUS.key()): g.outer_radius_m(), (K::TIME_STEP.key()): step,
+            (K::COST.key()): {(K::STEPS_AT_MOST.key()): cost.steps, (K::CELL_STEPS.key()): cost.cell_steps, (K::ESTIMATED_SECONDS.key()): cost.seconds,
+                (K::ESTIMATED_OUTPUT_BYTES.key()): cost.bytes, (K::OVER_LIMITS.key()): crate::cost::refuse_large(&cost, false).is_err()},
+            (K::ANNULUS.key()): widths.iter().map(|(w, q, wc, wp)| json!({(K::WIDTH.key()): w, (K::ANNULUS_PEAK_FLUX.key()): q, (K::CAKE_WORK.key()): wc, (K::PACK_WORK.key()): wp})).collect::<Vec<_>>(),
+            (K::NOTES.key()): case.notes, (K::WARNINGS.key()): case.warnings,
+            (K::DAMAGE_CONSTANTS.key()): boreflux_solver::damage::assumptions(m).iter().map(|p| json!({
+                (K::CONSTANT_PATH.key()): p.path, (K::CONSTANT_VALUE.key()): p.value, (K::CONSTANT_RANGE.key()): [p.range.0, p.range.1],
+                (K::CONSTANT_UNIT.key()): p.unit, (K::CONSTANT_DECADES.key()): p.decades(), (K::CONSTANT_PROVENANCE.key()): p.provenance})).collect::<Vec<_>>(),
         });
         return print_out(
             &(serde_json::to_string_pretty(&v).map_err(|e| Failure::Runtime(e.into()))? + "\n"),

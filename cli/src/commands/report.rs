@@ -19,10 +19,14 @@ pub fn report(a: &ReportArgs) -> Result<(), Failure> {
     }
     refuse_inputs(&[(&a.output, "-o/--output")], &a.inputs).map_err(Failure::Input)?;
     check_output(&a.output, "-o/--output", a.force).map_err(Failure::Input)?;
-    crate::report::write_report(&a.inputs, &a.output).map_err(|e| match &e {
-        ReportError::Write { .. } => Failure::Runtime(anyhow!("{e}")),
-        ReportError::Input { source, .. } => Failure::with_code(source.exit_code(), e),
-        ReportError::NoInputs | ReportError::SweepNotAlone { .. } => Failure::Input(anyhow!("{e}")),
+    crate::report::write_titled_report(&a.inputs, &a.output, a.title.as_deref()).map_err(|e| {
+        match &e {
+            ReportError::Write { .. } => Failure::Runtime(anyhow!("{e}")),
+            ReportError::Input { source, .. } => Failure::with_code(source.exit_code(), e),
+            ReportError::NoInputs
+            | ReportError::SweepNotAlone { .. }
+            | ReportError::SweepTitle { .. } => Failure::Input(anyhow!("{e}")),
+        }
     })?;
     eprintln!("report written to {}", a.output.display());
     Ok(())

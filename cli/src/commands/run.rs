@@ -13,7 +13,9 @@ use super::outputs::{check_output, same_file_key};
 use super::{print_out, Failure};
 use crate::args::RunArgs;
 use crate::case::{load_case, LoadedCase};
-use crate::output::schema::{figure_values, ProgressSeries, SummaryText};
+use crate::output::schema::{
+    figure_values, GridData, Group, ProgressSeries, RootAttr, SummaryText,
+};
 use crate::output::sink::ResultSink;
 use crate::summary::{assessment, headline, table, Headline, Tracker};
 use anyhow::{anyhow, Context};
@@ -111,54 +113,50 @@ fn write_metadata(
     grid: &Grid,
 ) -> Result<(), crate::output::OutputError> {
     let w = sink.writer();
-    w.set_root_attr_str("tool_version", env!("CARGO_PKG_VERSION"))?;
-    w.set_root_attr_str(
-        "created_utc",
-        &humantime::format_rfc3339_seconds(std::time::SystemTime::now()).to_string(),
-    )?;
-    w.set_root_attr_str("title", &case.title)?;
-    w.set_root_attr_str("description", &case.description)?;
-    w.set_root_attr_str("case_json", &case.resolved.to_string())?;
-    w.set_root_attr_str("case_file", &args.case.display().to_string())?;
-    w.write_vector(
-        "/grid/r_center",
-        &grid.r_center,
-        "m",
-        "node radii (geometric mean of the faces)",
-    )?;
-    w.write_vector(
-        "/grid/r_face",
-        &grid.r_face,
-        "m",
-        "face radii, screen to outer radius",
-    )?;
-    let zones: Vec<f64> = grid.zone.iter().map(|&z| z as u8 as f64).collect();
-    w.write_vector(
-        "/grid/zone",
-        &zones,
-        "1",
-        "zone of each cell: 1 pack, 3 invaded, 4 formation",
-    )?;
+    for attr in RootAttr::ALL {
+        let value = match attr {
+            RootAttr::ToolVersion => env!("CARGO_PKG_VERSION").to_owned(),
+            RootAttr::CreatedUtc => {
+                humantime::format_rfc3339_seconds(std::time::SystemTime::now()).to_string()
+            }
+            RootAttr::Title => case.title.clone(),
+            RootAttr::Description => case.description.clone(),
+            RootAttr::CaseJson => case.resolved.to_string(),
+            RootAttr::CaseFile => args.case.display().to_string(),
+        };
+        w.set_root_attr_str(attr.name(), &value)?;
+    }
+    for data in GridData::ALL {
+        let values: Vec<f64> = match data {
+            GridData::RCenter => grid.r_center.clone(),
+            GridData::RFace => grid.r_face.clone(),
+            GridData::Zone => grid.zone.iter().map(|&z| z as u8 as f64).collect(),
+        };
+        let e = data.entry();
+        w.write_vector(&data.path(), &values, e.unit.symbol(), &e.description)?;
+    }
     Ok(())
 }
 
 fn write_summary(sink: &mut ResultSink, h: &Headline) -> Result<(), crate::output::OutputError> {
     let w = sink.writer();
-    w.group("/summary")?;
+    let summary = Group::Summary.path();
+    w.group(&summary)?;
     for (figure, value) in figure_values(h) {
         // A figure that was not computed is left out (the report shows a dash).
         if let Some(x) = value {
-            w.set_attr_f64("/summary", &figure.name(), x)?;
+            w.set_attr_f64(&summary, &figure.name(), x)?;
         }
     }
     for text in SummaryText::ALL {
         let value = match text {
             SummaryText::Warnings => h.warnings.join("\n"),
             SummaryText::Cautions => CAUTION.to_owned(),
-            SummaryText::EfficiencyDefinition => h.efficiency_definition.to_owned(),
+            SummaryText::EfficiencyDefinition => crate::summary::EFFICIENCY_DEFINITION.to_owned(),
             SummaryText::Assumptions => h.assumptions.join("\n"),
+            SummaryText::Notes => h.notes.join("\n"),
         };
-        w.set_attr_str("/summary", text.name(), &value)?;
+        w.set_attr_str(&summary, text.name(), &value)?;
     }
     Ok(())
 }
@@ -170,7 +168,7 @@ fn write_progress(sink: &mut ResultSink, p: &Progress) -> Result<(), crate::outp
         return Ok(());
     }
     let w = sink.writer();
-    w.group(&format!("/{}", ProgressSeries::GROUP))?;
+    w.group(&Group::Progress.path())?;
     for series in ProgressSeries::ALL {
         let values: Vec<f64> = match series {
             ProgressSeries::Time => p.time_s.clone(),

@@ -101,7 +101,8 @@ pub fn steptest(a: &SteptestArgs) -> Result<(), Failure> {
     if a.json {
         let mut v = text::to_json(&outcome);
         if let Some(m) = &model {
-            v["model"] = crate::steptest::model::to_json(m);
+            v[crate::output::schema::steptest_json::MODEL.key()] =
+                crate::steptest::model::to_json(m);
         }
         let s = serde_json::to_string_pretty(&v).map_err(|e| Failure::Runtime(e.into()))?;
         print_out(&(s + "\n"))

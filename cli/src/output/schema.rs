@@ -13,10 +13,17 @@
 //! Zone-resolved quantities carry their [`Zone`]: a new zone gets its own names, never
 //! another zone's values.
 
+mod documents;
+mod file;
+
+pub use documents::{check_json, estimate, steptest_json, JsonKey, Shape};
+pub use file::{GridData, Group, RootAttr, SnapshotData};
+
 use crate::summary::Headline;
+use boreflux_solver::assess::figures::RunFigures;
+use boreflux_solver::assess::{StepCoefficients, WellFigures};
 use boreflux_solver::grid::{Zone, ZONE_COUNT};
 use boreflux_solver::{CycleView, StepView};
-use serde_json::Value;
 
 /// SI unit of an output, as written in the `units` attribute and the docs.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -614,24 +621,114 @@ impl Figure {
     }
 }
 
+/// The value of a figure: a count (an integer in `run --json`) or a real number.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum Num {
+    /// A count (steps, cycles, cells, partings, iterations).
+    Count(u64),
+    /// A real number in the figure's SI unit.
+    Real(f64),
+}
+
+impl Num {
+    /// The value as a number.
+    pub fn as_f64(self) -> f64 {
+        match self {
+            Num::Count(n) => n as f64,
+            Num::Real(x) => x,
+        }
+    }
+}
+
+impl Figure {
+    /// The figure of a run, read from the solver's result types (the one place each figure
+    /// is computed); `None` where it was not computed (no rating, cake never halved, virtual
+    /// tests failed, …).
+    pub fn value(self, r: &RunFigures) -> Option<Num> {
+        use Num::{Count, Real};
+        let s = &r.summary;
+        let (c, sand, co) = (&r.checks, &r.sand, &r.collapse);
+        let before = |g: fn(&WellFigures) -> f64| r.before().map(g).map(Real);
+        let after = |g: fn(&WellFigures) -> f64| r.after().map(g).map(Real);
+        let step0 = |g: fn(&StepCoefficients) -> f64| r.step_before().map(g).map(Real);
+        let step1 = |g: fn(&StepCoefficients) -> f64| r.step_after().map(g).map(Real);
+        match self {
+            Figure::Steps => Some(Count(s.steps)),
+            Figure::Cycles => Some(Count(s.cycles)),
+            Figure::Cells => Some(Count(s.cells as u64)),
+            Figure::OuterRadius => Some(Real(s.outer_radius_m)),
+            Figure::EndTime => Some(Real(s.end_time_s)),
+            Figure::PeakOutwardFlux => Some(Real(s.peak_outward_flux_m_s)),
+            Figure::PeakInwardFlux => Some(Real(s.peak_inward_flux_m_s)),
+            Figure::PeakOutwardPoreVelocity => Some(Real(r.peak_outward_pore_velocity_m_s())),
+            Figure::PeakInwardPoreVelocity => Some(Real(r.peak_inward_pore_velocity_m_s())),
+            Figure::RmsFaceFlux => Some(Real(s.rms_face_flux_m_s)),
+            Figure::PeakScreenFlow => Some(Real(s.peak_screen_flow_m3_s)),
+            Figure::PeakShear => Some(Real(s.peak_shear_pa)),
+            Figure::Work(z) => Some(Real(s.work_j[z as usize])),
+            Figure::CakeThicknessStart => Some(Real(s.cake_thickness_m.0)),
+            Figure::CakeThicknessEnd => Some(Real(s.cake_thickness_m.1)),
+            Figure::TimeToHalfCake => r.extremes.half_cake_s.map(Real),
+            Figure::TimeTo90pctCake => r.extremes.tenth_cake_s.map(Real),
+            Figure::CyclesToHalfCake => r.cycles_to_half_cake().map(Real),
+            Figure::CyclesTo90pctCake => r.cycles_to_90pct_cake().map(Real),
+            Figure::CakeRemovalTime => s.cake_removed_at_s.map(Real),
+            Figure::PeakCakePressure => Some(Real(s.peak_cake_pressure_pa)),
+            Figure::SkinPack => Some(Real(s.skin_parts.0.pack)),
+            Figure::SkinCakeStart => Some(Real(s.skin_parts.0.cake)),
+            Figure::SkinCakeEnd => Some(Real(s.skin_parts.1.cake)),
+            Figure::SkinInvadedStart => Some(Real(s.skin_parts.0.invaded)),
+            Figure::SkinInvadedEnd => Some(Real(s.skin_parts.1.invaded)),
+            Figure::FinesInitial => Some(Real(s.fines_initial_kg)),
+            Figure::FinesRemoved => Some(Real(s.fines_removed_kg)),
+            Figure::FinesPushedOut => Some(Real(s.fines_pushed_out_kg)),
+            Figure::PackFormationRatio => sand.retention.pack_ratio.map(Real),
+            Figure::SlotPackRatio => sand.retention.slot_ratio.map(Real),
+            Figure::GrainCriticalVelocity => sand.critical_velocity_m_s.map(Real),
+            Figure::PeakWallInterstitialVelocity => Some(Real(sand.wall_velocity_m_s)),
+            Figure::SkinStart => Some(Real(s.skin.0)),
+            Figure::SkinEnd => Some(Real(s.skin.1)),
+            Figure::EfficiencyStart => before(|f| f.efficiency),
+            Figure::EfficiencyEnd => after(|f| f.efficiency),
+            Figure::SpecificCapacityStart => before(|f| f.specific_capacity_m2_s),
+            Figure::SpecificCapacityEnd => after(|f| f.specific_capacity_m2_s),
+            Figure::DesignRate => Some(Real(r.plan.design_rate_m3_s)),
+            Figure::TestDuration => Some(Real(r.plan.constant_duration_s)),
+            Figure::StepDuration => Some(Real(r.plan.step_duration_s)),
+            Figure::TestDrawdownStart => before(|f| f.drawdown_m),
+            Figure::TestDrawdownEnd => after(|f| f.drawdown_m),
+            Figure::TestDrawdownUndamaged => before(|f| f.undamaged_drawdown_m),
+            Figure::StepBStart => step0(|c| c.b_s_m2),
+            Figure::StepBEnd => step1(|c| c.b_s_m2),
+            Figure::StepCStart => step0(|c| c.c_s2_m5),
+            Figure::StepCEnd => step1(|c| c.c_s2_m5),
+            Figure::NonlinearShareStart => step0(|c| c.nonlinear_share),
+            Figure::NonlinearShareEnd => step1(|c| c.nonlinear_share),
+            Figure::PeakSlotVelocity => Some(Real(c.peak_slot_velocity_m_s)),
+            Figure::PeakGrainReynolds => c.peak_grain_reynolds.map(Real),
+            Figure::PipingRatio => c.piping_ratio.map(Real),
+            Figure::PeakCollapsePressure => Some(Real(c.peak_collapse_pressure_pa)),
+            Figure::PeakScreenDifferential => Some(Real(c.peak_screen_differential_pa)),
+            Figure::PeakInWellDrawdown => Some(Real(c.peak_in_well_drawdown_m)),
+            Figure::PeakBurstPressure => Some(Real(c.peak_burst_pressure_pa)),
+            Figure::CollapseRating => co.casing_rating_pa.map(Real),
+            Figure::ScreenCollapseRating => co.screen_rating_pa.map(Real),
+            Figure::CollapseMargin => co.margin().map(Real),
+            Figure::ScreenCollapseMargin => co.screen_margin.map(Real),
+            Figure::CasingCollapseMargin => co.casing_margin.map(Real),
+            Figure::ColumnPartings => Some(Count(s.column_partings)),
+            Figure::PartedTime => Some(Real(s.parted_time_s)),
+            Figure::MaxMassResidual => Some(Real(s.max_mass_residual)),
+            Figure::EnergyClosure => Some(Real(s.energy_closure)),
+            Figure::MaxNewtonIterations => Some(Count(s.max_newton_iterations as u64)),
+        }
+    }
+}
+
 /// Every figure of a run's headline, in [`Figure::all`] order; `None` where the figure was
-/// not computed (no rating, cake never halved, …).
+/// not computed or is not finite (what `/summary` leaves out and a sweep table shows as NaN).
 pub fn figure_values(h: &Headline) -> Vec<(Figure, Option<f64>)> {
-    let json = serde_json::to_value(h).unwrap_or(Value::Null);
-    Figure::all()
-        .into_iter()
-        .map(|f| {
-            let v = match f {
-                Figure::Work(z) => h
-                    .zones
-                    .iter()
-                    .position(|n| *n == z.name())
-                    .map(|k| h.work_j[k]),
-                _ => json.get(f.name()).and_then(Value::as_f64),
-            };
-            (f, v)
-        })
-        .collect()
+    Figure::all().into_iter().map(|f| (f, h.get(f))).collect()
 }
 
 /// Text attributes of `/summary`.
@@ -645,15 +742,18 @@ pub enum SummaryText {
     EfficiencyDefinition,
     /// The model's assumptions (damage constants with range and provenance).
     Assumptions,
+    /// The case's notes: defaults and approximations the model used.
+    Notes,
 }
 
 impl SummaryText {
     /// All, in file order.
-    pub const ALL: [SummaryText; 4] = [
+    pub const ALL: [SummaryText; 5] = [
         SummaryText::Warnings,
         SummaryText::Cautions,
         SummaryText::EfficiencyDefinition,
         SummaryText::Assumptions,
+        SummaryText::Notes,
     ];
 
     /// The attribute name.
@@ -663,6 +763,7 @@ impl SummaryText {
             SummaryText::Cautions => "cautions",
             SummaryText::EfficiencyDefinition => "efficiency_definition",
             SummaryText::Assumptions => "assumptions",
+            SummaryText::Notes => "notes",
         }
     }
 
@@ -676,6 +777,11 @@ impl SummaryText {
                 "the model's assumptions, one per line: each damage-removal constant with its \
                  documented range and provenance (empty without damage-removal laws)"
             }
+            SummaryText::Notes => {
+                "the case's notes, one per line: the defaults and approximations the model used \
+                 (assumed efficiencies and depths, the 1-D jet approximation, …), as `check` \
+                 prints them"
+            }
         }
     }
 
@@ -683,6 +789,100 @@ impl SummaryText {
     pub fn from_name(name: &str) -> Option<SummaryText> {
         Self::ALL.into_iter().find(|t| t.name() == name)
     }
+}
+
+/// A key of the document `run --json` prints (the headline of one run).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum RunKey {
+    /// The case title.
+    Title,
+    /// A headline figure, named as its `/summary` attribute (`null` when not computed).
+    Figure(Figure),
+    /// Work dissipated per zone, an array in zone order.
+    WorkArray,
+    /// The zone names, in the order of the work array.
+    ZoneNames,
+    /// How the collapse ratings were found.
+    CollapseRatingBasis,
+    /// A text of `/summary` (the warnings and assumptions as arrays of lines).
+    Text(SummaryText),
+}
+
+impl RunKey {
+    /// The key.
+    pub fn name(self) -> String {
+        match self {
+            RunKey::Title => "title".to_owned(),
+            RunKey::Figure(f) => f.name(),
+            RunKey::WorkArray => "work_j".to_owned(),
+            RunKey::ZoneNames => "zones".to_owned(),
+            RunKey::CollapseRatingBasis => "collapse_rating_basis".to_owned(),
+            RunKey::Text(t) => t.name().to_owned(),
+        }
+    }
+
+    /// Its schema entry (figures: as in `/summary`).
+    pub fn entry(self) -> Entry {
+        let s = |n: &str, u, d: &str, c| entry(n.to_owned(), u, d.to_owned(), c, Place::Model);
+        match self {
+            RunKey::Title => s("title", Unit::One, "the case title (text)", "case file"),
+            RunKey::Figure(f) => f.entry(),
+            RunKey::WorkArray => s(
+                "work_j",
+                Unit::J,
+                "work dissipated in each zone over the run, an array in the order of `zones`",
+                "cumulative work at the end of the run",
+            ),
+            RunKey::ZoneNames => s(
+                "zones",
+                Unit::One,
+                "the zone names, an array (text)",
+                "fixed",
+            ),
+            RunKey::CollapseRatingBasis => s(
+                "collapse_rating_basis",
+                Unit::One,
+                "how the collapse ratings were found (text; not in `/summary`)",
+                "case inputs, docs/devices.md §6",
+            ),
+            RunKey::Text(t) => s(
+                t.name(),
+                Unit::One,
+                &match t {
+                    SummaryText::Warnings | SummaryText::Assumptions => {
+                        format!("{} (an array of lines)", t.description())
+                    }
+                    SummaryText::Notes => t.description().to_owned(),
+                    SummaryText::Cautions | SummaryText::EfficiencyDefinition => {
+                        format!("{} (text)", t.description())
+                    }
+                },
+                "as the `/summary` attribute",
+            ),
+        }
+    }
+}
+
+/// The keys of `run --json`, in the order printed: the figures in [`Figure::all`] order
+/// with the zone work as one array, and the texts where the document has always had them.
+pub fn run_json_keys() -> Vec<RunKey> {
+    let mut v = vec![RunKey::Title];
+    for &f in Figure::SCALARS {
+        v.push(RunKey::Figure(f));
+        match f {
+            Figure::PeakShear => v.extend([RunKey::WorkArray, RunKey::ZoneNames]),
+            Figure::NonlinearShareEnd => {
+                v.push(RunKey::Text(SummaryText::EfficiencyDefinition));
+            }
+            Figure::ScreenCollapseRating => v.push(RunKey::CollapseRatingBasis),
+            _ => {}
+        }
+    }
+    v.extend([
+        RunKey::Text(SummaryText::Warnings),
+        RunKey::Text(SummaryText::Assumptions),
+    ]);
+    v
 }
 
 /// A series of the development-progress group (`/progress/<name>`): the well's virtual
@@ -706,7 +906,7 @@ impl ProgressSeries {
     ];
 
     /// The group the series live in.
-    pub const GROUP: &'static str = "progress";
+    pub const GROUP: &'static str = Group::Progress.name();
 
     /// Its schema entry; `name` is the path below `/progress`.
     pub fn entry(self) -> Entry {
@@ -917,6 +1117,29 @@ pub fn markdown() -> String {
     for t in SummaryText::ALL {
         out.push_str(&format!("| `{}` | {} |\n", t.name(), t.description()));
     }
+    out.push('\n');
+    file::markdown(&mut out, &|out, title, rows| table(out, title, "", rows));
+    out.push_str(
+        "Keys of `run --json`, in the order printed (figures as in `/summary`, `null` when not \
+         computed):\n\n| key | unit | description |\n| --- | --- | --- |\n",
+    );
+    for k in run_json_keys() {
+        let e = k.entry();
+        out.push_str(&format!(
+            "| `{}` | {} | {} |\n",
+            k.name(),
+            e.unit.symbol(),
+            e.description
+        ));
+    }
+    out.push('\n');
+    documents::table(&mut out, "Keys of `check --json`:", check_json::ALL);
+    documents::table(&mut out, "Keys of `steptest --json`:", steptest_json::ALL);
+    documents::table(
+        &mut out,
+        "Keys of an estimate (`steptest --json`, shape \"estimate\"):",
+        estimate::ALL,
+    );
     out
 }
 
@@ -975,24 +1198,32 @@ mod tests {
     }
 
     #[test]
-    fn every_numeric_headline_field_is_a_figure_and_back() {
-        // A figure added to the headline without a schema entry (or the reverse) fails here,
-        // instead of being dropped from /summary and the sweep table.
+    fn run_json_has_every_figure_once_in_the_key_order() {
+        // The document `run --json` prints: its keys are those of run_json_keys in that order,
+        // every figure is among them once, counts are integers and the zone work is the
+        // summary's.
         let h = demo_headline();
-        let json = serde_json::to_value(&h).unwrap();
-        let numeric: BTreeSet<String> = json
-            .as_object()
-            .unwrap()
-            .iter()
-            .filter(|(k, v)| (v.is_number() || v.is_null()) && k.as_str() != "work_j")
-            .map(|(k, _)| k.clone())
-            .collect();
-        let scalars: BTreeSet<String> = Figure::all()
-            .into_iter()
-            .filter(|f| !matches!(f, Figure::Work(_)))
-            .map(Figure::name)
-            .collect();
-        assert_eq!(numeric, scalars);
+        let text = serde_json::to_string(&h).unwrap();
+        let keys: Vec<String> = run_json_keys().into_iter().map(RunKey::name).collect();
+        let mut at = 0;
+        for k in &keys {
+            let quoted = format!("\"{k}\":");
+            let found = text[at..].find(&quoted);
+            assert!(found.is_some(), "key {k} missing or out of order");
+            at += found.unwrap() + quoted.len();
+        }
+        assert!(unique(keys.iter().cloned()));
+        let json: serde_json::Value = serde_json::from_str(&text).unwrap();
+        assert_eq!(json.as_object().unwrap().len(), keys.len());
+        for f in Figure::all() {
+            let listed = match f {
+                Figure::Work(_) => keys.contains(&RunKey::WorkArray.name()),
+                _ => keys.contains(&f.name()),
+            };
+            assert!(listed, "{}", f.name());
+        }
+        assert_eq!(json["steps"].as_u64(), Some(h.figures.summary.steps));
+        assert!(json["max_newton_iterations"].is_u64());
         let values = figure_values(&h);
         for (k, z) in Zone::ALL.into_iter().enumerate() {
             let w = values
@@ -1000,10 +1231,10 @@ mod tests {
                 .find(|(f, _)| *f == Figure::Work(z))
                 .unwrap()
                 .1;
-            assert_eq!(w, Some(h.work_j[k]), "{}", z.name());
+            assert_eq!(w, Some(h.figures.summary.work_j[k]), "{}", z.name());
+            assert_eq!(json["work_j"][k].as_f64(), w);
+            assert_eq!(json["zones"][k].as_str(), Some(z.name()));
         }
-        let steps = values.iter().find(|(f, _)| *f == Figure::Steps).unwrap().1;
-        assert_eq!(steps, Some(h.steps as f64));
     }
 
     #[test]

@@ -3,7 +3,7 @@
 
 use super::csv::{Column, CsvWriter};
 use super::h5::{H5Writer, MatrixHandle, SeriesHandle};
-use super::schema::{Cycle, Step, CYCLE_INDEX};
+use super::schema::{Cycle, Group, SnapshotData, Step, CYCLE_INDEX};
 use super::OutputError;
 use boreflux_solver::{CycleView, StepObserver, StepView};
 use std::path::Path;
@@ -43,7 +43,7 @@ impl ResultSink {
         for step in Step::all() {
             let e = step.entry();
             let h = w.growable_series(
-                &format!("/series/{}", e.name),
+                &Group::Series.member(&e.name),
                 e.unit.symbol(),
                 &e.description,
                 CHUNK,
@@ -51,7 +51,7 @@ impl ResultSink {
             series.push((step, h));
         }
         let cycle_index = w.growable_series_of::<u64>(
-            &format!("/cycles/{CYCLE_INDEX}"),
+            &Group::Cycles.member(CYCLE_INDEX),
             "1",
             "cycle number from 0",
             256,
@@ -60,20 +60,25 @@ impl ResultSink {
         for cycle in Cycle::all() {
             let e = cycle.entry();
             let h = w.growable_series(
-                &format!("/cycles/{}", e.name),
+                &Group::Cycles.member(&e.name),
                 e.unit.symbol(),
                 &e.description,
                 256,
             )?;
             cycles.push((cycle, h));
         }
-        let snap_time =
-            w.growable_series("/snapshots/time", "s", "times of the head profiles", 256)?;
+        let (time, head) = (SnapshotData::Time.entry(), SnapshotData::Head.entry());
+        let snap_time = w.growable_series(
+            &SnapshotData::Time.path(),
+            time.unit.symbol(),
+            &time.description,
+            256,
+        )?;
         let snap_head = w.growable_matrix(
-            "/snapshots/head",
+            &SnapshotData::Head.path(),
             cells,
-            "m",
-            "cell heads (time x cell), inner to outer",
+            head.unit.symbol(),
+            &head.description,
         )?;
         let csv = match csv {
             Some(p) => {

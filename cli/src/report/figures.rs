@@ -13,15 +13,13 @@ const WORK_LOG_RATIO: f64 = 1e3;
 /// Decades shown below the largest value on a log work axis.
 const WORK_LOG_DECADES: f64 = 10.0;
 
-/// Line styles of runs A, B, C, …: distinct colours and, for grey-scale prints, dashes.
-const RUN_STYLES: [Style; 6] = [
-    style("#1f5fa8", ""),
-    style("#c0392b", "8 4"),
-    style("#1e8449", "2 3"),
-    style("#7d3c98", "10 3 2 3"),
-    style("#b9770e", "5 2"),
-    style("#222222", "1 3"),
+/// Colours of runs A, B, C, … (the first six runs: each its own colour and dash).
+const RUN_COLOURS: [&str; 6] = [
+    "#1f5fa8", "#c0392b", "#1e8449", "#7d3c98", "#b9770e", "#222222",
 ];
+
+/// Dash patterns of the runs, for grey-scale prints.
+const RUN_DASHES: [&str; 6] = ["", "8 4", "2 3", "10 3 2 3", "5 2", "1 3"];
 
 /// Line styles of the zones screen, pack, cake, invaded, formation.
 const ZONE_STYLES: [Style; boreflux_solver::grid::ZONE_COUNT] = [
@@ -40,9 +38,15 @@ const fn style(color: &'static str, dash: &'static str) -> Style {
     }
 }
 
-/// Style of run number `i` (from 0).
+/// Style of run number `i` (from 0): colour `i mod 6` with a dash pattern shifted by one
+/// for each further six runs, so the first 36 runs (sweep lines) each get their own
+/// colour and dash pair; the first six are colour k with dash k.
 pub fn run_style(i: usize) -> Style {
-    RUN_STYLES[i % RUN_STYLES.len()]
+    let n = RUN_COLOURS.len();
+    style(
+        RUN_COLOURS[i % n],
+        RUN_DASHES[(i % n + i / n) % RUN_DASHES.len()],
+    )
 }
 
 /// One figure: a title, a caption and one or more SVG charts.
@@ -373,8 +377,26 @@ fn profile_chart(id: &str, i: usize, run: &Run) -> String {
             label: format!("t = {}", super::format::duration(run.snapshots.time[row])),
             x: &run.grid.r_center,
             y: &run.snapshots.head[row],
-            style: RUN_STYLES[k % RUN_STYLES.len()],
+            style: run_style(k),
         });
     }
     render(&c)
+}
+
+#[cfg(test)]
+mod style_tests {
+    use super::*;
+
+    /// A legend needs one look per line: the first 36 runs differ in colour or dash, the
+    /// first six in both.
+    #[test]
+    fn run_styles_do_not_repeat_after_six() {
+        let pairs: std::collections::BTreeSet<(&str, &str)> =
+            (0..36).map(run_style).map(|s| (s.color, s.dash)).collect();
+        assert_eq!(pairs.len(), 36);
+        let first: std::collections::BTreeSet<&str> = (0..6).map(|i| run_style(i).dash).collect();
+        assert_eq!(first.len(), 6);
+        assert_eq!(run_style(1).dash, "8 4");
+        assert_ne!(run_style(6).dash, run_style(0).dash);
+    }
 }

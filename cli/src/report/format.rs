@@ -82,6 +82,14 @@ pub const ERODIBILITY: Shown = shown(unit("m/(s·Pa)", 1.0), None);
 pub const FORCHHEIMER_BETA: Shown = shown(unit("s²/m²", 1.0), None);
 /// A dimensionless number.
 pub const NUMBER: Shown = shown(unit("", 1.0), None);
+/// Density: kg/m³ (lb/ft³); 1 lb/ft³ = 0.453 592 37 kg / 0.3048³ m³ (exact definitions of lb and ft).
+pub const DENSITY: Shown = shown(unit("kg/m³", 1.0), Some(unit("lb/ft³", 1.0 / 16.018_463)));
+/// Per metre (a filtration coefficient).
+pub const PER_METRE: Shown = shown(unit("1/m", 1.0), None);
+/// Volume: m³ (US gal).
+pub const VOLUME: Shown = shown(unit("m³", 1.0), Some(unit("gal", 1.0 / US_GAL_M3)));
+/// Force: N (lbf); 1 lbf = 0.453 592 37 kg × 9.806 65 m/s² (exact definitions).
+pub const FORCE: Shown = shown(unit("N", 1.0), Some(unit("lbf", 1.0 / 4.448_221_615)));
 
 /// `value` with three significant digits: fixed notation from 0.001 to 10⁵, otherwise
 /// `1.23×10⁻⁵` (HTML-safe text; [`crate::sigfig`]).

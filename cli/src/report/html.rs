@@ -39,20 +39,29 @@ code{font-size:.95em}
 @media print{body{max-width:none;margin:0}h2,h3{break-after:avoid}.caution,.warnings,td.flag,td.alarm,tr.section th{-webkit-print-color-adjust:exact;print-color-adjust:exact}}
 ";
 
-/// The whole page for the runs (already read).
-pub fn page(runs: &[Run]) -> String {
+/// The whole page for the runs (already read), under `title` when given (else the default
+/// heading, and the run titles in the browser's title).
+pub fn page(runs: &[Run], title: Option<&str>) -> String {
     let titles: Vec<String> = runs.iter().map(run_title).collect();
+    let head_title = match title {
+        Some(t) => t.to_owned(),
+        None => format!("Well development report: {}", titles.join("; ")),
+    };
     let mut h = String::new();
     let _ = write!(
         h,
         "<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n\
          <meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">\n\
-         <meta name=\"generator\" content=\"boreflux {}\">\n<title>Well development report: {}</title>\n\
+         <meta name=\"generator\" content=\"boreflux {}\">\n<title>{}</title>\n\
          <style>\n{STYLE}</style>\n</head>\n<body>\n",
         env!("CARGO_PKG_VERSION"),
-        esc(&titles.join("; "))
+        esc(&head_title)
     );
-    h.push_str("<h1>Well development simulation report</h1>\n");
+    let _ = writeln!(
+        h,
+        "<h1>{}</h1>",
+        esc(title.unwrap_or("Well development simulation report"))
+    );
     let _ = writeln!(
         h,
         r#"<p class="lead">{} from the result {} listed under “Runs”; every number and figure below is read from {}. Built by boreflux {}.</p>"#,
@@ -98,7 +107,7 @@ pub fn page(runs: &[Run]) -> String {
         .filter_map(|(i, r)| tables::cycle_log(r).map(|t| (i, t)))
         .collect();
     if !logs.is_empty() {
-        h.push_str("<h2>Cycle log</h2>\n<p>Per complete cycle of the drive: flux at the borehole wall, shear, work in the cake and cake removed.</p>\n");
+        h.push_str("<h2>Cycle log</h2>\n<p>Per complete cycle of the drive: flux at the borehole wall, shear, work in the cake and cake removed. Cycles are numbered from 1 here and in the progress bar; the run file's <code>/cycles/index</code> counts from 0 (cycle 1 is index 0).</p>\n");
         for (i, t) in logs {
             let _ = write!(
                 h,
@@ -169,7 +178,32 @@ fn warnings(h: &mut String, runs: &[Run]) {
 }
 
 /// The damage-removal constants each run used, with their documented ranges.
+/// The case's notes of each run: the defaults and approximations the model used (what
+/// `check` prints), from `/summary` `notes`.
+fn model_notes(h: &mut String, runs: &[Run]) {
+    if runs.iter().all(|r| r.summary.notes.is_empty()) {
+        return;
+    }
+    h.push_str(
+        "<section>\n<h2>Model assumptions: defaults and approximations</h2>\n<p>What the \
+         model assumed where the case gave no value, and the approximations it made (as \
+         <code>boreflux check</code> lists them).</p>\n",
+    );
+    for (i, run) in runs.iter().enumerate() {
+        if run.summary.notes.is_empty() {
+            continue;
+        }
+        let _ = writeln!(h, "<p><strong>Run {}</strong>:</p>\n<ul>", run_letter(i));
+        for line in &run.summary.notes {
+            let _ = writeln!(h, "<li>{}</li>", esc(line));
+        }
+        h.push_str("</ul>\n");
+    }
+    h.push_str("</section>\n");
+}
+
 fn assumptions(h: &mut String, runs: &[Run]) {
+    model_notes(h, runs);
     if runs.iter().all(|r| r.summary.assumptions.is_empty()) {
         return;
     }

@@ -28,6 +28,7 @@ mod figures;
 mod format;
 mod headline;
 mod html;
+mod input_units;
 mod read;
 pub mod steptest;
 mod svg;
@@ -63,6 +64,12 @@ pub enum ReportError {
         /// The sweep table.
         path: PathBuf,
     },
+    /// A title was given for a sweep table's page.
+    #[error("{}: --title applies to run reports; a sweep table's page keeps its own title", path.display())]
+    SweepTitle {
+        /// The sweep table.
+        path: PathBuf,
+    },
     /// The report file could not be written.
     #[error("cannot write report {}: {source}", path.display())]
     Write {
@@ -80,6 +87,16 @@ pub enum ReportError {
 /// All inputs are read before anything is written; on any error no file appears at
 /// `output` (an existing file there is left as it was).
 pub fn write_report(inputs: &[PathBuf], output: &Path) -> Result<(), ReportError> {
+    write_titled_report(inputs, output, None)
+}
+
+/// [`write_report`] with the page's own `title` (run reports; a sweep table's page keeps
+/// its title, and a title given for one is an error).
+pub fn write_titled_report(
+    inputs: &[PathBuf],
+    output: &Path,
+    title: Option<&str>,
+) -> Result<(), ReportError> {
     if inputs.is_empty() {
         return Err(ReportError::NoInputs);
     }
@@ -92,6 +109,9 @@ pub fn write_report(inputs: &[PathBuf], output: &Path) -> Result<(), ReportError
         if inputs.len() > 1 {
             return Err(ReportError::SweepNotAlone { path: path.clone() });
         }
+        if title.is_some() {
+            return Err(ReportError::SweepTitle { path: path.clone() });
+        }
         sweep::page(&table)
     } else {
         let runs = inputs
@@ -103,7 +123,7 @@ pub fn write_report(inputs: &[PathBuf], output: &Path) -> Result<(), ReportError
                 })
             })
             .collect::<Result<Vec<Run>, _>>()?;
-        html::page(&runs)
+        html::page(&runs, title)
     };
     let write_err = |source| ReportError::Write {
         path: output.to_path_buf(),

@@ -9,7 +9,10 @@
 use std::collections::BTreeMap;
 use std::path::{Path, PathBuf};
 
-use crate::output::schema::{Cycle, Figure, ProgressSeries, Step, SummaryText, CYCLE_INDEX};
+use crate::output::schema::{
+    Cycle, Figure, GridData, Group, ProgressSeries, RootAttr, SnapshotData, Step, SummaryText,
+    CYCLE_INDEX,
+};
 use crate::read_error::{FileKind, ReadError};
 use boreflux_solver::grid::Zone;
 use hdf5::types::{TypeDescriptor, VarLenAscii, VarLenUnicode};
@@ -145,6 +148,8 @@ pub struct Summary {
     pub efficiency_definition: Option<String>,
     /// `assumptions`: the damage-removal constants and their provenance, one per line.
     pub assumptions: Vec<String>,
+    /// `notes`: the case's defaults and approximations, one per line.
+    pub notes: Vec<String>,
 }
 
 impl Summary {
@@ -181,8 +186,8 @@ pub fn read_run(path: &Path) -> Result<Run, ReadError> {
         kind: FileKind::Run,
         source,
     })?;
-    let time = format!("series/{}", Step::Time.entry().name);
-    if !file.link_exists("series") || !file.link_exists(&time) {
+    let time = format!("{}/{}", Group::Series.name(), Step::Time.entry().name);
+    if !file.link_exists(Group::Series.name()) || !file.link_exists(&time) {
         return Err(ReadError::NotOurs {
             kind: FileKind::Run,
             lacks: format!("no /{time}"),
@@ -203,47 +208,63 @@ pub fn read_run(path: &Path) -> Result<Run, ReadError> {
 
 fn read_meta(file: &File) -> Result<Meta, ReadError> {
     let s = |name: &str| string_attr(file, "/", name);
-    let mut case_json = s("case_json")?;
-    if case_json.is_none() && file.link_exists("case_json") {
+    let case_json_name = RootAttr::CaseJson.name();
+    let mut case_json = s(case_json_name)?;
+    if case_json.is_none() && file.link_exists(case_json_name) {
         // Older writers kept the case as a scalar string dataset.
+        let object = format!("/{case_json_name}");
         let ds = file
-            .dataset("case_json")
-            .map_err(ReadError::hdf5("/case_json"))?;
+            .dataset(case_json_name)
+            .map_err(ReadError::hdf5(object.clone()))?;
         case_json = Some(
             ds.read_scalar::<VarLenUnicode>()
-                .map_err(ReadError::hdf5("/case_json"))?
+                .map_err(ReadError::hdf5(object))?
                 .as_str()
                 .to_owned(),
         );
     }
     Ok(Meta {
-        tool_version: s("tool_version")?,
-        created_utc: s("created_utc")?,
-        title: s("title")?,
-        description: s("description")?,
+        tool_version: s(RootAttr::ToolVersion.name())?,
+        created_utc: s(RootAttr::CreatedUtc.name())?,
+        title: s(RootAttr::Title.name())?,
+        description: s(RootAttr::Description.name())?,
         case_json,
-        case_file: s("case_file")?,
+        case_file: s(RootAttr::CaseFile.name())?,
     })
 }
 
 fn read_grid(file: &File) -> Result<Grid, ReadError> {
-    let r_center = vector(file, "grid/r_center", "m")?;
-    let r_face = vector(file, "grid/r_face", "m")?;
-    let zone: Vec<i64> = vector(file, "grid/zone", "")?
+    let grid = |d: GridData| -> Result<Vec<f64>, ReadError> {
+        // The zone index is read whatever its units attribute says.
+        let unit = match d {
+            GridData::Zone => "",
+            GridData::RCenter | GridData::RFace => d.entry().unit.symbol(),
+        };
+        vector(file, d.path().trim_start_matches('/'), unit)
+    };
+    let r_center = grid(GridData::RCenter)?;
+    let r_face = grid(GridData::RFace)?;
+    let zone: Vec<i64> = grid(GridData::Zone)?
         .iter()
         .map(|&z| z.round() as i64)
         .collect();
     if r_face.len() != r_center.len() + 1 {
         return Err(ReadError::invalid(
-            "/grid/r_face",
+            GridData::RFace.path(),
             format!(
-                "{} values, expected {} (one more than /grid/r_center)",
+                "{} values, expected {} (one more than {})",
                 r_face.len(),
-                r_center.len() + 1
+                r_center.len() + 1,
+                GridData::RCenter.path()
             ),
         ));
     }
-    same_length("/grid/zone", zone.len(), "/grid/r_center", r_center.len())?;
+    same_length(
+        &GridData::Zone.path(),
+        zone.len(),
+        &GridData::RCenter.path(),
+        r_center.len(),
+    )?;
     Ok(Grid {
         r_center,
         r_face,
@@ -252,7 +273,7 @@ fn read_grid(file: &File) -> Result<Grid, ReadError> {
 }
 
 fn read_series(file: &File) -> Result<Series, ReadError> {
-    let path = |step: Step| format!("series/{}", step.entry().name);
+    let path = |step: Step| format!("{}/{}", Group::Series.name(), step.entry().name);
     let time = vector(file, &path(Step::Time), Step::Time.entry().unit.symbol())?;
     let n = time.len();
     let column = |step: Step| -> Result<Vec<f64>, ReadError> {
@@ -287,12 +308,12 @@ fn read_series(file: &File) -> Result<Series, ReadError> {
 }
 
 fn read_cycles(file: &File) -> Result<Cycles, ReadError> {
-    let index_path = format!("cycles/{CYCLE_INDEX}");
+    let index_path = format!("{}/{CYCLE_INDEX}", Group::Cycles.name());
     let index = vector(file, &index_path, "1")?;
     let n = index.len();
     let column = |cycle: Cycle| -> Result<Vec<f64>, ReadError> {
         let e = cycle.entry();
-        let path = format!("cycles/{}", e.name);
+        let path = format!("{}/{}", Group::Cycles.name(), e.name);
         let v = vector(file, &path, e.unit.symbol())?;
         same_length(&format!("/{path}"), v.len(), &format!("/{index_path}"), n)?;
         Ok(v)
@@ -339,8 +360,13 @@ fn read_progress(file: &File) -> Result<Progress, ReadError> {
 }
 
 fn read_snapshots(file: &File) -> Result<Snapshots, ReadError> {
-    let time = vector(file, "snapshots/time", "s")?;
-    let path = "snapshots/head";
+    let (time_path, head_path) = (SnapshotData::Time.path(), SnapshotData::Head.path());
+    let time = vector(
+        file,
+        time_path.trim_start_matches('/'),
+        SnapshotData::Time.entry().unit.symbol(),
+    )?;
+    let path = head_path.trim_start_matches('/');
     if !file.link_exists(path) {
         return Err(ReadError::MissingDataset {
             object: format!("/{path}"),
@@ -357,12 +383,12 @@ fn read_snapshots(file: &File) -> Result<Snapshots, ReadError> {
         ));
     }
     same_length(
-        "/snapshots/head rows",
+        &format!("{head_path} rows"),
         shape[0],
-        "/snapshots/time",
+        &time_path,
         time.len(),
     )?;
-    check_units(&ds, path, "m")?;
+    check_units(&ds, path, SnapshotData::Head.entry().unit.symbol())?;
     bounded(
         path,
         shape
@@ -382,17 +408,22 @@ fn read_snapshots(file: &File) -> Result<Snapshots, ReadError> {
 }
 
 fn read_summary(file: &File) -> Result<Summary, ReadError> {
-    if !file.link_exists("summary") {
+    let group_path = Group::Summary.path();
+    if !file.link_exists(Group::Summary.name()) {
         return Err(ReadError::MissingGroup {
-            object: "/summary".to_owned(),
+            object: group_path.clone(),
             hint: " (the run may not have finished)",
         });
     }
-    let group = file.group("summary").map_err(ReadError::hdf5("/summary"))?;
-    let names = group.attr_names().map_err(ReadError::hdf5("/summary"))?;
+    let group = file
+        .group(Group::Summary.name())
+        .map_err(ReadError::hdf5(group_path.clone()))?;
+    let names = group
+        .attr_names()
+        .map_err(ReadError::hdf5(group_path.clone()))?;
     let mut summary = Summary::default();
     for name in names {
-        let object = format!("/summary attribute {name}");
+        let object = format!("{group_path} attribute {name}");
         let attr = group.attr(&name).map_err(ReadError::hdf5(&object))?;
         let what = |e: hdf5::Error| ReadError::Hdf5 {
             object: object.clone(),
@@ -416,6 +447,14 @@ fn read_summary(file: &File) -> Result<Summary, ReadError> {
                             .collect();
                     }
                     Some(SummaryText::Cautions) => summary.cautions = Some(text),
+                    Some(SummaryText::Notes) => {
+                        summary.notes = text
+                            .lines()
+                            .map(str::trim)
+                            .filter(|l| !l.is_empty())
+                            .map(str::to_owned)
+                            .collect();
+                    }
                     Some(SummaryText::Assumptions) => {
                         summary.assumptions = text
                             .lines()

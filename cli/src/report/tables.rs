@@ -7,9 +7,10 @@ use serde_json::Value;
 
 use super::escape::esc;
 use super::format::{
-    count, duration, sig, temperature, with_units, Shown, AREA, CONDUCTIVITY, ERODIBILITY, FLOW,
+    count, duration, sig, temperature, with_units, AREA, CONDUCTIVITY, ERODIBILITY, FLOW,
     FORCHHEIMER_BETA, FREQUENCY, HEAD, NUMBER, PRESSURE, SHEAR, SMALL_LENGTH, SPECIFIC_STORAGE,
 };
+use super::input_units::{self, InputUnit};
 use super::read::Run;
 use super::run_letter;
 
@@ -165,7 +166,7 @@ fn input_value(key: &str, v: &Value) -> String {
         Value::Number(n) => {
             let x = n.as_f64().unwrap_or(f64::NAN);
             let name = key.rsplit('.').next().unwrap_or(key);
-            match input_unit(name) {
+            match input_unit(name).or_else(|| input_units::of_path(key)) {
                 Some(InputUnit::Fixed(s)) => with_units(x, &s),
                 Some(InputUnit::Length) if x != 0.0 && x.abs() < 0.1 => {
                     with_units(x, &SMALL_LENGTH)
@@ -189,14 +190,6 @@ fn input_value(key: &str, v: &Value) -> String {
             }
         }
     }
-}
-
-enum InputUnit {
-    Fixed(Shown),
-    Length,
-    Time,
-    Temperature,
-    Count,
 }
 
 fn input_unit(name: &str) -> Option<InputUnit> {
@@ -282,6 +275,27 @@ mod tests {
         assert_eq!(input_value("numerics.cells", &json!(120)), "120");
         assert_eq!(input_value("drive.kind", &json!("sine_head")), "sine_head");
         assert_eq!(input_value("drive.unknown_key", &json!(2.5)), "2.50 (SI)");
+        // Units from the case schema's quantity types, where the names give none. US units
+        // by their exact definitions (US gal = 3.785411784 L, psi = 6894.757 Pa,
+        // lb/ft³ = 16.018463 kg/m³): 2.59 L/s = 41.05 gpm, 10 kPa = 1.450 psi,
+        // 2650 kg/m³ = 165.4 lb/ft³.
+        assert_eq!(
+            input_value("assessment.design_rate", &json!(0.00259)),
+            "2.59 L/s (41.1 gpm)"
+        );
+        assert_eq!(
+            input_value("cake.lift_off.median", &json!(1e4)),
+            "10.0 kPa (1.45 psi)"
+        );
+        assert_eq!(
+            input_value("invaded.fines.grain_density", &json!(2650.0)),
+            "2650 kg/m³ (165 lb/ft³)"
+        );
+        assert_eq!(input_value("drive.strokes", &json!(10)), "10");
+        assert_eq!(
+            input_value("numerics.relative_tolerance", &json!(1e-3)),
+            "0.00100"
+        );
         assert_eq!(input_value("duration", &json!(300)), "300 s (5.00 min)");
         assert_eq!(input_value("drive.offset", &json!(0.0)), "0 m (0 ft)");
         assert_eq!(
@@ -289,6 +303,35 @@ mod tests {
             "0.130 m² (1.39 ft²)"
         );
         assert_eq!(input_value("drive.ramp", &json!(true)), "yes");
+    }
+
+    /// Every numeric input of every shipped case (as resolved, what `case_json` holds) is
+    /// shown with its unit or as a pure number, never as a bare "(SI)" value.
+    #[test]
+    fn every_shipped_input_has_its_unit() {
+        let dir = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("../cases");
+        let mut checked = 0;
+        for entry in std::fs::read_dir(dir).unwrap() {
+            let path = entry.unwrap().path();
+            if path.extension().is_none_or(|e| e != "json") {
+                continue;
+            }
+            let case = crate::case::load_case(&path).unwrap();
+            let mut flat = Vec::new();
+            for (section, v) in case.resolved.as_object().unwrap() {
+                flatten(section, v, &mut flat);
+            }
+            for (k, v) in flat {
+                let shown = input_value(&k, &v);
+                assert!(
+                    !shown.ends_with("(SI)"),
+                    "{}: {k} = {shown}",
+                    path.display()
+                );
+                checked += 1;
+            }
+        }
+        assert!(checked > 100, "{checked}");
     }
 
     #[test]

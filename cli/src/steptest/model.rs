@@ -4,6 +4,7 @@
 //! run (docs/physics.md §25.2).
 
 use crate::case::LoadedCase;
+use crate::output::schema::steptest_json as K;
 use boreflux_solver::assess::{self, StepCoefficients, TestPlan};
 use boreflux_solver::diagnostics::NullObserver;
 use boreflux_solver::slow::SlowState;
@@ -86,7 +87,7 @@ pub fn model_steps(
 
 fn coeff_json(c: &Option<StepCoefficients>) -> Value {
     match c {
-        Some(c) => json!({"B_s_m2": c.b_s_m2, "C_s2_m5": c.c_s2_m5}),
+        Some(c) => json!({(K::AS_BUILT_B.key()): c.b_s_m2, (K::AS_BUILT_C.key()): c.c_s2_m5}),
         None => Value::Null,
     }
 }
@@ -94,11 +95,11 @@ fn coeff_json(c: &Option<StepCoefficients>) -> Value {
 /// JSON of the model's figures.
 pub fn to_json(m: &ModelSteps) -> Value {
     json!({
-        "case_title": m.title,
-        "rates_m3_s": m.rates_m3_s,
-        "step_duration_s": m.step_duration_s,
-        "as_built": coeff_json(&m.before),
-        "after_development": coeff_json(&m.after),
+        (K::CASE_TITLE.key()): m.title,
+        (K::MODEL_RATES.key()): m.rates_m3_s,
+        (K::MODEL_STEP_DURATION.key()): m.step_duration_s,
+        (K::AS_BUILT.key()): coeff_json(&m.before),
+        (K::DEVELOPED.key()): coeff_json(&m.after),
     })
 }
 

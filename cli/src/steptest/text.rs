@@ -1,6 +1,7 @@
 //! The printed table and the JSON document of a step-test analysis.
 
 use super::Outcome;
+use crate::output::schema::{estimate as E, steptest_json as K, JsonKey};
 use boreflux_solver::steptest::{Estimate, Weighting};
 use serde_json::{json, Value};
 
@@ -152,10 +153,10 @@ pub fn table(o: &Outcome) -> String {
     s
 }
 
-fn est_json(e: &Estimate, unit: &str) -> Value {
+fn est_json(e: &Estimate, key: &JsonKey) -> Value {
     json!({
-        "value": e.value, "std_error": e.std_error,
-        "lower": e.lower, "upper": e.upper, "unit": unit,
+        (E::VALUE.key()): e.value, (E::STD_ERROR.key()): e.std_error,
+        (E::LOWER.key()): e.lower, (E::UPPER.key()): e.upper, (E::UNIT.key()): key.unit,
     })
 }
 
@@ -168,60 +169,60 @@ pub fn to_json(o: &Outcome) -> Value {
         .zip(&o.measured_m)
         .map(|(g, m)| {
             json!({
-                "rate_m3_s": g.rate_m3_s,
-                "measured_drawdown_m": m,
-                "fitted_drawdown_m": g.drawdown_m,
-                "drawdown_per_rate_s_m2": g.drawdown_per_rate,
-                "specific_capacity_m2_s": g.specific_capacity,
-                "linear_loss_m": g.linear_loss_m,
-                "nonlinear_loss_m": g.nonlinear_loss_m,
-                "residual_m": g.residual_m,
-                "linear_share": g.efficiency,
-                "nonlinear_share": 1.0 - g.efficiency,
-                "efficiency": g.efficiency,
-                "efficiency_std_error": g.efficiency_std_error,
+                (K::RATE.key()): g.rate_m3_s,
+                (K::MEASURED_DRAWDOWN.key()): m,
+                (K::FITTED_DRAWDOWN.key()): g.drawdown_m,
+                (K::DRAWDOWN_PER_RATE.key()): g.drawdown_per_rate,
+                (K::SPECIFIC_CAPACITY.key()): g.specific_capacity,
+                (K::LINEAR_LOSS.key()): g.linear_loss_m,
+                (K::NONLINEAR_LOSS.key()): g.nonlinear_loss_m,
+                (K::RESIDUAL.key()): g.residual_m,
+                (K::LINEAR_SHARE.key()): g.efficiency,
+                (K::NONLINEAR_SHARE.key()): 1.0 - g.efficiency,
+                (K::EFFICIENCY.key()): g.efficiency,
+                (K::EFFICIENCY_STD_ERROR.key()): g.efficiency_std_error,
             })
         })
         .collect();
     let mut v = json!({
-        "method": o.method,
-        "weighting": weighting_name(f.weighting),
-        "confidence": f.confidence,
-        "dof": f.dof,
-        "t_quantile": f.t_quantile,
-        "B": est_json(&f.b, "s/m2"),
-        "C": est_json(&f.c, "s2/m5"),
-        "cov_BC_s3_m7": f.cov_bc,
-        "residual_std": f.residual_std,
-        "efficiency_definition": EFFICIENCY_DEFINITION,
-        "steps": steps,
+        (K::METHOD.key()): o.method,
+        (K::WEIGHTING.key()): weighting_name(f.weighting),
+        (K::CONFIDENCE.key()): f.confidence,
+        (K::DOF.key()): f.dof,
+        (K::T_QUANTILE.key()): f.t_quantile,
+        (K::B.key()): est_json(&f.b, &K::B),
+        (K::C.key()): est_json(&f.c, &K::C),
+        (K::COV_BC.key()): f.cov_bc,
+        (K::RESIDUAL_STD.key()): f.residual_std,
+        (K::EFFICIENCY_DEFINITION.key()): EFFICIENCY_DEFINITION,
+        (K::STEPS.key()): steps,
     });
     match &o.power {
         None => {}
-        Some(Err(e)) => v["power"] = json!({ "error": e.to_string() }),
+        Some(Err(e)) => v[K::POWER.key()] = json!({ (K::POWER_ERROR.key()): e.to_string() }),
         Some(Ok(p)) => {
-            v["power"] = json!({
-                "law": "s = B Q + C Q^n",
-                "dof": p.dof,
-                "residual_std_m": p.residual_std_m,
-                "n": est_json(&p.n, ""),
-                "B": est_json(&p.b, "s/m2"),
-                "C": est_json(&p.c, "s^n/m^(3n-1)"),
+            v[K::POWER.key()] = json!({
+                (K::POWER_LAW.key()): "s = B Q + C Q^n",
+                (K::POWER_DOF.key()): p.dof,
+                (K::POWER_RESIDUAL_STD.key()): p.residual_std_m,
+                (K::POWER_N.key()): est_json(&p.n, &K::POWER_N),
+                (K::POWER_B.key()): est_json(&p.b, &K::POWER_B),
+                (K::POWER_C.key()): est_json(&p.c, &K::POWER_C),
             })
         }
     }
     if let Some(h) = &o.series {
         let sf = &h.series;
-        v["series"] = json!({
-            "reference_time_s": h.reference_time_s,
-            "readings_used": sf.readings_used,
-            "dof": sf.dof,
-            "residual_std_m": sf.residual_std_m,
-            "a": est_json(&sf.a, "s/m2"),
-            "b": est_json(&sf.b, "s/m2 per log10 cycle"),
-            "C": est_json(&sf.c, "s2/m5"),
-            "B_at_reference": est_json(&h.b_series, "s/m2"),
-            "transmissivity_m2_s": sf.transmissivity_m2_s,
+        v[K::SERIES.key()] = json!({
+            (K::REFERENCE_TIME.key()): h.reference_time_s,
+            (K::READINGS_USED.key()): sf.readings_used,
+            (K::SERIES_DOF.key()): sf.dof,
+            (K::SERIES_RESIDUAL_STD.key()): sf.residual_std_m,
+            (K::SERIES_A.key()): est_json(&sf.a, &K::SERIES_A),
+            (K::SERIES_B.key()): est_json(&sf.b, &K::SERIES_B),
+            (K::SERIES_C.key()): est_json(&sf.c, &K::SERIES_C),
+            (K::B_AT_REFERENCE.key()): est_json(&h.b_series, &K::B_AT_REFERENCE),
+            (K::TRANSMISSIVITY.key()): sf.transmissivity_m2_s,
         });
     }
     v

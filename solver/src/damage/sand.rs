@@ -108,6 +108,51 @@ pub fn retention(g: &Gradation) -> Retention {
     }
 }
 
+/// The sand indicators of a run: the retention criteria of its gradation and the speed of
+/// formation grains at the wall against their settling velocity (criteria 1–3 above).
+#[derive(Debug, Clone, Copy, Default, PartialEq)]
+pub struct Indicators {
+    /// Retention criteria.
+    pub retention: Retention,
+    /// Settling velocity of a formation D50 grain, the critical interstitial velocity at the
+    /// wall, m/s; none without the formation D50.
+    pub critical_velocity_m_s: Option<f64>,
+    /// Largest inward interstitial velocity on the formation side of the wall, m/s.
+    pub wall_velocity_m_s: f64,
+}
+
+impl Indicators {
+    /// Whether the flow at the wall is fast enough to carry formation D50 grains.
+    pub fn grains_move(&self) -> bool {
+        self.critical_velocity_m_s
+            .is_some_and(|w| self.wall_velocity_m_s > w)
+    }
+}
+
+/// The indicators of a run of `model` whose largest inward Darcy flux at the wall was
+/// `peak_inward_flux_m_s`, for grains of specific gravity `specific_gravity`: the
+/// interstitial velocity uses the porosity of the invaded zone, or of the formation.
+pub fn indicators(
+    model: &crate::model::Model,
+    g: &Gradation,
+    specific_gravity: f64,
+    peak_inward_flux_m_s: f64,
+) -> Indicators {
+    let outer = model
+        .invaded
+        .as_ref()
+        .map_or(model.formation.medium, |z| z.medium);
+    let rho = model.fluid.density_kg_m3;
+    let rho_s = specific_gravity * rho;
+    Indicators {
+        retention: retention(g),
+        critical_velocity_m_s: g
+            .formation_d50
+            .map(|d| settling_velocity_m_s(d, rho_s, rho, model.fluid.viscosity_pa_s)),
+        wall_velocity_m_s: peak_inward_flux_m_s / outer.porosity,
+    }
+}
+
 /// True when the pack ratio is above the usual design range but within the coarse
 /// formation allowance (a note, not a warning).
 pub fn pack_ratio_above_typical(r: &Retention) -> bool {

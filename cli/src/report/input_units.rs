@@ -1,0 +1,155 @@
+//! The unit of a case input in the report's Inputs table, from the case file's JSON Schema:
+//! the loader's own types name each input's quantity (`FlowRate`, `Pressure`, …), so an input
+//! the table has no rule for is shown in its unit instead of as a bare SI number.
+
+use std::collections::BTreeMap;
+use std::sync::OnceLock;
+
+use serde_json::{Map, Value};
+
+use super::format::{
+    Shown, AREA, CONDUCTIVITY, DENSITY, ERODIBILITY, FLOW, FORCE, FORCHHEIMER_BETA, FREQUENCY,
+    NUMBER, PER_METRE, PRESSURE, SLOT_VELOCITY, SPECIFIC_STORAGE, VOLUME,
+};
+
+/// How an input is shown.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum InputUnit {
+    /// In a fixed unit.
+    Fixed(Shown),
+    /// A length: mm below 0.1 m, else m.
+    Length,
+    /// A duration.
+    Time,
+    /// A temperature (K and °C).
+    Temperature,
+    /// A whole number.
+    Count,
+}
+
+/// The display of a quantity type of the case schema (`$defs` name); `None` for a type that
+/// is no quantity (an object, a name).
+fn quantity(name: &str) -> Option<InputUnit> {
+    use InputUnit::*;
+    Some(match name {
+        "Length" | "Head" => Length,
+        "Time" | "Seconds" | "DurationValue" => Time,
+        "Temperature" => Temperature,
+        "CellsValue" | "StepsPerCycleValue" => Count,
+        "FlowRate" => Fixed(FLOW),
+        "Pressure" => Fixed(PRESSURE),
+        "Velocity" => Fixed(SLOT_VELOCITY),
+        "Area" => Fixed(AREA),
+        "Volume" => Fixed(VOLUME),
+        "Force" => Fixed(FORCE),
+        "Density" => Fixed(DENSITY),
+        "PerMetre" => Fixed(PER_METRE),
+        "Fraction" | "DischargeCoefficientValue" => Fixed(NUMBER),
+        "Conductivity" => Fixed(CONDUCTIVITY),
+        "SpecificStorage" => Fixed(SPECIFIC_STORAGE),
+        "Frequency" => Fixed(FREQUENCY),
+        "Erodibility" => Fixed(ERODIBILITY),
+        "Beta" => Fixed(FORCHHEIMER_BETA),
+        _ => return None,
+    })
+}
+
+/// Nesting deeper than any case (schedule stages hold drives) is not followed.
+const MAX_DEPTH: usize = 8;
+
+fn walk(
+    defs: &Map<String, Value>,
+    node: &Value,
+    prefix: &str,
+    depth: usize,
+    out: &mut BTreeMap<String, InputUnit>,
+) {
+    if depth > MAX_DEPTH {
+        return;
+    }
+    if let Some(props) = node.get("properties").and_then(Value::as_object) {
+        for (k, v) in props {
+            let path = if prefix.is_empty() {
+                k.clone()
+            } else {
+                format!("{prefix}.{k}")
+            };
+            property(defs, v, &path, depth + 1, out);
+        }
+    }
+    for key in ["oneOf", "anyOf", "allOf"] {
+        for v in node
+            .get(key)
+            .and_then(Value::as_array)
+            .into_iter()
+            .flatten()
+        {
+            walk(defs, v, prefix, depth + 1, out);
+        }
+    }
+}
+
+fn property(
+    defs: &Map<String, Value>,
+    v: &Value,
+    path: &str,
+    depth: usize,
+    out: &mut BTreeMap<String, InputUnit>,
+) {
+    let alternatives = std::iter::once(v).chain(
+        v.get("anyOf")
+            .and_then(Value::as_array)
+            .into_iter()
+            .flatten(),
+    );
+    for alt in alternatives {
+        if let Some(name) = alt
+            .get("$ref")
+            .and_then(Value::as_str)
+            .and_then(|r| r.strip_prefix("#/$defs/"))
+        {
+            match quantity(name) {
+                Some(u) => {
+                    out.entry(path.to_owned()).or_insert(u);
+                }
+                None => {
+                    if let Some(d) = defs.get(name) {
+                        walk(defs, d, path, depth, out);
+                    }
+                }
+            }
+        }
+        // A bare number the loader takes without a unit is a pure number: every input
+        // with a unit has a quantity type above.
+        let is = |ty: &str| match alt.get("type") {
+            Some(Value::String(t)) => t == ty,
+            Some(Value::Array(ts)) => ts.iter().any(|t| t == ty),
+            _ => false,
+        };
+        if is("integer") {
+            out.entry(path.to_owned()).or_insert(InputUnit::Count);
+        } else if is("number") {
+            out.entry(path.to_owned())
+                .or_insert(InputUnit::Fixed(NUMBER));
+        }
+    }
+    walk(defs, v, path, depth, out);
+}
+
+/// The unit of every input path of the case schema (`assessment.design_rate` → flow rate).
+fn table() -> &'static BTreeMap<String, InputUnit> {
+    static TABLE: OnceLock<BTreeMap<String, InputUnit>> = OnceLock::new();
+    TABLE.get_or_init(|| {
+        let schema = crate::case::schema();
+        let mut out = BTreeMap::new();
+        if let Some(defs) = schema.get("$defs").and_then(Value::as_object) {
+            walk(defs, &schema, "", 0, &mut out);
+        }
+        out
+    })
+}
+
+/// The unit of the input at `path` (dotted, as in the Inputs table), from the case schema.
+pub fn of_path(path: &str) -> Option<InputUnit> {
+    table().get(path).copied()
+}
