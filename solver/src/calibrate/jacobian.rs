@@ -2,13 +2,13 @@
 //! threads (each column one model evaluation; nothing shared but the job counter).
 //!
 //! ```text
-//! J_ij ≈ (r_i(u + h_j e_j) − r_i(u)) / h_j,   h_j = step · max(1, |u_j|), signed away from
+//! J_ij ≈ (r_i(u + h_j e_j) − r_i(u)) / h_j,   h_j given per parameter, signed away from
 //! the upper bound when u_j + h_j would leave the box
 //! ```
 //!
-//! The step is in the fit's (transformed) coordinates. With a model whose output carries
+//! The steps are in the fit's (transformed) coordinates. With a model whose output carries
 //! relative noise ε from adaptive time stepping, the error of a column is about
-//! ε/h + h·|r''|; `step` = 1e-3 balances the two for ε ~ 1e-6 (assumption: calibrate).
+//! ε/h + h·|r''|/2; the caller chooses h for its model's ε.
 
 use std::sync::atomic::{AtomicUsize, Ordering};
 use std::sync::Mutex;
@@ -20,7 +20,7 @@ pub fn forward_jacobian<F>(
     u: &[f64],
     r0: &[f64],
     bounds: &[(f64, f64)],
-    step: f64,
+    step: &[f64],
     threads: usize,
 ) -> Option<Vec<Vec<f64>>>
 where
@@ -29,7 +29,7 @@ where
     let n = u.len();
     let steps: Vec<f64> = (0..n)
         .map(|j| {
-            let h = step * u[j].abs().max(1.0);
+            let h = step[j];
             if u[j] + h > bounds[j].1 {
                 -h
             } else {
@@ -80,7 +80,7 @@ mod tests {
         let u = [2.0, 0.7];
         let r0 = f(&u).unwrap();
         let bounds = [(0.0, 10.0), (0.0, 0.7005)];
-        let j = forward_jacobian(&f, &u, &r0, &bounds, 1e-6, 2).unwrap();
+        let j = forward_jacobian(&f, &u, &r0, &bounds, &[1e-6; 2], 2).unwrap();
         for (i, t) in t.iter().enumerate() {
             let e = (-u[1] * t).exp();
             assert!((j[0][i] - e).abs() < 1e-6);
@@ -88,6 +88,8 @@ mod tests {
         }
         // A failed evaluation fails the Jacobian.
         let g = |u: &[f64]| if u[1] > 0.7 { None } else { f(u) };
-        assert!(forward_jacobian(&g, &u, &r0, &[(0.0, 10.0), (0.0, 10.0)], 1e-6, 2).is_none());
+        assert!(
+            forward_jacobian(&g, &u, &r0, &[(0.0, 10.0), (0.0, 10.0)], &[1e-6; 2], 2).is_none()
+        );
     }
 }
