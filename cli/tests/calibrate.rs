@@ -150,3 +150,102 @@ fn a_parameter_that_does_not_act_on_drawdown_is_reported_unconstrained() {
         assert!(lo <= *truth && *truth <= hi, "{j}: {lo} .. {hi}");
     }
 }
+
+fn write_inputs(dir: &std::path::Path) -> (PathBuf, PathBuf) {
+    let case_path = dir.join("well.json");
+    std::fs::write(&case_path, case("3e-4 m/s", "1e-4 1/m").to_string()).unwrap();
+    let clean = truth();
+    let mut rng = Rng(99);
+    let mut csv = String::from("# invented test log\ntime_min,activity,rate_L/s,drawdown_cm\n");
+    for (i, r) in log(&clean).rows.iter().enumerate() {
+        let s = if i == 0 {
+            0.0
+        } else {
+            clean[i] + NOISE_M * rng.normal()
+        };
+        let rate = if r.activity == Activity::Pump {
+            "5"
+        } else {
+            ""
+        };
+        csv.push_str(&format!(
+            "{},{},{rate},{:.1}\n",
+            r.time_s / 60.0,
+            r.activity.word(),
+            100.0 * s
+        ));
+    }
+    let log_path = dir.join("log.csv");
+    std::fs::write(&log_path, csv).unwrap();
+    (case_path, log_path)
+}
+
+#[test]
+fn the_command_writes_json_page_and_calibrated_case_and_refuses_bad_input() {
+    let dir = tempfile::tempdir().unwrap();
+    let (case_path, log_path) = write_inputs(dir.path());
+    let page = dir.path().join("cal.html");
+    let out_case = dir.path().join("calibrated.json");
+    let bin = || assert_cmd::Command::cargo_bin("boreflux").unwrap();
+    let ok = bin()
+        .arg("calibrate")
+        .arg(&case_path)
+        .arg(&log_path)
+        .args(["--free", K, "--free", SS, "--json", "--jobs", "2", "-o"])
+        .arg(&page)
+        .arg("--write-case")
+        .arg(&out_case)
+        .output()
+        .unwrap();
+    assert!(
+        ok.status.success(),
+        "{}",
+        String::from_utf8_lossy(&ok.stderr)
+    );
+    let v: Value = serde_json::from_slice(&ok.stdout).unwrap();
+    assert_eq!(v["converged"], true);
+    let k = v["parameters"][0]["fitted_si"].as_f64().unwrap();
+    let iv = &v["parameters"][0]["interval_si"];
+    assert!(iv[0].as_f64().unwrap() <= k && k <= iv[1].as_f64().unwrap());
+    let html = std::fs::read_to_string(&page).unwrap();
+    assert!(html.contains("Residual against the fitted drawdown") && html.contains("<svg"));
+    // The calibrated case: the input with only the free values changed.
+    let written: Value =
+        serde_json::from_str(&std::fs::read_to_string(&out_case).unwrap()).unwrap();
+    let mut expected = case("3e-4 m/s", "1e-4 1/m");
+    expected["formation"]["conductivity"] = written["formation"]["conductivity"].clone();
+    expected["formation"]["specific_storage"] = written["formation"]["specific_storage"].clone();
+    assert_eq!(written, expected);
+    assert!(written["formation"]["conductivity"]
+        .as_str()
+        .unwrap()
+        .ends_with(" m/s"));
+    // Bad input: exit 2, the message names what is wrong; nothing written.
+    let bad_free = bin()
+        .arg("calibrate")
+        .arg(&case_path)
+        .arg(&log_path)
+        .args(["--free", "formation.conductivity=1e-3 m/s..1e-2 m/s"])
+        .output()
+        .unwrap();
+    assert_eq!(bad_free.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&bad_free.stderr).contains("outside the bounds"));
+    let bad_log = dir.path().join("bad.csv");
+    std::fs::write(
+        &bad_log,
+        "time_min,activity,rate_L/s,drawdown_m\n0,pump,5,0\n10,rest,,1\n",
+    )
+    .unwrap();
+    let fresh = dir.path().join("none.html");
+    let r = bin()
+        .arg("calibrate")
+        .arg(&case_path)
+        .arg(&bad_log)
+        .args(["--free", K, "-o"])
+        .arg(&fresh)
+        .output()
+        .unwrap();
+    assert_eq!(r.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&r.stderr).contains("line 3: the last row ends the log"));
+    assert!(!fresh.exists());
+}

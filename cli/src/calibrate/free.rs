@@ -3,8 +3,8 @@
 //! PATH is a case-file path (`formation.conductivity`, `drive.stages.1.drive.stroke`);
 //! LOW and HIGH are quantities as in the case file (`1e-5 m/s`, `2 mm`) or bare SI numbers.
 //! The start is the case's value. Default scale: log when the path names a conductivity,
-//! a storage, a strength, an erodibility or a pressure (positive quantities spanning
-//! decades), linear otherwise. A fitted value is written back in the unit the case wrote
+//! a storage, a strength, an erodibility, a pressure or a shear, or is the lift-off median
+//! (positive quantities spanning decades), linear otherwise. A fitted value is written back in the unit the case wrote
 //! it in.
 
 use crate::sweep::spec::{set_path, Segment};

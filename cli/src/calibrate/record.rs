@@ -230,11 +230,13 @@ pub fn parse(text: &str) -> Result<DevelopmentLog, String> {
             return Err(format!("line {line}: no time"));
         }
         match rows.last() {
-            None if row.time_s != 0.0 => return Err(format!(
+            None if row.time_s != 0.0 => {
+                return Err(format!(
                 "line {line}: the log starts at time 0 (the well at rest, at the static level), \
                      got {} s",
                 row.time_s
-            )),
+            ))
+            }
             Some(prev) if row.time_s <= prev.time_s => {
                 return Err(format!(
                     "line {line}: time {} s does not increase (line {} has {} s)",
