@@ -309,6 +309,19 @@ pub struct CalibrateArgs {
     /// Confidence level of the intervals.
     #[arg(long, default_value_t = 0.95)]
     pub confidence: f64,
+    /// Field step test before development (one row per step: rate_<unit>,drawdown_<unit>,
+    /// the drawdown at the end of each step), compared with the model's step test on the
+    /// well at the start of the log.
+    #[arg(long, value_name = "CSV")]
+    pub steps_before: Option<PathBuf>,
+    /// Field step test after development, compared with the model's on the well at the end
+    /// of the log.
+    #[arg(long, value_name = "CSV")]
+    pub steps_after: Option<PathBuf>,
+    /// Step duration of the step tests, with a unit ("100 min"); default: the case's
+    /// assessment.step_duration.
+    #[arg(long, value_name = "TIME")]
+    pub step_duration: Option<String>,
     /// Threads for the model runs of the Jacobian (default: all cores).
     #[arg(long)]
     pub jobs: Option<usize>,

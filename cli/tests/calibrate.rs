@@ -90,6 +90,8 @@ fn fit(observed: &[f64], free: &[&str], threads: usize) -> Calibration {
         base_dir: PathBuf::from("."),
         log: log(observed),
         free,
+        steps_before: None,
+        steps_after: None,
         threads,
         confidence: 0.95,
         options: LmOptions::default(),
@@ -248,4 +250,65 @@ fn the_command_writes_json_page_and_calibrated_case_and_refuses_bad_input() {
     assert_eq!(r.status.code(), Some(2));
     assert!(String::from_utf8_lossy(&r.stderr).contains("line 3: the last row ends the log"));
     assert!(!fresh.exists());
+}
+
+#[test]
+fn step_tests_before_and_after_join_the_records() {
+    use boreflux::calibrate::schedule::evaluate_all;
+    use boreflux::calibrate::steps::FieldSteps;
+    let l = log(&[0.0; 16]);
+    let times: Vec<f64> = l.rows.iter().map(|r| r.time_s).collect();
+    let steps = |s: Vec<f64>| FieldSteps {
+        rates_m3_s: vec![2e-3, 4e-3, 6e-3],
+        drawdown_m: s,
+        step_duration_s: 600.0,
+    };
+    let truth_case = scheduled_case(&case("1e-4 m/s", "2e-5 1/m"), &l).unwrap();
+    let blank = steps(vec![0.0; 3]);
+    let clean = evaluate_all(
+        &truth_case,
+        &PathBuf::from("."),
+        &times,
+        Some(&blank),
+        Some(&blank),
+    )
+    .unwrap();
+    assert_eq!((clean.before.len(), clean.after.len()), (3, 3));
+    // Continuous steps: each step's drawdown exceeds the last.
+    assert!(
+        clean.before.windows(2).all(|w| w[1] > w[0]),
+        "{:?}",
+        clean.before
+    );
+    let mut rng = Rng(31);
+    let mut noisy =
+        |v: &[f64]| -> Vec<f64> { v.iter().map(|s| s + NOISE_M * rng.normal()).collect() };
+    let (log_obs, before, after) = (noisy(&clean.log), noisy(&clean.before), noisy(&clean.after));
+    let raw = case("3e-4 m/s", "1e-4 1/m");
+    let c = Problem {
+        free: [K, SS]
+            .iter()
+            .map(|f| parse_free(f, &raw).unwrap())
+            .collect(),
+        raw_case: raw,
+        base_dir: PathBuf::from("."),
+        log: log(&log_obs),
+        steps_before: Some(steps(before.clone())),
+        steps_after: Some(steps(after)),
+        threads: 2,
+        confidence: 0.95,
+        options: LmOptions::default(),
+    }
+    .solve()
+    .unwrap();
+    assert!(c.termination.converged());
+    assert_eq!(c.stats.dof, 16 + 6 - 2);
+    for (j, truth) in [TRUE_K, TRUE_SS].iter().enumerate() {
+        let (lo, hi) = c.params[j].interval.expect("constrained");
+        assert!(lo <= *truth && *truth <= hi, "{j}: {lo} .. {hi}");
+    }
+    // The fitted model's step drawdowns lie within 4 σ of the field's (noise 2 cm).
+    for (f, o) in c.steps[0].fitted_m.iter().zip(&before) {
+        assert!((f - o).abs() < 4.0 * NOISE_M, "{f} vs {o}");
+    }
 }

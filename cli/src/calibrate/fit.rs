@@ -3,7 +3,8 @@
 
 use super::free::Free;
 use super::record::DevelopmentLog;
-use super::schedule::{evaluate, scheduled_case};
+use super::schedule::{evaluate_all, scheduled_case, Modelled};
+use super::steps::FieldSteps;
 use boreflux_solver::calibrate::Scale;
 use boreflux_solver::calibrate::{
     forward_jacobian, minimize, uncertainty, Identifiability, LmOptions, Termination, Uncertainty,
@@ -26,6 +27,10 @@ pub struct Problem {
     pub log: DevelopmentLog,
     /// Free parameters.
     pub free: Vec<Free>,
+    /// Field step test before development (on the well at the log's start).
+    pub steps_before: Option<FieldSteps>,
+    /// Field step test after development (on the well at the log's end).
+    pub steps_after: Option<FieldSteps>,
     /// Threads for the Jacobian's columns.
     pub threads: usize,
     /// Confidence level of the intervals.
@@ -53,6 +58,21 @@ pub struct Fitted {
     pub on_bound: bool,
 }
 
+/// A field step test beside the model's, at the start values and at the fit.
+#[derive(Debug, Clone)]
+pub struct StepComparison {
+    /// "before" or "after".
+    pub label: &'static str,
+    /// Rates, m³/s.
+    pub rates_m3_s: Vec<f64>,
+    /// Field drawdown at the end of each step, m.
+    pub observed_m: Vec<f64>,
+    /// Model, start values, m.
+    pub start_m: Vec<f64>,
+    /// Model, fitted values, m.
+    pub fitted_m: Vec<f64>,
+}
+
 /// The result of a calibration.
 #[derive(Debug, Clone)]
 pub struct Calibration {
@@ -68,6 +88,8 @@ pub struct Calibration {
     pub start_m: Vec<f64>,
     /// Modelled drawdown with the fitted values, m.
     pub fitted_m: Vec<f64>,
+    /// Step tests compared (label "before"/"after", rates m³/s, observed, start, fitted, m).
+    pub steps: Vec<StepComparison>,
     /// Residual sum of squares at the fit, m².
     pub ssr: f64,
     /// Why the iteration stopped.
@@ -94,17 +116,28 @@ impl Problem {
         let scheduled = scheduled_case(&self.raw_case, &self.log)?;
         let readings = self.log.readings();
         let times: Vec<f64> = readings.iter().map(|r| r.0).collect();
-        let observed: Vec<f64> = readings.iter().map(|r| r.1).collect();
+        let log_observed: Vec<f64> = readings.iter().map(|r| r.1).collect();
+        let (before, after) = (self.steps_before.as_ref(), self.steps_after.as_ref());
+        let observed = Modelled {
+            log: log_observed.clone(),
+            before: before.map_or_else(Vec::new, |f| f.drawdown_m.clone()),
+            after: after.map_or_else(Vec::new, |f| f.drawdown_m.clone()),
+        };
+        let observed_all = observed.all();
         let runs = AtomicUsize::new(0);
-        let model = |u: &[f64]| -> Result<Vec<f64>, String> {
+        let model = |u: &[f64]| -> Result<Modelled, String> {
             runs.fetch_add(1, Ordering::Relaxed);
             let c = self.case_with(&scheduled, u)?;
-            evaluate(&c, &self.base_dir, &times)
+            evaluate_all(&c, &self.base_dir, &times, before, after)
         };
         let residual = |u: &[f64]| -> Option<Vec<f64>> {
-            model(u)
-                .ok()
-                .map(|s| s.iter().zip(&observed).map(|(m, o)| m - o).collect())
+            model(u).ok().map(|s| {
+                s.all()
+                    .iter()
+                    .zip(&observed_all)
+                    .map(|(m, o)| m - o)
+                    .collect()
+            })
         };
         let bounds: Vec<(f64, f64)> = self.free.iter().map(|f| f.param.fit_bounds()).collect();
         let u0: Vec<f64> = self.free.iter().map(|f| f.param.to_fit(f.start)).collect();
@@ -113,7 +146,7 @@ impl Problem {
         // the range) for a linear one. The scheduled case's time-stepping tolerance
         // (relative 1e-5) keeps the model's noise near 1e-5, 1e-3 of these steps
         // (assumption: calibrate).
-        let steps: Vec<f64> = self
+        let fd_steps: Vec<f64> = self
             .free
             .iter()
             .zip(&bounds)
@@ -122,8 +155,9 @@ impl Problem {
                 Scale::Linear => FD_STEP * f.start.abs().max(1e-2 * (hi - lo)),
             })
             .collect();
-        let jac =
-            |u: &[f64], r: &[f64]| forward_jacobian(&residual, u, r, &bounds, &steps, self.threads);
+        let jac = |u: &[f64], r: &[f64]| {
+            forward_jacobian(&residual, u, r, &bounds, &fd_steps, self.threads)
+        };
         let out =
             minimize(&residual, jac, &u0, &bounds, &self.options).map_err(|e| e.to_string())?;
         let stats = uncertainty(&out.jacobian, out.ssr, &bounds, self.confidence);
@@ -151,20 +185,43 @@ impl Problem {
                 }
             })
             .collect();
-        let fitted_m: Vec<f64> = out
+        let fitted_all: Vec<f64> = out
             .residuals
             .iter()
-            .zip(&observed)
+            .zip(&observed_all)
             .map(|(r, o)| r + o)
             .collect();
+        let n_log = log_observed.len();
+        let n_before = observed.before.len();
+        let fitted_m = fitted_all[..n_log].to_vec();
+        let mut steps = Vec::new();
+        if let Some(f) = before {
+            steps.push(StepComparison {
+                label: "before",
+                rates_m3_s: f.rates_m3_s.clone(),
+                observed_m: f.drawdown_m.clone(),
+                start_m: start_m.before.clone(),
+                fitted_m: fitted_all[n_log..n_log + n_before].to_vec(),
+            });
+        }
+        if let Some(f) = after {
+            steps.push(StepComparison {
+                label: "after",
+                rates_m3_s: f.rates_m3_s.clone(),
+                observed_m: f.drawdown_m.clone(),
+                start_m: start_m.after.clone(),
+                fitted_m: fitted_all[n_log + n_before..].to_vec(),
+            });
+        }
         let case = self.case_with(&self.raw_case, &out.u)?;
         Ok(Calibration {
             params,
             stats,
             times_s: times,
-            observed_m: observed,
-            start_m,
+            observed_m: log_observed,
+            start_m: start_m.log,
             fitted_m,
+            steps,
             ssr: out.ssr,
             termination: out.termination,
             iterations: out.iterations,

@@ -7,4 +7,5 @@ pub mod fit;
 pub mod free;
 pub mod record;
 pub mod schedule;
+pub mod steps;
 pub mod text;

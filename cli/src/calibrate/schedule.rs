@@ -5,7 +5,9 @@
 //! (at t = 0 the well is at rest: s = 0).
 
 use super::record::{Activity, DevelopmentLog};
+use super::steps::{modelled, FieldSteps};
 use crate::case::{parse_case, LoadedCase};
+use boreflux_solver::slow::SlowState;
 use boreflux_solver::{run, Reporting, StepObserver, StepView};
 use serde_json::{json, Value};
 use std::path::Path;
@@ -88,8 +90,12 @@ impl StepObserver for Readings<'_> {
     }
 }
 
-/// The modelled drawdown at `times` for a loaded (scheduled) case.
-pub fn modelled_drawdown(case: &LoadedCase, times: &[f64]) -> Result<Vec<f64>, String> {
+/// The modelled drawdown at `times` for a loaded (scheduled) case, and the well's slow
+/// state at the end of the log.
+pub fn modelled_drawdown(
+    case: &LoadedCase,
+    times: &[f64],
+) -> Result<(Vec<f64>, SlowState), String> {
     let h0 = case.model.drive.initial_well_head_m();
     let mut obs = Readings {
         times,
@@ -101,17 +107,61 @@ pub fn modelled_drawdown(case: &LoadedCase, times: &[f64]) -> Result<Vec<f64>, S
         obs.heads[obs.next] = h0;
         obs.next += 1;
     }
-    run(&case.model, &mut obs, Reporting { every: 1 })
+    let summary = run(&case.model, &mut obs, Reporting { every: 1 })
         .map_err(|e| format!("simulation failed: {e}"))?;
     if obs.heads.iter().any(|h| !h.is_finite()) {
         return Err("the run ended before the last reading".into());
     }
-    Ok(obs.heads.iter().map(|h| -h).collect())
+    Ok((obs.heads.iter().map(|h| -h).collect(), summary.final_state))
+}
+
+/// What the model gives for the records: the log's drawdowns, and the end-of-step
+/// drawdowns of the step tests before and after (empty when not given).
+#[derive(Debug, Clone, Default)]
+pub struct Modelled {
+    /// At the log's readings, m.
+    pub log: Vec<f64>,
+    /// Step test before development, m.
+    pub before: Vec<f64>,
+    /// Step test after development, m.
+    pub after: Vec<f64>,
+}
+
+impl Modelled {
+    /// All values in one vector: log, before, after.
+    pub fn all(&self) -> Vec<f64> {
+        let mut v = self.log.clone();
+        v.extend(&self.before);
+        v.extend(&self.after);
+        v
+    }
+}
+
+/// Builds the case from its JSON and runs it on the log, then the step tests on the well at
+/// the start and at the end of the log.
+pub fn evaluate_all(
+    case_json: &Value,
+    base_dir: &Path,
+    times: &[f64],
+    before: Option<&FieldSteps>,
+    after: Option<&FieldSteps>,
+) -> Result<Modelled, String> {
+    let case =
+        parse_case(&case_json.to_string(), base_dir).map_err(|e| format!("case not valid: {e}"))?;
+    let (log, end) = modelled_drawdown(&case, times)?;
+    let m = &case.model;
+    let before = match before {
+        Some(f) => modelled(m, &SlowState::new(m), f)?,
+        None => Vec::new(),
+    };
+    let after = match after {
+        Some(f) => modelled(m, &end, f)?,
+        None => Vec::new(),
+    };
+    Ok(Modelled { log, before, after })
 }
 
 /// Builds the case from its JSON and runs it: modelled drawdown at `times`.
 pub fn evaluate(case_json: &Value, base_dir: &Path, times: &[f64]) -> Result<Vec<f64>, String> {
-    let case =
-        parse_case(&case_json.to_string(), base_dir).map_err(|e| format!("case not valid: {e}"))?;
-    modelled_drawdown(&case, times)
+    evaluate_all(case_json, base_dir, times, None, None).map(|m| m.log)
 }

@@ -16,8 +16,13 @@ fn interval_text(c: &Calibration, j: usize) -> String {
 pub fn table(c: &Calibration, confidence: f64) -> String {
     let mut s = String::new();
     s.push_str(&format!(
-        "Calibration to {} drawdown readings: {} ({} iterations, {} model runs)\n",
+        "Calibration to {} drawdown readings{}: {} ({} iterations, {} model runs)\n",
         c.observed_m.len(),
+        if c.steps.is_empty() {
+            String::new()
+        } else {
+            format!(" and {} step test(s)", c.steps.len())
+        },
         if c.termination.converged() {
             "converged"
         } else {
@@ -74,6 +79,22 @@ pub fn table(c: &Calibration, confidence: f64) -> String {
             s.push('\n');
         }
     }
+    for st in &c.steps {
+        s.push_str(&format!(
+            "\nstep test {}: rate (L/s), drawdown at the end of the step (m): field, model with \
+             the case's values, model fitted\n",
+            st.label
+        ));
+        for k in 0..st.rates_m3_s.len() {
+            s.push_str(&format!(
+                "  {:>9}  {:>9}  {:>9}  {:>9}\n",
+                sig(st.rates_m3_s[k] * 1e3),
+                sig(st.observed_m[k]),
+                sig(st.start_m[k]),
+                sig(st.fitted_m[k])
+            ));
+        }
+    }
     s.push_str(
         "\nIntervals are from the Jacobian (linearised) and hold only if the model is right and \
          the reading errors are independent with one spread. Check the residuals before \
@@ -117,6 +138,13 @@ pub fn to_json(c: &Calibration, confidence: f64) -> Value {
             "on_bound": p.on_bound,
         })).collect::<Vec<_>>(),
         "correlation": c.stats.correlation,
+        "step_tests": c.steps.iter().map(|st| json!({
+            "when": st.label,
+            "rate_m3_s": st.rates_m3_s,
+            "observed_m": st.observed_m,
+            "start_m": st.start_m.iter().map(|v| num(*v)).collect::<Vec<_>>(),
+            "fitted_m": st.fitted_m.iter().map(|v| num(*v)).collect::<Vec<_>>(),
+        })).collect::<Vec<_>>(),
         "readings": {
             "time_s": c.times_s,
             "observed_m": c.observed_m,

@@ -6,9 +6,11 @@ use super::outputs::{check_output, refuse_inputs};
 use super::{print_out, Failure};
 use crate::args::CalibrateArgs;
 use crate::calibrate::fit::{base_dir, Problem};
+use crate::calibrate::steps::{self, FieldSteps};
 use crate::calibrate::{free, record, text};
 use crate::case::{read_case_json, read_limited, MAX_CASE_BYTES};
 use crate::output::TempTarget;
+use crate::units::{parse_quantity, Quantity};
 use anyhow::anyhow;
 use boreflux_solver::calibrate::LmOptions;
 use std::path::Path;
@@ -22,7 +24,8 @@ fn write_file(path: &Path, bytes: &[u8]) -> Result<(), Failure> {
 
 /// Runs the command.
 pub fn calibrate(a: &CalibrateArgs) -> Result<(), Failure> {
-    let inputs = [a.case.clone(), a.log.clone()];
+    let mut inputs = vec![a.case.clone(), a.log.clone()];
+    inputs.extend(a.steps_before.iter().chain(&a.steps_after).cloned());
     for (out, flag) in [(&a.output, "-o"), (&a.write_case, "--write-case")] {
         if let Some(out) = out {
             refuse_inputs(&[(out, flag)], &inputs).map_err(Failure::Input)?;
@@ -40,8 +43,31 @@ pub fn calibrate(a: &CalibrateArgs) -> Result<(), Failure> {
     let raw = read_case_json(&case_text)
         .map_err(|e| Failure::Input(anyhow!("{}: {e}", a.case.display())))?;
     // The case must load as it stands (errors name its fields) before anything is fitted.
-    crate::case::parse_case(&case_text, &base_dir(&a.case))
+    let loaded = crate::case::parse_case(&case_text, &base_dir(&a.case))
         .map_err(|e| Failure::Input(anyhow!("{}: {e}", a.case.display())))?;
+    let step_duration_s = match &a.step_duration {
+        None => loaded.assessment.step_duration_s,
+        Some(t) => {
+            let v = parse_quantity(&serde_json::Value::String(t.clone()), Quantity::Time)
+                .map_err(|e| Failure::Input(anyhow!("--step-duration: {e}")))?;
+            if !(v > 0.0 && v.is_finite()) {
+                return Err(Failure::Input(anyhow!(
+                    "--step-duration: {t} must be a time above zero"
+                )));
+            }
+            v
+        }
+    };
+    let read_steps = |p: &Option<std::path::PathBuf>| -> Result<Option<FieldSteps>, Failure> {
+        let Some(p) = p else { return Ok(None) };
+        let text = read_limited(p, MAX_CASE_BYTES, "step-test file")
+            .map_err(|e| Failure::Input(anyhow!("{e}")))?;
+        steps::read_steps(&text, step_duration_s)
+            .map(Some)
+            .map_err(|e| Failure::Input(anyhow!("{}: {e}", p.display())))
+    };
+    let steps_before = read_steps(&a.steps_before)?;
+    let steps_after = read_steps(&a.steps_after)?;
     let log_text = read_limited(&a.log, MAX_CASE_BYTES, "development log")
         .map_err(|e| Failure::Input(anyhow!("{e}")))?;
     let log = record::parse(&log_text)
@@ -60,6 +86,8 @@ pub fn calibrate(a: &CalibrateArgs) -> Result<(), Failure> {
         base_dir: base_dir(&a.case),
         log,
         free,
+        steps_before,
+        steps_after,
         threads,
         confidence: a.confidence,
         options: LmOptions {

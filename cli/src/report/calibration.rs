@@ -210,6 +210,28 @@ pub fn page(c: &Calibration, log: &DevelopmentLog, source: &str, confidence: f64
         }
         h.push_str("</tbody></table>\n");
     }
+    for st in &c.steps {
+        let _ = write!(
+            h,
+            "<h2>Step test {}</h2>\n<p>Drawdown at the end of each step: the field test, and \
+             the model's step test at the same rates and step length on the well at the {} of \
+             the log.</p>\n<table><thead><tr><th>rate [L/s]</th><th>field [m]</th><th>model, \
+             case's values [m]</th><th>model, fitted [m]</th></tr></thead><tbody>\n",
+            st.label,
+            if st.label == "before" { "start" } else { "end" }
+        );
+        for k in 0..st.rates_m3_s.len() {
+            let _ = writeln!(
+                h,
+                "<tr><td>{}</td><td>{}</td><td>{}</td><td>{}</td></tr>",
+                sig(st.rates_m3_s[k] * 1e3),
+                sig(st.observed_m[k]),
+                sig(st.start_m[k]),
+                sig(st.fitted_m[k])
+            );
+        }
+        h.push_str("</tbody></table>\n");
+    }
     let (res_t, res_s) = residual_charts(c);
     let _ = write!(
         h,
