@@ -322,6 +322,11 @@ pub struct CalibrateArgs {
     /// assessment.step_duration.
     #[arg(long, value_name = "TIME")]
     pub step_duration: Option<String>,
+    /// Also compute profile intervals (each side: the others refitted with the parameter
+    /// held, until the residual sum of squares reaches the F-test threshold); costs many
+    /// more model runs. Where they differ from the Jacobian intervals, believe the profile.
+    #[arg(long)]
+    pub profile: bool,
     /// Threads for the model runs of the Jacobian (default: all cores).
     #[arg(long)]
     pub jobs: Option<usize>,

@@ -95,6 +95,7 @@ fn fit(observed: &[f64], free: &[&str], threads: usize) -> Calibration {
         threads,
         confidence: 0.95,
         options: LmOptions::default(),
+        profile: false,
     }
     .solve()
     .unwrap()
@@ -298,6 +299,7 @@ fn step_tests_before_and_after_join_the_records() {
         threads: 2,
         confidence: 0.95,
         options: LmOptions::default(),
+        profile: false,
     }
     .solve()
     .unwrap();
@@ -310,5 +312,46 @@ fn step_tests_before_and_after_join_the_records() {
     // The fitted model's step drawdowns lie within 4 σ of the field's (noise 2 cm).
     for (f, o) in c.steps[0].fitted_m.iter().zip(&before) {
         assert!((f - o).abs() < 4.0 * NOISE_M, "{f} vs {o}");
+    }
+}
+
+#[test]
+fn profile_intervals_bracket_the_fit_and_match_the_jacobian_where_the_model_is_near_linear() {
+    let clean = truth();
+    let mut rng = Rng(5);
+    let noisy: Vec<f64> = clean.iter().map(|s| s + NOISE_M * rng.normal()).collect();
+    let raw = case("3e-4 m/s", "1e-4 1/m");
+    let c = Problem {
+        free: [K, SS]
+            .iter()
+            .map(|f| parse_free(f, &raw).unwrap())
+            .collect(),
+        raw_case: raw,
+        base_dir: PathBuf::from("."),
+        log: log(&noisy),
+        steps_before: None,
+        steps_after: None,
+        threads: 2,
+        confidence: 0.95,
+        options: LmOptions::default(),
+        profile: true,
+    }
+    .solve()
+    .unwrap();
+    for p in &c.params {
+        let (Some(lo), Some(hi)) = p.profile.unwrap() else {
+            panic!("{:?}", p.profile)
+        };
+        let (jlo, jhi) = p.interval.unwrap();
+        eprintln!(
+            "{}: profile {lo:e} .. {hi:e}, Jacobian {jlo:e} .. {jhi:e}",
+            p.name
+        );
+        assert!(lo < p.value && p.value < hi);
+        // Drawdown is close to linear in ln K and ln Ss over a few per cent (Cooper–Jacob:
+        // s ∝ (1/K)·ln(2.25 K t / (r² Ss))), so the two intervals agree to a fraction of
+        // their width; the bisection resolves 1/64 of a bracket.
+        let w = (jhi / jlo).ln();
+        assert!((lo / jlo).ln().abs() < 0.25 * w && (hi / jhi).ln().abs() < 0.25 * w);
     }
 }

@@ -7,7 +7,8 @@ use super::schedule::{evaluate_all, scheduled_case, Modelled};
 use super::steps::FieldSteps;
 use boreflux_solver::calibrate::Scale;
 use boreflux_solver::calibrate::{
-    forward_jacobian, minimize, uncertainty, Identifiability, LmOptions, Termination, Uncertainty,
+    forward_jacobian, minimize, profile_interval, uncertainty, Identifiability, LmOptions, Side,
+    Termination, Uncertainty,
 };
 use serde_json::Value;
 use std::path::{Path, PathBuf};
@@ -37,6 +38,8 @@ pub struct Problem {
     pub confidence: f64,
     /// Fit settings.
     pub options: LmOptions,
+    /// Also compute profile intervals of the constrained parameters.
+    pub profile: bool,
 }
 
 /// One fitted parameter, SI.
@@ -52,6 +55,9 @@ pub struct Fitted {
     pub interval: Option<(f64, f64)>,
     /// Standard error in the fit coordinates (ln x for a log scale).
     pub std_error_fit: Option<f64>,
+    /// Profile interval (None when not computed); a side is None when the records do not
+    /// bound it within the allowed range, NaN when a refit failed.
+    pub profile: Option<(Option<f64>, Option<f64>)>,
     /// What the records say about it.
     pub status: Identifiability,
     /// Whether the fit stopped on a bound.
@@ -161,6 +167,35 @@ impl Problem {
         let out =
             minimize(&residual, jac, &u0, &bounds, &self.options).map_err(|e| e.to_string())?;
         let stats = uncertainty(&out.jacobian, out.ssr, &bounds, self.confidence);
+        let profiles: Vec<Option<(Option<f64>, Option<f64>)>> = (0..self.free.len())
+            .map(|j| {
+                let h = stats.half_width[j]?;
+                if !self.profile {
+                    return None;
+                }
+                let nu = stats.dof as f64;
+                let factor = 1.0 + stats.t * stats.t / nu;
+                let (lo, hi) = profile_interval(
+                    &residual,
+                    &out.u,
+                    out.ssr,
+                    j,
+                    h,
+                    factor,
+                    &bounds,
+                    &fd_steps,
+                    self.threads,
+                    &self.options,
+                );
+                let f = &self.free[j].param;
+                let map = |s: Side| match s {
+                    Side::At(u) => Some(f.from_fit(u)),
+                    Side::Open => None,
+                    Side::Failed => Some(f64::NAN),
+                };
+                Some((map(lo), map(hi)))
+            })
+            .collect();
         let params = self
             .free
             .iter()
@@ -179,6 +214,7 @@ impl Problem {
                         )
                     }),
                     std_error_fit: stats.std_error[j],
+                    profile: profiles[j],
                     status: stats.status[j],
                     on_bound: (out.u[j] - lo).abs() <= 1e-9 * span
                         || (hi - out.u[j]).abs() <= 1e-9 * span,

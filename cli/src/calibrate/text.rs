@@ -4,6 +4,22 @@ use super::fit::Calibration;
 use crate::steptest::text::sig;
 use serde_json::{json, Value};
 
+fn side(v: Option<f64>, open: &str) -> String {
+    match v {
+        Some(v) if v.is_nan() => "refit failed".into(),
+        Some(v) => sig(v),
+        None => open.into(),
+    }
+}
+
+/// The profile interval as text, "" when not computed.
+pub fn profile_text(c: &Calibration, j: usize) -> String {
+    match c.params[j].profile {
+        Some((lo, hi)) => format!("{} .. {}", side(lo, "(bound)"), side(hi, "(bound)")),
+        None => String::new(),
+    }
+}
+
 fn interval_text(c: &Calibration, j: usize) -> String {
     let p = &c.params[j];
     match p.interval {
@@ -56,6 +72,9 @@ pub fn table(c: &Calibration, confidence: f64) -> String {
         let mut status = p.status.describe().to_owned();
         if p.on_bound {
             status.push_str("; ON A BOUND: the optimum may lie outside the bounds");
+        }
+        if p.profile.is_some() {
+            status.push_str(&format!("; profile interval {}", profile_text(c, j)));
         }
         s.push_str(&format!(
             "{:<w$}  {:>11}  {:>11}  {:<27}  {}\n",
@@ -133,6 +152,7 @@ pub fn to_json(c: &Calibration, confidence: f64) -> Value {
             "fitted_si": num(p.value),
             "interval_si": p.interval.map(|(a, b)| json!([a, b])),
             "std_error_fit": p.std_error_fit,
+            "profile_interval_si": p.profile.map(|(lo, hi)| json!([lo.map(num), hi.map(num)])),
             "constrained": p.status.constrained(),
             "status": p.status.describe(),
             "on_bound": p.on_bound,

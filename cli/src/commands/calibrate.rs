@@ -94,6 +94,7 @@ pub fn calibrate(a: &CalibrateArgs) -> Result<(), Failure> {
             max_evaluations: a.max_runs,
             ..LmOptions::default()
         },
+        profile: a.profile,
     };
     let cal = problem
         .solve()

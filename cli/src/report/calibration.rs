@@ -167,13 +167,19 @@ pub fn page(c: &Calibration, log: &DevelopmentLog, source: &str, confidence: f64
          (SI)</th><th>fitted (SI)</th><th>{pct:.0} % interval (SI)</th><th>what the records \
          say</th></tr></thead><tbody>\n"
     );
-    for p in &c.params {
+    for (j, p) in c.params.iter().enumerate() {
         let interval = p.interval.map_or("—".to_owned(), |(a, b)| {
             format!("{} to {}", sig(a), sig(b))
         });
         let mut status = p.status.describe().to_owned();
         if p.on_bound {
             status.push_str("; on a bound: the optimum may lie outside the bounds");
+        }
+        if p.profile.is_some() {
+            status.push_str(&format!(
+                "; profile interval {}",
+                crate::calibrate::text::profile_text(c, j)
+            ));
         }
         let _ = writeln!(
             h,

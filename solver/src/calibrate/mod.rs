@@ -8,9 +8,11 @@
 pub mod jacobian;
 pub mod lm;
 pub mod param;
+pub mod profile;
 pub mod stats;
 
 pub use jacobian::forward_jacobian;
 pub use lm::{minimize, LmOptions, LmOutcome, Termination};
 pub use param::{FreeParameter, Scale};
+pub use profile::{profile_interval, Side};
 pub use stats::{uncertainty, Identifiability, Uncertainty};

@@ -143,7 +143,8 @@ pub fn uncertainty(
     for (a, &j) in active.iter().enumerate() {
         let se = (s2 * sol.xtx_inv[a * p + a]).sqrt();
         let range = bounds[j].1 - bounds[j].0;
-        if out.t * se > range {
+        // The interval û ± t·se is wider than the whole allowed range.
+        if 2.0 * out.t * se > range {
             out.status[j] = Identifiability::Flat;
             continue;
         }
