@@ -5,11 +5,11 @@ use super::free::Free;
 use super::record::DevelopmentLog;
 use super::schedule::{evaluate_all, scheduled_case, Modelled};
 use super::steps::FieldSteps;
-use boreflux_solver::calibrate::Scale;
 use boreflux_solver::calibrate::{
     forward_jacobian, minimize, profile_interval, uncertainty, Identifiability, LmOptions, Side,
     Termination, Uncertainty,
 };
+use boreflux_solver::calibrate::{Scale, Setup};
 use serde_json::Value;
 use std::path::{Path, PathBuf};
 use std::sync::atomic::{AtomicUsize, Ordering};
@@ -167,6 +167,12 @@ impl Problem {
         let out =
             minimize(&residual, jac, &u0, &bounds, &self.options).map_err(|e| e.to_string())?;
         let stats = uncertainty(&out.jacobian, out.ssr, &bounds, self.confidence);
+        let setup = Setup {
+            bounds: &bounds,
+            steps: &fd_steps,
+            threads: self.threads,
+            options: &self.options,
+        };
         let profiles: Vec<Option<(Option<f64>, Option<f64>)>> = (0..self.free.len())
             .map(|j| {
                 let h = stats.half_width[j]?;
@@ -175,18 +181,7 @@ impl Problem {
                 }
                 let nu = stats.dof as f64;
                 let factor = 1.0 + stats.t * stats.t / nu;
-                let (lo, hi) = profile_interval(
-                    &residual,
-                    &out.u,
-                    out.ssr,
-                    j,
-                    h,
-                    factor,
-                    &bounds,
-                    &fd_steps,
-                    self.threads,
-                    &self.options,
-                );
+                let (lo, hi) = profile_interval(&residual, &out.u, out.ssr, j, h, factor, &setup);
                 let f = &self.free[j].param;
                 let map = |s: Side| match s {
                     Side::At(u) => Some(f.from_fit(u)),

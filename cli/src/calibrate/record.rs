@@ -246,7 +246,7 @@ pub fn parse(text: &str) -> Result<DevelopmentLog, String> {
             _ => {}
         }
         if row.activity == Activity::Pump {
-            if !(row.rate_m3_s > 0.0) {
+            if row.rate_m3_s.is_nan() || row.rate_m3_s <= 0.0 {
                 return Err(format!("line {line}: a pump row needs a rate above zero"));
             }
         } else {

@@ -14,5 +14,5 @@ pub mod stats;
 pub use jacobian::forward_jacobian;
 pub use lm::{minimize, LmOptions, LmOutcome, Termination};
 pub use param::{FreeParameter, Scale};
-pub use profile::{profile_interval, Side};
+pub use profile::{profile_interval, Setup, Side};
 pub use stats::{uncertainty, Identifiability, Uncertainty};

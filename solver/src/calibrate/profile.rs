@@ -15,6 +15,20 @@
 use super::jacobian::forward_jacobian;
 use super::lm::{minimize, LmOptions};
 
+/// What every refit of a profile uses: bounds and difference steps (fit coordinates),
+/// threads for the Jacobian, LM settings.
+#[derive(Debug, Clone, Copy)]
+pub struct Setup<'a> {
+    /// Bounds of every parameter.
+    pub bounds: &'a [(f64, f64)],
+    /// Difference steps of every parameter.
+    pub steps: &'a [f64],
+    /// Threads for the Jacobian's columns.
+    pub threads: usize,
+    /// LM settings of the refits.
+    pub options: &'a LmOptions,
+}
+
 /// One side of a profile interval.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub enum Side {
@@ -27,19 +41,16 @@ pub enum Side {
 }
 
 /// The best ‖r‖² with parameter `j` held at `uj`, the others refitted from `u_hat`.
-fn held<F>(
-    residual: &F,
-    u_hat: &[f64],
-    j: usize,
-    uj: f64,
-    bounds: &[(f64, f64)],
-    steps: &[f64],
-    threads: usize,
-    opts: &LmOptions,
-) -> Option<f64>
+fn held<F>(residual: &F, u_hat: &[f64], j: usize, uj: f64, setup: &Setup<'_>) -> Option<f64>
 where
     F: Fn(&[f64]) -> Option<Vec<f64>> + Sync,
 {
+    let Setup {
+        bounds,
+        steps,
+        threads,
+        options: opts,
+    } = *setup;
     let n = u_hat.len();
     let full = |v: &[f64]| -> Vec<f64> {
         let mut u = Vec::with_capacity(n);
@@ -71,7 +82,6 @@ where
 }
 
 /// Both sides of the profile interval of parameter `j` (fit coordinates).
-#[allow(clippy::too_many_arguments)]
 pub fn profile_interval<F>(
     residual: &F,
     u_hat: &[f64],
@@ -79,15 +89,13 @@ pub fn profile_interval<F>(
     j: usize,
     half_width: f64,
     threshold_factor: f64,
-    bounds: &[(f64, f64)],
-    steps: &[f64],
-    threads: usize,
-    opts: &LmOptions,
+    setup: &Setup<'_>,
 ) -> (Side, Side)
 where
     F: Fn(&[f64]) -> Option<Vec<f64>> + Sync,
 {
     let target = ssr_min * threshold_factor;
+    let bounds = setup.bounds;
     let side = |dir: f64| -> Side {
         let limit = if dir < 0.0 { bounds[j].0 } else { bounds[j].1 };
         let mut inside = u_hat[j];
@@ -99,7 +107,7 @@ where
             } else {
                 trial.min(limit)
             };
-            let Some(s) = held(residual, u_hat, j, clamped, bounds, steps, threads, opts) else {
+            let Some(s) = held(residual, u_hat, j, clamped, setup) else {
                 return Side::Failed;
             };
             if s > target {
@@ -107,7 +115,7 @@ where
                 let (mut a, mut b) = (inside, clamped);
                 for _ in 0..6 {
                     let mid = 0.5 * (a + b);
-                    match held(residual, u_hat, j, mid, bounds, steps, threads, opts) {
+                    match held(residual, u_hat, j, mid, setup) {
                         Some(sm) if sm > target => b = mid,
                         Some(_) => a = mid,
                         None => return Side::Failed,
@@ -160,8 +168,13 @@ mod tests {
         let factor = 1.0 + u.t * u.t / nu;
         for j in 0..2 {
             let h = u.half_width[j].unwrap();
-            let (lo, hi) =
-                profile_interval(&r, &fit.u, fit.ssr, j, h, factor, &bounds, &steps, 1, &opts);
+            let setup = Setup {
+                bounds: &bounds,
+                steps: &steps,
+                threads: 1,
+                options: &opts,
+            };
+            let (lo, hi) = profile_interval(&r, &fit.u, fit.ssr, j, h, factor, &setup);
             let (Side::At(lo), Side::At(hi)) = (lo, hi) else {
                 panic!("{lo:?} {hi:?}")
             };
@@ -189,10 +202,12 @@ mod tests {
             1,
             u.half_width[1].unwrap(),
             factor,
-            &tight,
-            &steps,
-            1,
-            &opts,
+            &Setup {
+                bounds: &tight,
+                steps: &steps,
+                threads: 1,
+                options: &opts,
+            },
         );
         assert_eq!(hi, Side::Open);
     }

@@ -103,7 +103,8 @@ pub fn uncertainty(
     };
     for j in 0..n {
         let range = bounds[j].1 - bounds[j].0;
-        if !(norms[j] * range >= sigma_all) && sigma_all.is_finite() {
+        let effect = norms[j] * range;
+        if sigma_all.is_finite() && (effect.is_nan() || effect < sigma_all) {
             status[j] = Identifiability::NoEffect;
         }
     }
