@@ -309,9 +309,9 @@ pub struct CalibrateArgs {
     /// Confidence level of the intervals.
     #[arg(long, default_value_t = 0.95)]
     pub confidence: f64,
-    /// Field step test before development (one row per step: rate_<unit>,drawdown_<unit>,
-    /// the drawdown at the end of each step), compared with the model's step test on the
-    /// well at the start of the log.
+    /// Field step test before development (one row per step: `rate_L/s,drawdown_m` or other
+    /// units, the drawdown at the end of each step), compared with the model's step test on
+    /// the well at the start of the log.
     #[arg(long, value_name = "CSV")]
     pub steps_before: Option<PathBuf>,
     /// Field step test after development, compared with the model's on the well at the end

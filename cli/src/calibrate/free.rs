@@ -179,7 +179,18 @@ impl Free {
     pub fn case_value(&self, x_si: f64) -> Value {
         match &self.unit {
             None => serde_json::json!(x_si),
-            Some((u, f)) => Value::String(format!("{} {u}", x_si / f)),
+            Some((u, f)) => {
+                // Shortest text that reads back to the same double; scientific outside
+                // 1e-3 .. 1e6 so a conductivity does not come out as a row of zeros.
+                let v = x_si / f;
+                let a = v.abs();
+                let text = if a == 0.0 || (1e-3..1e6).contains(&a) {
+                    format!("{v}")
+                } else {
+                    format!("{v:e}")
+                };
+                Value::String(format!("{text} {u}"))
+            }
         }
     }
 
@@ -204,7 +215,7 @@ mod tests {
         assert!((f.start - 4e-4).abs() < 1e-18);
         let mut c = case.clone();
         f.apply(&mut c, 2.5e-4).unwrap();
-        assert_eq!(c["formation"]["conductivity"], "0.00025 m/s");
+        assert_eq!(c["formation"]["conductivity"], "2.5e-4 m/s");
         let g = parse_free("cake.thickness=1 mm..10 mm", &case).unwrap();
         assert_eq!(g.param.scale, Scale::Linear);
         let back = to_si(g.case_value(0.005).as_str().unwrap()).unwrap();
