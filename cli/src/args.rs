@@ -58,6 +58,10 @@ pub enum Command {
     /// confidence intervals.
     #[command(after_help = STEPTEST_HELP)]
     Steptest(SteptestArgs),
+    /// Fit free case parameters to a development log (drawdown readings), with intervals,
+    /// correlation and what the records cannot constrain.
+    #[command(after_help = CALIBRATE_HELP)]
+    Calibrate(CalibrateArgs),
     /// Print a starter case file.
     #[command(
         after_help = "Examples:\n  boreflux new > my-case.json\n  boreflux new --scenario domestic-fine-sand-pvc > domestic.json\n  boreflux new --list"
@@ -303,6 +307,73 @@ pub enum WeightsArg {
     Equal,
     /// Weights Q²: the same drawdown error at every step.
     Drawdown,
+}
+
+const CALIBRATE_HELP: &str = "\
+The log is CSV with units in the header, one row per reading; a row's activity (pump,
+develop, rest) and rate hold until the next row, and the last row is `end`:
+  time_min,activity,rate_L/s,drawdown_m[,turbidity_NTU][,sand_mg/L]
+The case's drive is the development device used on `develop` rows. Free parameters are
+case paths with bounds in the case's units; conductivities, storages, strengths,
+erodibilities and pressures are fitted on a log scale unless `:linear` is added.
+
+Example:
+  boreflux calibrate cases/calibration/pilot-well.json cases/calibration/pilot-log.csv \\
+    --free 'formation.conductivity=1e-5 m/s..1e-2 m/s' \\
+    --free 'formation.specific_storage=1e-6 1/m..1e-3 1/m' \\
+    --free 'cake.conductivity=1e-8 m/s..1e-4 m/s' \\
+    -o out/calibration.html --write-case out/pilot-calibrated.json";
+
+/// Arguments of `calibrate`.
+#[derive(Debug, clap::Args)]
+pub struct CalibrateArgs {
+    /// Case file of the well; its drive is the development device of `develop` rows.
+    pub case: PathBuf,
+    /// Development log (CSV, units in the header; see below).
+    pub log: PathBuf,
+    /// A free parameter: PATH=LOW..HIGH[:log|:linear], e.g.
+    /// 'formation.conductivity=1e-5 m/s..1e-2 m/s'. Repeat for each.
+    #[arg(long = "free", value_name = "PATH=LOW..HIGH", required = true)]
+    pub free: Vec<String>,
+    /// Write a self-contained HTML page with the fit and its residuals.
+    #[arg(short, long)]
+    pub output: Option<PathBuf>,
+    /// Write the calibrated case file (the input case with the fitted values).
+    #[arg(long, value_name = "FILE")]
+    pub write_case: Option<PathBuf>,
+    /// Replace output files that exist.
+    #[arg(long)]
+    pub force: bool,
+    /// Print the result as JSON (SI units) instead of a table.
+    #[arg(long)]
+    pub json: bool,
+    /// Confidence level of the intervals.
+    #[arg(long, default_value_t = 0.95)]
+    pub confidence: f64,
+    /// Field step test before development (one row per step: `rate_L/s,drawdown_m` or other
+    /// units, the drawdown at the end of each step), compared with the model's step test on
+    /// the well at the start of the log.
+    #[arg(long, value_name = "CSV")]
+    pub steps_before: Option<PathBuf>,
+    /// Field step test after development, compared with the model's on the well at the end
+    /// of the log.
+    #[arg(long, value_name = "CSV")]
+    pub steps_after: Option<PathBuf>,
+    /// Step duration of the step tests, with a unit ("100 min"); default: the case's
+    /// assessment.step_duration.
+    #[arg(long, value_name = "TIME")]
+    pub step_duration: Option<String>,
+    /// Also compute profile intervals (each side: the others refitted with the parameter
+    /// held, until the residual sum of squares reaches the F-test threshold); costs many
+    /// more model runs. Where they differ from the Jacobian intervals, believe the profile.
+    #[arg(long)]
+    pub profile: bool,
+    /// Threads for the model runs of the Jacobian (default: all cores).
+    #[arg(long)]
+    pub jobs: Option<usize>,
+    /// Most model runs along the fit's path (the Jacobian's runs not counted).
+    #[arg(long, default_value_t = 100)]
+    pub max_runs: usize,
 }
 
 /// Arguments of `verify`.

@@ -2,6 +2,7 @@
 //! binary (`main.rs`) only parses arguments and dispatches here.
 
 pub mod args;
+pub mod calibrate;
 pub mod case;
 pub mod commands;
 pub mod cost;

@@ -11,6 +11,7 @@
 
 pub mod assess;
 pub mod cake;
+pub mod calibrate;
 pub mod cost;
 pub mod damage;
 pub mod devices;

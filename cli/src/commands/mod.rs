@@ -1,6 +1,7 @@
 //! The subcommands. Each takes its parsed arguments and returns `Result<(), Failure>`;
 //! `main` prints the failure and maps it to the exit code.
 
+mod calibrate;
 mod check;
 mod interrupt;
 mod merge;
@@ -81,6 +82,7 @@ pub fn dispatch(command: Command) -> Result<(), Failure> {
         Command::Report(a) => report::report(&a),
         Command::Verify(a) => verify::verify(&a),
         Command::Steptest(a) => steptest::steptest(&a),
+        Command::Calibrate(a) => calibrate::calibrate(&a),
         Command::New(a) => new::new(&a),
         Command::Schema(a) if a.outputs => print_out(&crate::output::schema::markdown()),
         Command::Schema(_) => {

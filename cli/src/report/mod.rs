@@ -22,6 +22,7 @@
 //! Nothing partial is left behind: the page is written to a hidden temporary file beside
 //! the destination and renamed over it only when complete.
 
+pub mod calibration;
 mod decimate;
 mod escape;
 mod figures;

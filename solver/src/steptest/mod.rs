@@ -27,7 +27,7 @@
 
 pub mod hantush;
 pub mod jacob;
-mod lsq;
+pub(crate) mod lsq;
 pub mod rorabaugh;
 pub mod series;
 pub mod student;
