@@ -36,9 +36,10 @@ impl Stepper {
         h0: f64,
         h1: f64,
     ) -> Result<f64, SolverError> {
+        let device = model.drive.device_at(t, self.vapour);
         let f = |h: f64| {
             let (q, g) = self.screen_path_flow(h - h1);
-            let dev = model.drive.device_flow(t, h, self.vapour);
+            let dev = device.flow(h);
             let st = s * (h - h0);
             (
                 st + q - dev.total(),
@@ -63,8 +64,9 @@ impl Stepper {
         t: f64,
         q: f64,
     ) -> Result<f64, SolverError> {
+        let device = model.drive.device_at(t, self.vapour);
         let f = |h: f64| {
-            let dev = model.drive.device_flow(t, h, self.vapour);
+            let dev = device.flow(h);
             (
                 q - dev.total(),
                 -dev.d_dh_m2_s,
