@@ -5,9 +5,7 @@
 //! Sign convention: positive flow is outward, from the well into the formation, so a
 //! pumping (withdrawal) rate enters as a negative device flow.
 
-use crate::devices::{
-    DeviceAt, JetPulse, PumpBackwash, SurgeAt, SurgeBlock, Swab, VapourState,
-};
+use crate::devices::{DeviceAt, JetPulse, PumpBackwash, SurgeAt, SurgeBlock, Swab, VapourState};
 use crate::error::SolverError;
 use std::f64::consts::PI;
 
