@@ -8,8 +8,19 @@ use super::OutputError;
 use boreflux_solver::{CycleView, StepObserver, StepView};
 use std::path::Path;
 
-/// Values per chunk of the time series.
-const CHUNK: usize = 4096;
+/// Values per chunk of the time series: 64 KiB of f64. The report and the other readers
+/// read whole series, so no chunk is ever read for part of its values: the chunk is only
+/// the unit of compression and of the write buffer. Larger chunks compress a little better
+/// (30-min municipal surge run, level 4: 12.75 MB at 4 096 values, 12.56 MB at 8 192,
+/// 12.38 MB at 32 768; 26.0 MB uncompressed) while ~30 series buffer about 2 MB at 8 192,
+/// and one chunk sits well inside HDF5's default 1 MiB chunk cache of a reader.
+const CHUNK: usize = 8192;
+
+/// Deflate level of the run's datasets, after the byte shuffle. Levels 1, 4 and 6 gave
+/// 12.73, 12.56 and 12.51 MB on the run above at about the same write time: the series are
+/// full-precision doubles whose mantissas do not compress; the shuffle groups the sign and
+/// exponent bytes, which do.
+const DEFLATE_LEVEL: u8 = 4;
 
 /// Writes the run into an HDF5 file (and CSV).
 pub struct ResultSink {
@@ -37,6 +48,7 @@ impl ResultSink {
         snapshot_every: u64,
     ) -> Result<Self, OutputError> {
         let mut w = H5Writer::create(path)?;
+        w.set_deflate(Some(DEFLATE_LEVEL));
         // Scalars first, then power and work of each zone: the datasets are created in the
         // order of earlier versions (scalars, then power and work zone by zone).
         let mut series = Vec::new();
