@@ -19,6 +19,7 @@ mod error;
 mod grains;
 mod hints;
 mod numerics;
+pub mod output;
 mod quantity;
 mod raw;
 mod scenarios;
@@ -76,6 +77,8 @@ pub struct LoadedCase {
     pub safety: SafetyInputs,
     /// Report every n-th step (`numerics.output_every`, at least 1).
     pub output_every: u64,
+    /// What the result file keeps (`output`, "auto" resolved).
+    pub storage: output::Storage,
     /// The virtual tests of the `assessment` section, defaults filled.
     pub assessment: boreflux_solver::assess::TestPlan,
     /// Derivations the user should see in `check` (which estimate, which default).

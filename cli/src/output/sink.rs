@@ -2,6 +2,7 @@
 //! optionally a CSV file) while the solver runs, so memory stays flat in run length.
 
 use super::csv::{Column, CsvWriter};
+use super::envelope::{EnvelopePlan, Envelopes};
 use super::h5::{H5Writer, MatrixHandle, SeriesHandle};
 use super::schema::{Cycle, Step, CYCLE_INDEX};
 use super::OutputError;
@@ -35,6 +36,10 @@ pub struct ResultSink {
     snapshot_every: u64,
     csv: Option<CsvWriter>,
     row: Vec<f64>,
+    /// Per-cycle envelopes, when the case keeps them (`/series` then holds the detail).
+    envelopes: Option<Envelopes>,
+    /// The step being reported ends a complete cycle (`on_cycle` comes first).
+    closing: bool,
     /// First write error; the run stops at it.
     pub error: Option<OutputError>,
 }
@@ -46,6 +51,7 @@ impl ResultSink {
         csv: Option<&Path>,
         cells: usize,
         snapshot_every: u64,
+        envelopes: Option<EnvelopePlan>,
     ) -> Result<Self, OutputError> {
         let mut w = H5Writer::create(path)?;
         w.set_deflate(Some(DEFLATE_LEVEL));
@@ -102,6 +108,13 @@ impl ResultSink {
             None => None,
         };
         let n_series = series.len();
+        let envelopes = match envelopes {
+            Some(plan) => {
+                let steps: Vec<Step> = series.iter().map(|(s, _)| *s).collect();
+                Some(Envelopes::create(&mut w, &steps, plan)?)
+            }
+            None => None,
+        };
         Ok(ResultSink {
             writer: w,
             series,
@@ -112,6 +125,8 @@ impl ResultSink {
             snapshot_every: snapshot_every.max(1),
             csv,
             row: Vec::with_capacity(n_series),
+            envelopes,
+            closing: false,
             error: None,
         })
     }
@@ -123,17 +138,19 @@ impl ResultSink {
 
     fn write_step(&mut self, s: &StepView<'_>) -> Result<(), OutputError> {
         self.row.clear();
-        for (step, h) in &mut self.series {
-            let x = step.value(s);
-            h.append(&[x])?;
-            self.row.push(x);
+        for (step, _) in &self.series {
+            self.row.push(step.value(s));
         }
+        let (series, csv) = (&mut self.series, &mut self.csv);
+        let mut write = |row: &[f64]| write_row(series, csv, row);
+        match self.envelopes.as_mut() {
+            Some(env) => env.add(&self.row, self.closing, &mut write)?,
+            None => write(&self.row)?,
+        }
+        self.closing = false;
         if s.step % self.snapshot_every == 0 || s.step == 1 {
             self.snap_time.append(&[s.time_s])?;
             self.snap_head.append_row(s.heads)?;
-        }
-        if let Some(csv) = self.csv.as_mut() {
-            csv.write_row(&self.row)?;
         }
         Ok(())
     }
@@ -147,7 +164,11 @@ impl ResultSink {
     }
 
     /// Flushes and renames both files into place.
-    pub fn finish(self) -> Result<(), OutputError> {
+    pub fn finish(mut self) -> Result<(), OutputError> {
+        if let Some(env) = self.envelopes.as_mut() {
+            let (series, csv) = (&mut self.series, &mut self.csv);
+            env.finish(|row| write_row(series, csv, row))?;
+        }
         if let Some(csv) = self.csv {
             csv.finish()?;
         }
@@ -169,10 +190,26 @@ impl StepObserver for ResultSink {
     }
 
     fn on_cycle(&mut self, c: &CycleView) {
+        self.closing = true;
         if self.error.is_none() {
             if let Err(e) = self.write_cycle(c) {
                 self.error = Some(e);
             }
         }
     }
+}
+
+/// Appends one row to every per-step series and the CSV file.
+fn write_row(
+    series: &mut [(Step, SeriesHandle)],
+    csv: &mut Option<CsvWriter>,
+    row: &[f64],
+) -> Result<(), OutputError> {
+    for ((_, h), &x) in series.iter_mut().zip(row) {
+        h.append(&[x])?;
+    }
+    if let Some(csv) = csv.as_mut() {
+        csv.write_row(row)?;
+    }
+    Ok(())
 }

@@ -27,7 +27,7 @@ mod figures;
 mod format;
 mod headline;
 mod html;
-mod read;
+pub mod read;
 pub mod steptest;
 mod svg;
 mod sweep;
