@@ -24,7 +24,10 @@ const CYCLES: f64 = 1_000.0;
 fn bench_sine_60m(c: &mut Criterion) {
     let mut group = c.benchmark_group("sine_head_300_cells_1000_cycles");
     group.sample_size(10);
-    for (name, scheme) in [("trbdf2_default", None), ("crank_nicolson", Some(Scheme::Theta))] {
+    for (name, scheme) in [
+        ("trbdf2_default", None),
+        ("crank_nicolson", Some(Scheme::Theta)),
+    ] {
         let mut m = model(300, false);
         m.duration_s = CYCLES * 2.0;
         if let Some(s) = scheme {

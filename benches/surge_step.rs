@@ -33,7 +33,10 @@ fn bench_surge_step(c: &mut Criterion) {
     };
     let dt = period / 200.0;
     let mut group = c.benchmark_group("step_municipal_89_cells");
-    for (name, m) in [("surge_block_trbdf2", &surge), ("sine_head_newton_trbdf2", &newton)] {
+    for (name, m) in [
+        ("surge_block_trbdf2", &surge),
+        ("sine_head_newton_trbdf2", &newton),
+    ] {
         let mut st = Stepper::new(m, None);
         // Past the ramp (5 cycles) so the block strokes at full length.
         for _ in 0..(6 * 200) {

@@ -172,7 +172,7 @@ fn the_report_reads_every_storage_choice() {
         run(&case, &h5);
         let r = read_run(&h5).unwrap();
         let html = dir.join(format!("{name}.html"));
-        write_report(&[h5.clone()], &html).unwrap();
+        write_report(std::slice::from_ref(&h5), &html).unwrap();
         let page = std::fs::read_to_string(&html).unwrap();
         let bands = page.matches(r#"fill-opacity="0.3""#).count();
         match name {
