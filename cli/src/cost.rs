@@ -6,8 +6,8 @@
 //! ([`boreflux_solver::cost`]); the time and size follow from it with the per-step figures
 //! below, so they are upper estimates too.
 
-use crate::case::output::Storage;
 use crate::case::LoadedCase;
+use crate::case::Storage;
 use anyhow::anyhow;
 use boreflux_solver::cost::estimate;
 

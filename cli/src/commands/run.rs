@@ -12,7 +12,7 @@ use super::interrupt::{catch_interrupts, interrupted, INTERRUPTED_MESSAGE};
 use super::outputs::{check_output, same_file_key};
 use super::{print_out, Failure};
 use crate::args::RunArgs;
-use crate::case::output::Storage;
+use crate::case::Storage;
 use crate::case::{load_case, LoadedCase};
 use crate::output::envelope::EnvelopePlan;
 use crate::output::schema::{figure_values, ProgressSeries, SummaryText};
