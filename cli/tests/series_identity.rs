@@ -6,7 +6,10 @@
 //! output schema) and recorded again when water-column inertia and damage removal changed the
 //! numbers (the merge of the output schema with them), by running this test with
 //! `BOREFLUX_RECORD_DIGESTS=1 BOREFLUX_BIN=<that binary>`; a deliberate change of the numbers
-//! records them again the same way with the new binary, and says so in its commit.
+//! records them again the same way with the new binary, and says so in its commit. They were
+//! recorded again when the well row's root finder changed to Newton from a lazy bracket
+//! (roots equal to round-off; where an adaptive run's step choice flipped on that round-off,
+//! its series moved within the time-step error control: `scripts/compare-series.py`).
 //! Digest: FNV-1a (64 bit) over the length and the IEEE-754 bits of every value, in file order.
 
 use hdf5::File;

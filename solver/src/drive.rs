@@ -5,7 +5,7 @@
 //! Sign convention: positive flow is outward, from the well into the formation, so a
 //! pumping (withdrawal) rate enters as a negative device flow.
 
-use crate::devices::{vapour_flow, JetPulse, PumpBackwash, SurgeBlock, Swab, VapourState};
+use crate::devices::{DeviceAt, JetPulse, PumpBackwash, SurgeAt, SurgeBlock, Swab, VapourState};
 use crate::error::SolverError;
 use std::f64::consts::PI;
 
@@ -271,57 +271,41 @@ impl Drive {
     /// Volume rates the device adds to the well's water column at time t with in-well head
     /// `h_well_m` (flow-controlled drives), with the vapour gap `vapour` under a sealed tool.
     pub fn device_flow(&self, t: f64, h_well_m: f64, vapour: VapourState) -> DeviceFlow {
+        self.device_at(t, vapour).flow(h_well_m)
+    }
+
+    /// The device at time t with the vapour gap `vapour`: what depends on time alone
+    /// computed once, to be evaluated at many in-well heads ([`DeviceAt::flow`]).
+    pub fn device_at(&self, t: f64, vapour: VapourState) -> DeviceAt<'_> {
         let (d, t) = self.stage_at(t);
-        let displacement = |q: f64| DeviceFlow {
-            displacement_m3_s: q,
-            ..DeviceFlow::default()
+        let displacement = |q: f64| {
+            DeviceAt::Fixed(DeviceFlow {
+                displacement_m3_s: q,
+                ..DeviceFlow::default()
+            })
         };
         match d {
             Drive::ConstantRate { pumping_rate_m3_s } => displacement(-pumping_rate_m3_s),
             Drive::Table(tab) => match tab.quantity {
                 TableQuantity::PumpingRate => displacement(-tab.value_at(t)),
-                TableQuantity::Head => DeviceFlow::default(),
+                TableQuantity::Head => DeviceAt::Fixed(DeviceFlow::default()),
             },
-            Drive::SurgeBlock(b) => {
-                let (q, bypass, d) = b.flows(t, h_well_m);
-                let (qv, dv) = vapour_flow(h_well_m, b.min_head_m(), b.max_pull_m3_s(), vapour);
-                DeviceFlow {
-                    displacement_m3_s: q,
-                    bypass_m3_s: bypass + qv,
-                    vapour_m3_s: qv,
-                    d_dh_m2_s: d + dv,
-                    offset_m3_s: 0.0,
-                }
-            }
-            Drive::Swab(s) => {
-                let (qv, dv) = vapour_flow(h_well_m, s.min_head_m(t), s.max_pull_m3_s(), vapour);
-                DeviceFlow {
-                    displacement_m3_s: s.displacement(t),
-                    bypass_m3_s: qv,
-                    vapour_m3_s: qv,
-                    d_dh_m2_s: dv,
-                    offset_m3_s: 0.0,
-                }
-            }
+            Drive::SurgeBlock(b) => DeviceAt::Surge(SurgeAt::new(b, t, vapour)),
+            Drive::Swab(s) => DeviceAt::swab(s, t, vapour),
             Drive::JetPulse(j) => {
                 let (q, offset) = j.flows(t);
-                DeviceFlow {
+                DeviceAt::Fixed(DeviceFlow {
                     displacement_m3_s: q + offset,
                     offset_m3_s: offset,
                     ..DeviceFlow::default()
-                }
+                })
             }
-            Drive::PumpBackwash(p) => {
-                let (q, d) = p.flows(t, h_well_m);
-                DeviceFlow {
-                    displacement_m3_s: q,
-                    d_dh_m2_s: d,
-                    ..DeviceFlow::default()
-                }
-            }
+            Drive::PumpBackwash(p) => DeviceAt::Pump { pump: p, t },
             // Head-controlled, or recovering with no device: nothing added. A schedule
             // never reaches here (`stage_at` returns its stage).
-            Drive::SineHead(_) | Drive::Slug { .. } | Drive::Schedule(_) => DeviceFlow::default(),
+            Drive::SineHead(_) | Drive::Slug { .. } | Drive::Schedule(_) => {
+                DeviceAt::Fixed(DeviceFlow::default())
+            }
         }
     }
 

@@ -124,6 +124,8 @@ pub fn convert(raw: RawCase, base_dir: &Path) -> Result<LoadedCase, CaseError> {
         resolved_numerics(&model.numerics, num.output_every),
     );
     resolved.insert("assessment".to_owned(), assessment_json);
+    let (storage, output_json) = super::output::storage(raw.output.as_ref(), &model)?;
+    resolved.insert("output".to_owned(), output_json);
     Ok(LoadedCase {
         model,
         title: raw.title.unwrap_or_default(),
@@ -131,6 +133,7 @@ pub fn convert(raw: RawCase, base_dir: &Path) -> Result<LoadedCase, CaseError> {
         resolved: Value::Object(resolved),
         safety,
         output_every: num.output_every,
+        storage,
         assessment,
         notes: log.notes,
         warnings: log.warnings,

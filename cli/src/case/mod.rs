@@ -19,6 +19,8 @@ mod error;
 mod grains;
 mod hints;
 mod numerics;
+mod output;
+pub use output::Storage;
 mod quantity;
 mod raw;
 mod scenarios;
@@ -76,6 +78,8 @@ pub struct LoadedCase {
     pub safety: SafetyInputs,
     /// Report every n-th step (`numerics.output_every`, at least 1).
     pub output_every: u64,
+    /// What the result file keeps (`output`, "auto" resolved).
+    pub storage: Storage,
     /// The virtual tests of the `assessment` section, defaults filled.
     pub assessment: boreflux_solver::assess::TestPlan,
     /// Derivations the user should see in `check` (which estimate, which default).

@@ -50,6 +50,8 @@ pub struct RawCase {
     pub numerics: Option<RawNumerics>,
     /// Virtual pumping tests of the well before and after development [all automatic].
     pub assessment: Option<super::assessment::RawAssessment>,
+    /// What the result file keeps of the per-step series [all automatic].
+    pub output: Option<super::output::RawOutput>,
 }
 
 /// Pore water.

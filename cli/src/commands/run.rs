@@ -12,7 +12,9 @@ use super::interrupt::{catch_interrupts, interrupted, INTERRUPTED_MESSAGE};
 use super::outputs::{check_output, same_file_key};
 use super::{print_out, Failure};
 use crate::args::RunArgs;
+use crate::case::Storage;
 use crate::case::{load_case, LoadedCase};
+use crate::output::envelope::EnvelopePlan;
 use crate::output::schema::{
     figure_values, GridData, Group, ProgressSeries, RootAttr, SummaryText,
 };
@@ -20,6 +22,7 @@ use crate::output::sink::ResultSink;
 use crate::summary::{assessment, headline, table, Headline, Tracker};
 use anyhow::{anyhow, Context};
 use boreflux_solver::assess::progress::{ProgressBasis, ProgressPoint};
+use boreflux_solver::drive::Drive;
 use boreflux_solver::grid::Grid;
 use boreflux_solver::safety::CAUTION;
 use boreflux_solver::slow::SlowState;
@@ -208,8 +211,14 @@ pub fn run(a: &RunArgs) -> Result<(), Failure> {
     let cost = crate::cost::run_cost(&case, a.csv, a.snapshot_every);
     crate::cost::refuse_large(&cost, a.allow_large).map_err(Failure::Input)?;
     catch_interrupts();
-    let mut sink = ResultSink::create(&a.output, csv_path.as_deref(), grid.cells(), snapshot_every)
-        .map_err(|e| Failure::Input(anyhow!("cannot write output {}: {e}", a.output.display())))?;
+    let mut sink = ResultSink::create(
+        &a.output,
+        csv_path.as_deref(),
+        grid.cells(),
+        snapshot_every,
+        envelope_plan(&case),
+    )
+    .map_err(|e| Failure::Input(anyhow!("cannot write output {}: {e}", a.output.display())))?;
     write_metadata(&mut sink, &case, a, &grid).map_err(|e| Failure::Runtime(e.into()))?;
     let mut tracker = Tracker::new(model);
     let bar = progress_bar(a.quiet);
@@ -240,7 +249,11 @@ pub fn run(a: &RunArgs) -> Result<(), Failure> {
             model,
             &mut obs,
             Reporting {
-                every: case.output_every,
+                // Envelopes see every step; `numerics.output_every` thins steps only.
+                every: match case.storage {
+                    Storage::Steps => case.output_every,
+                    Storage::Envelopes { .. } => 1,
+                },
             },
         )
     };
@@ -372,4 +385,27 @@ fn drive_files(v: &Value, out: &mut Vec<String>) {
         Value::Array(items) => items.iter().for_each(|x| drive_files(x, out)),
         _ => {}
     }
+}
+
+/// Where an "envelopes" run keeps every step (docs/formats.md, "Storage choice"); None when
+/// the case keeps every step.
+fn envelope_plan(case: &LoadedCase) -> Option<EnvelopePlan> {
+    let Storage::Envelopes { detail_cycles } = case.storage else {
+        return None;
+    };
+    let model = &case.model;
+    let period = model.drive.slowest_period_s().unwrap_or(0.0);
+    let event_times_s = match &model.drive {
+        Drive::Schedule(stages) => stages
+            .iter()
+            .map(|s| s.start_s)
+            .filter(|&t| t > 0.0)
+            .collect(),
+        _ => Vec::new(),
+    };
+    Some(EnvelopePlan {
+        detail_cycles,
+        detail_from_s: model.duration_s - detail_cycles as f64 * period,
+        event_times_s,
+    })
 }

@@ -8,6 +8,7 @@
 //! complete new one.
 
 pub mod csv;
+pub mod envelope;
 pub mod h5;
 pub mod schema;
 pub mod sink;

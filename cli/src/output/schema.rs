@@ -52,6 +52,8 @@ pub enum Unit {
     S2PerM5,
     /// Dimensionless ratio or count.
     One,
+    /// The unit of the series it summarises (the envelopes).
+    OfSeries,
 }
 
 impl Unit {
@@ -70,6 +72,7 @@ impl Unit {
             Unit::SPerM2 => "s/m2",
             Unit::S2PerM5 => "s2/m5",
             Unit::One => "1",
+            Unit::OfSeries => "of the series",
         }
     }
 }
@@ -1052,6 +1055,61 @@ impl SweepSeries {
     }
 }
 
+/// Statistic of a per-step series over one complete drive cycle, written under
+/// `/envelopes/<stat>/<series>` when the case keeps envelopes (`output.store`). Every
+/// per-step series but `time` has all three, in its own unit.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum EnvelopeStat {
+    /// Smallest value of the cycle's steps.
+    Min,
+    /// Largest value of the cycle's steps.
+    Max,
+    /// Root mean square over the cycle's time, trapezoidal rule on its steps.
+    Rms,
+}
+
+/// Group of the envelopes' cycle times (`/envelopes/start_time`, `/envelopes/end_time`).
+pub const ENVELOPES: &str = Group::Envelopes.name();
+
+impl EnvelopeStat {
+    /// The three statistics, in file order.
+    pub const ALL: [EnvelopeStat; 3] = [EnvelopeStat::Min, EnvelopeStat::Max, EnvelopeStat::Rms];
+
+    /// Name of its group under `/envelopes`.
+    pub const fn name(self) -> &'static str {
+        match self {
+            EnvelopeStat::Min => "min",
+            EnvelopeStat::Max => "max",
+            EnvelopeStat::Rms => "rms",
+        }
+    }
+
+    /// Its schema entry (the series' own unit).
+    pub fn entry(self) -> Entry {
+        let (d, c) = match self {
+            EnvelopeStat::Min => (
+                "smallest value of the series over the cycle",
+                "minimum over the cycle's steps, both end points included",
+            ),
+            EnvelopeStat::Max => (
+                "largest value of the series over the cycle",
+                "maximum over the cycle's steps, both end points included",
+            ),
+            EnvelopeStat::Rms => (
+                "root mean square of the series over the cycle",
+                "sqrt(integral of x^2 dt / cycle time), trapezoidal rule on the steps",
+            ),
+        };
+        entry(
+            format!("{}/<series>", self.name()),
+            Unit::OfSeries,
+            d.to_owned(),
+            c,
+            Place::Model,
+        )
+    }
+}
+
 /// The schema as the Markdown tables of docs/formats.md ("Output schema"), which
 /// `boreflux schema --outputs` prints and a test compares with the docs.
 pub fn markdown() -> String {
@@ -1087,6 +1145,31 @@ pub fn markdown() -> String {
     )];
     cycles.extend(Cycle::all().into_iter().map(Cycle::entry));
     table(&mut out, "Per cycle (`/cycles/<name>`):", "", cycles);
+    let mut envelopes = vec![
+        entry(
+            "start_time".to_owned(),
+            Unit::S,
+            "start of the cycle".to_owned(),
+            "time of the step that began it",
+            Place::Model,
+        ),
+        entry(
+            "end_time".to_owned(),
+            Unit::S,
+            "end of the cycle".to_owned(),
+            "time of the step that ended it",
+            Place::Model,
+        ),
+    ];
+    envelopes.extend(EnvelopeStat::ALL.into_iter().map(EnvelopeStat::entry));
+    table(
+        &mut out,
+        "Per-cycle envelopes (`/envelopes/<name>`, only when `output.store` keeps envelopes; \
+         `<series>` is every per-step name but `time`, in that series' unit, one value per \
+         complete cycle):",
+        "",
+        envelopes,
+    );
     table(
         &mut out,
         "Per run (`/summary` attributes and sweep-table columns; absent when not computed, \

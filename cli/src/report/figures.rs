@@ -3,7 +3,7 @@
 
 use super::format::{Shown, FLOW, FLUX, HEAD, NUMBER, SHEAR, SMALL_LENGTH};
 use super::read::{Run, Series as RunSeries};
-use super::svg::{render, Chart, Mark, Scale, SecondAxis, Series, Style};
+use super::svg::{render, Band, Chart, Mark, Scale, SecondAxis, Series, Style};
 use super::{legend_name, run_letter};
 
 /// Head profiles drawn per run.
@@ -89,17 +89,44 @@ pub fn figures(runs: &[Run]) -> Vec<Figure> {
             let mut c = quantity_chart(&next_id(), title, &time_axis, quantity, shown);
             c.x_factor = t_factor;
             for (i, run) in runs.iter().enumerate() {
-                c.series.push(Series {
-                    label: legend_name(i, run),
-                    x: &run.series.time,
-                    y: get(&run.series),
-                    style: run_style(i),
-                });
+                let style = run_style(i);
+                if let Some(env) = &run.envelopes {
+                    c.bands.push(Band {
+                        x: &env.min.time,
+                        lo: get(&env.min),
+                        hi: get(&env.max),
+                        color: style.color,
+                    });
+                }
+                // Detail windows of an envelope file are drawn apart, not joined.
+                let y = get(&run.series);
+                for (k, (a, b)) in windows(&run.series.time, run.envelopes.is_some())
+                    .into_iter()
+                    .enumerate()
+                {
+                    c.series.push(Series {
+                        label: if k == 0 {
+                            legend_name(i, run)
+                        } else {
+                            String::new()
+                        },
+                        x: &run.series.time[a..b],
+                        y: &y[a..b],
+                        style,
+                    });
+                }
             }
             render(&c)
         };
-    let decimated = "Long series are drawn from the lowest and highest value in each pixel \
-                     column, so peaks are kept.";
+    let decimated = if runs.iter().any(|r| r.envelopes.is_some()) {
+        "Long series are drawn from the lowest and highest value in each pixel column, so \
+         peaks are kept. A file that keeps per-cycle envelopes shows each cycle's range \
+         (lowest to highest value) as a shaded band, and its stored windows of every step \
+         as lines."
+    } else {
+        "Long series are drawn from the lowest and highest value in each pixel column, so \
+         peaks are kept."
+    };
     let mut out = vec![
         Figure {
             title: "In-well head and flow through the screen".into(),
@@ -381,6 +408,28 @@ fn profile_chart(id: &str, i: usize, run: &Run) -> String {
         });
     }
     render(&c)
+}
+
+/// Index ranges of the stretches of `time` to draw as separate lines: one for a file that
+/// keeps every step; for an envelope file (`split`), a new stretch wherever the step
+/// between two stored times is more than 20 times the median step (a window left out).
+fn windows(time: &[f64], split: bool) -> Vec<(usize, usize)> {
+    if !split || time.len() < 3 {
+        return vec![(0, time.len())];
+    }
+    let mut steps: Vec<f64> = time.windows(2).map(|w| w[1] - w[0]).collect();
+    steps.sort_by(f64::total_cmp);
+    let median = steps[steps.len() / 2];
+    let mut out = Vec::new();
+    let mut start = 0;
+    for k in 1..time.len() {
+        if time[k] - time[k - 1] > 20.0 * median {
+            out.push((start, k));
+            start = k;
+        }
+    }
+    out.push((start, time.len()));
+    out
 }
 
 #[cfg(test)]

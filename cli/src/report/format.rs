@@ -164,7 +164,7 @@ pub fn shown_for(si: crate::output::schema::Unit) -> Shown {
         Unit::Kg => shown(unit("kg", 1.0), Some(unit("lb", 1.0 / crate::units::LB_KG))),
         Unit::SPerM2 => shown(unit("s/m²", 1.0), None),
         Unit::S2PerM5 => shown(unit("s²/m⁵", 1.0), None),
-        Unit::One => NUMBER,
+        Unit::One | Unit::OfSeries => NUMBER,
     }
 }
 

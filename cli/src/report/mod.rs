@@ -30,7 +30,7 @@ mod format;
 mod headline;
 mod html;
 mod input_units;
-mod read;
+pub mod read;
 pub mod steptest;
 mod svg;
 mod sweep;

@@ -10,8 +10,8 @@ use std::collections::BTreeMap;
 use std::path::{Path, PathBuf};
 
 use crate::output::schema::{
-    Cycle, Figure, GridData, Group, ProgressSeries, RootAttr, SnapshotData, Step, SummaryText,
-    CYCLE_INDEX,
+    Cycle, EnvelopeStat, Figure, GridData, Group, ProgressSeries, RootAttr, SnapshotData, Step,
+    SummaryText, CYCLE_INDEX, ENVELOPES,
 };
 use crate::read_error::{FileKind, ReadError};
 use boreflux_solver::grid::Zone;
@@ -38,6 +38,9 @@ pub struct Run {
     pub snapshots: Snapshots,
     /// Development progress (`/progress`; empty when the file has none).
     pub progress: Progress,
+    /// Per-cycle envelopes, when the file keeps them (then `series` holds only the detail
+    /// windows).
+    pub envelopes: Option<Envelopes>,
     /// The `/summary` group.
     pub summary: Summary,
 }
@@ -89,6 +92,18 @@ pub struct Series {
     pub skin: Vec<f64>,
     /// Cumulative work per zone present in the file, J, inner to outer.
     pub work: Vec<(Zone, Vec<f64>)>,
+}
+
+/// `/envelopes` (files that keep per-cycle envelopes, `output.store`): each a [`Series`]
+/// whose time is the middle of each complete cycle.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct Envelopes {
+    /// Lowest value of each cycle.
+    pub min: Series,
+    /// Highest value of each cycle.
+    pub max: Series,
+    /// Root mean square over each cycle.
+    pub rms: Series,
 }
 
 /// `/cycles`, all of the length of `index`.
@@ -201,6 +216,7 @@ pub fn read_run(path: &Path) -> Result<Run, ReadError> {
         cycles: read_cycles(&file)?,
         snapshots: read_snapshots(&file)?,
         progress: read_progress(&file)?,
+        envelopes: read_envelopes(&file)?,
         summary: read_summary(&file)?,
         series,
     })
@@ -273,18 +289,25 @@ fn read_grid(file: &File) -> Result<Grid, ReadError> {
 }
 
 fn read_series(file: &File) -> Result<Series, ReadError> {
-    let path = |step: Step| format!("{}/{}", Group::Series.name(), step.entry().name);
-    let time = vector(file, &path(Step::Time), Step::Time.entry().unit.symbol())?;
+    let time_path = format!("{}/{}", Group::Series.name(), Step::Time.entry().name);
+    let time = vector(file, &time_path, Step::Time.entry().unit.symbol())?;
+    read_columns(file, Group::Series.name(), time, &time_path)
+}
+
+/// The charted per-step columns under `prefix` (`series`, `envelopes/min`, …), each as
+/// long as `time` (read from `time_path`).
+fn read_columns(
+    file: &File,
+    prefix: &str,
+    time: Vec<f64>,
+    time_path: &str,
+) -> Result<Series, ReadError> {
+    let path = |step: Step| format!("{prefix}/{}", step.entry().name);
     let n = time.len();
     let column = |step: Step| -> Result<Vec<f64>, ReadError> {
         let p = path(step);
         let v = vector(file, &p, step.entry().unit.symbol())?;
-        same_length(
-            &format!("/{p}"),
-            v.len(),
-            &format!("/{}", path(Step::Time)),
-            n,
-        )?;
+        same_length(&format!("/{p}"), v.len(), &format!("/{time_path}"), n)?;
         Ok(v)
     };
     let mut work = Vec::new();
@@ -305,6 +328,37 @@ fn read_series(file: &File) -> Result<Series, ReadError> {
         work,
         time,
     })
+}
+
+/// `/envelopes`, when the file keeps them: the cycles' lowest and highest values, at the
+/// middle of each cycle.
+fn read_envelopes(file: &File) -> Result<Option<Envelopes>, ReadError> {
+    if !file.link_exists(ENVELOPES) {
+        return Ok(None);
+    }
+    let start_path = format!("{ENVELOPES}/start_time");
+    let start = vector(file, &start_path, "s")?;
+    let end = vector(file, &format!("{ENVELOPES}/end_time"), "s")?;
+    same_length(
+        &format!("/{ENVELOPES}/end_time"),
+        end.len(),
+        &format!("/{start_path}"),
+        start.len(),
+    )?;
+    let mid: Vec<f64> = start.iter().zip(&end).map(|(a, b)| 0.5 * (a + b)).collect();
+    let stat = |st: EnvelopeStat| {
+        read_columns(
+            file,
+            &format!("{ENVELOPES}/{}", st.name()),
+            mid.clone(),
+            &start_path,
+        )
+    };
+    Ok(Some(Envelopes {
+        min: stat(EnvelopeStat::Min)?,
+        max: stat(EnvelopeStat::Max)?,
+        rms: stat(EnvelopeStat::Rms)?,
+    }))
 }
 
 fn read_cycles(file: &File) -> Result<Cycles, ReadError> {

@@ -58,6 +58,20 @@ pub struct Series<'a> {
     pub style: Style,
 }
 
+/// A shaded band between a lower and an upper curve (the per-cycle envelope of a series),
+/// drawn under the lines; x, lo and hi in the file's SI units, as many each.
+#[derive(Debug, Clone)]
+pub struct Band<'a> {
+    /// Abscissae.
+    pub x: &'a [f64],
+    /// Lower edge.
+    pub lo: &'a [f64],
+    /// Upper edge.
+    pub hi: &'a [f64],
+    /// CSS fill colour (drawn at 30 % opacity).
+    pub color: &'static str,
+}
+
 /// A second ordinate axis on the right in another unit: value₂ = value × `per_primary`.
 #[derive(Debug, Clone, PartialEq)]
 pub struct SecondAxis {
@@ -102,6 +116,8 @@ pub struct Chart<'a> {
     pub y2: Option<SecondAxis>,
     /// The lines.
     pub series: Vec<Series<'a>>,
+    /// Shaded bands under the lines.
+    pub bands: Vec<Band<'a>>,
     /// Vertical reference lines.
     pub marks: Vec<Mark>,
 }
@@ -121,6 +137,7 @@ impl<'a> Chart<'a> {
             y_min: None,
             y2: None,
             series: Vec::new(),
+            bands: Vec::new(),
             marks: Vec::new(),
         }
     }
@@ -216,6 +233,9 @@ pub fn render(chart: &Chart<'_>) -> String {
         r#"<clipPath id="{id}-clip"><rect x="{x0}" y="{top}" width="{:.0}" height="{PLOT_H}"/></clipPath><g clip-path="url(#{id}-clip)" fill="none" stroke-linejoin="round">"#,
         x1 - x0
     );
+    for band in &chart.bands {
+        write_band(&mut s, &f, chart, band);
+    }
     for series in &chart.series {
         write_series(&mut s, &f, chart, series);
     }
@@ -337,6 +357,46 @@ fn write_marks(s: &mut String, f: &Frame, marks: &[Mark]) {
 }
 
 /// One series as a decimated path, with point markers when it has few points.
+/// A band as one filled outline: per pixel column the lowest `lo` and highest `hi` of the
+/// points in it (so a band of thousands of cycles stays a few hundred points), along the
+/// upper edge and back along the lower.
+fn write_band(s: &mut String, f: &Frame, chart: &Chart<'_>, band: &Band<'_>) {
+    let mut cols: Vec<(f64, f64, f64)> = Vec::new();
+    for ((&x, &lo), &hi) in band.x.iter().zip(band.lo).zip(band.hi) {
+        let (Some(px), Some(p_lo), Some(p_hi)) = (
+            f.xa.to_px(x * chart.x_factor),
+            f.ya.to_px(lo * chart.y_factor),
+            f.ya.to_px(hi * chart.y_factor),
+        ) else {
+            continue;
+        };
+        let col = px.round();
+        match cols.last_mut() {
+            // Pixel y grows downward: the lower edge has the larger y.
+            Some(c) if c.0 == col => {
+                c.1 = c.1.max(p_lo);
+                c.2 = c.2.min(p_hi);
+            }
+            _ => cols.push((col, p_lo, p_hi)),
+        }
+    }
+    if cols.is_empty() {
+        return;
+    }
+    let _ = write!(
+        s,
+        r#"<path fill="{}" fill-opacity="0.3" stroke="none" d=""#,
+        band.color
+    );
+    for (k, (px, _, p_hi)) in cols.iter().enumerate() {
+        let _ = write!(s, "{}{px:.1} {p_hi:.1}", if k == 0 { "M" } else { "L" });
+    }
+    for (px, p_lo, _) in cols.iter().rev() {
+        let _ = write!(s, "L{px:.1} {p_lo:.1}");
+    }
+    s.push_str(r#"Z"/>"#);
+}
+
 fn write_series(s: &mut String, f: &Frame, chart: &Chart<'_>, series: &Series<'_>) {
     let y_min = chart.y_min.unwrap_or(f64::NEG_INFINITY);
     let pixels = series.x.iter().zip(series.y).map(|(&x, &y)| {
@@ -436,6 +496,17 @@ fn data_ranges(chart: &Chart<'_>) -> Option<((f64, f64), (f64, f64))> {
             if ok(x, chart.x_scale) && ok(y, chart.y_scale) && y >= y_min {
                 xr = (xr.0.min(x), xr.1.max(x));
                 yr = (yr.0.min(y), yr.1.max(y));
+            }
+        }
+    }
+    for b in &chart.bands {
+        for ((&x, &lo), &hi) in b.x.iter().zip(b.lo).zip(b.hi) {
+            for y in [lo, hi] {
+                let (x, y) = (x * chart.x_factor, y * chart.y_factor);
+                if ok(x, chart.x_scale) && ok(y, chart.y_scale) && y >= y_min {
+                    xr = (xr.0.min(x), xr.1.max(x));
+                    yr = (yr.0.min(y), yr.1.max(y));
+                }
             }
         }
     }

@@ -6,10 +6,12 @@
 //! states its assumptions. A tool that seals the column below it (surge block, swab cups on
 //! the upstroke) cannot pull the water below its vapour pressure: see [`vapour`].
 
+pub mod frozen;
 pub mod jet;
 pub mod pump;
 pub mod vapour;
 
+pub use frozen::{DeviceAt, SurgeAt, VapourAt};
 pub use jet::JetPulse;
 pub use pump::{Backflow, PumpBackwash, PumpLaw, PumpTable, MAX_PUMP_POINTS, SUCTION_BAND_M};
 
@@ -27,8 +29,18 @@ const ORIFICE_ROUNDING_M: f64 = 1e-4;
 /// Orifice flow `Cd A sign(Δ) sqrt(2g|Δ|)` from the side with the higher head, rounded off
 /// below 1e−6 m of head, m³/s; and its derivative with respect to Δ, m²/s.
 pub fn orifice_flow(cd_area_m2: f64, dh_m: f64) -> (f64, f64) {
+    orifice_flow_k(orifice_coefficient(cd_area_m2), dh_m)
+}
+
+/// The orifice constant `k = Cd A sqrt(2g)` of [`orifice_flow`], m³/s per sqrt(m).
+pub fn orifice_coefficient(cd_area_m2: f64) -> f64 {
+    cd_area_m2 * (2.0 * GRAVITY_M_S2).sqrt()
+}
+
+/// [`orifice_flow`] from its constant `k` ([`orifice_coefficient`]).
+#[inline]
+pub fn orifice_flow_k(k: f64, dh_m: f64) -> (f64, f64) {
     let root = (dh_m.abs() + ORIFICE_ROUNDING_M).sqrt();
-    let k = cd_area_m2 * (2.0 * GRAVITY_M_S2).sqrt();
     let q = k * dh_m / root;
     // d/dΔ [Δ (|Δ|+ε)^{-1/2}] = (|Δ|/2 + ε) (|Δ|+ε)^{-3/2}
     let dq = k * (0.5 * dh_m.abs() + ORIFICE_ROUNDING_M) / (root * root * root);
@@ -178,23 +190,7 @@ impl SurgeBlock {
 
     /// Displacement flow, bypass flow and d(bypass)/dH at time t and head below H.
     pub fn flows(&self, t: f64, h: f64) -> (f64, f64, f64) {
-        let a_block = PI * self.block_radius_m * self.block_radius_m;
-        let a_gap = PI * (self.casing_radius_m.powi(2) - self.block_radius_m.powi(2));
-        let mut displacement = -a_block * self.velocity_m_s(t);
-        // On the downstroke the block cannot push harder than its thrust: it lags its stroke.
-        let (q_stall, d_stall) = self.stall_flow(h, displacement);
-        displacement += q_stall;
-        let cd = self.discharge_coefficient;
-        // Leakage from above (head 0) to below (head H): Δ = 0 − H.
-        let (q_gap, dq_gap) = orifice_flow(cd * a_gap, -h);
-        let mut bypass = q_gap;
-        let mut d_bypass = -dq_gap + d_stall;
-        if self.valve_area_m2 > 0.0 && h > 0.0 {
-            let (q_v, dq_v) = orifice_flow(cd * self.valve_area_m2, h);
-            bypass -= q_v;
-            d_bypass -= dq_v;
-        }
-        (displacement, bypass, d_bypass)
+        SurgeAt::new(self, t, VapourState::default()).flows(h)
     }
 
     pub(crate) fn validate(&self) -> Result<(), SolverError> {

@@ -54,21 +54,7 @@ pub struct VapourState {
 /// Vapour source `Q_v` (m³/s, into the well node) at in-well head `h` for a tool whose bound
 /// is `h_min` and whose largest pull is `q_max` (m³/s), and its derivative in h (m²/s).
 pub fn vapour_flow(h: f64, h_min: f64, q_max: f64, state: VapourState) -> (f64, f64) {
-    if !h_min.is_finite() {
-        return (0.0, 0.0);
-    }
-    let k = 2.0 * q_max.max(f64::MIN_POSITIVE) / VAPOUR_MARGIN_M;
-    let q = k * (h_min + VAPOUR_MARGIN_M - h);
-    let floor = if state.gap_m3 > 0.0 {
-        state.min_rate_m3_s
-    } else {
-        0.0
-    };
-    if q > floor {
-        (q, -k)
-    } else {
-        (floor, 0.0)
-    }
+    super::VapourAt::new(h_min, q_max, state).flow(h)
 }
 
 #[cfg(test)]

@@ -117,9 +117,10 @@ impl Stepper {
         // The column's inertance m in series with the screen (`stepper/column.rs`).
         let (m, q_old) = (self.column.m, self.column.q_old);
         let (r_lin, r_nl) = (face.r_lin() + m, face.r_nl());
+        let device = model.drive.device_at(t, self.vapour);
         let f = |q: f64| {
             let hw = y1a + (q - q_now) * w1 + r_lin * q - m * q_old + r_nl * q * q.abs();
-            let dev = model.drive.device_flow(t, hw, self.vapour);
+            let dev = device.flow(hw);
             let st = s * (hw - h0);
             (
                 st + q - dev.total(),
@@ -128,13 +129,7 @@ impl Stepper {
             )
         };
         // Flows below the current screen and device flows are round-off in absolute terms.
-        let unit = (q_now.abs()
-            + model
-                .drive
-                .device_flow(t, self.y[0], self.vapour)
-                .total()
-                .abs())
-        .max(f64::MIN_POSITIVE);
+        let unit = (q_now.abs() + device.flow(self.y[0]).total().abs()).max(f64::MIN_POSITIVE);
         bracketed_root(t, q_now, unit, 1e-15 * unit, f)
     }
 

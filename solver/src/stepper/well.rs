@@ -9,6 +9,11 @@ use crate::model::Model;
 /// bracket to round-off in about 60).
 const ALGEBRAIC_MAX_ITERATIONS: usize = 200;
 
+/// Newton steps taken toward a side of the bracket that is still open before widening
+/// steps take over (a convex law approached from its flat side converges in a few; one that
+/// does not is bracketed by doubling).
+const OPEN_NEWTON_STEPS: usize = 6;
+
 /// First widening step of the bracket on an in-well head near zero, m.
 const HEAD_UNIT_M: f64 = 1e-3;
 
@@ -36,9 +41,10 @@ impl Stepper {
         h0: f64,
         h1: f64,
     ) -> Result<f64, SolverError> {
+        let device = model.drive.device_at(t, self.vapour);
         let f = |h: f64| {
             let (q, g) = self.screen_path_flow(h - h1);
-            let dev = model.drive.device_flow(t, h, self.vapour);
+            let dev = device.flow(h);
             let st = s * (h - h0);
             (
                 st + q - dev.total(),
@@ -63,8 +69,9 @@ impl Stepper {
         t: f64,
         q: f64,
     ) -> Result<f64, SolverError> {
+        let device = model.drive.device_at(t, self.vapour);
         let f = |h: f64| {
-            let dev = model.drive.device_flow(t, h, self.vapour);
+            let dev = device.flow(h);
             (
                 q - dev.total(),
                 -dev.d_dh_m2_s,
@@ -77,11 +84,17 @@ impl Stepper {
 }
 
 /// Root of a strictly increasing function `f` (returning value, derivative and the size of
-/// the terms the value sums, for the round-off test), from `guess`: the root is bracketed by
-/// widening steps from `unit` (or |guess|) and refined by Newton, bisecting whenever Newton
-/// leaves the bracket, so it converges even on square-root laws where plain Newton cycles.
-/// `unit` is the first widening step when |guess| is smaller; the iteration stops once the
-/// variable moves by less than 1e-15 of its magnitude or than `settled`, whichever is larger.
+/// the terms the value sums, for the round-off test), from `guess` (warm: the last
+/// iterate's or step's root): safeguarded Newton. Each evaluation narrows a bracket; while
+/// one side of it is still open, Newton steps toward it are taken as they come (on a
+/// monotone law they either converge or cross the root and close the bracket), and a
+/// widening step from `unit` (or |guess|), doubling, is taken instead when Newton points the
+/// wrong way, is not finite or has not closed the bracket after a few steps. Once both sides
+/// are known, Newton is replaced by bisection whenever it would leave the bracket or would
+/// not halve the previous step, so it converges even on square-root laws where plain
+/// Newton cycles. The iteration stops once the variable moves by less than 1e-15 of its
+/// magnitude or than `settled`, whichever is larger. A smooth law near the guess costs two
+/// or three evaluations.
 pub(super) fn bracketed_root(
     t: f64,
     guess: f64,
@@ -89,43 +102,30 @@ pub(super) fn bracketed_root(
     settled: f64,
     f: impl Fn(f64) -> (f64, f64, f64),
 ) -> Result<f64, SolverError> {
+    let non_finite = || SolverError::NonFinite {
+        time_s: t,
+        index: 0,
+    };
     let mut h = guess;
-    let (mut lo, mut hi) = (h, h);
+    let (mut lo, mut hi) = (f64::NEG_INFINITY, f64::INFINITY);
     let mut width = unit.max(h.abs());
-    while f(lo).0 > 0.0 {
-        lo -= width;
-        width *= 2.0;
-        if !lo.is_finite() {
-            return Err(SolverError::NonFinite {
-                time_s: t,
-                index: 0,
-            });
-        }
-    }
-    width = unit.max(h.abs());
-    while f(hi).0 < 0.0 {
-        hi += width;
-        width *= 2.0;
-        if !hi.is_finite() {
-            return Err(SolverError::NonFinite {
-                time_s: t,
-                index: 0,
-            });
-        }
-    }
     // Stop when the Newton correction is at round-off of the variable: the residual itself
     // cannot be driven below the round-off of the steep screen and orifice laws. A step
     // that small settles the root only where the function is smooth, so it is confirmed by
     // a probe a few round-off steps toward the root: beside a square-root law's vertical
     // tangent (an orifice at zero head difference) the derivative is huge and the step tiny
-    // while the value is not. Newton is also replaced by bisection when it would leave the
-    // bracket or would not halve the previous step (the safeguard of Press et al.,
-    // Numerical Recipes, "rtsafe", from memory), since on a square-root law it cycles
-    // between the two sides.
+    // while the value is not. With both sides known, Newton is replaced by bisection when it
+    // would leave the bracket or would not halve the previous step (the safeguard of Press
+    // et al., Numerical Recipes, "rtsafe", from memory), since on a square-root law it
+    // cycles between the two sides.
     let tiny = |h: f64| (1e-15 * h.abs()).max(settled).max(f64::MIN_POSITIVE);
     let mut last = (f64::INFINITY, 1.0);
-    let mut step = hi - lo;
+    let mut step = f64::INFINITY;
+    let mut open_steps = 0;
     for _ in 0..ALGEBRAIC_MAX_ITERATIONS {
+        if !h.is_finite() {
+            return Err(non_finite());
+        }
         let (v, d, scale) = f(h);
         last = (v, scale);
         if v == 0.0 || v.abs() <= 1e-15 * scale || hi - lo <= tiny(h) {
@@ -145,8 +145,13 @@ pub(super) fn bracketed_root(
                 (h - 4.0 * tiny(h)).max(lo)
             };
             let vp = f(probe).0;
-            if vp == 0.0 || (vp > 0.0) != (v > 0.0) {
-                return Ok(if vp.abs() < v.abs() { probe } else { h });
+            if vp == 0.0 {
+                return Ok(probe);
+            }
+            if (vp > 0.0) != (v > 0.0) {
+                // The root lies between h and the probe, and so does the Newton point (its
+                // step is shorter than the probe's): on a smooth law it is the closer.
+                return Ok(newton);
             }
             // Still short of the root: the probe narrows the bracket.
             if v < 0.0 {
@@ -155,7 +160,20 @@ pub(super) fn bracketed_root(
                 hi = probe;
             }
         }
-        if inside && (newton - h).abs() > tiny(h) && 2.0 * (newton - h).abs() <= step.abs() {
+        let bracketed = lo.is_finite() && hi.is_finite();
+        let good_newton = inside && (newton - h).abs() > tiny(h);
+        if !bracketed {
+            // Toward the open side: Newton while it heads there (a few times), else widen.
+            open_steps += 1;
+            if good_newton && open_steps <= OPEN_NEWTON_STEPS {
+                step = newton - h;
+                h = newton;
+            } else {
+                step = if v < 0.0 { width } else { -width };
+                h = if v < 0.0 { lo + width } else { hi - width };
+                width *= 2.0;
+            }
+        } else if good_newton && 2.0 * (newton - h).abs() <= step.abs() {
             step = newton - h;
             h = newton;
         } else {
@@ -217,5 +235,30 @@ mod tests {
         let f = |x: f64| (if x < 0.3 { -1.0 } else { 1.0 }, 0.0, 1.0);
         let x = bracketed_root(0.0, 0.0, 1.0, 1e-18, f).unwrap();
         assert!((x - 0.3).abs() < 1e-12, "{x}");
+    }
+
+    #[test]
+    fn a_warm_guess_on_a_smooth_law_costs_few_evaluations() {
+        // f(x) = x³ + x − 2 (root x = 1, by hand: 1 + 1 − 2 = 0), increasing. From a guess
+        // 1e-3 off, Newton's error squares each step (e ≈ f''/(2f') e² = 6/8 e²): 1e-3, 8e-7,
+        // 5e-13, round-off; so at most four evaluations plus the round-off probe.
+        let calls = std::cell::Cell::new(0);
+        let f = |x: f64| {
+            calls.set(calls.get() + 1);
+            (
+                x * x * x + x - 2.0,
+                3.0 * x * x + 1.0,
+                (x * x * x).abs() + x.abs() + 2.0,
+            )
+        };
+        let x = bracketed_root(0.0, 1.001, 1e-3, 0.0, f).unwrap();
+        assert!((x - 1.0).abs() <= 4.0 * f64::EPSILON, "{x}");
+        assert!(calls.get() <= 5, "{} evaluations", calls.get());
+        // A cold guess far on the flat side is still found (Newton toward the open side,
+        // then widening): from −50 the law is steep and Newton crosses the root at once.
+        calls.set(0);
+        let x = bracketed_root(0.0, -50.0, 1e-3, 0.0, f).unwrap();
+        assert!((x - 1.0).abs() <= 4.0 * f64::EPSILON, "{x}");
+        assert!(calls.get() <= 40, "{} evaluations", calls.get());
     }
 }

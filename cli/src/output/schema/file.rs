@@ -19,6 +19,8 @@ pub enum Group {
     Progress,
     /// Headline figures and texts (attributes).
     Summary,
+    /// Per-cycle envelopes of the per-step series (`output.store`).
+    Envelopes,
 }
 
 impl Group {
@@ -31,6 +33,7 @@ impl Group {
             Group::Snapshots => "snapshots",
             Group::Progress => "progress",
             Group::Summary => "summary",
+            Group::Envelopes => "envelopes",
         }
     }
 

@@ -1,0 +1,96 @@
+//! The case's `output` section: how much of the run the result file keeps (docs/formats.md,
+//! "Storage choice"). Every key is optional.
+
+use super::error::CaseError;
+use boreflux_solver::Model;
+use schemars::JsonSchema;
+use serde::Deserialize;
+use serde_json::{json, Value};
+
+/// Default cycles kept step by step at the start, at the end and around each event.
+pub const DEFAULT_DETAIL_CYCLES: u64 = 10;
+/// Largest run that "auto" stores step by step, in estimated steps: about 60 MB of series
+/// before compression (30 series of 8 bytes), 30 MB after. Assumption: a file of that size is
+/// still quick to open and plot; beyond it a periodic run keeps envelopes.
+pub const AUTO_STEPS_LIMIT: f64 = 250_000.0;
+
+/// What the result file keeps of the per-step series [all automatic].
+#[derive(Debug, Default, Deserialize, JsonSchema)]
+#[serde(deny_unknown_fields)]
+pub struct RawOutput {
+    /// "steps": every reported step (every `numerics.output_every`-th); "envelopes": the
+    /// minimum, maximum and RMS of every series over each complete drive cycle, with every
+    /// step kept only for the first and last `detail_cycles` cycles and around events (a
+    /// stage change, a jump of the cake's cover or thickness); "auto": steps while the run's
+    /// estimated steps are at most 250 000, envelopes beyond for a periodic drive [auto].
+    pub store: Option<StoreChoice>,
+    /// Cycles kept step by step at the start and end of an "envelopes" run, and the
+    /// cycles kept before and after each event (1 each side) [10].
+    pub detail_cycles: Option<u64>,
+}
+
+/// The storage choice as written.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize, JsonSchema)]
+#[serde(rename_all = "snake_case")]
+pub enum StoreChoice {
+    /// Steps or envelopes by the run's size.
+    Auto,
+    /// Every reported step.
+    Steps,
+    /// Per-cycle envelopes with detail windows.
+    Envelopes,
+}
+
+/// The storage choice of a loaded case.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Storage {
+    /// Every reported step in `/series`.
+    Steps,
+    /// `/envelopes` per complete cycle; `/series` holds the detail windows.
+    Envelopes {
+        /// Cycles kept in full at the start and end.
+        detail_cycles: u64,
+    },
+}
+
+/// Reads the section and resolves "auto" from the run's estimated steps; the resolved
+/// section goes into the case's `case_json`.
+pub fn storage(raw: Option<&RawOutput>, model: &Model) -> Result<(Storage, Value), CaseError> {
+    let choice = raw.and_then(|r| r.store).unwrap_or(StoreChoice::Auto);
+    let detail_cycles = raw
+        .and_then(|r| r.detail_cycles)
+        .unwrap_or(DEFAULT_DETAIL_CYCLES);
+    if detail_cycles == 0 {
+        return Err(CaseError::new(
+            "output.detail_cycles",
+            "must be at least 1 (the last cycles are always kept step by step)",
+        ));
+    }
+    let periodic = model.drive.slowest_period_s().is_some();
+    let storage =
+        match choice {
+            StoreChoice::Steps => Storage::Steps,
+            StoreChoice::Envelopes if !periodic => return Err(CaseError::new(
+                "output.store",
+                "\"envelopes\" needs a periodic drive (a surge block, swab, pump-and-backwash, \
+                 jetting, sine head or repeating table); use \"steps\"",
+            )),
+            StoreChoice::Envelopes => Storage::Envelopes { detail_cycles },
+            StoreChoice::Auto => {
+                let steps = boreflux_solver::cost::estimate(model).steps;
+                if periodic && steps > AUTO_STEPS_LIMIT {
+                    Storage::Envelopes { detail_cycles }
+                } else {
+                    Storage::Steps
+                }
+            }
+        };
+    let store = match storage {
+        Storage::Steps => "steps",
+        Storage::Envelopes { .. } => "envelopes",
+    };
+    Ok((
+        storage,
+        json!({ "store": store, "detail_cycles": detail_cycles }),
+    ))
+}
