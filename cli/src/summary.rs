@@ -94,6 +94,8 @@ pub struct Headline {
     pub steps: u64,
     /// Complete cycles.
     pub cycles: u64,
+    /// Cycles jumped over, not computed (`numerics.multiscale`).
+    pub skipped_cycles: u64,
     /// Grid cells.
     pub cells: usize,
     /// Outer radius, m.
@@ -675,6 +677,7 @@ pub fn headline(
     Headline {
         title: case.title.clone(),
         steps: s.steps,
+        skipped_cycles: s.skipped_cycles,
         cycles: s.cycles,
         cells: s.cells,
         outer_radius_m: r_out,
@@ -858,7 +861,14 @@ pub fn table(h: &Headline) -> String {
     let mut row = |k: &str, v: String| t.push_str(&format!("  {k:<44} {v}\n"));
     row(
         "steps / cycles / cells",
-        format!("{} / {} / {}", h.steps, h.cycles, h.cells),
+        if h.skipped_cycles > 0 {
+            format!(
+                "{} / {} ({} jumped over, not computed) / {}",
+                h.steps, h.cycles, h.skipped_cycles, h.cells
+            )
+        } else {
+            format!("{} / {} / {}", h.steps, h.cycles, h.cells)
+        },
     );
     row("simulated time", format!("{} s", G(h.end_time_s, 4)));
     row(
