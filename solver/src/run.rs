@@ -433,9 +433,6 @@ pub fn run_from_state(
                 st.forget_history();
                 flux_watch.reset();
                 head_watch.reset();
-                if let Some(j) = jumper.as_mut() {
-                    j.reset();
-                }
             }
         }
         summary.steps += 1;
