@@ -65,7 +65,10 @@ fn compare(c: &Value, tolerance: Option<f64>) -> (Value, Value, PathBuf, tempfil
     let (multi, out) = run(dir.path(), "multi", &m);
     assert_eq!(full["skipped_cycles"], 0);
     let skipped = multi["skipped_cycles"].as_u64().unwrap();
-    assert!(skipped > 0, "no cycle was jumped over: the test checks nothing");
+    assert!(
+        skipped > 0,
+        "no cycle was jumped over: the test checks nothing"
+    );
     assert!(multi["steps"].as_u64().unwrap() < full["steps"].as_u64().unwrap());
     assert_eq!(multi["cycles"], full["cycles"]);
     for f in FIGURES {
@@ -89,7 +92,11 @@ fn municipal_surge_block_for_30_min_matches_full_stepping() {
     let f = hdf5::File::open(&out).unwrap();
     let skipped: Vec<f64> = f.dataset("jumps/cycles").unwrap().read_raw().unwrap();
     let first: Vec<f64> = f.dataset("jumps/first_cycle").unwrap().read_raw().unwrap();
-    let error: Vec<f64> = f.dataset("jumps/error_estimate").unwrap().read_raw().unwrap();
+    let error: Vec<f64> = f
+        .dataset("jumps/error_estimate")
+        .unwrap()
+        .read_raw()
+        .unwrap();
     let total: f64 = skipped.iter().sum();
     assert_eq!(total as u64, multi["skipped_cycles"].as_u64().unwrap());
     assert!(error.iter().all(|&e| (0.0..=1.0).contains(&e)), "{error:?}");

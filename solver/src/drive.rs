@@ -513,9 +513,10 @@ impl Drive {
             Drive::PumpBackwash(p) => Some(ramp(p.ramp_cycles, p.period_s())),
             Drive::JetPulse(j) => Some(ramp(j.ramp_cycles, j.period_s())),
             Drive::Table(t) if t.repeat => Some(0.0),
-            Drive::Table(_) | Drive::Schedule(_) | Drive::ConstantRate { .. } | Drive::Slug { .. } => {
-                None
-            }
+            Drive::Table(_)
+            | Drive::Schedule(_)
+            | Drive::ConstantRate { .. }
+            | Drive::Slug { .. } => None,
         }
     }
 

@@ -123,7 +123,10 @@ fn jumps_reproduce_a_constant_erosion_per_cycle() {
         "no jump: the test checks nothing"
     );
     assert_eq!(m.cycles, f.cycles);
-    assert_eq!(m.skipped_cycles, multi.jumps.iter().map(|j| j.1).sum::<u64>());
+    assert_eq!(
+        m.skipped_cycles,
+        multi.jumps.iter().map(|j| j.1).sum::<u64>()
+    );
     // Each jump's extrapolation error is what it estimated (its error estimate × tolerance ×
     // scale, the starting thickness; at most tolerance × scale); the full run's own
     // departure from the closed form is added.

@@ -19,10 +19,10 @@ use crate::summary::{assessment, headline, table, Headline, Tracker};
 use anyhow::{anyhow, Context};
 use boreflux_solver::assess::progress::{ProgressBasis, ProgressPoint};
 use boreflux_solver::grid::Grid;
+use boreflux_solver::model::{Model, Multiscale};
 use boreflux_solver::safety::CAUTION;
 use boreflux_solver::slow::SlowState;
 use boreflux_solver::system::Discretization;
-use boreflux_solver::model::{Model, Multiscale};
 use boreflux_solver::{
     run as simulate, CycleView, JumpView, Reporting, SolverError, StepObserver, StepView,
 };

@@ -318,10 +318,7 @@ impl CycleJumper {
             return None;
         }
         let kf = k as f64;
-        let error = 0.5
-            * kf
-            * (kf + 1.0)
-            * self.curvature.iter().fold(0.0f64, |m, &c| m.max(c));
+        let error = 0.5 * kf * (kf + 1.0) * self.curvature.iter().fold(0.0f64, |m, &c| m.max(c));
         for (dh, r) in self.dh.iter_mut().zip(&self.rate) {
             *dh = kf * r;
         }
