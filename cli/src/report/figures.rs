@@ -94,8 +94,15 @@ pub fn figures(runs: &[Run]) -> Vec<Figure> {
             }
             render(&c)
         };
-    let decimated = "Long series are drawn from the lowest and highest value in each pixel \
-                     column, so peaks are kept.";
+    let decimated = if runs.iter().any(|r| !r.series.gaps.is_empty()) {
+        "Long series are drawn from the lowest and highest value in each pixel column, so \
+         peaks are kept. The lines break where the run jumped over whole cycles \
+         (numerics.multiscale): those cycles were not computed, their state was \
+         extrapolated (listed in /jumps)."
+    } else {
+        "Long series are drawn from the lowest and highest value in each pixel column, so \
+         peaks are kept."
+    };
     let mut out = vec![
         Figure {
             title: "In-well head and flow through the screen".into(),
