@@ -56,7 +56,9 @@ fn run(dir: &Path, tag: &str, c: &Value) -> (Value, PathBuf) {
 /// Runs `c` in full and with cycle jumping (`tolerance`: None = the default) and compares.
 fn compare(c: &Value, tolerance: Option<f64>) -> (Value, Value, PathBuf, tempfile::TempDir) {
     let dir = tempfile::tempdir().unwrap();
-    let (full, _) = run(dir.path(), "full", c);
+    let mut f = c.clone();
+    f["numerics"]["multiscale"] = "off".into();
+    let (full, _) = run(dir.path(), "full", &f);
     let mut m = c.clone();
     m["numerics"]["multiscale"] = "auto".into();
     if let Some(t) = tolerance {

@@ -245,7 +245,14 @@ pub fn numerics(raw: &RawNumerics, period_s: Option<f64>) -> Result<NumericsOut,
 pub const MAX_MULTISCALE_TOLERANCE: f64 = 1e-2;
 
 fn multiscale(raw: &RawNumerics, period_s: Option<f64>) -> Result<Multiscale, CaseError> {
-    match raw.multiscale.unwrap_or(MultiscaleName::Off) {
+    // Default: "auto" for a periodic drive (the accuracy target is met on every shipped
+    // case, docs/time-stepping.md §Multiscale stepping), "off" otherwise.
+    let default = if period_s.is_some() {
+        MultiscaleName::Auto
+    } else {
+        MultiscaleName::Off
+    };
+    match raw.multiscale.unwrap_or(default) {
         MultiscaleName::Off => {
             if raw.multiscale_tolerance.is_some() {
                 return Err(CaseError::new(
@@ -488,6 +495,39 @@ mod tests {
         assert_eq!(
             duration(&DurationValue(json!("10 cycles")), Some(3.0)).unwrap(),
             30.0
+        );
+    }
+
+    #[test]
+    fn multiscale_defaults_and_errors_name_the_field() {
+        let raw = |m: Option<MultiscaleName>, tol: Option<f64>| RawNumerics {
+            multiscale: m,
+            multiscale_tolerance: tol,
+            ..RawNumerics::default()
+        };
+        let ms = |r: &RawNumerics, p| numerics(r, p).map(|n| n.numerics.multiscale);
+        assert_eq!(
+            ms(&raw(None, None), Some(3.0)).unwrap(),
+            Multiscale::Auto {
+                tolerance: DEFAULT_MULTISCALE_TOLERANCE
+            }
+        );
+        assert_eq!(ms(&raw(None, None), None).unwrap(), Multiscale::Off);
+        assert_eq!(
+            ms(&raw(Some(MultiscaleName::Off), None), Some(3.0)).unwrap(),
+            Multiscale::Off
+        );
+        let field = |r: &RawNumerics, p| numerics(r, p).unwrap_err().to_string();
+        assert!(
+            field(&raw(Some(MultiscaleName::Auto), None), None).starts_with("numerics.multiscale:")
+        );
+        for bad in [0.0, -1e-4, 0.5, f64::NAN] {
+            assert!(field(&raw(None, Some(bad)), Some(3.0))
+                .starts_with("numerics.multiscale_tolerance:"));
+        }
+        assert!(
+            field(&raw(Some(MultiscaleName::Off), Some(1e-3)), Some(3.0))
+                .starts_with("numerics.multiscale_tolerance:")
         );
     }
 }

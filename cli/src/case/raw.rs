@@ -307,7 +307,8 @@ pub struct RawNumerics {
     /// Absolute tolerance of the adaptive steps on heads [1 mm].
     pub absolute_tolerance: Option<Q<Length>>,
     /// Cycle jumping over the slow state of a periodic drive: "off" (every cycle stepped)
-    /// or "auto" (jump over cycles while the state changes smoothly) [off].
+    /// or "auto" (jump over cycles while the state changes smoothly) [auto for a periodic
+    /// drive, off otherwise].
     pub multiscale: Option<MultiscaleName>,
     /// Extrapolation error allowed per jump, relative to each sampled quantity's scale
     /// (multiscale "auto" only), in (0, 0.01] [1e-4].
