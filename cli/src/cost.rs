@@ -14,6 +14,8 @@ use boreflux_solver::cost::estimate;
 /// Largest run accepted without `--allow-large`, in cells × steps. Assumption: at the
 /// measured rate below this is a few minutes of computing.
 pub const MAX_CELL_STEPS: f64 = 5e8;
+use boreflux_solver::model::Multiscale;
+
 /// Largest output accepted without `--allow-large`, bytes (HDF5 and CSV together).
 /// Assumption: 2 GB.
 pub const MAX_OUTPUT_BYTES: f64 = 2e9;
@@ -41,6 +43,9 @@ const COMPRESSED_FRACTION: f64 = 0.55;
 /// Fixed part of an HDF5 file: grid, attributes, cycle tables, headers. Measured: the
 /// shipped cases' files are 1.2 to 2.8 MB, of which the series take all but about 0.5 MB.
 const H5_FIXED_BYTES: f64 = 1e6;
+/// Headers of the `/jumps` group's five datasets (assumption: 8 kB bounds them; an empty
+/// group measured about 2 kB more than a file without it).
+const JUMPS_FIXED_BYTES: f64 = 8e3;
 
 /// The estimate of one run.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -90,6 +95,14 @@ pub fn run_cost(case: &LoadedCase, csv: bool, snapshot_every: u64) -> RunCost {
     let mut bytes = H5_FIXED_BYTES
         + COMPRESSED_FRACTION
             * (rows * h5_bytes_per_row() + envelope_bytes + snapshots * c.cells * 8.0);
+    // The steps are those of full stepping, an upper bound when cycles are jumped over;
+    // the `/jumps` group adds its headers and at most one jump per five cycles of five
+    // 8-byte values.
+    if let (Multiscale::Auto { .. }, Some(p)) =
+        (case.model.numerics.multiscale, case.model.drive.period_s())
+    {
+        bytes += JUMPS_FIXED_BYTES + 8.0 * case.model.duration_s / p;
+    }
     if csv {
         bytes += rows * csv_bytes_per_row();
     }

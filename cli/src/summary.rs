@@ -625,7 +625,14 @@ pub fn table(h: &Headline) -> String {
     let mut row = |k: &str, v: String| t.push_str(&format!("  {k:<44} {v}\n"));
     row(
         "steps / cycles / cells",
-        format!("{} / {} / {}", s.steps, s.cycles, s.cells),
+        if s.skipped_cycles > 0 {
+            format!(
+                "{} / {} ({} jumped over, not computed) / {}",
+                s.steps, s.cycles, s.skipped_cycles, s.cells
+            )
+        } else {
+            format!("{} / {} / {}", s.steps, s.cycles, s.cells)
+        },
     );
     row("simulated time", format!("{} s", G(s.end_time_s, 4)));
     row(

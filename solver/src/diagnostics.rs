@@ -107,6 +107,26 @@ pub trait StepObserver {
     fn on_step(&mut self, step: &StepView<'_>) -> bool;
     /// Called at the end of each cycle of a periodic drive.
     fn on_cycle(&mut self, _cycle: &CycleView) {}
+    /// Called when the run jumped over whole cycles (`numerics.multiscale`): no step and no
+    /// cycle is reported between `jump.from_s` and `jump.to_s`.
+    fn on_jump(&mut self, _jump: &JumpView) {}
+}
+
+/// A jump over whole cycles of a periodic drive (docs/time-stepping.md §Multiscale
+/// stepping): the cycles `first_cycle .. first_cycle + cycles` were not computed; the
+/// state at `to_s` is extrapolated from the last computed cycles.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct JumpView {
+    /// Time the jump starts (the end of the last computed cycle), s.
+    pub from_s: f64,
+    /// Time the jump lands on, s.
+    pub to_s: f64,
+    /// Number of the first cycle skipped, from 0.
+    pub first_cycle: u64,
+    /// Cycles skipped.
+    pub cycles: u64,
+    /// The extrapolation error estimated for the jump, relative to the tolerance's scale, –.
+    pub error_estimate: f64,
 }
 
 /// An observer that ignores everything.
@@ -273,5 +293,17 @@ impl CycleAccumulator {
             ..CycleAccumulator::new(self.period_s, 0.0)
         };
         Some(cycle)
+    }
+
+    /// Skips `cycles` whole cycles (a jump, `run/multiscale.rs`): the next cycle starts at
+    /// `time_s` with the run's work `work_j` and cake thickness `cake_m` there.
+    pub fn skip(&mut self, cycles: u64, time_s: f64, work_j: [f64; ZONE_COUNT], cake_m: f64) {
+        *self = CycleAccumulator {
+            index: self.index + cycles,
+            start_s: time_s,
+            work_start: work_j,
+            cake_start: cake_m,
+            ..CycleAccumulator::new(self.period_s, 0.0)
+        };
     }
 }

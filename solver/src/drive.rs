@@ -484,6 +484,26 @@ impl Drive {
         }
     }
 
+    /// Time from which a drive that is not a schedule repeats exactly from cycle to cycle
+    /// (the end of its start-up ramp), s; `None` for a schedule or a drive without a period.
+    /// A run may jump over whole cycles only after it (docs/time-stepping.md §Multiscale
+    /// stepping).
+    pub fn repeats_from_s(&self) -> Option<f64> {
+        let ramp = |cycles: f64, p: f64| cycles.max(0.0) * p;
+        match self {
+            Drive::SineHead(s) => Some(ramp(s.ramp_cycles, 1.0 / s.frequency_hz)),
+            Drive::SurgeBlock(b) => Some(ramp(b.ramp_cycles, 1.0 / b.frequency_hz)),
+            Drive::Swab(s) => Some(ramp(s.ramp_cycles, s.period_s())),
+            Drive::PumpBackwash(p) => Some(ramp(p.ramp_cycles, p.period_s())),
+            Drive::JetPulse(j) => Some(ramp(j.ramp_cycles, j.period_s())),
+            Drive::Table(t) if t.repeat => Some(0.0),
+            Drive::Table(_)
+            | Drive::Schedule(_)
+            | Drive::ConstantRate { .. }
+            | Drive::Slug { .. } => None,
+        }
+    }
+
     /// Slowest period among the stages, s (for the automatic outer radius).
     pub fn slowest_period_s(&self) -> Option<f64> {
         match self {

@@ -276,7 +276,27 @@ pub struct Numerics {
     pub sync_times_s: Vec<f64>,
     /// Time integration scheme.
     pub scheme: Scheme,
+    /// Cycle jumping over the slow state of a periodic drive (docs/time-stepping.md
+    /// §Multiscale stepping).
+    pub multiscale: Multiscale,
 }
+
+/// Cycle jumping (envelope following) for periodic drives (docs/time-stepping.md
+/// §Multiscale stepping).
+#[derive(Debug, Clone, Copy, PartialEq, Default)]
+pub enum Multiscale {
+    /// Every cycle is stepped in full (the reference).
+    #[default]
+    Off,
+    /// Jump over cycles while the sampled state changes smoothly from cycle to cycle.
+    Auto {
+        /// Extrapolation error allowed per jump, relative to each sampled quantity's scale, –.
+        tolerance: f64,
+    },
+}
+
+/// Default tolerance of `numerics.multiscale` (docs/time-stepping.md §Multiscale stepping).
+pub const DEFAULT_MULTISCALE_TOLERANCE: f64 = 1e-4;
 
 /// Time integration scheme (docs/time-stepping.md).
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -319,6 +339,7 @@ impl Default for Numerics {
             newton_max_iterations: 30,
             sync_times_s: Vec::new(),
             scheme: Scheme::default(),
+            multiscale: Multiscale::Off,
         }
     }
 }

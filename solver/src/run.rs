@@ -19,6 +19,7 @@
 //! the next `startup_steps` steps are each replaced by two backward-Euler half steps
 //! (Rannacher 1984).
 
+mod multiscale;
 mod watch;
 
 use crate::diagnostics::{face_state, power_now, CycleAccumulator, StepObserver, StepView};
@@ -97,8 +98,12 @@ pub const DEFAULT_STEPS_PER_DECADE: f64 = 40.0;
 pub struct RunSummary {
     /// Steps taken.
     pub steps: u64,
-    /// Complete cycles of a periodic drive.
+    /// Complete cycles of a periodic drive (computed and skipped).
     pub cycles: u64,
+    /// Cycles jumped over, not computed (`numerics.multiscale`).
+    pub skipped_cycles: u64,
+    /// Jumps over cycles (`numerics.multiscale`).
+    pub jumps: u64,
     /// Cells of the grid.
     pub cells: usize,
     /// Outer radius used, m.
@@ -351,6 +356,8 @@ pub fn run_from_state(
     let mut summary = RunSummary {
         steps: 0,
         cycles: 0,
+        skipped_cycles: 0,
+        jumps: 0,
         cells: n_unknowns - 1,
         outer_radius_m: st.disc.grid.outer_radius_m(),
         end_time_s: 0.0,
@@ -410,6 +417,7 @@ pub fn run_from_state(
     let mut head_watch = Alternation::default();
     let mut oscillation: Option<(f64, &'static str)> = None;
     let mut forced_steps = 0u64;
+    let mut jumper = multiscale::CycleJumper::new(model, &st, &slow);
     let end = model.duration_s;
     let eps = 1e-12 * end.max(1.0);
     while st.time_s < end - eps {
@@ -492,6 +500,9 @@ pub fn run_from_state(
                 st.set_slow(model, &slow);
                 st.forget_history();
                 chooser.restart();
+                if let Some(j) = jumper.as_mut() {
+                    j.reset();
+                }
             }
         }
         // The differential across the screen: the head inside it is the well head less the
@@ -528,6 +539,7 @@ pub fn run_from_state(
         sum_q2_dt += face.flux_m_s * face.flux_m_s * b.dt_s;
         let last = st.time_s >= end - eps;
         let report = landing || last || summary.steps % reporting.every == 0 || cycles.is_some();
+        let mut cycle_done = None;
         if report {
             let power_w = power_now(model, &mut st);
             check_finite(&[("power", power_w.iter().sum())], st.time_s, summary.steps)?;
@@ -563,6 +575,7 @@ pub fn run_from_state(
                 if let Some(c) = acc.add(&view) {
                     summary.cycles += 1;
                     observer.on_cycle(&c);
+                    cycle_done = Some(c.index);
                 }
             }
             let stop = (landing || last || summary.steps % reporting.every == 0)
@@ -570,6 +583,29 @@ pub fn run_from_state(
             if stop {
                 summary.stopped_early = true;
                 break;
+            }
+        }
+        // At a computed cycle's end: jump over whole cycles where the state changes
+        // smoothly (numerics.multiscale, run/multiscale.rs).
+        if let (Some(j), Some(index), Some(acc)) = (jumper.as_mut(), cycle_done, cycles.as_mut()) {
+            if let Some(jumped) = j.at_cycle_end(
+                model,
+                &mut st,
+                &mut slow,
+                &mut summary,
+                &mut sum_q2_dt,
+                &mut push.stalled_s,
+                index + 1,
+            ) {
+                acc.skip(
+                    jumped.view.cycles,
+                    st.time_s,
+                    summary.work_j,
+                    slow.cake_thickness_m().1,
+                );
+                flux_watch.reset();
+                head_watch.reset();
+                observer.on_jump(&jumped.view);
             }
         }
     }

@@ -38,6 +38,11 @@ pub const REBUILD_FRACTION: f64 = 1e-6;
 /// any field estimate).
 pub const REMOVED_FRACTION: f64 = 0.1;
 
+/// Fractions of the starting cake thickness whose first crossing the run's figures time
+/// (half and a tenth of the cake left); a jump over cycles never crosses one
+/// ([`SlowState::set_sample`]).
+pub const THICKNESS_MARKS: [f64; 2] = [0.5, 0.1];
+
 /// What an update of the slow state did.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum Change {
@@ -239,6 +244,67 @@ impl SlowState {
             }
         }
         change
+    }
+
+    /// Number of values [`SlowState::sample`] writes.
+    pub fn sample_len(&self) -> usize {
+        1 + self.fines.as_ref().map_or(0, FinesState::sample_len)
+    }
+
+    /// The state the removal laws integrate, as one vector for cycle jumping
+    /// (`run/multiscale.rs`): the cake thickness, then the fines
+    /// ([`FinesState::sample`]); `scale` gets each value's natural size (the starting cake
+    /// thickness, the fines' own scales). The coverage follows from the thickness and the
+    /// lift-off peak, and the applied conductivities and the skin from these, so they are not
+    /// sampled.
+    pub fn sample(&self, out: &mut [f64], scale: &mut [f64]) {
+        out[0] = self.cake.map_or(0.0, |c| c.thickness_m);
+        scale[0] = if self.initial_cake_m > 0.0 {
+            self.initial_cake_m
+        } else {
+            1.0
+        };
+        if let Some(f) = &self.fines {
+            f.sample(&mut out[1..], &mut scale[1..]);
+        }
+    }
+
+    /// Sets the state from a vector laid out as [`SlowState::sample`] writes it, keeping the
+    /// lift-off peak (a jump never raises it): the coverage, the applied conductivities and
+    /// the skin follow. Returns false when the new state lies across an event the full
+    /// steps must find themselves — the cake gone, or its skin down to the removal mark
+    /// ([`REMOVED_FRACTION`]) or its thickness down to one of [`THICKNESS_MARKS`] for the
+    /// first time — or is not finite; the caller then puts
+    /// the state back.
+    pub fn set_sample(&mut self, model: &Model, x: &[f64]) -> bool {
+        let mut ok = x[0].is_finite();
+        if let (Some(c), Some(st)) = (&model.cake, self.cake.as_mut()) {
+            if st.thickness_m > 0.0 {
+                ok &= x[0] > 0.0;
+                // The marks the run reports the time of (half and a tenth of the cake gone)
+                // are found by full steps.
+                let d0 = self.initial_cake_m;
+                ok &= !THICKNESS_MARKS
+                    .iter()
+                    .any(|m| st.thickness_m > m * d0 && x[0] <= m * d0);
+                st.thickness_m = x[0].max(0.0);
+                st.coverage = cake::coverage(c, st.thickness_m, self.lift_peak_pa);
+                ok &= st.coverage > 0.0;
+            }
+        }
+        if let Some(f) = self.fines.as_mut() {
+            ok &= f.set_sample(&x[1..]);
+            self.k_applied.copy_from_slice(f.conductivity());
+        }
+        self.skin = self.skin_parts(model);
+        ok &= self.skin.total().is_finite();
+        if self.cake_removed_at_s.is_none()
+            && self.initial_skin.cake > 0.0
+            && self.skin.cake <= REMOVED_FRACTION * self.initial_skin.cake
+        {
+            ok = false;
+        }
+        ok
     }
 
     fn advance_cake(&mut self, model: &Model, face: &FaceState, dt_s: f64, wall_r: f64) -> Change {

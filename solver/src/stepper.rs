@@ -325,6 +325,20 @@ impl Stepper {
         self.factored_for = None;
     }
 
+    /// Moves the clock on by `dt_s` and the heads by `dh` (m, index 0 = well) without
+    /// stepping: a jump over whole cycles of a periodic drive (`run/multiscale.rs`). The
+    /// column flow and the vapour gap are kept (the drive's phase is the same), the step
+    /// history is forgotten, and nothing is left to undo.
+    pub fn jump(&mut self, dt_s: f64, dh: &[f64]) {
+        for (h, d) in self.h.iter_mut().zip(dh) {
+            *h += d;
+        }
+        self.y.copy_from_slice(&self.h);
+        self.time_s += dt_s;
+        self.undo_time = None;
+        self.forget_history();
+    }
+
     /// Forgets the recent steps Newton extrapolates its initial guess from: call it after a
     /// jump of the forcing, across which the old trend predicts nothing.
     pub fn forget_history(&mut self) {

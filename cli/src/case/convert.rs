@@ -11,7 +11,7 @@ use super::zones::{cake, formation, invaded, pack, well};
 use super::{LoadedCase, Log};
 use crate::units::{format_si, Quantity};
 use boreflux_solver::grid::auto_outer_radius;
-use boreflux_solver::model::{Fluid, TimeSpec};
+use boreflux_solver::model::{Fluid, Multiscale, TimeSpec};
 use boreflux_solver::run::default_first_step;
 use boreflux_solver::water::{Water, FIT_RANGE_MAX_C, FIT_RANGE_MIN_C};
 use boreflux_solver::Model;
@@ -263,6 +263,17 @@ fn time_notes(model: &Model, raw: &RawNumerics, log: &mut Log) {
             si(d, Quantity::Time)
         )),
         _ => {}
+    }
+    if let Multiscale::Auto { tolerance } = model.numerics.multiscale {
+        log.note(format!(
+            "cycle jumping (numerics.multiscale): auto, tolerance {tolerance:e}{}; cycles are \
+             jumped over where the state changes smoothly (\"off\" steps every cycle)",
+            if raw.multiscale.is_none() {
+                ", the default"
+            } else {
+                ""
+            }
+        ));
     }
 }
 

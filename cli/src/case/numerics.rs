@@ -8,10 +8,11 @@
 
 use super::error::CaseError;
 use super::quantity::{DurationValue, Kind, Time};
-use super::raw::{MethodName, RawNumerics, SchemeName};
+use super::raw::{MethodName, MultiscaleName, RawNumerics, SchemeName};
 use crate::units::parse_quantity;
 use boreflux_solver::model::{
-    GridSpec, Numerics, Scheme, TimeSpec, DEFAULT_ABSOLUTE_TOLERANCE_M, DEFAULT_RELATIVE_TOLERANCE,
+    GridSpec, Multiscale, Numerics, Scheme, TimeSpec, DEFAULT_ABSOLUTE_TOLERANCE_M,
+    DEFAULT_MULTISCALE_TOLERANCE, DEFAULT_RELATIVE_TOLERANCE,
 };
 use boreflux_solver::run::{DEFAULT_STEPS_PER_CYCLE, DEFAULT_STEPS_PER_DECADE};
 use serde_json::{json, Map, Value};
@@ -218,8 +219,10 @@ pub fn numerics(raw: &RawNumerics, period_s: Option<f64>) -> Result<NumericsOut,
             }
         }
     };
+    let multiscale = multiscale(raw, period_s)?;
     Ok(NumericsOut {
         numerics: Numerics {
+            multiscale,
             scheme,
             grid,
             time,
@@ -235,6 +238,52 @@ pub fn numerics(raw: &RawNumerics, period_s: Option<f64>) -> Result<NumericsOut,
         needs_default_first_step,
         output_every,
     })
+}
+
+/// Largest `numerics.multiscale_tolerance` accepted: beyond a percent per jump the
+/// figures drift away from full stepping (docs/time-stepping.md §Multiscale stepping).
+pub const MAX_MULTISCALE_TOLERANCE: f64 = 1e-2;
+
+fn multiscale(raw: &RawNumerics, period_s: Option<f64>) -> Result<Multiscale, CaseError> {
+    // Default: "auto" for a periodic drive (the accuracy target is met on every shipped
+    // case, docs/time-stepping.md §Multiscale stepping), "off" otherwise.
+    let default = if period_s.is_some() {
+        MultiscaleName::Auto
+    } else {
+        MultiscaleName::Off
+    };
+    match raw.multiscale.unwrap_or(default) {
+        MultiscaleName::Off => {
+            if raw.multiscale_tolerance.is_some() {
+                return Err(CaseError::new(
+                    "numerics.multiscale_tolerance",
+                    "is for numerics.multiscale = \"auto\"; multiscale is off",
+                ));
+            }
+            Ok(Multiscale::Off)
+        }
+        MultiscaleName::Auto => {
+            if period_s.is_none() {
+                return Err(CaseError::new(
+                    "numerics.multiscale",
+                    format!(
+                        "\"auto\" jumps over whole cycles and needs a periodic drive ({});                          this drive has no period",
+                        periodic_kinds()
+                    ),
+                ));
+            }
+            let tolerance = raw
+                .multiscale_tolerance
+                .unwrap_or(DEFAULT_MULTISCALE_TOLERANCE);
+            if !(tolerance > 0.0 && tolerance <= MAX_MULTISCALE_TOLERANCE) {
+                return Err(CaseError::new(
+                    "numerics.multiscale_tolerance",
+                    format!("must be in (0, {MAX_MULTISCALE_TOLERANCE}], got {tolerance}"),
+                ));
+            }
+            Ok(Multiscale::Auto { tolerance })
+        }
+    }
 }
 
 fn conflict(field: &str, other: &str) -> CaseError {
@@ -333,6 +382,15 @@ pub fn resolved(n: &Numerics, output_every: u64) -> Value {
             m.insert("scheme".to_owned(), json!("theta"));
             m.insert("theta".to_owned(), json!(n.theta));
             m.insert("startup_steps".to_owned(), json!(n.startup_steps));
+        }
+    }
+    match n.multiscale {
+        Multiscale::Off => {
+            m.insert("multiscale".to_owned(), json!("off"));
+        }
+        Multiscale::Auto { tolerance } => {
+            m.insert("multiscale".to_owned(), json!("auto"));
+            m.insert("multiscale_tolerance".to_owned(), json!(tolerance));
         }
     }
     m.insert("output_every".to_owned(), json!(output_every));
@@ -437,6 +495,39 @@ mod tests {
         assert_eq!(
             duration(&DurationValue(json!("10 cycles")), Some(3.0)).unwrap(),
             30.0
+        );
+    }
+
+    #[test]
+    fn multiscale_defaults_and_errors_name_the_field() {
+        let raw = |m: Option<MultiscaleName>, tol: Option<f64>| RawNumerics {
+            multiscale: m,
+            multiscale_tolerance: tol,
+            ..RawNumerics::default()
+        };
+        let ms = |r: &RawNumerics, p| numerics(r, p).map(|n| n.numerics.multiscale);
+        assert_eq!(
+            ms(&raw(None, None), Some(3.0)).unwrap(),
+            Multiscale::Auto {
+                tolerance: DEFAULT_MULTISCALE_TOLERANCE
+            }
+        );
+        assert_eq!(ms(&raw(None, None), None).unwrap(), Multiscale::Off);
+        assert_eq!(
+            ms(&raw(Some(MultiscaleName::Off), None), Some(3.0)).unwrap(),
+            Multiscale::Off
+        );
+        let field = |r: &RawNumerics, p| numerics(r, p).unwrap_err().to_string();
+        assert!(
+            field(&raw(Some(MultiscaleName::Auto), None), None).starts_with("numerics.multiscale:")
+        );
+        for bad in [0.0, -1e-4, 0.5, f64::NAN] {
+            assert!(field(&raw(None, Some(bad)), Some(3.0))
+                .starts_with("numerics.multiscale_tolerance:"));
+        }
+        assert!(
+            field(&raw(Some(MultiscaleName::Off), Some(1e-3)), Some(3.0))
+                .starts_with("numerics.multiscale_tolerance:")
         );
     }
 }

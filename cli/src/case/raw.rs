@@ -308,6 +308,24 @@ pub struct RawNumerics {
     pub relative_tolerance: Option<f64>,
     /// Absolute tolerance of the adaptive steps on heads [1 mm].
     pub absolute_tolerance: Option<Q<Length>>,
+    /// Cycle jumping over the slow state of a periodic drive: "off" (every cycle stepped)
+    /// or "auto" (jump over cycles while the state changes smoothly) [auto for a periodic
+    /// drive, off otherwise].
+    pub multiscale: Option<MultiscaleName>,
+    /// Extrapolation error allowed per jump, relative to each sampled quantity's scale
+    /// (multiscale "auto" only), in (0, 0.01] [1e-4].
+    pub multiscale_tolerance: Option<f64>,
+}
+
+/// Cycle jumping.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize, JsonSchema)]
+pub enum MultiscaleName {
+    /// Every cycle is stepped in full.
+    #[serde(rename = "off")]
+    Off,
+    /// Jump over cycles while the sampled state changes smoothly.
+    #[serde(rename = "auto")]
+    Auto,
 }
 
 /// Time integration scheme.

@@ -16,7 +16,7 @@ use crate::case::Storage;
 use crate::case::{load_case, LoadedCase};
 use crate::output::envelope::EnvelopePlan;
 use crate::output::schema::{
-    figure_values, GridData, Group, ProgressSeries, RootAttr, SummaryText,
+    figure_values, GridData, Group, JumpSeries, ProgressSeries, RootAttr, SummaryText,
 };
 use crate::output::sink::ResultSink;
 use crate::summary::{assessment, headline, table, Headline, Tracker};
@@ -24,10 +24,13 @@ use anyhow::{anyhow, Context};
 use boreflux_solver::assess::progress::{ProgressBasis, ProgressPoint};
 use boreflux_solver::drive::Drive;
 use boreflux_solver::grid::Grid;
+use boreflux_solver::model::{Model, Multiscale};
 use boreflux_solver::safety::CAUTION;
 use boreflux_solver::slow::SlowState;
 use boreflux_solver::system::Discretization;
-use boreflux_solver::{run as simulate, CycleView, Reporting, SolverError, StepObserver, StepView};
+use boreflux_solver::{
+    run as simulate, CycleView, JumpView, Reporting, SolverError, StepObserver, StepView,
+};
 use indicatif::{ProgressBar, ProgressDrawTarget, ProgressStyle};
 use serde_json::Value;
 use std::path::Path;
@@ -73,6 +76,8 @@ struct Observers<'a> {
     progress: &'a mut Progress,
     bar: &'a ProgressBar,
     duration_s: f64,
+    /// Jumps over whole cycles (`numerics.multiscale`).
+    jumps: &'a mut Vec<JumpView>,
 }
 
 impl StepObserver for Observers<'_> {
@@ -92,6 +97,10 @@ impl StepObserver for Observers<'_> {
     fn on_cycle(&mut self, c: &CycleView) {
         self.bar.set_message(format!("cycle {}", c.index + 1));
         self.sink.on_cycle(c);
+    }
+
+    fn on_jump(&mut self, j: &JumpView) {
+        self.jumps.push(*j);
     }
 }
 
@@ -186,6 +195,25 @@ fn write_progress(sink: &mut ResultSink, p: &Progress) -> Result<(), crate::outp
     Ok(())
 }
 
+/// Writes the `/jumps` group (docs/formats.md) when the case jumps over cycles.
+fn write_jumps(
+    sink: &mut ResultSink,
+    model: &Model,
+    jumps: &[JumpView],
+) -> Result<(), crate::output::OutputError> {
+    if model.numerics.multiscale == Multiscale::Off {
+        return Ok(());
+    }
+    let w = sink.writer();
+    w.group(&format!("/{}", JumpSeries::GROUP))?;
+    for series in JumpSeries::ALL {
+        let values: Vec<f64> = jumps.iter().map(|j| series.value(j)).collect();
+        let e = series.entry();
+        w.write_vector(&series.path(), &values, e.unit.symbol(), &e.description)?;
+    }
+    Ok(())
+}
+
 /// Runs the command.
 pub fn run(a: &RunArgs) -> Result<(), Failure> {
     let case =
@@ -237,8 +265,10 @@ pub fn run(a: &RunArgs) -> Result<(), Failure> {
     };
     progress.record(0.0, &SlowState::new(model));
     let started = std::time::Instant::now();
+    let mut jumps = Vec::new();
     let result = {
         let mut obs = Observers {
+            jumps: &mut jumps,
             sink: &mut sink,
             tracker: &mut tracker,
             progress: &mut progress,
@@ -282,6 +312,7 @@ pub fn run(a: &RunArgs) -> Result<(), Failure> {
     let h = headline(&case, &summary, &tracker, &assessed);
     write_summary(&mut sink, &h).map_err(|e| Failure::Runtime(e.into()))?;
     write_progress(&mut sink, &progress).map_err(|e| Failure::Runtime(e.into()))?;
+    write_jumps(&mut sink, model, &jumps).map_err(|e| Failure::Runtime(e.into()))?;
     if interrupted() {
         return Err(Failure::Runtime(anyhow!(INTERRUPTED_MESSAGE)));
     }

@@ -23,7 +23,7 @@ use crate::summary::Headline;
 use boreflux_solver::assess::figures::RunFigures;
 use boreflux_solver::assess::{StepCoefficients, WellFigures};
 use boreflux_solver::grid::{Zone, ZONE_COUNT};
-use boreflux_solver::{CycleView, StepView};
+use boreflux_solver::{CycleView, JumpView, StepView};
 
 /// SI unit of an output, as written in the `units` attribute and the docs.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -532,6 +532,7 @@ macro_rules! figures {
 figures! {
     Steps => "steps", One, "accepted time steps", "count", Place::Model;
     Cycles => "cycles", One, "complete drive cycles", "count", Place::Model;
+    SkippedCycles => "skipped_cycles", One, "drive cycles jumped over, not computed (numerics.multiscale; /jumps lists them)", "count", Place::Model;
     Cells => "cells", One, "grid cells", "count", Place::Model;
     OuterRadius => "outer_radius_m", M, "outer radius of the model", "grid", Place::Model;
     EndTime => "end_time_s", S, "simulated time", "last step end", Place::Model;
@@ -658,6 +659,7 @@ impl Figure {
         match self {
             Figure::Steps => Some(Count(s.steps)),
             Figure::Cycles => Some(Count(s.cycles)),
+            Figure::SkippedCycles => Some(Count(s.skipped_cycles)),
             Figure::Cells => Some(Count(s.cells as u64)),
             Figure::OuterRadius => Some(Real(s.outer_radius_m)),
             Figure::EndTime => Some(Real(s.end_time_s)),
@@ -1110,6 +1112,90 @@ impl EnvelopeStat {
     }
 }
 
+/// A series of the jumps group (`/jumps/<name>`, one value per jump over whole cycles,
+/// `numerics.multiscale = "auto"`; docs/time-stepping.md §Multiscale stepping). The cycles
+/// a jump skips have no `/cycles` record and no step: the state at `to_time` is
+/// extrapolated from the last computed cycles.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum JumpSeries {
+    /// Start of the jump.
+    FromTime,
+    /// End of the jump.
+    ToTime,
+    /// First cycle skipped.
+    FirstCycle,
+    /// Cycles skipped.
+    Cycles,
+    /// Estimated extrapolation error over the tolerance.
+    ErrorEstimate,
+}
+
+impl JumpSeries {
+    /// All, in file order.
+    pub const ALL: [JumpSeries; 5] = [
+        JumpSeries::FromTime,
+        JumpSeries::ToTime,
+        JumpSeries::FirstCycle,
+        JumpSeries::Cycles,
+        JumpSeries::ErrorEstimate,
+    ];
+
+    /// The group the series live in.
+    pub const GROUP: &'static str = "jumps";
+
+    /// Its schema entry; `name` is the path below `/jumps`.
+    pub fn entry(self) -> Entry {
+        let s = |n: &str, u, d: &str, c| entry(n.to_owned(), u, d.to_owned(), c, Place::Model);
+        match self {
+            JumpSeries::FromTime => s(
+                "from_time",
+                Unit::S,
+                "start of the jump: end of the last computed cycle",
+                "a drive period boundary",
+            ),
+            JumpSeries::ToTime => s(
+                "to_time",
+                Unit::S,
+                "end of the jump; nothing between from_time and to_time was computed",
+                "from_time + cycles x period",
+            ),
+            JumpSeries::FirstCycle => s(
+                "first_cycle",
+                Unit::One,
+                "number of the first cycle skipped, from 0 (no /cycles record for it)",
+                "count",
+            ),
+            JumpSeries::Cycles => s(
+                "cycles",
+                Unit::One,
+                "cycles skipped",
+                "largest K within the error and move bounds, docs/time-stepping.md",
+            ),
+            JumpSeries::ErrorEstimate => s(
+                "error_estimate",
+                Unit::One,
+                "estimated extrapolation error of the jump over the tolerance (at most 1)",
+                "K(K+1)/2 x change of the per-cycle change / (tolerance x scale)",
+            ),
+        }
+    }
+
+    /// The value of this series for a jump.
+    pub fn value(self, j: &JumpView) -> f64 {
+        match self {
+            JumpSeries::FromTime => j.from_s,
+            JumpSeries::ToTime => j.to_s,
+            JumpSeries::FirstCycle => j.first_cycle as f64,
+            JumpSeries::Cycles => j.cycles as f64,
+            JumpSeries::ErrorEstimate => j.error_estimate,
+        }
+    }
+
+    /// The HDF5 path, `/jumps/<name>`.
+    pub fn path(self) -> String {
+        format!("/{}/{}", Self::GROUP, self.entry().name)
+    }
+}
 /// The schema as the Markdown tables of docs/formats.md ("Output schema"), which
 /// `boreflux schema --outputs` prints and a test compares with the docs.
 pub fn markdown() -> String {
@@ -1195,6 +1281,13 @@ pub fn markdown() -> String {
             .into_iter()
             .map(SweepSeries::entry)
             .collect(),
+    );
+    table(
+        &mut out,
+        "Jumps over whole cycles (`/jumps/<name>`; only with `numerics.multiscale` \"auto\", \
+         empty when no jump was taken):",
+        "",
+        JumpSeries::ALL.into_iter().map(JumpSeries::entry).collect(),
     );
     out.push_str("Text attributes of `/summary`:\n\n| name | description |\n| --- | --- |\n");
     for t in SummaryText::ALL {

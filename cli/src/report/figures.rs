@@ -118,15 +118,22 @@ pub fn figures(runs: &[Run]) -> Vec<Figure> {
             }
             render(&c)
         };
-    let decimated = if runs.iter().any(|r| r.envelopes.is_some()) {
+    let mut decimated = String::from(
         "Long series are drawn from the lowest and highest value in each pixel column, so \
-         peaks are kept. A file that keeps per-cycle envelopes shows each cycle's range \
-         (lowest to highest value) as a shaded band, and its stored windows of every step \
-         as lines."
-    } else {
-        "Long series are drawn from the lowest and highest value in each pixel column, so \
-         peaks are kept."
-    };
+         peaks are kept.",
+    );
+    if runs.iter().any(|r| r.envelopes.is_some()) {
+        decimated.push_str(
+            " A file that keeps per-cycle envelopes shows each cycle's range (lowest to \
+             highest value) as a shaded band, and its stored windows of every step as lines.",
+        );
+    }
+    if runs.iter().any(|r| !r.series.gaps.is_empty()) {
+        decimated.push_str(
+            " The lines break where the run jumped over whole cycles (numerics.multiscale): \
+             those cycles were not computed, their state was extrapolated (listed in /jumps).",
+        );
+    }
     let mut out = vec![
         Figure {
             title: "In-well head and flow through the screen".into(),

@@ -10,8 +10,8 @@ use std::collections::BTreeMap;
 use std::path::{Path, PathBuf};
 
 use crate::output::schema::{
-    Cycle, EnvelopeStat, Figure, GridData, Group, ProgressSeries, RootAttr, SnapshotData, Step,
-    SummaryText, CYCLE_INDEX, ENVELOPES,
+    Cycle, EnvelopeStat, Figure, GridData, Group, JumpSeries, ProgressSeries, RootAttr,
+    SnapshotData, Step, SummaryText, CYCLE_INDEX, ENVELOPES,
 };
 use crate::read_error::{FileKind, ReadError};
 use boreflux_solver::grid::Zone;
@@ -92,6 +92,10 @@ pub struct Series {
     pub skin: Vec<f64>,
     /// Cumulative work per zone present in the file, J, inner to outer.
     pub work: Vec<(Zone, Vec<f64>)>,
+    /// Jumps over whole cycles (`/jumps`, numerics.multiscale): (from, to) times, s. At
+    /// each a row of NaN is put into every series (time: the middle of the jump), so the
+    /// charts break their lines there rather than draw across what was not computed.
+    pub gaps: Vec<(f64, f64)>,
 }
 
 /// `/envelopes` (files that keep per-cycle envelopes, `output.store`): each a [`Series`]
@@ -318,7 +322,7 @@ fn read_columns(
             work.push((zone, column(Step::Work(zone))?));
         }
     }
-    Ok(Series {
+    let mut series = Series {
         well_head: column(Step::WellHead)?,
         screen_flow: column(Step::ScreenFlow)?,
         face_flux: column(Step::FaceFlux)?,
@@ -327,7 +331,75 @@ fn read_columns(
         skin: column(Step::Skin)?,
         work,
         time,
-    })
+        gaps: read_gaps(file)?,
+    };
+    break_at_gaps(&mut series);
+    Ok(series)
+}
+
+/// The jumps of `/jumps` as (from, to) times; none when the file has no such group.
+fn read_gaps(file: &File) -> Result<Vec<(f64, f64)>, ReadError> {
+    if !file.link_exists(JumpSeries::GROUP) {
+        return Ok(Vec::new());
+    }
+    let read = |series: JumpSeries| {
+        let path = series.path();
+        vector(file, &path[1..], series.entry().unit.symbol())
+    };
+    let from = read(JumpSeries::FromTime)?;
+    let to = read(JumpSeries::ToTime)?;
+    same_length(
+        &JumpSeries::ToTime.path(),
+        to.len(),
+        &JumpSeries::FromTime.path(),
+        from.len(),
+    )?;
+    Ok(from.into_iter().zip(to).collect())
+}
+
+/// Puts a row of NaN into every series at each gap (see [`Series::gaps`]).
+fn break_at_gaps(s: &mut Series) {
+    if s.gaps.is_empty() {
+        return;
+    }
+    let mut rows = Vec::with_capacity(s.time.len() + s.gaps.len());
+    let mut gaps = s.gaps.iter().peekable();
+    for (i, &t) in s.time.iter().enumerate() {
+        while let Some(&&(from, to)) = gaps.peek() {
+            if t > from {
+                rows.push(Err(0.5 * (from + to)));
+                gaps.next();
+            } else {
+                break;
+            }
+        }
+        rows.push(Ok(i));
+    }
+    let pick = |v: &[f64]| -> Vec<f64> {
+        rows.iter()
+            .map(|r| match r {
+                Ok(i) => v[*i],
+                Err(_) => f64::NAN,
+            })
+            .collect()
+    };
+    let time = rows
+        .iter()
+        .map(|r| match r {
+            Ok(i) => s.time[*i],
+            Err(t) => *t,
+        })
+        .collect();
+    s.well_head = pick(&s.well_head);
+    s.screen_flow = pick(&s.screen_flow);
+    s.face_flux = pick(&s.face_flux);
+    s.shear_proxy = pick(&s.shear_proxy);
+    s.cake_thickness = pick(&s.cake_thickness);
+    s.skin = pick(&s.skin);
+    for (_, w) in &mut s.work {
+        *w = pick(w);
+    }
+    s.time = time;
 }
 
 /// `/envelopes`, when the file keeps them: the cycles' lowest and highest values, at the
@@ -636,5 +708,35 @@ fn read_string(attr: &Attribute) -> hdf5::Result<String> {
         TypeDescriptor::VarLenUnicode => Ok(attr.read_scalar::<VarLenUnicode>()?.as_str().into()),
         TypeDescriptor::VarLenAscii => Ok(attr.read_scalar::<VarLenAscii>()?.as_str().into()),
         other => Err(format!("expected a string, found {other}").into()),
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn a_jump_breaks_every_series_between_its_ends() {
+        let mut s = Series {
+            time: vec![1.0, 2.0, 10.0, 11.0],
+            well_head: vec![0.1, 0.2, 0.3, 0.4],
+            work: vec![(Zone::Pack, vec![1.0, 2.0, 3.0, 4.0])],
+            gaps: vec![(2.0, 10.0)],
+            ..Series::default()
+        };
+        for v in [
+            &mut s.screen_flow,
+            &mut s.face_flux,
+            &mut s.shear_proxy,
+            &mut s.cake_thickness,
+            &mut s.skin,
+        ] {
+            *v = vec![0.0; 4];
+        }
+        break_at_gaps(&mut s);
+        assert_eq!(s.time, [1.0, 2.0, 6.0, 10.0, 11.0]);
+        assert!(s.well_head[2].is_nan() && s.work[0].1[2].is_nan() && s.skin[2].is_nan());
+        assert_eq!(s.well_head[3], 0.3);
+        assert_eq!(s.face_flux.len(), 5);
     }
 }

@@ -232,6 +232,45 @@ impl FinesState {
         self.update_conductivity();
     }
 
+    /// Number of values [`FinesState::sample`] writes: σ and c of every cell, the removed
+    /// and the pushed-out volume.
+    pub fn sample_len(&self) -> usize {
+        2 * self.cells() + 2
+    }
+
+    /// Writes the state as one vector (σ…, c…, removed, pushed out) into `out`, and the
+    /// scale of each value (σ₀, σ₀/n, and the initial volume) into `scale`.
+    pub fn sample(&self, out: &mut [f64], scale: &mut [f64]) {
+        let m = self.cells();
+        out[..m].copy_from_slice(&self.sigma);
+        out[m..2 * m].copy_from_slice(&self.conc);
+        out[2 * m] = self.removed_m3;
+        out[2 * m + 1] = self.pushed_m3;
+        scale[..m].fill(self.params.deposit);
+        scale[m..2 * m].fill(self.params.deposit / self.porosity);
+        scale[2 * m..2 * m + 2].fill(self.initial_m3);
+    }
+
+    /// Sets the state from a vector laid out as [`FinesState::sample`] writes it; negative
+    /// amounts are set to zero. Returns false (and changes nothing) when a value is not
+    /// finite.
+    pub fn set_sample(&mut self, x: &[f64]) -> bool {
+        let m = self.cells();
+        if x[..self.sample_len()].iter().any(|v| !v.is_finite()) {
+            return false;
+        }
+        for (s, &v) in self.sigma.iter_mut().zip(&x[..m]) {
+            *s = v.max(0.0);
+        }
+        for (c, &v) in self.conc.iter_mut().zip(&x[m..2 * m]) {
+            *c = v.max(0.0);
+        }
+        self.removed_m3 = x[2 * m].max(0.0);
+        self.pushed_m3 = x[2 * m + 1].max(0.0);
+        self.update_conductivity();
+        true
+    }
+
     /// Sets every cell to the given deposited fines and no mobile fines (for tests).
     pub fn set_deposited(&mut self, sigma: f64) {
         self.sigma.iter_mut().for_each(|s| *s = sigma);

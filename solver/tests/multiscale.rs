@@ -1,0 +1,165 @@
+//! Cycle jumping (docs/time-stepping.md §Multiscale stepping) on a slow law with a closed
+//! form: a cake that erodes at a constant amount per cycle. A cake a thousand times more
+//! conductive than the pack adds no resistance worth the name, so the flow cycle, the wall
+//! shear and the erosion per cycle E∮max(0, wτ − τ_c) dt do not change as it thins:
+//! the thickness is linear in the cycle count, δ(n) = δ(n₀) − (n − n₀) Δ (derived here from
+//! the erosion law, docs/physics.md §13). Linear extrapolation is exact for that law, so the
+//! jumps must reproduce it to the error bound the method states (tolerance × scale per jump).
+
+use boreflux_solver::diagnostics::{CycleView, StepObserver, StepView};
+use boreflux_solver::drive::{Drive, SineHead};
+use boreflux_solver::model::*;
+use boreflux_solver::{run, Reporting};
+
+/// Invented numbers (a demo well), not from a source.
+fn model(multiscale: Multiscale) -> Model {
+    Model {
+        fluid: Fluid::WATER_20C,
+        well: Well {
+            screen_radius_m: 0.1,
+            screen_length_m: 6.0,
+            open_area: 0.12,
+            casing_radius_m: 0.1,
+            linear_loss_s: 0.0,
+            discharge_coefficient: None,
+            storage_m2: 0.0,
+            column_length_m: 0.0,
+        },
+        pack: Pack {
+            outer_radius_m: 0.2,
+            medium: Medium::darcy(5e-3, 1e-5),
+        },
+        cake: Some(Cake {
+            thickness_m: 2e-3,
+            conductivity_m_s: 5.0,
+            coverage: 1.0,
+            erosion: Some(Erosion {
+                critical_shear_pa: 0.0,
+                erodibility_m_s_pa: 1e-5,
+                inward_weight: 1.0,
+                outward_weight: 1.0,
+                coverage_exponent: 0.0,
+            }),
+            lift_off: None,
+        }),
+        invaded: None,
+        formation: Formation {
+            medium: Medium::darcy(2e-4, 1e-5),
+            outer_radius_m: Some(30.0),
+            outer_boundary: OuterBoundary::FixedHead,
+        },
+        drive: Drive::SineHead(SineHead {
+            amplitude_m: 1.5,
+            frequency_hz: 0.5,
+            offset_m: 0.0,
+            ramp_cycles: 0.0,
+        }),
+        duration_s: 800.0,
+        numerics: Numerics {
+            multiscale,
+            ..Numerics::default()
+        },
+    }
+}
+
+/// Keeps the cake removed in each computed cycle, and the jumps.
+#[derive(Default)]
+struct Cycles {
+    removed: Vec<(u64, f64)>,
+    jumps: Vec<(u64, u64)>,
+    /// Σ of the jumps' estimated errors over the tolerance.
+    estimated: f64,
+}
+
+impl StepObserver for Cycles {
+    fn on_step(&mut self, _s: &StepView<'_>) -> bool {
+        true
+    }
+    fn on_cycle(&mut self, c: &CycleView) {
+        self.removed.push((c.index, c.cake_removed_m));
+    }
+    fn on_jump(&mut self, j: &boreflux_solver::JumpView) {
+        self.jumps.push((j.first_cycle, j.cycles));
+        self.estimated += j.error_estimate;
+    }
+}
+
+#[test]
+fn jumps_reproduce_a_constant_erosion_per_cycle() {
+    let tolerance = DEFAULT_MULTISCALE_TOLERANCE;
+    let base = model(Multiscale::Off);
+    let d0 = base.cake.unwrap().thickness_m;
+    let mut full = Cycles::default();
+    let f = run(&base, &mut full, Reporting::default()).expect("full run");
+    // The premise: after the start, every cycle removes the same thickness Δ.
+    let n = f.cycles as usize;
+    let delta = full.removed[n - 1].1;
+    assert!(delta > 1e-4 * d0, "the cake erodes: Δ = {delta}");
+    for &(i, r) in &full.removed[20..] {
+        assert!(
+            (r - delta).abs() <= 1e-6 * delta,
+            "cycle {i}: {r} vs {delta}"
+        );
+    }
+    // The closed form from cycle n₀ = 20 on.
+    let n0 = 20;
+    let before: f64 = full.removed[..n0].iter().map(|x| x.1).sum();
+    let closed = d0 - before - (n - n0) as f64 * delta;
+    assert!(
+        (f.cake_thickness_m.1 - closed).abs() <= 1e-6 * (d0 - closed),
+        "full run {} vs closed form {closed}",
+        f.cake_thickness_m.1
+    );
+
+    let mut multi = Cycles::default();
+    let m = run(
+        &model(Multiscale::Auto { tolerance }),
+        &mut multi,
+        Reporting::default(),
+    )
+    .expect("multiscale run");
+    assert!(
+        m.skipped_cycles > 0 && !multi.jumps.is_empty(),
+        "no jump: the test checks nothing"
+    );
+    assert_eq!(m.cycles, f.cycles);
+    assert_eq!(
+        m.skipped_cycles,
+        multi.jumps.iter().map(|j| j.1).sum::<u64>()
+    );
+    // Each jump's extrapolation error is what it estimated (its error estimate × tolerance ×
+    // scale, the starting thickness; at most tolerance × scale); the full run's own
+    // departure from the closed form is added.
+    assert!(multi.estimated <= m.jumps as f64);
+    let bound = multi.estimated * tolerance * d0 + 1e-6 * (d0 - closed);
+    let err = (m.cake_thickness_m.1 - closed).abs();
+    assert!(
+        err <= bound,
+        "multiscale {} vs closed form {closed}: {err:.3e} > {bound:.3e}",
+        m.cake_thickness_m.1
+    );
+    // Sharper for this law: the thickness has no curvature beyond the scatter of the
+    // per-cycle removal (1e-6 Δ, checked above), so extrapolating it is exact to that
+    // level: a cycle too many or too few in a jump (an error of Δ) fails here.
+    let exact = 1e-6 * (d0 - closed) + 1e-6 * m.skipped_cycles as f64 * delta;
+    assert!(err <= exact, "{err:.3e} > {exact:.3e}");
+    // Much fewer steps, and the same removal as the full run within the same bound.
+    assert!(m.steps * 2 < f.steps, "{} vs {} steps", m.steps, f.steps);
+    assert!((m.cake_thickness_m.1 - f.cake_thickness_m.1).abs() <= bound);
+}
+
+#[test]
+fn no_jump_without_a_period() {
+    // A slug test has no cycles: "auto" falls back to full stepping.
+    let mut m = model(Multiscale::Auto {
+        tolerance: DEFAULT_MULTISCALE_TOLERANCE,
+    });
+    m.drive = Drive::Slug {
+        initial_head_m: 1.0,
+    };
+    m.duration_s = 100.0;
+    let mut seen = Cycles::default();
+    let s = run(&m, &mut seen, Reporting::default()).unwrap();
+    assert_eq!((s.jumps, s.skipped_cycles), (0, 0));
+    assert!(seen.jumps.is_empty());
+}
