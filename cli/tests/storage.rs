@@ -20,8 +20,15 @@ fn scratch(name: &str) -> PathBuf {
 }
 
 /// A sine-head case (amplitude 1.5 m, 0.5 Hz, 60 cycles, 200 steps per cycle), a Darcy well
-/// without cake; `output` is the case's output section.
+/// without cake; `output` is the case's output section. Every cycle is computed
+/// (`numerics.multiscale` off) unless `numerics_extra` says otherwise, so each has its
+/// envelope.
 fn sine_case(dir: &Path, output: &str, numerics_extra: &str) -> PathBuf {
+    let numerics_extra = if numerics_extra.contains("multiscale") {
+        numerics_extra.to_owned()
+    } else {
+        format!(r#"{numerics_extra}, "multiscale": "off""#)
+    };
     let text = format!(
         r#"{{
   "title": "sine envelope test (invented test data)",
@@ -227,4 +234,34 @@ fn a_refused_storage_choice_names_its_field_and_leaves_nothing() {
         assert!(left.is_empty(), "{left:?}");
     }
     let _ = std::fs::remove_dir_all(&dir);
+}
+
+/// Cycles jumped over (`numerics.multiscale` "auto") have no envelope, and are listed in
+/// `/jumps`: every cycle of the run is either enveloped or jumped over, never both.
+#[test]
+fn jumped_cycles_have_no_envelope() {
+    let dir = scratch("sine-jumps");
+    let case = sine_case(
+        &dir,
+        r#"{ "store": "envelopes", "detail_cycles": 2 }"#,
+        r#", "multiscale": "auto""#,
+    );
+    let h5 = dir.join("env.h5");
+    run(&case, &h5);
+    let f = hdf5::File::open(&h5).unwrap();
+    let start = read(&f, "envelopes/start_time");
+    let end = read(&f, "envelopes/end_time");
+    let skipped: f64 = read(&f, "jumps/cycles").iter().sum();
+    let (from, to) = (read(&f, "jumps/from_time"), read(&f, "jumps/to_time"));
+    assert!(skipped > 0.0, "the periodic sine case jumps over cycles");
+    // 60 cycles of 2 s in all.
+    assert_eq!(start.len() as f64 + skipped, 60.0);
+    for (s, e) in start.iter().zip(&end) {
+        for (a, b) in from.iter().zip(&to) {
+            assert!(
+                *e <= *a + 1e-9 || *s >= *b - 1e-9,
+                "envelope {s}..{e} inside jump {a}..{b}"
+            );
+        }
+    }
 }

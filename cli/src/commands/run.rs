@@ -101,6 +101,7 @@ impl StepObserver for Observers<'_> {
 
     fn on_jump(&mut self, j: &JumpView) {
         self.jumps.push(*j);
+        self.sink.on_jump(j);
     }
 }
 

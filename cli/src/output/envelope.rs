@@ -145,8 +145,11 @@ impl Envelopes {
     ) -> Result<(), OutputError> {
         let t = row[self.time_col];
         if self.last.is_empty() {
+            // The run's first step, or the first after a jump over cycles.
             self.cycle_start_s = t;
-            self.cake_ref = [row[self.cake_cols[0]].abs(), row[self.cake_cols[1]].abs()];
+            if self.cake_ref[0].is_nan() {
+                self.cake_ref = [row[self.cake_cols[0]].abs(), row[self.cake_cols[1]].abs()];
+            }
             self.begin(row);
         } else {
             let dt = t - self.last[self.time_col];
@@ -190,6 +193,19 @@ impl Envelopes {
             self.cur.extend_from_slice(row);
         }
         Ok(())
+    }
+
+    /// The run jumped over whole cycles (`numerics.multiscale`) at a cycle's end: the cycle
+    /// begun by that end's step is dropped, so no envelope spans the jump; the next step
+    /// begins a cycle as the run's first step does. The cycle before the jump keeps what
+    /// was decided for it (an event after the jump does not reach back across it).
+    pub fn jump(&mut self) {
+        self.last.clear();
+        self.cur.clear();
+        self.cur_first_written = false;
+        self.cur_forced = false;
+        self.prev_written = true;
+        self.event_here = false;
     }
 
     fn begin(&mut self, row: &[f64]) {

@@ -6,7 +6,7 @@ use super::envelope::{EnvelopePlan, Envelopes};
 use super::h5::{H5Writer, MatrixHandle, SeriesHandle};
 use super::schema::{Cycle, Group, SnapshotData, Step, CYCLE_INDEX};
 use super::OutputError;
-use boreflux_solver::{CycleView, StepObserver, StepView};
+use boreflux_solver::{CycleView, JumpView, StepObserver, StepView};
 use std::path::Path;
 
 /// Values per chunk of the time series: 64 KiB of f64. The report and the other readers
@@ -192,6 +192,12 @@ impl StepObserver for ResultSink {
             return false;
         }
         true
+    }
+
+    fn on_jump(&mut self, _jump: &JumpView) {
+        if let Some(env) = self.envelopes.as_mut() {
+            env.jump();
+        }
     }
 
     fn on_cycle(&mut self, c: &CycleView) {
