@@ -3,14 +3,15 @@
 //! 9 600 cycles, with every step's diagnostics handed to a null observer (no file; the
 //! file of the same job is measured with `boreflux run`, docs/formats.md "Storage choice").
 //!
-//! Switch: [`STEPPING`]. `"full"` steps every cycle in time (the reference, today's only
-//! way). When multiscale stepping (cycle jumping over the slow state) lands, set it to the
-//! value of the case key that selects it and fill in [`stepping_keys`]; the benchmark name
-//! carries the choice so figures from the two are never mixed up.
+//! Two ways of stepping, each its own benchmark name so figures are never mixed up:
+//! - `multiscale_auto`: the default (`numerics.multiscale` "auto", cycle jumping over the
+//!   slow state, docs/time-stepping.md);
+//! - `full_stepping`: every cycle stepped in time (`numerics.multiscale` "off"), the
+//!   reference the multiscale figures are checked against.
 //!
-//! Run with `cargo bench -p boreflux --bench long_job` (one iteration is a minute or more
-//! on the 2-core development machine with full stepping: criterion's 10 samples take
-//! 10 minutes or more).
+//! Run with `cargo bench -p boreflux --bench long_job -- multiscale` for the default (a few
+//! seconds an iteration); the full-stepping one takes a minute or more an iteration on the
+//! 2-core development machine (criterion's 10 samples: 10 minutes or more).
 
 use boreflux::case::parse_case;
 use boreflux_solver::diagnostics::NullObserver;
@@ -18,30 +19,20 @@ use boreflux_solver::run::{run, Reporting};
 use criterion::{criterion_group, criterion_main, Criterion};
 use std::path::Path;
 
-/// How the job is stepped: "full" (every cycle in time). See the module doc.
-const STEPPING: &str = "full";
-
-/// Case keys that select [`STEPPING`] (none for full stepping, the default).
-fn stepping_keys(case: &mut serde_json::Value) {
-    match STEPPING {
-        "full" => {}
-        other => panic!("stepping {other:?}: add its case keys here"),
-    }
-    let _ = case;
-}
-
 fn bench_long_job(c: &mut Criterion) {
     let cases = Path::new(env!("CARGO_MANIFEST_DIR")).join("../cases");
     let text = std::fs::read_to_string(cases.join("municipal-sand-gravel.json")).unwrap();
-    let mut case: serde_json::Value = serde_json::from_str(&text).unwrap();
-    case["duration"] = serde_json::json!("8 h");
-    stepping_keys(&mut case);
-    let model = parse_case(&case.to_string(), &cases).unwrap().model;
     let mut group = c.benchmark_group("municipal_surge_8_hours");
     group.sample_size(10);
-    group.bench_function(format!("{STEPPING}_stepping"), |b| {
-        b.iter(|| run(&model, &mut NullObserver, Reporting { every: 1 }).unwrap())
-    });
+    for (name, multiscale) in [("multiscale_auto", "auto"), ("full_stepping", "off")] {
+        let mut case: serde_json::Value = serde_json::from_str(&text).unwrap();
+        case["duration"] = serde_json::json!("8 h");
+        case["numerics"]["multiscale"] = serde_json::json!(multiscale);
+        let model = parse_case(&case.to_string(), &cases).unwrap().model;
+        group.bench_function(name, |b| {
+            b.iter(|| run(&model, &mut NullObserver, Reporting { every: 1 }).unwrap())
+        });
+    }
     group.finish();
 }
 
