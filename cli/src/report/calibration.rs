@@ -8,21 +8,11 @@ use std::fmt::Write;
 
 use super::escape::esc;
 use super::html::STYLE;
-use super::svg::{render, Chart, Series, Style};
+use super::svg::{render, Chart, Series, Style, FITTED, READINGS};
 use crate::calibrate::fit::Calibration;
 use crate::calibrate::record::DevelopmentLog;
 use crate::steptest::text::sig;
 
-const OBSERVED: Style = Style {
-    color: "#c0392b",
-    dash: "",
-    width: 0.0,
-};
-const FITTED: Style = Style {
-    color: "#1f5fa8",
-    dash: "",
-    width: 1.6,
-};
 const START: Style = Style {
     color: "#7f8c8d",
     dash: "4 3",
@@ -46,7 +36,7 @@ fn drawdown_chart(c: &Calibration) -> String {
         label: "readings".into(),
         x: &c.times_s,
         y: &c.observed_m,
-        style: OBSERVED,
+        style: READINGS,
     });
     ch.series.push(Series {
         label: "model, case's values".into(),
@@ -92,7 +82,7 @@ fn residual_charts(c: &Calibration) -> (String, String) {
         label: "residual".into(),
         x: &c.times_s,
         y: &res,
-        style: OBSERVED,
+        style: READINGS,
     });
     let first = render(&a);
     // Against the modelled drawdown: points sorted by it so no line joins them out of order.
@@ -122,7 +112,7 @@ fn residual_charts(c: &Calibration) -> (String, String) {
         y: &ys,
         style: Style {
             width: 0.0,
-            ..OBSERVED
+            ..READINGS
         },
     });
     (first, render(&b))

@@ -6,7 +6,7 @@ use std::fmt::Write;
 
 use super::escape::esc;
 use super::html::STYLE;
-use super::svg::{render, Chart, Series, Style};
+use super::svg::{render, Chart, Series, Style, FITTED, READINGS};
 use crate::steptest::text::{sig, EFFICIENCY_DEFINITION, INTERVAL_NOTE};
 use crate::steptest::Outcome;
 use boreflux_solver::steptest::Estimate;
@@ -14,20 +14,10 @@ use boreflux_solver::steptest::Estimate;
 /// Points of the fitted line and band (more than the chart's marker limit, so no markers).
 const LINE_POINTS: usize = 101;
 
-const MEASURED: Style = Style {
-    color: "#c0392b",
-    dash: "",
-    width: 0.0,
-};
 const CORRECTED: Style = Style {
     color: "#1f5fa8",
     dash: "",
     width: 0.0,
-};
-const FITTED: Style = Style {
-    color: "#1f5fa8",
-    dash: "",
-    width: 1.6,
 };
 const BAND: Style = Style {
     color: "#1f5fa8",
@@ -87,7 +77,7 @@ pub fn chart(o: &Outcome) -> String {
             label: "steps, measured at the end of each step".to_owned(),
             x: &q,
             y: &measured,
-            style: MEASURED,
+            style: READINGS,
         });
         c.series.push(Series {
             label: "steps, corrected to the common time (fitted)".to_owned(),
@@ -100,7 +90,7 @@ pub fn chart(o: &Outcome) -> String {
             label: "steps (fitted)".to_owned(),
             x: &q,
             y: &measured,
-            style: MEASURED,
+            style: READINGS,
         });
     }
     render(&c)

@@ -45,6 +45,20 @@ pub struct Style {
     pub width: f64,
 }
 
+/// Readings (field data) drawn as markers only, in the pages that set data against a fit.
+pub const READINGS: Style = Style {
+    color: "#c0392b",
+    dash: "",
+    width: 0.0,
+};
+
+/// A fitted line, in the pages that set data against a fit.
+pub const FITTED: Style = Style {
+    color: "#1f5fa8",
+    dash: "",
+    width: 1.6,
+};
+
 /// One line of a chart; x and y in the file's SI units (scaled by the chart's factors).
 #[derive(Debug, Clone)]
 pub struct Series<'a> {
