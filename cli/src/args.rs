@@ -227,14 +227,15 @@ pub struct CheckArgs {
 /// Arguments of `report`.
 #[derive(Debug, clap::Args)]
 pub struct ReportArgs {
-    /// Result files written by `boreflux run`.
+    /// Result files written by `boreflux run`, or sweep tables written by `boreflux sweep`
+    /// (one alone, or several grid sweeps varying the same first parameter, compared).
     #[arg(required = true)]
     pub inputs: Vec<PathBuf>,
     /// Output HTML file.
     #[arg(short, long)]
     pub output: PathBuf,
-    /// Title of the report page (default: "Well development simulation report"; run
-    /// reports only).
+    /// Title of the report page (default: "Well development simulation report", or the
+    /// sweep page's own heading).
     #[arg(long)]
     pub title: Option<String>,
     /// Replace output files that already exist (without it an existing output is refused).

@@ -24,8 +24,9 @@ pub fn report(a: &ReportArgs) -> Result<(), Failure> {
             ReportError::Write { .. } => Failure::Runtime(anyhow!("{e}")),
             ReportError::Input { source, .. } => Failure::with_code(source.exit_code(), e),
             ReportError::NoInputs
-            | ReportError::SweepNotAlone { .. }
-            | ReportError::SweepTitle { .. } => Failure::Input(anyhow!("{e}")),
+            | ReportError::SweepMixed { .. }
+            | ReportError::SweepFirstDiffers { .. }
+            | ReportError::SweepSampled { .. } => Failure::Input(anyhow!("{e}")),
         }
     })?;
     eprintln!("report written to {}", a.output.display());

@@ -16,6 +16,7 @@
 //! tables.rs   cycle log, inputs
 //! html.rs     the page, escaping, the cautions box
 //! sweep.rs    the page of a sweep table (`boreflux sweep`): charts against the varied value
+//! sweep_compare.rs  the page comparing grid sweep tables: one line per table in each chart
 //! uncertainty.rs  a sampled sweep's section: bands, distributions, collapse probability
 //! ```
 //!
@@ -34,6 +35,7 @@ pub mod read;
 pub mod steptest;
 mod svg;
 mod sweep;
+mod sweep_compare;
 mod tables;
 mod ticks;
 mod uncertainty;
@@ -59,16 +61,28 @@ pub enum ReportError {
         #[source]
         source: ReadError,
     },
-    /// A sweep table was named with other files.
-    #[error("{}: a sweep table is reported on its own; name it alone", path.display())]
-    SweepNotAlone {
+    /// A sweep table was named with run files.
+    #[error("{}: a sweep table cannot be reported with run files; name only sweep tables (compared on one page) or only run files", path.display())]
+    SweepMixed {
         /// The sweep table.
         path: PathBuf,
     },
-    /// A title was given for a sweep table's page.
-    #[error("{}: --title applies to run reports; a sweep table's page keeps its own title", path.display())]
-    SweepTitle {
-        /// The sweep table.
+    /// Sweep tables to compare vary different first parameters.
+    #[error("{}: its first varied parameter is `{found}`, but {} varies `{expected}` first; sweep tables are compared against the same first parameter", path.display(), first.display())]
+    SweepFirstDiffers {
+        /// The table that differs.
+        path: PathBuf,
+        /// Its first varied path.
+        found: String,
+        /// The first table.
+        first: PathBuf,
+        /// The first table's first varied path.
+        expected: String,
+    },
+    /// A sampled sweep was named for a comparison.
+    #[error("{}: a sampled sweep (--sample) is reported on its own; comparisons take grid sweep tables", path.display())]
+    SweepSampled {
+        /// The sampled sweep table.
         path: PathBuf,
     },
     /// The report file could not be written.
@@ -82,8 +96,8 @@ pub enum ReportError {
     },
 }
 
-/// Reads every run file in `inputs` (or one sweep table) and writes the HTML report to
-/// `output`.
+/// Reads every run file in `inputs` (or one sweep table, or several grid sweep tables to
+/// compare) and writes the HTML report to `output`.
 ///
 /// All inputs are read before anything is written; on any error no file appears at
 /// `output` (an existing file there is left as it was).
@@ -91,8 +105,8 @@ pub fn write_report(inputs: &[PathBuf], output: &Path) -> Result<(), ReportError
     write_titled_report(inputs, output, None)
 }
 
-/// [`write_report`] with the page's own `title` (run reports; a sweep table's page keeps
-/// its title, and a title given for one is an error).
+/// [`write_report`] with the page's own `title` (browser title and heading; run reports,
+/// sweep pages and sweep comparisons alike).
 pub fn write_titled_report(
     inputs: &[PathBuf],
     output: &Path,
@@ -101,19 +115,32 @@ pub fn write_titled_report(
     if inputs.is_empty() {
         return Err(ReportError::NoInputs);
     }
-    // A sweep table is reported on its own.
-    let sweeps: Vec<_> = inputs
-        .iter()
-        .filter_map(|p| crate::sweep::table::Table::read(p).ok().map(|t| (p, t)))
-        .collect();
-    let page = if let Some((path, table)) = sweeps.into_iter().next() {
-        if inputs.len() > 1 {
-            return Err(ReportError::SweepNotAlone { path: path.clone() });
+    // Sweep tables are reported on their own: one alone, or several compared.
+    let mut sweeps = Vec::new();
+    let mut first_run = None;
+    for p in inputs {
+        match crate::sweep::table::Table::read(p) {
+            Ok(t) => sweeps.push((p.clone(), t)),
+            Err(_) => {
+                first_run.get_or_insert(p);
+            }
         }
-        if title.is_some() {
-            return Err(ReportError::SweepTitle { path: path.clone() });
+    }
+    let page = if let Some((path, table)) = sweeps.first() {
+        if let Some(run) = first_run {
+            // A file that is neither a sweep table nor a run file is named as such.
+            read::read_run(run).map_err(|source| ReportError::Input {
+                path: run.clone(),
+                source,
+            })?;
+            return Err(ReportError::SweepMixed { path: path.clone() });
         }
-        sweep::page(&table)
+        if sweeps.len() == 1 {
+            sweep::page(table, title)
+        } else {
+            check_comparable(&sweeps)?;
+            sweep_compare::page(&sweeps, title)
+        }
     } else {
         let runs = inputs
             .iter()
@@ -139,6 +166,27 @@ pub fn write_titled_report(
         })
     })?;
     target.commit().map_err(write_err)
+}
+
+/// Sweep tables can be compared when all are grid sweeps varying the same first path.
+fn check_comparable(sweeps: &[(PathBuf, crate::sweep::table::Table)]) -> Result<(), ReportError> {
+    if let Some((path, _)) = sweeps.iter().find(|(_, t)| t.sampling_json.is_some()) {
+        return Err(ReportError::SweepSampled { path: path.clone() });
+    }
+    let (first, t0) = &sweeps[0];
+    let expected = t0.paths.first().cloned().unwrap_or_default();
+    for (path, t) in &sweeps[1..] {
+        let found = t.paths.first().cloned().unwrap_or_default();
+        if found != expected {
+            return Err(ReportError::SweepFirstDiffers {
+                path: path.clone(),
+                found,
+                first: first.clone(),
+                expected,
+            });
+        }
+    }
+    Ok(())
 }
 
 /// Letter naming run number `i` (from 0): A, B, …, Z, AA, AB, …

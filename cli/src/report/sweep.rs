@@ -114,30 +114,35 @@ fn shown(figure: Figure) -> Shown {
     }
 }
 
-/// The whole page for one sweep table.
-pub fn page(t: &Table) -> String {
-    let mut h = String::new();
+/// The page's head and heading: `head_title` in the browser's title, `heading` as `<h1>`.
+pub(super) fn open(h: &mut String, head_title: &str, heading: &str) {
     let _ = write!(
         h,
         "<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n\
          <meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">\n\
-         <meta name=\"generator\" content=\"boreflux {v}\">\n<title>Sweep report: {case}</title>\n\
-         <style>\n{STYLE}</style>\n</head>\n<body>\n<h1>Well development sweep report</h1>\n\
-         <p class=\"lead\">{n} scenarios of <code>{case}</code>{shard}; every number and figure \
-         below is read from the sweep table. Built by boreflux {v}.</p>\n",
+         <meta name=\"generator\" content=\"boreflux {v}\">\n<title>{t}</title>\n\
+         <style>\n{STYLE}</style>\n</head>\n<body>\n<h1>{heading}</h1>\n",
         v = env!("CARGO_PKG_VERSION"),
-        case = esc(&t.case_file),
-        n = t.rows.len(),
-        shard = if t.shard == "1/1" || t.shard == "merged" {
-            String::new()
-        } else {
-            format!(
-                " (shard {}, of {} in the whole sweep)",
-                esc(&t.shard),
-                t.total
-            )
-        },
+        t = esc(head_title),
+        heading = esc(heading),
     );
+}
+
+/// " (shard K/N, of T in the whole sweep)" for a shard, empty for a whole sweep.
+pub(super) fn shard_note(t: &Table) -> String {
+    if t.shard == "1/1" || t.shard == "merged" {
+        String::new()
+    } else {
+        format!(
+            " (shard {}, of {} in the whole sweep)",
+            esc(&t.shard),
+            t.total
+        )
+    }
+}
+
+/// The cautions box of a sweep page.
+pub(super) fn cautions(h: &mut String) {
     let _ = write!(
         h,
         "<section class=\"caution\">\n<h2>Cautions</h2>\n<p>{}</p>\n<p>A sweep explores \
@@ -145,36 +150,88 @@ pub fn page(t: &Table) -> String {
          the manufacturer's rating and start gently.</p>\n</section>\n",
         esc(CAUTION)
     );
-    let failed: Vec<_> = t.rows.iter().filter(|r| r.status != "ok").collect();
-    let warned = t.rows.iter().filter(|r| !r.warnings.is_empty()).count();
-    if !failed.is_empty() || warned > 0 {
+}
+
+/// The failed scenarios and the warnings of the table's runs, as list items; `prefix`
+/// (empty for a single table) names the table in each item.
+pub(super) fn warning_items(h: &mut String, t: &Table, prefix: &str) {
+    for r in t.rows.iter().filter(|r| r.status != "ok") {
+        let _ = writeln!(
+            h,
+            "<li>{prefix}Scenario {} ({}) did not run to the end: {}</li>",
+            r.scenario,
+            esc(&r.labels.join(", ")),
+            esc(&r.status)
+        );
+    }
+    for r in t.rows.iter().filter(|r| !r.warnings.is_empty()) {
+        let _ = writeln!(
+            h,
+            "<li>{prefix}Scenario {} ({}):<ul>{}</ul></li>",
+            r.scenario,
+            esc(&r.labels.join(", ")),
+            r.warnings
+                .lines()
+                .map(|w| format!("<li>{}</li>", esc(w)))
+                .collect::<String>()
+        );
+    }
+}
+
+/// Whether any scenario of the table failed or warned.
+pub(super) fn has_warnings(t: &Table) -> bool {
+    t.rows
+        .iter()
+        .any(|r| r.status != "ok" || !r.warnings.is_empty())
+}
+
+/// The list items of a grid sweep's varied paths and their values.
+pub(super) fn varied_items(h: &mut String, t: &Table) {
+    let vary: serde_json::Value = serde_json::from_str(&t.vary_json).unwrap_or_default();
+    for v in vary.as_array().into_iter().flatten() {
+        let values: Vec<String> = v["values"]
+            .as_array()
+            .into_iter()
+            .flatten()
+            .map(crate::sweep::spec::label)
+            .collect();
+        let _ = writeln!(
+            h,
+            "<li><code>{}</code>: {}</li>",
+            esc(v["path"].as_str().unwrap_or("")),
+            esc(&values.join(", "))
+        );
+    }
+}
+
+/// The whole page for one sweep table, under `title` when given (else "Sweep report:"
+/// and the case file in the browser's title, and the default heading).
+pub fn page(t: &Table, title: Option<&str>) -> String {
+    let mut h = String::new();
+    let head_title = title.map_or_else(|| format!("Sweep report: {}", t.case_file), str::to_owned);
+    open(
+        &mut h,
+        &head_title,
+        title.unwrap_or("Well development sweep report"),
+    );
+    let _ = write!(
+        h,
+        "<p class=\"lead\">{n} scenarios of <code>{case}</code>{shard}; every number and figure \
+         below is read from the sweep table. Built by boreflux {v}.</p>\n",
+        v = env!("CARGO_PKG_VERSION"),
+        case = esc(&t.case_file),
+        n = t.rows.len(),
+        shard = shard_note(t),
+    );
+    cautions(&mut h);
+    if has_warnings(t) {
         h.push_str("<section class=\"warnings\">\n<h2>Warnings</h2>\n<ul>\n");
-        for r in &failed {
-            let _ = writeln!(
-                h,
-                "<li>Scenario {} ({}) did not run to the end: {}</li>",
-                r.scenario,
-                esc(&r.labels.join(", ")),
-                esc(&r.status)
-            );
-        }
-        for r in t.rows.iter().filter(|r| !r.warnings.is_empty()) {
-            let _ = writeln!(
-                h,
-                "<li>Scenario {} ({}):<ul>{}</ul></li>",
-                r.scenario,
-                esc(&r.labels.join(", ")),
-                r.warnings
-                    .lines()
-                    .map(|w| format!("<li>{}</li>", esc(w)))
-                    .collect::<String>()
-            );
-        }
+        warning_items(&mut h, t, "");
         h.push_str("</ul>\n</section>\n");
     }
     h.push_str("<h2>What was varied</h2>\n<ul>\n");
-    let vary: serde_json::Value = serde_json::from_str(&t.vary_json).unwrap_or_default();
     if let Some(s) = &t.sampling_json {
+        let vary: serde_json::Value = serde_json::from_str(&t.vary_json).unwrap_or_default();
         let s: serde_json::Value = serde_json::from_str(s).unwrap_or_default();
         let design = match s["design"].as_str() {
             Some("lhs") => "Latin hypercube",
@@ -198,70 +255,90 @@ pub fn page(t: &Table) -> String {
         }
         h.push_str("</ul>\n");
         super::uncertainty::section(&mut h, t);
-        table(&mut h, t);
-        return finish(h, t);
+        table(&mut h, t, "Scenarios");
+        finish(&mut h, t, "Case file the sweep started from");
+        h.push_str("</body>\n</html>\n");
+        return h;
     }
-    for v in vary.as_array().into_iter().flatten() {
-        let values: Vec<String> = v["values"]
-            .as_array()
-            .into_iter()
-            .flatten()
-            .map(crate::sweep::spec::label)
-            .collect();
-        let _ = writeln!(
-            h,
-            "<li><code>{}</code>: {}</li>",
-            esc(v["path"].as_str().unwrap_or("")),
-            esc(&values.join(", "))
-        );
-    }
+    varied_items(&mut h, t);
     h.push_str("</ul>\n");
-    charts(&mut h, t);
-    table(&mut h, t);
-    finish(h, t)
+    charts(&mut h, &[(None, t)]);
+    table(&mut h, t, "Scenarios");
+    finish(&mut h, t, "Case file the sweep started from");
+    h.push_str("</body>\n</html>\n");
+    h
 }
 
-/// The base case and the end of the page.
-fn finish(mut h: String, t: &Table) -> String {
-    let _ = write!(
+/// The base case of a table under the heading `heading`.
+pub(super) fn finish(h: &mut String, t: &Table, heading: &str) {
+    let _ = writeln!(
         h,
-        "<h2>Case file the sweep started from</h2>\n<pre>{}</pre>\n</body>\n</html>\n",
+        "<h2>{}</h2>\n<pre>{}</pre>",
+        esc(heading),
         esc(
             &serde_json::from_str::<serde_json::Value>(&t.base_case_json)
                 .and_then(|v| serde_json::to_string_pretty(&v))
                 .unwrap_or_else(|_| t.base_case_json.clone())
         )
     );
-    h
 }
 
-/// One chart per key figure against the first varied value (in SI), one line per
-/// combination of the other varied values. Left out when that value is not a number.
-fn charts(h: &mut String, t: &Table) {
-    let Some(x_path) = t.paths.first() else {
+/// One line of a chart: the rows of one table that share the other varied values, in
+/// order of the first, and the legend text.
+struct Line<'a> {
+    table: &'a Table,
+    rows: Vec<usize>,
+    label: String,
+}
+
+/// One chart per key figure against the first varied value (in SI), one line per table
+/// (named by its legend name when there are several; `None` for a single table) and per
+/// combination of its other varied values. Left out when that value is not a number.
+pub(super) fn charts(h: &mut String, tables: &[(Option<String>, &Table)]) {
+    let Some(x_path) = tables.first().and_then(|(_, t)| t.paths.first()) else {
         return;
     };
-    if t.rows.iter().any(|r| !r.si[0].is_finite()) || t.rows.len() < 2 {
+    let all_rows = || tables.iter().flat_map(|(_, t)| t.rows.iter());
+    if all_rows().any(|r| !r.si[0].is_finite()) || all_rows().count() < 2 {
         h.push_str(
             "<p>No charts: the first varied value is not a number in every scenario \
                     (or there is only one); the table below has the results.</p>\n",
         );
         return;
     }
-    // Lines: rows grouped by the other varied values, in order of the first.
-    let mut lines: BTreeMap<Vec<String>, Vec<usize>> = BTreeMap::new();
-    for (k, r) in t.rows.iter().enumerate() {
-        lines.entry(r.labels[1..].to_vec()).or_default().push(k);
-    }
-    for rows in lines.values_mut() {
-        rows.sort_by(|&a, &b| t.rows[a].si[0].total_cmp(&t.rows[b].si[0]));
+    // Lines: per table, rows grouped by the other varied values, in order of the first.
+    let mut lines: Vec<Line> = Vec::new();
+    for (name, t) in tables {
+        let mut groups: BTreeMap<Vec<String>, Vec<usize>> = BTreeMap::new();
+        for (k, r) in t.rows.iter().enumerate() {
+            groups.entry(r.labels[1..].to_vec()).or_default().push(k);
+        }
+        for (key, mut rows) in groups {
+            rows.sort_by(|&a, &b| t.rows[a].si[0].total_cmp(&t.rows[b].si[0]));
+            let others = t.paths[1..]
+                .iter()
+                .zip(&key)
+                .map(|(p, v)| format!("{p} = {v}"))
+                .collect::<Vec<_>>()
+                .join(", ");
+            let label = match name {
+                None => others,
+                Some(n) if others.is_empty() => n.clone(),
+                Some(n) => format!("{n}, {others}"),
+            };
+            lines.push(Line {
+                table: t,
+                rows,
+                label,
+            });
+        }
     }
     let xs: Vec<Vec<f64>> = lines
-        .values()
-        .map(|rows| rows.iter().map(|&k| t.rows[k].si[0]).collect())
+        .iter()
+        .map(|l| l.rows.iter().map(|&k| l.table.rows[k].si[0]).collect())
         .collect();
-    let positive = t.rows.iter().all(|r| r.si[0] > 0.0);
-    let (lo, hi) = t.rows.iter().fold((f64::INFINITY, 0.0f64), |(a, b), r| {
+    let positive = all_rows().all(|r| r.si[0] > 0.0);
+    let (lo, hi) = all_rows().fold((f64::INFINITY, 0.0f64), |(a, b), r| {
         (a.min(r.si[0]), b.max(r.si[0]))
     });
     let x_scale = if positive && hi / lo >= 20.0 {
@@ -270,44 +347,50 @@ fn charts(h: &mut String, t: &Table) {
         Scale::Linear
     };
     h.push_str("<h2>Figures</h2>\n");
+    let per_line = if tables.len() > 1 {
+        "; one line for each table (its letter and file in the legend) and each \
+         combination of that table's other varied values"
+            .to_owned()
+    } else if lines.len() > 1 {
+        format!(
+            "; one line for each value of {}",
+            esc(&tables[0].1.paths[1..].join(", "))
+        )
+    } else {
+        String::new()
+    };
     let _ = writeln!(
         h,
         "<p>Each figure against <code>{}</code> (in SI base units when it carries a unit, \
-         otherwise as given){}. Failed scenarios are left out.</p>",
+         otherwise as given){per_line}. Failed scenarios are left out.</p>",
         esc(x_path),
-        if lines.len() > 1 {
-            format!(
-                "; one line for each value of {}",
-                esc(&t.paths[1..].join(", "))
-            )
-        } else {
-            String::new()
-        }
     );
     for (n, (figure, title, _)) in KEY.iter().enumerate() {
         let name = figure.name();
-        let Some(col) = t.figures.iter().position(|f| *f == name) else {
-            continue;
-        };
         let ys: Vec<Vec<f64>> = lines
-            .values()
-            .map(|rows| rows.iter().map(|&k| t.rows[k].figures[col]).collect())
+            .iter()
+            .map(|l| match l.table.figures.iter().position(|f| *f == name) {
+                Some(col) => l
+                    .rows
+                    .iter()
+                    .map(|&k| l.table.rows[k].figures[col])
+                    .collect(),
+                None => vec![f64::NAN; l.rows.len()],
+            })
             .collect();
-        if ys.iter().flatten().all(|y| !y.is_finite()) {
+        if !tables
+            .iter()
+            .any(|(_, t)| t.figures.iter().any(|f| *f == name))
+            || ys.iter().flatten().all(|y| !y.is_finite())
+        {
             continue;
         }
         let s = shown(*figure);
         let mut c = quantity_chart(&format!("sweep{n}"), title, x_path, title, s);
         c.x_scale = x_scale;
-        for (i, (key, (x, y))) in lines.keys().zip(xs.iter().zip(&ys)).enumerate() {
-            let label = t.paths[1..]
-                .iter()
-                .zip(key)
-                .map(|(p, v)| format!("{p} = {v}"))
-                .collect::<Vec<_>>()
-                .join(", ");
+        for (i, (line, (x, y))) in lines.iter().zip(xs.iter().zip(&ys)).enumerate() {
             c.series.push(Series {
-                label,
+                label: line.label.clone(),
                 x,
                 y,
                 style: run_style(i),
@@ -323,8 +406,9 @@ fn charts(h: &mut String, t: &Table) {
     }
 }
 
-/// The table of every scenario: its values, the key figures and its status.
-fn table(h: &mut String, t: &Table) {
+/// The table of every scenario under the heading `heading`: its values, the key figures
+/// and its status.
+pub(super) fn table(h: &mut String, t: &Table, heading: &str) {
     let cols: Vec<(usize, Figure, &str, Shown)> = KEY
         .iter()
         .filter_map(|(figure, _, heading)| {
@@ -335,8 +419,9 @@ fn table(h: &mut String, t: &Table) {
                 .map(|i| (i, *figure, *heading, shown(*figure)))
         })
         .collect();
+    let _ = write!(h, "<h2>{}</h2>\n", esc(heading));
     h.push_str(
-        "<h2>Scenarios</h2>\n<p>Peaks are at the borehole wall (flux, shear) and on the screen \
+        "<p>Peaks are at the borehole wall (flux, shear) and on the screen \
          or casing (collapse load); highlighted cells are the checks a single-run report \
          warns of (collapse margin below 1, gradient above critical, slot velocity above the \
          rule of thumb, grain Reynolds number above 1, a parted column); the sweep table holds \
