@@ -301,8 +301,8 @@ fn an_interrupted_sweep_writes_nothing() {
 }
 
 /// `report` on a sweep table writes the sweep page: cautions, one chart per key figure
-/// against the first varied value, and every scenario's row; a sweep table named with
-/// another file is refused and nothing is written.
+/// against the first varied value, and every scenario's row (comparisons and refusals:
+/// cli/tests/sweep_compare.rs).
 #[test]
 fn a_sweep_table_gets_its_own_report() {
     let dir = tempfile::tempdir().unwrap();
@@ -341,14 +341,4 @@ fn a_sweep_table_gets_its_own_report() {
         html.contains(&format!("<td>{shown}</td>")),
         "{shown} not in the table"
     );
-    // A sweep table is reported on its own.
-    let refused = dir.path().join("both.html");
-    boreflux()
-        .args(["report", stem.with_extension("h5").to_str().unwrap()])
-        .arg(stem.with_extension("h5"))
-        .arg("-o")
-        .arg(&refused)
-        .assert()
-        .failure();
-    assert!(!refused.exists());
 }
