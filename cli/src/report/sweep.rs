@@ -214,10 +214,10 @@ pub fn page(t: &Table, title: Option<&str>) -> String {
         &head_title,
         title.unwrap_or("Well development sweep report"),
     );
-    let _ = write!(
+    let _ = writeln!(
         h,
         "<p class=\"lead\">{n} scenarios of <code>{case}</code>{shard}; every number and figure \
-         below is read from the sweep table. Built by boreflux {v}.</p>\n",
+         below is read from the sweep table. Built by boreflux {v}.</p>",
         v = env!("CARGO_PKG_VERSION"),
         case = esc(&t.case_file),
         n = t.rows.len(),
@@ -378,9 +378,7 @@ pub(super) fn charts(h: &mut String, tables: &[(Option<String>, &Table)]) {
                 None => vec![f64::NAN; l.rows.len()],
             })
             .collect();
-        if !tables
-            .iter()
-            .any(|(_, t)| t.figures.iter().any(|f| *f == name))
+        if !tables.iter().any(|(_, t)| t.figures.contains(&name))
             || ys.iter().flatten().all(|y| !y.is_finite())
         {
             continue;
@@ -419,7 +417,7 @@ pub(super) fn table(h: &mut String, t: &Table, heading: &str) {
                 .map(|i| (i, *figure, *heading, shown(*figure)))
         })
         .collect();
-    let _ = write!(h, "<h2>{}</h2>\n", esc(heading));
+    let _ = writeln!(h, "<h2>{}</h2>", esc(heading));
     h.push_str(
         "<p>Peaks are at the borehole wall (flux, shear) and on the screen \
          or casing (collapse load); highlighted cells are the checks a single-run report \
