@@ -1141,7 +1141,7 @@ impl JumpSeries {
     ];
 
     /// The group the series live in.
-    pub const GROUP: &'static str = "jumps";
+    pub const GROUP: &'static str = Group::Jumps.name();
 
     /// Its schema entry; `name` is the path below `/jumps`.
     pub fn entry(self) -> Entry {

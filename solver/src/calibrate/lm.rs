@@ -11,7 +11,7 @@
 //! ```
 //!
 //! Moré, J. J. (1978), "The Levenberg–Marquardt algorithm: implementation and theory",
-//! Numerical Analysis, Lecture Notes in Mathematics 630, Springer, 105–116 (the scaled
+//! Numerical Analysis (G. A. Watson, ed.), Springer LNM 630, 105–116 (the scaled
 //! trust region form and the stopping tests); the μ update is Nielsen's (Nielsen, H. B.,
 //! 1999, "Damping parameter in Marquardt's method", IMM-REP-1999-05, DTU) — both from
 //! memory, verify. Bounds by projection of the trial point (assumption: adequate when the

@@ -21,6 +21,8 @@ pub enum Group {
     Summary,
     /// Per-cycle envelopes of the per-step series (`output.store`).
     Envelopes,
+    /// Jumps over whole cycles (`numerics.multiscale`).
+    Jumps,
 }
 
 impl Group {
@@ -34,6 +36,7 @@ impl Group {
             Group::Progress => "progress",
             Group::Summary => "summary",
             Group::Envelopes => "envelopes",
+            Group::Jumps => "jumps",
         }
     }
 
