@@ -10,6 +10,7 @@
 //!   the current state.
 
 pub mod checks;
+pub mod watch;
 pub mod figures;
 pub mod progress;
 pub mod virtual_test;
