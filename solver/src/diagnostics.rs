@@ -216,7 +216,9 @@ impl EventSet {
 
     /// The kinds of the set, in code order.
     pub fn iter(self) -> impl Iterator<Item = EventKind> {
-        EventKind::ALL.into_iter().filter(move |k| self.contains(*k))
+        EventKind::ALL
+            .into_iter()
+            .filter(move |k| self.contains(*k))
     }
 }
 

@@ -96,9 +96,9 @@ pub fn storage(raw: Option<&RawOutput>, model: &Model) -> Result<(Storage, Value
                 let steps = boreflux_solver::cost::estimate(model).steps;
                 if periodic && steps > AUTO_STEPS_LIMIT {
                     Storage::Envelopes {
-                detail_cycles,
-                event_windows,
-            }
+                        detail_cycles,
+                        event_windows,
+                    }
                 } else {
                     Storage::Steps
                 }

@@ -24,9 +24,9 @@ use crate::summary::{
     assessment, collapse_ratings, headline, pipe_temperature_c, table, Headline, Tracker,
     REYNOLDS_SOFT_LIMIT,
 };
-use boreflux_solver::assess::watch::Limits;
 use anyhow::{anyhow, Context};
 use boreflux_solver::assess::progress::{ProgressBasis, ProgressPoint};
+use boreflux_solver::assess::watch::Limits;
 use boreflux_solver::drive::Drive;
 use boreflux_solver::grid::Grid;
 use boreflux_solver::model::{Model, Multiscale};

@@ -7,7 +7,7 @@
 use super::h5::H5Writer;
 use super::schema::EventSeries;
 use super::OutputError;
-use boreflux_solver::assess::watch::{Limits, LimitWatch};
+use boreflux_solver::assess::watch::{LimitWatch, Limits};
 use boreflux_solver::{EventKind, EventSet, Model, StepView};
 use hdf5::types::VarLenUnicode;
 

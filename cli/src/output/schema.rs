@@ -1345,7 +1345,10 @@ pub fn markdown() -> String {
         "Events (`/events/<name>`; every run, empty when none was raised; the group's \
          attribute `unrecorded` counts events beyond the first 1 000 000, which are not listed):",
         "",
-        EventSeries::ALL.into_iter().map(EventSeries::entry).collect(),
+        EventSeries::ALL
+            .into_iter()
+            .map(EventSeries::entry)
+            .collect(),
     );
     out.push_str("Event kinds (`/events/kind`):\n\n| kind | meaning |\n| --- | --- |\n");
     for k in EventKind::ALL {

@@ -10,10 +10,10 @@
 //!   the current state.
 
 pub mod checks;
-pub mod watch;
 pub mod figures;
 pub mod progress;
 pub mod virtual_test;
+pub mod watch;
 
 use crate::error::SolverError;
 use crate::model::Model;
