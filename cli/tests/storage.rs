@@ -385,6 +385,12 @@ fn the_cycles_around_a_mid_run_parting_are_kept_in_full() {
         .as_str()
         .to_owned();
     assert!(warnings.contains("parted"), "{warnings}");
+    // The report marks the first parting on the time charts, one line per chart.
+    let html = dir.join("env.html");
+    write_report(std::slice::from_ref(&env_h5), &html).unwrap();
+    let page = std::fs::read_to_string(&html).unwrap();
+    let marked = page.matches(">column parting (first)</text>").count();
+    assert!((5..=10).contains(&marked), "{marked} parting marks");
     let kept = kept_cycles(&env);
     let t_all = read(&all, "series/time");
     let t_env = read(&env, "series/time");
