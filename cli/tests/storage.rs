@@ -293,7 +293,7 @@ fn ramped_surge_case(
     p
 }
 
-/// The run's events: (cycle, kind), in time order.
+/// The run's events: (cycle, kind name), in time order.
 fn events(file: &hdf5::File) -> Vec<(u64, String)> {
     let cycles = file
         .dataset("events/cycle")
@@ -303,11 +303,20 @@ fn events(file: &hdf5::File) -> Vec<(u64, String)> {
     let kinds = file
         .dataset("events/kind")
         .unwrap()
+        .read_raw::<u8>()
+        .unwrap();
+    let names = file
+        .dataset("events/kinds")
+        .unwrap()
         .read_raw::<hdf5::types::VarLenUnicode>()
         .unwrap();
     cycles
         .into_iter()
-        .zip(kinds.iter().map(|k| k.as_str().to_owned()))
+        .zip(
+            kinds
+                .iter()
+                .map(|&k| names[usize::from(k)].as_str().to_owned()),
+        )
         .collect()
 }
 

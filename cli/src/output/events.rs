@@ -4,23 +4,20 @@
 //! cake. Each is recorded with its time and cycle for `/events`, and handed to the
 //! envelope writer, which keeps the cycles around it in full.
 
-use super::h5::H5Writer;
+use super::h5::{H5Writer, SeriesHandle};
 use super::schema::EventSeries;
 use super::OutputError;
 use boreflux_solver::assess::watch::{LimitWatch, Limits};
 use boreflux_solver::{EventKind, EventSet, Model, StepView};
 use hdf5::types::VarLenUnicode;
 
+/// Events per chunk of the `/events` series (compressed like the series).
+const CHUNK: usize = 4096;
+
 /// Change of the cake's cover or thickness within one step, relative to its starting
 /// value, that counts as an event. Assumption: a lift-off patch or removal shows as a jump
 /// of this size; the smooth erosion of a step is far smaller.
 const CAKE_EVENT_FRACTION: f64 = 0.01;
-
-/// Events recorded in `/events` at most; beyond, they are counted (the `/events` group's
-/// `unrecorded` attribute) and still mark detail windows. A run raises one event per rising
-/// edge of a limit, a few per cycle: 10⁶ is about a hundred per cycle of an 8-hour run at
-/// 20 strokes per minute (9 600 cycles), and at most 17 MB of memory.
-pub const MAX_RECORDED: usize = 1_000_000;
 
 /// What marks events, set up from the case.
 #[derive(Debug, Clone)]
@@ -33,7 +30,7 @@ pub struct EventPlan {
     pub stage_starts_s: Vec<f64>,
 }
 
-/// The events of one run, in time order.
+/// The events of one run, streamed to `/events` in time order.
 pub struct EventLog {
     watch: LimitWatch,
     stage_starts_s: Vec<f64>,
@@ -44,16 +41,36 @@ pub struct EventLog {
     last_cake: [f64; 2],
     cycle_now: u64,
     closing: Option<u64>,
-    time_s: Vec<f64>,
-    cycle: Vec<u64>,
-    kind: Vec<EventKind>,
-    unrecorded: u64,
+    time: SeriesHandle,
+    cycle: SeriesHandle<u64>,
+    kind: SeriesHandle<u8>,
 }
 
 impl EventLog {
-    /// An empty log.
-    pub fn new(plan: EventPlan) -> Self {
-        EventLog {
+    /// Creates `/events` (the series, and the names of the kinds).
+    pub fn create(w: &mut H5Writer, plan: EventPlan) -> Result<Self, OutputError> {
+        w.group(&format!("/{}", EventSeries::GROUP))?;
+        let names = EventKind::ALL
+            .iter()
+            .map(|k| k.name().parse::<VarLenUnicode>())
+            .collect::<Result<Vec<_>, _>>()
+            .map_err(|e| OutputError::Invalid {
+                object: EventSeries::Kinds.path(),
+                message: e.to_string(),
+            })?;
+        let e = EventSeries::Kinds.entry();
+        w.write_vector(
+            &EventSeries::Kinds.path(),
+            &names,
+            e.unit.symbol(),
+            &e.description,
+        )?;
+        let (t, c, k) = (
+            EventSeries::Time.entry(),
+            EventSeries::Cycle.entry(),
+            EventSeries::Kind.entry(),
+        );
+        Ok(EventLog {
             watch: LimitWatch::new(&plan.model, plan.limits),
             stage_starts_s: plan.stage_starts_s,
             next_stage: 0,
@@ -62,11 +79,25 @@ impl EventLog {
             last_cake: [f64::NAN; 2],
             cycle_now: 0,
             closing: None,
-            time_s: Vec::with_capacity(1024),
-            cycle: Vec::with_capacity(1024),
-            kind: Vec::with_capacity(1024),
-            unrecorded: 0,
-        }
+            time: w.growable_series(
+                &EventSeries::Time.path(),
+                t.unit.symbol(),
+                &t.description,
+                CHUNK,
+            )?,
+            cycle: w.growable_series_of::<u64>(
+                &EventSeries::Cycle.path(),
+                c.unit.symbol(),
+                &c.description,
+                CHUNK,
+            )?,
+            kind: w.growable_series_of::<u8>(
+                &EventSeries::Kind.path(),
+                k.unit.symbol(),
+                &k.description,
+                CHUNK,
+            )?,
+        })
     }
 
     /// A cycle ended (its last step is reported next).
@@ -82,7 +113,7 @@ impl EventLog {
     }
 
     /// The events of a reported step, recorded.
-    pub fn on_step(&mut self, s: &StepView<'_>) -> EventSet {
+    pub fn on_step(&mut self, s: &StepView<'_>) -> Result<EventSet, OutputError> {
         let mut set = s.events.union(self.watch.check(s));
         let cake = [s.cake_coverage, s.cake_thickness_m];
         if self.cake_ref[0].is_nan() {
@@ -109,45 +140,10 @@ impl EventLog {
         self.last_time_s = s.time_s;
         let cycle = self.closing.take().unwrap_or(self.cycle_now);
         for k in set.iter() {
-            if self.time_s.len() < MAX_RECORDED {
-                self.time_s.push(s.time_s);
-                self.cycle.push(cycle);
-                self.kind.push(k);
-            } else {
-                self.unrecorded += 1;
-            }
+            self.time.append(&[s.time_s])?;
+            self.cycle.append(&[cycle])?;
+            self.kind.append(&[k as u8])?;
         }
-        set
-    }
-
-    /// Writes `/events` (every series, empty when the run raised none).
-    pub fn write(&self, w: &mut H5Writer) -> Result<(), OutputError> {
-        w.group(&format!("/{}", EventSeries::GROUP))?;
-        for series in EventSeries::ALL {
-            let e = series.entry();
-            let (path, unit) = (series.path(), e.unit.symbol());
-            match series {
-                EventSeries::Time => w.write_vector(&path, &self.time_s, unit, &e.description)?,
-                EventSeries::Cycle => w.write_vector(&path, &self.cycle, unit, &e.description)?,
-                EventSeries::Kind => {
-                    let names = self
-                        .kind
-                        .iter()
-                        .map(|k| k.name().parse::<VarLenUnicode>())
-                        .collect::<Result<Vec<_>, _>>()
-                        .map_err(|e| OutputError::Invalid {
-                            object: path.clone(),
-                            message: e.to_string(),
-                        })?;
-                    w.write_vector(&path, &names, unit, &e.description)?;
-                }
-            }
-        }
-        w.set_attr_f64(
-            &format!("/{}", EventSeries::GROUP),
-            "unrecorded",
-            self.unrecorded as f64,
-        )?;
-        Ok(())
+        Ok(set)
     }
 }

@@ -1204,13 +1204,20 @@ pub enum EventSeries {
     Time,
     /// The cycle holding it.
     Cycle,
-    /// Its kind's name.
+    /// Its kind, an index into `Kinds`.
     Kind,
+    /// The names of the kinds.
+    Kinds,
 }
 
 impl EventSeries {
     /// All, in file order.
-    pub const ALL: [EventSeries; 3] = [EventSeries::Time, EventSeries::Cycle, EventSeries::Kind];
+    pub const ALL: [EventSeries; 4] = [
+        EventSeries::Time,
+        EventSeries::Cycle,
+        EventSeries::Kind,
+        EventSeries::Kinds,
+    ];
 
     /// The group the series live in.
     pub const GROUP: &'static str = Group::Events.name();
@@ -1235,8 +1242,14 @@ impl EventSeries {
             EventSeries::Kind => s(
                 "kind",
                 Unit::One,
-                "what happened: one of the event kinds below (text)",
+                "what happened: the index (from 0, unsigned byte) of its name in `kinds`",
                 "a limit crossed upward, or a change the solver reports",
+            ),
+            EventSeries::Kinds => s(
+                "kinds",
+                Unit::One,
+                "the names of the event kinds (text; the table below), in index order",
+                "fixed list",
             ),
         }
     }
@@ -1342,17 +1355,24 @@ pub fn markdown() -> String {
     );
     table(
         &mut out,
-        "Events (`/events/<name>`; every run, empty when none was raised; the group's \
-         attribute `unrecorded` counts events beyond the first 1 000 000, which are not listed):",
+        "Events (`/events/<name>`; every run; `time`, `cycle` and `kind` one value per \
+         event, empty when none was raised; docs/formats.md \"Events\"):",
         "",
         EventSeries::ALL
             .into_iter()
             .map(EventSeries::entry)
             .collect(),
     );
-    out.push_str("Event kinds (`/events/kind`):\n\n| kind | meaning |\n| --- | --- |\n");
+    out.push_str(
+        "Event kinds (`/events/kinds`, in index order):\n\n| index | kind | meaning |\n| --- | --- | --- |\n",
+    );
     for k in EventKind::ALL {
-        out.push_str(&format!("| `{}` | {} |\n", k.name(), k.description()));
+        out.push_str(&format!(
+            "| {} | `{}` | {} |\n",
+            k as u8,
+            k.name(),
+            k.description()
+        ));
     }
     out.push('\n');
     out.push_str("Text attributes of `/summary`:\n\n| name | description |\n| --- | --- |\n");

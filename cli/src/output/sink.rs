@@ -116,6 +116,7 @@ impl ResultSink {
             }
             None => None,
         };
+        let events = EventLog::create(&mut w, events)?;
         let n_series = series.len();
         let envelopes = match envelopes {
             Some(plan) => {
@@ -136,7 +137,7 @@ impl ResultSink {
             row: Vec::with_capacity(n_series),
             envelopes,
             closing: false,
-            events: EventLog::new(events),
+            events,
             error: None,
         })
     }
@@ -151,7 +152,7 @@ impl ResultSink {
         for (step, _) in &self.series {
             self.row.push(step.value(s));
         }
-        let events = self.events.on_step(s);
+        let events = self.events.on_step(s)?;
         let (series, csv) = (&mut self.series, &mut self.csv);
         let mut write = |row: &[f64]| write_row(series, csv, row);
         match self.envelopes.as_mut() {
@@ -181,7 +182,6 @@ impl ResultSink {
             let (series, csv) = (&mut self.series, &mut self.csv);
             env.finish(|row| write_row(series, csv, row))?;
         }
-        self.events.write(&mut self.writer)?;
         if let Some(csv) = self.csv {
             csv.finish()?;
         }

@@ -377,13 +377,21 @@ fn read_first_events(file: &File) -> Result<Vec<(f64, EventKind)>, ReadError> {
     let kind_path = EventSeries::Kind.path();
     let kinds = file
         .dataset(&kind_path[1..])
-        .and_then(|d| d.read_raw::<VarLenUnicode>())
+        .and_then(|d| d.read_raw::<u8>())
         .map_err(ReadError::hdf5(kind_path.clone()))?;
     same_length(&kind_path, kinds.len(), &time_path, time.len())?;
+    let names_path = EventSeries::Kinds.path();
+    let names = file
+        .dataset(&names_path[1..])
+        .and_then(|d| d.read_raw::<VarLenUnicode>())
+        .map_err(ReadError::hdf5(names_path))?;
     let mut first: Vec<(f64, EventKind)> = Vec::new();
-    for (&t, k) in time.iter().zip(&kinds) {
+    for (&t, &k) in time.iter().zip(&kinds) {
         // A kind this version does not know is left out.
-        if let Some(k) = EventKind::from_name(k.as_str()) {
+        let known = names
+            .get(usize::from(k))
+            .and_then(|n| EventKind::from_name(n.as_str()));
+        if let Some(k) = known {
             if !first.iter().any(|&(_, f)| f == k) {
                 first.push((t, k));
             }
