@@ -465,3 +465,34 @@ impl CycleAccumulator {
         };
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn event_sets_hold_each_kind_once_in_code_order() {
+        let mut s = EventSet::EMPTY;
+        assert!(s.is_empty());
+        s.insert(EventKind::CakeChange);
+        s.insert(EventKind::ColumnParting);
+        s.insert(EventKind::CakeChange);
+        let kinds: Vec<EventKind> = s.iter().collect();
+        assert_eq!(kinds, [EventKind::ColumnParting, EventKind::CakeChange]);
+        for (code, k) in EventKind::ALL.into_iter().enumerate() {
+            assert_eq!(k as usize, code);
+            assert_eq!(EventKind::from_name(k.name()), Some(k));
+        }
+        assert!(EventKind::ALL.len() <= 16, "EventSet is 16 bits");
+    }
+
+    #[test]
+    fn an_edge_rises_once_per_stretch() {
+        let mut e = Edge::default();
+        let seen: Vec<bool> = [false, true, true, false, true]
+            .into_iter()
+            .map(|x| e.rises(x))
+            .collect();
+        assert_eq!(seen, [false, true, false, false, true]);
+    }
+}

@@ -388,3 +388,100 @@ impl Envelopes {
         Ok(())
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use std::collections::BTreeSet;
+
+    /// Feeds `cycles` cycles of 4 steps (1 s each) with the events `at(cycle)` on each
+    /// cycle's second step; returns the cycles with a step inside them that were written,
+    /// and checks that every row was written once, in time order.
+    fn kept(cycles: u64, plan: EnvelopePlan, at: impl Fn(u64) -> EventSet) -> BTreeSet<u64> {
+        let dir = tempfile::tempdir().unwrap();
+        let mut w = H5Writer::create(dir.path().join("e.h5")).unwrap();
+        let steps = [Step::Time, Step::WellHead];
+        let mut env = Envelopes::create(&mut w, &steps, plan).unwrap();
+        let mut written: Vec<f64> = Vec::new();
+        for c in 0..cycles {
+            for k in 1..=4u64 {
+                let t = (4 * c + k) as f64;
+                let events = if k == 2 { at(c) } else { EventSet::EMPTY };
+                env.add(&[t, t.sin()], k == 4, events, |r| {
+                    written.push(r[0]);
+                    Ok(())
+                })
+                .unwrap();
+            }
+        }
+        env.finish(|r| {
+            written.push(r[0]);
+            Ok(())
+        })
+        .unwrap();
+        assert!(written.windows(2).all(|p| p[0] < p[1]), "{written:?}");
+        // A row at 4c + 1..=4c + 3 lies inside cycle c.
+        written
+            .iter()
+            .filter(|&&t| t as u64 % 4 != 0)
+            .map(|&t| t as u64 / 4)
+            .collect()
+    }
+
+    fn one(k: EventKind) -> EventSet {
+        let mut s = EventSet::EMPTY;
+        s.insert(k);
+        s
+    }
+
+    /// A warning in every cycle from 10 to 20 and a stage start in cycle 30, 40 cycles,
+    /// 2 detail cycles, 1 event window: the first 2 and last 2 cycles, the first warning
+    /// cycle with one each side, the last late window (cycles 19–21: the warning of
+    /// cycle 20 and its neighbours) written before the stage start's window, and that
+    /// window — the rule of docs/formats.md "Events", worked by hand.
+    #[test]
+    fn late_windows_are_written_before_the_next_kept_cycles() {
+        let plan = EnvelopePlan {
+            detail_cycles: 2,
+            detail_from_s: 4.0 * 38.0,
+            event_windows: 1,
+        };
+        let got = kept(40, plan.clone(), |c| match c {
+            10..=20 => one(EventKind::GrainReynolds),
+            30 => one(EventKind::StageStart),
+            _ => EventSet::EMPTY,
+        });
+        let expected: BTreeSet<u64> = [0, 1, 9, 10, 11, 19, 20, 21, 29, 30, 31, 38, 39].into();
+        assert_eq!(got, expected);
+        // No event window at all with 0; the stage start keeps its own.
+        let none = EnvelopePlan {
+            event_windows: 0,
+            ..plan
+        };
+        let got = kept(40, none, |c| match c {
+            10..=20 => one(EventKind::GrainReynolds),
+            30 => one(EventKind::StageStart),
+            _ => EventSet::EMPTY,
+        });
+        assert_eq!(got, [0, 1, 29, 30, 31, 38, 39].into());
+    }
+
+    /// Two kinds count apart: each keeps its own first windows; an isolated late event
+    /// keeps its whole window (3 cycles) before the closing cycles.
+    #[test]
+    fn each_kind_has_its_own_first_windows() {
+        let plan = EnvelopePlan {
+            detail_cycles: 1,
+            detail_from_s: 4.0 * 49.0,
+            event_windows: 1,
+        };
+        let got = kept(50, plan, |c| match c {
+            5 | 25 => one(EventKind::SlotVelocity),
+            15 => one(EventKind::ColumnParting),
+            40 => one(EventKind::ColumnParting),
+            _ => EventSet::EMPTY,
+        });
+        let expected: BTreeSet<u64> = [0, 4, 5, 6, 14, 15, 16, 39, 40, 41, 49].into();
+        assert_eq!(got, expected);
+    }
+}
