@@ -68,7 +68,7 @@ pub fn run_cost(case: &LoadedCase, csv: bool, snapshot_every: u64) -> RunCost {
     let c = estimate(&case.model);
     let (rows, envelope_bytes) = match case.storage {
         Storage::Steps => ((c.steps / case.output_every.max(1) as f64).ceil(), 0.0),
-        Storage::Envelopes { detail_cycles } => {
+        Storage::Envelopes { detail_cycles, .. } => {
             let period = case
                 .model
                 .drive
@@ -91,7 +91,9 @@ pub fn run_cost(case: &LoadedCase, csv: bool, snapshot_every: u64) -> RunCost {
     } else {
         (c.steps / snapshot_every as f64).ceil()
     };
-    // Events of the cake (lift-off jumps) add windows the estimate cannot foresee.
+    // Events (lift-off jumps, warnings' moments, partings) add windows the estimate cannot
+    // foresee: at most 3 cycles for each of `event_windows` cycles per kind, and the last
+    // late window before each kept stretch (docs/formats.md, "Events").
     let mut bytes = H5_FIXED_BYTES
         + COMPRESSED_FRACTION
             * (rows * h5_bytes_per_row() + envelope_bytes + snapshots * c.cells * 8.0);

@@ -265,3 +265,271 @@ fn jumped_cycles_have_no_envelope() {
         }
     }
 }
+
+/// The municipal demo's surge block (cases/municipal-sand-gravel.json, invented demo data)
+/// ramped over 16 cycles instead of 5, every cycle computed, with the formation's
+/// conductivity `formation_k` and `duration`; `output` is the output section. With 1e-5 m/s
+/// the column under the block parts from the middle of the ramp on (the formation cannot
+/// supply the stroke), with the demo's 4e-4 m/s it never does, but the grain Reynolds
+/// number at the wall passes 1 in the ramp and every cycle after it.
+fn ramped_surge_case(
+    dir: &Path,
+    name: &str,
+    formation_k: &str,
+    duration: &str,
+    output: &str,
+) -> PathBuf {
+    let shipped = Path::new(env!("CARGO_MANIFEST_DIR")).join("../cases/municipal-sand-gravel.json");
+    let mut case: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(shipped).unwrap()).unwrap();
+    case["title"] = "ramped surge block (invented test data)".into();
+    case["drive"]["ramp_cycles"] = 16.into();
+    case["formation"]["conductivity"] = formation_k.into();
+    case["duration"] = duration.into();
+    case["numerics"]["multiscale"] = "off".into();
+    case["output"] = serde_json::from_str(output).unwrap();
+    let p = dir.join(format!("{name}.json"));
+    std::fs::write(&p, serde_json::to_string_pretty(&case).unwrap()).unwrap();
+    p
+}
+
+/// The run's events: (cycle, kind name), in time order.
+fn events(file: &hdf5::File) -> Vec<(u64, String)> {
+    let cycles = file
+        .dataset("events/cycle")
+        .unwrap()
+        .read_raw::<u64>()
+        .unwrap();
+    let kinds = file
+        .dataset("events/kind")
+        .unwrap()
+        .read_raw::<u8>()
+        .unwrap();
+    let names = file
+        .dataset("events/kinds")
+        .unwrap()
+        .read_raw::<hdf5::types::VarLenUnicode>()
+        .unwrap();
+    cycles
+        .into_iter()
+        .zip(
+            kinds
+                .iter()
+                .map(|&k| names[usize::from(k)].as_str().to_owned()),
+        )
+        .collect()
+}
+
+/// The cycles (by envelope index; every cycle is computed) that have a step inside them in
+/// `/series` (the step on a cycle's end also begins the next one: it is not counted).
+fn kept_cycles(file: &hdf5::File) -> std::collections::BTreeSet<usize> {
+    let (start, end) = (
+        read(file, "envelopes/start_time"),
+        read(file, "envelopes/end_time"),
+    );
+    let t = read(file, "series/time");
+    (0..start.len())
+        .filter(|&k| t.iter().any(|&x| x > start[k] && x < end[k]))
+        .collect()
+}
+
+/// Names of the datasets of `/series` (the power and work of each zone in subgroups).
+fn series_names(file: &hdf5::File) -> Vec<String> {
+    let g = file.group("series").unwrap();
+    let mut names = Vec::new();
+    for n in g.member_names().unwrap() {
+        match g.group(&n) {
+            Ok(sub) => names.extend(
+                sub.member_names()
+                    .unwrap()
+                    .into_iter()
+                    .map(|m| format!("{n}/{m}")),
+            ),
+            Err(_) => names.push(n),
+        }
+    }
+    names
+}
+
+/// A column parting and a warning's limit crossed mid-run: the cycle holding the first of
+/// each kind and one each side are in `/series` in full, and equal bit for bit to the
+/// every-step run of the same case at those times (same stepper, same steps; the storage
+/// choice does not touch the solver).
+#[test]
+fn the_cycles_around_a_mid_run_parting_are_kept_in_full() {
+    let dir = scratch("parting");
+    let out = r#"{ "store": "envelopes", "detail_cycles": 2, "event_windows": 1 }"#;
+    let env_case = ramped_surge_case(&dir, "env", "1e-5 m/s", "90 s", out);
+    let all_case = ramped_surge_case(&dir, "all", "1e-5 m/s", "90 s", r#"{ "store": "steps" }"#);
+    let (env_h5, all_h5) = (dir.join("env.h5"), dir.join("all.h5"));
+    run(&env_case, &env_h5);
+    run(&all_case, &all_h5);
+    let env = hdf5::File::open(&env_h5).unwrap();
+    let all = hdf5::File::open(&all_h5).unwrap();
+    // The events are the solver's and the checks', whatever the storage.
+    assert_eq!(events(&env), events(&all));
+    let ev = events(&env);
+    let (start, end) = (
+        read(&env, "envelopes/start_time"),
+        read(&env, "envelopes/end_time"),
+    );
+    let n = start.len();
+    assert_eq!(n, 30, "90 s at 20 strokes per minute");
+    let first_parting = ev
+        .iter()
+        .find(|(_, k)| k == "column_parting")
+        .expect("the column parts in this case")
+        .0 as usize;
+    // Mid-run: outside the first and the last 2 cycles, with a cycle each side.
+    assert!(
+        (3..n - 3).contains(&first_parting),
+        "first parting in cycle {first_parting}"
+    );
+    let summary = all.group("summary").unwrap();
+    let warnings: String = summary
+        .attr("warnings")
+        .unwrap()
+        .read_scalar::<hdf5::types::VarLenUnicode>()
+        .unwrap()
+        .as_str()
+        .to_owned();
+    assert!(warnings.contains("parted"), "{warnings}");
+    // The report marks the first parting on the time charts, one line per chart.
+    let html = dir.join("env.html");
+    write_report(std::slice::from_ref(&env_h5), &html).unwrap();
+    let page = std::fs::read_to_string(&html).unwrap();
+    let marked = page.matches(">column parting (first)</text>").count();
+    assert!((5..=10).contains(&marked), "{marked} parting marks");
+    let kept = kept_cycles(&env);
+    let t_all = read(&all, "series/time");
+    let t_env = read(&env, "series/time");
+    let names = series_names(&env);
+    assert!(names.len() > 20, "{names:?}");
+    let mut kinds: Vec<&str> = ev.iter().map(|(_, k)| k.as_str()).collect();
+    kinds.sort_unstable();
+    kinds.dedup();
+    for kind in kinds {
+        let c = ev.iter().find(|(_, k)| k == kind).unwrap().0 as usize;
+        let (lo, hi) = (c.saturating_sub(1), (c + 1).min(n - 1));
+        for k in lo..=hi {
+            assert!(
+                kept.contains(&k),
+                "{kind}: cycle {k} of {c}'s window not kept"
+            );
+        }
+        // Every step of the window, row for row.
+        let (t0, t1) = (start[lo], end[hi]);
+        let rows_all: Vec<usize> = (0..t_all.len())
+            .filter(|&i| t_all[i] >= t0 && t_all[i] <= t1)
+            .collect();
+        let rows_env: Vec<usize> = (0..t_env.len())
+            .filter(|&i| t_env[i] >= t0 && t_env[i] <= t1)
+            .collect();
+        assert_eq!(
+            rows_all.len(),
+            rows_env.len(),
+            "{kind}: steps of cycles {lo}..={hi}"
+        );
+        for name in &names {
+            let (a, e) = (
+                read(&all, &format!("series/{name}")),
+                read(&env, &format!("series/{name}")),
+            );
+            for (&i, &j) in rows_all.iter().zip(&rows_env) {
+                assert_eq!(
+                    a[i].to_bits(),
+                    e[j].to_bits(),
+                    "{kind}: series/{name} at t = {}",
+                    t_all[i]
+                );
+            }
+        }
+    }
+    let _ = std::fs::remove_dir_all(&dir);
+}
+
+/// A warning's limit crossed in every cycle from the middle of the ramp on: the detail
+/// windows stay bounded by `output.event_windows` (docs/formats.md "Events"): the first
+/// `event_windows` cycles holding it with one each side, and the last late window (3
+/// cycles) before the closing cycles — the kept set is exactly that, whatever the number of
+/// repeats.
+#[test]
+fn a_warning_repeated_every_cycle_keeps_bounded_windows() {
+    let dir = scratch("repeated");
+    let d = 2usize;
+    for windows in [0usize, 1, 3] {
+        let out = format!(
+            r#"{{ "store": "envelopes", "detail_cycles": {d}, "event_windows": {windows} }}"#
+        );
+        let case = ramped_surge_case(&dir, "rep", "4e-4 m/s", "3 min", &out);
+        let h5 = dir.join(format!("rep{windows}.h5"));
+        run(&case, &h5);
+        let f = hdf5::File::open(&h5).unwrap();
+        let ev = events(&f);
+        let n = read(&f, "envelopes/start_time").len();
+        assert_eq!(n, 60);
+        // The premise: one kind only, in every cycle from its first to the end.
+        assert!(ev.iter().all(|(_, k)| k == "grain_reynolds"), "{ev:?}");
+        let c = ev[0].0 as usize;
+        let cycles: std::collections::BTreeSet<usize> =
+            ev.iter().map(|&(c, _)| c as usize).collect();
+        assert_eq!(cycles, (c..n).collect(), "repeats every cycle from {c}");
+        assert!(c > d + 1 && c + windows + 1 < n - d - 3, "cycle {c}");
+        let mut expected: std::collections::BTreeSet<usize> = (0..d).collect();
+        expected.extend(n - d..n);
+        if windows > 0 {
+            expected.extend(c - 1..=c + windows);
+            expected.extend(n - d - 3..n - d);
+        }
+        assert_eq!(kept_cycles(&f), expected, "event_windows {windows}");
+    }
+    let _ = std::fs::remove_dir_all(&dir);
+}
+
+/// Every warning of `/summary` that names a moment of the run has events of its kind, and
+/// every such kind raised has its warning: the shipped swab (partings, vapour suction, slot
+/// velocity) and the staged development case (grain Reynolds, stage starts).
+#[test]
+fn the_summary_warnings_and_the_events_agree() {
+    let dir = scratch("agree");
+    let cases = Path::new(env!("CARGO_MANIFEST_DIR")).join("../cases");
+    let pairs = [
+        ("column_parting", "parted"),
+        ("slot_velocity", "slot velocity"),
+        ("grain_reynolds", "grain Reynolds number"),
+        ("collapse_load", "COLLAPSE RISK"),
+        ("pump_suction", "broke suction"),
+        ("thrust_bound", "drive.max_thrust) for"),
+    ];
+    for name in ["swab-deep", "staged-development", "municipal-sand-gravel"] {
+        let h5 = dir.join(format!("{name}.h5"));
+        run(&cases.join(format!("{name}.json")), &h5);
+        let f = hdf5::File::open(&h5).unwrap();
+        let ev = events(&f);
+        let warnings = f
+            .group("summary")
+            .unwrap()
+            .attr("warnings")
+            .unwrap()
+            .read_scalar::<hdf5::types::VarLenUnicode>()
+            .unwrap()
+            .as_str()
+            .to_owned();
+        for (kind, words) in pairs {
+            assert_eq!(
+                ev.iter().any(|(_, k)| k == kind),
+                warnings.contains(words),
+                "{name}: event {kind} against warning \"{words}\":\n{warnings}"
+            );
+        }
+        if name == "staged-development" {
+            assert!(ev.iter().any(|(_, k)| k == "stage_start"));
+        }
+        if name == "swab-deep" {
+            assert!(ev.iter().any(|(_, k)| k == "column_parting"));
+        }
+        let t = read(&f, "events/time");
+        assert!(t.windows(2).all(|w| w[0] <= w[1]), "{name}: time order");
+    }
+    let _ = std::fs::remove_dir_all(&dir);
+}

@@ -69,6 +69,12 @@ pub struct StepView<'a> {
     pub energy_residual: f64,
     /// Newton iterations of the step.
     pub newton_iterations: usize,
+    /// Head inside the screen: the in-well head less the column's inertial head
+    /// (docs/physics.md §24), m. The pack side less this is the collapse differential.
+    pub screen_inner_head_m: f64,
+    /// Events the solver saw in the steps since the previous report, this one included
+    /// ([`EventKind::SOLVER`]).
+    pub events: EventSet,
     /// Cell heads, m (N values, inner to outer).
     pub heads: &'a [f64],
     /// The grid.
@@ -76,6 +82,158 @@ pub struct StepView<'a> {
     /// The well's slow state after the step (what a virtual test on the well as it stands
     /// now starts from: `SlowState::snapshot_model`).
     pub slow: &'a crate::slow::SlowState,
+}
+
+/// A moment of a run that a warning refers to or that the output keeps in detail
+/// (docs/formats.md, "Events"). The solver raises the kinds of [`EventKind::SOLVER`] in
+/// [`StepView::events`]; the limits of the run's checks (`assess::watch`) and the output
+/// (stage starts, jumps of the cake) raise the others.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord)]
+pub enum EventKind {
+    /// The water column under a sealed tool parted at the vapour bound (one per parting).
+    ColumnParting,
+    /// The in-well head under a sealed tool came within the vapour margin of its vapour
+    /// bound (the suction is near the water's vapour pressure).
+    VapourSuction,
+    /// A pump's level reached its intake (it broke suction).
+    PumpSuction,
+    /// A surge block reached its downstroke thrust bound (`drive.max_thrust`).
+    ThrustBound,
+    /// A series alternated in sign from step to step (an undamped numerical mode).
+    Oscillation,
+    /// A step was accepted at the smallest step length above its error tolerance.
+    SmallestStep,
+    /// The slot velocity rose above the 0.03 m/s rule of thumb.
+    SlotVelocity,
+    /// The grain Reynolds number at the wall rose above 1.
+    GrainReynolds,
+    /// The collapse load rose above a collapse rating over the safety factor.
+    CollapseLoad,
+    /// A stage of a schedule started.
+    StageStart,
+    /// The cake's cover or thickness jumped within one step (a lift-off patch, removal).
+    CakeChange,
+}
+
+impl EventKind {
+    /// All kinds, in code order.
+    pub const ALL: [EventKind; 11] = [
+        EventKind::ColumnParting,
+        EventKind::VapourSuction,
+        EventKind::PumpSuction,
+        EventKind::ThrustBound,
+        EventKind::Oscillation,
+        EventKind::SmallestStep,
+        EventKind::SlotVelocity,
+        EventKind::GrainReynolds,
+        EventKind::CollapseLoad,
+        EventKind::StageStart,
+        EventKind::CakeChange,
+    ];
+
+    /// The kinds the solver raises itself.
+    pub const SOLVER: [EventKind; 6] = [
+        EventKind::ColumnParting,
+        EventKind::VapourSuction,
+        EventKind::PumpSuction,
+        EventKind::ThrustBound,
+        EventKind::Oscillation,
+        EventKind::SmallestStep,
+    ];
+
+    /// The kind's name in files and reports.
+    pub const fn name(self) -> &'static str {
+        match self {
+            EventKind::ColumnParting => "column_parting",
+            EventKind::VapourSuction => "vapour_suction",
+            EventKind::PumpSuction => "pump_suction",
+            EventKind::ThrustBound => "thrust_bound",
+            EventKind::Oscillation => "oscillation",
+            EventKind::SmallestStep => "smallest_step",
+            EventKind::SlotVelocity => "slot_velocity",
+            EventKind::GrainReynolds => "grain_reynolds",
+            EventKind::CollapseLoad => "collapse_load",
+            EventKind::StageStart => "stage_start",
+            EventKind::CakeChange => "cake_change",
+        }
+    }
+
+    /// What it means, one line.
+    pub const fn description(self) -> &'static str {
+        match self {
+            EventKind::ColumnParting => "the water column under a sealed tool parted at the vapour bound",
+            EventKind::VapourSuction => "the head under a sealed tool came within the vapour margin (1 mm) of its vapour bound",
+            EventKind::PumpSuction => "the level reached the pump's intake (suction broken)",
+            EventKind::ThrustBound => "the surge block reached its downstroke thrust bound (drive.max_thrust)",
+            EventKind::Oscillation => "a series alternated in sign from step to step (a numerical mode)",
+            EventKind::SmallestStep => "a step was accepted at the smallest step length above its tolerance",
+            EventKind::SlotVelocity => "the slot velocity rose above the 0.03 m/s rule of thumb",
+            EventKind::GrainReynolds => "the grain Reynolds number at the wall rose above 1",
+            EventKind::CollapseLoad => "the collapse load rose above a collapse rating over the safety factor",
+            EventKind::StageStart => "a stage of the schedule started",
+            EventKind::CakeChange => "the cake's cover or thickness changed by more than 1 % of its start in one step",
+        }
+    }
+
+    /// The kind of a name, if any.
+    pub fn from_name(name: &str) -> Option<EventKind> {
+        EventKind::ALL.into_iter().find(|k| k.name() == name)
+    }
+
+    const fn bit(self) -> u16 {
+        1 << self as u16
+    }
+}
+
+/// A set of event kinds (a bit set: no allocation in the time loop).
+#[derive(Debug, Clone, Copy, Default, PartialEq, Eq)]
+pub struct EventSet(u16);
+
+impl EventSet {
+    /// The empty set.
+    pub const EMPTY: EventSet = EventSet(0);
+
+    /// Adds a kind.
+    pub fn insert(&mut self, k: EventKind) {
+        self.0 |= k.bit();
+    }
+
+    /// Whether the set holds `k`.
+    pub fn contains(self, k: EventKind) -> bool {
+        self.0 & k.bit() != 0
+    }
+
+    /// Whether the set is empty.
+    pub fn is_empty(self) -> bool {
+        self.0 == 0
+    }
+
+    /// The union of two sets.
+    #[must_use]
+    pub fn union(self, other: EventSet) -> EventSet {
+        EventSet(self.0 | other.0)
+    }
+
+    /// The kinds of the set, in code order.
+    pub fn iter(self) -> impl Iterator<Item = EventKind> {
+        EventKind::ALL
+            .into_iter()
+            .filter(move |k| self.contains(*k))
+    }
+}
+
+/// Rising edges of a condition watched step by step: true when it holds now and did not at
+/// the previous step (a condition held for many steps is one event).
+#[derive(Debug, Clone, Copy, Default)]
+pub struct Edge(bool);
+
+impl Edge {
+    /// The condition's value at this step; true on a rising edge.
+    pub fn rises(&mut self, now: bool) -> bool {
+        let rose = now && !self.0;
+        self.0 = now;
+        rose
+    }
 }
 
 /// Aggregates of one cycle of a periodic drive.
@@ -305,5 +463,36 @@ impl CycleAccumulator {
             cake_start: cake_m,
             ..CycleAccumulator::new(self.period_s, 0.0)
         };
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn event_sets_hold_each_kind_once_in_code_order() {
+        let mut s = EventSet::EMPTY;
+        assert!(s.is_empty());
+        s.insert(EventKind::CakeChange);
+        s.insert(EventKind::ColumnParting);
+        s.insert(EventKind::CakeChange);
+        let kinds: Vec<EventKind> = s.iter().collect();
+        assert_eq!(kinds, [EventKind::ColumnParting, EventKind::CakeChange]);
+        for (code, k) in EventKind::ALL.into_iter().enumerate() {
+            assert_eq!(k as usize, code);
+            assert_eq!(EventKind::from_name(k.name()), Some(k));
+        }
+        assert!(EventKind::ALL.len() <= 16, "EventSet is 16 bits");
+    }
+
+    #[test]
+    fn an_edge_rises_once_per_stretch() {
+        let mut e = Edge::default();
+        let seen: Vec<bool> = [false, true, true, false, true]
+            .into_iter()
+            .map(|x| e.rises(x))
+            .collect();
+        assert_eq!(seen, [false, true, false, false, true]);
     }
 }

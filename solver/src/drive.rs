@@ -391,6 +391,21 @@ impl Drive {
         }
     }
 
+    /// True when the in-well head H at time t is within the vapour margin of the vapour
+    /// bound of a sealed tool (never without one).
+    pub fn near_vapour(&self, t: f64, h: f64) -> bool {
+        h < self.vapour_bound_m(t) + crate::devices::VAPOUR_MARGIN_M
+    }
+
+    /// True when a pump-and-backwash stage is active at time t and the in-well head H is in
+    /// the band above its intake where it breaks suction.
+    pub fn pump_suction_broken(&self, t: f64, h: f64) -> bool {
+        match self.stage_at(t).0 {
+            Drive::PumpBackwash(p) => p.suction_broken(h),
+            _ => false,
+        }
+    }
+
     /// True when the in-well head H at time t is at a device's limit: within the margin of
     /// the vapour bound under a sealed tool, or in the band above a pump's intake where it
     /// breaks suction.

@@ -22,7 +22,9 @@
 mod multiscale;
 mod watch;
 
-use crate::diagnostics::{face_state, power_now, CycleAccumulator, StepObserver, StepView};
+use crate::diagnostics::{
+    face_state, power_now, CycleAccumulator, Edge, EventKind, EventSet, StepObserver, StepView,
+};
 use crate::error::SolverError;
 use crate::grid::ZONE_COUNT;
 use crate::model::{Model, Scheme, TimeSpec};
@@ -417,6 +419,11 @@ pub fn run_from_state(
     let mut head_watch = Alternation::default();
     let mut oscillation: Option<(f64, &'static str)> = None;
     let mut forced_steps = 0u64;
+    // Events since the last report, and the conditions watched for their rising edges.
+    let mut events = EventSet::EMPTY;
+    let mut partings_seen = 0u64;
+    let (mut near_vapour, mut pump_suction, mut at_thrust) =
+        (Edge::default(), Edge::default(), Edge::default());
     let mut jumper = multiscale::CycleJumper::new(model, &st, &slow);
     let end = model.duration_s;
     let eps = 1e-12 * end.max(1.0);
@@ -424,6 +431,9 @@ pub fn run_from_state(
         let (target, jump) = clock.next_target(model, st.time_s);
         let taken = chooser.advance(model, &mut st, target, last_jump, &mut summary)?;
         forced_steps += u64::from(taken.forced);
+        if taken.forced {
+            events.insert(EventKind::SmallestStep);
+        }
         let landing = taken.landing;
         if landing {
             st.time_s = target;
@@ -491,6 +501,7 @@ pub fn run_from_state(
         };
         if let Some(what) = ringing {
             oscillation.get_or_insert((st.time_s, what));
+            events.insert(EventKind::Oscillation);
             chooser.refine();
         }
         match slow.advance(model, &face, st.time_s, b.dt_s, &st.disc, st.heads()) {
@@ -521,11 +532,28 @@ pub fn run_from_state(
                 push.area_m2 = PI * block.block_radius_m * block.block_radius_m;
                 push.bounded = block.max_head_m().is_finite();
             }
-            if h_well > block.max_head_m() - crate::devices::VAPOUR_MARGIN_M {
+            let stalled = h_well > block.max_head_m() - crate::devices::VAPOUR_MARGIN_M;
+            if stalled {
                 push.stalled_s += b.dt_s;
                 push.bound_m = block.max_head_m();
             }
+            if at_thrust.rises(stalled) {
+                events.insert(EventKind::ThrustBound);
+            }
         }
+        // The suction limits of the stage the step ran in, and new partings of the column.
+        let t_in = left_limit(st.time_s);
+        if near_vapour.rises(model.drive.near_vapour(t_in, h_well)) {
+            events.insert(EventKind::VapourSuction);
+        }
+        if pump_suction.rises(model.drive.pump_suction_broken(t_in, h_well)) {
+            events.insert(EventKind::PumpSuction);
+        }
+        let partings = st.column_parting().0;
+        if partings > partings_seen {
+            events.insert(EventKind::ColumnParting);
+        }
+        partings_seen = partings;
         summary.well_head_range_m = (
             summary.well_head_range_m.0.min(h_well),
             summary.well_head_range_m.1.max(h_well),
@@ -567,6 +595,8 @@ pub fn run_from_state(
                 mass_residual: b.mass_residual,
                 energy_residual: b.energy_residual,
                 newton_iterations: b.newton_iterations,
+                screen_inner_head_m: h_screen,
+                events,
                 heads: &st.heads()[1..],
                 grid: &st.disc.grid,
                 slow: &slow,
@@ -578,8 +608,11 @@ pub fn run_from_state(
                     cycle_done = Some(c.index);
                 }
             }
-            let stop = (landing || last || summary.steps % reporting.every == 0)
-                && !observer.on_step(&view);
+            let reported = landing || last || summary.steps % reporting.every == 0;
+            if reported {
+                events = EventSet::EMPTY;
+            }
+            let stop = reported && !observer.on_step(&view);
             if stop {
                 summary.stopped_early = true;
                 break;
@@ -605,6 +638,8 @@ pub fn run_from_state(
                 );
                 flux_watch.reset();
                 head_watch.reset();
+                // Partings the jump extrapolated are no event.
+                partings_seen = st.column_parting().0;
                 observer.on_jump(&jumped.view);
             }
         }

@@ -7,6 +7,8 @@ use schemars::JsonSchema;
 use serde::Deserialize;
 use serde_json::{json, Value};
 
+pub use crate::output::envelope::DEFAULT_EVENT_WINDOWS;
+
 /// Default cycles kept step by step at the start, at the end and around each event.
 pub const DEFAULT_DETAIL_CYCLES: u64 = 10;
 /// Largest run that "auto" stores step by step, in estimated steps: about 60 MB of series
@@ -21,12 +23,18 @@ pub struct RawOutput {
     /// "steps": every reported step (every `numerics.output_every`-th); "envelopes": the
     /// minimum, maximum and RMS of every series over each complete drive cycle, with every
     /// step kept only for the first and last `detail_cycles` cycles and around events (a
-    /// stage change, a jump of the cake's cover or thickness); "auto": steps while the run's
+    /// stage change, a jump of the cake's cover or thickness, a warning's moment, a column
+    /// parting); "auto": steps while the run's
     /// estimated steps are at most 250 000, envelopes beyond for a periodic drive [auto].
     pub store: Option<StoreChoice>,
     /// Cycles kept step by step at the start and end of an "envelopes" run, and the
     /// cycles kept before and after each event (1 each side) [10].
     pub detail_cycles: Option<u64>,
+    /// Cycles holding each kind of event (a warning's moment, a column parting, a jump of
+    /// the cake) kept step by step with one cycle each side, the first ones of the run; a
+    /// later one only as the last before the next kept cycles; 0 keeps none. Stage starts
+    /// are always kept [3].
+    pub event_windows: Option<u64>,
 }
 
 /// The storage choice as written.
@@ -50,6 +58,8 @@ pub enum Storage {
     Envelopes {
         /// Cycles kept in full at the start and end.
         detail_cycles: u64,
+        /// Cycles holding each kind of event kept in full (`output.event_windows`).
+        event_windows: u64,
     },
 }
 
@@ -66,6 +76,9 @@ pub fn storage(raw: Option<&RawOutput>, model: &Model) -> Result<(Storage, Value
             "must be at least 1 (the last cycles are always kept step by step)",
         ));
     }
+    let event_windows = raw
+        .and_then(|r| r.event_windows)
+        .unwrap_or(DEFAULT_EVENT_WINDOWS);
     let periodic = model.drive.slowest_period_s().is_some();
     let storage =
         match choice {
@@ -75,11 +88,17 @@ pub fn storage(raw: Option<&RawOutput>, model: &Model) -> Result<(Storage, Value
                 "\"envelopes\" needs a periodic drive (a surge block, swab, pump-and-backwash, \
                  jetting, sine head or repeating table); use \"steps\"",
             )),
-            StoreChoice::Envelopes => Storage::Envelopes { detail_cycles },
+            StoreChoice::Envelopes => Storage::Envelopes {
+                detail_cycles,
+                event_windows,
+            },
             StoreChoice::Auto => {
                 let steps = boreflux_solver::cost::estimate(model).steps;
                 if periodic && steps > AUTO_STEPS_LIMIT {
-                    Storage::Envelopes { detail_cycles }
+                    Storage::Envelopes {
+                        detail_cycles,
+                        event_windows,
+                    }
                 } else {
                     Storage::Steps
                 }
@@ -91,6 +110,6 @@ pub fn storage(raw: Option<&RawOutput>, model: &Model) -> Result<(Storage, Value
     };
     Ok((
         storage,
-        json!({ "store": store, "detail_cycles": detail_cycles }),
+        json!({ "store": store, "detail_cycles": detail_cycles, "event_windows": event_windows }),
     ))
 }

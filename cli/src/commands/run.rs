@@ -15,13 +15,18 @@ use crate::args::RunArgs;
 use crate::case::Storage;
 use crate::case::{load_case, LoadedCase};
 use crate::output::envelope::EnvelopePlan;
+use crate::output::events::EventPlan;
 use crate::output::schema::{
     figure_values, GridData, Group, JumpSeries, ProgressSeries, RootAttr, SummaryText,
 };
 use crate::output::sink::ResultSink;
-use crate::summary::{assessment, headline, table, Headline, Tracker};
+use crate::summary::{
+    assessment, collapse_ratings, headline, pipe_temperature_c, table, Headline, Tracker,
+    REYNOLDS_SOFT_LIMIT,
+};
 use anyhow::{anyhow, Context};
 use boreflux_solver::assess::progress::{ProgressBasis, ProgressPoint};
+use boreflux_solver::assess::watch::Limits;
 use boreflux_solver::drive::Drive;
 use boreflux_solver::grid::Grid;
 use boreflux_solver::model::{Model, Multiscale};
@@ -246,6 +251,7 @@ pub fn run(a: &RunArgs) -> Result<(), Failure> {
         grid.cells(),
         snapshot_every,
         envelope_plan(&case),
+        event_plan(&case),
     )
     .map_err(|e| Failure::Input(anyhow!("cannot write output {}: {e}", a.output.display())))?;
     write_metadata(&mut sink, &case, a, &grid).map_err(|e| Failure::Runtime(e.into()))?;
@@ -422,12 +428,28 @@ fn drive_files(v: &Value, out: &mut Vec<String>) {
 /// Where an "envelopes" run keeps every step (docs/formats.md, "Storage choice"); None when
 /// the case keeps every step.
 fn envelope_plan(case: &LoadedCase) -> Option<EnvelopePlan> {
-    let Storage::Envelopes { detail_cycles } = case.storage else {
+    let Storage::Envelopes {
+        detail_cycles,
+        event_windows,
+    } = case.storage
+    else {
         return None;
     };
     let model = &case.model;
     let period = model.drive.slowest_period_s().unwrap_or(0.0);
-    let event_times_s = match &model.drive {
+    Some(EnvelopePlan {
+        detail_cycles,
+        detail_from_s: model.duration_s - detail_cycles as f64 * period,
+        event_windows,
+    })
+}
+
+/// What marks the run's events (docs/formats.md, "Events"): the limits of the warnings of
+/// `summary::headline` and the stage starts.
+fn event_plan(case: &LoadedCase) -> EventPlan {
+    let model = &case.model;
+    let ratings = collapse_ratings(&case.safety, pipe_temperature_c(case));
+    let stage_starts_s = match &model.drive {
         Drive::Schedule(stages) => stages
             .iter()
             .map(|s| s.start_s)
@@ -435,9 +457,14 @@ fn envelope_plan(case: &LoadedCase) -> Option<EnvelopePlan> {
             .collect(),
         _ => Vec::new(),
     };
-    Some(EnvelopePlan {
-        detail_cycles,
-        detail_from_s: model.duration_s - detail_cycles as f64 * period,
-        event_times_s,
-    })
+    EventPlan {
+        model: model.clone(),
+        limits: Limits {
+            grain_reynolds: REYNOLDS_SOFT_LIMIT,
+            screen_rating_pa: ratings.screen_pa,
+            casing_rating_pa: ratings.casing_pa,
+            safety_factor: case.safety.safety_factor,
+        },
+        stage_starts_s,
+    }
 }

@@ -9,6 +9,7 @@
 
 pub mod csv;
 pub mod envelope;
+pub mod events;
 pub mod h5;
 pub mod schema;
 pub mod sink;

@@ -23,7 +23,7 @@ use crate::summary::Headline;
 use boreflux_solver::assess::figures::RunFigures;
 use boreflux_solver::assess::{StepCoefficients, WellFigures};
 use boreflux_solver::grid::{Zone, ZONE_COUNT};
-use boreflux_solver::{CycleView, JumpView, StepView};
+use boreflux_solver::{CycleView, EventKind, JumpView, StepView};
 
 /// SI unit of an output, as written in the `units` attribute and the docs.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -1196,6 +1196,70 @@ impl JumpSeries {
         format!("/{}/{}", Self::GROUP, self.entry().name)
     }
 }
+/// A series of the events group (`/events/<name>`, one value per event, in time order;
+/// docs/formats.md "Events"). The kinds are [`EventKind::ALL`].
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum EventSeries {
+    /// Time of the step that raised it.
+    Time,
+    /// The cycle holding it.
+    Cycle,
+    /// Its kind, an index into `Kinds`.
+    Kind,
+    /// The names of the kinds.
+    Kinds,
+}
+
+impl EventSeries {
+    /// All, in file order.
+    pub const ALL: [EventSeries; 4] = [
+        EventSeries::Time,
+        EventSeries::Cycle,
+        EventSeries::Kind,
+        EventSeries::Kinds,
+    ];
+
+    /// The group the series live in.
+    pub const GROUP: &'static str = Group::Events.name();
+
+    /// Its schema entry; `name` is the path below `/events`.
+    pub fn entry(self) -> Entry {
+        let s = |n: &str, u, d: &str, c| entry(n.to_owned(), u, d.to_owned(), c, Place::Model);
+        match self {
+            EventSeries::Time => s(
+                "time",
+                Unit::S,
+                "time of the step that raised the event",
+                "end of the step",
+            ),
+            EventSeries::Cycle => s(
+                "cycle",
+                Unit::One,
+                "number of the drive cycle holding the event, from 0 (0 for a drive without \
+                 cycles; the step that ends a cycle belongs to it)",
+                "count",
+            ),
+            EventSeries::Kind => s(
+                "kind",
+                Unit::One,
+                "what happened: the index (from 0, unsigned byte) of its name in `kinds`",
+                "a limit crossed upward, or a change the solver reports",
+            ),
+            EventSeries::Kinds => s(
+                "kinds",
+                Unit::One,
+                "the names of the event kinds (text; the table below), in index order",
+                "fixed list",
+            ),
+        }
+    }
+
+    /// The HDF5 path, `/events/<name>`.
+    pub fn path(self) -> String {
+        format!("/{}/{}", Self::GROUP, self.entry().name)
+    }
+}
+
 /// The schema as the Markdown tables of docs/formats.md ("Output schema"), which
 /// `boreflux schema --outputs` prints and a test compares with the docs.
 pub fn markdown() -> String {
@@ -1289,6 +1353,28 @@ pub fn markdown() -> String {
         "",
         JumpSeries::ALL.into_iter().map(JumpSeries::entry).collect(),
     );
+    table(
+        &mut out,
+        "Events (`/events/<name>`; every run; `time`, `cycle` and `kind` one value per \
+         event, empty when none was raised; docs/formats.md \"Events\"):",
+        "",
+        EventSeries::ALL
+            .into_iter()
+            .map(EventSeries::entry)
+            .collect(),
+    );
+    out.push_str(
+        "Event kinds (`/events/kinds`, in index order):\n\n| index | kind | meaning |\n| --- | --- | --- |\n",
+    );
+    for k in EventKind::ALL {
+        out.push_str(&format!(
+            "| {} | `{}` | {} |\n",
+            k as u8,
+            k.name(),
+            k.description()
+        ));
+    }
+    out.push('\n');
     out.push_str("Text attributes of `/summary`:\n\n| name | description |\n| --- | --- |\n");
     for t in SummaryText::ALL {
         out.push_str(&format!("| `{}` | {} |\n", t.name(), t.description()));

@@ -3,6 +3,7 @@
 
 use super::csv::{Column, CsvWriter};
 use super::envelope::{EnvelopePlan, Envelopes};
+use super::events::{EventLog, EventPlan};
 use super::h5::{H5Writer, MatrixHandle, SeriesHandle};
 use super::schema::{Cycle, Group, SnapshotData, Step, CYCLE_INDEX};
 use super::OutputError;
@@ -40,6 +41,8 @@ pub struct ResultSink {
     envelopes: Option<Envelopes>,
     /// The step being reported ends a complete cycle (`on_cycle` comes first).
     closing: bool,
+    /// The run's events (`/events`), which also mark the detail windows.
+    events: EventLog,
     /// First write error; the run stops at it.
     pub error: Option<OutputError>,
 }
@@ -52,6 +55,7 @@ impl ResultSink {
         cells: usize,
         snapshot_every: u64,
         envelopes: Option<EnvelopePlan>,
+        events: EventPlan,
     ) -> Result<Self, OutputError> {
         let mut w = H5Writer::create(path)?;
         w.set_deflate(Some(DEFLATE_LEVEL));
@@ -112,6 +116,7 @@ impl ResultSink {
             }
             None => None,
         };
+        let events = EventLog::create(&mut w, events)?;
         let n_series = series.len();
         let envelopes = match envelopes {
             Some(plan) => {
@@ -132,6 +137,7 @@ impl ResultSink {
             row: Vec::with_capacity(n_series),
             envelopes,
             closing: false,
+            events,
             error: None,
         })
     }
@@ -146,10 +152,11 @@ impl ResultSink {
         for (step, _) in &self.series {
             self.row.push(step.value(s));
         }
+        let events = self.events.on_step(s)?;
         let (series, csv) = (&mut self.series, &mut self.csv);
         let mut write = |row: &[f64]| write_row(series, csv, row);
         match self.envelopes.as_mut() {
-            Some(env) => env.add(&self.row, self.closing, &mut write)?,
+            Some(env) => env.add(&self.row, self.closing, events, &mut write)?,
             None => write(&self.row)?,
         }
         self.closing = false;
@@ -161,6 +168,7 @@ impl ResultSink {
     }
 
     fn write_cycle(&mut self, c: &CycleView) -> Result<(), OutputError> {
+        self.events.on_cycle(c.index);
         self.cycle_index.append(&[c.index])?;
         for (cycle, h) in &mut self.cycles {
             h.append(&[cycle.value(c)])?;
@@ -194,9 +202,13 @@ impl StepObserver for ResultSink {
         true
     }
 
-    fn on_jump(&mut self, _jump: &JumpView) {
+    fn on_jump(&mut self, jump: &JumpView) {
+        self.events.on_jump(jump.first_cycle + jump.cycles);
         if let Some(env) = self.envelopes.as_mut() {
-            env.jump();
+            let (series, csv) = (&mut self.series, &mut self.csv);
+            if let Err(e) = env.jump(|row| write_row(series, csv, row)) {
+                self.error.get_or_insert(e);
+            }
         }
     }
 

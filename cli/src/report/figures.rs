@@ -5,6 +5,7 @@ use super::format::{Shown, FLOW, FLUX, HEAD, NUMBER, SHEAR, SMALL_LENGTH};
 use super::read::{Run, Series as RunSeries};
 use super::svg::{render, Band, Chart, Mark, Scale, SecondAxis, Series, Style};
 use super::{legend_name, run_letter};
+use boreflux_solver::EventKind;
 
 /// Head profiles drawn per run.
 const SNAPSHOTS_SHOWN: usize = 5;
@@ -96,6 +97,13 @@ pub fn figures(runs: &[Run]) -> Vec<Figure> {
                         lo: get(&env.min),
                         hi: get(&env.max),
                         color: style.color,
+                    });
+                }
+                // The first event of each kind, as a labelled vertical line.
+                for &(t, kind) in run.series.first_events.iter().take(MAX_EVENT_MARKS) {
+                    c.marks.push(Mark {
+                        x: t * t_factor,
+                        label: event_label(kind, i, runs.len()),
                     });
                 }
                 // Detail windows of an envelope file are drawn apart, not joined.
@@ -224,6 +232,21 @@ pub fn figures(runs: &[Run]) -> Vec<Figure> {
         });
     }
     out
+}
+
+/// Event lines per run on a time chart at most (the first kinds in kind order: the
+/// partings and suction limits come first); `/events` lists them all.
+const MAX_EVENT_MARKS: usize = 4;
+
+/// The label of an event line: its kind in words, "first", and the run's letter when the
+/// page compares runs.
+fn event_label(kind: EventKind, run: usize, runs: usize) -> String {
+    let words = kind.name().replace('_', " ");
+    if runs > 1 {
+        format!("{words} (first, {})", run_letter(run))
+    } else {
+        format!("{words} (first)")
+    }
 }
 
 fn axis_label(quantity: &str, unit: &str) -> String {

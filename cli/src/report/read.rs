@@ -10,11 +10,12 @@ use std::collections::BTreeMap;
 use std::path::{Path, PathBuf};
 
 use crate::output::schema::{
-    Cycle, EnvelopeStat, Figure, GridData, Group, JumpSeries, ProgressSeries, RootAttr,
-    SnapshotData, Step, SummaryText, CYCLE_INDEX, ENVELOPES,
+    Cycle, EnvelopeStat, EventSeries, Figure, GridData, Group, JumpSeries, ProgressSeries,
+    RootAttr, SnapshotData, Step, SummaryText, CYCLE_INDEX, ENVELOPES,
 };
 use crate::read_error::{FileKind, ReadError};
 use boreflux_solver::grid::Zone;
+use boreflux_solver::EventKind;
 use hdf5::types::{TypeDescriptor, VarLenAscii, VarLenUnicode};
 use hdf5::{Attribute, File, Location};
 
@@ -96,6 +97,9 @@ pub struct Series {
     /// each a row of NaN is put into every series (time: the middle of the jump), so the
     /// charts break their lines there rather than draw across what was not computed.
     pub gaps: Vec<(f64, f64)>,
+    /// The first event of each kind (`/events`): time, s, and kind, in kind order; empty
+    /// for a file without events.
+    pub first_events: Vec<(f64, EventKind)>,
 }
 
 /// `/envelopes` (files that keep per-cycle envelopes, `output.store`): each a [`Series`]
@@ -332,6 +336,7 @@ fn read_columns(
         work,
         time,
         gaps: read_gaps(file)?,
+        first_events: read_first_events(file)?,
     };
     break_at_gaps(&mut series);
     Ok(series)
@@ -355,6 +360,45 @@ fn read_gaps(file: &File) -> Result<Vec<(f64, f64)>, ReadError> {
         from.len(),
     )?;
     Ok(from.into_iter().zip(to).collect())
+}
+
+/// The time of the first event of each kind in `/events`; none without the group (files
+/// of earlier versions).
+fn read_first_events(file: &File) -> Result<Vec<(f64, EventKind)>, ReadError> {
+    if !file.link_exists(EventSeries::GROUP) {
+        return Ok(Vec::new());
+    }
+    let time_path = EventSeries::Time.path();
+    let time = vector(
+        file,
+        &time_path[1..],
+        EventSeries::Time.entry().unit.symbol(),
+    )?;
+    let kind_path = EventSeries::Kind.path();
+    let kinds = file
+        .dataset(&kind_path[1..])
+        .and_then(|d| d.read_raw::<u8>())
+        .map_err(ReadError::hdf5(kind_path.clone()))?;
+    same_length(&kind_path, kinds.len(), &time_path, time.len())?;
+    let names_path = EventSeries::Kinds.path();
+    let names = file
+        .dataset(&names_path[1..])
+        .and_then(|d| d.read_raw::<VarLenUnicode>())
+        .map_err(ReadError::hdf5(names_path))?;
+    let mut first: Vec<(f64, EventKind)> = Vec::new();
+    for (&t, &k) in time.iter().zip(&kinds) {
+        // A kind this version does not know is left out.
+        let known = names
+            .get(usize::from(k))
+            .and_then(|n| EventKind::from_name(n.as_str()));
+        if let Some(k) = known {
+            if !first.iter().any(|&(_, f)| f == k) {
+                first.push((t, k));
+            }
+        }
+    }
+    first.sort_by_key(|&(_, k)| k);
+    Ok(first)
 }
 
 /// Puts a row of NaN into every series at each gap (see [`Series::gaps`]).

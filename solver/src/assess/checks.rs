@@ -46,16 +46,10 @@ pub fn run_checks(
     peak_face_gradient: f64,
     specific_gravity: f64,
 ) -> RunChecks {
-    let w = &model.well;
     let rho_g = model.fluid.density_kg_m3 * GRAVITY_M_S2;
-    let slot = s.peak_screen_flow_m3_s
-        / (2.0 * std::f64::consts::PI * w.screen_radius_m * w.screen_length_m * w.open_area);
+    let slot = slot_velocity_m_s(model, s.peak_screen_flow_m3_s);
     let peak_q = s.peak_outward_flux_m_s.max(s.peak_inward_flux_m_s);
-    let reynolds = model
-        .pack
-        .medium
-        .grain_diameter_m
-        .map(|d| model.fluid.density_kg_m3 * peak_q * d / model.fluid.viscosity_pa_s);
+    let reynolds = grain_reynolds(model, peak_q);
     let outer = model
         .invaded
         .as_ref()
@@ -74,6 +68,22 @@ pub fn run_checks(
         casing_load_pa: drawdown_m * rho_g,
         peak_burst_pressure_pa: s.peak_burst_head_m * rho_g,
     }
+}
+
+/// Slot velocity |Q| / (2π r_s b A_o) of the screen flow Q, m/s.
+pub fn slot_velocity_m_s(model: &Model, screen_flow_m3_s: f64) -> f64 {
+    let w = &model.well;
+    screen_flow_m3_s.abs()
+        / (2.0 * std::f64::consts::PI * w.screen_radius_m * w.screen_length_m * w.open_area)
+}
+
+/// Grain Reynolds number ρ |q| d50 / μ of the wall flux q (pack d50), when d50 is known.
+pub fn grain_reynolds(model: &Model, flux_m_s: f64) -> Option<f64> {
+    model
+        .pack
+        .medium
+        .grain_diameter_m
+        .map(|d| model.fluid.density_kg_m3 * flux_m_s.abs() * d / model.fluid.viscosity_pa_s)
 }
 
 /// Collapse margin rating / (safety factor × load); none without a rating or a load.

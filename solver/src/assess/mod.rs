@@ -13,6 +13,7 @@ pub mod checks;
 pub mod figures;
 pub mod progress;
 pub mod virtual_test;
+pub mod watch;
 
 use crate::error::SolverError;
 use crate::model::Model;

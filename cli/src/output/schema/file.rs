@@ -23,6 +23,8 @@ pub enum Group {
     Envelopes,
     /// Jumps over whole cycles (`numerics.multiscale`).
     Jumps,
+    /// Events of the run (warnings' moments, partings, stage starts, cake jumps).
+    Events,
 }
 
 impl Group {
@@ -37,6 +39,7 @@ impl Group {
             Group::Summary => "summary",
             Group::Envelopes => "envelopes",
             Group::Jumps => "jumps",
+            Group::Events => "events",
         }
     }
 
