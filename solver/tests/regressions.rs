@@ -3,38 +3,23 @@
 use boreflux_solver::devices::Swab;
 use boreflux_solver::diagnostics::NullObserver;
 use boreflux_solver::drive::{stages, Drive, Stage};
+use boreflux_solver::fixtures;
 use boreflux_solver::model::*;
 use boreflux_solver::{run, Reporting};
 
+/// A 0.084 m screen 9 m long under a 0.077 m casing in a 0.15 m pack of 2e-3 m/s and an
+/// infinite formation of 2e-4 m/s (invented demo numbers).
 fn model(drive: Drive, duration_s: f64) -> Model {
-    let m = Medium::darcy(2e-4, 1e-5);
-    Model {
-        fluid: Fluid::WATER_20C,
-        well: Well {
-            screen_radius_m: 0.084,
-            screen_length_m: 9.0,
-            open_area: 0.05,
-            casing_radius_m: 0.077,
-            linear_loss_s: 0.0,
-            discharge_coefficient: Some(0.6),
-            storage_m2: Well::free_surface_storage(0.077),
-            column_length_m: 0.0,
-        },
-        pack: Pack {
-            outer_radius_m: 0.15,
-            medium: Medium::darcy(2e-3, 1e-5),
-        },
-        cake: None,
-        invaded: None,
-        formation: Formation {
-            medium: m,
-            outer_radius_m: None,
-            outer_boundary: OuterBoundary::FixedHead,
-        },
-        drive,
-        duration_s,
-        numerics: Numerics::default(),
-    }
+    let mut m = fixtures::demo_well();
+    m.well = fixtures::cased_screen(0.084, 9.0, 0.05, 0.077);
+    m.pack = Pack {
+        outer_radius_m: 0.15,
+        medium: Medium::darcy(2e-3, 1e-5),
+    };
+    m.formation.outer_radius_m = None;
+    m.drive = drive;
+    m.duration_s = duration_s;
+    m
 }
 
 fn swab() -> Swab {
@@ -114,16 +99,7 @@ fn municipal_block(duration_s: f64) -> Model {
         net_atmospheric_head_m: 10.2,
     };
     let mut m = model(Drive::SurgeBlock(block), duration_s);
-    m.well = Well {
-        screen_radius_m: 0.203,
-        screen_length_m: 24.0,
-        open_area: 0.15,
-        casing_radius_m: 0.1905,
-        linear_loss_s: 0.0,
-        discharge_coefficient: Some(0.6),
-        storage_m2: Well::free_surface_storage(0.1905),
-        column_length_m: 0.0,
-    };
+    m.well = fixtures::cased_screen(0.203, 24.0, 0.15, 0.1905);
     m
 }
 
@@ -312,16 +288,7 @@ fn pumped_cake_model(scheme: Scheme, dt: f64) -> Model {
         }),
         900.0,
     );
-    m.well = Well {
-        screen_radius_m: 0.162,
-        screen_length_m: 30.0,
-        open_area: 0.12,
-        casing_radius_m: 0.162,
-        linear_loss_s: 0.0,
-        discharge_coefficient: Some(0.6),
-        storage_m2: Well::free_surface_storage(0.162),
-        column_length_m: 0.0,
-    };
+    m.well = fixtures::cased_screen(0.162, 30.0, 0.12, 0.162);
     m.pack = Pack {
         outer_radius_m: 0.28,
         medium: Medium::darcy(2e-3, 1e-5),
