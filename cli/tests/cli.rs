@@ -9,11 +9,16 @@
 //! are authoritative), the exit codes (0 success, 1 runtime failure, 2 bad input;
 //! `args.rs`), and "nothing partial is left behind" (`output/mod.rs`).
 
+mod common;
+
 use assert_cmd::Command;
 use boreflux::case::{load_case, scenario_companions, scenarios};
 use boreflux_solver::grid::Zone;
 use boreflux_solver::safety::CAUTION;
 use boreflux_solver::{Reporting, StepObserver, StepView};
+use common::{
+    bad_dir, boreflux, cases_dir, dir_entries, interrupt, shipped_cases, stderr_of, stdout_of,
+};
 use hdf5::types::VarLenUnicode;
 use hdf5::Location;
 use serde_json::Value;
@@ -25,52 +30,9 @@ use std::process::Output;
 // Helpers
 // ---------------------------------------------------------------------------------------
 
-/// The binary under test.
-fn boreflux() -> Command {
-    Command::cargo_bin("boreflux").expect("the boreflux binary is built by cargo test")
-}
-
-fn cases_dir() -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR")).join("../cases")
-}
-
-fn bad_dir() -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/bad_cases")
-}
-
 /// The default demo case (the first scenario, `boreflux::case::scenarios`).
 fn demo_case() -> PathBuf {
     cases_dir().join(format!("{}.json", scenarios()[0].0))
-}
-
-/// Every shipped case file (`cases/*.json`), sorted.
-fn shipped_cases() -> Vec<PathBuf> {
-    let mut v: Vec<PathBuf> = std::fs::read_dir(cases_dir())
-        .unwrap()
-        .map(|e| e.unwrap().path())
-        .filter(|p| p.extension().is_some_and(|x| x == "json"))
-        .collect();
-    v.sort();
-    assert!(!v.is_empty(), "no case files in {}", cases_dir().display());
-    v
-}
-
-/// Names of everything in `dir`, hidden files included, sorted.
-fn dir_entries(dir: &Path) -> Vec<String> {
-    let mut v: Vec<String> = std::fs::read_dir(dir)
-        .unwrap()
-        .map(|e| e.unwrap().file_name().into_string().unwrap())
-        .collect();
-    v.sort();
-    v
-}
-
-fn stdout_of(o: &Output) -> String {
-    String::from_utf8(o.stdout.clone()).expect("stdout is UTF-8")
-}
-
-fn stderr_of(o: &Output) -> String {
-    String::from_utf8(o.stderr.clone()).expect("stderr is UTF-8")
 }
 
 /// Runs the command and returns its output, whatever the exit status.
@@ -1294,14 +1256,7 @@ fn interrupted_run_leaves_nothing() {
         );
         std::thread::sleep(std::time::Duration::from_millis(5));
     }
-    let kill = std::process::Command::new("kill")
-        .args(["-INT", &child.id().to_string()])
-        .status()
-        .unwrap();
-    assert!(kill.success());
-    let status = child.wait().unwrap();
-    let mut stderr = String::new();
-    std::io::Read::read_to_string(child.stderr.as_mut().unwrap(), &mut stderr).unwrap();
+    let (status, stderr) = interrupt(&mut child);
     assert_no_panic(&stderr, "interrupted run");
     assert!(!status.success(), "an interrupted run reported success");
     assert!(

@@ -3,19 +3,13 @@
 //! (`--allow-large`), drive files that are not regular files, a byte-order mark, and the
 //! step estimate against real runs.
 
-use assert_cmd::Command;
+mod common;
+
 use boreflux::case::{load_case, parse_case};
 use boreflux_solver::diagnostics::NullObserver;
 use boreflux_solver::{run, Reporting};
+use common::{boreflux, cases_dir, dir_entries};
 use std::path::{Path, PathBuf};
-
-fn boreflux() -> Command {
-    Command::cargo_bin("boreflux").unwrap()
-}
-
-fn cases_dir() -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR")).join("../cases")
-}
 
 /// A short valid case (sine head, 20 cycles) written into `dir`.
 fn short_case(dir: &Path) -> PathBuf {
@@ -40,15 +34,6 @@ fn code(out: &std::process::Output) -> i32 {
 
 fn stderr(out: &std::process::Output) -> String {
     String::from_utf8_lossy(&out.stderr).into_owned()
-}
-
-fn names(dir: &Path) -> Vec<String> {
-    let mut v: Vec<String> = std::fs::read_dir(dir)
-        .unwrap()
-        .map(|e| e.unwrap().file_name().into_string().unwrap())
-        .collect();
-    v.sort();
-    v
 }
 
 #[test]
@@ -147,9 +132,9 @@ fn existing_outputs_need_force_for_every_command() {
     assert_eq!(code(&merge(true)), 0);
     // No temporary file is left behind by any of this.
     assert!(
-        names(dir.path()).iter().all(|n| !n.contains(".tmp-")),
+        dir_entries(dir.path()).iter().all(|n| !n.contains(".tmp-")),
         "{:?}",
-        names(dir.path())
+        dir_entries(dir.path())
     );
 }
 
@@ -354,7 +339,7 @@ fn runs_over_the_size_limit_need_allow_large() {
         "{e}"
     );
     assert!(e.contains("1.728e10 steps"), "{e}");
-    assert_eq!(names(dir.path()), ["long.json"]);
+    assert_eq!(dir_entries(dir.path()), ["long.json"]);
     let out = boreflux().arg("check").arg(&case).output().unwrap();
     assert_eq!(code(&out), 0);
     let text = String::from_utf8_lossy(&out.stdout);

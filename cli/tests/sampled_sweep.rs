@@ -3,25 +3,11 @@
 //! stratification survives into the table, refusals name the bad input (exit 2), and the
 //! GNU parallel recipe of docs/sweeps.md runs and merges.
 
-use assert_cmd::Command;
+mod common;
+
+use common::{boreflux, cases_dir, linear_case, repo_dir, write};
 use hdf5::types::VarLenUnicode;
 use std::path::{Path, PathBuf};
-
-fn boreflux() -> Command {
-    Command::cargo_bin("boreflux").expect("the boreflux binary is built by cargo test")
-}
-
-/// A small linear well driven by a sine head (invented numbers, a demo case): fixed
-/// steps, so each scenario is a pure function of its inputs.
-const CASE: &str = r#"{
-  "well": { "screen_radius": 0.1, "screen_length": 6, "open_area": 0.12,
-            "discharge_coefficient": "none" },
-  "pack": { "outer_radius": 0.2, "porosity": 0.32, "conductivity": 8e-3 },
-  "formation": { "conductivity": 2e-4, "specific_storage": 1e-5 },
-  "drive": { "kind": "sine_head", "amplitude": 1.0, "frequency": 0.5 },
-  "duration": "4 cycles",
-  "numerics": { "steps_per_cycle": 40, "scheme": "theta" }
-}"#;
 
 const SAMPLE: [&str; 4] = [
     "--sample",
@@ -30,10 +16,27 @@ const SAMPLE: [&str; 4] = [
     "pack.conductivity=lognormal(8e-3 m/s, 0.5, min=1e-3 m/s, max=5e-2 m/s)",
 ];
 
+/// The linear well of the common helpers for 4 cycles at fixed steps, so each scenario is
+/// a pure function of its inputs.
 fn write_case(dir: &Path) -> PathBuf {
-    let p = dir.join("linear.json");
-    std::fs::write(&p, CASE).unwrap();
-    p
+    let case = linear_case(
+        r#""4 cycles""#,
+        r#"{ "steps_per_cycle": 40, "scheme": "theta" }"#,
+    );
+    write(dir, "linear.json", &case)
+}
+
+/// The page `boreflux report TABLE` writes beside the table (`mc.html`).
+fn report_page(table: &Path) -> String {
+    let html = table.with_file_name("mc.html");
+    boreflux()
+        .arg("report")
+        .arg(table)
+        .arg("-o")
+        .arg(&html)
+        .assert()
+        .success();
+    std::fs::read_to_string(&html).unwrap()
 }
 
 /// Every dataset below `group`, by path, as raw bytes of its values (text as UTF-8).
@@ -254,7 +257,7 @@ fn a_scenarios_key_series_match_its_run_file() {
     // 1/100 of the run) and /cycles (per-cycle peaks). A shipped case with a cake, so the
     // skin and specific capacity change during the run.
     let dir = tempfile::tempdir().unwrap();
-    let case = Path::new(env!("CARGO_MANIFEST_DIR")).join("../cases/domestic-fine-sand-pvc.json");
+    let case = cases_dir().join("domestic-fine-sand-pvc.json");
     boreflux()
         .arg("sweep")
         .arg(&case)
@@ -343,15 +346,7 @@ fn a_sampled_sweep_report_shows_bands_distributions_and_the_collapse_probability
         .args(["--samples", "9", "--seed", "4"])
         .assert()
         .success();
-    let html = dir.path().join("mc.html");
-    boreflux()
-        .arg("report")
-        .arg(out.with_extension("h5"))
-        .arg("-o")
-        .arg(&html)
-        .assert()
-        .success();
-    let page = std::fs::read_to_string(&html).unwrap();
+    let page = report_page(&out.with_extension("h5"));
     for want in [
         "9 scenarios drawn by Latin hypercube, seed 4",
         "<code>drive.amplitude</code> ~ <code>uniform(0.5 m, 1.5 m)</code>",
@@ -371,10 +366,7 @@ fn a_sampled_sweep_report_shows_bands_distributions_and_the_collapse_probability
 fn the_collapse_probability_counts_the_tables_margins() {
     // A shipped case with a PVC casing (so a collapse rating and margin), one minute long.
     let dir = tempfile::tempdir().unwrap();
-    let text = std::fs::read_to_string(
-        Path::new(env!("CARGO_MANIFEST_DIR")).join("../cases/domestic-fine-sand-pvc.json"),
-    )
-    .unwrap();
+    let text = std::fs::read_to_string(cases_dir().join("domestic-fine-sand-pvc.json")).unwrap();
     let mut v: serde_json::Value = serde_json::from_str(&text).unwrap();
     v["duration"] = serde_json::json!("1 min");
     let case = dir.path().join("short.json");
@@ -398,15 +390,7 @@ fn the_collapse_probability_counts_the_tables_margins() {
     let n = m.iter().filter(|x| x.is_finite()).count();
     let k = m.iter().filter(|&&x| x < 1.0).count();
     assert_eq!(n, 6, "every scenario has a margin: {m:?}");
-    let html = dir.path().join("mc.html");
-    boreflux()
-        .arg("report")
-        .arg(out.with_extension("h5"))
-        .arg("-o")
-        .arg(&html)
-        .assert()
-        .success();
-    let page = std::fs::read_to_string(&html).unwrap();
+    let page = report_page(&out.with_extension("h5"));
     let want = format!("Probability that the collapse margin is below 1: {k} of {n} scenarios");
     assert!(page.contains(&want), "missing: {want}");
     assert!(page.contains("Wilson score interval"));
@@ -442,8 +426,7 @@ fn the_gnu_parallel_recipe_runs_shards_that_merge_into_the_whole() {
             {"path": "pack.conductivity", "distribution": "loguniform(2e-3 m/s, 2e-2 m/s)"}]}"#,
     )
     .unwrap();
-    let script =
-        Path::new(env!("CARGO_MANIFEST_DIR")).join("../examples/sampled-sweep-parallel.sh");
+    let script = repo_dir().join("examples/sampled-sweep-parallel.sh");
     let shards = dir.path().join("shards");
     let status = std::process::Command::new("bash")
         .arg(&script)

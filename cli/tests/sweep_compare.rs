@@ -2,17 +2,14 @@
 //! compared on one page (one chart per key figure, one line per table, each table's
 //! scenarios), the named refusals (exit 2, nothing written), and `--title` on a sweep page.
 
-use assert_cmd::Command;
-use std::path::{Path, PathBuf};
+mod common;
 
-fn boreflux() -> Command {
-    Command::cargo_bin("boreflux").expect("the boreflux binary is built by cargo test")
-}
+use common::{boreflux, cases_dir};
+use std::path::{Path, PathBuf};
 
 /// The shipped domestic demo case, shortened to one minute so a sweep takes a moment.
 fn write_case(dir: &Path) -> PathBuf {
-    let shipped =
-        Path::new(env!("CARGO_MANIFEST_DIR")).join("../cases/domestic-fine-sand-pvc.json");
+    let shipped = cases_dir().join("domestic-fine-sand-pvc.json");
     let mut v: serde_json::Value =
         serde_json::from_str(&std::fs::read_to_string(shipped).unwrap()).unwrap();
     v["duration"] = serde_json::json!("1 min");
