@@ -22,6 +22,21 @@ fn model(drive: Drive, duration_s: f64) -> Model {
     m
 }
 
+/// A cake over the whole wall that erodes by the demo erosion parameters of the shipped
+/// cases (invented): no erosion below 1e-5 Pa, 5e-4 m/(s Pa), outward flow weighted half.
+fn eroding_cake(thickness_m: f64, conductivity_m_s: f64) -> Cake {
+    Cake {
+        erosion: Some(Erosion {
+            critical_shear_pa: 1e-5,
+            erodibility_m_s_pa: 5e-4,
+            inward_weight: 1.0,
+            outward_weight: 0.5,
+            coverage_exponent: 0.0,
+        }),
+        ..fixtures::cake(thickness_m, conductivity_m_s, 1.0)
+    }
+}
+
 fn swab() -> Swab {
     // A period (4/1.2 + 15 s) that is not exact in floating point.
     Swab {
@@ -113,13 +128,7 @@ fn surge_block_against_a_sealing_cake_runs() {
         outer_radius_m: 0.305,
         medium: Medium::darcy(8e-3, 1e-5),
     };
-    m.cake = Some(Cake {
-        thickness_m: 3e-3,
-        conductivity_m_s: 1e-9,
-        coverage: 1.0,
-        erosion: None,
-        lift_off: None,
-    });
+    m.cake = Some(fixtures::cake(3e-3, 1e-9, 1.0));
     m.formation.medium = Medium::darcy(4e-4, 5e-5);
     let s = run(&m, &mut NullObserver, Reporting::default()).unwrap();
     assert_eq!(s.end_time_s, 30.0);
@@ -150,19 +159,7 @@ fn surge_block_stroke_reversals_converge_within_eight_newton_iterations() {
         outer_radius_m: 0.305,
         medium: medium(8e-3, 1e-5, 2.358e3),
     };
-    m.cake = Some(Cake {
-        thickness_m: 3e-3,
-        conductivity_m_s: 1e-6,
-        coverage: 1.0,
-        erosion: Some(Erosion {
-            critical_shear_pa: 1e-5,
-            erodibility_m_s_pa: 5e-4,
-            inward_weight: 1.0,
-            outward_weight: 0.5,
-            coverage_exponent: 0.0,
-        }),
-        lift_off: None,
-    });
+    m.cake = Some(eroding_cake(3e-3, 1e-6));
     m.invaded = Some(Invaded {
         thickness_m: 0.075,
         medium: medium(4e-5, 5e-5, 7.711e3),
@@ -251,13 +248,7 @@ fn slow_surge_block_against_a_sealing_cake_converges() {
             ..Medium::darcy(8e-3, 1e-5)
         },
     };
-    m.cake = Some(Cake {
-        thickness_m: 3e-3,
-        conductivity_m_s: 1e-9,
-        coverage: 1.0,
-        erosion: None,
-        lift_off: None,
-    });
+    m.cake = Some(fixtures::cake(3e-3, 1e-9, 1.0));
     m.formation.medium = Medium::darcy(4e-4, 5e-5);
     m.numerics.time = TimeSpec::StepsPerCycle(200);
     let s = run(&m, &mut NullObserver, Reporting::default()).unwrap();
@@ -293,19 +284,7 @@ fn pumped_cake_model(scheme: Scheme, dt: f64) -> Model {
         outer_radius_m: 0.28,
         medium: Medium::darcy(2e-3, 1e-5),
     };
-    m.cake = Some(Cake {
-        thickness_m: 1e-3,
-        conductivity_m_s: 1e-8,
-        coverage: 1.0,
-        erosion: Some(Erosion {
-            critical_shear_pa: 1e-5,
-            erodibility_m_s_pa: 5e-4,
-            inward_weight: 1.0,
-            outward_weight: 0.5,
-            coverage_exponent: 0.0,
-        }),
-        lift_off: None,
-    });
+    m.cake = Some(eroding_cake(1e-3, 1e-8));
     m.formation.medium = Medium::darcy(1e-3, 1e-5);
     m.numerics.time = TimeSpec::Fixed(dt);
     m.numerics.scheme = scheme;
