@@ -44,16 +44,7 @@ pub const DEFAULT_CONSTANT_DURATION_S: f64 = 86_400.0;
 impl TestPlan {
     /// Checks the plan; errors name the case-file path.
     pub fn validate(&self) -> Result<(), SolverError> {
-        let pos = |field: &str, v: f64| {
-            if v.is_finite() && v > 0.0 {
-                Ok(())
-            } else {
-                Err(SolverError::invalid(
-                    field,
-                    format!("must be a positive finite number, got {v}"),
-                ))
-            }
-        };
+        let pos = crate::model::positive;
         pos("assessment.design_rate", self.design_rate_m3_s)?;
         pos("assessment.duration", self.constant_duration_s)?;
         pos("assessment.step_duration", self.step_duration_s)?;
