@@ -52,6 +52,23 @@ fn assert_code(o: &Output, code: i32, what: &str) {
     );
 }
 
+/// Asserts that `o` refused bad input: exit 2 and no panic; returns its standard error.
+fn refused(o: &Output, what: &str) -> String {
+    assert_code(o, 2, what);
+    let stderr = stderr_of(o);
+    assert_no_panic(&stderr, what);
+    stderr
+}
+
+/// Asserts that `dir` is empty: nothing written, nothing partial left behind.
+fn assert_nothing_left(dir: &Path, what: &str) {
+    assert!(
+        dir_entries(dir).is_empty(),
+        "{what}: left {:?}",
+        dir_entries(dir)
+    );
+}
+
 /// No panic message and no backtrace hint on stderr.
 fn assert_no_panic(stderr: &str, what: &str) {
     for bad in ["panicked", "RUST_BACKTRACE"] {
@@ -644,9 +661,7 @@ fn run_rejects_every_bad_case_cleanly() {
                 .arg(dir.path().join("out.h5"))
                 .arg("--csv"),
         );
-        assert_code(&o, 2, stem);
-        let stderr = stderr_of(&o);
-        assert_no_panic(&stderr, stem);
+        let stderr = refused(&o, stem);
         let errs = error_lines(&stderr);
         assert_eq!(errs.len(), 1, "{stem}: one error line expected:\n{stderr}");
         let prefix = if field.is_empty() {
@@ -668,11 +683,7 @@ fn run_rejects_every_bad_case_cleanly() {
             "{stem}"
         );
         assert!(o.stdout.is_empty(), "{stem}: stdout {:?}", stdout_of(&o));
-        assert!(
-            dir_entries(dir.path()).is_empty(),
-            "{stem}: left {:?}",
-            dir_entries(dir.path())
-        );
+        assert_nothing_left(dir.path(), stem);
     }
 }
 
@@ -690,9 +701,7 @@ fn run_reports_a_missing_case_file() {
             .arg("-o")
             .arg(dir.path().join("out.h5")),
     );
-    assert_code(&o, 2, "missing case file");
-    let stderr = stderr_of(&o);
-    assert_no_panic(&stderr, "missing case file");
+    let stderr = refused(&o, "missing case file");
     let errs = error_lines(&stderr);
     assert_eq!(errs.len(), 1, "{stderr}");
     assert!(
@@ -700,11 +709,7 @@ fn run_reports_a_missing_case_file() {
         "{}",
         errs[0]
     );
-    assert!(
-        dir_entries(dir.path()).is_empty(),
-        "{:?}",
-        dir_entries(dir.path())
-    );
+    assert_nothing_left(dir.path(), "missing case file");
 }
 
 /// Checks: an output path that cannot be created (a folder that does not exist under
@@ -720,9 +725,7 @@ fn run_rejects_unwritable_output_paths() {
         "--csv",
         "-q",
     ]));
-    assert_code(&o, 2, "output under /proc");
-    let stderr = stderr_of(&o);
-    assert_no_panic(&stderr, "output under /proc");
+    let stderr = refused(&o, "output under /proc");
     let errs = error_lines(&stderr);
     assert_eq!(errs.len(), 1, "{stderr}");
     assert!(errs[0].contains("/proc/boreflux/out.h5"), "{}", errs[0]);
@@ -741,9 +744,7 @@ fn run_rejects_unwritable_output_paths() {
             .arg(&out)
             .args(["--csv", "-q"]),
     );
-    assert_code(&o, 2, "output under a regular file");
-    let stderr = stderr_of(&o);
-    assert_no_panic(&stderr, "output under a regular file");
+    let stderr = refused(&o, "output under a regular file");
     let errs = error_lines(&stderr);
     assert_eq!(errs.len(), 1, "{stderr}");
     assert!(errs[0].contains(&out.display().to_string()), "{}", errs[0]);
@@ -799,9 +800,7 @@ fn run_refuses_to_overwrite_its_inputs() {
                 .args(["run", "irrigation-table.json", "-q"])
                 .args(args),
         );
-        assert_code(&o, 2, &format!("{args:?}"));
-        let stderr = stderr_of(&o);
-        assert_no_panic(&stderr, named);
+        let stderr = refused(&o, &format!("{args:?}"));
         let errs = error_lines(&stderr);
         assert_eq!(errs.len(), 1, "{args:?}: {stderr}");
         assert!(
@@ -892,18 +891,12 @@ fn usage_errors_exit_2() {
     ];
     for (args, named) in cases {
         let o = output(boreflux().current_dir(dir.path()).args(args));
-        assert_code(&o, 2, &format!("{args:?}"));
-        let stderr = stderr_of(&o);
-        assert_no_panic(&stderr, named);
+        let stderr = refused(&o, &format!("{args:?}"));
         assert!(
             stderr.starts_with("error:") && stderr.contains(named),
             "{args:?}:\n{stderr}"
         );
-        assert!(
-            dir_entries(dir.path()).is_empty(),
-            "{args:?}: {:?}",
-            dir_entries(dir.path())
-        );
+        assert_nothing_left(dir.path(), &format!("{args:?}"));
     }
 }
 
@@ -1259,11 +1252,7 @@ fn interrupted_run_leaves_nothing() {
     let (status, stderr) = interrupt(&mut child);
     assert_no_panic(&stderr, "interrupted run");
     assert!(!status.success(), "an interrupted run reported success");
-    assert!(
-        dir_entries(dir.path()).is_empty(),
-        "files left after Ctrl-C: {:?} (exit status {status})",
-        dir_entries(dir.path())
-    );
+    assert_nothing_left(dir.path(), &format!("after Ctrl-C (exit status {status})"));
 }
 
 // ---------------------------------------------------------------------------------------

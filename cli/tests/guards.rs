@@ -5,6 +5,7 @@
 
 mod common;
 
+use assert_cmd::Command;
 use boreflux::case::{load_case, parse_case};
 use boreflux_solver::diagnostics::NullObserver;
 use boreflux_solver::{run, Reporting};
@@ -34,6 +35,16 @@ fn code(out: &std::process::Output) -> i32 {
 
 fn stderr(out: &std::process::Output) -> String {
     String::from_utf8_lossy(&out.stderr).into_owned()
+}
+
+/// The command `cmd()` writes its outputs (exit 0), is refused when run again because they
+/// exist (exit 2), and writes over them with `--force` (exit 0).
+fn needs_force_the_second_time(cmd: impl Fn() -> Command) {
+    assert_eq!(code(&cmd().output().unwrap()), 0);
+    let out = cmd().output().unwrap();
+    assert_eq!(code(&out), 2);
+    assert!(stderr(&out).contains("already exists"), "{}", stderr(&out));
+    assert_eq!(code(&cmd().arg("--force").output().unwrap()), 0);
 }
 
 #[test]
@@ -73,36 +84,19 @@ fn existing_outputs_need_force_for_every_command() {
     assert!(csv.exists());
 
     let html = dir.path().join("r.html");
-    let report = |force: bool| {
+    needs_force_the_second_time(|| {
         let mut c = boreflux();
         c.arg("report").arg(&h5).arg("-o").arg(&html);
-        if force {
-            c.arg("--force");
-        }
-        c.output().unwrap()
-    };
-    assert_eq!(code(&report(false)), 0);
-    let out = report(false);
-    assert_eq!(code(&out), 2);
-    assert!(stderr(&out).contains("already exists"));
-    assert_eq!(code(&report(true)), 0);
-
-    let sweep = |force: bool| {
+        c
+    });
+    needs_force_the_second_time(|| {
         let mut c = boreflux();
         c.arg("sweep")
             .arg(&case)
             .args(["--vary", "drive.amplitude=1,2", "-q", "-o"])
             .arg(dir.path().join("s"));
-        if force {
-            c.arg("--force");
-        }
-        c.output().unwrap()
-    };
-    assert_eq!(code(&sweep(false)), 0);
-    let out = sweep(false);
-    assert_eq!(code(&out), 2);
-    assert!(stderr(&out).contains("already exists"), "{}", stderr(&out));
-    assert_eq!(code(&sweep(true)), 0);
+        c
+    });
 
     for k in ["1/2", "2/2"] {
         boreflux()
@@ -113,23 +107,15 @@ fn existing_outputs_need_force_for_every_command() {
             .assert()
             .success();
     }
-    let merge = |force: bool| {
+    needs_force_the_second_time(|| {
         let mut c = boreflux();
         c.arg("merge")
             .arg(dir.path().join("p1.h5"))
             .arg(dir.path().join("p2.h5"))
             .arg("-o")
             .arg(dir.path().join("m"));
-        if force {
-            c.arg("--force");
-        }
-        c.output().unwrap()
-    };
-    assert_eq!(code(&merge(false)), 0);
-    let out = merge(false);
-    assert_eq!(code(&out), 2);
-    assert!(stderr(&out).contains("already exists"), "{}", stderr(&out));
-    assert_eq!(code(&merge(true)), 0);
+        c
+    });
     // No temporary file is left behind by any of this.
     assert!(
         dir_entries(dir.path()).iter().all(|n| !n.contains(".tmp-")),
