@@ -5,7 +5,7 @@
 
 mod common;
 
-use common::{boreflux, cases_dir, linear_case, repo_dir, write};
+use common::{boreflux, cases_dir, linear_case, repo_dir, shortened_case, write};
 use hdf5::types::VarLenUnicode;
 use std::path::{Path, PathBuf};
 
@@ -366,11 +366,12 @@ fn a_sampled_sweep_report_shows_bands_distributions_and_the_collapse_probability
 fn the_collapse_probability_counts_the_tables_margins() {
     // A shipped case with a PVC casing (so a collapse rating and margin), one minute long.
     let dir = tempfile::tempdir().unwrap();
-    let text = std::fs::read_to_string(cases_dir().join("domestic-fine-sand-pvc.json")).unwrap();
-    let mut v: serde_json::Value = serde_json::from_str(&text).unwrap();
-    v["duration"] = serde_json::json!("1 min");
-    let case = dir.path().join("short.json");
-    std::fs::write(&case, v.to_string()).unwrap();
+    let case = shortened_case(
+        dir.path(),
+        "domestic-fine-sand-pvc.json",
+        "1 min",
+        "short.json",
+    );
     let out = dir.path().join("mc");
     boreflux()
         .arg("sweep")

@@ -4,18 +4,12 @@
 
 mod common;
 
-use common::{boreflux, cases_dir};
+use common::{boreflux, shortened_case};
 use std::path::{Path, PathBuf};
 
 /// The shipped domestic demo case, shortened to one minute so a sweep takes a moment.
 fn write_case(dir: &Path) -> PathBuf {
-    let shipped = cases_dir().join("domestic-fine-sand-pvc.json");
-    let mut v: serde_json::Value =
-        serde_json::from_str(&std::fs::read_to_string(shipped).unwrap()).unwrap();
-    v["duration"] = serde_json::json!("1 min");
-    let p = dir.join("domestic.json");
-    std::fs::write(&p, serde_json::to_string_pretty(&v).unwrap()).unwrap();
-    p
+    shortened_case(dir, "domestic-fine-sand-pvc.json", "1 min", "domestic.json")
 }
 
 /// `boreflux sweep CASE -q -o DIR/STEM ARGS…`; returns the table's .h5 path.

@@ -49,6 +49,14 @@ pub fn shipped_case(name: &str) -> Value {
     serde_json::from_str(&std::fs::read_to_string(p).unwrap()).unwrap()
 }
 
+/// The shipped case `cases/NAME` with its duration set to `duration` (case-file text, such
+/// as "1 min"), written to `dir/out`; returns the path.
+pub fn shortened_case(dir: &Path, name: &str, duration: &str, out: &str) -> PathBuf {
+    let mut v = shipped_case(name);
+    v["duration"] = Value::from(duration);
+    write(dir, out, &serde_json::to_string_pretty(&v).unwrap())
+}
+
 /// Writes `text` to `dir/name` and returns the path.
 pub fn write(dir: &Path, name: &str, text: &str) -> PathBuf {
     let p = dir.join(name);
