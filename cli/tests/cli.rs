@@ -52,6 +52,19 @@ fn assert_code(o: &Output, code: i32, what: &str) {
     );
 }
 
+/// `boreflux run CASE -o OUT --csv -q` in `dir`, whatever the exit status.
+fn run_with_csv(dir: &Path, case: &Path, out: &Path) -> Output {
+    output(
+        boreflux()
+            .current_dir(dir)
+            .arg("run")
+            .arg(case)
+            .arg("-o")
+            .arg(out)
+            .args(["--csv", "-q"]),
+    )
+}
+
 /// Asserts that `o` refused bad input: exit 2 and no panic; returns its standard error.
 fn refused(o: &Output, what: &str) -> String {
     assert_code(o, 2, what);
@@ -735,15 +748,7 @@ fn run_rejects_unwritable_output_paths() {
     let plain = dir.path().join("plain");
     std::fs::write(&plain, "not a folder").unwrap();
     let out = plain.join("out.h5");
-    let o = output(
-        boreflux()
-            .current_dir(dir.path())
-            .arg("run")
-            .arg(&case)
-            .arg("-o")
-            .arg(&out)
-            .args(["--csv", "-q"]),
-    );
+    let o = run_with_csv(dir.path(), &case, &out);
     let stderr = refused(&o, "output under a regular file");
     let errs = error_lines(&stderr);
     assert_eq!(errs.len(), 1, "{stderr}");
@@ -1195,15 +1200,7 @@ fn unwritable_output_folder_leaves_nothing() {
         std::fs::write(ro.join("plain"), "").unwrap();
         ro.join("plain").join("out.h5")
     };
-    let o = output(
-        boreflux()
-            .current_dir(dir.path())
-            .arg("run")
-            .arg(&case)
-            .arg("-o")
-            .arg(&out)
-            .args(["--csv", "-q"]),
-    );
+    let o = run_with_csv(dir.path(), &case, &out);
     std::fs::set_permissions(&ro, std::fs::Permissions::from_mode(0o755)).unwrap();
     assert_code(&o, 2, &format!("output {}", out.display()));
     assert_no_panic(&stderr_of(&o), "unwritable output");

@@ -37,6 +37,13 @@ fn stderr(out: &std::process::Output) -> String {
     String::from_utf8_lossy(&out.stderr).into_owned()
 }
 
+/// `boreflux run CASE -o OUT -q`.
+fn quiet_run(case: &Path, out: &Path) -> Command {
+    let mut c = boreflux();
+    c.arg("run").arg(case).arg("-o").arg(out).arg("-q");
+    c
+}
+
 /// The command `cmd()` writes its outputs (exit 0), is refused when run again because they
 /// exist (exit 2), and writes over them with `--force` (exit 0).
 fn needs_force_the_second_time(cmd: impl Fn() -> Command) {
@@ -129,14 +136,7 @@ fn report_never_writes_over_its_input() {
     let dir = tempfile::tempdir().unwrap();
     let case = short_case(dir.path());
     let h5 = dir.path().join("r.h5");
-    boreflux()
-        .arg("run")
-        .arg(&case)
-        .arg("-o")
-        .arg(&h5)
-        .arg("-q")
-        .assert()
-        .success();
+    quiet_run(&case, &h5).assert().success();
     let before = std::fs::read(&h5).unwrap();
     // Even with --force, and through another spelling of the same path.
     let same = dir.path().join(".").join("r.h5");
@@ -166,14 +166,7 @@ fn report_on_files_that_are_not_results_is_bad_input() {
     std::fs::write(&empty, "").unwrap();
     let case = short_case(dir.path());
     let good = dir.path().join("good.h5");
-    boreflux()
-        .arg("run")
-        .arg(&case)
-        .arg("-o")
-        .arg(&good)
-        .arg("-q")
-        .assert()
-        .success();
+    quiet_run(&case, &good).assert().success();
     let bytes = std::fs::read(&good).unwrap();
     let truncated = dir.path().join("truncated.h5");
     std::fs::write(&truncated, &bytes[..bytes.len() / 3]).unwrap();
@@ -203,14 +196,7 @@ fn crafted_result_files_give_clear_errors() {
     let dir = tempfile::tempdir().unwrap();
     let case = short_case(dir.path());
     let good = dir.path().join("good.h5");
-    boreflux()
-        .arg("run")
-        .arg(&case)
-        .arg("-o")
-        .arg(&good)
-        .arg("-q")
-        .assert()
-        .success();
+    quiet_run(&case, &good).assert().success();
     // A series declaring 2e9 values (chunked, never written: the file stays small).
     let huge = dir.path().join("huge.h5");
     std::fs::copy(&good, &huge).unwrap();
@@ -310,14 +296,7 @@ fn runs_over_the_size_limit_need_allow_large() {
     )
     .unwrap();
     let h5 = dir.path().join("r.h5");
-    let out = boreflux()
-        .arg("run")
-        .arg(&case)
-        .arg("-o")
-        .arg(&h5)
-        .arg("-q")
-        .output()
-        .unwrap();
+    let out = quiet_run(&case, &h5).output().unwrap();
     assert_eq!(code(&out), 2);
     let e = stderr(&out);
     assert!(
