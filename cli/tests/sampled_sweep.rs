@@ -5,7 +5,10 @@
 
 mod common;
 
-use common::{boreflux, cases_dir, linear_case, repo_dir, shortened_case, write};
+use common::{
+    boreflux, cases_dir, linear_case, merge, repo_dir, shortened_case, sweep_whole_and_shards,
+    write,
+};
 use hdf5::types::VarLenUnicode;
 use std::path::{Path, PathBuf};
 
@@ -73,34 +76,10 @@ fn all_datasets(path: &Path) -> Vec<(String, Vec<u8>)> {
 fn sampled_shards_merge_into_the_unsharded_table_bit_for_bit() {
     let dir = tempfile::tempdir().unwrap();
     let case = write_case(dir.path());
-    let run = |out: &str, shard: Option<&str>| {
-        let mut c = boreflux();
-        c.arg("sweep")
-            .arg(&case)
-            .arg("-q")
-            .arg("-o")
-            .arg(dir.path().join(out));
-        c.args(SAMPLE)
-            .args(["--samples", "7", "--seed", "20261204", "-j", "2"]);
-        if let Some(s) = shard {
-            c.args(["--shard", s]);
-        }
-        c.assert().success();
-    };
-    run("whole", None);
-    for k in 1..=3 {
-        run(&format!("part-{k}"), Some(&format!("{k}/3")));
-    }
-    let parts: Vec<PathBuf> = (1..=3)
-        .map(|k| dir.path().join(format!("part-{k}.h5")))
-        .collect();
-    boreflux()
-        .arg("merge")
-        .args(&parts)
-        .arg("-o")
-        .arg(dir.path().join("merged"))
-        .assert()
-        .success();
+    let mut args = SAMPLE.to_vec();
+    args.extend(["--samples", "7", "--seed", "20261204", "-j", "2"]);
+    let parts = sweep_whole_and_shards(dir.path(), &case, &args, 3);
+    merge(&parts, &dir.path().join("merged")).success();
     let read = |n: &str| std::fs::read(dir.path().join(n)).unwrap();
     assert_eq!(read("merged.csv"), read("whole.csv"));
     let (m, w) = (
@@ -119,14 +98,12 @@ fn sampled_shards_merge_into_the_unsharded_table_bit_for_bit() {
     c.args(SAMPLE)
         .args(["--samples", "7", "--seed", "1", "--shard", "3/3"]);
     c.assert().success();
-    let out = boreflux()
-        .arg("merge")
-        .args(&parts[..2])
-        .arg(dir.path().join("other.h5"))
-        .arg("-o")
-        .arg(dir.path().join("mixed"))
-        .assert()
-        .code(2);
+    let mixed = [
+        parts[0].clone(),
+        parts[1].clone(),
+        dir.path().join("other.h5"),
+    ];
+    let out = merge(&mixed, &dir.path().join("mixed")).code(2);
     let err = String::from_utf8_lossy(&out.get_output().stderr).to_string();
     assert!(err.contains("sample design, count or seed differ"), "{err}");
 }

@@ -6,7 +6,7 @@
 mod common;
 
 use assert_cmd::Command;
-use common::{boreflux, interrupt, linear_case, write};
+use common::{boreflux, interrupt, linear_case, merge, sweep_whole_and_shards, write};
 use std::path::Path;
 
 /// The linear well of the common helpers for 4 cycles. The θ-scheme at fixed steps: the
@@ -139,52 +139,26 @@ fn a_scenario_row_matches_a_run_of_the_same_case() {
 fn shards_merge_into_the_whole_sweep() {
     let dir = tempfile::tempdir().unwrap();
     let case = write_case(dir.path());
-    let run = |out: &str, shard: Option<&str>| {
-        let mut c = sweep(&case, &dir.path().join(out));
-        c.args([
+    let parts = sweep_whole_and_shards(
+        dir.path(),
+        &case,
+        &[
             "--vary",
             "drive.frequency=0.25..1:3",
             "--vary",
             "pack.outer_radius=0.15,0.25",
-        ]);
-        if let Some(s) = shard {
-            c.args(["--shard", s]);
-        }
-        c.assert().success();
-    };
-    run("whole", None);
-    for k in 1..=4 {
-        run(&format!("part-{k}"), Some(&format!("{k}/4")));
-    }
-    let parts: Vec<String> = (1..=4)
-        .map(|k| {
-            dir.path()
-                .join(format!("part-{k}.h5"))
-                .display()
-                .to_string()
-        })
-        .collect();
+        ],
+        4,
+    );
     // Leaving one shard out is refused, naming what is missing.
-    let missing = boreflux()
-        .arg("merge")
-        .args(&parts[..3])
-        .arg("-o")
-        .arg(dir.path().join("merged"))
-        .assert()
-        .code(2);
+    let missing = merge(&parts[..3], &dir.path().join("merged")).code(2);
     let err = String::from_utf8_lossy(&missing.get_output().stderr).to_string();
     assert!(
         err.contains("1 of 6 scenarios are missing (scenario 3)"),
         "{err}"
     );
     assert!(!dir.path().join("merged.csv").exists());
-    boreflux()
-        .arg("merge")
-        .args(&parts)
-        .arg("-o")
-        .arg(dir.path().join("merged"))
-        .assert()
-        .success();
+    merge(&parts, &dir.path().join("merged")).success();
     let read = |n: &str| std::fs::read_to_string(dir.path().join(n)).unwrap();
     assert_eq!(read("merged.csv"), read("whole.csv"));
 }

@@ -81,6 +81,47 @@ pub fn linear_case(duration: &str, numerics: &str) -> String {
     )
 }
 
+/// Runs `boreflux sweep CASE -q -o DIR/whole ARGS…` and the same sweep in `shards` shards
+/// (`-o DIR/part-K --shard K/SHARDS`), each of which must succeed; returns the shards'
+/// tables (`DIR/part-K.h5`).
+pub fn sweep_whole_and_shards(
+    dir: &Path,
+    case: &Path,
+    args: &[&str],
+    shards: usize,
+) -> Vec<PathBuf> {
+    let run = |out: &str, shard: Option<String>| {
+        let mut c = boreflux();
+        c.arg("sweep")
+            .arg(case)
+            .arg("-q")
+            .arg("-o")
+            .arg(dir.join(out))
+            .args(args);
+        if let Some(s) = shard {
+            c.args(["--shard", &s]);
+        }
+        c.assert().success();
+    };
+    run("whole", None);
+    (1..=shards)
+        .map(|k| {
+            run(&format!("part-{k}"), Some(format!("{k}/{shards}")));
+            dir.join(format!("part-{k}.h5"))
+        })
+        .collect()
+}
+
+/// `boreflux merge PARTS… -o OUT`, run; the caller asserts on the outcome.
+pub fn merge(parts: &[PathBuf], out: &Path) -> assert_cmd::assert::Assert {
+    boreflux()
+        .arg("merge")
+        .args(parts)
+        .arg("-o")
+        .arg(out)
+        .assert()
+}
+
 /// Names of everything in `dir`, hidden files included, sorted.
 pub fn dir_entries(dir: &Path) -> Vec<String> {
     let mut v: Vec<String> = std::fs::read_dir(dir)
