@@ -6,8 +6,8 @@
 mod common;
 
 use common::{
-    boreflux, cases_dir, linear_case, merge, repo_dir, shortened_case, sweep_whole_and_shards,
-    write,
+    boreflux, cases_dir, linear_case, merge, repo_dir, run_sweep, shortened_case,
+    sweep_whole_and_shards, write,
 };
 use hdf5::types::VarLenUnicode;
 use std::path::{Path, PathBuf};
@@ -89,15 +89,9 @@ fn sampled_shards_merge_into_the_unsharded_table_bit_for_bit() {
     assert!(m.len() > 10, "{} datasets", m.len());
     assert_eq!(m, w);
     // A shard of another seed is another sample: merge refuses it.
-    let mut c = boreflux();
-    c.arg("sweep")
-        .arg(&case)
-        .arg("-q")
-        .arg("-o")
-        .arg(dir.path().join("other"));
-    c.args(SAMPLE)
-        .args(["--samples", "7", "--seed", "1", "--shard", "3/3"]);
-    c.assert().success();
+    let mut args = SAMPLE.to_vec();
+    args.extend(["--samples", "7", "--seed", "1", "--shard", "3/3"]);
+    run_sweep(&case, &dir.path().join("other"), &args);
     let mixed = [
         parts[0].clone(),
         parts[1].clone(),
@@ -118,15 +112,10 @@ fn the_table_holds_a_latin_hypercube_of_the_inputs() {
     let dir = tempfile::tempdir().unwrap();
     let case = write_case(dir.path());
     let n = 12;
-    boreflux()
-        .arg("sweep")
-        .arg(&case)
-        .args(["-q", "-o"])
-        .arg(dir.path().join("lhs"))
-        .args(SAMPLE)
-        .args(["--samples", &n.to_string(), "--seed", "3"])
-        .assert()
-        .success();
+    let samples = n.to_string();
+    let mut args = SAMPLE.to_vec();
+    args.extend(["--samples", &samples, "--seed", "3"]);
+    run_sweep(&case, &dir.path().join("lhs"), &args);
     let f = hdf5::File::open(dir.path().join("lhs.h5")).unwrap();
     let read = |p: &str| f.dataset(p).unwrap().read_raw::<f64>().unwrap();
     let amp = read("/table/vary_value/drive.amplitude");
@@ -235,14 +224,11 @@ fn a_scenarios_key_series_match_its_run_file() {
     // skin and specific capacity change during the run.
     let dir = tempfile::tempdir().unwrap();
     let case = cases_dir().join("domestic-fine-sand-pvc.json");
-    boreflux()
-        .arg("sweep")
-        .arg(&case)
-        .args(["-q", "-o"])
-        .arg(dir.path().join("one"))
-        .args(["--vary", "duration=3 min"])
-        .assert()
-        .success();
+    run_sweep(
+        &case,
+        &dir.path().join("one"),
+        &["--vary", "duration=3 min"],
+    );
     boreflux()
         .arg("run")
         .arg(&case)
@@ -314,15 +300,9 @@ fn a_sampled_sweep_report_shows_bands_distributions_and_the_collapse_probability
     let dir = tempfile::tempdir().unwrap();
     let case = write_case(dir.path());
     let out = dir.path().join("mc");
-    boreflux()
-        .arg("sweep")
-        .arg(&case)
-        .args(["-q", "-o"])
-        .arg(&out)
-        .args(SAMPLE)
-        .args(["--samples", "9", "--seed", "4"])
-        .assert()
-        .success();
+    let mut args = SAMPLE.to_vec();
+    args.extend(["--samples", "9", "--seed", "4"]);
+    run_sweep(&case, &out, &args);
     let page = report_page(&out.with_extension("h5"));
     for want in [
         "9 scenarios drawn by Latin hypercube, seed 4",
@@ -350,15 +330,18 @@ fn the_collapse_probability_counts_the_tables_margins() {
         "short.json",
     );
     let out = dir.path().join("mc");
-    boreflux()
-        .arg("sweep")
-        .arg(&case)
-        .args(["-q", "-o"])
-        .arg(&out)
-        .args(["--sample", "cake.thickness=triangular(2 mm, 4 mm, 8 mm)"])
-        .args(["--samples", "6", "--seed", "2"])
-        .assert()
-        .success();
+    run_sweep(
+        &case,
+        &out,
+        &[
+            "--sample",
+            "cake.thickness=triangular(2 mm, 4 mm, 8 mm)",
+            "--samples",
+            "6",
+            "--seed",
+            "2",
+        ],
+    );
     let f = hdf5::File::open(out.with_extension("h5")).unwrap();
     let m = f
         .dataset("/table/collapse_margin")

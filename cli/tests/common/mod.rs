@@ -81,6 +81,18 @@ pub fn linear_case(duration: &str, numerics: &str) -> String {
     )
 }
 
+/// Runs `boreflux sweep CASE -q -o OUT ARGS…`, which must succeed.
+pub fn run_sweep(case: &Path, out: &Path, args: &[&str]) {
+    boreflux()
+        .arg("sweep")
+        .arg(case)
+        .args(["-q", "-o"])
+        .arg(out)
+        .args(args)
+        .assert()
+        .success();
+}
+
 /// Runs `boreflux sweep CASE -q -o DIR/whole ARGS…` and the same sweep in `shards` shards
 /// (`-o DIR/part-K --shard K/SHARDS`), each of which must succeed; returns the shards'
 /// tables (`DIR/part-K.h5`).
@@ -91,17 +103,10 @@ pub fn sweep_whole_and_shards(
     shards: usize,
 ) -> Vec<PathBuf> {
     let run = |out: &str, shard: Option<String>| {
-        let mut c = boreflux();
-        c.arg("sweep")
-            .arg(case)
-            .arg("-q")
-            .arg("-o")
-            .arg(dir.join(out))
-            .args(args);
-        if let Some(s) = shard {
-            c.args(["--shard", &s]);
-        }
-        c.assert().success();
+        let shard = shard.map(|s| ["--shard".to_owned(), s]);
+        let mut all: Vec<&str> = args.to_vec();
+        all.extend(shard.iter().flatten().map(String::as_str));
+        run_sweep(case, &dir.join(out), &all);
     };
     run("whole", None);
     (1..=shards)
