@@ -1,37 +1,25 @@
 //! Cost of the well assessment (docs/physics.md §25): one progress point (the cheap
 //! estimate `run` records 100 times per run), one virtual constant-rate test of 24 h, and
 //! the whole before/after assessment of a run (undamaged test, then for each state a
-//! constant-rate test and four step rates), on the Forchheimer well of `models.rs` with a
+//! constant-rate test and four step rates), on the Forchheimer well of `fixtures::bench_well` with a
 //! cake and an invaded zone added (invented numbers).
 //!
 //! Run with `cargo bench -p boreflux-solver --bench assess`.
 
 use boreflux_solver::assess::progress::ProgressBasis;
 use boreflux_solver::assess::{self, virtual_test, TestPlan};
+use boreflux_solver::fixtures;
 use boreflux_solver::model::*;
 use boreflux_solver::slow::SlowState;
 use boreflux_solver::system::CakeState;
 use criterion::{black_box, criterion_group, criterion_main, Criterion};
 
-#[path = "models.rs"]
-mod models;
-
 fn damaged() -> Model {
-    let mut m = models::model(300, true);
+    let mut m = fixtures::bench_well(300, true);
     m.well.storage_m2 = Well::free_surface_storage(0.1);
-    m.cake = Some(Cake {
-        thickness_m: 2e-3,
-        conductivity_m_s: 1e-7,
-        coverage: 0.8,
-        erosion: None,
-        lift_off: None,
-    });
-    m.invaded = Some(Invaded {
-        thickness_m: 0.05,
-        medium: Medium::darcy(5e-5, 1e-5),
-        fines: None,
-        profile: None,
-    });
+    m.cake = Some(fixtures::cake(2e-3, 1e-7, 0.8));
+    // Added after the Forchheimer terms: a Darcy invaded zone.
+    m.invaded = Some(fixtures::invaded(0.05, 5e-5));
     m
 }
 

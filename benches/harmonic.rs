@@ -17,8 +17,6 @@ use boreflux_solver::model::*;
 use boreflux_solver::stepper::Stepper;
 use criterion::{black_box, criterion_group, criterion_main, Criterion};
 
-#[path = "models.rs"]
-mod models;
 use std::f64::consts::PI;
 
 /// Complex relative error of the screen flow that counts as the periodic steady state.
@@ -28,7 +26,7 @@ const MAX_PERIODS: usize = 2000;
 
 /// The linear pack–formation case of `step.rs` with exactly 300 cells.
 fn model() -> Model {
-    models::model(300, false)
+    boreflux_solver::fixtures::bench_well(300, false)
 }
 
 /// Runs `periods` periods of `steps` steps from rest; passes the period's index and the

@@ -1,5 +1,5 @@
 //! The 60 M cell-step sine-head case: the benchmarks' linear (Darcy) model of 300 cells
-//! (`models.rs`, invented numbers) under a 0.5 Hz sine head for 1 000 cycles at 200 steps
+//! (`fixtures::bench_well`, invented numbers) under a 0.5 Hz sine head for 1 000 cycles at 200 steps
 //! per cycle, 2·10⁵ steps × 300 cells = 6·10⁷ cell-steps, run whole (`run::run` with every
 //! step's diagnostics handed to a null observer) under the default scheme (TR-BDF2,
 //! adaptive, the nominal step as its bound) and under Crank–Nicolson (θ = ½, fixed step).
@@ -14,9 +14,7 @@ use boreflux_solver::model::Scheme;
 use boreflux_solver::run::{run, Reporting};
 use criterion::{black_box, criterion_group, criterion_main, Criterion, Throughput};
 
-#[path = "models.rs"]
-mod models;
-use models::model;
+use boreflux_solver::fixtures::bench_well as model;
 
 /// Cycles of the 0.5 Hz drive.
 const CYCLES: f64 = 1_000.0;

@@ -12,9 +12,7 @@ use boreflux_solver::run::{run, Reporting};
 use boreflux_solver::stepper::{Stepper, Tolerances};
 use criterion::{black_box, criterion_group, criterion_main, Criterion, Throughput};
 
-#[path = "models.rs"]
-mod models;
-use models::model;
+use boreflux_solver::fixtures::bench_well as model;
 
 fn bench_steps(c: &mut Criterion) {
     let mut group = c.benchmark_group("step_300_cells");

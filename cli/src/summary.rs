@@ -282,30 +282,13 @@ fn pump_warnings(
     collapse_risk: bool,
 ) -> Vec<String> {
     use boreflux_solver::Drive;
-    let pumps: Vec<_> = match drive {
-        Drive::PumpBackwash(p) => vec![*p],
-        Drive::Schedule(st) => st
-            .iter()
-            .filter_map(|x| match &x.drive {
-                Drive::PumpBackwash(p) => Some(*p),
-                Drive::SineHead(_)
-                | Drive::ConstantRate { .. }
-                | Drive::Slug { .. }
-                | Drive::Table(_)
-                | Drive::SurgeBlock(_)
-                | Drive::Swab(_)
-                | Drive::JetPulse(_)
-                | Drive::Schedule(_) => None,
-            })
-            .collect(),
-        Drive::SineHead(_)
-        | Drive::ConstantRate { .. }
-        | Drive::Slug { .. }
-        | Drive::Table(_)
-        | Drive::SurgeBlock(_)
-        | Drive::Swab(_)
-        | Drive::JetPulse(_) => vec![],
-    };
+    let pumps = drive.stage_drives().filter_map(|d| {
+        if let Drive::PumpBackwash(p) = d {
+            Some(*p)
+        } else {
+            None
+        }
+    });
     let mut out = Vec::new();
     for p in pumps {
         if p.suction_broken(s.well_head_range_m.0) {

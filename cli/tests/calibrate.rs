@@ -2,11 +2,14 @@
 //! synthetic recovery with the coverage of the 95 % intervals over a seeded batch, and a
 //! parameter the records cannot see.
 
+mod common;
+
 use boreflux::calibrate::fit::{Calibration, Problem};
 use boreflux::calibrate::free::parse_free;
 use boreflux::calibrate::record::{Activity, DevelopmentLog, Row};
 use boreflux::calibrate::schedule::{evaluate, scheduled_case};
 use boreflux_solver::calibrate::{Identifiability, LmOptions};
+use common::{boreflux, success};
 use serde_json::{json, Value};
 use std::path::PathBuf;
 
@@ -82,7 +85,9 @@ fn truth() -> Vec<f64> {
     evaluate(&c, &PathBuf::from("."), &times).unwrap()
 }
 
-fn fit(observed: &[f64], free: &[&str], threads: usize) -> Calibration {
+/// The calibration of the `free` parameters (against a start of K = 3e-4 m/s,
+/// Ss = 1e-4 1/m) to the drawdowns `observed`, without step tests or profiles.
+fn problem(observed: &[f64], free: &[&str], threads: usize) -> Problem {
     let raw = case("3e-4 m/s", "1e-4 1/m");
     let free = free.iter().map(|f| parse_free(f, &raw).unwrap()).collect();
     Problem {
@@ -97,8 +102,10 @@ fn fit(observed: &[f64], free: &[&str], threads: usize) -> Calibration {
         options: LmOptions::default(),
         profile: false,
     }
-    .solve()
-    .unwrap()
+}
+
+fn fit(observed: &[f64], free: &[&str], threads: usize) -> Calibration {
+    problem(observed, free, threads).solve().unwrap()
 }
 
 const K: &str = "formation.conductivity=1e-6 m/s..1e-2 m/s";
@@ -189,21 +196,17 @@ fn the_command_writes_json_page_and_calibrated_case_and_refuses_bad_input() {
     let (case_path, log_path) = write_inputs(dir.path());
     let page = dir.path().join("cal.html");
     let out_case = dir.path().join("calibrated.json");
-    let bin = || assert_cmd::Command::cargo_bin("boreflux").unwrap();
-    let ok = bin()
-        .arg("calibrate")
-        .arg(&case_path)
-        .arg(&log_path)
-        .args(["--free", K, "--free", SS, "--json", "--jobs", "2", "-o"])
-        .arg(&page)
-        .arg("--write-case")
-        .arg(&out_case)
-        .output()
-        .unwrap();
-    assert!(
-        ok.status.success(),
-        "{}",
-        String::from_utf8_lossy(&ok.stderr)
+    let bin = boreflux;
+    let ok = success(
+        bin()
+            .arg("calibrate")
+            .arg(&case_path)
+            .arg(&log_path)
+            .args(["--free", K, "--free", SS, "--json", "--jobs", "2", "-o"])
+            .arg(&page)
+            .arg("--write-case")
+            .arg(&out_case),
+        "calibrate",
     );
     let v: Value = serde_json::from_slice(&ok.stdout).unwrap();
     assert_eq!(v["converged"], true);
@@ -285,21 +288,10 @@ fn step_tests_before_and_after_join_the_records() {
     let mut noisy =
         |v: &[f64]| -> Vec<f64> { v.iter().map(|s| s + NOISE_M * rng.normal()).collect() };
     let (log_obs, before, after) = (noisy(&clean.log), noisy(&clean.before), noisy(&clean.after));
-    let raw = case("3e-4 m/s", "1e-4 1/m");
     let c = Problem {
-        free: [K, SS]
-            .iter()
-            .map(|f| parse_free(f, &raw).unwrap())
-            .collect(),
-        raw_case: raw,
-        base_dir: PathBuf::from("."),
-        log: log(&log_obs),
         steps_before: Some(steps(before.clone())),
         steps_after: Some(steps(after)),
-        threads: 2,
-        confidence: 0.95,
-        options: LmOptions::default(),
-        profile: false,
+        ..problem(&log_obs, &[K, SS], 2)
     }
     .solve()
     .unwrap();
@@ -320,21 +312,9 @@ fn profile_intervals_bracket_the_fit_and_match_the_jacobian_where_the_model_is_n
     let clean = truth();
     let mut rng = Rng(5);
     let noisy: Vec<f64> = clean.iter().map(|s| s + NOISE_M * rng.normal()).collect();
-    let raw = case("3e-4 m/s", "1e-4 1/m");
     let c = Problem {
-        free: [K, SS]
-            .iter()
-            .map(|f| parse_free(f, &raw).unwrap())
-            .collect(),
-        raw_case: raw,
-        base_dir: PathBuf::from("."),
-        log: log(&noisy),
-        steps_before: None,
-        steps_after: None,
-        threads: 2,
-        confidence: 0.95,
-        options: LmOptions::default(),
         profile: true,
+        ..problem(&noisy, &[K, SS], 2)
     }
     .solve()
     .unwrap();

@@ -3,6 +3,8 @@
 //! drive kind, defaults are filled, and every file in `bad_cases/` fails with the
 //! expected field path and a message naming the bad value.
 
+mod common;
+
 use boreflux::case::{load_case, parse_case, scenario_companions, scenarios, schema, LoadedCase};
 use boreflux_solver::devices::{Backflow, Kinematics, PumpLaw};
 use boreflux_solver::diagnostics::NullObserver;
@@ -10,18 +12,11 @@ use boreflux_solver::drive::{Drive, TableQuantity};
 use boreflux_solver::model::{GridSpec, OuterBoundary, TimeSpec};
 use boreflux_solver::run::DEFAULT_STEPS_PER_CYCLE;
 use boreflux_solver::{run, Reporting};
+use common::{bad_dir, cases_dir};
 use serde_json::Value;
 use std::f64::consts::PI;
 use std::fmt::Debug;
-use std::path::{Path, PathBuf};
-
-fn cases_dir() -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR")).join("../cases")
-}
-
-fn bad_dir() -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/bad_cases")
-}
+use std::path::Path;
 
 fn rel(got: f64, want: f64) -> f64 {
     (got - want).abs() / want.abs()

@@ -2,35 +2,19 @@
 //! method; checked here against `boreflux run` time-stepping the same case for 40 periods
 //! (the two methods share only the grid and the face laws).
 
-use assert_cmd::Command;
-use serde_json::Value;
+mod common;
 
-/// A linear (Darcy) well under a sine head: no grain sizes, no screen entrance loss, no
-/// cake. Invented numbers.
-const LINEAR_CASE: &str = r#"{
-  "well": { "screen_radius": 0.1, "screen_length": 6, "open_area": 0.12,
-            "discharge_coefficient": "none" },
-  "pack": { "outer_radius": 0.2, "porosity": 0.32, "conductivity": 8e-3 },
-  "formation": { "conductivity": 2e-4, "specific_storage": 1e-5 },
-  "drive": { "kind": "sine_head", "amplitude": 1.0, "frequency": 0.5 },
-  "duration": "40 cycles",
-  "numerics": { "steps_per_cycle": 400 }
-}"#;
-
-fn json_of(args: &[&str]) -> Value {
-    let out = Command::cargo_bin("boreflux")
-        .unwrap()
-        .args(args)
-        .assert()
-        .success();
-    serde_json::from_slice(&out.get_output().stdout).unwrap()
-}
+use common::{cases_dir, json_of, linear_case, write};
 
 #[test]
 fn the_periodic_state_agrees_with_time_stepping() {
     let dir = tempfile::tempdir().unwrap();
-    let case = dir.path().join("linear.json");
-    std::fs::write(&case, LINEAR_CASE).unwrap();
+    // The linear well of the common helpers (invented numbers) for 40 periods.
+    let case = write(
+        dir.path(),
+        "linear.json",
+        &linear_case(r#""40 cycles""#, r#"{ "steps_per_cycle": 400 }"#),
+    );
     let case = case.to_str().unwrap();
     let p = &json_of(&["check", case, "--json"])["periodic_state"];
     let h5 = dir.path().join("run.h5");
@@ -63,8 +47,7 @@ fn the_periodic_state_agrees_with_time_stepping() {
 
 #[test]
 fn a_nonlinear_case_says_why_the_method_does_not_apply() {
-    let cases = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("../cases");
-    let case = cases.join("municipal-sand-gravel.json");
+    let case = cases_dir().join("municipal-sand-gravel.json");
     let v = json_of(&["check", case.to_str().unwrap(), "--json"]);
     let why = v["periodic_state"]["not_applicable"].as_str().unwrap();
     assert!(why.contains("Forchheimer"), "{why}");

@@ -9,11 +9,16 @@
 //! are authoritative), the exit codes (0 success, 1 runtime failure, 2 bad input;
 //! `args.rs`), and "nothing partial is left behind" (`output/mod.rs`).
 
+mod common;
+
 use assert_cmd::Command;
 use boreflux::case::{load_case, scenario_companions, scenarios};
 use boreflux_solver::grid::Zone;
 use boreflux_solver::safety::CAUTION;
 use boreflux_solver::{Reporting, StepObserver, StepView};
+use common::{
+    bad_dir, boreflux, cases_dir, dir_entries, interrupt, shipped_cases, stderr_of, stdout_of,
+};
 use hdf5::types::VarLenUnicode;
 use hdf5::Location;
 use serde_json::Value;
@@ -25,52 +30,9 @@ use std::process::Output;
 // Helpers
 // ---------------------------------------------------------------------------------------
 
-/// The binary under test.
-fn boreflux() -> Command {
-    Command::cargo_bin("boreflux").expect("the boreflux binary is built by cargo test")
-}
-
-fn cases_dir() -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR")).join("../cases")
-}
-
-fn bad_dir() -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/bad_cases")
-}
-
 /// The default demo case (the first scenario, `boreflux::case::scenarios`).
 fn demo_case() -> PathBuf {
     cases_dir().join(format!("{}.json", scenarios()[0].0))
-}
-
-/// Every shipped case file (`cases/*.json`), sorted.
-fn shipped_cases() -> Vec<PathBuf> {
-    let mut v: Vec<PathBuf> = std::fs::read_dir(cases_dir())
-        .unwrap()
-        .map(|e| e.unwrap().path())
-        .filter(|p| p.extension().is_some_and(|x| x == "json"))
-        .collect();
-    v.sort();
-    assert!(!v.is_empty(), "no case files in {}", cases_dir().display());
-    v
-}
-
-/// Names of everything in `dir`, hidden files included, sorted.
-fn dir_entries(dir: &Path) -> Vec<String> {
-    let mut v: Vec<String> = std::fs::read_dir(dir)
-        .unwrap()
-        .map(|e| e.unwrap().file_name().into_string().unwrap())
-        .collect();
-    v.sort();
-    v
-}
-
-fn stdout_of(o: &Output) -> String {
-    String::from_utf8(o.stdout.clone()).expect("stdout is UTF-8")
-}
-
-fn stderr_of(o: &Output) -> String {
-    String::from_utf8(o.stderr.clone()).expect("stderr is UTF-8")
 }
 
 /// Runs the command and returns its output, whatever the exit status.
@@ -87,6 +49,36 @@ fn assert_code(o: &Output, code: i32, what: &str) {
         o.status,
         stdout_of(o),
         stderr_of(o)
+    );
+}
+
+/// `boreflux run CASE -o OUT --csv -q` in `dir`, whatever the exit status.
+fn run_with_csv(dir: &Path, case: &Path, out: &Path) -> Output {
+    output(
+        boreflux()
+            .current_dir(dir)
+            .arg("run")
+            .arg(case)
+            .arg("-o")
+            .arg(out)
+            .args(["--csv", "-q"]),
+    )
+}
+
+/// Asserts that `o` refused bad input: exit 2 and no panic; returns its standard error.
+fn refused(o: &Output, what: &str) -> String {
+    assert_code(o, 2, what);
+    let stderr = stderr_of(o);
+    assert_no_panic(&stderr, what);
+    stderr
+}
+
+/// Asserts that `dir` is empty: nothing written, nothing partial left behind.
+fn assert_nothing_left(dir: &Path, what: &str) {
+    assert!(
+        dir_entries(dir).is_empty(),
+        "{what}: left {:?}",
+        dir_entries(dir)
     );
 }
 
@@ -682,9 +674,7 @@ fn run_rejects_every_bad_case_cleanly() {
                 .arg(dir.path().join("out.h5"))
                 .arg("--csv"),
         );
-        assert_code(&o, 2, stem);
-        let stderr = stderr_of(&o);
-        assert_no_panic(&stderr, stem);
+        let stderr = refused(&o, stem);
         let errs = error_lines(&stderr);
         assert_eq!(errs.len(), 1, "{stem}: one error line expected:\n{stderr}");
         let prefix = if field.is_empty() {
@@ -706,11 +696,7 @@ fn run_rejects_every_bad_case_cleanly() {
             "{stem}"
         );
         assert!(o.stdout.is_empty(), "{stem}: stdout {:?}", stdout_of(&o));
-        assert!(
-            dir_entries(dir.path()).is_empty(),
-            "{stem}: left {:?}",
-            dir_entries(dir.path())
-        );
+        assert_nothing_left(dir.path(), stem);
     }
 }
 
@@ -728,9 +714,7 @@ fn run_reports_a_missing_case_file() {
             .arg("-o")
             .arg(dir.path().join("out.h5")),
     );
-    assert_code(&o, 2, "missing case file");
-    let stderr = stderr_of(&o);
-    assert_no_panic(&stderr, "missing case file");
+    let stderr = refused(&o, "missing case file");
     let errs = error_lines(&stderr);
     assert_eq!(errs.len(), 1, "{stderr}");
     assert!(
@@ -738,11 +722,7 @@ fn run_reports_a_missing_case_file() {
         "{}",
         errs[0]
     );
-    assert!(
-        dir_entries(dir.path()).is_empty(),
-        "{:?}",
-        dir_entries(dir.path())
-    );
+    assert_nothing_left(dir.path(), "missing case file");
 }
 
 /// Checks: an output path that cannot be created (a folder that does not exist under
@@ -758,9 +738,7 @@ fn run_rejects_unwritable_output_paths() {
         "--csv",
         "-q",
     ]));
-    assert_code(&o, 2, "output under /proc");
-    let stderr = stderr_of(&o);
-    assert_no_panic(&stderr, "output under /proc");
+    let stderr = refused(&o, "output under /proc");
     let errs = error_lines(&stderr);
     assert_eq!(errs.len(), 1, "{stderr}");
     assert!(errs[0].contains("/proc/boreflux/out.h5"), "{}", errs[0]);
@@ -770,18 +748,8 @@ fn run_rejects_unwritable_output_paths() {
     let plain = dir.path().join("plain");
     std::fs::write(&plain, "not a folder").unwrap();
     let out = plain.join("out.h5");
-    let o = output(
-        boreflux()
-            .current_dir(dir.path())
-            .arg("run")
-            .arg(&case)
-            .arg("-o")
-            .arg(&out)
-            .args(["--csv", "-q"]),
-    );
-    assert_code(&o, 2, "output under a regular file");
-    let stderr = stderr_of(&o);
-    assert_no_panic(&stderr, "output under a regular file");
+    let o = run_with_csv(dir.path(), &case, &out);
+    let stderr = refused(&o, "output under a regular file");
     let errs = error_lines(&stderr);
     assert_eq!(errs.len(), 1, "{stderr}");
     assert!(errs[0].contains(&out.display().to_string()), "{}", errs[0]);
@@ -837,9 +805,7 @@ fn run_refuses_to_overwrite_its_inputs() {
                 .args(["run", "irrigation-table.json", "-q"])
                 .args(args),
         );
-        assert_code(&o, 2, &format!("{args:?}"));
-        let stderr = stderr_of(&o);
-        assert_no_panic(&stderr, named);
+        let stderr = refused(&o, &format!("{args:?}"));
         let errs = error_lines(&stderr);
         assert_eq!(errs.len(), 1, "{args:?}: {stderr}");
         assert!(
@@ -930,18 +896,12 @@ fn usage_errors_exit_2() {
     ];
     for (args, named) in cases {
         let o = output(boreflux().current_dir(dir.path()).args(args));
-        assert_code(&o, 2, &format!("{args:?}"));
-        let stderr = stderr_of(&o);
-        assert_no_panic(&stderr, named);
+        let stderr = refused(&o, &format!("{args:?}"));
         assert!(
             stderr.starts_with("error:") && stderr.contains(named),
             "{args:?}:\n{stderr}"
         );
-        assert!(
-            dir_entries(dir.path()).is_empty(),
-            "{args:?}: {:?}",
-            dir_entries(dir.path())
-        );
+        assert_nothing_left(dir.path(), &format!("{args:?}"));
     }
 }
 
@@ -1240,15 +1200,7 @@ fn unwritable_output_folder_leaves_nothing() {
         std::fs::write(ro.join("plain"), "").unwrap();
         ro.join("plain").join("out.h5")
     };
-    let o = output(
-        boreflux()
-            .current_dir(dir.path())
-            .arg("run")
-            .arg(&case)
-            .arg("-o")
-            .arg(&out)
-            .args(["--csv", "-q"]),
-    );
+    let o = run_with_csv(dir.path(), &case, &out);
     std::fs::set_permissions(&ro, std::fs::Permissions::from_mode(0o755)).unwrap();
     assert_code(&o, 2, &format!("output {}", out.display()));
     assert_no_panic(&stderr_of(&o), "unwritable output");
@@ -1294,21 +1246,10 @@ fn interrupted_run_leaves_nothing() {
         );
         std::thread::sleep(std::time::Duration::from_millis(5));
     }
-    let kill = std::process::Command::new("kill")
-        .args(["-INT", &child.id().to_string()])
-        .status()
-        .unwrap();
-    assert!(kill.success());
-    let status = child.wait().unwrap();
-    let mut stderr = String::new();
-    std::io::Read::read_to_string(child.stderr.as_mut().unwrap(), &mut stderr).unwrap();
+    let (status, stderr) = interrupt(&mut child);
     assert_no_panic(&stderr, "interrupted run");
     assert!(!status.success(), "an interrupted run reported success");
-    assert!(
-        dir_entries(dir.path()).is_empty(),
-        "files left after Ctrl-C: {:?} (exit status {status})",
-        dir_entries(dir.path())
-    );
+    assert_nothing_left(dir.path(), &format!("after Ctrl-C (exit status {status})"));
 }
 
 // ---------------------------------------------------------------------------------------

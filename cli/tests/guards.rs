@@ -3,19 +3,14 @@
 //! (`--allow-large`), drive files that are not regular files, a byte-order mark, and the
 //! step estimate against real runs.
 
+mod common;
+
 use assert_cmd::Command;
 use boreflux::case::{load_case, parse_case};
 use boreflux_solver::diagnostics::NullObserver;
 use boreflux_solver::{run, Reporting};
+use common::{boreflux, cases_dir, dir_entries};
 use std::path::{Path, PathBuf};
-
-fn boreflux() -> Command {
-    Command::cargo_bin("boreflux").unwrap()
-}
-
-fn cases_dir() -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR")).join("../cases")
-}
 
 /// A short valid case (sine head, 20 cycles) written into `dir`.
 fn short_case(dir: &Path) -> PathBuf {
@@ -42,13 +37,21 @@ fn stderr(out: &std::process::Output) -> String {
     String::from_utf8_lossy(&out.stderr).into_owned()
 }
 
-fn names(dir: &Path) -> Vec<String> {
-    let mut v: Vec<String> = std::fs::read_dir(dir)
-        .unwrap()
-        .map(|e| e.unwrap().file_name().into_string().unwrap())
-        .collect();
-    v.sort();
-    v
+/// `boreflux run CASE -o OUT -q`.
+fn quiet_run(case: &Path, out: &Path) -> Command {
+    let mut c = boreflux();
+    c.arg("run").arg(case).arg("-o").arg(out).arg("-q");
+    c
+}
+
+/// The command `cmd()` writes its outputs (exit 0), is refused when run again because they
+/// exist (exit 2), and writes over them with `--force` (exit 0).
+fn needs_force_the_second_time(cmd: impl Fn() -> Command) {
+    assert_eq!(code(&cmd().output().unwrap()), 0);
+    let out = cmd().output().unwrap();
+    assert_eq!(code(&out), 2);
+    assert!(stderr(&out).contains("already exists"), "{}", stderr(&out));
+    assert_eq!(code(&cmd().arg("--force").output().unwrap()), 0);
 }
 
 #[test]
@@ -88,36 +91,19 @@ fn existing_outputs_need_force_for_every_command() {
     assert!(csv.exists());
 
     let html = dir.path().join("r.html");
-    let report = |force: bool| {
+    needs_force_the_second_time(|| {
         let mut c = boreflux();
         c.arg("report").arg(&h5).arg("-o").arg(&html);
-        if force {
-            c.arg("--force");
-        }
-        c.output().unwrap()
-    };
-    assert_eq!(code(&report(false)), 0);
-    let out = report(false);
-    assert_eq!(code(&out), 2);
-    assert!(stderr(&out).contains("already exists"));
-    assert_eq!(code(&report(true)), 0);
-
-    let sweep = |force: bool| {
+        c
+    });
+    needs_force_the_second_time(|| {
         let mut c = boreflux();
         c.arg("sweep")
             .arg(&case)
             .args(["--vary", "drive.amplitude=1,2", "-q", "-o"])
             .arg(dir.path().join("s"));
-        if force {
-            c.arg("--force");
-        }
-        c.output().unwrap()
-    };
-    assert_eq!(code(&sweep(false)), 0);
-    let out = sweep(false);
-    assert_eq!(code(&out), 2);
-    assert!(stderr(&out).contains("already exists"), "{}", stderr(&out));
-    assert_eq!(code(&sweep(true)), 0);
+        c
+    });
 
     for k in ["1/2", "2/2"] {
         boreflux()
@@ -128,28 +114,20 @@ fn existing_outputs_need_force_for_every_command() {
             .assert()
             .success();
     }
-    let merge = |force: bool| {
+    needs_force_the_second_time(|| {
         let mut c = boreflux();
         c.arg("merge")
             .arg(dir.path().join("p1.h5"))
             .arg(dir.path().join("p2.h5"))
             .arg("-o")
             .arg(dir.path().join("m"));
-        if force {
-            c.arg("--force");
-        }
-        c.output().unwrap()
-    };
-    assert_eq!(code(&merge(false)), 0);
-    let out = merge(false);
-    assert_eq!(code(&out), 2);
-    assert!(stderr(&out).contains("already exists"), "{}", stderr(&out));
-    assert_eq!(code(&merge(true)), 0);
+        c
+    });
     // No temporary file is left behind by any of this.
     assert!(
-        names(dir.path()).iter().all(|n| !n.contains(".tmp-")),
+        dir_entries(dir.path()).iter().all(|n| !n.contains(".tmp-")),
         "{:?}",
-        names(dir.path())
+        dir_entries(dir.path())
     );
 }
 
@@ -158,14 +136,7 @@ fn report_never_writes_over_its_input() {
     let dir = tempfile::tempdir().unwrap();
     let case = short_case(dir.path());
     let h5 = dir.path().join("r.h5");
-    boreflux()
-        .arg("run")
-        .arg(&case)
-        .arg("-o")
-        .arg(&h5)
-        .arg("-q")
-        .assert()
-        .success();
+    quiet_run(&case, &h5).assert().success();
     let before = std::fs::read(&h5).unwrap();
     // Even with --force, and through another spelling of the same path.
     let same = dir.path().join(".").join("r.h5");
@@ -195,14 +166,7 @@ fn report_on_files_that_are_not_results_is_bad_input() {
     std::fs::write(&empty, "").unwrap();
     let case = short_case(dir.path());
     let good = dir.path().join("good.h5");
-    boreflux()
-        .arg("run")
-        .arg(&case)
-        .arg("-o")
-        .arg(&good)
-        .arg("-q")
-        .assert()
-        .success();
+    quiet_run(&case, &good).assert().success();
     let bytes = std::fs::read(&good).unwrap();
     let truncated = dir.path().join("truncated.h5");
     std::fs::write(&truncated, &bytes[..bytes.len() / 3]).unwrap();
@@ -232,14 +196,7 @@ fn crafted_result_files_give_clear_errors() {
     let dir = tempfile::tempdir().unwrap();
     let case = short_case(dir.path());
     let good = dir.path().join("good.h5");
-    boreflux()
-        .arg("run")
-        .arg(&case)
-        .arg("-o")
-        .arg(&good)
-        .arg("-q")
-        .assert()
-        .success();
+    quiet_run(&case, &good).assert().success();
     // A series declaring 2e9 values (chunked, never written: the file stays small).
     let huge = dir.path().join("huge.h5");
     std::fs::copy(&good, &huge).unwrap();
@@ -339,14 +296,7 @@ fn runs_over_the_size_limit_need_allow_large() {
     )
     .unwrap();
     let h5 = dir.path().join("r.h5");
-    let out = boreflux()
-        .arg("run")
-        .arg(&case)
-        .arg("-o")
-        .arg(&h5)
-        .arg("-q")
-        .output()
-        .unwrap();
+    let out = quiet_run(&case, &h5).output().unwrap();
     assert_eq!(code(&out), 2);
     let e = stderr(&out);
     assert!(
@@ -354,7 +304,7 @@ fn runs_over_the_size_limit_need_allow_large() {
         "{e}"
     );
     assert!(e.contains("1.728e10 steps"), "{e}");
-    assert_eq!(names(dir.path()), ["long.json"]);
+    assert_eq!(dir_entries(dir.path()), ["long.json"]);
     let out = boreflux().arg("check").arg(&case).output().unwrap();
     assert_eq!(code(&out), 0);
     let text = String::from_utf8_lossy(&out.stdout);

@@ -3,32 +3,17 @@
 //! command prints is listed, and every listed key is printed by one of the runs here. The
 //! source of truth checked against is the commands' own output.
 
-use assert_cmd::Command;
+mod common;
+
 use boreflux::output::schema::{check_json, estimate, steptest_json, JsonKey, Shape};
 use boreflux_solver::grid::Zone;
+use common::{json_of, repo_dir};
 use serde_json::Value;
 use std::collections::BTreeSet;
 use std::path::PathBuf;
 
 fn repo(path: &str) -> PathBuf {
-    PathBuf::from(env!("CARGO_MANIFEST_DIR"))
-        .join("..")
-        .join(path)
-}
-
-/// The document a command prints; the command must succeed.
-fn json_of(args: &[&str]) -> Value {
-    let o = Command::cargo_bin("boreflux")
-        .unwrap()
-        .args(args)
-        .output()
-        .unwrap();
-    assert!(
-        o.status.success(),
-        "{args:?}: {}",
-        String::from_utf8_lossy(&o.stderr)
-    );
-    serde_json::from_slice(&o.stdout).unwrap()
+    repo_dir().join(path)
 }
 
 /// The dotted paths of a document, with `[]` for the elements of an array; the objects by

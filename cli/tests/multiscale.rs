@@ -6,7 +6,9 @@
 //! The reference numbers are those of the full-stepping run of the same case, computed in the
 //! test; nothing here is a recorded number.
 
-use assert_cmd::Command;
+mod common;
+
+use common::{boreflux, shipped_case as case, success};
 use serde_json::Value;
 use std::path::{Path, PathBuf};
 
@@ -26,29 +28,17 @@ const FIGURES: [&str; 7] = [
     "specific_capacity_end_m2_s",
 ];
 
-fn case(name: &str) -> Value {
-    let p = Path::new(env!("CARGO_MANIFEST_DIR"))
-        .join("../cases")
-        .join(name);
-    serde_json::from_str(&std::fs::read_to_string(p).unwrap()).unwrap()
-}
-
 /// Runs `c` and returns the JSON summary and the output file.
 fn run(dir: &Path, tag: &str, c: &Value) -> (Value, PathBuf) {
     let path = dir.join(format!("{tag}.json"));
     std::fs::write(&path, serde_json::to_string_pretty(c).unwrap()).unwrap();
     let out = dir.join(format!("{tag}.h5"));
-    let o = Command::cargo_bin("boreflux")
-        .unwrap()
-        .args(["run", "-q", "--json", "-o"])
-        .arg(&out)
-        .arg(&path)
-        .output()
-        .unwrap();
-    assert!(
-        o.status.success(),
-        "{tag}: {}",
-        String::from_utf8_lossy(&o.stderr)
+    let o = success(
+        boreflux()
+            .args(["run", "-q", "--json", "-o"])
+            .arg(&out)
+            .arg(&path),
+        tag,
     );
     (serde_json::from_slice(&o.stdout).unwrap(), out)
 }

@@ -2,11 +2,14 @@
 //! following the documented layout (docs/formats.md "HDF5 layout"), so these tests do not depend
 //! on the solver. All run data below are invented test data, not results of any well.
 
+mod common;
+
 use std::path::{Path, PathBuf};
 use std::str::FromStr;
 
 use boreflux::report::write_report;
 use boreflux_solver::safety::CAUTION;
+use common::dir_entries;
 use hdf5::types::VarLenUnicode;
 use hdf5::{File, Group, Location};
 use ndarray::Array2;
@@ -262,15 +265,6 @@ fn write_run(path: &Path, spec: &Spec) {
     }
 }
 
-fn names_in(dir: &Path) -> Vec<String> {
-    let mut v: Vec<String> = std::fs::read_dir(dir)
-        .unwrap()
-        .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())
-        .collect();
-    v.sort();
-    v
-}
-
 /// The `d` attributes of all `<path>` elements: number of points in each.
 fn path_points(html: &str) -> Vec<usize> {
     html.split(" d=\"")
@@ -300,7 +294,7 @@ fn report_has_figures_cautions_units_and_escaped_text() {
     );
     let html = report_of(dir.path(), &[run]);
     assert_eq!(
-        names_in(dir.path()),
+        dir_entries(dir.path()),
         ["report.html", "run.h5"],
         "no temporary file left"
     );
@@ -498,14 +492,17 @@ fn missing_dataset_is_named_and_leaves_no_output() {
         err.to_string(),
         format!("{}: missing dataset /series/face_flux", bad.display())
     );
-    assert_eq!(names_in(dir.path()), ["bad.h5", "good.h5"]);
+    assert_eq!(dir_entries(dir.path()), ["bad.h5", "good.h5"]);
 
     // An existing report is left as it was.
     std::fs::write(&out, "old report").unwrap();
     let e = write_report(std::slice::from_ref(&bad), &out).unwrap_err();
     assert!(e.to_string().contains("/series/face_flux"), "{e}");
     assert_eq!(std::fs::read_to_string(&out).unwrap(), "old report");
-    assert_eq!(names_in(dir.path()), ["bad.h5", "good.h5", "report.html"]);
+    assert_eq!(
+        dir_entries(dir.path()),
+        ["bad.h5", "good.h5", "report.html"]
+    );
 }
 
 #[test]
@@ -533,7 +530,7 @@ fn other_missing_objects_are_named() {
         assert_eq!(e.to_string(), format!("{}: {expected}", p.display()));
         std::fs::remove_file(&p).unwrap();
     }
-    assert!(names_in(dir.path()).is_empty());
+    assert!(dir_entries(dir.path()).is_empty());
 }
 
 #[test]

@@ -3,25 +3,14 @@
 //! stratification survives into the table, refusals name the bad input (exit 2), and the
 //! GNU parallel recipe of docs/sweeps.md runs and merges.
 
-use assert_cmd::Command;
+mod common;
+
+use common::{
+    boreflux, cases_dir, linear_case, merge, repo_dir, run_sweep, shortened_case,
+    sweep_whole_and_shards, write,
+};
 use hdf5::types::VarLenUnicode;
 use std::path::{Path, PathBuf};
-
-fn boreflux() -> Command {
-    Command::cargo_bin("boreflux").expect("the boreflux binary is built by cargo test")
-}
-
-/// A small linear well driven by a sine head (invented numbers, a demo case): fixed
-/// steps, so each scenario is a pure function of its inputs.
-const CASE: &str = r#"{
-  "well": { "screen_radius": 0.1, "screen_length": 6, "open_area": 0.12,
-            "discharge_coefficient": "none" },
-  "pack": { "outer_radius": 0.2, "porosity": 0.32, "conductivity": 8e-3 },
-  "formation": { "conductivity": 2e-4, "specific_storage": 1e-5 },
-  "drive": { "kind": "sine_head", "amplitude": 1.0, "frequency": 0.5 },
-  "duration": "4 cycles",
-  "numerics": { "steps_per_cycle": 40, "scheme": "theta" }
-}"#;
 
 const SAMPLE: [&str; 4] = [
     "--sample",
@@ -30,10 +19,27 @@ const SAMPLE: [&str; 4] = [
     "pack.conductivity=lognormal(8e-3 m/s, 0.5, min=1e-3 m/s, max=5e-2 m/s)",
 ];
 
+/// The linear well of the common helpers for 4 cycles at fixed steps, so each scenario is
+/// a pure function of its inputs.
 fn write_case(dir: &Path) -> PathBuf {
-    let p = dir.join("linear.json");
-    std::fs::write(&p, CASE).unwrap();
-    p
+    let case = linear_case(
+        r#""4 cycles""#,
+        r#"{ "steps_per_cycle": 40, "scheme": "theta" }"#,
+    );
+    write(dir, "linear.json", &case)
+}
+
+/// The page `boreflux report TABLE` writes beside the table (`mc.html`).
+fn report_page(table: &Path) -> String {
+    let html = table.with_file_name("mc.html");
+    boreflux()
+        .arg("report")
+        .arg(table)
+        .arg("-o")
+        .arg(&html)
+        .assert()
+        .success();
+    std::fs::read_to_string(&html).unwrap()
 }
 
 /// Every dataset below `group`, by path, as raw bytes of its values (text as UTF-8).
@@ -70,34 +76,10 @@ fn all_datasets(path: &Path) -> Vec<(String, Vec<u8>)> {
 fn sampled_shards_merge_into_the_unsharded_table_bit_for_bit() {
     let dir = tempfile::tempdir().unwrap();
     let case = write_case(dir.path());
-    let run = |out: &str, shard: Option<&str>| {
-        let mut c = boreflux();
-        c.arg("sweep")
-            .arg(&case)
-            .arg("-q")
-            .arg("-o")
-            .arg(dir.path().join(out));
-        c.args(SAMPLE)
-            .args(["--samples", "7", "--seed", "20261204", "-j", "2"]);
-        if let Some(s) = shard {
-            c.args(["--shard", s]);
-        }
-        c.assert().success();
-    };
-    run("whole", None);
-    for k in 1..=3 {
-        run(&format!("part-{k}"), Some(&format!("{k}/3")));
-    }
-    let parts: Vec<PathBuf> = (1..=3)
-        .map(|k| dir.path().join(format!("part-{k}.h5")))
-        .collect();
-    boreflux()
-        .arg("merge")
-        .args(&parts)
-        .arg("-o")
-        .arg(dir.path().join("merged"))
-        .assert()
-        .success();
+    let mut args = SAMPLE.to_vec();
+    args.extend(["--samples", "7", "--seed", "20261204", "-j", "2"]);
+    let parts = sweep_whole_and_shards(dir.path(), &case, &args, 3);
+    merge(&parts, &dir.path().join("merged")).success();
     let read = |n: &str| std::fs::read(dir.path().join(n)).unwrap();
     assert_eq!(read("merged.csv"), read("whole.csv"));
     let (m, w) = (
@@ -107,23 +89,15 @@ fn sampled_shards_merge_into_the_unsharded_table_bit_for_bit() {
     assert!(m.len() > 10, "{} datasets", m.len());
     assert_eq!(m, w);
     // A shard of another seed is another sample: merge refuses it.
-    let mut c = boreflux();
-    c.arg("sweep")
-        .arg(&case)
-        .arg("-q")
-        .arg("-o")
-        .arg(dir.path().join("other"));
-    c.args(SAMPLE)
-        .args(["--samples", "7", "--seed", "1", "--shard", "3/3"]);
-    c.assert().success();
-    let out = boreflux()
-        .arg("merge")
-        .args(&parts[..2])
-        .arg(dir.path().join("other.h5"))
-        .arg("-o")
-        .arg(dir.path().join("mixed"))
-        .assert()
-        .code(2);
+    let mut args = SAMPLE.to_vec();
+    args.extend(["--samples", "7", "--seed", "1", "--shard", "3/3"]);
+    run_sweep(&case, &dir.path().join("other"), &args);
+    let mixed = [
+        parts[0].clone(),
+        parts[1].clone(),
+        dir.path().join("other.h5"),
+    ];
+    let out = merge(&mixed, &dir.path().join("mixed")).code(2);
     let err = String::from_utf8_lossy(&out.get_output().stderr).to_string();
     assert!(err.contains("sample design, count or seed differ"), "{err}");
 }
@@ -138,15 +112,10 @@ fn the_table_holds_a_latin_hypercube_of_the_inputs() {
     let dir = tempfile::tempdir().unwrap();
     let case = write_case(dir.path());
     let n = 12;
-    boreflux()
-        .arg("sweep")
-        .arg(&case)
-        .args(["-q", "-o"])
-        .arg(dir.path().join("lhs"))
-        .args(SAMPLE)
-        .args(["--samples", &n.to_string(), "--seed", "3"])
-        .assert()
-        .success();
+    let samples = n.to_string();
+    let mut args = SAMPLE.to_vec();
+    args.extend(["--samples", &samples, "--seed", "3"]);
+    run_sweep(&case, &dir.path().join("lhs"), &args);
     let f = hdf5::File::open(dir.path().join("lhs.h5")).unwrap();
     let read = |p: &str| f.dataset(p).unwrap().read_raw::<f64>().unwrap();
     let amp = read("/table/vary_value/drive.amplitude");
@@ -254,15 +223,12 @@ fn a_scenarios_key_series_match_its_run_file() {
     // 1/100 of the run) and /cycles (per-cycle peaks). A shipped case with a cake, so the
     // skin and specific capacity change during the run.
     let dir = tempfile::tempdir().unwrap();
-    let case = Path::new(env!("CARGO_MANIFEST_DIR")).join("../cases/domestic-fine-sand-pvc.json");
-    boreflux()
-        .arg("sweep")
-        .arg(&case)
-        .args(["-q", "-o"])
-        .arg(dir.path().join("one"))
-        .args(["--vary", "duration=3 min"])
-        .assert()
-        .success();
+    let case = cases_dir().join("domestic-fine-sand-pvc.json");
+    run_sweep(
+        &case,
+        &dir.path().join("one"),
+        &["--vary", "duration=3 min"],
+    );
     boreflux()
         .arg("run")
         .arg(&case)
@@ -334,24 +300,10 @@ fn a_sampled_sweep_report_shows_bands_distributions_and_the_collapse_probability
     let dir = tempfile::tempdir().unwrap();
     let case = write_case(dir.path());
     let out = dir.path().join("mc");
-    boreflux()
-        .arg("sweep")
-        .arg(&case)
-        .args(["-q", "-o"])
-        .arg(&out)
-        .args(SAMPLE)
-        .args(["--samples", "9", "--seed", "4"])
-        .assert()
-        .success();
-    let html = dir.path().join("mc.html");
-    boreflux()
-        .arg("report")
-        .arg(out.with_extension("h5"))
-        .arg("-o")
-        .arg(&html)
-        .assert()
-        .success();
-    let page = std::fs::read_to_string(&html).unwrap();
+    let mut args = SAMPLE.to_vec();
+    args.extend(["--samples", "9", "--seed", "4"]);
+    run_sweep(&case, &out, &args);
+    let page = report_page(&out.with_extension("h5"));
     for want in [
         "9 scenarios drawn by Latin hypercube, seed 4",
         "<code>drive.amplitude</code> ~ <code>uniform(0.5 m, 1.5 m)</code>",
@@ -371,24 +323,25 @@ fn a_sampled_sweep_report_shows_bands_distributions_and_the_collapse_probability
 fn the_collapse_probability_counts_the_tables_margins() {
     // A shipped case with a PVC casing (so a collapse rating and margin), one minute long.
     let dir = tempfile::tempdir().unwrap();
-    let text = std::fs::read_to_string(
-        Path::new(env!("CARGO_MANIFEST_DIR")).join("../cases/domestic-fine-sand-pvc.json"),
-    )
-    .unwrap();
-    let mut v: serde_json::Value = serde_json::from_str(&text).unwrap();
-    v["duration"] = serde_json::json!("1 min");
-    let case = dir.path().join("short.json");
-    std::fs::write(&case, v.to_string()).unwrap();
+    let case = shortened_case(
+        dir.path(),
+        "domestic-fine-sand-pvc.json",
+        "1 min",
+        "short.json",
+    );
     let out = dir.path().join("mc");
-    boreflux()
-        .arg("sweep")
-        .arg(&case)
-        .args(["-q", "-o"])
-        .arg(&out)
-        .args(["--sample", "cake.thickness=triangular(2 mm, 4 mm, 8 mm)"])
-        .args(["--samples", "6", "--seed", "2"])
-        .assert()
-        .success();
+    run_sweep(
+        &case,
+        &out,
+        &[
+            "--sample",
+            "cake.thickness=triangular(2 mm, 4 mm, 8 mm)",
+            "--samples",
+            "6",
+            "--seed",
+            "2",
+        ],
+    );
     let f = hdf5::File::open(out.with_extension("h5")).unwrap();
     let m = f
         .dataset("/table/collapse_margin")
@@ -398,15 +351,7 @@ fn the_collapse_probability_counts_the_tables_margins() {
     let n = m.iter().filter(|x| x.is_finite()).count();
     let k = m.iter().filter(|&&x| x < 1.0).count();
     assert_eq!(n, 6, "every scenario has a margin: {m:?}");
-    let html = dir.path().join("mc.html");
-    boreflux()
-        .arg("report")
-        .arg(out.with_extension("h5"))
-        .arg("-o")
-        .arg(&html)
-        .assert()
-        .success();
-    let page = std::fs::read_to_string(&html).unwrap();
+    let page = report_page(&out.with_extension("h5"));
     let want = format!("Probability that the collapse margin is below 1: {k} of {n} scenarios");
     assert!(page.contains(&want), "missing: {want}");
     assert!(page.contains("Wilson score interval"));
@@ -442,8 +387,7 @@ fn the_gnu_parallel_recipe_runs_shards_that_merge_into_the_whole() {
             {"path": "pack.conductivity", "distribution": "loguniform(2e-3 m/s, 2e-2 m/s)"}]}"#,
     )
     .unwrap();
-    let script =
-        Path::new(env!("CARGO_MANIFEST_DIR")).join("../examples/sampled-sweep-parallel.sh");
+    let script = repo_dir().join("examples/sampled-sweep-parallel.sh");
     let shards = dir.path().join("shards");
     let status = std::process::Command::new("bash")
         .arg(&script)

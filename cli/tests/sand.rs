@@ -3,15 +3,13 @@
 //! usual design rules) warns, and the municipal case with a finer formation and a wider slot
 //! (invented variations) gets both warnings.
 
+mod common;
+
 use boreflux::case::{parse_case, LoadedCase};
 use boreflux::summary::{assessment, headline, Tracker};
 use boreflux_solver::{run, Reporting};
+use common::cases_dir;
 use serde_json::{json, Value};
-use std::path::Path;
-
-fn dir() -> std::path::PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR")).join("../cases")
-}
 
 fn sand_warnings(case: &LoadedCase) -> Vec<String> {
     let mut t = Tracker::new(&case.model);
@@ -31,12 +29,12 @@ fn no_shipped_case_warns_and_a_poor_design_does() {
         "domestic-fine-sand-pvc.json",
         "monitoring-silty-sand.json",
     ] {
-        let text = std::fs::read_to_string(dir().join(name)).unwrap();
-        let case = parse_case(&text, &dir()).unwrap();
+        let text = std::fs::read_to_string(cases_dir().join(name)).unwrap();
+        let case = parse_case(&text, &cases_dir()).unwrap();
         assert_eq!(sand_warnings(&case), Vec::<String>::new(), "{name}");
     }
     let mut v: Value = serde_json::from_str(
-        &std::fs::read_to_string(dir().join("municipal-sand-gravel.json")).unwrap(),
+        &std::fs::read_to_string(cases_dir().join("municipal-sand-gravel.json")).unwrap(),
     )
     .unwrap();
     // D50 pack/formation 1.7/0.15 = 11.3 > 9 (Driscoll 1986, from memory - verify); slot
@@ -44,7 +42,7 @@ fn no_shipped_case_warns_and_a_poor_design_does() {
     v["formation"]["d50"] = json!("0.15 mm");
     v["well"]["slot_width"] = json!("2 mm");
     v["duration"] = json!("30 s");
-    let case = parse_case(&v.to_string(), &dir()).unwrap();
+    let case = parse_case(&v.to_string(), &cases_dir()).unwrap();
     let w = sand_warnings(&case);
     assert_eq!(w.len(), 2, "{w:?}");
     assert!(w[0].contains("11.3") && w[1].contains("D10"), "{w:?}");

@@ -2,23 +2,14 @@
 //! is raised, heads, flows and work stay finite, and
 //! every drive kind is used by at least one shipped case (issue #5).
 
+mod common;
+
 use boreflux::case::load_case;
 use boreflux::output::schema::Figure;
 use boreflux::summary::{assessment, headline, Tracker};
 use boreflux_solver::{run, Reporting, StepObserver, StepView};
+use common::{cases_dir, json_of, shipped_cases};
 use std::collections::BTreeSet;
-use std::path::PathBuf;
-
-fn cases() -> Vec<PathBuf> {
-    let dir = PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("../cases");
-    let mut v: Vec<PathBuf> = std::fs::read_dir(dir)
-        .expect("cases/ exists")
-        .map(|e| e.expect("entry").path())
-        .filter(|p| p.extension().is_some_and(|x| x == "json"))
-        .collect();
-    v.sort();
-    v
-}
 
 /// Tracks the headline extremes and checks every value is finite.
 struct Checked {
@@ -56,7 +47,7 @@ fn kinds(drive: &serde_json::Value, out: &mut BTreeSet<String>) {
 #[test]
 fn every_shipped_case_runs_cleanly() {
     let mut used = BTreeSet::new();
-    for path in cases() {
+    for path in shipped_cases() {
         let name = path.file_name().unwrap().to_string_lossy().to_string();
         let case = load_case(&path).unwrap_or_else(|e| panic!("{name}: {e}"));
         kinds(&case.resolved["drive"], &mut used);
@@ -123,7 +114,7 @@ fn every_shipped_case_runs_cleanly() {
 #[test]
 fn newton_converges_within_eight_iterations_on_every_shipped_case() {
     let mut worst = Vec::new();
-    for path in cases() {
+    for path in shipped_cases() {
         let name = path.file_name().unwrap().to_string_lossy().to_string();
         let case = load_case(&path).unwrap_or_else(|e| panic!("{name}: {e}"));
         let summary = run(
@@ -142,25 +133,14 @@ fn newton_converges_within_eight_iterations_on_every_shipped_case() {
 /// stroke then drives the flow through a longer pack path (a direction check, no value).
 #[test]
 fn annulus_widths_are_simulated_by_check() {
-    let case =
-        PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("../cases/municipal-sand-gravel.json");
-    let out = assert_cmd::Command::cargo_bin("boreflux")
-        .unwrap()
-        .args([
-            "check",
-            case.to_str().unwrap(),
-            "--annulus",
-            "60mm,150mm",
-            "--json",
-        ])
-        .output()
-        .unwrap();
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
-    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let case = cases_dir().join("municipal-sand-gravel.json");
+    let v = json_of(&[
+        "check",
+        case.to_str().unwrap(),
+        "--annulus",
+        "60mm,150mm",
+        "--json",
+    ]);
     let rows = v["annulus"].as_array().unwrap();
     assert_eq!(rows.len(), 2);
     let q: Vec<f64> = rows
@@ -181,7 +161,7 @@ fn annulus_widths_are_simulated_by_check() {
 /// test model; the tolerance is the issue's).
 #[test]
 fn the_same_well_gives_the_same_before_figures_whatever_the_drive() {
-    let dir = PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("../cases");
+    let dir = cases_dir();
     let text = std::fs::read_to_string(dir.join("municipal-sand-gravel.json")).unwrap();
     let base: serde_json::Value = serde_json::from_str(&text).unwrap();
     let pump = serde_json::json!({"kind": "pump_backwash", "ramp_cycles": 2,

@@ -5,12 +5,14 @@
 //! (verification group `virtual_tests`, Theis / Papadopulos–Cooper within 0.5 %), not a
 //! number of this file.
 
+mod common;
+
 use boreflux::case::load_case;
 use boreflux_solver::assess::{self, progress::ProgressBasis};
 use boreflux_solver::diagnostics::NullObserver;
 use boreflux_solver::run::{run, Reporting};
 use boreflux_solver::slow::SlowState;
-use std::path::Path;
+use common::cases_dir;
 
 #[test]
 fn snapshot_after_lift_off_and_fines_matches_the_run_and_the_full_test() {
@@ -21,9 +23,7 @@ fn snapshot_after_lift_off_and_fines_matches_the_run_and_the_full_test() {
 }
 
 fn check(name: &str) {
-    let path = Path::new(env!("CARGO_MANIFEST_DIR"))
-        .join("../cases")
-        .join(name);
+    let path = cases_dir().join(name);
     let case = load_case(&path).expect("demo case loads");
     let m = &case.model;
     let lift = m

@@ -3,23 +3,17 @@
 //! with shorter steps), and where the θ-scheme, which does not retry, still fails, that shows
 //! the case still tests what it was made for.
 
+mod common;
+
 use boreflux::case::parse_case;
 use boreflux_solver::diagnostics::NullObserver;
 use boreflux_solver::model::Scheme;
 use boreflux_solver::{run, Reporting, SolverError};
+use common::{cases_dir, shipped_case as case};
 use serde_json::{json, Value};
-use std::path::Path;
-
-fn case(name: &str) -> Value {
-    let path = Path::new(env!("CARGO_MANIFEST_DIR"))
-        .join("../cases")
-        .join(name);
-    serde_json::from_str(&std::fs::read_to_string(path).unwrap()).unwrap()
-}
 
 fn model(v: &Value) -> boreflux_solver::Model {
-    let dir = Path::new(env!("CARGO_MANIFEST_DIR")).join("../cases");
-    parse_case(&v.to_string(), &dir).unwrap().model
+    parse_case(&v.to_string(), &cases_dir()).unwrap().model
 }
 
 /// cases/swab-deep.json in a formation of 1e-9 m/s: Newton did not converge at t ≈ 92.6 s.

@@ -2,33 +2,10 @@
 //! that name the line and column, the JSON values against synthetic data of known B and C,
 //! and the HTML output (temporary file renamed, no overwrite without --force).
 
-use assert_cmd::Command;
+mod common;
+
+use common::{boreflux, cases_dir, json_of, write};
 use serde_json::Value;
-use std::path::{Path, PathBuf};
-
-fn boreflux() -> Command {
-    Command::cargo_bin("boreflux").expect("the boreflux binary is built by cargo test")
-}
-
-fn cases_dir() -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR")).join("../cases")
-}
-
-fn write(dir: &Path, name: &str, text: &str) -> PathBuf {
-    let p = dir.join(name);
-    std::fs::write(&p, text).unwrap();
-    p
-}
-
-fn json_of(args: &[&str]) -> Value {
-    let out = boreflux().args(args).output().unwrap();
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
-    serde_json::from_slice(&out.stdout).unwrap()
-}
 
 fn stderr_of_failure(args: &[&str], code: i32) -> String {
     let out = boreflux().args(args).output().unwrap();

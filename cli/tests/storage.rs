@@ -2,15 +2,13 @@
 //! hand-computed sine envelope and against the every-step series of the same run, every
 //! choice read back by the report, and nothing left on disk by a refused choice.
 
+mod common;
+
 use std::path::{Path, PathBuf};
-use std::process::Command;
 
 use boreflux::report::read::read_run;
 use boreflux::report::write_report;
-
-fn boreflux() -> Command {
-    Command::new(env!("CARGO_BIN_EXE_boreflux"))
-}
+use common::{boreflux, success};
 
 fn scratch(name: &str) -> PathBuf {
     let dir = std::env::temp_dir().join(format!("boreflux-storage-{}-{name}", std::process::id()));
@@ -47,17 +45,13 @@ fn sine_case(dir: &Path, output: &str, numerics_extra: &str) -> PathBuf {
 }
 
 fn run(case: &Path, out: &Path) {
-    let o = boreflux()
-        .args(["run", "-q", "--force"])
-        .arg(case)
-        .arg("-o")
-        .arg(out)
-        .output()
-        .unwrap();
-    assert!(
-        o.status.success(),
-        "run failed: {}",
-        String::from_utf8_lossy(&o.stderr)
+    success(
+        boreflux()
+            .args(["run", "-q", "--force"])
+            .arg(case)
+            .arg("-o")
+            .arg(out),
+        "run",
     );
 }
 

@@ -3,39 +3,32 @@
 //! scenario, shards merged against the whole sweep, and the refusals (exit 2, nothing
 //! written).
 
+mod common;
+
 use assert_cmd::Command;
+use common::{boreflux, interrupt, linear_case, merge, sweep_whole_and_shards, write};
 use std::path::Path;
 
-fn boreflux() -> Command {
-    Command::cargo_bin("boreflux").expect("the boreflux binary is built by cargo test")
-}
-
-/// A linear (Darcy) well: no grain sizes (so no Forchheimer term), no screen entrance loss,
-/// no cake, driven by a sine head. Invented numbers. The θ-scheme at fixed steps: the
+/// The linear well of the common helpers for 4 cycles. The θ-scheme at fixed steps: the
 /// adaptive default chooses its steps against an absolute tolerance in metres, so its step
 /// sequence (and so the last digits) depends on the amplitude, which superposition to
 /// round-off cannot allow.
-const LINEAR_CASE: &str = r#"{
-  "well": { "screen_radius": 0.1, "screen_length": 6, "open_area": 0.12,
-            "discharge_coefficient": "none" },
-  "pack": { "outer_radius": 0.2, "porosity": 0.32, "conductivity": 8e-3 },
-  "formation": { "conductivity": 2e-4, "specific_storage": 1e-5 },
-  "drive": { "kind": "sine_head", "amplitude": 1.0, "frequency": 0.5 },
-  "duration": "4 cycles",
-  "numerics": { "steps_per_cycle": 40, "scheme": "theta" }
-}"#;
+fn linear() -> String {
+    linear_case(
+        r#""4 cycles""#,
+        r#"{ "steps_per_cycle": 40, "scheme": "theta" }"#,
+    )
+}
+
+fn write_case(dir: &Path) -> std::path::PathBuf {
+    write(dir, "linear.json", &linear())
+}
 
 /// `boreflux sweep CASE -q -o OUT`, the `--vary` arguments still to add.
 fn sweep(case: &Path, out: &Path) -> Command {
     let mut c = boreflux();
     c.arg("sweep").arg(case).arg("-q").arg("-o").arg(out);
     c
-}
-
-fn write_case(dir: &Path) -> std::path::PathBuf {
-    let p = dir.join("linear.json");
-    std::fs::write(&p, LINEAR_CASE).unwrap();
-    p
 }
 
 /// Rows of a CSV as name → text maps (no quoted commas in these tables' numbers).
@@ -117,7 +110,7 @@ fn a_scenario_row_matches_a_run_of_the_same_case() {
         .success();
     let rows = csv_rows(&out.with_extension("csv"));
     // The same scenario written out and run on its own (`boreflux run --json`).
-    let mut v: serde_json::Value = serde_json::from_str(LINEAR_CASE).unwrap();
+    let mut v: serde_json::Value = serde_json::from_str(&linear()).unwrap();
     v["drive"]["frequency"] = serde_json::json!(0.25);
     let single = dir.path().join("single.json");
     std::fs::write(&single, v.to_string()).unwrap();
@@ -146,52 +139,26 @@ fn a_scenario_row_matches_a_run_of_the_same_case() {
 fn shards_merge_into_the_whole_sweep() {
     let dir = tempfile::tempdir().unwrap();
     let case = write_case(dir.path());
-    let run = |out: &str, shard: Option<&str>| {
-        let mut c = sweep(&case, &dir.path().join(out));
-        c.args([
+    let parts = sweep_whole_and_shards(
+        dir.path(),
+        &case,
+        &[
             "--vary",
             "drive.frequency=0.25..1:3",
             "--vary",
             "pack.outer_radius=0.15,0.25",
-        ]);
-        if let Some(s) = shard {
-            c.args(["--shard", s]);
-        }
-        c.assert().success();
-    };
-    run("whole", None);
-    for k in 1..=4 {
-        run(&format!("part-{k}"), Some(&format!("{k}/4")));
-    }
-    let parts: Vec<String> = (1..=4)
-        .map(|k| {
-            dir.path()
-                .join(format!("part-{k}.h5"))
-                .display()
-                .to_string()
-        })
-        .collect();
+        ],
+        4,
+    );
     // Leaving one shard out is refused, naming what is missing.
-    let missing = boreflux()
-        .arg("merge")
-        .args(&parts[..3])
-        .arg("-o")
-        .arg(dir.path().join("merged"))
-        .assert()
-        .code(2);
+    let missing = merge(&parts[..3], &dir.path().join("merged")).code(2);
     let err = String::from_utf8_lossy(&missing.get_output().stderr).to_string();
     assert!(
         err.contains("1 of 6 scenarios are missing (scenario 3)"),
         "{err}"
     );
     assert!(!dir.path().join("merged.csv").exists());
-    boreflux()
-        .arg("merge")
-        .args(&parts)
-        .arg("-o")
-        .arg(dir.path().join("merged"))
-        .assert()
-        .success();
+    merge(&parts, &dir.path().join("merged")).success();
     let read = |n: &str| std::fs::read_to_string(dir.path().join(n)).unwrap();
     assert_eq!(read("merged.csv"), read("whole.csv"));
 }
@@ -261,7 +228,7 @@ fn bad_sweeps_are_refused_before_anything_runs() {
 #[test]
 fn an_interrupted_sweep_writes_nothing() {
     let dir = tempfile::tempdir().unwrap();
-    let mut v: serde_json::Value = serde_json::from_str(LINEAR_CASE).unwrap();
+    let mut v: serde_json::Value = serde_json::from_str(&linear()).unwrap();
     // Long enough to be running when the signal comes (a few seconds per scenario).
     v["duration"] = serde_json::json!("100000 cycles");
     let case = dir.path().join("long.json");
@@ -283,14 +250,7 @@ fn an_interrupted_sweep_writes_nothing() {
         child.try_wait().unwrap().is_none(),
         "the sweep ended before it could be interrupted"
     );
-    let kill = std::process::Command::new("kill")
-        .args(["-INT", &child.id().to_string()])
-        .status()
-        .unwrap();
-    assert!(kill.success());
-    let status = child.wait().unwrap();
-    let mut stderr = String::new();
-    std::io::Read::read_to_string(child.stderr.as_mut().unwrap(), &mut stderr).unwrap();
+    let (status, stderr) = interrupt(&mut child);
     assert!(!status.success(), "an interrupted sweep reported success");
     assert!(stderr.contains("interrupted by the user"), "{stderr}");
     assert_eq!(

@@ -2,23 +2,14 @@
 //! compared on one page (one chart per key figure, one line per table, each table's
 //! scenarios), the named refusals (exit 2, nothing written), and `--title` on a sweep page.
 
-use assert_cmd::Command;
-use std::path::{Path, PathBuf};
+mod common;
 
-fn boreflux() -> Command {
-    Command::cargo_bin("boreflux").expect("the boreflux binary is built by cargo test")
-}
+use common::{boreflux, shortened_case};
+use std::path::{Path, PathBuf};
 
 /// The shipped domestic demo case, shortened to one minute so a sweep takes a moment.
 fn write_case(dir: &Path) -> PathBuf {
-    let shipped =
-        Path::new(env!("CARGO_MANIFEST_DIR")).join("../cases/domestic-fine-sand-pvc.json");
-    let mut v: serde_json::Value =
-        serde_json::from_str(&std::fs::read_to_string(shipped).unwrap()).unwrap();
-    v["duration"] = serde_json::json!("1 min");
-    let p = dir.join("domestic.json");
-    std::fs::write(&p, serde_json::to_string_pretty(&v).unwrap()).unwrap();
-    p
+    shortened_case(dir, "domestic-fine-sand-pvc.json", "1 min", "domestic.json")
 }
 
 /// `boreflux sweep CASE -q -o DIR/STEM ARGS…`; returns the table's .h5 path.

@@ -519,15 +519,20 @@ impl Drive {
         }
     }
 
+    /// The drives that act in turn: the stages' drives of a schedule, else the drive itself.
+    pub fn stage_drives(&self) -> impl Iterator<Item = &Drive> {
+        let (own, stages): (Option<&Drive>, &[Stage]) = match self {
+            Drive::Schedule(stages) => (None, stages),
+            d => (Some(d), &[]),
+        };
+        own.into_iter().chain(stages.iter().map(|s| &s.drive))
+    }
+
     /// Slowest period among the stages, s (for the automatic outer radius).
     pub fn slowest_period_s(&self) -> Option<f64> {
-        match self {
-            Drive::Schedule(stages) => stages
-                .iter()
-                .filter_map(|s| s.drive.period_s())
-                .reduce(f64::max),
-            d => d.period_s(),
-        }
+        self.stage_drives()
+            .filter_map(Drive::period_s)
+            .reduce(f64::max)
     }
 
     /// Index of the schedule stage active at time t and the number of stages (a drive that

@@ -376,7 +376,8 @@ impl PeriodicSolution {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::drive::{Drive, SineHead, TableDrive, TableQuantity};
+    use crate::drive::{Drive, TableDrive, TableQuantity};
+    use crate::fixtures;
     use crate::model::*;
     use crate::stepper::Stepper;
 
@@ -384,56 +385,19 @@ mod tests {
     /// head at `outer_radius_m`: every zone carries dissipation, and faces 0 and the wall
     /// face mix zones. Values are invented for the tests.
     fn composite(drive: Drive, outer_radius_m: f64, cells: usize) -> Model {
-        Model {
-            fluid: Fluid::WATER_20C,
-            well: Well {
-                screen_radius_m: 0.1,
-                screen_length_m: 6.0,
-                open_area: 0.12,
-                casing_radius_m: 0.1,
-                linear_loss_s: 50.0,
-                discharge_coefficient: None,
-                storage_m2: 0.0,
-                column_length_m: 0.0,
-            },
-            pack: Pack {
-                outer_radius_m: 0.2,
-                medium: Medium::darcy(5e-3, 1e-5),
-            },
-            cake: Some(Cake {
-                thickness_m: 0.004,
-                conductivity_m_s: 2e-6,
-                coverage: 1.0,
-                erosion: None,
-                lift_off: None,
-            }),
-            invaded: Some(Invaded {
-                thickness_m: 0.1,
-                medium: Medium::darcy(5e-5, 1e-5),
-                fines: None,
-                profile: None,
-            }),
-            formation: Formation {
-                medium: Medium::darcy(2e-4, 1e-5),
-                outer_radius_m: Some(outer_radius_m),
-                outer_boundary: OuterBoundary::FixedHead,
-            },
-            drive,
-            duration_s: 100.0,
-            numerics: Numerics {
-                grid: GridSpec::Total(cells),
-                ..Numerics::default()
-            },
-        }
+        let mut m = fixtures::demo_well();
+        m.well.linear_loss_s = 50.0;
+        m.cake = Some(fixtures::cake(0.004, 2e-6, 1.0));
+        m.invaded = Some(fixtures::invaded(0.1, 5e-5));
+        m.formation.outer_radius_m = Some(outer_radius_m);
+        m.drive = drive;
+        m.duration_s = 100.0;
+        m.numerics.grid = GridSpec::Total(cells);
+        m
     }
 
     fn sine(amplitude_m: f64, period_s: f64, offset_m: f64) -> Drive {
-        Drive::SineHead(SineHead {
-            amplitude_m,
-            frequency_hz: 1.0 / period_s,
-            offset_m,
-            ramp_cycles: 0.0,
-        })
+        fixtures::sine_head(amplitude_m, 1.0 / period_s, offset_m)
     }
 
     /// Runs the stepper from rest (two steps as backward-Euler halves, as the run loop

@@ -19,6 +19,8 @@ pub mod diagnostics;
 pub mod drive;
 pub mod error;
 pub mod faces;
+#[doc(hidden)]
+pub mod fixtures;
 pub mod grid;
 pub mod harmonic;
 pub mod limits;

@@ -367,7 +367,8 @@ pub struct Model {
     pub numerics: Numerics,
 }
 
-fn positive(field: &str, v: f64) -> Result<(), SolverError> {
+/// Ok when `v` is positive and finite, else the error naming `field`.
+pub(crate) fn positive(field: &str, v: f64) -> Result<(), SolverError> {
     if v.is_finite() && v > 0.0 {
         Ok(())
     } else {

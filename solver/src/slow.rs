@@ -435,60 +435,18 @@ pub fn total_skin(model: &Model, cake: Option<CakeState>) -> f64 {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::drive::{Drive, SineHead};
+    use crate::fixtures;
     use crate::model::*;
 
-    /// A patchy cake over an invaded zone (invented numbers).
+    /// A patchy cake over an invaded zone (invented numbers): the layered demo well with
+    /// an erosion law on its cake.
     fn model() -> Model {
-        Model {
-            fluid: Fluid::WATER_20C,
-            well: Well {
-                screen_radius_m: 0.1,
-                screen_length_m: 6.0,
-                open_area: 0.12,
-                casing_radius_m: 0.1,
-                linear_loss_s: 0.0,
-                discharge_coefficient: None,
-                storage_m2: 0.0,
-                column_length_m: 0.0,
-            },
-            pack: Pack {
-                outer_radius_m: 0.2,
-                medium: Medium::darcy(5e-3, 1e-5),
-            },
-            cake: Some(Cake {
-                thickness_m: 2e-3,
-                conductivity_m_s: 1e-6,
-                coverage: 0.7,
-                erosion: Some(Erosion {
-                    critical_shear_pa: 0.0,
-                    erodibility_m_s_pa: 1e-3,
-                    inward_weight: 1.0,
-                    outward_weight: 1.0,
-                    coverage_exponent: 1.0,
-                }),
-                lift_off: None,
-            }),
-            invaded: Some(Invaded {
-                thickness_m: 0.05,
-                medium: Medium::darcy(5e-5, 1e-5),
-                fines: None,
-                profile: None,
-            }),
-            formation: Formation {
-                medium: Medium::darcy(2e-4, 1e-5),
-                outer_radius_m: Some(30.0),
-                outer_boundary: OuterBoundary::FixedHead,
-            },
-            drive: Drive::SineHead(SineHead {
-                amplitude_m: 1.5,
-                frequency_hz: 0.5,
-                offset_m: 0.0,
-                ramp_cycles: 0.0,
-            }),
-            duration_s: 2.0,
-            numerics: Numerics::default(),
-        }
+        let mut m = fixtures::layered_well();
+        m.cake = m.cake.map(|c| Cake {
+            erosion: Some(fixtures::erosion(1e-3, 1.0)),
+            ..c
+        });
+        m
     }
 
     #[test]

@@ -7,59 +7,22 @@
 //! jumps must reproduce it to the error bound the method states (tolerance × scale per jump).
 
 use boreflux_solver::diagnostics::{CycleView, StepObserver, StepView};
-use boreflux_solver::drive::{Drive, SineHead};
+use boreflux_solver::drive::Drive;
+use boreflux_solver::fixtures;
 use boreflux_solver::model::*;
 use boreflux_solver::{run, Reporting};
 
-/// Invented numbers (a demo well), not from a source.
+/// Invented numbers (the demo well of the fixtures), not from a source: a cake a thousand
+/// times more conductive than the pack over the whole wall, eroding at 1e-5 m/(s Pa).
 fn model(multiscale: Multiscale) -> Model {
-    Model {
-        fluid: Fluid::WATER_20C,
-        well: Well {
-            screen_radius_m: 0.1,
-            screen_length_m: 6.0,
-            open_area: 0.12,
-            casing_radius_m: 0.1,
-            linear_loss_s: 0.0,
-            discharge_coefficient: None,
-            storage_m2: 0.0,
-            column_length_m: 0.0,
-        },
-        pack: Pack {
-            outer_radius_m: 0.2,
-            medium: Medium::darcy(5e-3, 1e-5),
-        },
-        cake: Some(Cake {
-            thickness_m: 2e-3,
-            conductivity_m_s: 5.0,
-            coverage: 1.0,
-            erosion: Some(Erosion {
-                critical_shear_pa: 0.0,
-                erodibility_m_s_pa: 1e-5,
-                inward_weight: 1.0,
-                outward_weight: 1.0,
-                coverage_exponent: 0.0,
-            }),
-            lift_off: None,
-        }),
-        invaded: None,
-        formation: Formation {
-            medium: Medium::darcy(2e-4, 1e-5),
-            outer_radius_m: Some(30.0),
-            outer_boundary: OuterBoundary::FixedHead,
-        },
-        drive: Drive::SineHead(SineHead {
-            amplitude_m: 1.5,
-            frequency_hz: 0.5,
-            offset_m: 0.0,
-            ramp_cycles: 0.0,
-        }),
-        duration_s: 800.0,
-        numerics: Numerics {
-            multiscale,
-            ..Numerics::default()
-        },
-    }
+    let mut m = fixtures::demo_well();
+    m.cake = Some(Cake {
+        erosion: Some(fixtures::erosion(1e-5, 0.0)),
+        ..fixtures::cake(2e-3, 5.0, 1.0)
+    });
+    m.duration_s = 800.0;
+    m.numerics.multiscale = multiscale;
+    m
 }
 
 /// Keeps the cake removed in each computed cycle, and the jumps.

@@ -3,37 +3,37 @@
 use boreflux_solver::devices::Swab;
 use boreflux_solver::diagnostics::NullObserver;
 use boreflux_solver::drive::{stages, Drive, Stage};
+use boreflux_solver::fixtures;
 use boreflux_solver::model::*;
 use boreflux_solver::{run, Reporting};
 
+/// A 0.084 m screen 9 m long under a 0.077 m casing in a 0.15 m pack of 2e-3 m/s and an
+/// infinite formation of 2e-4 m/s (invented demo numbers).
 fn model(drive: Drive, duration_s: f64) -> Model {
-    let m = Medium::darcy(2e-4, 1e-5);
-    Model {
-        fluid: Fluid::WATER_20C,
-        well: Well {
-            screen_radius_m: 0.084,
-            screen_length_m: 9.0,
-            open_area: 0.05,
-            casing_radius_m: 0.077,
-            linear_loss_s: 0.0,
-            discharge_coefficient: Some(0.6),
-            storage_m2: Well::free_surface_storage(0.077),
-            column_length_m: 0.0,
-        },
-        pack: Pack {
-            outer_radius_m: 0.15,
-            medium: Medium::darcy(2e-3, 1e-5),
-        },
-        cake: None,
-        invaded: None,
-        formation: Formation {
-            medium: m,
-            outer_radius_m: None,
-            outer_boundary: OuterBoundary::FixedHead,
-        },
-        drive,
-        duration_s,
-        numerics: Numerics::default(),
+    let mut m = fixtures::demo_well();
+    m.well = fixtures::cased_screen(0.084, 9.0, 0.05, 0.077);
+    m.pack = Pack {
+        outer_radius_m: 0.15,
+        medium: Medium::darcy(2e-3, 1e-5),
+    };
+    m.formation.outer_radius_m = None;
+    m.drive = drive;
+    m.duration_s = duration_s;
+    m
+}
+
+/// A cake over the whole wall that erodes by the demo erosion parameters of the shipped
+/// cases (invented): no erosion below 1e-5 Pa, 5e-4 m/(s Pa), outward flow weighted half.
+fn eroding_cake(thickness_m: f64, conductivity_m_s: f64) -> Cake {
+    Cake {
+        erosion: Some(Erosion {
+            critical_shear_pa: 1e-5,
+            erodibility_m_s_pa: 5e-4,
+            inward_weight: 1.0,
+            outward_weight: 0.5,
+            coverage_exponent: 0.0,
+        }),
+        ..fixtures::cake(thickness_m, conductivity_m_s, 1.0)
     }
 }
 
@@ -114,16 +114,7 @@ fn municipal_block(duration_s: f64) -> Model {
         net_atmospheric_head_m: 10.2,
     };
     let mut m = model(Drive::SurgeBlock(block), duration_s);
-    m.well = Well {
-        screen_radius_m: 0.203,
-        screen_length_m: 24.0,
-        open_area: 0.15,
-        casing_radius_m: 0.1905,
-        linear_loss_s: 0.0,
-        discharge_coefficient: Some(0.6),
-        storage_m2: Well::free_surface_storage(0.1905),
-        column_length_m: 0.0,
-    };
+    m.well = fixtures::cased_screen(0.203, 24.0, 0.15, 0.1905);
     m
 }
 
@@ -137,13 +128,7 @@ fn surge_block_against_a_sealing_cake_runs() {
         outer_radius_m: 0.305,
         medium: Medium::darcy(8e-3, 1e-5),
     };
-    m.cake = Some(Cake {
-        thickness_m: 3e-3,
-        conductivity_m_s: 1e-9,
-        coverage: 1.0,
-        erosion: None,
-        lift_off: None,
-    });
+    m.cake = Some(fixtures::cake(3e-3, 1e-9, 1.0));
     m.formation.medium = Medium::darcy(4e-4, 5e-5);
     let s = run(&m, &mut NullObserver, Reporting::default()).unwrap();
     assert_eq!(s.end_time_s, 30.0);
@@ -174,19 +159,7 @@ fn surge_block_stroke_reversals_converge_within_eight_newton_iterations() {
         outer_radius_m: 0.305,
         medium: medium(8e-3, 1e-5, 2.358e3),
     };
-    m.cake = Some(Cake {
-        thickness_m: 3e-3,
-        conductivity_m_s: 1e-6,
-        coverage: 1.0,
-        erosion: Some(Erosion {
-            critical_shear_pa: 1e-5,
-            erodibility_m_s_pa: 5e-4,
-            inward_weight: 1.0,
-            outward_weight: 0.5,
-            coverage_exponent: 0.0,
-        }),
-        lift_off: None,
-    });
+    m.cake = Some(eroding_cake(3e-3, 1e-6));
     m.invaded = Some(Invaded {
         thickness_m: 0.075,
         medium: medium(4e-5, 5e-5, 7.711e3),
@@ -275,13 +248,7 @@ fn slow_surge_block_against_a_sealing_cake_converges() {
             ..Medium::darcy(8e-3, 1e-5)
         },
     };
-    m.cake = Some(Cake {
-        thickness_m: 3e-3,
-        conductivity_m_s: 1e-9,
-        coverage: 1.0,
-        erosion: None,
-        lift_off: None,
-    });
+    m.cake = Some(fixtures::cake(3e-3, 1e-9, 1.0));
     m.formation.medium = Medium::darcy(4e-4, 5e-5);
     m.numerics.time = TimeSpec::StepsPerCycle(200);
     let s = run(&m, &mut NullObserver, Reporting::default()).unwrap();
@@ -312,33 +279,12 @@ fn pumped_cake_model(scheme: Scheme, dt: f64) -> Model {
         }),
         900.0,
     );
-    m.well = Well {
-        screen_radius_m: 0.162,
-        screen_length_m: 30.0,
-        open_area: 0.12,
-        casing_radius_m: 0.162,
-        linear_loss_s: 0.0,
-        discharge_coefficient: Some(0.6),
-        storage_m2: Well::free_surface_storage(0.162),
-        column_length_m: 0.0,
-    };
+    m.well = fixtures::cased_screen(0.162, 30.0, 0.12, 0.162);
     m.pack = Pack {
         outer_radius_m: 0.28,
         medium: Medium::darcy(2e-3, 1e-5),
     };
-    m.cake = Some(Cake {
-        thickness_m: 1e-3,
-        conductivity_m_s: 1e-8,
-        coverage: 1.0,
-        erosion: Some(Erosion {
-            critical_shear_pa: 1e-5,
-            erodibility_m_s_pa: 5e-4,
-            inward_weight: 1.0,
-            outward_weight: 0.5,
-            coverage_exponent: 0.0,
-        }),
-        lift_off: None,
-    });
+    m.cake = Some(eroding_cake(1e-3, 1e-8));
     m.formation.medium = Medium::darcy(1e-3, 1e-5);
     m.numerics.time = TimeSpec::Fixed(dt);
     m.numerics.scheme = scheme;

@@ -391,7 +391,9 @@ fn periodic_fit(model: &Model, radii: &[f64], period: f64) -> (Vec<(f64, f64)>, 
     (heads, sin_cos(times, &rec.screen_flow[start..], w))
 }
 
-fn sine_model(v: &serde_json::Value, period: f64, cycles: f64) -> Model {
+/// The `periodic` group's model: a homogeneous aquifer of the reference's T and S (b = 10 m)
+/// with well-face head H0 sin(2πt/P), for `cycles` periods.
+pub(crate) fn sine_model(v: &serde_json::Value, period: f64, cycles: f64) -> Model {
     let (t, s) = (num(v, "/params/T"), num(v, "/params/S"));
     let b = 10.0;
     let drive = Drive::SineHead(SineHead {

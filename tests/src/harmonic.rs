@@ -25,26 +25,15 @@
 //! 60; the ring of formation material around the screen is taken out to 1 m so both grids
 //! hold whole decades there (the aquifer is homogeneous, so this changes nothing else).
 
-use crate::models::homogeneous;
 use crate::reference::{data, load, num, nums, source};
 use crate::CheckResult;
-use boreflux_solver::drive::{Drive, SineHead};
 use boreflux_solver::harmonic::{self, Complex, PeriodicSolution};
 use boreflux_solver::model::{GridSpec, Model};
 
-/// The `periodic` group's model, homogeneous aquifer of the reference's T and S (b = 10 m)
-/// with well-face head H0 sin(2πt/P) and the automatic outer radius, at `per_decade` cells
-/// per decade of radius.
+/// The `periodic` group's model (`checks::sine_model`) for 12 periods
+/// with the automatic outer radius, at `per_decade` cells per decade of radius.
 fn sine_model(v: &serde_json::Value, period: f64, per_decade: f64) -> Model {
-    let (t, s) = (num(v, "/params/T"), num(v, "/params/S"));
-    let b = 10.0;
-    let drive = Drive::SineHead(SineHead {
-        amplitude_m: num(v, "/params/H0"),
-        frequency_hz: 1.0 / period,
-        offset_m: 0.0,
-        ramp_cycles: 0.0,
-    });
-    let mut m = homogeneous(t / b, s / b, b, num(v, "/params/rw"), drive, 12.0 * period);
+    let mut m = crate::checks::sine_model(v, period, 12.0);
     m.numerics.grid = GridSpec::PerDecade(per_decade);
     m.pack.outer_radius_m = 1.0;
     m

@@ -312,12 +312,8 @@ fn read_columns(
 ) -> Result<Series, ReadError> {
     let path = |step: Step| format!("{prefix}/{}", step.entry().name);
     let n = time.len();
-    let column = |step: Step| -> Result<Vec<f64>, ReadError> {
-        let p = path(step);
-        let v = vector(file, &p, step.entry().unit.symbol())?;
-        same_length(&format!("/{p}"), v.len(), &format!("/{time_path}"), n)?;
-        Ok(v)
-    };
+    let column =
+        |step: Step| vector_as_long_as(file, &path(step), step.entry().unit.symbol(), time_path, n);
     let mut work = Vec::new();
     for zone in Zone::ALL {
         let p = path(Step::Work(zone));
@@ -347,16 +343,14 @@ fn read_gaps(file: &File) -> Result<Vec<(f64, f64)>, ReadError> {
     if !file.link_exists(JumpSeries::GROUP) {
         return Ok(Vec::new());
     }
-    let read = |series: JumpSeries| {
-        let path = series.path();
-        vector(file, &path[1..], series.entry().unit.symbol())
-    };
-    let from = read(JumpSeries::FromTime)?;
-    let to = read(JumpSeries::ToTime)?;
-    same_length(
-        &JumpSeries::ToTime.path(),
-        to.len(),
-        &JumpSeries::FromTime.path(),
+    let (from_path, to_path) = (JumpSeries::FromTime.path(), JumpSeries::ToTime.path());
+    let unit = |series: JumpSeries| series.entry().unit.symbol();
+    let from = vector(file, &from_path[1..], unit(JumpSeries::FromTime))?;
+    let to = vector_as_long_as(
+        file,
+        &to_path[1..],
+        unit(JumpSeries::ToTime),
+        &from_path[1..],
         from.len(),
     )?;
     Ok(from.into_iter().zip(to).collect())
@@ -454,13 +448,8 @@ fn read_envelopes(file: &File) -> Result<Option<Envelopes>, ReadError> {
     }
     let start_path = format!("{ENVELOPES}/start_time");
     let start = vector(file, &start_path, "s")?;
-    let end = vector(file, &format!("{ENVELOPES}/end_time"), "s")?;
-    same_length(
-        &format!("/{ENVELOPES}/end_time"),
-        end.len(),
-        &format!("/{start_path}"),
-        start.len(),
-    )?;
+    let end_path = format!("{ENVELOPES}/end_time");
+    let end = vector_as_long_as(file, &end_path, "s", &start_path, start.len())?;
     let mid: Vec<f64> = start.iter().zip(&end).map(|(a, b)| 0.5 * (a + b)).collect();
     let stat = |st: EnvelopeStat| {
         read_columns(
@@ -481,12 +470,10 @@ fn read_cycles(file: &File) -> Result<Cycles, ReadError> {
     let index_path = format!("{}/{CYCLE_INDEX}", Group::Cycles.name());
     let index = vector(file, &index_path, "1")?;
     let n = index.len();
-    let column = |cycle: Cycle| -> Result<Vec<f64>, ReadError> {
+    let column = |cycle: Cycle| {
         let e = cycle.entry();
         let path = format!("{}/{}", Group::Cycles.name(), e.name);
-        let v = vector(file, &path, e.unit.symbol())?;
-        same_length(&format!("/{path}"), v.len(), &format!("/{index_path}"), n)?;
-        Ok(v)
+        vector_as_long_as(file, &path, e.unit.symbol(), &index_path, n)
     };
     Ok(Cycles {
         start_time: column(Cycle::StartTime)?,
@@ -507,20 +494,16 @@ fn read_progress(file: &File) -> Result<Progress, ReadError> {
     if !file.link_exists(ProgressSeries::GROUP) {
         return Ok(Progress::default());
     }
-    let read = |series: ProgressSeries| {
+    let time_path = ProgressSeries::Time.path();
+    let time = vector(
+        file,
+        &time_path[1..],
+        ProgressSeries::Time.entry().unit.symbol(),
+    )?;
+    let column = |series: ProgressSeries| {
         let path = series.path();
-        vector(file, &path[1..], series.entry().unit.symbol())
-    };
-    let time = read(ProgressSeries::Time)?;
-    let column = |series: ProgressSeries| -> Result<Vec<f64>, ReadError> {
-        let v = read(series)?;
-        same_length(
-            &series.path(),
-            v.len(),
-            &ProgressSeries::Time.path(),
-            time.len(),
-        )?;
-        Ok(v)
+        let unit = series.entry().unit.symbol();
+        vector_as_long_as(file, &path[1..], unit, &time_path[1..], time.len())
     };
     Ok(Progress {
         specific_capacity: column(ProgressSeries::SpecificCapacity)?,
@@ -609,29 +592,14 @@ fn read_summary(file: &File) -> Result<Summary, ReadError> {
                 // Text attributes the schema does not list are not shown.
                 match SummaryText::from_name(&name) {
                     Some(SummaryText::Warnings) => {
-                        summary.warnings = text
-                            .lines()
-                            .map(str::trim)
-                            .filter(|l| !l.is_empty())
-                            .map(str::to_owned)
-                            .collect();
+                        summary.warnings = lines(&text);
                     }
                     Some(SummaryText::Cautions) => summary.cautions = Some(text),
                     Some(SummaryText::Notes) => {
-                        summary.notes = text
-                            .lines()
-                            .map(str::trim)
-                            .filter(|l| !l.is_empty())
-                            .map(str::to_owned)
-                            .collect();
+                        summary.notes = lines(&text);
                     }
                     Some(SummaryText::Assumptions) => {
-                        summary.assumptions = text
-                            .lines()
-                            .map(str::trim)
-                            .filter(|l| !l.is_empty())
-                            .map(str::to_owned)
-                            .collect();
+                        summary.assumptions = lines(&text);
                     }
                     Some(SummaryText::EfficiencyDefinition) => {
                         summary.efficiency_definition = Some(text)
@@ -643,6 +611,15 @@ fn read_summary(file: &File) -> Result<Summary, ReadError> {
         }
     }
     Ok(summary)
+}
+
+/// The non-blank lines of a text attribute, trimmed.
+fn lines(text: &str) -> Vec<String> {
+    text.lines()
+        .map(str::trim)
+        .filter(|l| !l.is_empty())
+        .map(str::to_owned)
+        .collect()
 }
 
 /// Most values read from one dataset: 5e7 (400 MB of floats), beyond the largest output a
@@ -719,6 +696,20 @@ fn check_units(loc: &Location, path: &str, expected: &str) -> Result<(), ReadErr
             expected: expected.to_owned(),
         })
     }
+}
+
+/// [`vector`] at `path`, which must hold as many values as `reference` (`n`); both paths
+/// without the leading `/`.
+fn vector_as_long_as(
+    file: &File,
+    path: &str,
+    units: &str,
+    reference: &str,
+    n: usize,
+) -> Result<Vec<f64>, ReadError> {
+    let v = vector(file, path, units)?;
+    same_length(&format!("/{path}"), v.len(), &format!("/{reference}"), n)?;
+    Ok(v)
 }
 
 fn same_length(what: &str, n: usize, reference: &str, expected: usize) -> Result<(), ReadError> {

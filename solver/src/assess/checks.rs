@@ -114,6 +114,7 @@ pub fn zone_resistances(d: &Discretization) -> [f64; ZONE_COUNT] {
 mod tests {
     use super::*;
     use crate::drive::Drive;
+    use crate::fixtures;
     use crate::grid::Zone;
     use crate::model::*;
 
@@ -121,35 +122,15 @@ mod tests {
     /// a Darcy pack and formation match it to round-off.
     #[test]
     fn zone_resistances_are_the_thiem_ring_resistances() {
-        let m = Model {
-            fluid: Fluid::WATER_20C,
-            well: Well {
-                screen_radius_m: 0.1,
-                screen_length_m: 10.0,
-                open_area: 0.1,
-                casing_radius_m: 0.1,
-                linear_loss_s: 0.0,
-                discharge_coefficient: None,
-                storage_m2: 0.0,
-                column_length_m: 0.0,
-            },
-            pack: Pack {
-                outer_radius_m: 0.2,
-                medium: Medium::darcy(5e-3, 1e-5),
-            },
-            cake: None,
-            invaded: None,
-            formation: Formation {
-                medium: Medium::darcy(1e-4, 1e-5),
-                outer_radius_m: Some(200.0),
-                outer_boundary: OuterBoundary::FixedHead,
-            },
-            drive: Drive::ConstantRate {
-                pumping_rate_m3_s: 0.01,
-            },
-            duration_s: 10.0,
-            numerics: Numerics::default(),
+        let mut m = fixtures::demo_well();
+        m.well.screen_length_m = 10.0;
+        m.well.open_area = 0.1;
+        m.formation.medium = Medium::darcy(1e-4, 1e-5);
+        m.formation.outer_radius_m = Some(200.0);
+        m.drive = Drive::ConstantRate {
+            pumping_rate_m3_s: 0.01,
         };
+        m.duration_s = 10.0;
         let r = zone_resistances(&Discretization::new(&m, None));
         let ring = |a: f64, b: f64, k: f64| (b / a).ln() / (2.0 * std::f64::consts::PI * 10.0 * k);
         let rel = |a: f64, b: f64| (a - b).abs() / b;

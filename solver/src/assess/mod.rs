@@ -45,16 +45,7 @@ pub const DEFAULT_CONSTANT_DURATION_S: f64 = 86_400.0;
 impl TestPlan {
     /// Checks the plan; errors name the case-file path.
     pub fn validate(&self) -> Result<(), SolverError> {
-        let pos = |field: &str, v: f64| {
-            if v.is_finite() && v > 0.0 {
-                Ok(())
-            } else {
-                Err(SolverError::invalid(
-                    field,
-                    format!("must be a positive finite number, got {v}"),
-                ))
-            }
-        };
+        let pos = crate::model::positive;
         pos("assessment.design_rate", self.design_rate_m3_s)?;
         pos("assessment.duration", self.constant_duration_s)?;
         pos("assessment.step_duration", self.step_duration_s)?;
@@ -201,44 +192,23 @@ pub fn assess(base: &Model, end: &SlowState, plan: &TestPlan) -> Result<Assessme
 mod tests {
     use super::*;
     use crate::drive::Drive;
+    use crate::fixtures;
     use crate::model::*;
 
     /// A small well with an invaded ring of conductivity `k_invaded` (invented numbers).
     fn well(k_invaded: Option<f64>) -> Model {
-        Model {
-            fluid: Fluid::WATER_20C,
-            well: Well {
-                screen_radius_m: 0.1,
-                screen_length_m: 5.0,
-                open_area: 0.1,
-                casing_radius_m: 0.1,
-                linear_loss_s: 0.0,
-                discharge_coefficient: None,
-                storage_m2: Well::free_surface_storage(0.1),
-                column_length_m: 0.0,
-            },
-            pack: Pack {
-                outer_radius_m: 0.2,
-                medium: Medium::darcy(2e-3, 1e-5),
-            },
-            cake: None,
-            invaded: k_invaded.map(|k| Invaded {
-                thickness_m: 0.1,
-                medium: Medium::darcy(k, 1e-5),
-                fines: None,
-                profile: None,
-            }),
-            formation: Formation {
-                medium: Medium::darcy(2e-4, 1e-5),
-                outer_radius_m: None,
-                outer_boundary: OuterBoundary::FixedHead,
-            },
-            drive: Drive::ConstantRate {
-                pumping_rate_m3_s: 0.0,
-            },
-            duration_s: 1.0,
-            numerics: Numerics::default(),
-        }
+        let mut m = fixtures::demo_well();
+        m.well.screen_length_m = 5.0;
+        m.well.open_area = 0.1;
+        m.well.storage_m2 = Well::free_surface_storage(0.1);
+        m.pack.medium = Medium::darcy(2e-3, 1e-5);
+        m.invaded = k_invaded.map(|k| fixtures::invaded(0.1, k));
+        m.formation.outer_radius_m = None;
+        m.drive = Drive::ConstantRate {
+            pumping_rate_m3_s: 0.0,
+        };
+        m.duration_s = 1.0;
+        m
     }
 
     fn plan() -> TestPlan {

@@ -121,6 +121,33 @@ fn sumsq(v: &[f64]) -> f64 {
     v.iter().map(|x| x * x).sum()
 }
 
+/// Where the search stands: the accepted point, its residuals, Jacobian and cost, and the
+/// work so far. Every exit returns it whole with the reason.
+struct Search {
+    u: Vec<f64>,
+    r: Vec<f64>,
+    jac: Vec<Vec<f64>>,
+    ssr: f64,
+    iterations: usize,
+    evaluations: usize,
+    jacobians: usize,
+}
+
+impl Search {
+    fn stop(self, termination: Termination) -> LmOutcome {
+        LmOutcome {
+            u: self.u,
+            residuals: self.r,
+            jacobian: self.jac,
+            ssr: self.ssr,
+            iterations: self.iterations,
+            evaluations: self.evaluations,
+            jacobians: self.jacobians,
+            termination,
+        }
+    }
+}
+
 /// Minimises ½‖r(u)‖² from `u0` within `bounds` (fit coordinates). `residual` returns
 /// `None` where the model fails (the trial step is then rejected); `jacobian(u, r)`
 /// returns the columns of ∂r/∂u.
@@ -142,32 +169,27 @@ where
             .map(|(&x, &(lo, hi))| x.clamp(lo, hi))
             .collect()
     };
-    let mut u = clamp(u0);
-    let mut r = residual(&u).ok_or(LmError::Start)?;
+    let u = clamp(u0);
+    let r = residual(&u).ok_or(LmError::Start)?;
     let m = r.len();
     if n == 0 || m < n {
         return Err(LmError::Shape);
     }
-    let mut evaluations = 1;
-    let mut jac = jacobian(&u, &r).ok_or(LmError::Jacobian)?;
-    let mut jacobians = 1;
-    let mut ssr = sumsq(&r);
+    let jac = jacobian(&u, &r).ok_or(LmError::Jacobian)?;
+    let mut at = Search {
+        ssr: sumsq(&r),
+        u,
+        r,
+        jac,
+        iterations: 0,
+        evaluations: 1,
+        jacobians: 1,
+    };
     let mut d = vec![0.0_f64; n];
     let mut mu: f64 = 1e-3;
     let mut nu = 2.0;
-    let mut iterations = 0;
-    let done = |u: Vec<f64>, r, jac, ssr, it, ev, jc, t| LmOutcome {
-        u,
-        residuals: r,
-        jacobian: jac,
-        ssr,
-        iterations: it,
-        evaluations: ev,
-        jacobians: jc,
-        termination: t,
-    };
     loop {
-        let norms: Vec<f64> = jac.iter().map(|c| sumsq(c).sqrt()).collect();
+        let norms: Vec<f64> = at.jac.iter().map(|c| sumsq(c).sqrt()).collect();
         for (dj, nj) in d.iter_mut().zip(&norms) {
             *dj = dj.max(*nj);
         }
@@ -175,60 +197,36 @@ where
         let floor = if dmax > 0.0 { 1e-8 * dmax } else { 1.0 };
         let dd: Vec<f64> = d.iter().map(|x| x.max(floor)).collect();
         // Gradient test: the largest cosine between r and a column of J.
-        let rnorm = ssr.sqrt();
-        let cos_max = jac
+        let rnorm = at.ssr.sqrt();
+        let cos_max = at
+            .jac
             .iter()
             .zip(&norms)
             .filter(|(_, nj)| **nj > 0.0)
-            .map(|(c, nj)| (c.iter().zip(&r).map(|(a, b)| a * b).sum::<f64>() / (nj * rnorm)).abs())
+            .map(|(c, nj)| {
+                (c.iter().zip(&at.r).map(|(a, b)| a * b).sum::<f64>() / (nj * rnorm)).abs()
+            })
             .fold(0.0, f64::max);
-        if ssr == 0.0 || cos_max <= opts.gtol {
-            return Ok(done(
-                u,
-                r,
-                jac,
-                ssr,
-                iterations,
-                evaluations,
-                jacobians,
-                Termination::Gradient,
-            ));
+        if at.ssr == 0.0 || cos_max <= opts.gtol {
+            return Ok(at.stop(Termination::Gradient));
         }
         // Inner loop: find an acceptable step for this Jacobian.
         loop {
-            if evaluations >= opts.max_evaluations {
-                return Ok(done(
-                    u,
-                    r,
-                    jac,
-                    ssr,
-                    iterations,
-                    evaluations,
-                    jacobians,
-                    Termination::Evaluations,
-                ));
+            if at.evaluations >= opts.max_evaluations {
+                return Ok(at.stop(Termination::Evaluations));
             }
             if mu > 1e20 {
-                return Ok(done(
-                    u,
-                    r,
-                    jac,
-                    ssr,
-                    iterations,
-                    evaluations,
-                    jacobians,
-                    Termination::Stalled,
-                ));
+                return Ok(at.stop(Termination::Stalled));
             }
             let sq = mu.sqrt();
             let cols: Vec<Vec<f64>> = (0..n)
                 .map(|j| {
-                    let mut c = jac[j].clone();
+                    let mut c = at.jac[j].clone();
                     c.extend((0..n).map(|k| if k == j { sq * dd[j] } else { 0.0 }));
                     c
                 })
                 .collect();
-            let mut rhs: Vec<f64> = r.iter().map(|x| -x).collect();
+            let mut rhs: Vec<f64> = at.r.iter().map(|x| -x).collect();
             rhs.extend(std::iter::repeat_n(0.0, n));
             let Some(sol) = lsq::solve(&cols, &rhs) else {
                 mu *= nu;
@@ -236,73 +234,56 @@ where
                 continue;
             };
             let trial: Vec<f64> = clamp(
-                &u.iter()
+                &at.u
+                    .iter()
                     .zip(&sol.coef)
                     .map(|(a, b)| a + b)
                     .collect::<Vec<f64>>(),
             );
-            let step: Vec<f64> = trial.iter().zip(&u).map(|(a, b)| a - b).collect();
+            let step: Vec<f64> = trial.iter().zip(&at.u).map(|(a, b)| a - b).collect();
             let dstep = step
                 .iter()
                 .zip(&dd)
                 .map(|(s, w)| (s * w).powi(2))
                 .sum::<f64>()
                 .sqrt();
-            let du = u
-                .iter()
-                .zip(&dd)
-                .map(|(s, w)| (s * w).powi(2))
-                .sum::<f64>()
-                .sqrt();
+            let du =
+                at.u.iter()
+                    .zip(&dd)
+                    .map(|(s, w)| (s * w).powi(2))
+                    .sum::<f64>()
+                    .sqrt();
             if dstep <= opts.xtol * (du + opts.xtol) {
-                return Ok(done(
-                    u,
-                    r,
-                    jac,
-                    ssr,
-                    iterations,
-                    evaluations,
-                    jacobians,
-                    Termination::Step,
-                ));
+                return Ok(at.stop(Termination::Step));
             }
             let linear: Vec<f64> = (0..m)
-                .map(|i| r[i] + (0..n).map(|j| jac[j][i] * step[j]).sum::<f64>())
+                .map(|i| at.r[i] + (0..n).map(|j| at.jac[j][i] * step[j]).sum::<f64>())
                 .collect();
-            let predicted = ssr - sumsq(&linear);
+            let predicted = at.ssr - sumsq(&linear);
             let evaluated = residual(&trial);
-            evaluations += 1;
+            at.evaluations += 1;
             let (rho, new) = match evaluated {
                 Some(rn)
                     if rn.len() == m && rn.iter().all(|x| x.is_finite()) && predicted > 0.0 =>
                 {
                     let s = sumsq(&rn);
-                    ((ssr - s) / predicted, Some((rn, s)))
+                    ((at.ssr - s) / predicted, Some((rn, s)))
                 }
                 _ => (-1.0, None),
             };
             match new {
                 Some((rn, s)) if rho > 1e-4 => {
-                    let reduction = (ssr - s) / ssr;
-                    u = trial;
-                    r = rn;
-                    ssr = s;
-                    iterations += 1;
+                    let reduction = (at.ssr - s) / at.ssr;
+                    at.u = trial;
+                    at.r = rn;
+                    at.ssr = s;
+                    at.iterations += 1;
                     mu *= (1.0 - (2.0 * rho - 1.0).powi(3)).max(1.0 / 3.0);
                     nu = 2.0;
-                    jac = jacobian(&u, &r).ok_or(LmError::Jacobian)?;
-                    jacobians += 1;
+                    at.jac = jacobian(&at.u, &at.r).ok_or(LmError::Jacobian)?;
+                    at.jacobians += 1;
                     if reduction <= opts.ftol {
-                        return Ok(done(
-                            u,
-                            r,
-                            jac,
-                            ssr,
-                            iterations,
-                            evaluations,
-                            jacobians,
-                            Termination::Cost,
-                        ));
+                        return Ok(at.stop(Termination::Cost));
                     }
                     break;
                 }
