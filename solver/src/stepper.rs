@@ -201,6 +201,9 @@ pub struct Stepper {
     undo_time: Option<f64>,
     /// Factorization of the error estimate's filter.
     filter: Factored,
+    /// (dΔt, well storage and dQ/dH) bits of `filter` while the faces are linear and
+    /// unchanged (the filter's matrix is then the same); None: refactor.
+    filter_for: Option<(u64, Option<(u64, u64)>)>,
     /// `slope_start` holds the slopes at the current heads (the last TR-BDF2 step's end),
     /// computed with the well head a state (true) or not; None: to be computed.
     end_slopes: Option<bool>,
@@ -275,6 +278,7 @@ impl Stepper {
             slope_mid: vec![0.0; n],
             undo_time: None,
             filter: Factored::with_size(n),
+            filter_for: None,
             end_slopes: None,
             predict_end: false,
             time_s: 0.0,
@@ -323,6 +327,7 @@ impl Stepper {
         self.disc.rebuild_faces(model, cake);
         self.faces_linear = self.disc.is_linear();
         self.factored_for = None;
+        self.filter_for = None;
     }
 
     /// Moves the clock on by `dt_s` and the heads by `dh` (m, index 0 = well) without
@@ -863,20 +868,17 @@ impl Stepper {
             WellRow::Fixed(v) => v,
             WellRow::Storage { s_over_tdt, q, .. } => s_over_tdt * self.h[0] + q,
         };
+        // Right-hand side gain_j h_j (j ≥ 1), built within the forward sweep from row 2 on;
+        // rows 0 and 1 carry the well and the column's shift.
         self.y[0] = d0;
-        for ((y, &g), &h) in self.y[1..]
-            .iter_mut()
-            .zip(&self.gain[1..])
-            .zip(&self.h[1..])
-        {
-            *y = g * h;
-        }
+        self.y[1] = self.gain[1] * self.h[1];
         if m > 0.0 {
             let shift = c0 * m * self.column.q_old;
             self.y[0] -= shift;
             self.y[1] += shift;
         }
-        self.factored.solve(&mut self.y);
+        self.factored
+            .solve_scaled(&mut self.y, &self.gain, &self.h, 2);
         Ok(())
     }
 }

@@ -173,6 +173,23 @@ impl Factored {
 
     /// Solves in place with the kept factors: on return `rhs` holds x.
     pub fn solve(&self, rhs: &mut [f64]) {
+        self.sweep(rhs, |_, r| r);
+    }
+
+    /// Solves for the right-hand side d_i = `scale[i]` × `src[i]` for i ≥ `from` and d_i =
+    /// `x[i]` below (rows set by the caller), building it within the forward sweep (one pass
+    /// less over the vectors; the same bits as forming d and calling [`Factored::solve`]).
+    /// On return `x` holds the solution.
+    pub fn solve_scaled(&self, x: &mut [f64], scale: &[f64], src: &[f64], from: usize) {
+        let n = x.len();
+        let (scale, src) = (&scale[..n], &src[..n]);
+        self.sweep(x, |i, r| if i < from { r } else { scale[i] * src[i] });
+    }
+
+    /// Forward sweep from both ends with the right-hand side row i given by `load(i,
+    /// rhs[i])`, then the substitution.
+    #[inline(always)]
+    fn sweep(&self, rhs: &mut [f64], load: impl Fn(usize, f64) -> f64) {
         let n = rhs.len();
         assert_eq!(n, self.inv_pivot.len());
         if n == 0 {
@@ -183,14 +200,14 @@ impl Factored {
         let (mut z_top, mut z_bottom) = (0.0, 0.0);
         for k in 0..n - 1 - p {
             if k < p {
-                z_top = rhs[k] * inv_pivot[k] - near[k] * z_top;
+                z_top = load(k, rhs[k]) * inv_pivot[k] - near[k] * z_top;
                 rhs[k] = z_top;
             }
             let j = n - 1 - k;
-            z_bottom = rhs[j] * inv_pivot[j] - near[j] * z_bottom;
+            z_bottom = load(j, rhs[j]) * inv_pivot[j] - near[j] * z_bottom;
             rhs[j] = z_bottom;
         }
-        rhs[p] = rhs[p] * inv_pivot[p] - near[p] * z_top - far[p] * z_bottom;
+        rhs[p] = load(p, rhs[p]) * inv_pivot[p] - near[p] * z_top - far[p] * z_bottom;
         self.substitute(rhs);
     }
 }
@@ -309,6 +326,36 @@ mod tests {
             // The same operations in the same order: the same bits.
             assert_eq!(x, y, "n={n}");
             assert_eq!(x, z, "n={n}");
+        }
+    }
+
+    #[test]
+    fn scaled_right_hand_side_gives_the_bits_of_a_formed_one() {
+        // The fused build of d_i = scale_i src_i in the forward sweep against forming d
+        // first: the same products in the same order, so the same bits (odd and even sizes,
+        // rows below `from` set by the caller).
+        let mut seed = 0x0bad_cafe_1234_5678_u64;
+        for &(n, from) in &[(1usize, 0usize), (2, 2), (3, 1), (8, 2), (57, 2), (58, 0)] {
+            let off: Vec<f64> = (0..n).map(|_| 0.1 + rng(&mut seed)).collect();
+            let diag: Vec<f64> = (0..n).map(|_| 2.5 + rng(&mut seed)).collect();
+            let scale: Vec<f64> = (0..n).map(|_| 1e3 * rng(&mut seed)).collect();
+            let src: Vec<f64> = (0..n).map(|_| rng(&mut seed) - 0.5).collect();
+            let head: Vec<f64> = (0..n).map(|_| rng(&mut seed)).collect();
+            let mut f = Factored::with_size(n);
+            f.factor_symmetric(&diag, &off).unwrap();
+            let mut want: Vec<f64> = (0..n)
+                .map(|i| if i < from { head[i] } else { scale[i] * src[i] })
+                .collect();
+            f.solve(&mut want);
+            let mut got: Vec<f64> = (0..n)
+                .map(|i| if i < from { head[i] } else { f64::NAN })
+                .collect();
+            f.solve_scaled(&mut got, &scale, &src, from);
+            let (w, g): (Vec<u64>, Vec<u64>) = (
+                want.iter().map(|x| x.to_bits()).collect(),
+                got.iter().map(|x| x.to_bits()).collect(),
+            );
+            assert_eq!(w, g, "n={n} from={from}");
         }
     }
 
