@@ -49,6 +49,7 @@ use crate::system::Discretization;
 use crate::tridiag::Factored;
 
 mod column;
+mod kernels;
 mod newton;
 mod power;
 mod predictor;
@@ -596,41 +597,14 @@ impl Stepper {
         let inv_theta = 1.0 / theta;
         let carry = (1.0 - theta) / theta;
         self.scratch[0] = self.y[0] * inv_theta - carry * self.h[0];
-        // Four independent lanes per sum so the loop vectorises.
-        let mut acc = [[0.0f64; LANES]; 4];
-        let (out, y, h, s) = (
+        let [storage_change, mut energy_change, dh2, vol_scale] = kernels::extrapolate(
             &mut self.scratch[1..n],
             &self.y[1..n],
             &self.h[1..n],
             &self.disc.storage[1..n],
+            inv_theta,
+            carry,
         );
-        let body = |lane: usize, y: f64, h: f64, s: f64, acc: &mut [[f64; LANES]; 4]| {
-            let h_new = y * inv_theta - carry * h;
-            let sdh = s * (h_new - h);
-            acc[0][lane] += sdh;
-            acc[1][lane] += sdh * (h_new + h);
-            acc[2][lane] += sdh * (h_new - h);
-            acc[3][lane] += sdh.abs();
-            h_new
-        };
-        let (out4, y4, h4, s4) = (
-            out.chunks_exact_mut(LANES),
-            y.chunks_exact(LANES),
-            h.chunks_exact(LANES),
-            s.chunks_exact(LANES),
-        );
-        let (y1, h1, s1) = (y4.remainder(), h4.remainder(), s4.remainder());
-        let full = y.len() - y1.len();
-        for (((o, y), h), s) in out4.zip(y4).zip(h4).zip(s4) {
-            for l in 0..LANES {
-                o[l] = body(l, y[l], h[l], s[l], &mut acc);
-            }
-        }
-        for (((o, &y), &h), &s) in out[full..].iter_mut().zip(y1).zip(h1).zip(s1) {
-            *o = body(0, y, h, s, &mut acc);
-        }
-        let [storage_change, mut energy_change, dh2, vol_scale] =
-            acc.map(|a| a.iter().sum::<f64>());
         energy_change *= 0.5;
         let numerical = (theta - 0.5) * dh2;
         // The screen flow at the θ-point heads (through the column when it has inertia),

@@ -152,28 +152,41 @@ impl Factored {
         Ok(())
     }
 
-    /// Substitution outwards from the meeting row, whose x `rhs` already holds.
+    /// Substitution outwards from the meeting row, whose x `rhs` already holds: the top
+    /// rows p − 1…0 and the bottom rows p + 1…n − 1 as two chains in one loop (slices split
+    /// at the meeting row, so the loop has no bounds checks).
     #[inline(always)]
     fn substitute(&self, rhs: &mut [f64]) {
         let n = rhs.len();
         let p = meeting_row(n);
         let far = &self.far[..n];
-        let (mut x_up, mut x_down) = (rhs[p], rhs[p]);
-        for k in 1..=n - 1 - p {
-            if k <= p {
-                let i = p - k;
-                x_up = rhs[i] - far[i] * x_up;
-                rhs[i] = x_up;
-            }
-            let j = p + k;
-            x_down = rhs[j] - far[j] * x_down;
-            rhs[j] = x_down;
+        let (top, rest) = rhs.split_at_mut(p);
+        let (mid, bottom) = rest.split_at_mut(1);
+        let (far_top, far_bottom) = (&far[..p], &far[p + 1..]);
+        let (mut x_up, mut x_down) = (mid[0], mid[0]);
+        let up = top.iter_mut().rev().zip(far_top.iter().rev());
+        let down = bottom.iter_mut().zip(far_bottom);
+        for ((xu, &fu), (xd, &fd)) in up.zip(down) {
+            x_up = *xu - fu * x_up;
+            *xu = x_up;
+            x_down = *xd - fd * x_down;
+            *xd = x_down;
+        }
+        // The bottom half has one row more when n is even.
+        if bottom.len() > p {
+            bottom[p] -= far_bottom[p] * x_down;
         }
     }
 
     /// Solves in place with the kept factors: on return `rhs` holds x.
     pub fn solve(&self, rhs: &mut [f64]) {
-        self.sweep(rhs, |_, r| r);
+        let n = rhs.len();
+        assert_eq!(n, self.inv_pivot.len());
+        if n == 0 {
+            return;
+        }
+        self.forward(rhs, None, 0);
+        self.substitute(rhs);
     }
 
     /// Solves for the right-hand side d_i = `scale[i]` × `src[i]` for i ≥ `from` and d_i =
@@ -182,33 +195,97 @@ impl Factored {
     /// On return `x` holds the solution.
     pub fn solve_scaled(&self, x: &mut [f64], scale: &[f64], src: &[f64], from: usize) {
         let n = x.len();
-        let (scale, src) = (&scale[..n], &src[..n]);
-        self.sweep(x, |i, r| if i < from { r } else { scale[i] * src[i] });
-    }
-
-    /// Forward sweep from both ends with the right-hand side row i given by `load(i,
-    /// rhs[i])`, then the substitution.
-    #[inline(always)]
-    fn sweep(&self, rhs: &mut [f64], load: impl Fn(usize, f64) -> f64) {
-        let n = rhs.len();
         assert_eq!(n, self.inv_pivot.len());
+        let (scale, src) = (&scale[..n], &src[..n]);
         if n == 0 {
             return;
         }
-        let (inv_pivot, near, far) = (&self.inv_pivot[..n], &self.near[..n], &self.far[..n]);
-        let p = meeting_row(n);
-        let (mut z_top, mut z_bottom) = (0.0, 0.0);
-        for k in 0..n - 1 - p {
-            if k < p {
-                z_top = load(k, rhs[k]) * inv_pivot[k] - near[k] * z_top;
-                rhs[k] = z_top;
+        if from > meeting_row(n) {
+            // A system so small that the given rows reach the bottom half: formed first.
+            for ((x, &a), &b) in x[from.min(n)..]
+                .iter_mut()
+                .zip(&scale[from.min(n)..])
+                .zip(&src[from.min(n)..])
+            {
+                *x = a * b;
             }
-            let j = n - 1 - k;
-            z_bottom = load(j, rhs[j]) * inv_pivot[j] - near[j] * z_bottom;
-            rhs[j] = z_bottom;
+            return self.solve(x);
         }
-        rhs[p] = load(p, rhs[p]) * inv_pivot[p] - near[p] * z_top - far[p] * z_bottom;
-        self.substitute(rhs);
+        self.forward(x, Some((scale, src)), from);
+        self.substitute(x);
+    }
+
+    /// Forward sweep from both ends (rows 0…p − 1 and n − 1…p + 1, two chains in one loop)
+    /// and the meeting row: on return `rhs` holds z, and x_p at the meeting row. Row i of
+    /// the right-hand side is `scale[i] src[i]` for i ≥ `from` when `scaled` is given
+    /// (`from` ≤ p), `rhs[i]` otherwise.
+    #[inline(always)]
+    fn forward(&self, rhs: &mut [f64], scaled: Option<(&[f64], &[f64])>, from: usize) {
+        let n = rhs.len();
+        let p = meeting_row(n);
+        let from = if scaled.is_some() { from } else { 0 };
+        assert!(from <= p);
+        let (inv, near, far) = (&self.inv_pivot[..n], &self.near[..n], &self.far[..n]);
+        let (top, rest) = rhs.split_at_mut(p);
+        let (mid, bottom) = rest.split_at_mut(1);
+        let (mut z_top, mut z_bottom) = (0.0, 0.0);
+        // Top rows below `from`: the caller's values, on the top chain alone.
+        for ((r, &iv), &nr) in top[..from].iter_mut().zip(&inv[..from]).zip(&near[..from]) {
+            z_top = *r * iv - nr * z_top;
+            *r = z_top;
+        }
+        let (top, inv_t, near_t) = (&mut top[from..], &inv[from..p], &near[from..p]);
+        let (inv_b, near_b) = (&inv[p + 1..], &near[p + 1..]);
+        // The bottom chain's rows the top one has no partner for (one more when n is even,
+        // and `from` more), alone first, from row n − 1 up.
+        let extra = bottom.len() - top.len();
+        let split = bottom.len() - extra;
+        let (bottom, bottom_extra) = bottom.split_at_mut(split);
+        let (inv_bx, near_bx) = (&inv_b[split..], &near_b[split..]);
+        let (inv_b, near_b) = (&inv_b[..split], &near_b[..split]);
+        match scaled {
+            None => {
+                for ((r, &iv), &nr) in bottom_extra.iter_mut().zip(inv_bx).zip(near_bx).rev() {
+                    z_bottom = *r * iv - nr * z_bottom;
+                    *r = z_bottom;
+                }
+                let t = top.iter_mut().zip(inv_t).zip(near_t);
+                let b = bottom.iter_mut().zip(inv_b).zip(near_b).rev();
+                for (((rt, &it), &nt), ((rb, &ib), &nb)) in t.zip(b) {
+                    z_top = *rt * it - nt * z_top;
+                    *rt = z_top;
+                    z_bottom = *rb * ib - nb * z_bottom;
+                    *rb = z_bottom;
+                }
+                mid[0] = mid[0] * inv[p] - near[p] * z_top - far[p] * z_bottom;
+            }
+            Some((scale, src)) => {
+                let (sc_b, sr_b) = (&scale[p + 1..], &src[p + 1..]);
+                let (sc_bx, sr_bx) = (&sc_b[split..], &sr_b[split..]);
+                let (sc_b, sr_b) = (&sc_b[..split], &sr_b[..split]);
+                let (sc_t, sr_t) = (&scale[from..p], &src[from..p]);
+                let bx = bottom_extra.iter_mut().zip(inv_bx).zip(near_bx);
+                for (((r, &iv), &nr), (&a, &c)) in bx.zip(sc_bx.iter().zip(sr_bx)).rev() {
+                    z_bottom = a * c * iv - nr * z_bottom;
+                    *r = z_bottom;
+                }
+                let t = top
+                    .iter_mut()
+                    .zip(inv_t)
+                    .zip(near_t)
+                    .zip(sc_t.iter().zip(sr_t));
+                let b = (bottom.iter_mut().zip(inv_b).zip(near_b))
+                    .zip(sc_b.iter().zip(sr_b))
+                    .rev();
+                for ((((rt, &it), &nt), (&at, &ct)), (((rb, &ib), &nb), (&ab, &cb))) in t.zip(b) {
+                    z_top = at * ct * it - nt * z_top;
+                    *rt = z_top;
+                    z_bottom = ab * cb * ib - nb * z_bottom;
+                    *rb = z_bottom;
+                }
+                mid[0] = scale[p] * src[p] * inv[p] - near[p] * z_top - far[p] * z_bottom;
+            }
+        }
     }
 }
 

@@ -98,6 +98,7 @@ fn slopes(
     h: &[f64],
     column: Option<f64>,
     out: &mut [f64],
+    faces_linear: bool,
 ) {
     let n = h.len();
     let last = n - 1;
@@ -106,6 +107,18 @@ fn slopes(
         Some(sw) => (model.drive.device_flow(t, h[0], vapour).total() - q_in) / sw,
         None => 0.0,
     };
+    if faces_linear && n >= 2 {
+        // Q = c Δh on every face: one vectorised pass (`stepper/kernels.rs`), same bits.
+        super::kernels::linear_slopes(
+            h,
+            &disc.conductance,
+            &disc.storage,
+            q_in,
+            disc.outer_open,
+            out,
+        );
+        return;
+    }
     for j in 1..n {
         let q_out = if j < last {
             disc.faces[j].flow(h[j] - h[j + 1]).0
@@ -155,6 +168,7 @@ impl Stepper {
                 &self.h,
                 col_state(self),
                 &mut self.slope_start,
+                self.faces_linear,
             );
         }
         self.end_slopes = None;
@@ -180,6 +194,7 @@ impl Stepper {
             &self.h,
             col_state(self),
             &mut self.slope_mid,
+            self.faces_linear,
         );
         let col_slope_mid = self.column_slope(&self.h, q_u, mass_1);
         let mut du2 = 0.0;
@@ -420,7 +435,7 @@ impl Stepper {
             *x = d * s * inv_tdt;
         }
         self.filter.solve(&mut self.scratch);
-        if self.scratch.iter().all(|x| x.is_finite()) {
+        if super::kernels::all_finite(&self.scratch) {
             self.delta.copy_from_slice(&self.scratch);
         }
     }
@@ -451,6 +466,7 @@ impl Stepper {
             &self.h,
             col(self),
             &mut self.slope_mid,
+            self.faces_linear,
         );
         let (q0, mass0) = (self.screen_flow(), super::column_inertance(model, t0));
         let fq0 = self.column_slope(&self.h, q0, mass0);
@@ -464,6 +480,7 @@ impl Stepper {
             &self.h,
             col(self),
             &mut self.slope_start,
+            self.faces_linear,
         );
         self.end_slopes = None;
         let first = if well_before && well_storage(model, &self.disc, t1).is_some() {

@@ -1,0 +1,333 @@
+//! The stage's loops over all cells that run at every step of a linear model, each written
+//! once as a portable kernel and compiled a second time with AVX enabled, chosen at run
+//! time (as `crate::faces::flows` and `stepper/residual.rs` are). The kernels keep their
+//! sums in [`LANES`] independent lanes combined in a fixed order and use no fused
+//! multiply-add, so the AVX build does the same correctly rounded operations in the same
+//! order on each lane: the same bits on every processor.
+
+use super::LANES;
+
+/// Runs `$kernel(args…)` compiled with AVX when the processor has it, else the portable
+/// build. `$avx` is the name of the AVX wrapper defined by [`avx_twin`].
+macro_rules! dispatch {
+    ($kernel:ident, $avx:ident, $($arg:expr),*) => {{
+        #[cfg(target_arch = "x86_64")]
+        if std::arch::is_x86_feature_detected!("avx") {
+            // SAFETY: the processor has just been found to support AVX.
+            return unsafe { $avx($($arg),*) };
+        }
+        $kernel($($arg),*)
+    }};
+}
+
+/// Defines `$avx`, the AVX build of the `#[inline(always)]` kernel `$kernel`.
+macro_rules! avx_twin {
+    ($avx:ident, $kernel:ident, ($($arg:ident: $ty:ty),*) -> $ret:ty) => {
+        /// The kernel of the same name compiled with AVX enabled.
+        ///
+        /// # Safety
+        /// The processor must support AVX.
+        #[cfg(target_arch = "x86_64")]
+        #[target_feature(enable = "avx")]
+        unsafe fn $avx($($arg: $ty),*) -> $ret {
+            $kernel($($arg),*)
+        }
+    };
+}
+
+/// The end of a θ-stage from its θ-point heads, h_new = y/θ − (1−θ)/θ h, written to `out`,
+/// with the sums of the stage's balance: [Σ S Δh, Σ S Δh (h_new + h), Σ S Δh², Σ |S Δh|]
+/// (Δh = h_new − h). All slices have one length.
+pub(super) fn extrapolate(
+    out: &mut [f64],
+    y: &[f64],
+    h: &[f64],
+    s: &[f64],
+    inv_theta: f64,
+    carry: f64,
+) -> [f64; 4] {
+    dispatch!(
+        extrapolate_kernel,
+        extrapolate_avx,
+        out,
+        y,
+        h,
+        s,
+        inv_theta,
+        carry
+    )
+}
+
+avx_twin!(extrapolate_avx, extrapolate_kernel,
+    (out: &mut [f64], y: &[f64], h: &[f64], s: &[f64], inv_theta: f64, carry: f64) -> [f64; 4]);
+
+#[inline(always)]
+fn extrapolate_kernel(
+    out: &mut [f64],
+    y: &[f64],
+    h: &[f64],
+    s: &[f64],
+    inv_theta: f64,
+    carry: f64,
+) -> [f64; 4] {
+    let m = out.len();
+    assert!(y.len() == m && h.len() == m && s.len() == m);
+    let mut acc = [[0.0f64; LANES]; 4];
+    let body = |lane: usize, y: f64, h: f64, s: f64, acc: &mut [[f64; LANES]; 4]| {
+        let h_new = y * inv_theta - carry * h;
+        let sdh = s * (h_new - h);
+        acc[0][lane] += sdh;
+        acc[1][lane] += sdh * (h_new + h);
+        acc[2][lane] += sdh * (h_new - h);
+        acc[3][lane] += sdh.abs();
+        h_new
+    };
+    let (out4, y4, h4, s4) = (
+        out.chunks_exact_mut(LANES),
+        y.chunks_exact(LANES),
+        h.chunks_exact(LANES),
+        s.chunks_exact(LANES),
+    );
+    let (y1, h1, s1) = (y4.remainder(), h4.remainder(), s4.remainder());
+    let full = m - y1.len();
+    for (((o, y), h), s) in out4.zip(y4).zip(h4).zip(s4) {
+        for l in 0..LANES {
+            o[l] = body(l, y[l], h[l], s[l], &mut acc);
+        }
+    }
+    for (((o, &y), &h), &s) in out[full..].iter_mut().zip(y1).zip(h1).zip(s1) {
+        *o = body(0, y, h, s, &mut acc);
+    }
+    acc.map(|a| a.iter().sum::<f64>())
+}
+
+/// Σ_f c_f (a_f − b_f)², the power of a run of linear faces of conductances `c` between
+/// heads `a` (inner) and `b` (outer), plus `extra` (a last face's power, added to the
+/// first lane before the lanes are summed), m⁴/s. All slices have one length.
+pub(super) fn linear_power(c: &[f64], a: &[f64], b: &[f64], extra: Option<f64>) -> f64 {
+    dispatch!(linear_power_kernel, linear_power_avx, c, a, b, extra)
+}
+
+avx_twin!(linear_power_avx, linear_power_kernel,
+    (c: &[f64], a: &[f64], b: &[f64], extra: Option<f64>) -> f64);
+
+#[inline(always)]
+fn linear_power_kernel(c: &[f64], a: &[f64], b: &[f64], extra: Option<f64>) -> f64 {
+    let m = c.len();
+    assert!(a.len() == m && b.len() == m);
+    let mut lanes = [0.0f64; LANES];
+    let (cc, c0, c1) = (
+        c.chunks_exact(LANES),
+        a.chunks_exact(LANES),
+        b.chunks_exact(LANES),
+    );
+    for ((&c, &a), &b) in cc
+        .remainder()
+        .iter()
+        .zip(c0.remainder())
+        .zip(c1.remainder())
+    {
+        lanes[0] += c * (a - b) * (a - b);
+    }
+    for ((c, a), b) in cc.zip(c0).zip(c1) {
+        for l in 0..LANES {
+            lanes[l] += c[l] * (a[l] - b[l]) * (a[l] - b[l]);
+        }
+    }
+    if let Some(e) = extra {
+        lanes[0] += e;
+    }
+    lanes.iter().sum::<f64>()
+}
+
+/// Slopes dh/dt of cells with linear faces: for j ≥ 1, `out[j]` = (Q_{j−1} − Q_j)/S_j with
+/// Q_f = c_f (h_f − h_{f+1}) (the outer face c_{n−1} h_{n−1} when `outer_open`, else no
+/// flow), 0 where S_j = 0; `out[0]` is left alone. The inflow of cell 1 is `q_in` (the
+/// screen face's or the column's flow). `h`, `s`, `out` have length n, `c` at least n.
+pub(super) fn linear_slopes(
+    h: &[f64],
+    c: &[f64],
+    s: &[f64],
+    q_in: f64,
+    outer_open: bool,
+    out: &mut [f64],
+) {
+    dispatch!(
+        linear_slopes_kernel,
+        linear_slopes_avx,
+        h,
+        c,
+        s,
+        q_in,
+        outer_open,
+        out
+    )
+}
+
+avx_twin!(linear_slopes_avx, linear_slopes_kernel,
+    (h: &[f64], c: &[f64], s: &[f64], q_in: f64, outer_open: bool, out: &mut [f64]) -> ());
+
+#[inline(always)]
+fn linear_slopes_kernel(
+    h: &[f64],
+    c: &[f64],
+    s: &[f64],
+    q_in: f64,
+    outer_open: bool,
+    out: &mut [f64],
+) {
+    let n = h.len();
+    assert!(n >= 2 && s.len() == n && out.len() == n && c.len() >= n);
+    let last = n - 1;
+    let slope = |q_in: f64, q_out: f64, s: f64| if s > 0.0 { (q_in - q_out) / s } else { 0.0 };
+    // Cell 1 takes the given inflow; cells 2..last the flow of the face before them.
+    let q = |f: usize| c[f] * (h[f] - h[f + 1]);
+    let q_last = if outer_open { c[last] * h[last] } else { 0.0 };
+    if last == 1 {
+        out[1] = slope(q_in, q_last, s[1]);
+        return;
+    }
+    out[1] = slope(q_in, q(1), s[1]);
+    let (cells, hl, hm, hr, cl, cr, sm) = (
+        &mut out[2..last],
+        &h[1..last - 1],
+        &h[2..last],
+        &h[3..=last],
+        &c[1..last - 1],
+        &c[2..last],
+        &s[2..last],
+    );
+    for ((((((o, &a), &b), &d), &g0), &g1), &s) in cells
+        .iter_mut()
+        .zip(hl)
+        .zip(hm)
+        .zip(hr)
+        .zip(cl)
+        .zip(cr)
+        .zip(sm)
+    {
+        *o = slope(g0 * (a - b), g1 * (b - d), s);
+    }
+    out[last] = slope(q(last - 1), q_last, s[last]);
+}
+
+/// True when every entry is finite: x − x is 0 for a finite x and NaN otherwise, and a sum
+/// of zeros stays 0 in any order (a branch-free test that vectorises).
+pub(super) fn all_finite(v: &[f64]) -> bool {
+    v.iter().fold(0.0, |a, &x| a + (x - x)) == 0.0
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// Seeded values over many decades, both signs.
+    fn values(seed: &mut u64, m: usize, scale: f64) -> Vec<f64> {
+        (0..m)
+            .map(|_| {
+                *seed ^= *seed << 13;
+                *seed ^= *seed >> 7;
+                *seed ^= *seed << 17;
+                let u = (*seed >> 11) as f64 / (1u64 << 53) as f64;
+                let v = (*seed >> 3 & 0xffff) as f64 / 65536.0;
+                (u - 0.5) * scale * 10f64.powf(6.0 * v - 3.0)
+            })
+            .collect()
+    }
+
+    #[test]
+    fn every_build_gives_the_portable_bits() {
+        // The run-time chosen build against the portable kernel on lengths that leave every
+        // remainder. On a processor without AVX both are the portable loop.
+        let mut seed = 0x51_7cc1_b727_220a_u64;
+        for m in [2usize, 3, 5, 8, 299, 300] {
+            let (y, h) = (values(&mut seed, m, 1.0), values(&mut seed, m, 1.0));
+            let mut s: Vec<f64> = values(&mut seed, m, 1e-3).iter().map(|x| x.abs()).collect();
+            s[m / 2] = 0.0;
+            let c: Vec<f64> = values(&mut seed, m, 1e-2).iter().map(|x| x.abs()).collect();
+            let (mut o1, mut o2) = (vec![0.0; m], vec![0.0; m]);
+            let a = extrapolate(&mut o1, &y, &h, &s, 2.0, 1.0);
+            let b = extrapolate_kernel(&mut o2, &y, &h, &s, 2.0, 1.0);
+            assert_eq!(a.map(f64::to_bits), b.map(f64::to_bits), "m = {m}");
+            assert_eq!(o1, o2);
+            for extra in [None, Some(3e-4)] {
+                let (p1, p2) = (
+                    linear_power(&c, &y, &h, extra),
+                    linear_power_kernel(&c, &y, &h, extra),
+                );
+                assert_eq!(p1.to_bits(), p2.to_bits());
+            }
+            for open in [false, true] {
+                let (mut f1, mut f2) = (vec![0.0; m], vec![0.0; m]);
+                linear_slopes(&y, &c, &s, 1e-3, open, &mut f1);
+                linear_slopes_kernel(&y, &c, &s, 1e-3, open, &mut f2);
+                assert_eq!(f1, f2);
+            }
+        }
+    }
+
+    #[test]
+    fn kernels_match_their_definitions() {
+        // Against the formulas written row by row (sums to round-off of their terms).
+        let mut seed = 0x2545_f491_4f6c_dd1d_u64;
+        let m = 37;
+        let (y, h) = (values(&mut seed, m, 1.0), values(&mut seed, m, 1.0));
+        let c: Vec<f64> = values(&mut seed, m, 1e-2).iter().map(|x| x.abs()).collect();
+        let mut s: Vec<f64> = values(&mut seed, m, 1e-3).iter().map(|x| x.abs()).collect();
+        s[5] = 0.0;
+        let (theta, mut out) = (0.5, vec![0.0; m]);
+        let sums = extrapolate(&mut out, &y, &h, &s, 1.0 / theta, (1.0 - theta) / theta);
+        let mut want = [0.0; 4];
+        let mut size = [0.0; 4];
+        for j in 0..m {
+            let hn = y[j] / theta - (1.0 - theta) / theta * h[j];
+            assert!((out[j] - hn).abs() <= 4.0 * f64::EPSILON * (hn.abs() + h[j].abs()));
+            let sdh = s[j] * (hn - h[j]);
+            for (k, t) in [sdh, sdh * (hn + h[j]), sdh * (hn - h[j]), sdh.abs()]
+                .into_iter()
+                .enumerate()
+            {
+                want[k] += t;
+                size[k] += t.abs();
+            }
+        }
+        for k in 0..4 {
+            assert!((sums[k] - want[k]).abs() <= 1e-13 * size[k], "sum {k}");
+        }
+        let p: f64 = (0..m).map(|f| c[f] * (y[f] - h[f]).powi(2)).sum();
+        assert!((linear_power(&c, &y, &h, None) - p).abs() <= 1e-13 * p);
+        assert!((linear_power(&c, &y, &h, Some(0.5 * p)) - 1.5 * p).abs() <= 1e-13 * p);
+        // Slopes: the storage balance of each cell, an open and a closed outer face.
+        for open in [false, true] {
+            let mut f = vec![7.0; m];
+            linear_slopes(&y, &c, &s, 2e-3, open, &mut f);
+            assert_eq!(f[0], 7.0);
+            for j in 1..m {
+                let q_in = if j == 1 {
+                    2e-3
+                } else {
+                    c[j - 1] * (y[j - 1] - y[j])
+                };
+                let q_out = if j + 1 < m {
+                    c[j] * (y[j] - y[j + 1])
+                } else if open {
+                    c[j] * y[j]
+                } else {
+                    0.0
+                };
+                let want = if s[j] > 0.0 {
+                    (q_in - q_out) / s[j]
+                } else {
+                    0.0
+                };
+                assert_eq!(f[j], want, "j = {j}, open {open}");
+            }
+        }
+        assert!(all_finite(&y));
+        for bad in [f64::NAN, f64::INFINITY, f64::NEG_INFINITY] {
+            let mut v = y.clone();
+            v[11] = bad;
+            assert!(!all_finite(&v));
+        }
+    }
+}
