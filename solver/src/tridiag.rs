@@ -164,13 +164,15 @@ impl Factored {
         let (mid, bottom) = rest.split_at_mut(1);
         let (far_top, far_bottom) = (&far[..p], &far[p + 1..]);
         let (mut x_up, mut x_down) = (mid[0], mid[0]);
-        let up = top.iter_mut().rev().zip(far_top.iter().rev());
-        let down = bottom.iter_mut().zip(far_bottom);
-        for ((xu, &fu), (xd, &fd)) in up.zip(down) {
-            x_up = *xu - fu * x_up;
-            *xu = x_up;
-            x_down = *xd - fd * x_down;
-            *xd = x_down;
+        // Equal lengths stated once, so the indexing below needs no checks.
+        let m = top.len();
+        let (far_top, xd, fd) = (&far_top[..m], &mut bottom[..m], &far_bottom[..m]);
+        for k in 0..m {
+            let i = m - 1 - k;
+            x_up = top[i] - far_top[i] * x_up;
+            top[i] = x_up;
+            x_down = xd[k] - fd[k] * x_down;
+            xd[k] = x_down;
         }
         // The bottom half has one row more when n is even.
         if bottom.len() > p {
@@ -249,13 +251,15 @@ impl Factored {
                     z_bottom = *r * iv - nr * z_bottom;
                     *r = z_bottom;
                 }
-                let t = top.iter_mut().zip(inv_t).zip(near_t);
-                let b = bottom.iter_mut().zip(inv_b).zip(near_b).rev();
-                for (((rt, &it), &nt), ((rb, &ib), &nb)) in t.zip(b) {
-                    z_top = *rt * it - nt * z_top;
-                    *rt = z_top;
-                    z_bottom = *rb * ib - nb * z_bottom;
-                    *rb = z_bottom;
+                let m = top.len();
+                let (it, nt) = (&inv_t[..m], &near_t[..m]);
+                let (rb, ib, nb) = (&mut bottom[..m], &inv_b[..m], &near_b[..m]);
+                for k in 0..m {
+                    let j = m - 1 - k;
+                    z_top = top[k] * it[k] - nt[k] * z_top;
+                    top[k] = z_top;
+                    z_bottom = rb[j] * ib[j] - nb[j] * z_bottom;
+                    rb[j] = z_bottom;
                 }
                 mid[0] = mid[0] * inv[p] - near[p] * z_top - far[p] * z_bottom;
             }
@@ -269,19 +273,16 @@ impl Factored {
                     z_bottom = a * c * iv - nr * z_bottom;
                     *r = z_bottom;
                 }
-                let t = top
-                    .iter_mut()
-                    .zip(inv_t)
-                    .zip(near_t)
-                    .zip(sc_t.iter().zip(sr_t));
-                let b = (bottom.iter_mut().zip(inv_b).zip(near_b))
-                    .zip(sc_b.iter().zip(sr_b))
-                    .rev();
-                for ((((rt, &it), &nt), (&at, &ct)), (((rb, &ib), &nb), (&ab, &cb))) in t.zip(b) {
-                    z_top = at * ct * it - nt * z_top;
-                    *rt = z_top;
-                    z_bottom = ab * cb * ib - nb * z_bottom;
-                    *rb = z_bottom;
+                let m = top.len();
+                let (it, nt, at, ct) = (&inv_t[..m], &near_t[..m], &sc_t[..m], &sr_t[..m]);
+                let (rb, ib, nb) = (&mut bottom[..m], &inv_b[..m], &near_b[..m]);
+                let (ab, cb) = (&sc_b[..m], &sr_b[..m]);
+                for k in 0..m {
+                    let j = m - 1 - k;
+                    z_top = at[k] * ct[k] * it[k] - nt[k] * z_top;
+                    top[k] = z_top;
+                    z_bottom = ab[j] * cb[j] * ib[j] - nb[j] * z_bottom;
+                    rb[j] = z_bottom;
                 }
                 mid[0] = scale[p] * src[p] * inv[p] - near[p] * z_top - far[p] * z_bottom;
             }

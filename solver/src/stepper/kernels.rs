@@ -58,8 +58,67 @@ pub(super) fn extrapolate(
     )
 }
 
-avx_twin!(extrapolate_avx, extrapolate_kernel,
-    (out: &mut [f64], y: &[f64], h: &[f64], s: &[f64], inv_theta: f64, carry: f64) -> [f64; 4]);
+/// [`extrapolate_kernel`] in AVX instructions: each of the four lanes of a vector does
+/// the scalar kernel's lane's operations in the same order.
+///
+/// # Safety
+/// The processor must support AVX.
+#[cfg(target_arch = "x86_64")]
+#[target_feature(enable = "avx")]
+unsafe fn extrapolate_avx(
+    out: &mut [f64],
+    y: &[f64],
+    h: &[f64],
+    s: &[f64],
+    inv_theta: f64,
+    carry: f64,
+) -> [f64; 4] {
+    use std::arch::x86_64::*;
+    let m = out.len();
+    assert!(y.len() == m && h.len() == m && s.len() == m);
+    let full = m / LANES * LANES;
+    let (inv, car, sign) = (
+        _mm256_set1_pd(inv_theta),
+        _mm256_set1_pd(carry),
+        _mm256_set1_pd(-0.0),
+    );
+    let mut acc = [_mm256_setzero_pd(); 4];
+    for k in (0..full).step_by(LANES) {
+        // SAFETY: k + 4 ≤ m, the length of every slice (asserted above).
+        unsafe {
+            let yk = _mm256_loadu_pd(y.as_ptr().add(k));
+            let hk = _mm256_loadu_pd(h.as_ptr().add(k));
+            let sk = _mm256_loadu_pd(s.as_ptr().add(k));
+            let hn = _mm256_sub_pd(_mm256_mul_pd(yk, inv), _mm256_mul_pd(car, hk));
+            let sdh = _mm256_mul_pd(sk, _mm256_sub_pd(hn, hk));
+            acc[0] = _mm256_add_pd(acc[0], sdh);
+            acc[1] = _mm256_add_pd(acc[1], _mm256_mul_pd(sdh, _mm256_add_pd(hn, hk)));
+            acc[2] = _mm256_add_pd(acc[2], _mm256_mul_pd(sdh, _mm256_sub_pd(hn, hk)));
+            acc[3] = _mm256_add_pd(acc[3], _mm256_andnot_pd(sign, sdh));
+            _mm256_storeu_pd(out.as_mut_ptr().add(k), hn);
+        }
+    }
+    let mut lanes = [[0.0f64; LANES]; 4];
+    for (l, a) in lanes.iter_mut().zip(acc) {
+        // SAFETY: a 4-lane store into a 4-element array.
+        unsafe { _mm256_storeu_pd(l.as_mut_ptr(), a) };
+    }
+    for (((o, &y), &h), &s) in out[full..]
+        .iter_mut()
+        .zip(&y[full..])
+        .zip(&h[full..])
+        .zip(&s[full..])
+    {
+        let h_new = y * inv_theta - carry * h;
+        let sdh = s * (h_new - h);
+        lanes[0][0] += sdh;
+        lanes[1][0] += sdh * (h_new + h);
+        lanes[2][0] += sdh * (h_new - h);
+        lanes[3][0] += sdh.abs();
+        *o = h_new;
+    }
+    lanes.map(|a| a.iter().sum::<f64>())
+}
 
 #[inline(always)]
 fn extrapolate_kernel(
@@ -108,8 +167,42 @@ pub(super) fn linear_power(c: &[f64], a: &[f64], b: &[f64], extra: Option<f64>) 
     dispatch!(linear_power_kernel, linear_power_avx, c, a, b, extra)
 }
 
-avx_twin!(linear_power_avx, linear_power_kernel,
-    (c: &[f64], a: &[f64], b: &[f64], extra: Option<f64>) -> f64);
+/// [`linear_power_kernel`] in AVX instructions, lane by lane the same operations.
+///
+/// # Safety
+/// The processor must support AVX.
+#[cfg(target_arch = "x86_64")]
+#[target_feature(enable = "avx")]
+unsafe fn linear_power_avx(c: &[f64], a: &[f64], b: &[f64], extra: Option<f64>) -> f64 {
+    use std::arch::x86_64::*;
+    let m = c.len();
+    assert!(a.len() == m && b.len() == m);
+    let full = m / LANES * LANES;
+    // The remainder first, into lane 0, as the portable kernel does.
+    let mut lanes = [0.0f64; LANES];
+    for ((&c, &a), &b) in c[full..].iter().zip(&a[full..]).zip(&b[full..]) {
+        lanes[0] += c * (a - b) * (a - b);
+    }
+    // SAFETY: a 4-lane load from a 4-element array.
+    let mut acc = unsafe { _mm256_loadu_pd(lanes.as_ptr()) };
+    for k in (0..full).step_by(LANES) {
+        // SAFETY: k + 4 ≤ m, the length of every slice (asserted above).
+        unsafe {
+            let ck = _mm256_loadu_pd(c.as_ptr().add(k));
+            let d = _mm256_sub_pd(
+                _mm256_loadu_pd(a.as_ptr().add(k)),
+                _mm256_loadu_pd(b.as_ptr().add(k)),
+            );
+            acc = _mm256_add_pd(acc, _mm256_mul_pd(_mm256_mul_pd(ck, d), d));
+        }
+    }
+    // SAFETY: a 4-lane store into a 4-element array.
+    unsafe { _mm256_storeu_pd(lanes.as_mut_ptr(), acc) };
+    if let Some(e) = extra {
+        lanes[0] += e;
+    }
+    lanes.iter().sum::<f64>()
+}
 
 #[inline(always)]
 fn linear_power_kernel(c: &[f64], a: &[f64], b: &[f64], extra: Option<f64>) -> f64 {
