@@ -198,9 +198,13 @@ impl Stepper {
         );
         let col_slope_mid = self.column_slope(&self.h, q_u, mass_1);
         let mut du2 = 0.0;
-        for j in 1..n {
-            let d = self.h[j] - self.h_start[j];
-            du2 += self.disc.storage[j] * d * d;
+        for ((&u, &v), &s) in self.h[1..n]
+            .iter()
+            .zip(&self.h_start[1..n])
+            .zip(&self.disc.storage[1..n])
+        {
+            let d = u - v;
+            du2 += s * d * d;
         }
         for (h, &v) in self.h.iter_mut().zip(&self.h_start) {
             *h = A * *h - B * v;
@@ -243,40 +247,51 @@ impl Stepper {
         let well = well_storage(model, &self.disc, t_end);
         let first = if well.is_some() { 0 } else { 1 };
         self.delta[0] = 0.0;
-        for j in 0..n {
-            if j < first {
-                // The well head is not a state: no slope to carry.
-                self.slope_start[j] = 0.0;
-                continue;
-            }
-            // est = k (fⁿ/γ − fⁿ⁺ᵞ/(γ(1−γ)) + fⁿ⁺¹/(1−γ)), fⁿ⁺¹ = (w − h̃)/tdt; the
-            // divisions folded into constants (this loop runs on every step). fⁿ⁺¹ is kept
-            // as the next step's starting slope.
-            let f1 = (w[j] - ht[j]) * inv_tdt;
-            self.delta[j] = c0 * self.slope_start[j] - c1 * self.slope_mid[j] + c2 * f1;
-            self.slope_start[j] = f1;
-            if j == 0 {
-                continue;
-            }
-            let sdh = s[j] * (w[j] - v[j]);
+        // est = k (fⁿ/γ − fⁿ⁺ᵞ/(γ(1−γ)) + fⁿ⁺¹/(1−γ)), fⁿ⁺¹ = (w − h̃)/tdt; the divisions
+        // folded into constants (this loop runs on every step). fⁿ⁺¹ is kept as the next
+        // step's starting slope. Entry 0 is the well head's when it is a state, otherwise it
+        // has no slope to carry. Slices of one length: no bounds checks, and the estimate's
+        // loop vectorises apart from the balance's sums.
+        let f1_well = (w[0] - ht[0]) * inv_tdt;
+        if first == 0 {
+            self.delta[0] = c0 * self.slope_start[0] - c1 * self.slope_mid[0] + c2 * f1_well;
+            self.slope_start[0] = f1_well;
+        } else {
+            self.slope_start[0] = 0.0;
+        }
+        let m = n - 1;
+        let (wc, htc, vc, sc) = (&w[1..n], &ht[1..n], &v[1..n], &s[1..n]);
+        let (dc, f0c, fmc) = (
+            &mut self.delta[1..n],
+            &mut self.slope_start[1..n],
+            &self.slope_mid[1..n],
+        );
+        let (htc, vc, sc, f0c, fmc) = (&htc[..m], &vc[..m], &sc[..m], &mut f0c[..m], &fmc[..m]);
+        for j in 0..m {
+            let f1 = (wc[j] - htc[j]) * inv_tdt;
+            dc[j] = c0 * f0c[j] - c1 * fmc[j] + c2 * f1;
+            f0c[j] = f1;
+        }
+        for ((&w, &v), &s) in wc.iter().zip(vc).zip(sc) {
+            let sdh = s * (w - v);
             storage += sdh;
             vscale += sdh.abs();
-            energy += 0.5 * sdh * (w[j] + v[j]);
+            energy += 0.5 * sdh * (w + v);
         }
         let device_slope =
             well.map(|_| model.drive.device_flow(t_end, w[0], self.vapour).d_dh_m2_s);
         self.filter_estimate(tdt, well.zip(device_slope));
-        let (w, v) = (&self.h, &self.h_start);
-        for j in first..n {
+        let (w, v) = (&self.h[first..n], &self.h_start[first..n]);
+        for (j, ((&d, &w), &v)) in self.delta[first..n].iter().zip(w).zip(v).enumerate() {
             let (e, den) = (
-                self.delta[j].abs(),
-                tol.absolute_m + tol.relative * w[j].abs().max(v[j].abs()),
+                d.abs(),
+                tol.absolute_m + tol.relative * w.abs().max(v.abs()),
             );
             // A NaN estimate must not pass as small; divide only for a new worst.
             if e.is_nan() || e > worst.value * den {
                 worst = ErrorNorm {
                     value: e / den,
-                    index: j,
+                    index: first + j,
                 };
             }
         }
