@@ -314,18 +314,30 @@ impl Stepper {
         &self.y
     }
 
-    /// Rebuilds the face laws after the slow state changed (cake and invaded zone).
+    /// Updates the face laws after the slow state changed (cake and invaded zone): only the
+    /// faces whose inputs changed are recomputed, and the kept factorizations are dropped
+    /// only if a face law changed. The next step's starting slopes are taken from the face
+    /// laws again in either case (as after every change of the slow state).
     pub fn set_slow(&mut self, model: &Model, slow: &crate::slow::SlowState) {
-        if let Some((first, k)) = slow.invaded_conductivity() {
-            self.disc.set_conductivity(first, k);
+        if self
+            .disc
+            .update_slow(model, slow.cake(), slow.invaded_conductivity())
+        {
+            self.faces_changed();
+        } else {
+            self.end_slopes = None;
         }
-        self.set_cake(model, slow.cake());
     }
 
     /// Rebuilds the face laws after the cake changed.
     pub fn set_cake(&mut self, model: &Model, cake: Option<CakeState>) {
-        self.end_slopes = None;
         self.disc.rebuild_faces(model, cake);
+        self.faces_changed();
+    }
+
+    /// Drops what was built from the old face laws.
+    fn faces_changed(&mut self) {
+        self.end_slopes = None;
         self.faces_linear = self.disc.is_linear();
         self.factored_for = None;
         self.filter_for = None;
