@@ -355,7 +355,10 @@ mod tests {
         let mut inc = Discretization::new(&m, cake(2e-3));
         let invaded = inc.grid.borehole_face..inc.grid.invaded_face;
         assert!(invaded.len() >= 3, "the test needs several invaded cells");
-        let mut k: Vec<f64> = invaded.clone().map(|c| inc.media[c].conductivity_m_s).collect();
+        let mut k: Vec<f64> = invaded
+            .clone()
+            .map(|c| inc.media[c].conductivity_m_s)
+            .collect();
         // Nothing new: nothing changes.
         assert!(!inc.update_slow(&m, cake(2e-3), Some((invaded.start, &k))));
         // The cake thinner, then gone (its face loses a segment and becomes a pure one),

@@ -304,6 +304,53 @@ fn linear_slopes_kernel(
     out[last] = slope(q(last - 1), q_last, s[last]);
 }
 
+/// The error norm's scan: over j, with e = |`est[j]`| and den = `atol` + `rtol` max(|`w[j]`|,
+/// |`v[j]`|), the worst value starts at 0 and becomes e/den at every j where e is NaN or
+/// e > worst × den; returns (worst, its j, or `usize::MAX` if none). Exactly the row-by-row scan: rows
+/// are screened [`LANES`] at a time against the worst so far, and a group with any candidate
+/// is scanned row by row. A row that fails the screen cannot update later in its group
+/// either (the worst only grows, and worst × den with it).
+pub(super) fn error_scan(est: &[f64], w: &[f64], v: &[f64], atol: f64, rtol: f64) -> (f64, usize) {
+    dispatch!(error_scan_kernel, error_scan_avx, est, w, v, atol, rtol)
+}
+
+avx_twin!(error_scan_avx, error_scan_kernel,
+    (est: &[f64], w: &[f64], v: &[f64], atol: f64, rtol: f64) -> (f64, usize));
+
+#[inline(always)]
+fn error_scan_kernel(est: &[f64], w: &[f64], v: &[f64], atol: f64, rtol: f64) -> (f64, usize) {
+    let m = est.len();
+    assert!(w.len() == m && v.len() == m);
+    let (mut worst, mut index) = (0.0f64, usize::MAX);
+    let mut row = |j: usize, worst: &mut f64, index: &mut usize| {
+        let (e, den) = (est[j].abs(), atol + rtol * w[j].abs().max(v[j].abs()));
+        // A NaN estimate must not pass as small; divide only for a new worst.
+        if e.is_nan() || e > *worst * den {
+            *worst = e / den;
+            *index = j;
+        }
+    };
+    let full = m / LANES * LANES;
+    for k in (0..full).step_by(LANES) {
+        let (e4, w4, v4) = (&est[k..k + LANES], &w[k..k + LANES], &v[k..k + LANES]);
+        let mut pass = true;
+        for l in 0..LANES {
+            let den = atol + rtol * w4[l].abs().max(v4[l].abs());
+            // False for a NaN estimate.
+            pass &= e4[l].abs() <= worst * den;
+        }
+        if !pass {
+            for j in k..k + LANES {
+                row(j, &mut worst, &mut index);
+            }
+        }
+    }
+    for j in full..m {
+        row(j, &mut worst, &mut index);
+    }
+    (worst, index)
+}
+
 /// True when every entry is finite: x − x is 0 for a finite x and NaN otherwise, and a sum
 /// of zeros stays 0 in any order (a branch-free test that vectorises).
 pub(super) fn all_finite(v: &[f64]) -> bool {
@@ -355,6 +402,44 @@ mod tests {
                 linear_slopes(&y, &c, &s, 1e-3, open, &mut f1);
                 linear_slopes_kernel(&y, &c, &s, 1e-3, open, &mut f2);
                 assert_eq!(f1, f2);
+            }
+        }
+    }
+
+    #[test]
+    fn error_scan_is_the_row_by_row_scan() {
+        // The screened scan against the plain one on estimates over many decades, with a
+        // NaN, an infinity, ties and zeros, every remainder length; value bits and index.
+        let mut seed = 0x6a09_e667_f3bc_c908_u64;
+        for m in [0usize, 1, 3, 4, 7, 64, 299, 300] {
+            for case in 0..6 {
+                let mut est = values(&mut seed, m, 1e-3);
+                let (w, v) = (values(&mut seed, m, 1.0), values(&mut seed, m, 1.0));
+                if m > 2 {
+                    match case {
+                        1 => est[m / 2] = f64::NAN,
+                        2 => est[m - 1] = f64::INFINITY,
+                        3 => est.iter_mut().for_each(|e| *e = 1e-6),
+                        4 => est.iter_mut().for_each(|e| *e = 0.0),
+                        _ => {}
+                    }
+                }
+                let (mut worst, mut index) = (0.0f64, usize::MAX);
+                for j in 0..m {
+                    let (e, den) = (est[j].abs(), 1e-5 + 1e-4 * w[j].abs().max(v[j].abs()));
+                    if e.is_nan() || e > worst * den {
+                        worst = e / den;
+                        index = j;
+                    }
+                }
+                let (a, i) = error_scan(&est, &w, &v, 1e-5, 1e-4);
+                assert_eq!(
+                    (a.to_bits(), i),
+                    (worst.to_bits(), index),
+                    "m {m} case {case}"
+                );
+                let (b, k) = error_scan_kernel(&est, &w, &v, 1e-5, 1e-4);
+                assert_eq!((b.to_bits(), k), (worst.to_bits(), index));
             }
         }
     }

@@ -281,19 +281,19 @@ impl Stepper {
         let device_slope =
             well.map(|_| model.drive.device_flow(t_end, w[0], self.vapour).d_dh_m2_s);
         self.filter_estimate(tdt, well.zip(device_slope));
-        let (w, v) = (&self.h[first..n], &self.h_start[first..n]);
-        for (j, ((&d, &w), &v)) in self.delta[first..n].iter().zip(w).zip(v).enumerate() {
-            let (e, den) = (
-                d.abs(),
-                tol.absolute_m + tol.relative * w.abs().max(v.abs()),
-            );
-            // A NaN estimate must not pass as small; divide only for a new worst.
-            if e.is_nan() || e > worst.value * den {
-                worst = ErrorNorm {
-                    value: e / den,
-                    index: first + j,
-                };
-            }
+        // Largest |est_j| / (atol + rtol max(|v_j|, |w_j|)) (`stepper/kernels.rs`).
+        let (value, j) = super::kernels::error_scan(
+            &self.delta[first..n],
+            &self.h[first..n],
+            &self.h_start[first..n],
+            tol.absolute_m,
+            tol.relative,
+        );
+        if j != usize::MAX {
+            worst = ErrorNorm {
+                value,
+                index: first + j,
+            };
         }
         // The column's flow: its local error, like the heads' (its stage-2 slope is
         // (Q_w − Q̃)/(dΔt)), filtered by its own stiffness 1 + dΔt R'(Q)/M (the heads held),
