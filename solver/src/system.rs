@@ -44,6 +44,8 @@ pub struct Discretization {
     pub mixed_faces: Vec<usize>,
     /// The cake state the faces were built with.
     built_cake: Option<CakeState>,
+    /// Whether every face law is linear (kept with the faces).
+    all_linear: bool,
 }
 
 fn medium_of(model: &Model, zone: Zone) -> Medium {
@@ -94,6 +96,7 @@ impl Discretization {
             pure_runs: Vec::new(),
             mixed_faces: Vec::new(),
             built_cake: None,
+            all_linear: false,
         };
         d.rebuild_faces(model, cake);
         d
@@ -124,6 +127,7 @@ impl Discretization {
         self.conductance
             .extend(self.faces.iter().map(Face::conductance));
         self.classify_faces();
+        self.all_linear = self.faces.iter().all(Face::is_linear);
     }
 
     /// The slow state's new values applied face by face: the conductivities `k` of the
@@ -186,6 +190,9 @@ impl Discretization {
         }
         if restructured {
             self.classify_faces();
+        }
+        if changed {
+            self.all_linear = self.faces.iter().all(Face::is_linear);
         }
         changed
     }
@@ -270,7 +277,7 @@ impl Discretization {
 
     /// True when every face law is linear.
     pub fn is_linear(&self) -> bool {
-        self.faces.iter().all(Face::is_linear)
+        self.all_linear
     }
 }
 
@@ -341,6 +348,7 @@ mod tests {
             && bits(&a.conductance) == bits(&b.conductance)
             && a.pure_runs == b.pure_runs
             && a.mixed_faces == b.mixed_faces
+            && a.is_linear() == b.is_linear()
     }
 
     #[test]

@@ -322,7 +322,7 @@ fn error_scan_kernel(est: &[f64], w: &[f64], v: &[f64], atol: f64, rtol: f64) ->
     let m = est.len();
     assert!(w.len() == m && v.len() == m);
     let (mut worst, mut index) = (0.0f64, usize::MAX);
-    let mut row = |j: usize, worst: &mut f64, index: &mut usize| {
+    let row = |j: usize, worst: &mut f64, index: &mut usize| {
         let (e, den) = (est[j].abs(), atol + rtol * w[j].abs().max(v[j].abs()));
         // A NaN estimate must not pass as small; divide only for a new worst.
         if e.is_nan() || e > *worst * den {
@@ -351,10 +351,10 @@ fn error_scan_kernel(est: &[f64], w: &[f64], v: &[f64], atol: f64, rtol: f64) ->
     (worst, index)
 }
 
-/// True when every entry is finite: x − x is 0 for a finite x and NaN otherwise, and a sum
+/// True when every entry is finite: 0 × x is ±0 for a finite x and NaN otherwise, and a sum
 /// of zeros stays 0 in any order (a branch-free test that vectorises).
 pub(super) fn all_finite(v: &[f64]) -> bool {
-    v.iter().fold(0.0, |a, &x| a + (x - x)) == 0.0
+    v.iter().fold(0.0, |a, &x| a + 0.0 * x) == 0.0
 }
 
 #[cfg(test)]

@@ -98,7 +98,6 @@ fn slopes(
     h: &[f64],
     column: Option<f64>,
     out: &mut [f64],
-    faces_linear: bool,
 ) {
     let n = h.len();
     let last = n - 1;
@@ -107,7 +106,7 @@ fn slopes(
         Some(sw) => (model.drive.device_flow(t, h[0], vapour).total() - q_in) / sw,
         None => 0.0,
     };
-    if faces_linear && n >= 2 {
+    if disc.is_linear() && n >= 2 {
         // Q = c Δh on every face: one vectorised pass (`stepper/kernels.rs`), same bits.
         super::kernels::linear_slopes(
             h,
@@ -168,7 +167,6 @@ impl Stepper {
                 &self.h,
                 col_state(self),
                 &mut self.slope_start,
-                self.faces_linear,
             );
         }
         self.end_slopes = None;
@@ -194,7 +192,6 @@ impl Stepper {
             &self.h,
             col_state(self),
             &mut self.slope_mid,
-            self.faces_linear,
         );
         let col_slope_mid = self.column_slope(&self.h, q_u, mass_1);
         let mut du2 = 0.0;
@@ -481,7 +478,6 @@ impl Stepper {
             &self.h,
             col(self),
             &mut self.slope_mid,
-            self.faces_linear,
         );
         let (q0, mass0) = (self.screen_flow(), super::column_inertance(model, t0));
         let fq0 = self.column_slope(&self.h, q0, mass0);
@@ -495,7 +491,6 @@ impl Stepper {
             &self.h,
             col(self),
             &mut self.slope_start,
-            self.faces_linear,
         );
         self.end_slopes = None;
         let first = if well_before && well_storage(model, &self.disc, t1).is_some() {
