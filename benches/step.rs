@@ -1,7 +1,10 @@
 //! Throughput of the time step: cell-steps per second for a linear (Darcy) Crank–Nicolson
 //! step on 300 cells, the same step with Forchheimer and screen entrance losses (Newton),
 //! the TR-BDF2 step (two stages and the error estimate) of both, and whole runs of both with
-//! diagnostics under the default scheme (TR-BDF2, adaptive) and under the θ-scheme.
+//! diagnostics under the default scheme (TR-BDF2, adaptive) and under the θ-scheme; and one
+//! solve with kept tridiagonal factors of the same size (301 unknowns), the floor of a linear
+//! stage: a Crank–Nicolson step makes one such solve, a TR-BDF2 step three (two stages and the
+//! error filter).
 //!
 //! Run with `cargo bench -p boreflux-solver --bench step`. Throughput is reported by
 //! criterion in elements (cell-steps) per second.
@@ -10,6 +13,7 @@ use boreflux_solver::diagnostics::NullObserver;
 use boreflux_solver::model::{Scheme, DEFAULT_ABSOLUTE_TOLERANCE_M, DEFAULT_RELATIVE_TOLERANCE};
 use boreflux_solver::run::{run, Reporting};
 use boreflux_solver::stepper::{Stepper, Tolerances};
+use boreflux_solver::tridiag::Factored;
 use criterion::{black_box, criterion_group, criterion_main, Criterion, Throughput};
 
 use boreflux_solver::fixtures::bench_well as model;
@@ -49,6 +53,22 @@ fn bench_steps(c: &mut Criterion) {
             b.iter(|| st.step_trbdf2(black_box(&m), 0.01, tol).unwrap())
         });
     }
+    // One solve with kept factors: a diagonally dominant symmetric matrix of 301 rows (the
+    // linear model's size; the values do not change the operation count).
+    let n = 301;
+    let off: Vec<f64> = (0..n).map(|i| 1.0 + (i % 7) as f64 * 0.1).collect();
+    let diag: Vec<f64> = (0..n).map(|i| 2.5 + (i % 5) as f64 * 0.2).collect();
+    let mut f = Factored::with_size(n);
+    f.factor_symmetric(&diag, &off).unwrap();
+    let rhs: Vec<f64> = (0..n).map(|i| (i as f64 * 0.37).sin()).collect();
+    let mut x = rhs.clone();
+    group.throughput(Throughput::Elements(n as u64 - 1));
+    group.bench_function("tridiagonal_solve_kept_factors", |b| {
+        b.iter(|| {
+            x.copy_from_slice(&rhs);
+            f.solve(black_box(&mut x));
+        })
+    });
     group.finish();
 
     let mut group = c.benchmark_group("run_10_cycles_300_cells");

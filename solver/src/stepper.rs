@@ -49,6 +49,7 @@ use crate::system::Discretization;
 use crate::tridiag::Factored;
 
 mod column;
+mod kernels;
 mod newton;
 mod power;
 mod predictor;
@@ -201,6 +202,9 @@ pub struct Stepper {
     undo_time: Option<f64>,
     /// Factorization of the error estimate's filter.
     filter: Factored,
+    /// (dΔt, well storage and dQ/dH) bits of `filter` while the faces are linear and
+    /// unchanged (the filter's matrix is then the same); None: refactor.
+    filter_for: Option<(u64, Option<(u64, u64)>)>,
     /// `slope_start` holds the slopes at the current heads (the last TR-BDF2 step's end),
     /// computed with the well head a state (true) or not; None: to be computed.
     end_slopes: Option<bool>,
@@ -275,6 +279,7 @@ impl Stepper {
             slope_mid: vec![0.0; n],
             undo_time: None,
             filter: Factored::with_size(n),
+            filter_for: None,
             end_slopes: None,
             predict_end: false,
             time_s: 0.0,
@@ -309,20 +314,33 @@ impl Stepper {
         &self.y
     }
 
-    /// Rebuilds the face laws after the slow state changed (cake and invaded zone).
+    /// Updates the face laws after the slow state changed (cake and invaded zone): only the
+    /// faces whose inputs changed are recomputed, and the kept factorizations are dropped
+    /// only if a face law changed. The next step's starting slopes are taken from the face
+    /// laws again in either case (as after every change of the slow state).
     pub fn set_slow(&mut self, model: &Model, slow: &crate::slow::SlowState) {
-        if let Some((first, k)) = slow.invaded_conductivity() {
-            self.disc.set_conductivity(first, k);
+        if self
+            .disc
+            .update_slow(model, slow.cake(), slow.invaded_conductivity())
+        {
+            self.faces_changed();
+        } else {
+            self.end_slopes = None;
         }
-        self.set_cake(model, slow.cake());
     }
 
     /// Rebuilds the face laws after the cake changed.
     pub fn set_cake(&mut self, model: &Model, cake: Option<CakeState>) {
-        self.end_slopes = None;
         self.disc.rebuild_faces(model, cake);
+        self.faces_changed();
+    }
+
+    /// Drops what was built from the old face laws.
+    fn faces_changed(&mut self) {
+        self.end_slopes = None;
         self.faces_linear = self.disc.is_linear();
         self.factored_for = None;
+        self.filter_for = None;
     }
 
     /// Moves the clock on by `dt_s` and the heads by `dh` (m, index 0 = well) without
@@ -591,41 +609,14 @@ impl Stepper {
         let inv_theta = 1.0 / theta;
         let carry = (1.0 - theta) / theta;
         self.scratch[0] = self.y[0] * inv_theta - carry * self.h[0];
-        // Four independent lanes per sum so the loop vectorises.
-        let mut acc = [[0.0f64; LANES]; 4];
-        let (out, y, h, s) = (
+        let [storage_change, mut energy_change, dh2, vol_scale] = kernels::extrapolate(
             &mut self.scratch[1..n],
             &self.y[1..n],
             &self.h[1..n],
             &self.disc.storage[1..n],
+            inv_theta,
+            carry,
         );
-        let body = |lane: usize, y: f64, h: f64, s: f64, acc: &mut [[f64; LANES]; 4]| {
-            let h_new = y * inv_theta - carry * h;
-            let sdh = s * (h_new - h);
-            acc[0][lane] += sdh;
-            acc[1][lane] += sdh * (h_new + h);
-            acc[2][lane] += sdh * (h_new - h);
-            acc[3][lane] += sdh.abs();
-            h_new
-        };
-        let (out4, y4, h4, s4) = (
-            out.chunks_exact_mut(LANES),
-            y.chunks_exact(LANES),
-            h.chunks_exact(LANES),
-            s.chunks_exact(LANES),
-        );
-        let (y1, h1, s1) = (y4.remainder(), h4.remainder(), s4.remainder());
-        let full = y.len() - y1.len();
-        for (((o, y), h), s) in out4.zip(y4).zip(h4).zip(s4) {
-            for l in 0..LANES {
-                o[l] = body(l, y[l], h[l], s[l], &mut acc);
-            }
-        }
-        for (((o, &y), &h), &s) in out[full..].iter_mut().zip(y1).zip(h1).zip(s1) {
-            *o = body(0, y, h, s, &mut acc);
-        }
-        let [storage_change, mut energy_change, dh2, vol_scale] =
-            acc.map(|a| a.iter().sum::<f64>());
         energy_change *= 0.5;
         let numerical = (theta - 0.5) * dh2;
         // The screen flow at the θ-point heads (through the column when it has inertia),
@@ -863,20 +854,17 @@ impl Stepper {
             WellRow::Fixed(v) => v,
             WellRow::Storage { s_over_tdt, q, .. } => s_over_tdt * self.h[0] + q,
         };
+        // Right-hand side gain_j h_j (j ≥ 1), built within the forward sweep from row 2 on;
+        // rows 0 and 1 carry the well and the column's shift.
         self.y[0] = d0;
-        for ((y, &g), &h) in self.y[1..]
-            .iter_mut()
-            .zip(&self.gain[1..])
-            .zip(&self.h[1..])
-        {
-            *y = g * h;
-        }
+        self.y[1] = self.gain[1] * self.h[1];
         if m > 0.0 {
             let shift = c0 * m * self.column.q_old;
             self.y[0] -= shift;
             self.y[1] += shift;
         }
-        self.factored.solve(&mut self.y);
+        self.factored
+            .solve_scaled(&mut self.y, &self.gain, &self.h, 2);
         Ok(())
     }
 }

@@ -42,6 +42,10 @@ pub struct Discretization {
     pub pure_runs: Vec<(std::ops::Range<usize>, Zone)>,
     /// Faces whose segments lie in more than one zone.
     pub mixed_faces: Vec<usize>,
+    /// The cake state the faces were built with.
+    built_cake: Option<CakeState>,
+    /// Whether every face law is linear (kept with the faces).
+    all_linear: bool,
 }
 
 fn medium_of(model: &Model, zone: Zone) -> Medium {
@@ -91,6 +95,8 @@ impl Discretization {
             r_nl: Vec::with_capacity(n + 1),
             pure_runs: Vec::new(),
             mixed_faces: Vec::new(),
+            built_cake: None,
+            all_linear: false,
         };
         d.rebuild_faces(model, cake);
         d
@@ -106,12 +112,95 @@ impl Discretization {
 
     /// Recomputes the face laws (after the cake changed). Allocates nothing once built.
     pub fn rebuild_faces(&mut self, model: &Model, cake: Option<CakeState>) {
-        let Discretization {
-            grid: g,
-            media,
-            faces,
-            ..
-        } = self;
+        let n = self.grid.cells();
+        self.faces.clear();
+        for j in 0..=n {
+            let face = self.face(model, cake, j);
+            self.faces.push(face);
+        }
+        self.built_cake = cake;
+        self.r_lin.clear();
+        self.r_lin.extend(self.faces.iter().map(Face::r_lin));
+        self.r_nl.clear();
+        self.r_nl.extend(self.faces.iter().map(Face::r_nl));
+        self.conductance.clear();
+        self.conductance
+            .extend(self.faces.iter().map(Face::conductance));
+        self.classify_faces();
+        self.all_linear = self.faces.iter().all(Face::is_linear);
+    }
+
+    /// The slow state's new values applied face by face: the conductivities `k` of the
+    /// cells `first..first + k.len()` (the invaded zone as the fines leave) and the cake's
+    /// state. Only the faces of cells whose conductivity changed, and the cake's face when
+    /// the cake changed, are recomputed (by the code of [`Discretization::rebuild_faces`],
+    /// so with its bits). Returns whether any face law changed; when none did, what was
+    /// built from the faces (factorizations, slopes) still holds. Allocates nothing.
+    pub fn update_slow(
+        &mut self,
+        model: &Model,
+        cake: Option<CakeState>,
+        invaded: Option<(usize, &[f64])>,
+    ) -> bool {
+        // Cells whose conductivity changed: lo..hi.
+        let (mut lo, mut hi) = (usize::MAX, 0);
+        if let Some((first, k)) = invaded {
+            for (c, (m, &ki)) in self.media[first..first + k.len()]
+                .iter_mut()
+                .zip(k)
+                .enumerate()
+            {
+                if m.conductivity_m_s.to_bits() != ki.to_bits() {
+                    m.conductivity_m_s = ki;
+                    lo = lo.min(first + c);
+                    hi = hi.max(first + c + 1);
+                }
+            }
+        }
+        let mut changed = false;
+        let mut restructured = false;
+        let mut redo = |d: &mut Discretization, j: usize| {
+            let face = d.face(model, cake, j);
+            if face != d.faces[j] {
+                restructured |= face.segments().len() != d.faces[j].segments().len()
+                    || face
+                        .segments()
+                        .iter()
+                        .zip(d.faces[j].segments())
+                        .any(|(a, b)| a.zone != b.zone);
+                d.faces[j] = face;
+                d.r_lin[j] = face.r_lin();
+                d.r_nl[j] = face.r_nl();
+                d.conductance[j] = face.conductance();
+                changed = true;
+            }
+        };
+        // Cell c lies between faces c and c + 1.
+        if lo < hi {
+            for j in lo..=hi {
+                redo(self, j);
+            }
+        }
+        if cake != self.built_cake {
+            let j = self.grid.borehole_face;
+            if !(lo..=hi).contains(&j) || lo >= hi {
+                redo(self, j);
+            }
+            self.built_cake = cake;
+        }
+        if restructured {
+            self.classify_faces();
+        }
+        if changed {
+            self.all_linear = self.faces.iter().all(Face::is_linear);
+        }
+        changed
+    }
+
+    /// The law of face j (0: the screen and the first half cell; N: the last half cell to the
+    /// outer radius) for the media as they stand and the cake in state `cake`.
+    fn face(&self, model: &Model, cake: Option<CakeState>, j: usize) -> Face {
+        let (g, media) = (&self.grid, &self.media);
         let n = g.cells();
         let b = model.well.screen_length_m;
         let half = |c: usize, r1: f64, r2: f64| {
@@ -125,47 +214,38 @@ impl Discretization {
                 m.forchheimer_beta_s2_m2,
             )
         };
-        faces.clear();
-        // Face 0: screen, then the inner half of the first pack cell.
-        let w = &model.well;
-        let rs = w.screen_radius_m;
-        let r_nl_screen = w.discharge_coefficient.map_or(0.0, |cd| {
-            let a = 2.0 * PI * rs * w.screen_length_m * w.open_area * cd;
-            1.0 / (2.0 * GRAVITY_M_S2 * a * a)
-        });
-        let screen = Segment {
-            zone: Zone::Screen,
-            r_lin: w.linear_loss_s / (2.0 * PI * rs * b),
-            r_nl: r_nl_screen,
-        };
-        faces.push(Face::new(&[screen, half(0, rs, g.r_center[0])]));
-        for j in 1..n {
-            let rf = g.r_face[j];
-            let left = half(j - 1, g.r_center[j - 1], rf);
-            let right = half(j, rf, g.r_center[j]);
-            let face = match (cake, &model.cake) {
-                (Some(st), Some(c)) if j == g.borehole_face && st.thickness_m > 0.0 => {
-                    let seg = Segment {
-                        zone: Zone::Cake,
-                        r_lin: crate::cake::interface_resistance(model, c, st),
-                        r_nl: 0.0,
-                    };
-                    Face::new(&[left, seg, right])
-                }
-                _ => Face::new(&[left, right]),
+        if j == 0 {
+            // Face 0: screen, then the inner half of the first pack cell.
+            let w = &model.well;
+            let rs = w.screen_radius_m;
+            let r_nl_screen = w.discharge_coefficient.map_or(0.0, |cd| {
+                let a = 2.0 * PI * rs * w.screen_length_m * w.open_area * cd;
+                1.0 / (2.0 * GRAVITY_M_S2 * a * a)
+            });
+            let screen = Segment {
+                zone: Zone::Screen,
+                r_lin: w.linear_loss_s / (2.0 * PI * rs * b),
+                r_nl: r_nl_screen,
             };
-            faces.push(face);
+            return Face::new(&[screen, half(0, rs, g.r_center[0])]);
         }
-        let outer = half(n - 1, g.r_center[n - 1], g.outer_radius_m());
-        faces.push(Face::new(&[outer]));
-        self.r_lin.clear();
-        self.r_lin.extend(self.faces.iter().map(Face::r_lin));
-        self.r_nl.clear();
-        self.r_nl.extend(self.faces.iter().map(Face::r_nl));
-        self.conductance.clear();
-        self.conductance
-            .extend(self.faces.iter().map(Face::conductance));
-        self.classify_faces();
+        if j == n {
+            return Face::new(&[half(n - 1, g.r_center[n - 1], g.outer_radius_m())]);
+        }
+        let rf = g.r_face[j];
+        let left = half(j - 1, g.r_center[j - 1], rf);
+        let right = half(j, rf, g.r_center[j]);
+        match (cake, &model.cake) {
+            (Some(st), Some(c)) if j == g.borehole_face && st.thickness_m > 0.0 => {
+                let seg = Segment {
+                    zone: Zone::Cake,
+                    r_lin: crate::cake::interface_resistance(model, c, st),
+                    r_nl: 0.0,
+                };
+                Face::new(&[left, seg, right])
+            }
+            _ => Face::new(&[left, right]),
+        }
     }
 
     fn classify_faces(&mut self) {
@@ -197,6 +277,110 @@ impl Discretization {
 
     /// True when every face law is linear.
     pub fn is_linear(&self) -> bool {
-        self.faces.iter().all(Face::is_linear)
+        self.all_linear
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::drive::{Drive, SineHead};
+    use crate::model::*;
+
+    /// A pack, a cake, an invaded zone with Forchheimer terms and the formation; invented
+    /// numbers.
+    fn model() -> Model {
+        let medium = |k: f64, beta: f64| Medium {
+            forchheimer_beta_s2_m2: beta,
+            ..Medium::darcy(k, 1e-5)
+        };
+        Model {
+            fluid: Fluid::WATER_20C,
+            well: Well {
+                screen_radius_m: 0.1,
+                screen_length_m: 6.0,
+                open_area: 0.12,
+                casing_radius_m: 0.1,
+                linear_loss_s: 0.0,
+                discharge_coefficient: Some(0.6),
+                storage_m2: 0.0,
+                column_length_m: 0.0,
+            },
+            pack: Pack {
+                outer_radius_m: 0.2,
+                medium: medium(5e-3, 1.35e3),
+            },
+            cake: Some(Cake {
+                thickness_m: 2e-3,
+                conductivity_m_s: 1e-6,
+                coverage: 0.7,
+                erosion: None,
+                lift_off: None,
+            }),
+            invaded: Some(Invaded {
+                thickness_m: 0.05,
+                medium: medium(5e-5, 2e4),
+                fines: None,
+                profile: None,
+            }),
+            formation: Formation {
+                medium: medium(2e-4, 1.35e4),
+                outer_radius_m: Some(30.0),
+                outer_boundary: OuterBoundary::FixedHead,
+            },
+            drive: Drive::SineHead(SineHead {
+                amplitude_m: 1.5,
+                frequency_hz: 0.5,
+                offset_m: 0.0,
+                ramp_cycles: 0.0,
+            }),
+            duration_s: 2.0,
+            numerics: Numerics::default(),
+        }
+    }
+
+    /// Everything derived from the faces, bit for bit.
+    fn same(a: &Discretization, b: &Discretization) -> bool {
+        let bits = |v: &[f64]| v.iter().map(|x| x.to_bits()).collect::<Vec<_>>();
+        a.faces == b.faces
+            && bits(&a.r_lin) == bits(&b.r_lin)
+            && bits(&a.r_nl) == bits(&b.r_nl)
+            && bits(&a.conductance) == bits(&b.conductance)
+            && a.pure_runs == b.pure_runs
+            && a.mixed_faces == b.mixed_faces
+            && a.is_linear() == b.is_linear()
+    }
+
+    #[test]
+    fn face_by_face_update_equals_a_full_rebuild() {
+        let m = model();
+        let cake = |t: f64| {
+            Some(CakeState {
+                thickness_m: t,
+                coverage: 0.7,
+            })
+        };
+        let mut inc = Discretization::new(&m, cake(2e-3));
+        let invaded = inc.grid.borehole_face..inc.grid.invaded_face;
+        assert!(invaded.len() >= 3, "the test needs several invaded cells");
+        let mut k: Vec<f64> = invaded
+            .clone()
+            .map(|c| inc.media[c].conductivity_m_s)
+            .collect();
+        // Nothing new: nothing changes.
+        assert!(!inc.update_slow(&m, cake(2e-3), Some((invaded.start, &k))));
+        // The cake thinner, then gone (its face loses a segment and becomes a pure one),
+        // with some invaded cells cleaner each time; then the invaded cells alone.
+        for (t, cells) in [(1e-3, 0..2), (0.0, 1..3), (0.0, 0..1)] {
+            for c in cells {
+                k[c] *= 1.5;
+            }
+            assert!(inc.update_slow(&m, cake(t), Some((invaded.start, &k))));
+            let mut full = Discretization::new(&m, cake(2e-3));
+            full.set_conductivity(invaded.start, &k);
+            full.rebuild_faces(&m, cake(t));
+            assert!(same(&inc, &full), "cake {t}");
+            assert!(!inc.update_slow(&m, cake(t), Some((invaded.start, &k))));
+        }
     }
 }

@@ -152,22 +152,31 @@ impl Factored {
         Ok(())
     }
 
-    /// Substitution outwards from the meeting row, whose x `rhs` already holds.
+    /// Substitution outwards from the meeting row, whose x `rhs` already holds: the top
+    /// rows p − 1…0 and the bottom rows p + 1…n − 1 as two chains in one loop (slices split
+    /// at the meeting row, so the loop has no bounds checks).
     #[inline(always)]
     fn substitute(&self, rhs: &mut [f64]) {
         let n = rhs.len();
         let p = meeting_row(n);
         let far = &self.far[..n];
-        let (mut x_up, mut x_down) = (rhs[p], rhs[p]);
-        for k in 1..=n - 1 - p {
-            if k <= p {
-                let i = p - k;
-                x_up = rhs[i] - far[i] * x_up;
-                rhs[i] = x_up;
-            }
-            let j = p + k;
-            x_down = rhs[j] - far[j] * x_down;
-            rhs[j] = x_down;
+        let (top, rest) = rhs.split_at_mut(p);
+        let (mid, bottom) = rest.split_at_mut(1);
+        let (far_top, far_bottom) = (&far[..p], &far[p + 1..]);
+        let (mut x_up, mut x_down) = (mid[0], mid[0]);
+        // Equal lengths stated once, so the indexing below needs no checks.
+        let m = top.len();
+        let (far_top, xd, fd) = (&far_top[..m], &mut bottom[..m], &far_bottom[..m]);
+        for k in 0..m {
+            let i = m - 1 - k;
+            x_up = top[i] - far_top[i] * x_up;
+            top[i] = x_up;
+            x_down = xd[k] - fd[k] * x_down;
+            xd[k] = x_down;
+        }
+        // The bottom half has one row more when n is even.
+        if bottom.len() > p {
+            bottom[p] -= far_bottom[p] * x_down;
         }
     }
 
@@ -178,20 +187,106 @@ impl Factored {
         if n == 0 {
             return;
         }
-        let (inv_pivot, near, far) = (&self.inv_pivot[..n], &self.near[..n], &self.far[..n]);
-        let p = meeting_row(n);
-        let (mut z_top, mut z_bottom) = (0.0, 0.0);
-        for k in 0..n - 1 - p {
-            if k < p {
-                z_top = rhs[k] * inv_pivot[k] - near[k] * z_top;
-                rhs[k] = z_top;
-            }
-            let j = n - 1 - k;
-            z_bottom = rhs[j] * inv_pivot[j] - near[j] * z_bottom;
-            rhs[j] = z_bottom;
-        }
-        rhs[p] = rhs[p] * inv_pivot[p] - near[p] * z_top - far[p] * z_bottom;
+        self.forward(rhs, None, 0);
         self.substitute(rhs);
+    }
+
+    /// Solves for the right-hand side d_i = `scale[i]` × `src[i]` for i ≥ `from` and d_i =
+    /// `x[i]` below (rows set by the caller), building it within the forward sweep (one pass
+    /// less over the vectors; the same bits as forming d and calling [`Factored::solve`]).
+    /// On return `x` holds the solution.
+    pub fn solve_scaled(&self, x: &mut [f64], scale: &[f64], src: &[f64], from: usize) {
+        let n = x.len();
+        assert_eq!(n, self.inv_pivot.len());
+        let (scale, src) = (&scale[..n], &src[..n]);
+        if n == 0 {
+            return;
+        }
+        if from > meeting_row(n) {
+            // A system so small that the given rows reach the bottom half: formed first.
+            for ((x, &a), &b) in x[from.min(n)..]
+                .iter_mut()
+                .zip(&scale[from.min(n)..])
+                .zip(&src[from.min(n)..])
+            {
+                *x = a * b;
+            }
+            return self.solve(x);
+        }
+        self.forward(x, Some((scale, src)), from);
+        self.substitute(x);
+    }
+
+    /// Forward sweep from both ends (rows 0…p − 1 and n − 1…p + 1, two chains in one loop)
+    /// and the meeting row: on return `rhs` holds z, and x_p at the meeting row. Row i of
+    /// the right-hand side is `scale[i] src[i]` for i ≥ `from` when `scaled` is given
+    /// (`from` ≤ p), `rhs[i]` otherwise.
+    #[inline(always)]
+    fn forward(&self, rhs: &mut [f64], scaled: Option<(&[f64], &[f64])>, from: usize) {
+        let n = rhs.len();
+        let p = meeting_row(n);
+        let from = if scaled.is_some() { from } else { 0 };
+        assert!(from <= p);
+        let (inv, near, far) = (&self.inv_pivot[..n], &self.near[..n], &self.far[..n]);
+        let (top, rest) = rhs.split_at_mut(p);
+        let (mid, bottom) = rest.split_at_mut(1);
+        let (mut z_top, mut z_bottom) = (0.0, 0.0);
+        // Top rows below `from`: the caller's values, on the top chain alone.
+        for ((r, &iv), &nr) in top[..from].iter_mut().zip(&inv[..from]).zip(&near[..from]) {
+            z_top = *r * iv - nr * z_top;
+            *r = z_top;
+        }
+        let (top, inv_t, near_t) = (&mut top[from..], &inv[from..p], &near[from..p]);
+        let (inv_b, near_b) = (&inv[p + 1..], &near[p + 1..]);
+        // The bottom chain's rows the top one has no partner for (one more when n is even,
+        // and `from` more), alone first, from row n − 1 up.
+        let extra = bottom.len() - top.len();
+        let split = bottom.len() - extra;
+        let (bottom, bottom_extra) = bottom.split_at_mut(split);
+        let (inv_bx, near_bx) = (&inv_b[split..], &near_b[split..]);
+        let (inv_b, near_b) = (&inv_b[..split], &near_b[..split]);
+        match scaled {
+            None => {
+                for ((r, &iv), &nr) in bottom_extra.iter_mut().zip(inv_bx).zip(near_bx).rev() {
+                    z_bottom = *r * iv - nr * z_bottom;
+                    *r = z_bottom;
+                }
+                let m = top.len();
+                let (it, nt) = (&inv_t[..m], &near_t[..m]);
+                let (rb, ib, nb) = (&mut bottom[..m], &inv_b[..m], &near_b[..m]);
+                for k in 0..m {
+                    let j = m - 1 - k;
+                    z_top = top[k] * it[k] - nt[k] * z_top;
+                    top[k] = z_top;
+                    z_bottom = rb[j] * ib[j] - nb[j] * z_bottom;
+                    rb[j] = z_bottom;
+                }
+                mid[0] = mid[0] * inv[p] - near[p] * z_top - far[p] * z_bottom;
+            }
+            Some((scale, src)) => {
+                let (sc_b, sr_b) = (&scale[p + 1..], &src[p + 1..]);
+                let (sc_bx, sr_bx) = (&sc_b[split..], &sr_b[split..]);
+                let (sc_b, sr_b) = (&sc_b[..split], &sr_b[..split]);
+                let (sc_t, sr_t) = (&scale[from..p], &src[from..p]);
+                let bx = bottom_extra.iter_mut().zip(inv_bx).zip(near_bx);
+                for (((r, &iv), &nr), (&a, &c)) in bx.zip(sc_bx.iter().zip(sr_bx)).rev() {
+                    z_bottom = a * c * iv - nr * z_bottom;
+                    *r = z_bottom;
+                }
+                let m = top.len();
+                let (it, nt, at, ct) = (&inv_t[..m], &near_t[..m], &sc_t[..m], &sr_t[..m]);
+                let (rb, ib, nb) = (&mut bottom[..m], &inv_b[..m], &near_b[..m]);
+                let (ab, cb) = (&sc_b[..m], &sr_b[..m]);
+                for k in 0..m {
+                    let j = m - 1 - k;
+                    z_top = at[k] * ct[k] * it[k] - nt[k] * z_top;
+                    top[k] = z_top;
+                    z_bottom = ab[j] * cb[j] * ib[j] - nb[j] * z_bottom;
+                    rb[j] = z_bottom;
+                }
+                mid[0] = scale[p] * src[p] * inv[p] - near[p] * z_top - far[p] * z_bottom;
+            }
+        }
     }
 }
 
@@ -309,6 +404,36 @@ mod tests {
             // The same operations in the same order: the same bits.
             assert_eq!(x, y, "n={n}");
             assert_eq!(x, z, "n={n}");
+        }
+    }
+
+    #[test]
+    fn scaled_right_hand_side_gives_the_bits_of_a_formed_one() {
+        // The fused build of d_i = scale_i src_i in the forward sweep against forming d
+        // first: the same products in the same order, so the same bits (odd and even sizes,
+        // rows below `from` set by the caller).
+        let mut seed = 0x0bad_cafe_1234_5678_u64;
+        for &(n, from) in &[(1usize, 0usize), (2, 2), (3, 1), (8, 2), (57, 2), (58, 0)] {
+            let off: Vec<f64> = (0..n).map(|_| 0.1 + rng(&mut seed)).collect();
+            let diag: Vec<f64> = (0..n).map(|_| 2.5 + rng(&mut seed)).collect();
+            let scale: Vec<f64> = (0..n).map(|_| 1e3 * rng(&mut seed)).collect();
+            let src: Vec<f64> = (0..n).map(|_| rng(&mut seed) - 0.5).collect();
+            let head: Vec<f64> = (0..n).map(|_| rng(&mut seed)).collect();
+            let mut f = Factored::with_size(n);
+            f.factor_symmetric(&diag, &off).unwrap();
+            let mut want: Vec<f64> = (0..n)
+                .map(|i| if i < from { head[i] } else { scale[i] * src[i] })
+                .collect();
+            f.solve(&mut want);
+            let mut got: Vec<f64> = (0..n)
+                .map(|i| if i < from { head[i] } else { f64::NAN })
+                .collect();
+            f.solve_scaled(&mut got, &scale, &src, from);
+            let (w, g): (Vec<u64>, Vec<u64>) = (
+                want.iter().map(|x| x.to_bits()).collect(),
+                got.iter().map(|x| x.to_bits()).collect(),
+            );
+            assert_eq!(w, g, "n={n} from={from}");
         }
     }
 

@@ -25,8 +25,8 @@ impl Stepper {
         let d = &self.disc;
         let n = heads.len();
         for (run, zone) in &d.pure_runs {
-            let mut lanes = [0.0f64; LANES];
-            if let Some((flows, drops)) = faces {
+            out[*zone as usize] += if let Some((flows, drops)) = faces {
+                let mut lanes = [0.0f64; LANES];
                 let (q, dh) = (&flows[run.clone()], &drops[run.clone()]);
                 let (qc, dc) = (q.chunks_exact(LANES), dh.chunks_exact(LANES));
                 for (&q, &dh) in qc.remainder().iter().zip(dc.remainder()) {
@@ -37,36 +37,19 @@ impl Stepper {
                         lanes[l] += q[l] * dh[l];
                     }
                 }
+                lanes.iter().sum::<f64>()
             } else {
                 let end = run.end.min(n - 1);
-                let (c, y0, y1) = (
+                // The outer face (to h = 0) when the run reaches it.
+                let outer =
+                    (run.end == n).then(|| d.conductance[n - 1] * heads[n - 1] * heads[n - 1]);
+                super::kernels::linear_power(
                     &d.conductance[run.start..end],
                     &heads[run.start..end],
                     &heads[run.start + 1..=end],
-                );
-                let (cc, c0, c1) = (
-                    c.chunks_exact(LANES),
-                    y0.chunks_exact(LANES),
-                    y1.chunks_exact(LANES),
-                );
-                for ((&c, &a), &b) in cc
-                    .remainder()
-                    .iter()
-                    .zip(c0.remainder())
-                    .zip(c1.remainder())
-                {
-                    lanes[0] += c * (a - b) * (a - b);
-                }
-                for ((c, a), b) in cc.zip(c0).zip(c1) {
-                    for l in 0..LANES {
-                        lanes[l] += c[l] * (a[l] - b[l]) * (a[l] - b[l]);
-                    }
-                }
-                if run.end == n {
-                    lanes[0] += d.conductance[n - 1] * heads[n - 1] * heads[n - 1];
-                }
-            }
-            out[*zone as usize] += lanes.iter().sum::<f64>();
+                    outer,
+                )
+            };
         }
         for &f in &d.mixed_faces {
             let dh = heads[f] - if f + 1 < n { heads[f + 1] } else { 0.0 };
