@@ -31,6 +31,7 @@ mod format;
 mod headline;
 mod html;
 mod input_units;
+mod page;
 pub mod read;
 pub mod steptest;
 mod svg;
