@@ -12,8 +12,6 @@ use super::read::Run;
 use super::tables::{CycleLog, CycleRow};
 use super::{headline, run_letter, run_title, tables};
 
-pub(super) const STYLE: &str = include_str!("../../templates/style.css");
-
 /// The page of one or more runs (templates/run.html).
 #[derive(Template)]
 #[template(path = "run.html")]
