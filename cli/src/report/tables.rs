@@ -55,7 +55,7 @@ pub enum CycleRow {
         end: String,
         /// Peak outward, peak inward and RMS flux [mm/s], peak shear [Pa], work in the
         /// cake [J], cake removed [mm].
-        values: [String; 6],
+        values: Vec<String>,
     },
 }
 
@@ -85,7 +85,7 @@ pub fn cycle_log(run: &Run) -> Option<CycleLog> {
             number: count(c.index[i] + 1.0),
             start: sig(c.start_time[i]),
             end: sig(c.end_time[i]),
-            values: [
+            values: vec![
                 sig(c.peak_outward_flux[i] * 1e3),
                 sig(c.peak_inward_flux[i] * 1e3),
                 sig(c.rms_face_flux[i] * 1e3),
