@@ -2,12 +2,11 @@
 //! intervals and what the records do not constrain, the correlation matrix, observed and
 //! modelled drawdown against time, and the residuals against time and against the
 //! modelled drawdown (a trend or a funnel there means the model or the weights are wrong,
-//! and the intervals are not to be trusted).
+//! and the intervals are not to be trusted). Filled into templates/calibration.html.
 
-use std::fmt::Write;
+use askama::Template;
 
-use super::escape::esc;
-use super::html::STYLE;
+use super::page::{render as render_page, svg, Svg};
 use super::svg::{render, Chart, Series, Style, FITTED, READINGS};
 use crate::calibrate::fit::Calibration;
 use crate::calibrate::record::DevelopmentLog;
@@ -118,124 +117,122 @@ fn residual_charts(c: &Calibration) -> (String, String) {
     (first, render(&b))
 }
 
+/// The calibration page (templates/calibration.html).
+#[derive(Template)]
+#[template(path = "calibration.html")]
+struct CalibrationPage<'a> {
+    head_title: String,
+    version: &'static str,
+    full_head: bool,
+    source: &'a str,
+    log_rows: usize,
+    log_hours: String,
+    readings: usize,
+    converged: bool,
+    iterations: String,
+    runs: String,
+    sigma: String,
+    dof: String,
+    /// The confidence level in per cent.
+    confidence: String,
+    params: Vec<Param>,
+    step_tests: Vec<StepTest>,
+    drawdown: Svg,
+    residuals_time: Svg,
+    residuals_fitted: Svg,
+}
+
+/// One free parameter: its path, values, interval, what the records say of it, and its
+/// row of the correlation matrix (`None`: not defined).
+struct Param {
+    name: String,
+    start: String,
+    value: String,
+    interval: String,
+    status: String,
+    correlation: Vec<Option<String>>,
+}
+
+/// A step test before or after development: field and model drawdowns per rate.
+struct StepTest {
+    label: String,
+    /// "start" or "end" of the log.
+    when: &'static str,
+    /// Rate [L/s], field, model with the case's values, model fitted [m].
+    rows: Vec<[String; 4]>,
+}
+
 /// The whole page. `source` is the log file's name.
 pub fn page(c: &Calibration, log: &DevelopmentLog, source: &str, confidence: f64) -> String {
-    let pct = 100.0 * confidence;
-    let mut h = String::new();
-    let _ = write!(
-        h,
-        "<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n\
-         <title>Calibration: {src}</title>\n<style>\n{STYLE}</style>\n</head>\n<body>\n\
-         <h1>Calibration to a development log</h1>\n<p class=\"lead\">Log <code>{src}</code>: \
-         {} rows over {} h, {} drawdown readings. Fit {} after {} iterations and {} model runs; \
-         residual standard deviation {} m with {} degrees of freedom.</p>\n",
-        log.rows.len(),
-        sig(log.duration_s() / 3600.0),
-        c.observed_m.len(),
-        if c.termination.converged() {
-            "converged"
-        } else {
-            "<strong>did not converge</strong>"
-        },
-        c.iterations,
-        c.runs,
-        sig(c.stats.sigma),
-        c.stats.dof,
-        src = esc(source)
-    );
-    h.push_str(
-        "<section class=\"caution\">\n<h2>Cautions</h2>\n<p>A calibrated model reproduces the \
-         records it was fitted to; it is not proof that it predicts other rates, devices or \
-         durations. The intervals are linearised and assume independent reading errors of one \
-         spread: look at the residuals below first. Development and pumping plans must respect \
-         the pump, screen and casing ratings and the local well construction code; a licensed \
-         driller or engineer decides what is done with the well.</p>\n</section>\n",
-    );
-    let _ = write!(
-        h,
-        "<h2>Fitted parameters</h2>\n<table><thead><tr><th>case path</th><th>case's value \
-         (SI)</th><th>fitted (SI)</th><th>{pct:.0} % interval (SI)</th><th>what the records \
-         say</th></tr></thead><tbody>\n"
-    );
-    for (j, p) in c.params.iter().enumerate() {
-        let interval = p.interval.map_or("—".to_owned(), |(a, b)| {
-            format!("{} to {}", sig(a), sig(b))
-        });
-        let mut status = p.status.describe().to_owned();
-        if p.on_bound {
-            status.push_str("; on a bound: the optimum may lie outside the bounds");
-        }
-        if p.profile.is_some() {
-            status.push_str(&format!(
-                "; profile interval {}",
-                crate::calibrate::text::profile_text(c, j)
-            ));
-        }
-        let _ = writeln!(
-            h,
-            "<tr><th><code>{}</code></th><td>{}</td><td>{}</td><td>{}</td><td>{}</td></tr>",
-            esc(&p.name),
-            sig(p.start),
-            sig(p.value),
-            interval,
-            esc(&status)
-        );
-    }
-    h.push_str("</tbody></table>\n");
-    if c.params.len() > 1 {
-        h.push_str(
-            "<h2>Correlation of the estimates</h2>\n<p>In the fit's coordinates (ln x for \
-             log-scaled parameters). Values near ±1: the records fix a combination, not each \
-             parameter.</p>\n<table><thead><tr><th></th>",
-        );
-        for p in &c.params {
-            let _ = write!(h, "<th><code>{}</code></th>", esc(&p.name));
-        }
-        h.push_str("</tr></thead><tbody>\n");
-        for (p, row) in c.params.iter().zip(&c.stats.correlation) {
-            let _ = write!(h, "<tr><th><code>{}</code></th>", esc(&p.name));
-            for v in row {
-                match v {
-                    Some(v) => {
-                        let _ = write!(h, "<td>{v:.3}</td>");
-                    }
-                    None => h.push_str("<td>—</td>"),
-                }
+    let params = c
+        .params
+        .iter()
+        .enumerate()
+        .map(|(j, p)| {
+            let mut status = p.status.describe().to_owned();
+            if p.on_bound {
+                status.push_str("; on a bound: the optimum may lie outside the bounds");
             }
-            h.push_str("</tr>\n");
-        }
-        h.push_str("</tbody></table>\n");
-    }
-    for st in &c.steps {
-        let _ = write!(
-            h,
-            "<h2>Step test {}</h2>\n<p>Drawdown at the end of each step: the field test, and \
-             the model's step test at the same rates and step length on the well at the {} of \
-             the log.</p>\n<table><thead><tr><th>rate [L/s]</th><th>field [m]</th><th>model, \
-             case's values [m]</th><th>model, fitted [m]</th></tr></thead><tbody>\n",
-            st.label,
-            if st.label == "before" { "start" } else { "end" }
-        );
-        for k in 0..st.rates_m3_s.len() {
-            let _ = writeln!(
-                h,
-                "<tr><td>{}</td><td>{}</td><td>{}</td><td>{}</td></tr>",
-                sig(st.rates_m3_s[k] * 1e3),
-                sig(st.observed_m[k]),
-                sig(st.start_m[k]),
-                sig(st.fitted_m[k])
-            );
-        }
-        h.push_str("</tbody></table>\n");
-    }
+            if p.profile.is_some() {
+                status.push_str(&format!(
+                    "; profile interval {}",
+                    crate::calibrate::text::profile_text(c, j)
+                ));
+            }
+            Param {
+                name: p.name.clone(),
+                start: sig(p.start),
+                value: sig(p.value),
+                interval: p.interval.map_or("—".to_owned(), |(a, b)| {
+                    format!("{} to {}", sig(a), sig(b))
+                }),
+                status,
+                correlation: c
+                    .stats
+                    .correlation
+                    .get(j)
+                    .map(|row| row.iter().map(|v| v.map(|v| format!("{v:.3}"))).collect())
+                    .unwrap_or_default(),
+            }
+        })
+        .collect();
+    let step_tests = c
+        .steps
+        .iter()
+        .map(|st| StepTest {
+            label: st.label.to_string(),
+            when: if st.label == "before" { "start" } else { "end" },
+            rows: (0..st.rates_m3_s.len())
+                .map(|k| {
+                    [
+                        sig(st.rates_m3_s[k] * 1e3),
+                        sig(st.observed_m[k]),
+                        sig(st.start_m[k]),
+                        sig(st.fitted_m[k]),
+                    ]
+                })
+                .collect(),
+        })
+        .collect();
     let (res_t, res_s) = residual_charts(c);
-    let _ = write!(
-        h,
-        "<h2>Drawdown</h2>\n<figure>{}</figure>\n<h2>Residuals</h2>\n<p>Residuals should \
-         scatter evenly about zero; a trend in time or a funnel against the drawdown means \
-         the model or the equal weighting does not fit these records.</p>\n\
-         <figure>{res_t}</figure>\n<figure>{res_s}</figure>\n</body>\n</html>\n",
-        drawdown_chart(c)
-    );
-    h
+    render_page(&CalibrationPage {
+        head_title: format!("Calibration: {source}"),
+        version: env!("CARGO_PKG_VERSION"),
+        full_head: false,
+        source,
+        log_rows: log.rows.len(),
+        log_hours: sig(log.duration_s() / 3600.0),
+        readings: c.observed_m.len(),
+        converged: c.termination.converged(),
+        iterations: c.iterations.to_string(),
+        runs: c.runs.to_string(),
+        sigma: sig(c.stats.sigma),
+        dof: c.stats.dof.to_string(),
+        confidence: format!("{:.0}", 100.0 * confidence),
+        params,
+        step_tests,
+        drawdown: svg(drawdown_chart(c)),
+        residuals_time: svg(res_t),
+        residuals_fitted: svg(res_s),
+    })
 }

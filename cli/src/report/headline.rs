@@ -3,78 +3,49 @@
 //! are highlighted. Values the table does not know are listed separately.
 
 use std::collections::BTreeSet;
-use std::fmt::Write;
 
 use boreflux_solver::safety::ENTRANCE_VELOCITY_RULE_M_S;
 
-use super::escape::esc;
 use super::format::{
     change, count, duration, shown_for, sig, with_units, Shown, ENERGY, FLOW, FLUX, HEAD, NUMBER,
     PORE_VELOCITY, PRESSURE, SHEAR, SLOT_VELOCITY, SMALL_LENGTH, SPECIFIC_CAPACITY,
 };
+use super::page::{Cell, Column, CompareTable, TableRow};
 use super::read::{Run, Summary};
-use super::tables::header_row;
+use super::tables::compare_table;
 use super::{run_letter, run_title};
 use crate::output::schema::Figure;
 use boreflux_solver::grid::Zone;
 
-/// A table cell: HTML-safe text and a CSS class ("" for none).
-struct Cell {
-    html: String,
-    class: &'static str,
-}
-
-impl Cell {
-    fn plain(text: String) -> Self {
-        Cell {
-            html: esc(&text),
-            class: "",
-        }
-    }
-
-    fn missing() -> Self {
-        Cell {
-            html: r#"<span title="not in the run file">—</span>"#.to_owned(),
-            class: "",
-        }
-    }
-}
-
 /// The headline table and the summary keys it showed.
-pub fn headline(runs: &[Run]) -> (String, BTreeSet<String>) {
+pub fn headline(runs: &[Run]) -> (CompareTable, BTreeSet<String>) {
     let mut used = BTreeSet::new();
-    let mut t = String::new();
-    t.push_str(r#"<table class="headline"><thead><tr><th scope="col">Quantity</th>"#);
-    for (i, run) in runs.iter().enumerate() {
-        let _ = write!(
-            t,
-            r#"<th scope="col">Run {}<br><span class="sub">{}</span></th>"#,
-            run_letter(i),
-            esc(&run_title(run))
-        );
-    }
-    t.push_str("</thead><tbody>");
-    let ncols = runs.len() + 1;
+    let mut t = CompareTable {
+        class: "headline",
+        first: "Quantity".to_owned(),
+        columns: runs
+            .iter()
+            .enumerate()
+            .map(|(i, run)| Column {
+                letter: run_letter(i),
+                sub: Some(run_title(run)),
+            })
+            .collect(),
+        close_head_row: false,
+        rows: Vec::new(),
+    };
     let summaries: Vec<Summary> = runs.iter().map(completed_summary).collect();
-    let section = |t: &mut String, name: &str| {
-        let _ = write!(
-            t,
-            r#"<tr class="section"><th colspan="{ncols}">{name}</th></tr>"#
-        );
+    let section = |t: &mut CompareTable, name: &str| {
+        t.rows.push(TableRow::Section(name.to_owned()));
     };
     let mut row =
-        |t: &mut String, label: &str, keys: &[Figure], cell: &dyn Fn(&Summary) -> Cell| {
+        |t: &mut CompareTable, label: &str, keys: &[Figure], cell: &dyn Fn(&Summary) -> Cell| {
             used.extend(keys.iter().map(|k| k.name()));
-            let _ = write!(t, r#"<tr><th scope="row">{label}</th>"#);
-            for summary in &summaries {
-                let c = cell(summary);
-                if c.class.is_empty() {
-                    let _ = write!(t, "<td>{}</td>", c.html);
-                } else {
-                    let _ = write!(t, r#"<td class="{}">{}</td>"#, c.class, c.html);
-                }
-            }
-            t.push_str("</tr>");
+            t.rows.push(TableRow::Values {
+                label: label.to_owned(),
+                code: false,
+                cells: summaries.iter().map(cell).collect(),
+            });
         };
     let one = |key: Figure, shown: Shown| {
         move |s: &Summary| {
@@ -289,7 +260,7 @@ pub fn headline(runs: &[Run]) -> (String, BTreeSet<String>) {
                 if ratio > 1.0 { "above it" } else { "below it" }
             );
             Cell {
-                html: esc(&text),
+                text: Some(text),
                 class: if ratio > 1.0 { "flag" } else { "" },
             }
         },
@@ -312,7 +283,7 @@ pub fn headline(runs: &[Run]) -> (String, BTreeSet<String>) {
         &|s: &Summary| {
             s.get(Figure::PipingRatio)
                 .map_or_else(Cell::missing, |v| Cell {
-                    html: esc(&sig(v)),
+                    text: Some(sig(v)),
                     class: if v > 1.0 { "flag" } else { "" },
                 })
         },
@@ -346,7 +317,7 @@ pub fn headline(runs: &[Run]) -> (String, BTreeSet<String>) {
         &[Figure::CollapseMargin],
         &|s: &Summary| match s.get(Figure::CollapseMargin) {
             Some(m) if m < 1.0 => Cell {
-                html: esc(&format!("{} — BELOW 1", sig(m))),
+                text: Some(format!("{} — BELOW 1", sig(m))),
                 class: "alarm",
             },
             Some(m) => Cell::plain(sig(m)),
@@ -405,7 +376,6 @@ pub fn headline(runs: &[Run]) -> (String, BTreeSet<String>) {
         &[Figure::OuterRadius],
         &one(Figure::OuterRadius, HEAD),
     );
-    t.push_str("</tbody></table>");
     (t, used)
 }
 
@@ -421,7 +391,7 @@ fn completed_summary(run: &Run) -> Summary {
 }
 
 /// Numeric `/summary` values the headline table did not show, or `None` when there are none.
-pub fn other_values(runs: &[Run], used: &BTreeSet<String>) -> Option<String> {
+pub fn other_values(runs: &[Run], used: &BTreeSet<String>) -> Option<CompareTable> {
     let keys: BTreeSet<&String> = runs
         .iter()
         .flat_map(|r| r.summary.values.keys())
@@ -430,20 +400,24 @@ pub fn other_values(runs: &[Run], used: &BTreeSet<String>) -> Option<String> {
     if keys.is_empty() {
         return None;
     }
-    let mut t = header_row(runs, "Attribute in /summary");
+    let mut t = compare_table(runs, "compare", "Attribute in /summary");
     for key in keys {
-        let _ = write!(t, r#"<tr><th scope="row"><code>{}</code></th>"#, esc(key));
-        for run in runs {
-            let shown = Figure::from_name(key).map(|f| shown_for(f.entry().unit));
-            let cell = match (run.summary.get_named(key), shown) {
-                (Some(v), Some(shown)) => with_units(v, &shown),
-                (Some(v), None) => sig(v),
-                (None, _) => "—".to_owned(),
-            };
-            let _ = write!(t, "<td>{}</td>", esc(&cell));
-        }
-        t.push_str("</tr>");
+        let shown = Figure::from_name(key).map(|f| shown_for(f.entry().unit));
+        let cells = runs
+            .iter()
+            .map(|run| {
+                Cell::plain(match (run.summary.get_named(key), &shown) {
+                    (Some(v), Some(shown)) => with_units(v, shown),
+                    (Some(v), None) => sig(v),
+                    (None, _) => "—".to_owned(),
+                })
+            })
+            .collect();
+        t.rows.push(TableRow::Values {
+            label: key.clone(),
+            code: true,
+            cells,
+        });
     }
-    t.push_str("</tbody></table>");
     Some(t)
 }

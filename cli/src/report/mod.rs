@@ -14,11 +14,19 @@
 //! figures.rs  which charts the report draws
 //! headline.rs the headline table (one column per run)
 //! tables.rs   cycle log, inputs
-//! html.rs     the page, escaping, the cautions box
+//! html.rs     the run page
+//! page.rs     what the templates are given (figures, tables, SVG as safe markup); render
+//! escape.rs   the templates' escaper and `esc` for SVG text
 //! sweep.rs    the page of a sweep table (`boreflux sweep`): charts against the varied value
 //! sweep_compare.rs  the page comparing grid sweep tables: one line per table in each chart
 //! uncertainty.rs  a sampled sweep's section: bands, distributions, collapse probability
+//! steptest.rs, calibration.rs  the step-test and calibration pages
 //! ```
+//!
+//! The HTML of every page is in askama templates (`cli/templates/`, one per page kind, with
+//! shared partials for the cautions, figures and tables); they escape every text they insert
+//! with `escape::Entities` and take the SVG charts as already-safe markup. This module
+//! gathers the data and builds the charts; it writes no page HTML itself.
 //!
 //! Nothing partial is left behind: the page is written to a hidden temporary file beside
 //! the destination and renamed over it only when complete.
@@ -31,6 +39,7 @@ mod format;
 mod headline;
 mod html;
 mod input_units;
+mod page;
 pub mod read;
 pub mod steptest;
 mod svg;

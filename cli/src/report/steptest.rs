@@ -1,11 +1,10 @@
 //! The HTML page of a step-drawdown analysis: cautions, B and C with their intervals, the
 //! per-step table and an SVG plot of s/Q against Q with the fitted line and its pointwise
-//! confidence band.
+//! confidence band, filled into templates/steptest.html.
 
-use std::fmt::Write;
+use askama::Template;
 
-use super::escape::esc;
-use super::html::STYLE;
+use super::page::{render as render_page, svg, Svg};
 use super::svg::{render, Chart, Series, Style, FITTED, READINGS};
 use crate::steptest::text::{sig, EFFICIENCY_DEFINITION, INTERVAL_NOTE};
 use crate::steptest::Outcome;
@@ -96,145 +95,157 @@ pub fn chart(o: &Outcome) -> String {
     render(&c)
 }
 
-fn estimate_row(h: &mut String, name: &str, e: &Estimate, unit: &str) {
-    let _ = writeln!(
-        h,
-        "<tr><th>{name}</th><td>{}</td><td>{} to {}</td><td>{}</td><td>{}</td></tr>",
-        sig(e.value),
-        sig(e.lower),
-        sig(e.upper),
-        sig(e.std_error),
-        esc(unit)
-    );
+/// The step-test page (templates/steptest.html).
+#[derive(Template)]
+#[template(path = "steptest.html")]
+struct StepTestPage<'a> {
+    head_title: String,
+    version: &'static str,
+    full_head: bool,
+    source: &'a str,
+    /// Minutes of pumping the drawdowns are corrected to (Hantush–Bierschenk); `None`
+    /// for Jacob's method.
+    corrected_to: Option<String>,
+    weights: &'static str,
+    steps: usize,
+    dof: String,
+    t_quantile: String,
+    /// The confidence level in per cent.
+    confidence: String,
+    estimates: Vec<EstimateRow>,
+    transmissivity: Option<String>,
+    power_error: Option<String>,
+    power: Vec<EstimateRow>,
+    interval_note: &'static str,
+    efficiency_definition: &'static str,
+    chart: Svg,
+    rows: Vec<StepRow>,
+}
+
+/// One estimate of the well-loss table.
+struct EstimateRow {
+    name: &'static str,
+    value: String,
+    lower: String,
+    upper: String,
+    std_error: String,
+    unit: &'static str,
+}
+
+impl EstimateRow {
+    fn new(name: &'static str, e: &Estimate, unit: &'static str) -> Self {
+        EstimateRow {
+            name,
+            value: sig(e.value),
+            lower: sig(e.lower),
+            upper: sig(e.upper),
+            std_error: sig(e.std_error),
+            unit,
+        }
+    }
+}
+
+/// One step of the per-step table.
+struct StepRow {
+    number: usize,
+    rate: String,
+    measured: String,
+    corrected: Option<String>,
+    per_rate: String,
+    capacity: String,
+    linear: String,
+    nonlinear: String,
+    linear_share: String,
+    nonlinear_share: String,
+    efficiency_error: String,
 }
 
 /// The whole page. `source` is the input file's name, shown in the title.
 pub fn page(o: &Outcome, source: &str) -> String {
     let f = &o.fit;
-    let pct = 100.0 * f.confidence;
-    let mut h = String::new();
-    let _ = write!(
-        h,
-        "<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n\
-         <title>Step-drawdown analysis: {src}</title>\n<style>\n{STYLE}</style>\n</head>\n<body>\n\
-         <h1>Step-drawdown analysis</h1>\n<p class=\"lead\">File <code>{src}</code>, method: {}.</p>\n",
-        match &o.series {
-            Some(hb) => format!(
-                "Hantush–Bierschenk, each step's drawdown corrected to {} min of pumping",
-                sig(hb.reference_time_s / 60.0)
-            ),
-            None => "Jacob, the drawdown at the end of each step".to_owned(),
-        },
-        src = esc(source)
-    );
-    let _ = write!(
-        h,
-        "<section class=\"caution\">\n<h2>Cautions</h2>\n<p>A step test describes the well at \
-         the rates tested; do not extrapolate far beyond the largest step. Rates and levels \
-         must respect the pump, screen and casing ratings and the local well construction \
-         code; a licensed driller or engineer decides what is done with the well.</p>\n</section>\n"
-    );
-    let _ = write!(
-        h,
-        "<h2>Well-loss coefficients</h2>\n<p>s = B Q + C Q², fitted as s/Q = B + C Q; weights: \
-         {}; {} steps, {} degrees of freedom, Student t = {}.</p>\n<table><thead><tr><th></th>\
-         <th>value</th><th>{pct:.0} % interval</th><th>standard error</th><th>unit</th></tr>\
-         </thead><tbody>\n",
-        match f.weighting {
+    let mut estimates = vec![
+        EstimateRow::new("B", &f.b, "s/m²"),
+        EstimateRow::new("C", &f.c, "s²/m⁵"),
+    ];
+    if let Some(hb) = &o.series {
+        let sf = &hb.series;
+        estimates.push(EstimateRow::new(
+            "b (series fit)",
+            &sf.b,
+            "s/m² per log10 cycle",
+        ));
+        estimates.push(EstimateRow::new("B(Δt) (series fit)", &hb.b_series, "s/m²"));
+        estimates.push(EstimateRow::new("C (series fit)", &sf.c, "s²/m⁵"));
+    }
+    let (power_error, power) = match &o.power {
+        None => (None, Vec::new()),
+        Some(Err(e)) => (Some(e.to_string()), Vec::new()),
+        Some(Ok(p)) => (
+            None,
+            vec![
+                EstimateRow::new("n (power law, linearised)", &p.n, "-"),
+                EstimateRow::new("B (power law)", &p.b, "s/m²"),
+                EstimateRow::new("C (power law)", &p.c, "s^n/m^(3n−1)"),
+            ],
+        ),
+    };
+    let rows = o
+        .figures
+        .iter()
+        .zip(&o.measured_m)
+        .enumerate()
+        .map(|(i, (g, m))| StepRow {
+            number: i + 1,
+            rate: sig(g.rate_m3_s * 1e3),
+            measured: sig(*m),
+            corrected: o.series.as_ref().map(|_| sig(g.drawdown_m)),
+            per_rate: sig(g.drawdown_per_rate),
+            capacity: sig(g.specific_capacity * 1e3),
+            linear: sig(g.linear_loss_m),
+            nonlinear: sig(g.nonlinear_loss_m),
+            linear_share: format!("{:.1}", 100.0 * g.efficiency),
+            nonlinear_share: format!("{:.1}", 100.0 * (1.0 - g.efficiency)),
+            efficiency_error: format!("{:.1}", 100.0 * f.t_quantile * g.efficiency_std_error),
+        })
+        .collect();
+    render_page(&StepTestPage {
+        head_title: format!("Step-drawdown analysis: {source}"),
+        version: env!("CARGO_PKG_VERSION"),
+        full_head: false,
+        source,
+        corrected_to: o.series.as_ref().map(|hb| sig(hb.reference_time_s / 60.0)),
+        weights: match f.weighting {
             boreflux_solver::steptest::Weighting::Equal => "equal",
             boreflux_solver::steptest::Weighting::Drawdown => "drawdown (Q²)",
         },
-        o.figures.len(),
-        f.dof,
-        sig(f.t_quantile)
-    );
-    estimate_row(&mut h, "B", &f.b, "s/m²");
-    estimate_row(&mut h, "C", &f.c, "s²/m⁵");
-    if let Some(hb) = &o.series {
-        let sf = &hb.series;
-        estimate_row(&mut h, "b (series fit)", &sf.b, "s/m² per log10 cycle");
-        estimate_row(&mut h, "B(Δt) (series fit)", &hb.b_series, "s/m²");
-        estimate_row(&mut h, "C (series fit)", &sf.c, "s²/m⁵");
-        let _ = writeln!(
-            h,
-            "<tr><th>T = ln 10 / (4π b)</th><td>{}</td><td colspan=\"2\">Cooper–Jacob: \
-             confined, no boundaries, late time</td><td>m²/s</td></tr>",
-            sig(sf.transmissivity_m2_s)
-        );
-    }
-    match &o.power {
-        None => {}
-        Some(Err(e)) => {
-            let _ = writeln!(
-                h,
-                "<tr><th>power law s = B Q + C Qⁿ</th><td colspan=\"4\">not fitted: {}</td></tr>",
-                esc(&e.to_string())
-            );
-        }
-        Some(Ok(p)) => {
-            estimate_row(&mut h, "n (power law, linearised)", &p.n, "-");
-            estimate_row(&mut h, "B (power law)", &p.b, "s/m²");
-            estimate_row(&mut h, "C (power law)", &p.c, "s^n/m^(3n−1)");
-        }
-    }
-    h.push_str("</tbody></table>\n");
-    let _ = writeln!(
-        h,
-        "<p>{}</p>\n<p>{}</p>",
-        esc(INTERVAL_NOTE),
-        esc(EFFICIENCY_DEFINITION)
-    );
-    let _ = write!(
-        h,
-        "<figure><figcaption>Points: s/Q of each step; line: the fitted s/Q = B + C Q; dashed: \
-         its pointwise {pct:.0} % confidence band.</figcaption>\n{}\n</figure>\n",
-        chart(o)
-    );
-    h.push_str(
-        "<h2>Steps</h2>\n<table><thead><tr><th>step</th><th>Q [L/s]</th><th>s measured [m]</th>",
-    );
-    if o.series.is_some() {
-        h.push_str("<th>s corrected [m]</th>");
-    }
-    let _ = writeln!(
-        h,
-        "<th>s/Q [s/m²]</th><th>Q/s [L/s/m]</th><th>B Q [m]</th><th>C Q² [m]</th>\
-         <th>linear share</th><th>non-linear share</th><th>E ± {pct:.0} %</th></tr></thead><tbody>"
-    );
-    for (i, (g, m)) in o.figures.iter().zip(&o.measured_m).enumerate() {
-        let _ = write!(
-            h,
-            "<tr><td>{}</td><td>{}</td><td>{}</td>",
-            i + 1,
-            sig(g.rate_m3_s * 1e3),
-            sig(*m)
-        );
-        if o.series.is_some() {
-            let _ = write!(h, "<td>{}</td>", sig(g.drawdown_m));
-        }
-        let _ = writeln!(
-            h,
-            "<td>{}</td><td>{}</td><td>{}</td><td>{}</td><td>{:.1} %</td><td>{:.1} %</td>\
-             <td>{:.1} ± {:.1} %</td></tr>",
-            sig(g.drawdown_per_rate),
-            sig(g.specific_capacity * 1e3),
-            sig(g.linear_loss_m),
-            sig(g.nonlinear_loss_m),
-            100.0 * g.efficiency,
-            100.0 * (1.0 - g.efficiency),
-            100.0 * g.efficiency,
-            100.0 * f.t_quantile * g.efficiency_std_error
-        );
-    }
-    h.push_str("</tbody></table>\n</body>\n</html>\n");
-    h
+        steps: o.figures.len(),
+        dof: f.dof.to_string(),
+        t_quantile: sig(f.t_quantile),
+        confidence: format!("{:.0}", 100.0 * f.confidence),
+        estimates,
+        transmissivity: o
+            .series
+            .as_ref()
+            .map(|hb| sig(hb.series.transmissivity_m2_s)),
+        power_error,
+        power,
+        interval_note: INTERVAL_NOTE,
+        efficiency_definition: EFFICIENCY_DEFINITION,
+        chart: svg(chart(o)),
+        rows,
+    })
+}
+
+/// The model's virtual step test beside the field fit (`steptest --case`), from its
+/// printed text (templates/steptest-model.html).
+#[derive(Template)]
+#[template(path = "steptest-model.html")]
+struct ModelSection<'a> {
+    text: &'a str,
 }
 
 /// The section that shows the model's virtual step test beside the field fit
 /// (`steptest --case`), from its printed text.
 pub fn model_section(text: &str) -> String {
-    format!(
-        "<h2>Model of the same well</h2>\n<pre>{}</pre>\n",
-        esc(text)
-    )
+    render_page(&ModelSection { text })
 }

@@ -1,16 +1,17 @@
 //! The report of a sweep table (`boreflux sweep`): what was varied, the cautions, one chart
 //! per key figure against the first varied value (one line per combination of the
-//! others), and the table of every scenario. Everything is read from the table file.
+//! others), and the table of every scenario, filled into templates/sweep.html (pieces
+//! shared with the comparison page in templates/partials/sweep.html). Everything is read
+//! from the table file.
 
 use std::collections::BTreeMap;
-use std::fmt::Write;
 
+use askama::Template;
 use boreflux_solver::safety::CAUTION;
 
-use super::escape::esc;
 use super::figures::{quantity_chart, run_style};
 use super::format::{shown_for, sig, Shown};
-use super::html::STYLE;
+use super::page::{render as render_page, svg, Figure as PageFigure};
 use super::svg::{render, Series};
 use super::ticks::Scale;
 use crate::output::schema::Figure;
@@ -114,173 +115,201 @@ fn shown(figure: Figure) -> Shown {
     }
 }
 
-/// The page's head and heading: `head_title` in the browser's title, `heading` as `<h1>`.
-pub(super) fn open(h: &mut String, head_title: &str, heading: &str) {
-    let _ = write!(
-        h,
-        "<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n\
-         <meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">\n\
-         <meta name=\"generator\" content=\"boreflux {v}\">\n<title>{t}</title>\n\
-         <style>\n{STYLE}</style>\n</head>\n<body>\n<h1>{heading}</h1>\n",
-        v = env!("CARGO_PKG_VERSION"),
-        t = esc(head_title),
-        heading = esc(heading),
-    );
+/// What the sweep pages show of one table.
+pub(super) struct TableView {
+    /// Scenarios in the table.
+    pub scenario_count: usize,
+    /// The case file the sweep started from, as named to `sweep`.
+    pub case_file: String,
+    /// (K/N, scenarios of the whole sweep) for a shard; `None` for a whole sweep.
+    pub shard: Option<(String, usize)>,
+    /// The failed scenarios, then the scenarios that warned.
+    pub warnings: Vec<Warning>,
+    /// A grid sweep's varied paths and their values, joined.
+    pub varied: Vec<(String, String)>,
+    /// Every scenario.
+    pub scenarios: Scenarios,
+    /// The base case, pretty-printed JSON.
+    pub base_case: String,
 }
 
-/// " (shard K/N, of T in the whole sweep)" for a shard, empty for a whole sweep.
-pub(super) fn shard_note(t: &Table) -> String {
-    if t.shard == "1/1" || t.shard == "merged" {
-        String::new()
-    } else {
-        format!(
-            " (shard {}, of {} in the whole sweep)",
-            esc(&t.shard),
-            t.total
-        )
-    }
+/// A failed scenario (`failed`: its status) or one whose run warned (`lines`).
+pub(super) struct Warning {
+    pub(super) scenario: usize,
+    pub(super) labels: String,
+    pub(super) failed: Option<String>,
+    pub(super) lines: Vec<String>,
 }
 
-/// The cautions box of a sweep page.
-pub(super) fn cautions(h: &mut String) {
-    let _ = write!(
-        h,
-        "<section class=\"caution\">\n<h2>Cautions</h2>\n<p>{}</p>\n<p>A sweep explores \
-         settings; before taking the hardest of them to a well, compare its collapse load with \
-         the manufacturer's rating and start gently.</p>\n</section>\n",
-        esc(CAUTION)
-    );
+/// The table of every scenario.
+pub(super) struct Scenarios {
+    pub(super) heading: String,
+    pub(super) paths: Vec<String>,
+    /// Key figure headings with their unit.
+    pub(super) columns: Vec<String>,
+    pub(super) rows: Vec<ScenarioRow>,
 }
 
-/// The failed scenarios and the warnings of the table's runs, as list items; `prefix`
-/// (empty for a single table) names the table in each item.
-pub(super) fn warning_items(h: &mut String, t: &Table, prefix: &str) {
-    for r in t.rows.iter().filter(|r| r.status != "ok") {
-        let _ = writeln!(
-            h,
-            "<li>{prefix}Scenario {} ({}) did not run to the end: {}</li>",
-            r.scenario,
-            esc(&r.labels.join(", ")),
-            esc(&r.status)
-        );
-    }
-    for r in t.rows.iter().filter(|r| !r.warnings.is_empty()) {
-        let _ = writeln!(
-            h,
-            "<li>{prefix}Scenario {} ({}):<ul>{}</ul></li>",
-            r.scenario,
-            esc(&r.labels.join(", ")),
-            r.warnings
-                .lines()
-                .map(|w| format!("<li>{}</li>", esc(w)))
-                .collect::<String>()
-        );
-    }
+/// One scenario: its number, its values, the key figures (flagged where a single-run
+/// report warns) and its status.
+pub(super) struct ScenarioRow {
+    pub(super) scenario: usize,
+    pub(super) labels: Vec<String>,
+    pub(super) values: Vec<(String, bool)>,
+    pub(super) status: String,
+    pub(super) failed: bool,
 }
 
-/// Whether any scenario of the table failed or warned.
-pub(super) fn has_warnings(t: &Table) -> bool {
-    t.rows
+/// The charts of the sweep pages.
+pub(super) enum Charts {
+    /// No varied path.
+    None,
+    /// The first varied value is not a number in every scenario (or there is only one).
+    NotNumbers,
+    /// One figure per key figure.
+    Figures {
+        x_path: String,
+        per_line: PerLine,
+        figures: Vec<PageFigure>,
+    },
+}
+
+/// What the lines of a chart stand for.
+pub(super) enum PerLine {
+    /// One line: the table.
+    One,
+    /// One per table and combination of its other varied values.
+    Table,
+    /// One per value of these other varied paths (joined).
+    Value(String),
+}
+
+/// A sampled sweep: how it was drawn and its uncertainty section.
+pub(super) struct Sampled {
+    pub(super) samples: String,
+    pub(super) design: &'static str,
+    pub(super) seed: String,
+    /// (path, distribution) of each sampled input.
+    pub(super) inputs: Vec<(String, String)>,
+    pub(super) uncertainty: super::uncertainty::Uncertainty,
+}
+
+/// The page of one sweep table (templates/sweep.html).
+#[derive(Template)]
+#[template(path = "sweep.html")]
+struct SweepPage<'a> {
+    head_title: String,
+    heading: &'a str,
+    version: &'static str,
+    full_head: bool,
+    caution: &'static str,
+    table: TableView,
+    sampled: Option<Sampled>,
+    charts: Charts,
+}
+
+/// What the sweep pages show of table `t`, its scenarios under `heading`.
+pub(super) fn table_view(t: &Table, heading: &str) -> TableView {
+    let mut warnings: Vec<Warning> = t
+        .rows
         .iter()
-        .any(|r| r.status != "ok" || !r.warnings.is_empty())
+        .filter(|r| r.status != "ok")
+        .map(|r| Warning {
+            scenario: r.scenario,
+            labels: r.labels.join(", "),
+            failed: Some(r.status.clone()),
+            lines: Vec::new(),
+        })
+        .collect();
+    warnings.extend(
+        t.rows
+            .iter()
+            .filter(|r| !r.warnings.is_empty())
+            .map(|r| Warning {
+                scenario: r.scenario,
+                labels: r.labels.join(", "),
+                failed: None,
+                lines: r.warnings.lines().map(str::to_owned).collect(),
+            }),
+    );
+    TableView {
+        scenario_count: t.rows.len(),
+        case_file: t.case_file.clone(),
+        shard: (t.shard != "1/1" && t.shard != "merged").then(|| (t.shard.clone(), t.total)),
+        warnings,
+        varied: varied(t),
+        scenarios: scenarios(t, heading),
+        base_case: serde_json::from_str::<serde_json::Value>(&t.base_case_json)
+            .and_then(|v| serde_json::to_string_pretty(&v))
+            .unwrap_or_else(|_| t.base_case_json.clone()),
+    }
 }
 
-/// The list items of a grid sweep's varied paths and their values.
-pub(super) fn varied_items(h: &mut String, t: &Table) {
+/// A grid sweep's varied paths and their values.
+fn varied(t: &Table) -> Vec<(String, String)> {
     let vary: serde_json::Value = serde_json::from_str(&t.vary_json).unwrap_or_default();
-    for v in vary.as_array().into_iter().flatten() {
-        let values: Vec<String> = v["values"]
-            .as_array()
-            .into_iter()
-            .flatten()
-            .map(crate::sweep::spec::label)
-            .collect();
-        let _ = writeln!(
-            h,
-            "<li><code>{}</code>: {}</li>",
-            esc(v["path"].as_str().unwrap_or("")),
-            esc(&values.join(", "))
-        );
-    }
+    vary.as_array()
+        .into_iter()
+        .flatten()
+        .map(|v| {
+            let values: Vec<String> = v["values"]
+                .as_array()
+                .into_iter()
+                .flatten()
+                .map(crate::sweep::spec::label)
+                .collect();
+            (
+                v["path"].as_str().unwrap_or("").to_owned(),
+                values.join(", "),
+            )
+        })
+        .collect()
 }
 
 /// The whole page for one sweep table, under `title` when given (else "Sweep report:"
 /// and the case file in the browser's title, and the default heading).
 pub fn page(t: &Table, title: Option<&str>) -> String {
-    let mut h = String::new();
     let head_title = title.map_or_else(|| format!("Sweep report: {}", t.case_file), str::to_owned);
-    open(
-        &mut h,
-        &head_title,
-        title.unwrap_or("Well development sweep report"),
-    );
-    let _ = writeln!(
-        h,
-        "<p class=\"lead\">{n} scenarios of <code>{case}</code>{shard}; every number and figure \
-         below is read from the sweep table. Built by boreflux {v}.</p>",
-        v = env!("CARGO_PKG_VERSION"),
-        case = esc(&t.case_file),
-        n = t.rows.len(),
-        shard = shard_note(t),
-    );
-    cautions(&mut h);
-    if has_warnings(t) {
-        h.push_str("<section class=\"warnings\">\n<h2>Warnings</h2>\n<ul>\n");
-        warning_items(&mut h, t, "");
-        h.push_str("</ul>\n</section>\n");
-    }
-    h.push_str("<h2>What was varied</h2>\n<ul>\n");
-    if let Some(s) = &t.sampling_json {
+    let sampled = t.sampling_json.as_deref().map(|s| {
         let vary: serde_json::Value = serde_json::from_str(&t.vary_json).unwrap_or_default();
         let s: serde_json::Value = serde_json::from_str(s).unwrap_or_default();
-        let design = match s["design"].as_str() {
-            Some("lhs") => "Latin hypercube",
-            Some("random") => "independent random draws",
-            _ => "unknown design",
-        };
-        let _ = writeln!(
-            h,
-            "<li>{} scenarios drawn by {design}, seed {} (the sample is a function of the \
-             distributions, the design, the count and the seed):</li>",
-            esc(&crate::sweep::spec::label(&s["samples"])),
-            esc(&crate::sweep::spec::label(&s["seed"]))
-        );
-        for v in vary.as_array().into_iter().flatten() {
-            let _ = writeln!(
-                h,
-                "<li><code>{}</code> ~ <code>{}</code></li>",
-                esc(v["path"].as_str().unwrap_or("")),
-                esc(v["distribution"].as_str().unwrap_or(""))
-            );
+        Sampled {
+            samples: crate::sweep::spec::label(&s["samples"]),
+            design: match s["design"].as_str() {
+                Some("lhs") => "Latin hypercube",
+                Some("random") => "independent random draws",
+                _ => "unknown design",
+            },
+            seed: crate::sweep::spec::label(&s["seed"]),
+            inputs: vary
+                .as_array()
+                .into_iter()
+                .flatten()
+                .map(|v| {
+                    (
+                        v["path"].as_str().unwrap_or("").to_owned(),
+                        v["distribution"].as_str().unwrap_or("").to_owned(),
+                    )
+                })
+                .collect(),
+            uncertainty: super::uncertainty::section(t),
         }
-        h.push_str("</ul>\n");
-        super::uncertainty::section(&mut h, t);
-        table(&mut h, t, "Scenarios");
-        finish(&mut h, t, "Case file the sweep started from");
-        h.push_str("</body>\n</html>\n");
-        return h;
-    }
-    varied_items(&mut h, t);
-    h.push_str("</ul>\n");
-    charts(&mut h, &[(None, t)]);
-    table(&mut h, t, "Scenarios");
-    finish(&mut h, t, "Case file the sweep started from");
-    h.push_str("</body>\n</html>\n");
-    h
-}
-
-/// The base case of a table under the heading `heading`.
-pub(super) fn finish(h: &mut String, t: &Table, heading: &str) {
-    let _ = writeln!(
-        h,
-        "<h2>{}</h2>\n<pre>{}</pre>",
-        esc(heading),
-        esc(
-            &serde_json::from_str::<serde_json::Value>(&t.base_case_json)
-                .and_then(|v| serde_json::to_string_pretty(&v))
-                .unwrap_or_else(|_| t.base_case_json.clone())
-        )
-    );
+    });
+    let charts = if sampled.is_some() {
+        Charts::None
+    } else {
+        charts(&[(None, t)])
+    };
+    render_page(&SweepPage {
+        head_title,
+        heading: title.unwrap_or("Well development sweep report"),
+        version: env!("CARGO_PKG_VERSION"),
+        full_head: true,
+        caution: CAUTION,
+        table: table_view(t, "Scenarios"),
+        sampled,
+        charts,
+    })
 }
 
 /// One line of a chart: the rows of one table that share the other varied values, in
@@ -294,17 +323,13 @@ struct Line<'a> {
 /// One chart per key figure against the first varied value (in SI), one line per table
 /// (named by its legend name when there are several; `None` for a single table) and per
 /// combination of its other varied values. Left out when that value is not a number.
-pub(super) fn charts(h: &mut String, tables: &[(Option<String>, &Table)]) {
+pub(super) fn charts(tables: &[(Option<String>, &Table)]) -> Charts {
     let Some(x_path) = tables.first().and_then(|(_, t)| t.paths.first()) else {
-        return;
+        return Charts::None;
     };
     let all_rows = || tables.iter().flat_map(|(_, t)| t.rows.iter());
     if all_rows().any(|r| !r.si[0].is_finite()) || all_rows().count() < 2 {
-        h.push_str(
-            "<p>No charts: the first varied value is not a number in every scenario \
-                    (or there is only one); the table below has the results.</p>\n",
-        );
-        return;
+        return Charts::NotNumbers;
     }
     // Lines: per table, rows grouped by the other varied values, in order of the first.
     let mut lines: Vec<Line> = Vec::new();
@@ -346,25 +371,14 @@ pub(super) fn charts(h: &mut String, tables: &[(Option<String>, &Table)]) {
     } else {
         Scale::Linear
     };
-    h.push_str("<h2>Figures</h2>\n");
     let per_line = if tables.len() > 1 {
-        "; one line for each table (its letter and file in the legend) and each \
-         combination of that table's other varied values"
-            .to_owned()
+        PerLine::Table
     } else if lines.len() > 1 {
-        format!(
-            "; one line for each value of {}",
-            esc(&tables[0].1.paths[1..].join(", "))
-        )
+        PerLine::Value(tables[0].1.paths[1..].join(", "))
     } else {
-        String::new()
+        PerLine::One
     };
-    let _ = writeln!(
-        h,
-        "<p>Each figure against <code>{}</code> (in SI base units when it carries a unit, \
-         otherwise as given){per_line}. Failed scenarios are left out.</p>",
-        esc(x_path),
-    );
+    let mut figures = Vec::new();
     for (n, (figure, title, _)) in KEY.iter().enumerate() {
         let name = figure.name();
         let ys: Vec<Vec<f64>> = lines
@@ -394,19 +408,23 @@ pub(super) fn charts(h: &mut String, tables: &[(Option<String>, &Table)]) {
                 style: run_style(i),
             });
         }
-        let _ = write!(
-            h,
-            "<figure>\n<h3>Figure {}. {}</h3>\n{}\n</figure>\n",
-            n + 1,
-            esc(title),
-            render(&c)
-        );
+        figures.push(PageFigure {
+            number: n + 1,
+            title: (*title).to_owned(),
+            caption: None,
+            svgs: vec![svg(render(&c))],
+        });
+    }
+    Charts::Figures {
+        x_path: x_path.clone(),
+        per_line,
+        figures,
     }
 }
 
 /// The table of every scenario under the heading `heading`: its values, the key figures
 /// and its status.
-pub(super) fn table(h: &mut String, t: &Table, heading: &str) {
+fn scenarios(t: &Table, heading: &str) -> Scenarios {
     let cols: Vec<(usize, Figure, &str, Shown)> = KEY
         .iter()
         .filter_map(|(figure, _, heading)| {
@@ -417,53 +435,44 @@ pub(super) fn table(h: &mut String, t: &Table, heading: &str) {
                 .map(|i| (i, *figure, *heading, shown(*figure)))
         })
         .collect();
-    let _ = writeln!(h, "<h2>{}</h2>", esc(heading));
-    h.push_str(
-        "<p>Peaks are at the borehole wall (flux, shear) and on the screen \
-         or casing (collapse load); highlighted cells are the checks a single-run report \
-         warns of (collapse margin below 1, gradient above critical, slot velocity above the \
-         rule of thumb, grain Reynolds number above 1, a parted column); the sweep table holds \
-         every figure of every run.</p>\n\
-         <div style=\"overflow-x:auto\">\n<table>\n<thead><tr><th>#</th>",
-    );
-    for p in &t.paths {
-        let _ = write!(h, "<th><code>{}</code></th>", esc(p));
-    }
-    for (_, _, title, s) in &cols {
-        let unit = if s.si.label.is_empty() {
-            String::new()
-        } else {
-            format!(" [{}]", s.si.label)
-        };
-        let _ = write!(h, "<th>{}{}</th>", esc(title), esc(&unit));
-    }
-    h.push_str("<th>Status</th></tr></thead>\n<tbody>\n");
-    for r in &t.rows {
-        let _ = write!(h, "<tr><td>{}</td>", r.scenario);
-        for l in &r.labels {
-            let _ = write!(h, "<td>{}</td>", esc(l));
-        }
-        for (i, figure, _, s) in &cols {
-            let v = r.figures[*i];
-            let class = if flagged(*figure, v) {
-                " class=\"flag\""
+    let columns = cols
+        .iter()
+        .map(|(_, _, title, s)| {
+            if s.si.label.is_empty() {
+                (*title).to_owned()
             } else {
-                ""
-            };
-            let _ = write!(h, "<td{class}>{}</td>", sig(v * s.si.per_si));
-        }
-        let warnings = r.warnings.lines().count();
-        let status = match (r.status.as_str(), warnings) {
-            ("ok", 0) => "ok".to_owned(),
-            ("ok", w) => format!("ok, {w} warning{}", if w == 1 { "" } else { "s" }),
-            (s, _) => s.to_owned(),
-        };
-        let class = if r.status == "ok" {
-            ""
-        } else {
-            " class=\"alarm\""
-        };
-        let _ = writeln!(h, "<td{class}>{}</td></tr>", esc(&status));
+                format!("{title} [{}]", s.si.label)
+            }
+        })
+        .collect();
+    let rows = t
+        .rows
+        .iter()
+        .map(|r| {
+            let warnings = r.warnings.lines().count();
+            ScenarioRow {
+                scenario: r.scenario,
+                labels: r.labels.clone(),
+                values: cols
+                    .iter()
+                    .map(|(i, figure, _, s)| {
+                        let v = r.figures[*i];
+                        (sig(v * s.si.per_si), flagged(*figure, v))
+                    })
+                    .collect(),
+                status: match (r.status.as_str(), warnings) {
+                    ("ok", 0) => "ok".to_owned(),
+                    ("ok", w) => format!("ok, {w} warning{}", if w == 1 { "" } else { "s" }),
+                    (s, _) => s.to_owned(),
+                },
+                failed: r.status != "ok",
+            }
+        })
+        .collect();
+    Scenarios {
+        heading: heading.to_owned(),
+        paths: t.paths.clone(),
+        columns,
+        rows,
     }
-    h.push_str("</tbody>\n</table>\n</div>\n");
 }

@@ -1,16 +1,16 @@
 //! The page comparing two or more grid sweep tables that vary the same first parameter:
 //! one chart per key figure against that parameter with one line per table (and per
 //! combination of its other varied values), then each table's scenarios one after
-//! another. Every number is read from the tables.
+//! another, filled into templates/sweep-compare.html. Every number is read from the tables.
 
-use std::fmt::Write;
 use std::path::PathBuf;
 
-use super::escape::esc;
+use askama::Template;
+use boreflux_solver::safety::CAUTION;
+
+use super::page::render;
 use super::run_letter;
-use super::sweep::{
-    cautions, charts, finish, has_warnings, open, shard_note, table, varied_items, warning_items,
-};
+use super::sweep::{charts, table_view, Charts, PerLine, TableView};
 use crate::sweep::table::Table;
 
 /// Legend name of table `i`: `A: file name`, shortened to fit a legend row.
@@ -28,6 +28,34 @@ pub(super) fn legend_name(i: usize, path: &std::path::Path) -> String {
     format!("{}: {short}", run_letter(i))
 }
 
+/// What the comparison page shows of one table.
+pub(super) struct Compared {
+    /// Legend name, `A: file name`.
+    pub(super) name: String,
+    /// The table's file as given.
+    pub(super) file: String,
+    /// The name and a comma, before each of its warnings.
+    pub(super) prefix: String,
+    /// Heading of its base case.
+    pub(super) case_heading: String,
+    pub(super) table: TableView,
+}
+
+/// The comparison page (templates/sweep-compare.html).
+#[derive(Template)]
+#[template(path = "sweep-compare.html")]
+struct ComparePage<'a> {
+    head_title: String,
+    heading: &'a str,
+    version: &'static str,
+    full_head: bool,
+    caution: &'static str,
+    x_path: &'a str,
+    tables: Vec<Compared>,
+    any_warnings: bool,
+    charts: Charts,
+}
+
 /// The whole comparison page for `tables` (file as given, table), already checked to be
 /// grid sweeps with the same first varied path, under `title` when given.
 pub fn page(tables: &[(PathBuf, Table)], title: Option<&str>) -> String {
@@ -36,62 +64,35 @@ pub fn page(tables: &[(PathBuf, Table)], title: Option<&str>) -> String {
         .enumerate()
         .map(|(i, (p, _))| legend_name(i, p))
         .collect();
-    let mut h = String::new();
     let head_title = title.map_or_else(
         || format!("Sweep comparison: {}", names.join("; ")),
         str::to_owned,
     );
-    open(
-        &mut h,
-        &head_title,
-        title.unwrap_or("Well development sweep comparison"),
-    );
-    let _ = writeln!(
-        h,
-        "<p class=\"lead\">{} sweep tables compared against <code>{}</code>; every number and \
-         figure below is read from the tables. Built by boreflux {}.</p>\n<ul>",
-        tables.len(),
-        esc(tables[0].1.paths.first().map_or("", String::as_str)),
-        env!("CARGO_PKG_VERSION"),
-    );
-    for (name, (path, t)) in names.iter().zip(tables) {
-        let _ = writeln!(
-            h,
-            "<li>{}: {} scenarios of <code>{}</code>{} (file <code>{}</code>)</li>",
-            esc(name),
-            t.rows.len(),
-            esc(&t.case_file),
-            shard_note(t),
-            esc(&path.display().to_string()),
-        );
-    }
-    h.push_str("</ul>\n");
-    cautions(&mut h);
-    if tables.iter().any(|(_, t)| has_warnings(t)) {
-        h.push_str("<section class=\"warnings\">\n<h2>Warnings</h2>\n<ul>\n");
-        for (name, (_, t)) in names.iter().zip(tables) {
-            warning_items(&mut h, t, &format!("{}, ", esc(name)));
-        }
-        h.push_str("</ul>\n</section>\n");
-    }
-    h.push_str("<h2>What was varied</h2>\n");
-    for (name, (_, t)) in names.iter().zip(tables) {
-        let _ = writeln!(h, "<h3>{}</h3>\n<ul>", esc(name));
-        varied_items(&mut h, t);
-        h.push_str("</ul>\n");
-    }
     let named: Vec<(Option<String>, &Table)> = names
         .iter()
         .zip(tables)
         .map(|(n, (_, t))| (Some(n.clone()), t))
         .collect();
-    charts(&mut h, &named);
-    for (name, (_, t)) in names.iter().zip(tables) {
-        table(&mut h, t, &format!("Scenarios of {name}"));
-    }
-    for (name, (_, t)) in names.iter().zip(tables) {
-        finish(&mut h, t, &format!("Case file {name} started from"));
-    }
-    h.push_str("</body>\n</html>\n");
-    h
+    let compared: Vec<Compared> = names
+        .iter()
+        .zip(tables)
+        .map(|(name, (path, t))| Compared {
+            name: name.clone(),
+            file: path.display().to_string(),
+            prefix: format!("{name}, "),
+            case_heading: format!("Case file {name} started from"),
+            table: table_view(t, &format!("Scenarios of {name}")),
+        })
+        .collect();
+    render(&ComparePage {
+        head_title,
+        heading: title.unwrap_or("Well development sweep comparison"),
+        version: env!("CARGO_PKG_VERSION"),
+        full_head: true,
+        caution: CAUTION,
+        x_path: tables[0].1.paths.first().map_or("", String::as_str),
+        any_warnings: compared.iter().any(|c| !c.table.warnings.is_empty()),
+        tables: compared,
+        charts: charts(&named),
+    })
 }

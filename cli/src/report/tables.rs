@@ -1,78 +1,105 @@
-//! The per-cycle log and the inputs table (from `case_json`), as HTML with every
-//! file-derived text escaped.
-
-use std::fmt::Write;
+//! The per-cycle log and the inputs table (from `case_json`), as data for the page
+//! templates (templates/partials/table.html), which escape every text.
 
 use serde_json::Value;
 
-use super::escape::esc;
 use super::format::{
     count, duration, sig, temperature, with_units, AREA, CONDUCTIVITY, ERODIBILITY, FLOW,
     FORCHHEIMER_BETA, FREQUENCY, HEAD, NUMBER, PRESSURE, SHEAR, SMALL_LENGTH, SPECIFIC_STORAGE,
 };
 use super::input_units::{self, InputUnit};
+use super::page::{Cell, Column, CompareTable, TableRow};
 use super::read::Run;
 use super::run_letter;
 
 /// Cycle-log rows shown at the start and at the end of a long run.
 const CYCLE_ROWS_EACH_END: usize = 10;
 
-/// Opens a comparison table: a first header cell and one column per run.
-pub fn header_row(runs: &[Run], first: &str) -> String {
-    let mut t = format!(r#"<table class="compare"><thead><tr><th scope="col">{first}</th>"#);
-    for i in 0..runs.len() {
-        let _ = write!(t, r#"<th scope="col">Run {}</th>"#, run_letter(i));
+/// A comparison table with a first header cell `first`, one column per run (its letter)
+/// and no rows yet.
+pub fn compare_table(runs: &[Run], class: &'static str, first: &str) -> CompareTable {
+    CompareTable {
+        class,
+        first: first.to_owned(),
+        columns: (0..runs.len())
+            .map(|i| Column {
+                letter: run_letter(i),
+                sub: None,
+            })
+            .collect(),
+        close_head_row: true,
+        rows: Vec::new(),
     }
-    t.push_str("</tr></thead><tbody>");
-    t
+}
+
+/// The per-cycle log of one run (templates/partials/table.html, `cycle_log`).
+pub struct CycleLog {
+    /// The rows shown.
+    pub rows: Vec<CycleRow>,
+}
+
+/// A row of the cycle log.
+pub enum CycleRow {
+    /// Cycles left out of a long log.
+    Gap {
+        /// How many.
+        hidden: usize,
+    },
+    /// One cycle.
+    Cycle {
+        /// Cycle number, from 1.
+        number: String,
+        /// Start time [s].
+        start: String,
+        /// End time [s].
+        end: String,
+        /// Peak outward, peak inward and RMS flux [mm/s], peak shear [Pa], work in the
+        /// cake [J], cake removed [mm].
+        values: Vec<String>,
+    },
 }
 
 /// The per-cycle log of one run, or `None` without cycles. Long logs show the first and
 /// last cycles.
-pub fn cycle_log(run: &Run) -> Option<String> {
+pub fn cycle_log(run: &Run) -> Option<CycleLog> {
     let c = &run.cycles;
     let n = c.index.len();
     if n == 0 {
         return None;
     }
-    let mut t = String::from(
-        r#"<table class="cycles"><thead><tr><th scope="col">Cycle</th><th scope="col">Start – end [s]</th><th scope="col">Peak outward flux [mm/s]</th><th scope="col">Peak inward flux [mm/s]</th><th scope="col">RMS flux [mm/s]</th><th scope="col">Peak shear [Pa]</th><th scope="col">Work in cake [J]</th><th scope="col">Cake removed [mm]</th></tr></thead><tbody>"#,
-    );
-    let rows: Vec<usize> = if n <= 2 * CYCLE_ROWS_EACH_END + 1 {
+    let shown: Vec<usize> = if n <= 2 * CYCLE_ROWS_EACH_END + 1 {
         (0..n).collect()
     } else {
         (0..CYCLE_ROWS_EACH_END)
             .chain(n - CYCLE_ROWS_EACH_END..n)
             .collect()
     };
-    for (k, &i) in rows.iter().enumerate() {
-        if k == CYCLE_ROWS_EACH_END && rows.len() < n {
-            let _ = write!(
-                t,
-                r#"<tr><td colspan="8" class="gap">… {} cycles not shown (all are in /cycles of the run file) …</td></tr>"#,
-                n - rows.len()
-            );
+    let mut rows = Vec::with_capacity(shown.len() + 1);
+    for (k, &i) in shown.iter().enumerate() {
+        if k == CYCLE_ROWS_EACH_END && shown.len() < n {
+            rows.push(CycleRow::Gap {
+                hidden: n - shown.len(),
+            });
         }
-        let _ = write!(
-            t,
-            "<tr><td>{}</td><td>{} – {}</td><td>{}</td><td>{}</td><td>{}</td><td>{}</td><td>{}</td><td>{}</td></tr>",
-            count(c.index[i] + 1.0),
-            sig(c.start_time[i]),
-            sig(c.end_time[i]),
-            sig(c.peak_outward_flux[i] * 1e3),
-            sig(c.peak_inward_flux[i] * 1e3),
-            sig(c.rms_face_flux[i] * 1e3),
-            sig(c.peak_shear[i]),
-            sig(c.work_cake[i]),
-            sig(c.cake_removed[i] * 1e3),
-        );
+        rows.push(CycleRow::Cycle {
+            number: count(c.index[i] + 1.0),
+            start: sig(c.start_time[i]),
+            end: sig(c.end_time[i]),
+            values: vec![
+                sig(c.peak_outward_flux[i] * 1e3),
+                sig(c.peak_inward_flux[i] * 1e3),
+                sig(c.rms_face_flux[i] * 1e3),
+                sig(c.peak_shear[i]),
+                sig(c.work_cake[i]),
+                sig(c.cake_removed[i] * 1e3),
+            ],
+        });
     }
-    t.push_str("</tbody></table>");
-    Some(t)
+    Some(CycleLog { rows })
 }
 
 /// Inputs of every run from `case_json`, one column per run, grouped by section.
-pub fn inputs(runs: &[Run]) -> String {
+pub fn inputs(runs: &[Run]) -> CompareTable {
     const ORDER: [&str; 9] = [
         "fluid",
         "well",
@@ -103,8 +130,7 @@ pub fn inputs(runs: &[Run]) -> String {
             }
         }
     }
-    let mut t = header_row(runs, "Input (resolved, SI; US in brackets)");
-    let ncols = runs.len() + 1;
+    let mut t = compare_table(runs, "compare", "Input (resolved, SI; US in brackets)");
     for section in &sections {
         // Union of the flattened keys of this section over all runs, in first-seen order.
         let mut keys: Vec<String> = Vec::new();
@@ -126,25 +152,26 @@ pub fn inputs(runs: &[Run]) -> String {
         if keys.is_empty() {
             continue;
         }
-        let _ = write!(
-            t,
-            r#"<tr class="section"><th colspan="{ncols}">{}</th></tr>"#,
-            esc(section)
-        );
-        for key in &keys {
-            let _ = write!(t, r#"<tr><th scope="row"><code>{}</code></th>"#, esc(key));
-            for (run_flat, case) in flat.iter().zip(&cases) {
-                let cell = match run_flat.iter().find(|(k, _)| k == key) {
-                    Some((_, v)) => input_value(key, v),
-                    None if case.is_none() => "case not readable".to_owned(),
-                    None => "—".to_owned(),
-                };
-                let _ = write!(t, "<td>{}</td>", esc(&cell));
-            }
-            t.push_str("</tr>");
+        t.rows.push(TableRow::Section(section.clone()));
+        for key in keys {
+            let cells = flat
+                .iter()
+                .zip(&cases)
+                .map(|(run_flat, case)| {
+                    Cell::plain(match run_flat.iter().find(|(k, _)| *k == key) {
+                        Some((_, v)) => input_value(&key, v),
+                        None if case.is_none() => "case not readable".to_owned(),
+                        None => "—".to_owned(),
+                    })
+                })
+                .collect();
+            t.rows.push(TableRow::Values {
+                label: key,
+                code: true,
+                cells,
+            });
         }
     }
-    t.push_str("</tbody></table>");
     t
 }
 

@@ -2,15 +2,12 @@
 //! P10/P50/P90 bands of the key series across the scenarios, the distribution of the
 //! headline figures (percentiles and empirical CDFs), and the probability that the
 //! collapse margin is below 1 with its 95 % Wilson interval. Percentiles are numpy's
-//! default (linear, Hyndman & Fan definition 7), [`crate::sweep::stats`].
+//! default (linear, Hyndman & Fan definition 7), [`crate::sweep::stats`]. Shown by
+//! templates/partials/uncertainty.html.
 
-use std::fmt::Write;
-
-use boreflux_solver::safety::CAUTION;
-
-use super::escape::esc;
 use super::figures::quantity_chart;
 use super::format::{shown_for, sig, Shown};
+use super::page::{svg, Svg};
 use super::svg::{render, Mark, Series, Style};
 use crate::output::schema::{Figure, SweepSeries};
 use crate::sweep::stats::{percentile, sorted_finite, wilson};
@@ -69,65 +66,85 @@ fn column(t: &Table, f: Figure) -> Option<Vec<f64>> {
     Some(t.rows.iter().map(|r| r.figures[k]).collect())
 }
 
+/// A sampled sweep's uncertainty section.
+pub(super) struct Uncertainty {
+    /// Scenarios that ran to the end.
+    pub(super) ok: usize,
+    /// Scenarios in the table.
+    pub(super) count: usize,
+    /// The share of scenarios with a collapse margin below 1; `None` when none has a margin.
+    pub(super) collapse: Option<CollapseShare>,
+    /// Percentiles of the headline figures.
+    pub(super) headline: Vec<HeadlineRow>,
+    /// Empirical distributions.
+    pub(super) distributions: Vec<Distribution>,
+    /// Whether the table holds key series (tables of earlier versions do not).
+    pub(super) has_series: bool,
+    /// P10/P50/P90 bands: title and chart.
+    pub(super) bands: Vec<(&'static str, Svg)>,
+}
+
+/// How many scenarios have a collapse margin below 1, with the Wilson interval.
+pub(super) struct CollapseShare {
+    pub(super) below: usize,
+    pub(super) count: usize,
+    pub(super) share: String,
+    pub(super) low: String,
+    pub(super) high: String,
+}
+
+/// Percentiles of one headline figure: min, P10, P50, P90, max.
+pub(super) struct HeadlineRow {
+    pub(super) title: &'static str,
+    pub(super) unit: &'static str,
+    pub(super) with_it: usize,
+    pub(super) values: [String; 5],
+}
+
+/// The empirical distribution of one figure.
+pub(super) struct Distribution {
+    pub(super) title: &'static str,
+    pub(super) svg: Svg,
+    /// Scenarios drawn.
+    pub(super) shown: usize,
+    /// Scenarios without the figure.
+    pub(super) left_out: usize,
+}
+
 /// The whole section.
-pub(super) fn section(h: &mut String, t: &Table) {
-    let ok = t.rows.iter().filter(|r| r.status == "ok").count();
-    h.push_str("<h2>Uncertainty</h2>\n");
-    let _ = writeln!(
-        h,
-        "<p>{ok} of {} scenarios ran to the end. P10, P50 and P90 are percentiles across \
-         those scenarios, by numpy's default definition (linear interpolation between order \
-         statistics: for n sorted values x₀…x<sub>n−1</sub>, h = (n − 1) q/100 and \
-         P<sub>q</sub> = x<sub>⌊h⌋</sub> + (h − ⌊h⌋)(x<sub>⌊h⌋+1</sub> − x<sub>⌊h⌋</sub>); \
-         Hyndman &amp; Fan 1996, definition 7). They describe the model's response to the \
-         input distributions as given; they are no statement about inputs left fixed or \
-         about the model's own error. With few scenarios the outer percentiles are rough: \
-         rerun with more samples before relying on P10 or P90.</p>",
-        t.rows.len()
-    );
-    collapse(h, t);
-    headline_table(h, t);
-    cdfs(h, t);
-    bands(h, t);
+pub(super) fn section(t: &Table) -> Uncertainty {
+    let (has_series, bands) = bands(t);
+    Uncertainty {
+        ok: t.rows.iter().filter(|r| r.status == "ok").count(),
+        count: t.rows.len(),
+        collapse: collapse(t),
+        headline: headline_table(t),
+        distributions: cdfs(t),
+        has_series,
+        bands,
+    }
 }
 
 /// The probability that the collapse margin is below 1, with its Wilson interval.
-fn collapse(h: &mut String, t: &Table) {
+fn collapse(t: &Table) -> Option<CollapseShare> {
     let margins: Vec<f64> = column(t, Figure::CollapseMargin)
         .unwrap_or_default()
         .into_iter()
         .filter(|x| x.is_finite())
         .collect();
-    h.push_str("<section class=\"caution\">\n<h3>Collapse</h3>\n");
     if margins.is_empty() {
-        h.push_str(
-            "<p>No scenario has a collapse margin (no collapse rating was given or \
-             computed); the collapse load is shown below without a margin.</p>\n",
-        );
-    } else {
-        let n = margins.len();
-        let k = margins.iter().filter(|&&m| m < 1.0).count();
-        let (lo, hi) = wilson(k, n, 0.95).unwrap_or((f64::NAN, f64::NAN));
-        let _ = writeln!(
-            h,
-            "<p><strong>Probability that the collapse margin is below 1: {k} of {n} \
-             scenarios ({}), 95 % interval {} to {}.</strong> The interval is the Wilson \
-             score interval for a proportion (E. B. Wilson, JASA 22, 209–212, 1927); it \
-             covers only the sampling error of {n} scenarios, not the input distributions' \
-             own uncertainty. A probability near zero from a few hundred scenarios does not \
-             show that collapse cannot happen.</p>",
-            pct(k as f64 / n as f64),
-            pct(lo),
-            pct(hi)
-        );
+        return None;
     }
-    let _ = writeln!(
-        h,
-        "<p>{}</p>\n<p>Compare the collapse loads with the manufacturer's ratings for this \
-         screen and casing, follow the local well construction code and licensed practice, \
-         and start gently.</p>\n</section>",
-        esc(CAUTION)
-    );
+    let n = margins.len();
+    let k = margins.iter().filter(|&&m| m < 1.0).count();
+    let (lo, hi) = wilson(k, n, 0.95).unwrap_or((f64::NAN, f64::NAN));
+    Some(CollapseShare {
+        below: k,
+        count: n,
+        share: pct(k as f64 / n as f64),
+        low: pct(lo),
+        high: pct(hi),
+    })
 }
 
 fn pct(p: f64) -> String {
@@ -144,14 +161,8 @@ fn shown(f: Figure) -> Shown {
 }
 
 /// Percentiles of each headline figure, and how many scenarios have it.
-fn headline_table(h: &mut String, t: &Table) {
-    h.push_str(
-        "<h3>Headline figures across the scenarios</h3>\n<p>A figure is missing from a \
-         scenario when it failed or the figure was not reached (a cake not cleared by the \
-         end of the run has no time to clean).</p>\n<table>\n<thead><tr><th>Figure</th>\
-         <th>Unit</th><th>Scenarios with it</th><th>Min</th><th>P10</th><th>P50</th>\
-         <th>P90</th><th>Max</th></tr></thead>\n<tbody>\n",
-    );
+fn headline_table(t: &Table) -> Vec<HeadlineRow> {
+    let mut rows = Vec::new();
     for (f, title) in HEADLINE {
         let Some(col) = column(t, f) else { continue };
         let v = sorted_finite(col);
@@ -160,22 +171,20 @@ fn headline_table(h: &mut String, t: &Table) {
         }
         let s = shown(f);
         let cell = |x: f64| sig(x * s.si.per_si);
-        let _ = writeln!(
-            h,
-            "<tr><td>{}</td><td>{}</td><td>{} of {}</td><td>{}</td><td>{}</td><td>{}</td>\
-             <td>{}</td><td>{}</td></tr>",
-            esc(title),
-            esc(s.si.label),
-            v.len(),
-            t.rows.len(),
-            cell(v[0]),
-            cell(percentile(&v, 10.0)),
-            cell(percentile(&v, 50.0)),
-            cell(percentile(&v, 90.0)),
-            cell(v[v.len() - 1]),
-        );
+        rows.push(HeadlineRow {
+            title,
+            unit: s.si.label,
+            with_it: v.len(),
+            values: [
+                cell(v[0]),
+                cell(percentile(&v, 10.0)),
+                cell(percentile(&v, 50.0)),
+                cell(percentile(&v, 90.0)),
+                cell(v[v.len() - 1]),
+            ],
+        });
     }
-    h.push_str("</tbody>\n</table>\n");
+    rows
 }
 
 /// The empirical CDF of `v` (sorted) as a staircase: (x_i, i/n) to (x_i, (i+1)/n).
@@ -191,7 +200,7 @@ fn staircase(v: &[f64]) -> (Vec<f64>, Vec<f64>) {
 }
 
 /// Empirical CDFs of time to clean, final specific capacity, collapse load and margin.
-fn cdfs(h: &mut String, t: &Table) {
+fn cdfs(t: &Table) -> Vec<Distribution> {
     let clean =
         if column(t, Figure::CyclesTo90pctCake).is_some_and(|c| c.iter().any(|x| x.is_finite())) {
             Figure::CyclesTo90pctCake
@@ -204,7 +213,7 @@ fn cdfs(h: &mut String, t: &Table) {
         Figure::PeakCollapsePressure,
         Figure::CollapseMargin,
     ];
-    let mut n = 0;
+    let mut out = Vec::new();
     for f in charts {
         let Some(col) = column(t, f) else { continue };
         let v = sorted_finite(col.iter().copied());
@@ -217,7 +226,7 @@ fn cdfs(h: &mut String, t: &Table) {
             .map_or("", |(_, title)| *title);
         let s = shown(f);
         let (x, y) = staircase(&v);
-        let mut c = quantity_chart(&format!("ecdf{n}"), title, "", title, s);
+        let mut c = quantity_chart(&format!("ecdf{}", out.len()), title, "", title, s);
         // The quantity on x, the share of scenarios on y.
         c.x_label = if s.si.label.is_empty() {
             title.to_owned()
@@ -251,30 +260,22 @@ fn cdfs(h: &mut String, t: &Table) {
             y: &y,
             style: P50,
         });
-        n += 1;
-        let missing = col.len() - v.len();
-        let _ = write!(
-            h,
-            "<figure>\n<h3>{}: distribution across the scenarios</h3>\n{}\n<figcaption>\
-             Empirical cumulative distribution of {} scenarios{}.</figcaption>\n</figure>\n",
-            esc(title),
-            render(&c),
-            v.len(),
-            if missing > 0 {
-                format!("; {missing} without the figure are left out")
-            } else {
-                String::new()
-            }
-        );
+        out.push(Distribution {
+            title,
+            svg: svg(render(&c)),
+            shown: v.len(),
+            left_out: col.len() - v.len(),
+        });
     }
+    out
 }
 
-/// P10/P50/P90 of each key series at every grid point.
-fn bands(h: &mut String, t: &Table) {
+/// P10/P50/P90 of each key series at every grid point: whether the table has key series,
+/// and the charts.
+fn bands(t: &Table) -> (bool, Vec<(&'static str, Svg)>) {
     let rows: Vec<_> = t.rows.iter().filter(|r| !r.series.is_empty()).collect();
     if rows.is_empty() {
-        h.push_str("<p>No key series in this table (written by an earlier version?).</p>\n");
-        return;
+        return (false, Vec::new());
     }
     let slot = |s: SweepSeries| {
         SweepSeries::PER_SCENARIO
@@ -302,13 +303,7 @@ fn bands(h: &mut String, t: &Table) {
     } else {
         "Share of the run [%] (the scenarios' durations differ)"
     };
-    h.push_str(
-        "<h3>Key series: P10, P50 and P90 across the scenarios</h3>\n<p>At each of 51 \
-         points of the run, the percentiles of the scenarios' values (solid P50, dashed P10 \
-         and P90). The values at a point are those of the first step at or after it; the \
-         flux is the largest of the cycles ending in the interval before it. The lines join \
-         percentiles point by point: no single scenario need follow them.</p>\n",
-    );
+    let mut out = Vec::new();
     for (n, (s, title)) in BANDS.iter().enumerate() {
         let j = slot(*s);
         let mut p = [
@@ -342,13 +337,9 @@ fn bands(h: &mut String, t: &Table) {
                 style,
             });
         }
-        let _ = write!(
-            h,
-            "<figure>\n<h3>{}</h3>\n{}\n</figure>\n",
-            esc(title),
-            render(&c)
-        );
+        out.push((*title, svg(render(&c))));
     }
+    (true, out)
 }
 
 #[cfg(test)]
