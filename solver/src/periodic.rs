@@ -234,7 +234,7 @@ impl<'a> Shooter<'a> {
                 "steps per cycle, restart length and the cycle cap must be at least 1",
             ));
         }
-        if !(opts.tolerance > 0.0) {
+        if opts.tolerance.is_nan() || opts.tolerance <= 0.0 {
             return Err(PeriodicError::Settings("the tolerance must be positive"));
         }
         let drive = &model.drive;
@@ -402,15 +402,15 @@ impl<'a> Shooter<'a> {
     /// Φ in scaled units: `out` = Φ(s z)/s.
     fn phi(&mut self, z: &[f64], out: &mut [f64]) -> Result<(), PeriodicError> {
         let n = z.len();
-        for i in 0..n {
-            self.x[i] = z[i] * self.scale[i];
+        for ((x, v), s) in self.x.iter_mut().zip(z).zip(&self.scale) {
+            *x = v * s;
         }
         self.work
             .restart_from(&self.base, &self.x[..n - 1], self.x[n - 1]);
         self.cycle(None)?;
         read_state(&self.work, &mut self.x);
-        for i in 0..n {
-            out[i] = self.x[i] / self.scale[i];
+        for ((o, x), s) in out.iter_mut().zip(&self.x).zip(&self.scale) {
+            *o = x / s;
         }
         Ok(())
     }
@@ -481,8 +481,8 @@ pub fn shoot(
     }
     // The figures of the periodic cycle, stepped once more from the state found.
     let mut fig = CycleFigures::default();
-    for i in 0..n {
-        sh.x[i] = z[i] * sh.scale[i];
+    for ((x, v), s) in sh.x.iter_mut().zip(&z).zip(&sh.scale) {
+        *x = v * s;
     }
     let x = sh.x.clone();
     sh.work.restart_from(&sh.base, &x[..n - 1], x[n - 1]);

@@ -82,9 +82,7 @@ impl Gmres {
             } else {
                 apply(x, &mut self.av)?;
                 products += 1;
-                for i in 0..n {
-                    self.basis[i] = b[i] - self.av[i];
-                }
+                combine(&mut self.basis[..n], b, -1.0, &self.av);
             }
             let beta = norm(&self.basis[..n]);
             residual = beta;
@@ -170,6 +168,13 @@ impl Gmres {
             products,
             relative_residual: residual / b_norm,
         })
+    }
+}
+
+/// out = a + s b.
+pub fn combine(out: &mut [f64], a: &[f64], s: f64, b: &[f64]) {
+    for ((o, x), y) in out.iter_mut().zip(a).zip(b) {
+        *o = x + s * y;
     }
 }
 

@@ -5,7 +5,7 @@
 //! from memory — verify). Used by the shooting method of the parent module, where Φ is one
 //! period of time stepping; tested on its own with a scalar periodic ODE.
 
-use super::gmres::{norm, Gmres};
+use super::gmres::{combine, norm, Gmres};
 
 /// Relative size of the finite-difference step of a Jacobian–vector product, in the scaled
 /// unknowns: near √(noise of Φ) for a Φ accurate to ~1e-11 relative (Kelley 2003 §3.2.1,
@@ -76,9 +76,7 @@ pub fn fixed_point<E>(
     let mut gmres = Gmres::new(n, settings.restart);
     let mut evaluations = 1;
     phi(z, &mut phi_z)?;
-    for i in 0..n {
-        f[i] = phi_z[i] - z[i];
-    }
+    combine(&mut f, &phi_z, -1.0, z);
     let mut history = vec![max_abs(&f)];
     let (mut newton, mut products) = (0, 0);
     let mut f_norm = norm(&f);
@@ -110,12 +108,10 @@ pub fn fixed_point<E>(
                 return Ok(());
             }
             let eps = FD_STEP * z_scale / vn;
-            for i in 0..n {
-                pert[i] = z_ref[i] + eps * v[i];
-            }
+            combine(&mut pert, z_ref, eps, v);
             phi(&pert, out)?;
-            for i in 0..n {
-                out[i] = (out[i] - phi_z[i]) / eps - v[i];
+            for ((o, p), x) in out.iter_mut().zip(&phi_z).zip(v) {
+                *o = (*o - p) / eps - x;
             }
             Ok(())
         })?;
@@ -128,14 +124,10 @@ pub fn fixed_point<E>(
             if evaluations >= settings.max_evaluations {
                 break;
             }
-            for i in 0..n {
-                trial[i] = z[i] + lambda * d[i];
-            }
+            combine(&mut trial, z, lambda, &d);
             phi(&trial, &mut phi_trial)?;
             evaluations += 1;
-            for i in 0..n {
-                f_trial[i] = phi_trial[i] - trial[i];
-            }
+            combine(&mut f_trial, &phi_trial, -1.0, &trial);
             let tn = norm(&f_trial);
             if tn <= (1.0 - ARMIJO * lambda) * f_norm {
                 accepted = true;

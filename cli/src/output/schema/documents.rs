@@ -106,7 +106,7 @@ json_document! {
         SHOOTING_NEWTON => "periodic_state.newton_iterations", "", Number, "shooting: Newton iterations";
         SHOOTING_PERIODS => "periodic_state.periods_stepped", "", Number, "shooting: periods time-stepped in all (start-up ramp, warm-up, every evaluation of the period map, the final period)";
         SHOOTING_DEFECT => "periodic_state.defect", "", Number, "shooting: the periodicity defect, largest change of a head over one period relative to the largest head (the column flow relative to its largest)";
-        NOT_APPLICABLE => "periodic_state.not_applicable", "", Text, "why the periodic state was not computed (in place of the four keys above)";
+        NOT_APPLICABLE => "periodic_state.not_applicable", "", Text, "why the periodic state was not computed (in place of the keys above)";
         TITLE => "title", "", Text, "the case title";
         ZONES => "zones", "", Array, "the zones that hold cells, inner to outer";
         ZONE => "zones[].zone", "", Text, "zone name";
