@@ -83,12 +83,20 @@ const PERIODIC_HARMONICS: usize = 32;
 /// Most periods `check` time-steps for the periodic state by shooting (warm-up included).
 const SHOOTING_MAX_PERIODS: usize = 200;
 
+/// Most cell-steps `check` spends on the shooting: about 2 s at the 0.35 µs a cell-step
+/// measured on the shipped swab case (1.24 M cell-steps in 0.42 s, 2026-12-04).
+const SHOOTING_MAX_CELL_STEPS: usize = 5_000_000;
+
+/// Fewest periods worth starting the shooting with (a ramp, the warm-up, a few Newton
+/// iterations).
+const SHOOTING_MIN_PERIODS: usize = 20;
+
 /// The periodic steady state of the well as it stands (cake and fines frozen): by the
 /// harmonic method for a linear case under a periodic prescribed head, else by Newton–shooting
 /// on one period (`boreflux_solver::periodic`); period, peak screen flow and wall face flux
 /// over a period, mean power per zone (and the shooting's work and defect); or why neither
 /// applies.
-fn periodic_state(m: &Model) -> Result<serde_json::Value, String> {
+fn periodic_state(m: &Model, cells: usize) -> Result<serde_json::Value, String> {
     let rho_g = m.fluid.density_kg_m3 * boreflux_solver::water::GRAVITY_M_S2;
     let area = 2.0 * PI * m.borehole_radius_m() * m.well.screen_length_m;
     let per_zone = |power: [f64; boreflux_solver::grid::ZONE_COUNT]| {
@@ -119,11 +127,22 @@ fn periodic_state(m: &Model) -> Result<serde_json::Value, String> {
         }
         Err(why) => why,
     };
-    // The work is capped (`Options::max_cycles`) so that `check` stays quick.
+    // The work is capped (`Options::max_cycles`) so that `check` stays quick: at most
+    // SHOOTING_MAX_PERIODS periods and SHOOTING_MAX_CELL_STEPS cell-steps in all.
+    let base = periodic::Options::for_model(m);
+    let per_period = (cells * base.steps_per_cycle).max(1);
     let opts = periodic::Options {
-        max_cycles: SHOOTING_MAX_PERIODS,
-        ..periodic::Options::for_model(m)
+        max_cycles: SHOOTING_MAX_PERIODS.min(SHOOTING_MAX_CELL_STEPS / per_period),
+        ..base
     };
+    if opts.max_cycles < SHOOTING_MIN_PERIODS {
+        return Err(format!(
+            "harmonic method: {why_harmonic}; shooting: not run by `check`, one period is \
+             {per_period} cell-steps ({cells} cells × {} steps) and `check` steps at most \
+             {SHOOTING_MAX_CELL_STEPS} cell-steps",
+            base.steps_per_cycle
+        ));
+    }
     match periodic::shoot(m, &SlowState::new(m), &opts) {
         Ok(s) => Ok(json!({
             (K::PERIODIC_METHOD.key()): "shooting",
@@ -190,7 +209,7 @@ pub fn check(a: &CheckArgs) -> Result<(), Failure> {
         let (q, wc, wp) = annulus_run(m, width)?;
         widths.push((width, q, wc, wp));
     }
-    let periodic = periodic_state(m);
+    let periodic = periodic_state(m, g.cells());
     let cost = crate::cost::run_cost(&case, false, 0);
     if a.json {
         let v = json!({
