@@ -273,12 +273,20 @@ pub fn plain_cycles(
     let mut cycles_to_tolerance = None;
     for k in 0..max_cycles {
         sh.phi(&z, &mut next)?;
-        let d = z
-            .iter()
-            .zip(&next)
-            .fold(0.0f64, |a, (x, y)| a.max((x - y).abs()));
+        let d = z.iter().zip(&next).fold(0.0f64, |a, (x, y)| {
+            let e = (x - y).abs();
+            // NaN stays NaN (`f64::max` would drop it).
+            if e.is_nan() || a.is_nan() {
+                f64::NAN
+            } else {
+                a.max(e)
+            }
+        });
         defects.push(d);
         std::mem::swap(&mut z, &mut next);
+        if !d.is_finite() {
+            break;
+        }
         if d <= opts.tolerance {
             cycles_to_tolerance = Some(k + 1);
             break;

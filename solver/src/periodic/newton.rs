@@ -53,8 +53,15 @@ pub struct Outcome {
     pub evaluations: usize,
 }
 
+/// ‖v‖∞, NaN when any entry is NaN (`f64::max` would drop it and report convergence).
 fn max_abs(v: &[f64]) -> f64 {
-    v.iter().fold(0.0f64, |a, x| a.max(x.abs()))
+    v.iter().fold(0.0f64, |a, x| {
+        if x.is_nan() || a.is_nan() {
+            f64::NAN
+        } else {
+            a.max(x.abs())
+        }
+    })
 }
 
 /// Solves x = Φ(x) from the initial x in `z` (overwritten with the last iterate).
@@ -83,7 +90,8 @@ pub fn fixed_point<E>(
     let mut eta = ETA_MAX;
     let mut f_prev: Option<f64> = None;
     let done = |f: &[f64]| max_abs(f) <= settings.tolerance;
-    while !done(&f) {
+    // A defect that is not finite (NaN or ∞ from Φ) ends the solve unconverged.
+    while !done(&f) && max_abs(&f).is_finite() {
         // One evaluation is kept for the line search.
         let budget = settings.max_evaluations.saturating_sub(evaluations + 1);
         if newton >= settings.max_newton || budget == 0 {
@@ -201,6 +209,25 @@ mod tests {
         assert!((z[0] - 2.0).abs() < 1e-9, "{}", z[0]);
         // Newton converges fast here (superlinearly from a poor start): a handful of steps.
         assert!(out.newton <= 8, "{out:?}");
+    }
+
+    #[test]
+    fn a_map_that_gives_nan_is_not_converged() {
+        let settings = Settings {
+            tolerance: 1e-8,
+            max_newton: 5,
+            max_evaluations: 50,
+            restart: 5,
+        };
+        let mut z = [1.0, 2.0];
+        let out = fixed_point(&mut z, &settings, |x: &[f64], o: &mut [f64]| {
+            o[0] = x[0];
+            o[1] = f64::NAN;
+            Ok::<(), ()>(())
+        })
+        .unwrap();
+        assert!(!out.converged && out.defect.is_nan(), "{out:?}");
+        assert_eq!(out.evaluations, 1);
     }
 
     #[test]
