@@ -80,8 +80,11 @@ fn check_json_prints_exactly_the_schema_keys() {
     // A linear (Darcy) well under a sine head, where `check` computes the periodic state.
     let linear = repo("cli/tests/data/linear-sine.json");
     let demo = repo("cases/municipal-sand-gravel.json");
+    // A schedule: no periodic state (`periodic_state.not_applicable`).
+    let staged = repo("cases/staged-development.json");
     let docs = [
         json_of(&["check", linear.to_str().unwrap(), "--json"]),
+        json_of(&["check", staged.to_str().unwrap(), "--json"]),
         json_of(&[
             "check",
             demo.to_str().unwrap(),

@@ -26,6 +26,7 @@ pub mod harmonic;
 pub mod limits;
 pub mod media;
 pub mod model;
+pub mod periodic;
 pub mod run;
 pub mod safety;
 pub mod skin;

@@ -365,6 +365,36 @@ impl Stepper {
         self.predictor_mid.forget();
     }
 
+    /// The water column's flow when it is a state of the well (a column with inertia in the
+    /// last stage), m³/s; None otherwise (the screen flow then follows from the heads).
+    pub fn column_flow(&self) -> Option<f64> {
+        self.column.inertial.then_some(self.column.q)
+    }
+
+    /// Restarts from `from`'s state (clock, the column's role, vapour gap, sealed flag and
+    /// damped steps) with the heads `heads` and, when the column is a state, its flow
+    /// `column_flow`: what a shooting method (`crate::periodic`) needs to take one period
+    /// from a state of its choosing. The faces are not touched (they must be `from`'s),
+    /// the step history is forgotten, nothing is left to undo, nothing is allocated.
+    pub fn restart_from(&mut self, from: &Stepper, heads: &[f64], column_flow: f64) {
+        self.h.copy_from_slice(heads);
+        self.y.copy_from_slice(heads);
+        self.time_s = from.time_s;
+        self.vapour = from.vapour;
+        self.was_sealed = from.was_sealed;
+        self.damped_steps = from.damped_steps;
+        self.partings = from.partings;
+        self.parted_time_s = from.parted_time_s;
+        self.column = from.column;
+        if self.column.inertial {
+            self.column.q = column_flow;
+        }
+        self.column_start = self.column;
+        self.undo_time = None;
+        self.predict_end = from.predict_end;
+        self.forget_history();
+    }
+
     /// True when the step is solved directly (no Newton iteration).
     pub fn is_linear(&self) -> bool {
         self.linear

@@ -35,6 +35,11 @@ pub fn all() -> Vec<Group> {
             run: crate::harmonic::analytic_periodic,
         },
         Group {
+            id: "shooting",
+            title: "Periodic state by Newton–shooting: scalar ODE (scipy) and the harmonic method",
+            run: crate::shooting::shooting,
+        },
+        Group {
             id: "slug",
             title: "Cooper–Bredehoeft–Papadopulos (1967) slug test",
             run: slug,

@@ -15,6 +15,7 @@ pub mod harmonic;
 pub mod inertia;
 pub mod models;
 pub mod reference;
+pub mod shooting;
 pub mod stepping;
 pub mod virtual_tests;
 

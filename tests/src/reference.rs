@@ -54,4 +54,6 @@ pub mod data {
     pub const INERTIA: &str = include_str!("../data/inertia.json");
     /// Virtual pumping tests: Theis with skin, Papadopulos–Cooper, step-test C.
     pub const VIRTUAL_TESTS: &str = include_str!("../data/virtual_tests.json");
+    /// Periodic solution of a scalar nonlinear ODE (scipy shooting).
+    pub const PERIODIC_ODE: &str = include_str!("../data/periodic_ode.json");
 }

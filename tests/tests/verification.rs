@@ -38,6 +38,11 @@ fn harmonic_method_periodic_state() {
 }
 
 #[test]
+fn periodic_state_by_shooting() {
+    assert_group("shooting");
+}
+
+#[test]
 fn theis_constant_rate() {
     assert_group("theis");
 }

@@ -13,8 +13,10 @@ use boreflux_solver::cake::CakeState;
 use boreflux_solver::grid::Zone;
 use boreflux_solver::harmonic;
 use boreflux_solver::model::Medium;
+use boreflux_solver::periodic;
 use boreflux_solver::run::{default_first_step, total_skin, DEFAULT_STEPS_PER_CYCLE};
 use boreflux_solver::safety::CAUTION;
+use boreflux_solver::slow::SlowState;
 use boreflux_solver::system::Discretization;
 use boreflux_solver::{run, Model, Reporting};
 use serde_json::json;
@@ -78,30 +80,83 @@ const PERIODIC_SAMPLES: usize = 256;
 /// Harmonics of a repeating head table kept by the harmonic method in `check`.
 const PERIODIC_HARMONICS: usize = 32;
 
-/// The periodic steady state by the harmonic method (linear cases under a periodic
-/// prescribed head): period, peak screen flow and wall face flux over a period, mean power
-/// per zone; or why the method does not apply.
-fn periodic_state(m: &Model) -> Result<serde_json::Value, harmonic::HarmonicError> {
-    let sol = harmonic::solve(m, PERIODIC_HARMONICS)?;
-    let p = sol.period_s();
-    let wall = sol.disc.grid.borehole_face;
-    let area = 2.0 * PI * m.borehole_radius_m() * m.well.screen_length_m;
-    let peak = |f: usize| {
-        (0..PERIODIC_SAMPLES)
-            .map(|i| {
-                sol.face_flow_m3_s(f, p * i as f64 / PERIODIC_SAMPLES as f64)
-                    .abs()
-            })
-            .fold(0.0, f64::max)
-    };
+/// Most periods `check` time-steps for the periodic state by shooting (warm-up included).
+const SHOOTING_MAX_PERIODS: usize = 200;
+
+/// Most cell-steps `check` spends on the shooting: about 2 s at the 0.35 µs a cell-step
+/// measured on the shipped swab case (1.24 M cell-steps in 0.42 s, 2026-12-04).
+const SHOOTING_MAX_CELL_STEPS: usize = 5_000_000;
+
+/// Fewest periods worth starting the shooting with (a ramp, the warm-up, a few Newton
+/// iterations).
+const SHOOTING_MIN_PERIODS: usize = 20;
+
+/// The periodic steady state of the well as it stands (cake and fines frozen): by the
+/// harmonic method for a linear case under a periodic prescribed head, else by Newton–shooting
+/// on one period (`boreflux_solver::periodic`); period, peak screen flow and wall face flux
+/// over a period, mean power per zone (and the shooting's work and defect); or why neither
+/// applies.
+fn periodic_state(m: &Model, cells: usize) -> Result<serde_json::Value, String> {
     let rho_g = m.fluid.density_kg_m3 * boreflux_solver::water::GRAVITY_M_S2;
-    let power = sol.mean_dissipation_m4_s();
-    Ok(json!({
-        (K::PERIOD.key()): p,
-        (K::PEAK_SCREEN_FLOW.key()): peak(0),
-        (K::PEAK_WALL_FACE_FLUX.key()): peak(wall) / area,
-        (K::MEAN_POWER.key()): Zone::ALL.iter().map(|z| (z.name().to_string(), json!(rho_g * power[*z as usize]))).collect::<serde_json::Map<_, _>>(),
-    }))
+    let area = 2.0 * PI * m.borehole_radius_m() * m.well.screen_length_m;
+    let per_zone = |power: [f64; boreflux_solver::grid::ZONE_COUNT]| {
+        Zone::ALL
+            .iter()
+            .map(|z| (z.name().to_string(), json!(rho_g * power[*z as usize])))
+            .collect::<serde_json::Map<_, _>>()
+    };
+    let why_harmonic = match harmonic::solve(m, PERIODIC_HARMONICS) {
+        Ok(sol) => {
+            let p = sol.period_s();
+            let wall = sol.disc.grid.borehole_face;
+            let peak = |f: usize| {
+                (0..PERIODIC_SAMPLES)
+                    .map(|i| {
+                        sol.face_flow_m3_s(f, p * i as f64 / PERIODIC_SAMPLES as f64)
+                            .abs()
+                    })
+                    .fold(0.0, f64::max)
+            };
+            return Ok(json!({
+                (K::PERIODIC_METHOD.key()): "harmonic",
+                (K::PERIOD.key()): p,
+                (K::PEAK_SCREEN_FLOW.key()): peak(0),
+                (K::PEAK_WALL_FACE_FLUX.key()): peak(wall) / area,
+                (K::MEAN_POWER.key()): per_zone(sol.mean_dissipation_m4_s()),
+            }));
+        }
+        Err(why) => why,
+    };
+    // The work is capped (`Options::max_cycles`) so that `check` stays quick: at most
+    // SHOOTING_MAX_PERIODS periods and SHOOTING_MAX_CELL_STEPS cell-steps in all.
+    let base = periodic::Options::for_model(m);
+    let per_period = (cells * base.steps_per_cycle).max(1);
+    let opts = periodic::Options {
+        max_cycles: SHOOTING_MAX_PERIODS.min(SHOOTING_MAX_CELL_STEPS / per_period),
+        ..base
+    };
+    if opts.max_cycles < SHOOTING_MIN_PERIODS {
+        return Err(format!(
+            "harmonic method: {why_harmonic}; shooting: not run by `check`, one period is \
+             {per_period} cell-steps ({cells} cells × {} steps) and `check` steps at most \
+             {SHOOTING_MAX_CELL_STEPS} cell-steps",
+            base.steps_per_cycle
+        ));
+    }
+    match periodic::shoot(m, &SlowState::new(m), &opts) {
+        Ok(s) => Ok(json!({
+            (K::PERIODIC_METHOD.key()): "shooting",
+            (K::PERIOD.key()): s.period_s,
+            (K::PEAK_SCREEN_FLOW.key()): s.figures.peak_screen_flow_m3_s,
+            (K::PEAK_WALL_FACE_FLUX.key()): s.figures.peak_wall_face_flux_m_s,
+            (K::MEAN_POWER.key()): per_zone(s.figures.mean_dissipation_m4_s),
+            (K::SHOOTING_STEPS.key()): s.steps_per_cycle,
+            (K::SHOOTING_NEWTON.key()): s.newton_iterations,
+            (K::SHOOTING_PERIODS.key()): s.cycles,
+            (K::SHOOTING_DEFECT.key()): s.defect,
+        })),
+        Err(why) => Err(format!("harmonic method: {why_harmonic}; shooting: {why}")),
+    }
 }
 
 /// Runs the command.
@@ -154,7 +209,7 @@ pub fn check(a: &CheckArgs) -> Result<(), Failure> {
         let (q, wc, wp) = annulus_run(m, width)?;
         widths.push((width, q, wc, wp));
     }
-    let periodic = periodic_state(m);
+    let periodic = periodic_state(m, g.cells());
     let cost = crate::cost::run_cost(&case, false, 0);
     if a.json {
         let v = json!({
@@ -253,25 +308,34 @@ pub fn check(a: &CheckArgs) -> Result<(), Failure> {
     };
     match &periodic {
         Ok(v) => {
+            let num = |k: &crate::output::schema::JsonKey| v[k.key()].as_f64().unwrap_or(f64::NAN);
+            t += &match v[K::PERIODIC_METHOD.key()].as_str() {
+                Some("shooting") => format!(
+                    "\nPeriodic steady state of the well as it stands (cake and fines frozen; \
+                     Newton–shooting on one period of {} fixed steps: {} Newton iterations, \
+                     {} periods stepped, defect {:.1e}):\n  ",
+                    num(&K::SHOOTING_STEPS),
+                    num(&K::SHOOTING_NEWTON),
+                    num(&K::SHOOTING_PERIODS),
+                    num(&K::SHOOTING_DEFECT),
+                ),
+                _ => "\nPeriodic steady state (harmonic method, no time stepping):\n  ".to_owned(),
+            };
             t += &format!(
-                "\nPeriodic steady state (harmonic method, no time stepping): period {} s, peak screen flow {} m³/s, peak face flux at the wall {} m/s; mean power",
-                G(v["period_s"].as_f64().unwrap_or(f64::NAN), 4),
-                G(v["peak_screen_flow_m3_s"].as_f64().unwrap_or(f64::NAN), 4),
-                G(v["peak_wall_face_flux_m_s"].as_f64().unwrap_or(f64::NAN), 4),
+                "period {} s, peak screen flow {} m³/s, peak face flux at the wall {} m/s; mean power",
+                G(num(&K::PERIOD), 4),
+                G(num(&K::PEAK_SCREEN_FLOW), 4),
+                G(num(&K::PEAK_WALL_FACE_FLUX), 4),
             );
             for z in Zone::ALL {
-                let w = v["mean_power_w"][z.name()].as_f64().unwrap_or(0.0);
+                let w = v[K::MEAN_POWER.key()][z.name()].as_f64().unwrap_or(0.0);
                 if w > 0.0 {
                     t += &format!(" {} {} W", z.name(), G(w, 3));
                 }
             }
             t += "\n";
         }
-        Err(why) => {
-            t += &format!(
-                "\nPeriodic steady state by the harmonic method: not for this case ({why})\n"
-            )
-        }
+        Err(why) => t += &format!("\nPeriodic steady state: not for this case ({why})\n"),
     }
     if !widths.is_empty() {
         t += "\nAnnulus width (simulated, cake erosion, lift-off and fines off, ≤ 5 cycles):\n  width (mm)   peak face flux (m/s)   cake work/cycle (J)   pack work/cycle (J)\n";

@@ -96,12 +96,17 @@ json_document! {
 json_document! {
     /// `boreflux check --json`.
     check_json {
-        PERIODIC_STATE => "periodic_state", "", Object, "the periodic steady state of a linear case under a periodic drive (harmonic method), or why it does not apply";
+        PERIODIC_STATE => "periodic_state", "", Object, "the periodic steady state of the well as it stands (cake and fines frozen) under a periodic drive: by the harmonic method for a linear case, else by Newton–shooting on one period; or why it does not apply";
+        PERIODIC_METHOD => "periodic_state.method", "", Text, "`harmonic` (linear case, no time stepping) or `shooting` (Newton–Krylov on one period of fixed time steps)";
         PERIOD => "periodic_state.period_s", "s", Number, "period of the drive";
         PEAK_SCREEN_FLOW => "periodic_state.peak_screen_flow_m3_s", "m3/s", Number, "largest screen flow over the period";
         PEAK_WALL_FACE_FLUX => "periodic_state.peak_wall_face_flux_m_s", "m/s", Number, "largest Darcy flux at the borehole wall over the period";
         MEAN_POWER => "periodic_state.mean_power_w", "W", PerZone, "mean power dissipated in each zone over the period";
-        NOT_APPLICABLE => "periodic_state.not_applicable", "", Text, "why the periodic state was not computed (in place of the four keys above)";
+        SHOOTING_STEPS => "periodic_state.steps_per_cycle", "", Number, "shooting: fixed time steps per period";
+        SHOOTING_NEWTON => "periodic_state.newton_iterations", "", Number, "shooting: Newton iterations";
+        SHOOTING_PERIODS => "periodic_state.periods_stepped", "", Number, "shooting: periods time-stepped in all (start-up ramp, warm-up, every evaluation of the period map, the final period)";
+        SHOOTING_DEFECT => "periodic_state.defect", "", Number, "shooting: the periodicity defect, largest change of a head over one period relative to the largest head (the column flow relative to its largest)";
+        NOT_APPLICABLE => "periodic_state.not_applicable", "", Text, "why the periodic state was not computed (in place of the keys above)";
         TITLE => "title", "", Text, "the case title";
         ZONES => "zones", "", Array, "the zones that hold cells, inner to outer";
         ZONE => "zones[].zone", "", Text, "zone name";
