@@ -34,7 +34,7 @@ pub mod system;
 pub mod tridiag;
 pub mod water;
 
-pub use diagnostics::{CycleView, JumpView, StepObserver, StepView};
+pub use diagnostics::{CycleView, JumpBound, JumpView, StepObserver, StepView};
 pub use drive::Drive;
 pub use error::SolverError;
 pub use model::Model;

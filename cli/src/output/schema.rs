@@ -1128,16 +1128,19 @@ pub enum JumpSeries {
     Cycles,
     /// Estimated extrapolation error over the tolerance.
     ErrorEstimate,
+    /// What limited the jump's length (a code).
+    Bound,
 }
 
 impl JumpSeries {
     /// All, in file order.
-    pub const ALL: [JumpSeries; 5] = [
+    pub const ALL: [JumpSeries; 6] = [
         JumpSeries::FromTime,
         JumpSeries::ToTime,
         JumpSeries::FirstCycle,
         JumpSeries::Cycles,
         JumpSeries::ErrorEstimate,
+        JumpSeries::Bound,
     ];
 
     /// The group the series live in.
@@ -1177,6 +1180,12 @@ impl JumpSeries {
                 "estimated extrapolation error of the jump over the tolerance (at most 1)",
                 "K(K+1)/2 x change of the per-cycle change / (tolerance x scale)",
             ),
+            JumpSeries::Bound => s(
+                "bound",
+                Unit::One,
+                "what limited the jump's length: 0 error, 1 move, 2 toward-zero, 3 drive, 4 sync, 5 max, 6 event, 7 end",
+                "the smallest of the bounds on K, docs/time-stepping.md",
+            ),
         }
     }
 
@@ -1188,6 +1197,7 @@ impl JumpSeries {
             JumpSeries::FirstCycle => j.first_cycle as f64,
             JumpSeries::Cycles => j.cycles as f64,
             JumpSeries::ErrorEstimate => j.error_estimate,
+            JumpSeries::Bound => f64::from(j.bound.code()),
         }
     }
 
