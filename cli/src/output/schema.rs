@@ -1177,8 +1177,8 @@ impl JumpSeries {
             JumpSeries::ErrorEstimate => s(
                 "error_estimate",
                 Unit::One,
-                "estimated extrapolation error of the jump over the tolerance (at most 1)",
-                "K(K+1)/2 x change of the per-cycle change / (tolerance x scale)",
+                "estimated error of the jump over the error allowed (at most 1)",
+                "largest over the sampled values: K(K+1)/2 x change of the per-cycle change / (tolerance x scale); a held head: K x its per-cycle change / its step tolerance",
             ),
             JumpSeries::Bound => s(
                 "bound",
@@ -1435,6 +1435,15 @@ mod tests {
             "docs/formats.md is out of step with the output schema: paste the output of \
              `boreflux schema --outputs` between its markers"
         );
+    }
+
+    #[test]
+    fn the_jump_bound_codes_are_those_of_the_solver() {
+        let d = JumpSeries::Bound.entry().description;
+        for b in boreflux_solver::JumpBound::ALL {
+            let named = format!("{} {}", b.code(), b.name());
+            assert!(d.contains(&named), "{named} missing in {d}");
+        }
     }
 
     #[test]
