@@ -115,3 +115,30 @@ fn pump_and_backwash_matches_full_stepping() {
     c["duration"] = "40 cycles".into();
     compare(&c, Some(1e-2));
 }
+
+#[test]
+fn municipal_surge_block_for_a_whole_8_hour_day_matches_full_stepping() {
+    // The whole development day of the benchmark (benches/long_job.rs): 9 600 cycles,
+    // full stepping about 20 s of the suite's time on the 2-core machine.
+    let mut c = case("municipal-sand-gravel.json");
+    c["duration"] = "8 h".into();
+    let (_, multi, out, _dir) = compare(&c, None);
+    // Most of the day is jumped over, and every jump says which bound set its length.
+    let skipped = multi["skipped_cycles"].as_u64().unwrap();
+    assert!(
+        skipped * 10 > 9 * 9600,
+        "{skipped} of 9 600 cycles jumped over"
+    );
+    let f = hdf5::File::open(&out).unwrap();
+    let bound: Vec<f64> = f.dataset("jumps/bound").unwrap().read_raw().unwrap();
+    let cycles: Vec<f64> = f.dataset("jumps/cycles").unwrap().read_raw().unwrap();
+    assert_eq!(bound.len(), cycles.len());
+    assert_eq!(cycles.iter().sum::<f64>() as u64, skipped);
+    let codes = boreflux_solver::JumpBound::ALL.len() as f64;
+    assert!(
+        bound
+            .iter()
+            .all(|&b| b.fract() == 0.0 && (0.0..codes).contains(&b)),
+        "{bound:?}"
+    );
+}

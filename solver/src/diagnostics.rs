@@ -285,6 +285,63 @@ pub struct JumpView {
     pub cycles: u64,
     /// The extrapolation error estimated for the jump, relative to the tolerance's scale, –.
     pub error_estimate: f64,
+    /// What limited the jump's length.
+    pub bound: JumpBound,
+}
+
+/// What limited the length K of a jump over cycles (docs/time-stepping.md §Multiscale
+/// stepping), for the `/jumps` record and for tuning the controller.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum JumpBound {
+    /// The estimated extrapolation error (the tolerance).
+    Error,
+    /// The largest move of a slow value in one jump.
+    Move,
+    /// An amount falling toward zero is not carried past it.
+    TowardZero,
+    /// The drive stops repeating (a last stroke, a schedule stage's end).
+    Drive,
+    /// A sync time.
+    Sync,
+    /// The most cycles in one jump.
+    MaxCycles,
+    /// An event of the cake (a thickness or removal mark, the cake gone): K halved.
+    Event,
+    /// The end of the run (cycles left to compute after the jump).
+    End,
+}
+
+impl JumpBound {
+    /// All, in the order of their codes.
+    pub const ALL: [JumpBound; 8] = [
+        JumpBound::Error,
+        JumpBound::Move,
+        JumpBound::TowardZero,
+        JumpBound::Drive,
+        JumpBound::Sync,
+        JumpBound::MaxCycles,
+        JumpBound::Event,
+        JumpBound::End,
+    ];
+
+    /// The number written for it (its place in [`JumpBound::ALL`]).
+    pub fn code(self) -> u8 {
+        JumpBound::ALL.iter().position(|&b| b == self).unwrap_or(0) as u8
+    }
+
+    /// Its name in the docs and the output schema.
+    pub fn name(self) -> &'static str {
+        match self {
+            JumpBound::Error => "error",
+            JumpBound::Move => "move",
+            JumpBound::TowardZero => "toward-zero",
+            JumpBound::Drive => "drive",
+            JumpBound::Sync => "sync",
+            JumpBound::MaxCycles => "max",
+            JumpBound::Event => "event",
+            JumpBound::End => "end",
+        }
+    }
 }
 
 /// An observer that ignores everything.

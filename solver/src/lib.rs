@@ -37,7 +37,9 @@ pub mod system;
 pub mod tridiag;
 pub mod water;
 
-pub use diagnostics::{CycleView, EventKind, EventSet, JumpView, StepObserver, StepView};
+pub use diagnostics::{
+    CycleView, EventKind, EventSet, JumpBound, JumpView, StepObserver, StepView,
+};
 pub use drive::Drive;
 pub use error::SolverError;
 pub use model::Model;

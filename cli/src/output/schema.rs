@@ -1128,16 +1128,19 @@ pub enum JumpSeries {
     Cycles,
     /// Estimated extrapolation error over the tolerance.
     ErrorEstimate,
+    /// What limited the jump's length (a code).
+    Bound,
 }
 
 impl JumpSeries {
     /// All, in file order.
-    pub const ALL: [JumpSeries; 5] = [
+    pub const ALL: [JumpSeries; 6] = [
         JumpSeries::FromTime,
         JumpSeries::ToTime,
         JumpSeries::FirstCycle,
         JumpSeries::Cycles,
         JumpSeries::ErrorEstimate,
+        JumpSeries::Bound,
     ];
 
     /// The group the series live in.
@@ -1174,8 +1177,14 @@ impl JumpSeries {
             JumpSeries::ErrorEstimate => s(
                 "error_estimate",
                 Unit::One,
-                "estimated extrapolation error of the jump over the tolerance (at most 1)",
-                "K(K+1)/2 x change of the per-cycle change / (tolerance x scale)",
+                "estimated error of the jump over the error allowed (at most 1)",
+                "largest over the sampled values: K(K+1)/2 x change of the per-cycle change / (tolerance x scale); a held head: K x its per-cycle change / its step tolerance",
+            ),
+            JumpSeries::Bound => s(
+                "bound",
+                Unit::One,
+                "what limited the jump's length: 0 error, 1 move, 2 toward-zero, 3 drive, 4 sync, 5 max, 6 event, 7 end",
+                "the smallest of the bounds on K, docs/time-stepping.md",
             ),
         }
     }
@@ -1188,6 +1197,7 @@ impl JumpSeries {
             JumpSeries::FirstCycle => j.first_cycle as f64,
             JumpSeries::Cycles => j.cycles as f64,
             JumpSeries::ErrorEstimate => j.error_estimate,
+            JumpSeries::Bound => f64::from(j.bound.code()),
         }
     }
 
@@ -1511,6 +1521,15 @@ mod tests {
             "docs/formats.md is out of step with the output schema: paste the output of \
              `boreflux schema --outputs` between its markers"
         );
+    }
+
+    #[test]
+    fn the_jump_bound_codes_are_those_of_the_solver() {
+        let d = JumpSeries::Bound.entry().description;
+        for b in boreflux_solver::JumpBound::ALL {
+            let named = format!("{} {}", b.code(), b.name());
+            assert!(d.contains(&named), "{named} missing in {d}");
+        }
     }
 
     #[test]
