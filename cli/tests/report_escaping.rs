@@ -5,6 +5,9 @@
 //! The expected entities are the five of OWASP's XSS Prevention Cheat Sheet, rule 1 (from
 //! memory): & < > " ' as &amp; &lt; &gt; &quot; &#39; (cli/src/report/escape.rs).
 
+mod common;
+
+use common::boreflux as bin;
 use std::path::{Path, PathBuf};
 
 use serde_json::json;
@@ -13,10 +16,6 @@ use serde_json::json;
 const TITLE: &str = r#"<script>&"'"#;
 /// The same, escaped.
 const ESCAPED: &str = "&lt;script&gt;&amp;&quot;&#39;";
-
-fn bin() -> assert_cmd::Command {
-    assert_cmd::Command::cargo_bin("boreflux").unwrap()
-}
 
 /// Checks that `html` holds the escaped title `times` times or more and never the raw one.
 fn assert_escaped(html: &str, times: usize, page: &str) {

@@ -284,59 +284,14 @@ impl Discretization {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::drive::{Drive, SineHead};
     use crate::model::*;
 
     /// A pack, a cake, an invaded zone with Forchheimer terms and the formation; invented
     /// numbers.
     fn model() -> Model {
-        let medium = |k: f64, beta: f64| Medium {
-            forchheimer_beta_s2_m2: beta,
-            ..Medium::darcy(k, 1e-5)
-        };
-        Model {
-            fluid: Fluid::WATER_20C,
-            well: Well {
-                screen_radius_m: 0.1,
-                screen_length_m: 6.0,
-                open_area: 0.12,
-                casing_radius_m: 0.1,
-                linear_loss_s: 0.0,
-                discharge_coefficient: Some(0.6),
-                storage_m2: 0.0,
-                column_length_m: 0.0,
-            },
-            pack: Pack {
-                outer_radius_m: 0.2,
-                medium: medium(5e-3, 1.35e3),
-            },
-            cake: Some(Cake {
-                thickness_m: 2e-3,
-                conductivity_m_s: 1e-6,
-                coverage: 0.7,
-                erosion: None,
-                lift_off: None,
-            }),
-            invaded: Some(Invaded {
-                thickness_m: 0.05,
-                medium: medium(5e-5, 2e4),
-                fines: None,
-                profile: None,
-            }),
-            formation: Formation {
-                medium: medium(2e-4, 1.35e4),
-                outer_radius_m: Some(30.0),
-                outer_boundary: OuterBoundary::FixedHead,
-            },
-            drive: Drive::SineHead(SineHead {
-                amplitude_m: 1.5,
-                frequency_hz: 0.5,
-                offset_m: 0.0,
-                ramp_cycles: 0.0,
-            }),
-            duration_s: 2.0,
-            numerics: Numerics::default(),
-        }
+        let mut m = crate::fixtures::layered_well();
+        crate::fixtures::make_nonlinear(&mut m);
+        m
     }
 
     /// Everything derived from the faces, bit for bit.

@@ -3,7 +3,7 @@
 //! verified against analytic solutions, docs/verification.md), and plain cycling of the
 //! same stepper run until its cycle-to-cycle change is below 1e-10 on a nonlinear model.
 
-use boreflux_solver::drive::{Drive, SineHead};
+use boreflux_solver::fixtures;
 use boreflux_solver::harmonic;
 use boreflux_solver::model::*;
 use boreflux_solver::periodic::{plain_cycles, shoot, Options};
@@ -12,36 +12,8 @@ use boreflux_solver::slow::SlowState;
 /// A linear (Darcy) well under a sine head; invented numbers (a demo well), not from a source.
 fn linear() -> Model {
     Model {
-        fluid: Fluid::WATER_20C,
-        well: Well {
-            screen_radius_m: 0.1,
-            screen_length_m: 6.0,
-            open_area: 0.12,
-            casing_radius_m: 0.1,
-            linear_loss_s: 0.0,
-            discharge_coefficient: None,
-            storage_m2: 0.0,
-            column_length_m: 0.0,
-        },
-        pack: Pack {
-            outer_radius_m: 0.2,
-            medium: Medium::darcy(5e-3, 1e-5),
-        },
-        cake: None,
-        invaded: None,
-        formation: Formation {
-            medium: Medium::darcy(2e-4, 1e-5),
-            outer_radius_m: Some(30.0),
-            outer_boundary: OuterBoundary::FixedHead,
-        },
-        drive: Drive::SineHead(SineHead {
-            amplitude_m: 1.5,
-            frequency_hz: 0.5,
-            offset_m: 0.0,
-            ramp_cycles: 0.0,
-        }),
         duration_s: 100.0,
-        numerics: Numerics::default(),
+        ..fixtures::demo_well()
     }
 }
 

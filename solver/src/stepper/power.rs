@@ -98,60 +98,17 @@ impl Stepper {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::drive::{Drive, SineHead};
     use crate::model::*;
 
     /// Pack, a patchy cake (its interface face spans two zones), an invaded zone and the
     /// formation to a fixed-head outer radius; Forchheimer terms and the screen entrance
     /// loss when `nonlinear`. Invented numbers.
     fn model(nonlinear: bool) -> Model {
-        let medium = |k: f64, beta: f64| Medium {
-            forchheimer_beta_s2_m2: if nonlinear { beta } else { 0.0 },
-            ..Medium::darcy(k, 1e-5)
-        };
-        Model {
-            fluid: Fluid::WATER_20C,
-            well: Well {
-                screen_radius_m: 0.1,
-                screen_length_m: 6.0,
-                open_area: 0.12,
-                casing_radius_m: 0.1,
-                linear_loss_s: 0.0,
-                discharge_coefficient: nonlinear.then_some(0.6),
-                storage_m2: 0.0,
-                column_length_m: 0.0,
-            },
-            pack: Pack {
-                outer_radius_m: 0.2,
-                medium: medium(5e-3, 1.35e3),
-            },
-            cake: Some(Cake {
-                thickness_m: 2e-3,
-                conductivity_m_s: 1e-6,
-                coverage: 0.7,
-                erosion: None,
-                lift_off: None,
-            }),
-            invaded: Some(Invaded {
-                thickness_m: 0.05,
-                medium: medium(5e-5, 2e4),
-                fines: None,
-                profile: None,
-            }),
-            formation: Formation {
-                medium: medium(2e-4, 1.35e4),
-                outer_radius_m: Some(30.0),
-                outer_boundary: OuterBoundary::FixedHead,
-            },
-            drive: Drive::SineHead(SineHead {
-                amplitude_m: 1.5,
-                frequency_hz: 0.5,
-                offset_m: 0.0,
-                ramp_cycles: 0.0,
-            }),
-            duration_s: 2.0,
-            numerics: Numerics::default(),
+        let mut m = crate::fixtures::layered_well();
+        if nonlinear {
+            crate::fixtures::make_nonlinear(&mut m);
         }
+        m
     }
 
     #[test]

@@ -592,43 +592,9 @@ mod tests {
         // A linear well (Darcy media, no entrance loss; invented numbers) under a sine head,
         // stepped with two step lengths in turn: the stepper that keeps the filter's factors
         // against one made to refactor at every step. Same operations: same bits.
-        use crate::drive::{Drive, SineHead};
         use crate::model::*;
-        let m = Model {
-            fluid: Fluid::WATER_20C,
-            well: Well {
-                screen_radius_m: 0.1,
-                screen_length_m: 6.0,
-                open_area: 0.12,
-                casing_radius_m: 0.1,
-                linear_loss_s: 0.0,
-                discharge_coefficient: None,
-                storage_m2: 0.0,
-                column_length_m: 0.0,
-            },
-            pack: Pack {
-                outer_radius_m: 0.2,
-                medium: Medium::darcy(5e-3, 1e-5),
-            },
-            cake: None,
-            invaded: None,
-            formation: Formation {
-                medium: Medium::darcy(2e-4, 1e-5),
-                outer_radius_m: Some(30.0),
-                outer_boundary: OuterBoundary::FixedHead,
-            },
-            drive: Drive::SineHead(SineHead {
-                amplitude_m: 1.5,
-                frequency_hz: 0.5,
-                offset_m: 0.0,
-                ramp_cycles: 0.0,
-            }),
-            duration_s: 2.0,
-            numerics: Numerics {
-                grid: GridSpec::Total(61),
-                ..Numerics::default()
-            },
-        };
+        let mut m = crate::fixtures::demo_well();
+        m.numerics.grid = GridSpec::Total(61);
         let tol = Tolerances {
             relative: 1e-4,
             absolute_m: 1e-5,
