@@ -3,6 +3,7 @@
 //! verified against analytic solutions, docs/verification.md), and plain cycling of the
 //! same stepper run until its cycle-to-cycle change is below 1e-10 on a nonlinear model.
 
+use boreflux_solver::drive::Drive;
 use boreflux_solver::fixtures;
 use boreflux_solver::harmonic;
 use boreflux_solver::model::*;
