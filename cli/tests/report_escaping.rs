@@ -50,6 +50,17 @@ fn read(path: &Path) -> String {
     std::fs::read_to_string(path).unwrap()
 }
 
+/// `boreflux report INPUTS… -o PAGE [--title TITLE]`, which must succeed; the page's text.
+fn report(inputs: &[&Path], page: &Path, title: Option<&str>) -> String {
+    let mut cmd = bin();
+    cmd.arg("report").args(inputs).arg("-o").arg(page);
+    if let Some(t) = title {
+        cmd.args(["--title", t]);
+    }
+    cmd.assert().success();
+    read(page)
+}
+
 #[test]
 fn run_and_sweep_pages_escape_titles_and_file_names() {
     let dir = tempfile::tempdir().unwrap();
@@ -66,15 +77,7 @@ fn run_and_sweep_pages_escape_titles_and_file_names() {
 
     // The case title (in the run file) and `--title`.
     let page = dir.path().join("run.html");
-    bin()
-        .arg("report")
-        .arg(&run)
-        .arg("-o")
-        .arg(&page)
-        .args(["--title", TITLE])
-        .assert()
-        .success();
-    let html = read(&page);
+    let html = report(&[&run], &page, Some(TITLE));
     assert!(html.contains(&format!("<title>{ESCAPED}</title>")));
     assert!(html.contains(&format!("<h1>{ESCAPED}</h1>")));
     assert!(html.contains(&format!("<h3>Run A: {ESCAPED}</h3>")));
@@ -82,14 +85,7 @@ fn run_and_sweep_pages_escape_titles_and_file_names() {
 
     // Without `--title` the case title goes into the browser's title.
     let plain = dir.path().join("plain.html");
-    bin()
-        .arg("report")
-        .arg(&run)
-        .arg("-o")
-        .arg(&plain)
-        .assert()
-        .success();
-    let html = read(&plain);
+    let html = report(&[&run], &plain, None);
     assert!(html.contains(&format!(
         "<title>Well development report: {ESCAPED}</title>"
     )));
@@ -107,15 +103,7 @@ fn run_and_sweep_pages_escape_titles_and_file_names() {
         .success();
     let table = dir.path().join("grid.h5");
     let page = dir.path().join("sweep.html");
-    bin()
-        .arg("report")
-        .arg(&table)
-        .arg("-o")
-        .arg(&page)
-        .args(["--title", TITLE])
-        .assert()
-        .success();
-    let html = read(&page);
+    let html = report(&[&table], &page, Some(TITLE));
     assert!(html.contains(&format!("<title>{ESCAPED}</title>")));
     assert!(html.contains(&format!("<h1>{ESCAPED}</h1>")));
     // The case file's name in the lead paragraph, and the base case's title in its JSON.
@@ -124,16 +112,7 @@ fn run_and_sweep_pages_escape_titles_and_file_names() {
 
     // Two sweep tables compared: the table's file names are not marked up, the case's are.
     let page = dir.path().join("compare.html");
-    bin()
-        .arg("report")
-        .arg(&table)
-        .arg(&table)
-        .arg("-o")
-        .arg(&page)
-        .args(["--title", TITLE])
-        .assert()
-        .success();
-    let html = read(&page);
+    let html = report(&[&table, &table], &page, Some(TITLE));
     assert!(html.contains(&format!("<h1>{ESCAPED}</h1>")));
     assert_escaped(&html, 4, "sweep comparison");
 }

@@ -328,6 +328,18 @@ fn kept_cycles(file: &hdf5::File) -> std::collections::BTreeSet<usize> {
 }
 
 /// Names of the datasets of `/series` (the power and work of each zone in subgroups).
+/// The run's warnings, `/summary` attribute `warnings`, one per line.
+fn summary_warnings(file: &hdf5::File) -> String {
+    file.group("summary")
+        .unwrap()
+        .attr("warnings")
+        .unwrap()
+        .read_scalar::<hdf5::types::VarLenUnicode>()
+        .unwrap()
+        .as_str()
+        .to_owned()
+}
+
 fn series_names(file: &hdf5::File) -> Vec<String> {
     let g = file.group("series").unwrap();
     let mut names = Vec::new();
@@ -379,14 +391,7 @@ fn the_cycles_around_a_mid_run_parting_are_kept_in_full() {
         (3..n - 3).contains(&first_parting),
         "first parting in cycle {first_parting}"
     );
-    let summary = all.group("summary").unwrap();
-    let warnings: String = summary
-        .attr("warnings")
-        .unwrap()
-        .read_scalar::<hdf5::types::VarLenUnicode>()
-        .unwrap()
-        .as_str()
-        .to_owned();
+    let warnings = summary_warnings(&all);
     assert!(warnings.contains("parted"), "{warnings}");
     // The report marks the first parting on the time charts, one line per chart.
     let html = dir.join("env.html");
@@ -500,15 +505,7 @@ fn the_summary_warnings_and_the_events_agree() {
         run(&cases.join(format!("{name}.json")), &h5);
         let f = hdf5::File::open(&h5).unwrap();
         let ev = events(&f);
-        let warnings = f
-            .group("summary")
-            .unwrap()
-            .attr("warnings")
-            .unwrap()
-            .read_scalar::<hdf5::types::VarLenUnicode>()
-            .unwrap()
-            .as_str()
-            .to_owned();
+        let warnings = summary_warnings(&f);
         for (kind, words) in pairs {
             assert_eq!(
                 ev.iter().any(|(_, k)| k == kind),
