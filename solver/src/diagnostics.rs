@@ -131,15 +131,16 @@ impl EventKind {
         EventKind::CakeChange,
     ];
 
-    /// The kinds the solver raises itself.
-    pub const SOLVER: [EventKind; 6] = [
-        EventKind::ColumnParting,
-        EventKind::VapourSuction,
-        EventKind::PumpSuction,
-        EventKind::ThrustBound,
-        EventKind::Oscillation,
-        EventKind::SmallestStep,
-    ];
+    /// The kinds the solver raises itself: the first six of [`EventKind::ALL`].
+    pub const SOLVER: [EventKind; 6] = {
+        let mut out = [EventKind::ColumnParting; 6];
+        let mut i = 0;
+        while i < out.len() {
+            out[i] = EventKind::ALL[i];
+            i += 1;
+        }
+        out
+    };
 
     /// The kind's name in files and reports.
     pub const fn name(self) -> &'static str {
