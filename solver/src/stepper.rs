@@ -878,6 +878,7 @@ impl Stepper {
             for (g, &s) in self.gain.iter_mut().zip(&self.disc.storage) {
                 *g = s / tdt;
             }
+            self.factored.keep_scale(&self.gain);
             self.factored_for = Some(key);
         }
         let d0 = match well {
@@ -893,8 +894,7 @@ impl Stepper {
             self.y[0] -= shift;
             self.y[1] += shift;
         }
-        self.factored
-            .solve_scaled(&mut self.y, &self.gain, &self.h, 2);
+        self.factored.solve_scaled(&mut self.y, &self.h, 2);
         Ok(())
     }
 }
