@@ -158,6 +158,13 @@ pub struct Stepper {
     factored: Factored,
     /// (θΔt, control, S_w/(θΔt), column inertance m) of the factored matrix.
     factored_for: Option<(f64, Control, f64, f64)>,
+    /// The linear path's factors before the last change of key, and their key: a run at a
+    /// fixed step that lands on sync times (cycle ends) alternates between the nominal step
+    /// and a landing step a few ulps off, and swaps these back instead of eliminating the
+    /// nominal matrix again.
+    spare: Factored,
+    /// See `spare`.
+    spare_for: Option<(f64, Control, f64, f64)>,
     /// Whether the device flow depends on the in-well head.
     head_dependent: bool,
     /// Head drop, flow and dQ/dΔh of every face at the current Newton iterate.
@@ -257,6 +264,8 @@ impl Stepper {
             scratch: vec![0.0; n],
             factored: Factored::with_size(n),
             factored_for: None,
+            spare: Factored::with_size(n),
+            spare_for: None,
             gain: vec![0.0; n],
             predictor: Predictor::new(n),
             predictor_mid: Predictor::new(n),
@@ -340,6 +349,7 @@ impl Stepper {
         self.end_slopes = None;
         self.faces_linear = self.disc.is_linear();
         self.factored_for = None;
+        self.spare_for = None;
         self.filter_for = None;
     }
 
@@ -412,6 +422,7 @@ impl Stepper {
         self.forget_history();
         self.time_s = t;
         self.factored_for = None;
+        self.spare_for = None;
         r
     }
 
@@ -843,6 +854,10 @@ impl Stepper {
         // (`stepper/column.rs`): Q = c₀ (y₀ − y₁ + m Qⁿ).
         let c0 = 1.0 / (self.disc.faces[0].r_lin() + m);
         if self.factored_for != Some(key) {
+            std::mem::swap(&mut self.factored, &mut self.spare);
+            std::mem::swap(&mut self.factored_for, &mut self.spare_for);
+        }
+        if self.factored_for != Some(key) {
             for j in 0..n {
                 self.lower[j] = 0.0;
                 self.upper[j] = 0.0;
@@ -878,6 +893,7 @@ impl Stepper {
             for (g, &s) in self.gain.iter_mut().zip(&self.disc.storage) {
                 *g = s / tdt;
             }
+            self.factored.keep_scale(&self.gain);
             self.factored_for = Some(key);
         }
         let d0 = match well {
@@ -893,8 +909,7 @@ impl Stepper {
             self.y[0] -= shift;
             self.y[1] += shift;
         }
-        self.factored
-            .solve_scaled(&mut self.y, &self.gain, &self.h, 2);
+        self.factored.solve_scaled(&mut self.y, &self.h, 2);
         Ok(())
     }
 }
