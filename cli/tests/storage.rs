@@ -10,11 +10,13 @@ use boreflux::report::read::read_run;
 use boreflux::report::write_report;
 use common::{boreflux, success};
 
-fn scratch(name: &str) -> PathBuf {
-    let dir = std::env::temp_dir().join(format!("boreflux-storage-{}-{name}", std::process::id()));
-    let _ = std::fs::remove_dir_all(&dir);
-    std::fs::create_dir_all(&dir).unwrap();
-    dir
+/// A fresh scratch folder for one test, removed when the guard drops, also when the test
+/// fails (a panic unwinds through the guard).
+fn scratch(name: &str) -> tempfile::TempDir {
+    tempfile::Builder::new()
+        .prefix(&format!("boreflux-storage-{name}-"))
+        .tempdir()
+        .unwrap()
 }
 
 /// A sine-head case (amplitude 1.5 m, 0.5 Hz, 60 cycles, 200 steps per cycle), a Darcy well
@@ -61,11 +63,12 @@ fn read(file: &hdf5::File, path: &str) -> Vec<f64> {
 
 #[test]
 fn envelopes_match_the_sine_and_the_every_step_series() {
-    let dir = scratch("sine");
-    let env_case = sine_case(&dir, r#"{ "store": "envelopes", "detail_cycles": 2 }"#, "");
+    let tmp = scratch("sine");
+    let dir = tmp.path();
+    let env_case = sine_case(dir, r#"{ "store": "envelopes", "detail_cycles": 2 }"#, "");
     let env_h5 = dir.join("env.h5");
     run(&env_case, &env_h5);
-    let all_case = sine_case(&dir, r#"{ "store": "steps" }"#, "");
+    let all_case = sine_case(dir, r#"{ "store": "steps" }"#, "");
     let all_h5 = dir.join("all.h5");
     run(&all_case, &all_h5);
     let env = hdf5::File::open(&env_h5).unwrap();
@@ -152,12 +155,12 @@ fn envelopes_match_the_sine_and_the_every_step_series() {
         te.len(),
         t.len()
     );
-    let _ = std::fs::remove_dir_all(&dir);
 }
 
 #[test]
 fn the_report_reads_every_storage_choice() {
-    let dir = scratch("report");
+    let tmp = scratch("report");
+    let dir = tmp.path();
     let choices = [
         ("steps", r#"{ "store": "steps" }"#, ""),
         (
@@ -168,7 +171,7 @@ fn the_report_reads_every_storage_choice() {
         ("envelopes", r#"{ "store": "envelopes" }"#, ""),
     ];
     for (name, output, extra) in choices {
-        let case = sine_case(&dir, output, extra);
+        let case = sine_case(dir, output, extra);
         let h5 = dir.join(format!("{name}.h5"));
         run(&case, &h5);
         let r = read_run(&h5).unwrap();
@@ -195,12 +198,12 @@ fn the_report_reads_every_storage_choice() {
             assert!(r.series.time.len() < all.series.time.len() / 4);
         }
     }
-    let _ = std::fs::remove_dir_all(&dir);
 }
 
 #[test]
 fn a_refused_storage_choice_names_its_field_and_leaves_nothing() {
-    let dir = scratch("refused");
+    let tmp = scratch("refused");
+    let dir = tmp.path();
     for (output, field) in [
         (r#"{ "store": "every_pixel" }"#, "output.store"),
         (
@@ -208,7 +211,7 @@ fn a_refused_storage_choice_names_its_field_and_leaves_nothing() {
             "output.detail_cycles",
         ),
     ] {
-        let case = sine_case(&dir, output, "");
+        let case = sine_case(dir, output, "");
         let out = dir.join("out.h5");
         let o = boreflux()
             .args(["run", "-q"])
@@ -220,23 +223,23 @@ fn a_refused_storage_choice_names_its_field_and_leaves_nothing() {
         assert_eq!(o.status.code(), Some(2));
         let err = String::from_utf8_lossy(&o.stderr);
         assert!(err.contains(field), "{err}");
-        let left: Vec<_> = std::fs::read_dir(&dir)
+        let left: Vec<_> = std::fs::read_dir(dir)
             .unwrap()
             .map(|e| e.unwrap().file_name().into_string().unwrap())
             .filter(|n| n != "case.json")
             .collect();
         assert!(left.is_empty(), "{left:?}");
     }
-    let _ = std::fs::remove_dir_all(&dir);
 }
 
 /// Cycles jumped over (`numerics.multiscale` "auto") have no envelope, and are listed in
 /// `/jumps`: every cycle of the run is either enveloped or jumped over, never both.
 #[test]
 fn jumped_cycles_have_no_envelope() {
-    let dir = scratch("sine-jumps");
+    let tmp = scratch("sine-jumps");
+    let dir = tmp.path();
     let case = sine_case(
-        &dir,
+        dir,
         r#"{ "store": "envelopes", "detail_cycles": 2 }"#,
         r#", "multiscale": "auto""#,
     );
@@ -363,10 +366,11 @@ fn series_names(file: &hdf5::File) -> Vec<String> {
 /// choice does not touch the solver).
 #[test]
 fn the_cycles_around_a_mid_run_parting_are_kept_in_full() {
-    let dir = scratch("parting");
+    let tmp = scratch("parting");
+    let dir = tmp.path();
     let out = r#"{ "store": "envelopes", "detail_cycles": 2, "event_windows": 1 }"#;
-    let env_case = ramped_surge_case(&dir, "env", "1e-5 m/s", "90 s", out);
-    let all_case = ramped_surge_case(&dir, "all", "1e-5 m/s", "90 s", r#"{ "store": "steps" }"#);
+    let env_case = ramped_surge_case(dir, "env", "1e-5 m/s", "90 s", out);
+    let all_case = ramped_surge_case(dir, "all", "1e-5 m/s", "90 s", r#"{ "store": "steps" }"#);
     let (env_h5, all_h5) = (dir.join("env.h5"), dir.join("all.h5"));
     run(&env_case, &env_h5);
     run(&all_case, &all_h5);
@@ -444,7 +448,6 @@ fn the_cycles_around_a_mid_run_parting_are_kept_in_full() {
             }
         }
     }
-    let _ = std::fs::remove_dir_all(&dir);
 }
 
 /// A warning's limit crossed in every cycle from the middle of the ramp on: the detail
@@ -454,13 +457,14 @@ fn the_cycles_around_a_mid_run_parting_are_kept_in_full() {
 /// repeats.
 #[test]
 fn a_warning_repeated_every_cycle_keeps_bounded_windows() {
-    let dir = scratch("repeated");
+    let tmp = scratch("repeated");
+    let dir = tmp.path();
     let d = 2usize;
     for windows in [0usize, 1, 3] {
         let out = format!(
             r#"{{ "store": "envelopes", "detail_cycles": {d}, "event_windows": {windows} }}"#
         );
-        let case = ramped_surge_case(&dir, "rep", "4e-4 m/s", "3 min", &out);
+        let case = ramped_surge_case(dir, "rep", "4e-4 m/s", "3 min", &out);
         let h5 = dir.join(format!("rep{windows}.h5"));
         run(&case, &h5);
         let f = hdf5::File::open(&h5).unwrap();
@@ -482,7 +486,6 @@ fn a_warning_repeated_every_cycle_keeps_bounded_windows() {
         }
         assert_eq!(kept_cycles(&f), expected, "event_windows {windows}");
     }
-    let _ = std::fs::remove_dir_all(&dir);
 }
 
 /// Every warning of `/summary` that names a moment of the run has events of its kind, and
@@ -490,7 +493,8 @@ fn a_warning_repeated_every_cycle_keeps_bounded_windows() {
 /// velocity) and the staged development case (grain Reynolds, stage starts).
 #[test]
 fn the_summary_warnings_and_the_events_agree() {
-    let dir = scratch("agree");
+    let tmp = scratch("agree");
+    let dir = tmp.path();
     let cases = Path::new(env!("CARGO_MANIFEST_DIR")).join("../cases");
     let pairs = [
         ("column_parting", "parted"),
@@ -522,5 +526,4 @@ fn the_summary_warnings_and_the_events_agree() {
         let t = read(&f, "events/time");
         assert!(t.windows(2).all(|w| w[0] <= w[1]), "{name}: time order");
     }
-    let _ = std::fs::remove_dir_all(&dir);
 }
