@@ -8,8 +8,9 @@
 
 use crate::case::LoadedCase;
 use crate::case::Storage;
+use crate::output::envelope::MAX_BUFFERED_VALUES;
 use anyhow::anyhow;
-use boreflux_solver::cost::estimate;
+use boreflux_solver::cost::{aperiodic_stage_steps, estimate, possible_events};
 
 /// Largest run accepted without `--allow-large`, in cells × steps. Assumption: at the
 /// measured rate below this is a few minutes of computing.
@@ -47,6 +48,74 @@ const H5_FIXED_BYTES: f64 = 1e6;
 /// group measured about 2 kB more than a file without it).
 const JUMPS_FIXED_BYTES: f64 = 8e3;
 
+/// What the size estimate of an envelope run assumes (`output.store` "envelopes",
+/// docs/formats.md "Storage choice" and "Events").
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct KeptCycles {
+    /// Cycles of the run: its duration over the slowest period, rounded up.
+    pub cycles: f64,
+    /// `output.detail_cycles`: kept at the start and at the end.
+    pub detail_cycles: u64,
+    /// Stage starts (stages after the first), each kept with one cycle each side.
+    pub stage_starts: f64,
+    /// Event kinds the drive can raise ([`boreflux_solver::cost::possible_events`]).
+    pub event_kinds: usize,
+    /// `output.event_windows`.
+    pub event_windows: u64,
+    /// Upper bound on the cycles the event windows add.
+    pub event_cycles: f64,
+    /// Upper bound on the cycles kept step by step, all reasons together (at most
+    /// `cycles`).
+    pub kept: f64,
+    /// Upper bound on the steps of stages without a period, kept in full.
+    pub aperiodic_steps: f64,
+    /// The cycles may be longer than the envelope writer buffers (its write-through
+    /// limit): such a cycle is written in full, so every cycle is counted as kept.
+    pub long_cycles: bool,
+}
+
+impl KeptCycles {
+    /// The bound: the first and last `detail_cycles`; 3 cycles around each stage start;
+    /// 3 cycles around each of the first `event_windows` cycles holding each kind that can
+    /// occur; and, when `event_windows` > 0, one late window of 3 cycles before each kept
+    /// stretch but the first (a stretch begins at most at each of those windows and at the
+    /// closing cycles). Every window is counted whole, as if none overlapped another: the
+    /// events are not known before the run.
+    pub(crate) fn new(
+        cycles: f64,
+        detail_cycles: u64,
+        stage_starts: f64,
+        event_kinds: usize,
+        event_windows: u64,
+        aperiodic_steps: f64,
+        long_cycles: bool,
+    ) -> Self {
+        let windows = event_kinds as f64 * event_windows as f64;
+        let late = if event_windows > 0 {
+            3.0 * (windows + stage_starts + 1.0)
+        } else {
+            0.0
+        };
+        let event_cycles = 3.0 * windows + late;
+        let kept = if long_cycles {
+            cycles
+        } else {
+            (2.0 * detail_cycles as f64 + 3.0 * stage_starts + event_cycles).min(cycles)
+        };
+        KeptCycles {
+            cycles,
+            detail_cycles,
+            stage_starts,
+            event_kinds,
+            event_windows,
+            event_cycles,
+            kept,
+            aperiodic_steps,
+            long_cycles,
+        }
+    }
+}
+
 /// The estimate of one run.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct RunCost {
@@ -60,30 +129,46 @@ pub struct RunCost {
     pub seconds: f64,
     /// Estimated output size (HDF5, and CSV when asked for), bytes.
     pub bytes: f64,
+    /// For an envelope run, the cycles the size estimate counts as kept step by step.
+    pub kept: Option<KeptCycles>,
 }
 
 /// Cost of running `case`, writing CSV too when `csv`, a head profile every
 /// `snapshot_every` steps (0 = about 200 in all, as `run` does).
 pub fn run_cost(case: &LoadedCase, csv: bool, snapshot_every: u64) -> RunCost {
     let c = estimate(&case.model);
-    let (rows, envelope_bytes) = match case.storage {
-        Storage::Steps => ((c.steps / case.output_every.max(1) as f64).ceil(), 0.0),
-        Storage::Envelopes { detail_cycles, .. } => {
-            let period = case
-                .model
-                .drive
-                .slowest_period_s()
-                .unwrap_or(case.model.duration_s);
+    let (rows, envelope_bytes, kept) = match case.storage {
+        Storage::Steps => (
+            (c.steps / case.output_every.max(1) as f64).ceil(),
+            0.0,
+            None,
+        ),
+        Storage::Envelopes {
+            detail_cycles,
+            event_windows,
+        } => {
+            let drive = &case.model.drive;
+            let period = drive.slowest_period_s().unwrap_or(case.model.duration_s);
             let cycles = (case.model.duration_s / period).ceil().max(1.0);
-            let stages = match &case.model.drive {
+            let stages = match drive {
                 boreflux_solver::drive::Drive::Schedule(s) => s.len() as f64,
                 _ => 1.0,
             };
-            // First and last windows, and 3 cycles around each stage start.
-            let kept = (2.0 * detail_cycles as f64 + 3.0 * (stages - 1.0)).min(cycles);
+            let k = KeptCycles::new(
+                cycles,
+                detail_cycles,
+                stages - 1.0,
+                possible_events(drive).iter().count(),
+                event_windows,
+                aperiodic_stage_steps(&case.model),
+                c.steps / cycles * series_per_row() >= MAX_BUFFERED_VALUES as f64,
+            );
             // Min, max and RMS of every series but time, and the two cycle times.
             let per_cycle = (3.0 * (series_per_row() - 1.0) + 2.0) * 8.0;
-            (c.steps * kept / cycles, cycles * per_cycle)
+            // The kept cycles at the mean steps of a cycle (the steps of the stages
+            // without a period spread over all cycles, and counted again in full).
+            let rows = (c.steps * k.kept / cycles + k.aperiodic_steps).min(c.steps);
+            (rows, cycles * per_cycle, Some(k))
         }
     };
     let snapshots = if snapshot_every == 0 {
@@ -91,9 +176,6 @@ pub fn run_cost(case: &LoadedCase, csv: bool, snapshot_every: u64) -> RunCost {
     } else {
         (c.steps / snapshot_every as f64).ceil()
     };
-    // Events (lift-off jumps, warnings' moments, partings) add windows the estimate cannot
-    // foresee: at most 3 cycles for each of `event_windows` cycles per kind, and the last
-    // late window before each kept stretch (docs/formats.md, "Events").
     let mut bytes = H5_FIXED_BYTES
         + COMPRESSED_FRACTION
             * (rows * h5_bytes_per_row() + envelope_bytes + snapshots * c.cells * 8.0);
@@ -114,6 +196,7 @@ pub fn run_cost(case: &LoadedCase, csv: bool, snapshot_every: u64) -> RunCost {
         cell_steps: c.cell_steps,
         seconds: c.cell_steps * SECONDS_PER_CELL_STEP,
         bytes,
+        kept,
     }
 }
 
@@ -154,6 +237,46 @@ pub fn describe(c: &RunCost) -> String {
         show_seconds(c.seconds),
         show_bytes(c.bytes)
     )
+}
+
+/// What the size estimate of an envelope run counts as kept step by step, for `check`
+/// (None for every-step storage).
+pub fn describe_kept(c: &RunCost) -> Option<String> {
+    let k = c.kept?;
+    let mut t = format!(
+        "the size counts the envelopes of {:.0} cycles and every step of at most {:.0} of \
+         them: the first and last {} (output.detail_cycles)",
+        k.cycles, k.kept, k.detail_cycles
+    );
+    if k.stage_starts > 0.0 {
+        t += &format!(", 3 around each of {:.0} stage starts", k.stage_starts);
+    }
+    if k.event_windows > 0 {
+        t += &format!(
+            ", and for the events, whose number is not known before the run, an upper bound \
+             of {:.0} cycles: 3 around each of the first {} cycles holding each of the {} \
+             kinds this drive can raise (output.event_windows), and one late window of 3 \
+             before each kept stretch",
+            k.event_cycles, k.event_windows, k.event_kinds
+        );
+    } else {
+        t += " (output.event_windows 0: no event windows)";
+    }
+    if k.aperiodic_steps > 0.0 {
+        t += &format!(
+            "; the stages without a period in full (up to about {:.3e} steps)",
+            k.aperiodic_steps
+        );
+    }
+    if k.long_cycles {
+        t += &format!(
+            "; a cycle may hold more than {MAX_BUFFERED_VALUES} values, and such a cycle is \
+             written in full: every cycle counted"
+        );
+    } else if k.kept >= k.cycles {
+        t += "; that is every cycle";
+    }
+    Some(t)
 }
 
 /// Refuses a run over the limits (unless `allow`), saying what to change.
