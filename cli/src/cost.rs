@@ -10,7 +10,7 @@ use crate::case::LoadedCase;
 use crate::case::Storage;
 use crate::output::envelope::MAX_BUFFERED_VALUES;
 use anyhow::anyhow;
-use boreflux_solver::cost::{aperiodic_stage_steps, estimate, possible_events};
+use boreflux_solver::cost::{estimate, possible_events};
 
 /// Largest run accepted without `--allow-large`, in cells × steps. Assumption: at the
 /// measured rate below this is a few minutes of computing.
@@ -52,7 +52,8 @@ const JUMPS_FIXED_BYTES: f64 = 8e3;
 /// docs/formats.md "Storage choice" and "Events").
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct KeptCycles {
-    /// Cycles of the run: its duration over the slowest period, rounded up.
+    /// Cycles of the run: its duration over the drive's period, rounded up (0 when the
+    /// drive has no common period).
     pub cycles: f64,
     /// `output.detail_cycles`: kept at the start and at the end.
     pub detail_cycles: u64,
@@ -67,11 +68,19 @@ pub struct KeptCycles {
     /// Upper bound on the cycles kept step by step, all reasons together (at most
     /// `cycles`).
     pub kept: f64,
-    /// Upper bound on the steps of stages without a period, kept in full.
-    pub aperiodic_steps: f64,
-    /// The cycles may be longer than the envelope writer buffers (its write-through
-    /// limit): such a cycle is written in full, so every cycle is counted as kept.
-    pub long_cycles: bool,
+    /// Why every step is counted, if it is.
+    pub whole: Option<Whole>,
+}
+
+/// Why an envelope run is counted as writing every step.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Whole {
+    /// The drive has no common period (a schedule whose stages differ in period, or have
+    /// none): the run has no cycle ends, so no envelope, and every step is written.
+    NoCycles,
+    /// A cycle may hold more values than the envelope writer buffers
+    /// ([`MAX_BUFFERED_VALUES`]): such a cycle is written through in full.
+    LongCycles,
 }
 
 impl KeptCycles {
@@ -87,8 +96,7 @@ impl KeptCycles {
         stage_starts: f64,
         event_kinds: usize,
         event_windows: u64,
-        aperiodic_steps: f64,
-        long_cycles: bool,
+        whole: Option<Whole>,
     ) -> Self {
         let windows = event_kinds as f64 * event_windows as f64;
         let late = if event_windows > 0 {
@@ -97,7 +105,7 @@ impl KeptCycles {
             0.0
         };
         let event_cycles = 3.0 * windows + late;
-        let kept = if long_cycles {
+        let kept = if whole.is_some() {
             cycles
         } else {
             (2.0 * detail_cycles as f64 + 3.0 * stage_starts + event_cycles).min(cycles)
@@ -110,8 +118,7 @@ impl KeptCycles {
             event_windows,
             event_cycles,
             kept,
-            aperiodic_steps,
-            long_cycles,
+            whole,
         }
     }
 }
@@ -148,8 +155,16 @@ pub fn run_cost(case: &LoadedCase, csv: bool, snapshot_every: u64) -> RunCost {
             event_windows,
         } => {
             let drive = &case.model.drive;
-            let period = drive.slowest_period_s().unwrap_or(case.model.duration_s);
-            let cycles = (case.model.duration_s / period).ceil().max(1.0);
+            // The run closes cycles of the drive's own period (a schedule has one only
+            // when all its stages share it); without one there are none.
+            let (cycles, whole) = match drive.period_s() {
+                Some(p) => {
+                    let cycles = (case.model.duration_s / p).ceil().max(1.0);
+                    let long = c.steps / cycles * series_per_row() >= MAX_BUFFERED_VALUES as f64;
+                    (cycles, long.then_some(Whole::LongCycles))
+                }
+                None => (0.0, Some(Whole::NoCycles)),
+            };
             let stages = match drive {
                 boreflux_solver::drive::Drive::Schedule(s) => s.len() as f64,
                 _ => 1.0,
@@ -160,14 +175,16 @@ pub fn run_cost(case: &LoadedCase, csv: bool, snapshot_every: u64) -> RunCost {
                 stages - 1.0,
                 possible_events(drive).iter().count(),
                 event_windows,
-                aperiodic_stage_steps(&case.model),
-                c.steps / cycles * series_per_row() >= MAX_BUFFERED_VALUES as f64,
+                whole,
             );
             // Min, max and RMS of every series but time, and the two cycle times.
             let per_cycle = (3.0 * (series_per_row() - 1.0) + 2.0) * 8.0;
-            // The kept cycles at the mean steps of a cycle (the steps of the stages
-            // without a period spread over all cycles, and counted again in full).
-            let rows = (c.steps * k.kept / cycles + k.aperiodic_steps).min(c.steps);
+            // The kept cycles at the mean steps of a cycle.
+            let rows = if whole.is_some() {
+                c.steps
+            } else {
+                c.steps * k.kept / cycles
+            };
             (rows, cycles * per_cycle, Some(k))
         }
     };
@@ -243,6 +260,14 @@ pub fn describe(c: &RunCost) -> String {
 /// (None for every-step storage).
 pub fn describe_kept(c: &RunCost) -> Option<String> {
     let k = c.kept?;
+    if k.whole == Some(Whole::NoCycles) {
+        return Some(
+            "the drive has no common period (a schedule whose stages differ in period or \
+             have none), so the run closes no cycle: no envelopes, and every step is written \
+             as with \"steps\""
+                .to_owned(),
+        );
+    }
     let mut t = format!(
         "the size counts the envelopes of {:.0} cycles and every step of at most {:.0} of \
          them: the first and last {} (output.detail_cycles)",
@@ -262,13 +287,7 @@ pub fn describe_kept(c: &RunCost) -> Option<String> {
     } else {
         t += " (output.event_windows 0: no event windows)";
     }
-    if k.aperiodic_steps > 0.0 {
-        t += &format!(
-            "; the stages without a period in full (up to about {:.3e} steps)",
-            k.aperiodic_steps
-        );
-    }
-    if k.long_cycles {
+    if k.whole == Some(Whole::LongCycles) {
         t += &format!(
             "; a cycle may hold more than {MAX_BUFFERED_VALUES} values, and such a cycle is \
              written in full: every cycle counted"

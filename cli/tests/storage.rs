@@ -538,6 +538,52 @@ fn the_size_estimate_bounds_an_envelope_run_with_events_every_cycle() {
     }
 }
 
+/// A schedule whose stages differ in period has no common period: an envelope run of it
+/// closes no cycle, writes no envelope and keeps every step, and the size estimate counts
+/// it so (docs/formats.md "Run size"): the shipped staged development (two surge-block
+/// stages, then a constant rate).
+#[test]
+fn an_envelope_run_without_a_common_period_is_estimated_as_every_step() {
+    let tmp = scratch("no-period");
+    let dir = tmp.path();
+    let shipped = Path::new(env!("CARGO_MANIFEST_DIR")).join("../cases/staged-development.json");
+    let mut case: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(shipped).unwrap()).unwrap();
+    case["output"] = serde_json::json!({ "store": "envelopes", "detail_cycles": 1 });
+    let p = dir.join("staged.json");
+    std::fs::write(&p, case.to_string()).unwrap();
+    let loaded = load_case(&p).unwrap();
+    let cost = boreflux::cost::run_cost(&loaded, false, 0);
+    let bound = cost.kept.expect("an envelope run");
+    assert_eq!(bound.whole, Some(boreflux::cost::Whole::NoCycles));
+    assert_eq!(
+        cost.steps,
+        boreflux_solver::cost::estimate(&loaded.model).steps
+    );
+    let h5 = dir.join("staged.h5");
+    run(&p, &h5);
+    let f = hdf5::File::open(&h5).unwrap();
+    let steps = f
+        .group("summary")
+        .unwrap()
+        .attr("steps")
+        .unwrap()
+        .read_scalar::<f64>()
+        .unwrap();
+    assert_eq!(
+        read(&f, "series/time").len() as f64,
+        steps,
+        "every step in /series"
+    );
+    assert!(read(&f, "envelopes/start_time").is_empty(), "no envelope");
+    let got = std::fs::metadata(&h5).unwrap().len() as f64;
+    assert!(
+        cost.bytes >= got,
+        "estimate {} B below the {got} B written",
+        cost.bytes
+    );
+}
+
 /// Every warning of `/summary` that names a moment of the run has events of its kind, and
 /// every such kind raised has its warning, and is among the kinds the size estimate counts
 /// for the drive: the shipped swab (partings, vapour suction, slot

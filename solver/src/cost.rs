@@ -194,22 +194,6 @@ pub fn possible_events(drive: &Drive) -> EventSet {
     set
 }
 
-/// Upper bound on the steps a validated model takes in the stages of its schedule that
-/// have no period (a constant rate, a slug, a table that does not repeat): each such stage
-/// is one long stretch without a cycle end, which envelope storage keeps in full (it holds
-/// the stage's start). 0 for a drive that is not a schedule.
-pub fn aperiodic_stage_steps(model: &Model) -> f64 {
-    let Drive::Schedule(stages) = &model.drive else {
-        return 0.0;
-    };
-    stages
-        .iter()
-        .filter(|s| s.drive.period_s().is_none())
-        .map(|s| segment(model, &s.drive, s.duration_s) + 1.0)
-        .sum::<f64>()
-        * scheme_factor(model)
-}
-
 fn scheme_factor(model: &Model) -> f64 {
     match model.numerics.scheme {
         Scheme::Theta => 1.0,

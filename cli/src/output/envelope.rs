@@ -520,8 +520,7 @@ mod tests {
                 stage_starts,
                 kinds.len(),
                 windows,
-                0.0,
-                false,
+                None,
             )
             .kept;
             assert!(
