@@ -79,7 +79,7 @@ pub enum Whole {
     /// none): the run has no cycle ends, so no envelope, and every step is written.
     NoCycles,
     /// A cycle may hold more values than the envelope writer buffers
-    /// ([`MAX_BUFFERED_VALUES`]): such a cycle is written through in full.
+    /// (4 000 000 values, `output::envelope`): such a cycle is written through in full.
     LongCycles,
 }
 
