@@ -8,8 +8,9 @@
 
 use crate::case::LoadedCase;
 use crate::case::Storage;
+use crate::output::envelope::MAX_BUFFERED_VALUES;
 use anyhow::anyhow;
-use boreflux_solver::cost::estimate;
+use boreflux_solver::cost::{estimate, possible_events};
 
 /// Largest run accepted without `--allow-large`, in cells × steps. Assumption: at the
 /// measured rate below this is a few minutes of computing.
@@ -47,6 +48,81 @@ const H5_FIXED_BYTES: f64 = 1e6;
 /// group measured about 2 kB more than a file without it).
 const JUMPS_FIXED_BYTES: f64 = 8e3;
 
+/// What the size estimate of an envelope run assumes (`output.store` "envelopes",
+/// docs/formats.md "Storage choice" and "Events").
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct KeptCycles {
+    /// Cycles of the run: its duration over the drive's period, rounded up (0 when the
+    /// drive has no common period).
+    pub cycles: f64,
+    /// `output.detail_cycles`: kept at the start and at the end.
+    pub detail_cycles: u64,
+    /// Stage starts (stages after the first), each kept with one cycle each side.
+    pub stage_starts: f64,
+    /// Event kinds the drive can raise ([`boreflux_solver::cost::possible_events`]).
+    pub event_kinds: usize,
+    /// `output.event_windows`.
+    pub event_windows: u64,
+    /// Upper bound on the cycles the event windows add.
+    pub event_cycles: f64,
+    /// Upper bound on the cycles kept step by step, all reasons together (at most
+    /// `cycles`).
+    pub kept: f64,
+    /// Why every step is counted, if it is.
+    pub whole: Option<Whole>,
+}
+
+/// Why an envelope run is counted as writing every step.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Whole {
+    /// The drive has no common period (a schedule whose stages differ in period, or have
+    /// none): the run has no cycle ends, so no envelope, and every step is written.
+    NoCycles,
+    /// A cycle may hold more values than the envelope writer buffers
+    /// (4 000 000 values, `output::envelope`): such a cycle is written through in full.
+    LongCycles,
+}
+
+impl KeptCycles {
+    /// The bound: the first and last `detail_cycles`; 3 cycles around each stage start;
+    /// 3 cycles around each of the first `event_windows` cycles holding each kind that can
+    /// occur; and, when `event_windows` > 0, one late window of 3 cycles before each kept
+    /// stretch but the first (a stretch begins at most at each of those windows and at the
+    /// closing cycles). Every window is counted whole, as if none overlapped another: the
+    /// events are not known before the run.
+    pub(crate) fn new(
+        cycles: f64,
+        detail_cycles: u64,
+        stage_starts: f64,
+        event_kinds: usize,
+        event_windows: u64,
+        whole: Option<Whole>,
+    ) -> Self {
+        let windows = event_kinds as f64 * event_windows as f64;
+        let late = if event_windows > 0 {
+            3.0 * (windows + stage_starts + 1.0)
+        } else {
+            0.0
+        };
+        let event_cycles = 3.0 * windows + late;
+        let kept = if whole.is_some() {
+            cycles
+        } else {
+            (2.0 * detail_cycles as f64 + 3.0 * stage_starts + event_cycles).min(cycles)
+        };
+        KeptCycles {
+            cycles,
+            detail_cycles,
+            stage_starts,
+            event_kinds,
+            event_windows,
+            event_cycles,
+            kept,
+            whole,
+        }
+    }
+}
+
 /// The estimate of one run.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct RunCost {
@@ -60,30 +136,56 @@ pub struct RunCost {
     pub seconds: f64,
     /// Estimated output size (HDF5, and CSV when asked for), bytes.
     pub bytes: f64,
+    /// For an envelope run, the cycles the size estimate counts as kept step by step.
+    pub kept: Option<KeptCycles>,
 }
 
 /// Cost of running `case`, writing CSV too when `csv`, a head profile every
 /// `snapshot_every` steps (0 = about 200 in all, as `run` does).
 pub fn run_cost(case: &LoadedCase, csv: bool, snapshot_every: u64) -> RunCost {
     let c = estimate(&case.model);
-    let (rows, envelope_bytes) = match case.storage {
-        Storage::Steps => ((c.steps / case.output_every.max(1) as f64).ceil(), 0.0),
-        Storage::Envelopes { detail_cycles, .. } => {
-            let period = case
-                .model
-                .drive
-                .slowest_period_s()
-                .unwrap_or(case.model.duration_s);
-            let cycles = (case.model.duration_s / period).ceil().max(1.0);
-            let stages = match &case.model.drive {
+    let (rows, envelope_bytes, kept) = match case.storage {
+        Storage::Steps => (
+            (c.steps / case.output_every.max(1) as f64).ceil(),
+            0.0,
+            None,
+        ),
+        Storage::Envelopes {
+            detail_cycles,
+            event_windows,
+        } => {
+            let drive = &case.model.drive;
+            // The run closes cycles of the drive's own period (a schedule has one only
+            // when all its stages share it); without one there are none.
+            let (cycles, whole) = match drive.period_s() {
+                Some(p) => {
+                    let cycles = (case.model.duration_s / p).ceil().max(1.0);
+                    let long = c.steps / cycles * series_per_row() >= MAX_BUFFERED_VALUES as f64;
+                    (cycles, long.then_some(Whole::LongCycles))
+                }
+                None => (0.0, Some(Whole::NoCycles)),
+            };
+            let stages = match drive {
                 boreflux_solver::drive::Drive::Schedule(s) => s.len() as f64,
                 _ => 1.0,
             };
-            // First and last windows, and 3 cycles around each stage start.
-            let kept = (2.0 * detail_cycles as f64 + 3.0 * (stages - 1.0)).min(cycles);
+            let k = KeptCycles::new(
+                cycles,
+                detail_cycles,
+                stages - 1.0,
+                possible_events(drive).iter().count(),
+                event_windows,
+                whole,
+            );
             // Min, max and RMS of every series but time, and the two cycle times.
             let per_cycle = (3.0 * (series_per_row() - 1.0) + 2.0) * 8.0;
-            (c.steps * kept / cycles, cycles * per_cycle)
+            // The kept cycles at the mean steps of a cycle.
+            let rows = if whole.is_some() {
+                c.steps
+            } else {
+                c.steps * k.kept / cycles
+            };
+            (rows, cycles * per_cycle, Some(k))
         }
     };
     let snapshots = if snapshot_every == 0 {
@@ -91,9 +193,6 @@ pub fn run_cost(case: &LoadedCase, csv: bool, snapshot_every: u64) -> RunCost {
     } else {
         (c.steps / snapshot_every as f64).ceil()
     };
-    // Events (lift-off jumps, warnings' moments, partings) add windows the estimate cannot
-    // foresee: at most 3 cycles for each of `event_windows` cycles per kind, and the last
-    // late window before each kept stretch (docs/formats.md, "Events").
     let mut bytes = H5_FIXED_BYTES
         + COMPRESSED_FRACTION
             * (rows * h5_bytes_per_row() + envelope_bytes + snapshots * c.cells * 8.0);
@@ -114,6 +213,7 @@ pub fn run_cost(case: &LoadedCase, csv: bool, snapshot_every: u64) -> RunCost {
         cell_steps: c.cell_steps,
         seconds: c.cell_steps * SECONDS_PER_CELL_STEP,
         bytes,
+        kept,
     }
 }
 
@@ -154,6 +254,48 @@ pub fn describe(c: &RunCost) -> String {
         show_seconds(c.seconds),
         show_bytes(c.bytes)
     )
+}
+
+/// What the size estimate of an envelope run counts as kept step by step, for `check`
+/// (None for every-step storage).
+pub fn describe_kept(c: &RunCost) -> Option<String> {
+    let k = c.kept?;
+    if k.whole == Some(Whole::NoCycles) {
+        return Some(
+            "the drive has no common period (a schedule whose stages differ in period or \
+             have none), so the run closes no cycle: no envelopes, and every step is written \
+             as with \"steps\""
+                .to_owned(),
+        );
+    }
+    let mut t = format!(
+        "the size counts the envelopes of {:.0} cycles and every step of at most {:.0} of \
+         them: the first and last {} (output.detail_cycles)",
+        k.cycles, k.kept, k.detail_cycles
+    );
+    if k.stage_starts > 0.0 {
+        t += &format!(", 3 around each of {:.0} stage starts", k.stage_starts);
+    }
+    if k.event_windows > 0 {
+        t += &format!(
+            ", and for the events, whose number is not known before the run, an upper bound \
+             of {:.0} cycles: 3 around each of the first {} cycles holding each of the {} \
+             kinds this drive can raise (output.event_windows), and one late window of 3 \
+             before each kept stretch",
+            k.event_cycles, k.event_windows, k.event_kinds
+        );
+    } else {
+        t += " (output.event_windows 0: no event windows)";
+    }
+    if k.whole == Some(Whole::LongCycles) {
+        t += &format!(
+            "; a cycle may hold more than {MAX_BUFFERED_VALUES} values, and such a cycle is \
+             written in full: every cycle counted"
+        );
+    } else if k.kept >= k.cycles {
+        t += "; that is every cycle";
+    }
+    Some(t)
 }
 
 /// Refuses a run over the limits (unless `allow`), saying what to change.

@@ -389,16 +389,23 @@ fn the_gnu_parallel_recipe_runs_shards_that_merge_into_the_whole() {
     .unwrap();
     let script = repo_dir().join("examples/sampled-sweep-parallel.sh");
     let shards = dir.path().join("shards");
-    let status = std::process::Command::new("bash")
+    // Captured (the harness does not capture a child's inherited stdout), shown on failure.
+    let o = std::process::Command::new("bash")
         .arg(&script)
         .arg(&case)
         .arg(&shards)
         .arg("3")
         .arg(&spec)
         .env("BOREFLUX", assert_cmd::cargo::cargo_bin("boreflux"))
-        .status()
+        .output()
         .unwrap();
-    assert!(status.success());
+    assert!(
+        o.status.success(),
+        "{}\n--- stdout\n{}\n--- stderr\n{}",
+        o.status,
+        String::from_utf8_lossy(&o.stdout),
+        String::from_utf8_lossy(&o.stderr)
+    );
     boreflux()
         .arg("sweep")
         .arg(&case)

@@ -13,6 +13,7 @@
 //! adaptive scheme (the default) that count is multiplied by an allowance
 //! (`ADAPTIVE_FACTOR`) for its restarts and refinements: measured, not a proof.
 
+use crate::diagnostics::{EventKind, EventSet};
 use crate::drive::Drive;
 use crate::model::{Model, Scheme, TimeSpec};
 use crate::run::{default_first_step, DEFAULT_STEPS_PER_CYCLE, DEFAULT_STEPS_PER_DECADE};
@@ -139,15 +140,64 @@ pub fn estimate(model: &Model) -> Cost {
             .map(|s| segment(model, &s.drive, s.duration_s) + 1.0)
             .sum(),
         d => segment(model, d, model.duration_s),
-    } * match model.numerics.scheme {
-        Scheme::Theta => 1.0,
-        Scheme::TrBdf2 { .. } => ADAPTIVE_FACTOR,
-    };
+    } * scheme_factor(model);
     let cells = crate::grid::planned_cells(model);
     Cost {
         cells,
         steps,
         cell_steps: cells * steps,
+    }
+}
+
+/// The kinds of event a run of `drive` can raise, stage starts left out (one per stage
+/// after the first, known before the run). How many of them a run raises, and when, is
+/// not known before it runs; this is the set an output-size bound must allow for: the
+/// numerical alarms (`oscillation`, `smallest_step`), the run checks (`slot_velocity`,
+/// `grain_reynolds`, `collapse_load`) and `cake_change` with any drive; `column_parting`
+/// and `vapour_suction` under a sealed tool (surge block, swab: the only devices with a
+/// vapour gap), `thrust_bound` under a surge block with a thrust bound, `pump_suction` with a pump-and-backwash
+/// stage (docs/formats.md "Events").
+pub fn possible_events(drive: &Drive) -> EventSet {
+    let mut set = EventSet::EMPTY;
+    for k in [
+        EventKind::Oscillation,
+        EventKind::SmallestStep,
+        EventKind::SlotVelocity,
+        EventKind::GrainReynolds,
+        EventKind::CollapseLoad,
+        EventKind::CakeChange,
+    ] {
+        set.insert(k);
+    }
+    for d in drive.stage_drives() {
+        let own: &[EventKind] = match d {
+            // Without `drive.max_thrust` the block's push has no bound to reach.
+            Drive::SurgeBlock(b) if b.max_head_m().is_finite() => &[
+                EventKind::ColumnParting,
+                EventKind::VapourSuction,
+                EventKind::ThrustBound,
+            ],
+            Drive::SurgeBlock(_) => &[EventKind::ColumnParting, EventKind::VapourSuction],
+            Drive::Swab(_) => &[EventKind::ColumnParting, EventKind::VapourSuction],
+            Drive::PumpBackwash(_) => &[EventKind::PumpSuction],
+            Drive::SineHead(_)
+            | Drive::ConstantRate { .. }
+            | Drive::Slug { .. }
+            | Drive::Table(_)
+            | Drive::JetPulse(_)
+            | Drive::Schedule(_) => &[],
+        };
+        for &k in own {
+            set.insert(k);
+        }
+    }
+    set
+}
+
+fn scheme_factor(model: &Model) -> f64 {
+    match model.numerics.scheme {
+        Scheme::Theta => 1.0,
+        Scheme::TrBdf2 { .. } => ADAPTIVE_FACTOR,
     }
 }
 

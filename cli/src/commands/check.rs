@@ -306,6 +306,9 @@ pub fn check(a: &CheckArgs) -> Result<(), Failure> {
             crate::cost::show_bytes(crate::cost::MAX_OUTPUT_BYTES)
         ),
     };
+    if let Some(kept) = crate::cost::describe_kept(&cost) {
+        t += &format!("  Output size: {kept}\n");
+    }
     match &periodic {
         Ok(v) => {
             let num = |k: &crate::output::schema::JsonKey| v[k.key()].as_f64().unwrap_or(f64::NAN);

@@ -25,7 +25,7 @@ use boreflux_solver::{EventKind, EventSet};
 
 /// A cycle's rows are written through once the buffer holds this many values, whatever
 /// the cycle (a long stage without a cycle end must not grow memory without bound).
-const MAX_BUFFERED_VALUES: usize = 4_000_000;
+pub(crate) const MAX_BUFFERED_VALUES: usize = 4_000_000;
 
 /// Default cycles holding each kind of event kept in full (`output.event_windows`): the
 /// first shows the onset, the next two whether it repeats alike; a kind that repeats every
@@ -464,6 +464,76 @@ mod tests {
             _ => EventSet::EMPTY,
         });
         assert_eq!(got, [0, 1, 29, 30, 31, 38, 39].into());
+    }
+
+    /// The run-size estimate's bound on the kept cycles (`crate::cost::KeptCycles`,
+    /// docs/formats.md "Run size") holds whatever the events: 300 runs of pseudo-random
+    /// events of 4 kinds (each kind in a cycle with a probability from 0.02 to 0.6) and
+    /// stage starts, 20 to 119 cycles, 1 to 3 detail cycles, 0 to 3 event windows.
+    #[test]
+    fn kept_cycles_stay_within_the_size_estimates_bound() {
+        let kinds = [
+            EventKind::SlotVelocity,
+            EventKind::GrainReynolds,
+            EventKind::ColumnParting,
+            EventKind::CakeChange,
+        ];
+        // xorshift64 (Marsaglia 2003): reproducible draws, no dependency.
+        let mut x = 0x2545_f491_4f6c_dd1d_u64;
+        let mut draw = move || {
+            x ^= x << 13;
+            x ^= x >> 7;
+            x ^= x << 17;
+            (x >> 11) as f64 / (1u64 << 53) as f64
+        };
+        let mut tightest = 0.0_f64;
+        for trial in 0..300u64 {
+            let cycles = 20 + trial % 100;
+            let detail = 1 + trial % 3;
+            let windows = trial % 4;
+            let p = 0.02 + 0.58 * draw();
+            let mut stage_starts = 0.0;
+            let table: Vec<EventSet> = (0..cycles)
+                .map(|_| {
+                    let mut s = EventSet::EMPTY;
+                    for k in kinds {
+                        if draw() < p {
+                            s.insert(k);
+                        }
+                    }
+                    if draw() < 0.03 {
+                        s.insert(EventKind::StageStart);
+                        stage_starts += 1.0;
+                    }
+                    s
+                })
+                .collect();
+            let plan = EnvelopePlan {
+                detail_cycles: detail,
+                detail_from_s: 4.0 * (cycles - detail) as f64,
+                event_windows: windows,
+            };
+            let got = kept(cycles, plan, |c| table[c as usize]).len() as f64;
+            let bound = crate::cost::KeptCycles::new(
+                cycles as f64,
+                detail,
+                stage_starts,
+                kinds.len(),
+                windows,
+                None,
+            )
+            .kept;
+            assert!(
+                got <= bound,
+                "trial {trial}: {got} cycles kept, bound {bound} ({cycles} cycles, \
+                 {detail} detail, {windows} windows, {stage_starts} stage starts, p {p:.2})"
+            );
+            if bound < cycles as f64 {
+                tightest = tightest.max(got / bound);
+            }
+        }
+        // The draws reach the bound's neighbourhood somewhere (the test exercises it).
+        assert!(tightest > 0.5, "largest kept / bound {tightest}");
     }
 
     /// Two kinds count apart: each keeps its own first windows; an isolated late event
