@@ -79,14 +79,17 @@ pub fn storage(raw: Option<&RawOutput>, model: &Model) -> Result<(Storage, Value
     let event_windows = raw
         .and_then(|r| r.event_windows)
         .unwrap_or(DEFAULT_EVENT_WINDOWS);
-    let periodic = model.drive.slowest_period_s().is_some();
+    // Envelopes are per drive cycle, and the run closes cycles only on a common period: a
+    // schedule whose stages have other periods (or none) closes none, so it gets none.
+    let periodic = model.drive.period_s().is_some();
     let storage =
         match choice {
             StoreChoice::Steps => Storage::Steps,
             StoreChoice::Envelopes if !periodic => return Err(CaseError::new(
                 "output.store",
                 "\"envelopes\" needs a periodic drive (a surge block, swab, pump-and-backwash, \
-                 jetting, sine head or repeating table); use \"steps\"",
+                 jetting, sine head or repeating table; a schedule only when every stage has \
+                 the same period and lasts whole cycles of it); use \"steps\"",
             )),
             StoreChoice::Envelopes => Storage::Envelopes {
                 detail_cycles,

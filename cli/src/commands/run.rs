@@ -436,7 +436,7 @@ fn envelope_plan(case: &LoadedCase) -> Option<EnvelopePlan> {
         return None;
     };
     let model = &case.model;
-    let period = model.drive.slowest_period_s().unwrap_or(0.0);
+    let period = model.drive.period_s().unwrap_or(0.0);
     Some(EnvelopePlan {
         detail_cycles,
         detail_from_s: model.duration_s - detail_cycles as f64 * period,
