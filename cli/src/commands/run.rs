@@ -113,7 +113,9 @@ impl StepObserver for Observers<'_> {
     }
 
     fn on_cycle(&mut self, c: &CycleView) {
-        self.bar.set_message(format!("cycle {}", c.index + 1));
+        if !self.bar.is_hidden() {
+            self.bar.set_message(format!("cycle {}", c.index + 1));
+        }
         self.sink.on_cycle(c);
     }
 
