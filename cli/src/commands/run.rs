@@ -293,7 +293,7 @@ pub fn run(a: &RunArgs) -> Result<(), Failure> {
             bar: &bar,
             duration_s: model.duration_s,
         };
-        simulate(
+        let result = simulate(
             model,
             &mut obs,
             Reporting {
@@ -303,12 +303,19 @@ pub fn run(a: &RunArgs) -> Result<(), Failure> {
                     Storage::Envelopes { .. } => 1,
                 },
             },
-        )
+        );
+        // The series are written out while the tests below may still run.
+        if result.is_ok() && !interrupted() && sink.error.is_none() {
+            if let Err(e) = sink.write_series() {
+                sink.error = Some(e);
+            }
+        }
+        result
     };
     // The tests of the well as built (the undamaged well's, the basis of the progress
     // series and of the efficiencies, and the figures before) depend on the case alone:
-    // they run beside the run when a second core is there. A failure is reported with the
-    // figures, it does not stop the run.
+    // they run beside the run and the writing of its series when a second core is there.
+    // A failure is reported with the figures, it does not stop the run.
     let (result, baseline) = beside(step, || Baseline::new(model, &case.assessment));
     bar.finish_and_clear();
     if interrupted() {

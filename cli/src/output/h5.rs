@@ -226,14 +226,22 @@ impl H5Writer {
         Ok(Box::new(plan))
     }
 
-    /// Writes out every buffered row, closes the file and renames it to its final path.
-    /// Handles still held afterwards refuse further appends.
-    pub fn finish(mut self) -> Result<PathBuf> {
+    /// Writes out every buffered row of the growable datasets and closes them (those never
+    /// filled are created now, see the module documentation). Their handles refuse further
+    /// appends; fixed datasets and attributes can still be written.
+    pub fn close_growables(&mut self) -> Result<()> {
         for g in &self.growing {
             let mut g = lock(g);
             g.flush_last()?;
             g.close();
         }
+        Ok(())
+    }
+
+    /// Writes out every buffered row, closes the file and renames it to its final path.
+    /// Handles still held afterwards refuse further appends.
+    pub fn finish(mut self) -> Result<PathBuf> {
+        self.close_growables()?;
         let file = self
             .file
             .take()

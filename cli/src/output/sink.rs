@@ -176,12 +176,21 @@ impl ResultSink {
         Ok(())
     }
 
-    /// Flushes and renames both files into place.
-    pub fn finish(mut self) -> Result<(), OutputError> {
-        if let Some(env) = self.envelopes.as_mut() {
+    /// Writes out the rest of the run's series (the envelopes' last cycles, every buffered
+    /// value) and closes their datasets; the grid, summary and other fixed datasets can
+    /// still be written. Called by [`Self::finish`] if not before; nothing may be reported
+    /// after it.
+    pub fn write_series(&mut self) -> Result<(), OutputError> {
+        if let Some(mut env) = self.envelopes.take() {
             let (series, csv) = (&mut self.series, &mut self.csv);
             env.finish(|row| write_row(series, csv, row))?;
         }
+        self.writer.close_growables()
+    }
+
+    /// Flushes and renames both files into place.
+    pub fn finish(mut self) -> Result<(), OutputError> {
+        self.write_series()?;
         if let Some(csv) = self.csv {
             csv.finish()?;
         }
