@@ -19,10 +19,14 @@ use std::path::Path;
 const CHUNK: usize = 8192;
 
 /// Deflate level of the run's datasets, after the byte shuffle. Levels 1, 4 and 6 gave
-/// 12.73, 12.56 and 12.51 MB on the run above at about the same write time: the series are
-/// full-precision doubles whose mantissas do not compress; the shuffle groups the sign and
-/// exponent bytes, which do.
-const DEFLATE_LEVEL: u8 = 4;
+/// 12.73, 12.56 and 12.51 MB on the run above: the series are full-precision doubles whose
+/// mantissas do not compress; the shuffle groups the sign and exponent bytes, which do.
+/// Level 1 is zlib's fast match search (levels 4 and up search lazily): on the 60 M
+/// cell-step sine case with every step written (benches/cases/sine-60m.json, 41.6 MB of
+/// series) it wrote 10.33 MB against 10.14 MB at level 4, and the whole process took
+/// 0.80 s against 0.91 s (least of 5 runs each, loaded 2-core machine); Python's zlib on
+/// the same shuffled chunks: 0.83 s against 1.23 s.
+const DEFLATE_LEVEL: u8 = 1;
 
 /// Writes the run into an HDF5 file (and CSV).
 pub struct ResultSink {
