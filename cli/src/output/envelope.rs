@@ -280,12 +280,12 @@ impl Envelopes {
             } else {
                 self.max[k].abs().max(self.min[k].abs())
             };
-            h[0].append(&[self.min[k]])?;
-            h[1].append(&[self.max[k]])?;
-            h[2].append(&[rms])?;
+            h[0].push(self.min[k])?;
+            h[1].push(self.max[k])?;
+            h[2].push(rms)?;
         }
-        self.start.append(&[self.cycle_start_s])?;
-        self.end.append(&[t])?;
+        self.start.push(self.cycle_start_s)?;
+        self.end.push(t)?;
         let (prev_event, prev_late_event) = self
             .prev
             .as_ref()

@@ -326,6 +326,12 @@ impl<T: H5Type + Copy> SeriesHandle<T> {
         lock(&self.inner).push(values)
     }
 
+    /// Appends one value (as [`append`](Self::append), without the slice's loop: the
+    /// per-step path of a run).
+    pub fn push(&mut self, value: T) -> Result<()> {
+        lock(&self.inner).push_one(value)
+    }
+
     /// Number of values appended so far (written or buffered).
     pub fn len(&self) -> usize {
         lock(&self.inner).len_rows()
@@ -426,7 +432,7 @@ impl<T: H5Type + Copy> Growable<T> {
                 object: self.object.clone(),
             });
         }
-        let cap = self.buf.capacity();
+        let cap = self.chunk_rows * self.ncols;
         while !values.is_empty() {
             let take = (cap - self.buf.len()).min(values.len());
             let (head, rest) = values.split_at(take);
@@ -435,6 +441,20 @@ impl<T: H5Type + Copy> Growable<T> {
             if self.buf.len() == cap {
                 self.flush()?;
             }
+        }
+        Ok(())
+    }
+
+    /// Appends one value of a series (`ncols` is 1).
+    fn push_one(&mut self, value: T) -> Result<()> {
+        if matches!(self.slot, Slot::Closed) {
+            return Err(OutputError::Finished {
+                object: self.object.clone(),
+            });
+        }
+        self.buf.push(value);
+        if self.buf.len() == self.chunk_rows {
+            self.flush()?;
         }
         Ok(())
     }
@@ -748,6 +768,29 @@ mod tests {
             f.dataset("g/m").unwrap().read_raw::<f64>().unwrap(),
             [1.0, 2.0, 3.0, 4.0, 5.0, 6.0]
         );
+    }
+
+    /// One value at a time across chunk boundaries gives the series `append` gives; a
+    /// finished writer's handle refuses a value too.
+    #[test]
+    fn push_writes_what_append_writes() {
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("p.h5");
+        let mut w = H5Writer::create(&path).unwrap();
+        let mut a = w.growable_series("a", "m", "", 7).unwrap();
+        let mut b = w.growable_series("b", "m", "", 7).unwrap();
+        let values: Vec<f64> = (0..30).map(|i| f64::from(i).sqrt()).collect();
+        a.append(&values).unwrap();
+        for &x in &values {
+            b.push(x).unwrap();
+        }
+        assert_eq!(b.len(), 30);
+        w.finish().unwrap();
+        assert!(matches!(b.push(1.0), Err(OutputError::Finished { .. })));
+        let f = File::open(&path).unwrap();
+        let read = |n: &str| f.dataset(n).unwrap().read_raw::<f64>().unwrap();
+        assert_eq!(read("a"), values);
+        assert_eq!(read("b"), values);
     }
 
     #[test]

@@ -32,7 +32,7 @@ const DEFLATE_LEVEL: u8 = 1;
 pub struct ResultSink {
     writer: H5Writer,
     /// Every per-step series with its dataset, in CSV column order.
-    series: Vec<(Step, SeriesHandle)>,
+    series: Columns,
     cycle_index: SeriesHandle<u64>,
     /// Every per-cycle value with its dataset.
     cycles: Vec<(Cycle, SeriesHandle)>,
@@ -131,7 +131,7 @@ impl ResultSink {
         };
         Ok(ResultSink {
             writer: w,
-            series,
+            series: Columns::new(series),
             cycle_index,
             cycles,
             snap_time,
@@ -153,7 +153,7 @@ impl ResultSink {
 
     fn write_step(&mut self, s: &StepView<'_>) -> Result<(), OutputError> {
         self.row.clear();
-        for (step, _) in &self.series {
+        for (step, _) in &self.series.handles {
             self.row.push(step.value(s));
         }
         let events = self.events.on_step(s)?;
@@ -173,9 +173,9 @@ impl ResultSink {
 
     fn write_cycle(&mut self, c: &CycleView) -> Result<(), OutputError> {
         self.events.on_cycle(c.index);
-        self.cycle_index.append(&[c.index])?;
+        self.cycle_index.push(c.index)?;
         for (cycle, h) in &mut self.cycles {
-            h.append(&[cycle.value(c)])?;
+            h.push(cycle.value(c))?;
         }
         Ok(())
     }
@@ -189,6 +189,7 @@ impl ResultSink {
             let (series, csv) = (&mut self.series, &mut self.csv);
             env.finish(|row| write_row(series, csv, row))?;
         }
+        self.series.flush()?;
         self.writer.close_growables()
     }
 
@@ -235,15 +236,50 @@ impl StepObserver for ResultSink {
     }
 }
 
+/// The per-step series: rows are gathered into one column buffer per series and handed to
+/// the datasets a chunk at a time, so a step costs no lock per value.
+struct Columns {
+    handles: Vec<(Step, SeriesHandle)>,
+    /// One buffer per series (capacity one chunk), all the same length.
+    pending: Vec<Vec<f64>>,
+}
+
+impl Columns {
+    fn new(handles: Vec<(Step, SeriesHandle)>) -> Self {
+        let pending = handles.iter().map(|_| Vec::with_capacity(CHUNK)).collect();
+        Columns { handles, pending }
+    }
+
+    fn push_row(&mut self, row: &[f64]) -> Result<(), OutputError> {
+        for (col, &x) in self.pending.iter_mut().zip(row) {
+            col.push(x);
+        }
+        if self.pending.first().is_some_and(|c| c.len() >= CHUNK) {
+            self.flush()?;
+        }
+        Ok(())
+    }
+
+    /// Hands the gathered values to the datasets.
+    fn flush(&mut self) -> Result<(), OutputError> {
+        if self.pending.first().is_none_or(Vec::is_empty) {
+            return Ok(());
+        }
+        for ((_, h), col) in self.handles.iter_mut().zip(&mut self.pending) {
+            h.append(col)?;
+            col.clear();
+        }
+        Ok(())
+    }
+}
+
 /// Appends one row to every per-step series and the CSV file.
 fn write_row(
-    series: &mut [(Step, SeriesHandle)],
+    series: &mut Columns,
     csv: &mut Option<CsvWriter>,
     row: &[f64],
 ) -> Result<(), OutputError> {
-    for ((_, h), &x) in series.iter_mut().zip(row) {
-        h.append(&[x])?;
-    }
+    series.push_row(row)?;
     if let Some(csv) = csv.as_mut() {
         csv.write_row(row)?;
     }
