@@ -175,12 +175,12 @@ fn write_summary(sink: &mut ResultSink, h: &Headline) -> Result<(), crate::outpu
     let w = sink.writer();
     let summary = Group::Summary.path();
     w.group(&summary)?;
-    for (figure, value) in figure_values(h) {
-        // A figure that was not computed is left out (the report shows a dash).
-        if let Some(x) = value {
-            w.set_attr_f64(&summary, &figure.name(), x)?;
-        }
-    }
+    // A figure that was not computed is left out (the report shows a dash).
+    let figures: Vec<(String, f64)> = figure_values(h)
+        .into_iter()
+        .filter_map(|(figure, value)| value.map(|x| (figure.name(), x)))
+        .collect();
+    w.set_attrs_f64(&summary, &figures)?;
     for text in SummaryText::ALL {
         let value = match text {
             SummaryText::Warnings => h.warnings.join("\n"),

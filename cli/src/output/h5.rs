@@ -129,6 +129,23 @@ impl H5Writer {
         })
     }
 
+    /// Sets several `f64` attributes on the group or dataset at `path` at once (the object
+    /// opened and its attribute names listed once), replacing earlier values.
+    pub fn set_attrs_f64(&self, path: &str, values: &[(String, f64)]) -> Result<()> {
+        self.with_object(path, |loc| {
+            let existing = loc.attr_names()?;
+            for (name, value) in values {
+                if existing.iter().any(|n| n == name) {
+                    loc.delete_attr(name)?;
+                }
+                loc.new_attr::<f64>()
+                    .create(name.as_str())?
+                    .write_scalar(value)?;
+            }
+            Ok(())
+        })
+    }
+
     /// Writes a complete 1-D dataset (contiguous, not growable).
     pub fn write_vector<T: H5Type>(
         &self,
@@ -613,6 +630,8 @@ mod tests {
         w.set_root_attr_str("tool_version", "0.1.0").unwrap();
         w.set_root_attr_str("tool_version", "0.1.1").unwrap(); // replaced, not an error
         w.set_attr_f64("/", "duration_s", 600.0).unwrap();
+        w.set_attrs_f64("/", &[("a".into(), 1.0), ("duration_s".into(), 700.0)])
+            .unwrap(); // replaced, not an error
         w.group("summary").unwrap();
         w.set_attr_str("/summary", "warning", "débit élevé")
             .unwrap();
@@ -652,8 +671,9 @@ mod tests {
         assert_eq!(str_attr(&f, "tool_version"), "0.1.1");
         assert_eq!(
             f.attr("duration_s").unwrap().read_scalar::<f64>().unwrap(),
-            600.0
+            700.0
         );
+        assert_eq!(f.attr("a").unwrap().read_scalar::<f64>().unwrap(), 1.0);
         assert_eq!(
             str_attr(&f.group("summary").unwrap(), "warning"),
             "débit élevé"
