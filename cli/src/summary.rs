@@ -6,7 +6,7 @@ use crate::case::LoadedCase;
 use crate::output::schema::{run_json_keys, Figure, Num, RunKey, SummaryText};
 use crate::units::{FT_M, PSI_PA, US_GAL_M3};
 use boreflux_solver::assess::figures::RunFigures;
-use boreflux_solver::assess::{self, Assessment};
+use boreflux_solver::assess::{self, Assessment, Baseline};
 use boreflux_solver::damage::sand;
 use boreflux_solver::grid::Zone;
 use boreflux_solver::safety::{self, CAUTION, ENTRANCE_VELOCITY_RULE_M_S};
@@ -321,8 +321,9 @@ fn pump_warnings(
 }
 
 /// The virtual tests of a run (docs/physics.md §25): the well at t = 0 and as it stands at
-/// the end, against the undamaged well; `undamaged_drawdown_m` when already computed (for
-/// the progress series), else it is computed here.
+/// the end, against the undamaged well; `undamaged_drawdown_m` when already computed, else
+/// it is computed here. Every test runs; [`assessment_from`] gives the same figures with
+/// the tests that depend on the case alone done before or beside the run.
 pub fn assessment(
     case: &LoadedCase,
     undamaged_drawdown_m: Option<f64>,
@@ -337,6 +338,17 @@ pub fn assessment(
         before: assess::figures_with(m, &SlowState::new(m), plan, clean)?,
         after: assess::figures_with(m, &s.final_state, plan, clean)?,
     })
+}
+
+/// As [`assessment`], from the `baseline` of the case (`assess::Baseline`: the undamaged
+/// well's test and the figures as built), so only the end state's tests run here, and
+/// none when its well is the one as built.
+pub fn assessment_from(
+    case: &LoadedCase,
+    baseline: &Baseline,
+    s: &RunSummary,
+) -> Result<Assessment, SolverError> {
+    baseline.assess(&case.model, &s.final_state, &case.assessment)
 }
 
 /// The deepest level below static the drive shows to exist in the well: a pump intake or a

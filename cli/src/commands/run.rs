@@ -21,12 +21,13 @@ use crate::output::schema::{
 };
 use crate::output::sink::ResultSink;
 use crate::summary::{
-    assessment, collapse_ratings, headline, pipe_temperature_c, table, Headline, Tracker,
+    assessment_from, collapse_ratings, headline, pipe_temperature_c, table, Headline, Tracker,
     REYNOLDS_SOFT_LIMIT,
 };
 use anyhow::{anyhow, Context};
-use boreflux_solver::assess::progress::{ProgressBasis, ProgressPoint};
+use boreflux_solver::assess::progress::{LossGauge, ProgressPoint};
 use boreflux_solver::assess::watch::Limits;
+use boreflux_solver::assess::Baseline;
 use boreflux_solver::drive::Drive;
 use boreflux_solver::grid::Grid;
 use boreflux_solver::model::{Model, Multiscale};
@@ -47,20 +48,32 @@ const PROGRESS_EVERY: u64 = 256;
 const PROGRESS_POINTS: usize = 100;
 
 /// Specific capacity and efficiency during the run, from the cheap estimate of
-/// `assess::progress` at evenly spaced times (the first report at or after each).
+/// `assess::progress` at evenly spaced times (the first report at or after each). The
+/// near-well losses are recorded while the undamaged well's test runs beside the run; the
+/// points are formed from both afterwards.
 struct Progress {
-    basis: Option<ProgressBasis>,
+    gauge: LossGauge,
     next_s: f64,
     every_s: f64,
     time_s: Vec<f64>,
+    loss_m: Vec<f64>,
     points: Vec<ProgressPoint>,
 }
 
 impl Progress {
     fn record(&mut self, time_s: f64, slow: &SlowState) {
-        if let Some(b) = &self.basis {
-            self.time_s.push(time_s);
-            self.points.push(b.point(slow));
+        self.time_s.push(time_s);
+        self.loss_m.push(self.gauge.loss_m(slow));
+    }
+
+    /// The points from the undamaged well's drawdown; none when its test failed.
+    fn finish(&mut self, undamaged_drawdown_m: Option<f64>) {
+        match undamaged_drawdown_m {
+            Some(s0) => {
+                let g = &self.gauge;
+                self.points = self.loss_m.iter().map(|&l| g.point(s0, l)).collect();
+            }
+            None => self.time_s.clear(),
         }
     }
 
@@ -100,7 +113,9 @@ impl StepObserver for Observers<'_> {
     }
 
     fn on_cycle(&mut self, c: &CycleView) {
-        self.bar.set_message(format!("cycle {}", c.index + 1));
+        if !self.bar.is_hidden() {
+            self.bar.set_message(format!("cycle {}", c.index + 1));
+        }
         self.sink.on_cycle(c);
     }
 
@@ -160,12 +175,12 @@ fn write_summary(sink: &mut ResultSink, h: &Headline) -> Result<(), crate::outpu
     let w = sink.writer();
     let summary = Group::Summary.path();
     w.group(&summary)?;
-    for (figure, value) in figure_values(h) {
-        // A figure that was not computed is left out (the report shows a dash).
-        if let Some(x) = value {
-            w.set_attr_f64(&summary, &figure.name(), x)?;
-        }
-    }
+    // A figure that was not computed is left out (the report shows a dash).
+    let figures: Vec<(String, f64)> = figure_values(h)
+        .into_iter()
+        .filter_map(|(figure, value)| value.map(|x| (figure.name(), x)))
+        .collect();
+    w.set_attrs_f64(&summary, &figures)?;
     for text in SummaryText::ALL {
         let value = match text {
             SummaryText::Warnings => h.warnings.join("\n"),
@@ -257,23 +272,19 @@ pub fn run(a: &RunArgs) -> Result<(), Failure> {
     write_metadata(&mut sink, &case, a, &grid).map_err(|e| Failure::Runtime(e.into()))?;
     let mut tracker = Tracker::new(model);
     let bar = progress_bar(a.quiet);
-    // The undamaged well's test, once: the basis of the progress series and of the
-    // efficiencies. A failure is reported with the figures, it does not stop the run.
-    let clean = boreflux_solver::assess::undamaged_drawdown_m(model, &case.assessment);
+    let points = PROGRESS_POINTS + 2;
     let mut progress = Progress {
-        basis: clean
-            .as_ref()
-            .ok()
-            .map(|&c| ProgressBasis::new(model, case.assessment.design_rate_m3_s, c)),
+        gauge: LossGauge::new(model, case.assessment.design_rate_m3_s),
         next_s: model.duration_s / PROGRESS_POINTS as f64,
         every_s: model.duration_s / PROGRESS_POINTS as f64,
-        time_s: Vec::with_capacity(PROGRESS_POINTS + 2),
-        points: Vec::with_capacity(PROGRESS_POINTS + 2),
+        time_s: Vec::with_capacity(points),
+        loss_m: Vec::with_capacity(points),
+        points: Vec::new(),
     };
     progress.record(0.0, &SlowState::new(model));
     let started = std::time::Instant::now();
     let mut jumps = Vec::new();
-    let result = {
+    let step = || {
         let mut obs = Observers {
             jumps: &mut jumps,
             sink: &mut sink,
@@ -282,7 +293,7 @@ pub fn run(a: &RunArgs) -> Result<(), Failure> {
             bar: &bar,
             duration_s: model.duration_s,
         };
-        simulate(
+        let result = simulate(
             model,
             &mut obs,
             Reporting {
@@ -292,8 +303,20 @@ pub fn run(a: &RunArgs) -> Result<(), Failure> {
                     Storage::Envelopes { .. } => 1,
                 },
             },
-        )
+        );
+        // The series are written out while the tests below may still run.
+        if result.is_ok() && !interrupted() && sink.error.is_none() {
+            if let Err(e) = sink.write_series() {
+                sink.error = Some(e);
+            }
+        }
+        result
     };
+    // The tests of the well as built (the undamaged well's, the basis of the progress
+    // series and of the efficiencies, and the figures before) depend on the case alone:
+    // they run beside the run and the writing of its series when a second core is there.
+    // A failure is reported with the figures, it does not stop the run.
+    let (result, baseline) = beside(step, || Baseline::new(model, &case.assessment));
     bar.finish_and_clear();
     if interrupted() {
         // Returning drops the unfinished sink, which deletes both temporary files.
@@ -312,10 +335,8 @@ pub fn run(a: &RunArgs) -> Result<(), Failure> {
     if progress.time_s.last() != Some(&summary.end_time_s) {
         progress.record(summary.end_time_s, &summary.final_state);
     }
-    let assessed = match clean {
-        Ok(c) => assessment(&case, Some(c), &summary),
-        Err(e) => Err(e),
-    };
+    progress.finish(baseline.undamaged_drawdown_m.as_ref().ok().copied());
+    let assessed = assessment_from(&case, &baseline, &summary);
     let h = headline(&case, &summary, &tracker, &assessed);
     write_summary(&mut sink, &h).map_err(|e| Failure::Runtime(e.into()))?;
     write_progress(&mut sink, &progress).map_err(|e| Failure::Runtime(e.into()))?;
@@ -346,6 +367,24 @@ pub fn run(a: &RunArgs) -> Result<(), Failure> {
         );
         print_out(&(head + &table(&h) + "\nCaution: " + CAUTION + "\n"))
     }
+}
+
+/// Runs `main` and `side` at once, `side` on a scoped thread when the machine has a second
+/// core, else one after the other; both results come back.
+fn beside<A, B: Send>(main: impl FnOnce() -> A, side: impl FnOnce() -> B + Send) -> (A, B) {
+    let cores = std::thread::available_parallelism().map_or(1, std::num::NonZeroUsize::get);
+    if cores < 2 {
+        let b = side();
+        return (main(), b);
+    }
+    std::thread::scope(|scope| {
+        let handle = scope.spawn(side);
+        let a = main();
+        let b = handle
+            .join()
+            .unwrap_or_else(|panic| std::panic::resume_unwind(panic));
+        (a, b)
+    })
 }
 
 /// Refuses output names that are the case file or a file the case reads, before anything

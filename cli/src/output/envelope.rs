@@ -183,11 +183,20 @@ impl Envelopes {
             self.begin(row);
         } else {
             let dt = t - self.last[self.time_col];
-            for (k, &x) in row.iter().enumerate() {
-                self.min[k] = self.min[k].min(x);
-                self.max[k] = self.max[k].max(x);
-                let y = self.last[k];
-                self.sq[k] += 0.5 * dt * (x * x + y * y);
+            // Zipped slices of one length: no bounds checks, so the loop vectorises (each
+            // value's arithmetic is the same, in the same order).
+            let n = row.len();
+            let (min, max, sq) = (&mut self.min[..n], &mut self.max[..n], &mut self.sq[..n]);
+            for ((((lo, hi), q), &x), &y) in min
+                .iter_mut()
+                .zip(max.iter_mut())
+                .zip(sq.iter_mut())
+                .zip(row)
+                .zip(&self.last[..n])
+            {
+                *lo = lo.min(x);
+                *hi = hi.max(x);
+                *q += 0.5 * dt * (x * x + y * y);
             }
         }
         self.note(events);
@@ -271,12 +280,12 @@ impl Envelopes {
             } else {
                 self.max[k].abs().max(self.min[k].abs())
             };
-            h[0].append(&[self.min[k]])?;
-            h[1].append(&[self.max[k]])?;
-            h[2].append(&[rms])?;
+            h[0].push(self.min[k])?;
+            h[1].push(self.max[k])?;
+            h[2].push(rms)?;
         }
-        self.start.append(&[self.cycle_start_s])?;
-        self.end.append(&[t])?;
+        self.start.push(self.cycle_start_s)?;
+        self.end.push(t)?;
         let (prev_event, prev_late_event) = self
             .prev
             .as_ref()

@@ -13,10 +13,17 @@
 //! w.finish()?;            // flush, close, rename .run.h5.tmp-<pid> → run.h5
 //! ```
 //!
+//! A growable dataset is created in the file when its first chunk is written: when the
+//! first chunk fills, or at [`H5Writer::finish`], where a dataset shorter than one chunk gets
+//! a chunk of its own length. HDF5 compresses whole chunks, fill values included, so a short
+//! series with a long chunk would cost the compression of the whole chunk at the close; the
+//! values, names, attributes and compression are the same either way.
+//!
 //! HDF5 holds one global lock for every call: compute in parallel, write from one thread.
 //! Paths are `/`-separated (`"series/power/cake"`; a leading `/` is optional); missing
 //! parent groups are created.
 
+use std::collections::HashSet;
 use std::path::{Path, PathBuf};
 use std::str::FromStr;
 use std::sync::{Arc, Mutex, MutexGuard};
@@ -38,6 +45,8 @@ pub struct H5Writer {
     file: Option<File>,
     target: TempTarget,
     growing: Vec<Arc<Mutex<dyn Pending>>>,
+    /// Paths of growable datasets not created in the file yet (their names are taken).
+    reserved: HashSet<String>,
     deflate: Option<u8>,
 }
 
@@ -70,6 +79,7 @@ impl H5Writer {
             file: Some(file),
             target,
             growing: Vec::new(),
+            reserved: HashSet::new(),
             deflate: None,
         })
     }
@@ -116,6 +126,23 @@ impl H5Writer {
         self.with_object(path, |loc| {
             remove_attr(loc, name)?;
             loc.new_attr::<f64>().create(name)?.write_scalar(&value)
+        })
+    }
+
+    /// Sets several `f64` attributes on the group or dataset at `path` at once (the object
+    /// opened and its attribute names listed once), replacing earlier values.
+    pub fn set_attrs_f64(&self, path: &str, values: &[(String, f64)]) -> Result<()> {
+        self.with_object(path, |loc| {
+            let existing = loc.attr_names()?;
+            for (name, value) in values {
+                if existing.iter().any(|n| n == name) {
+                    loc.delete_attr(name)?;
+                }
+                loc.new_attr::<f64>()
+                    .create(name.as_str())?
+                    .write_scalar(value)?;
+            }
+            Ok(())
         })
     }
 
@@ -174,14 +201,8 @@ impl H5Writer {
         if chunk == 0 {
             return Err(invalid(path, "chunk length must be at least 1"));
         }
-        let (group, name) = self.parent_of(path)?;
-        let mut builder = group.new_dataset::<T>().chunk(chunk).shape(0..);
-        if let Some(level) = self.deflate {
-            builder = builder.shuffle().deflate(level);
-        }
-        let ds = builder.create(name).map_err(hdf5_err(path))?;
-        describe(&ds, path, units, description)?;
-        let inner = Arc::new(Mutex::new(Growable::new(ds, path, 1, false, chunk)));
+        let plan = self.plan(path, units, description)?;
+        let inner = Arc::new(Mutex::new(Growable::new(plan, path, 1, false, chunk)));
         self.growing.push(inner.clone());
         Ok(SeriesHandle { inner })
     }
@@ -199,29 +220,45 @@ impl H5Writer {
             return Err(invalid(path, "a matrix needs at least one column"));
         }
         let rows = (MATRIX_CHUNK_BYTES / (8 * ncols)).max(1);
-        let (group, name) = self.parent_of(path)?;
-        let mut builder = group
-            .new_dataset::<f64>()
-            .chunk((rows, ncols))
-            .shape((0.., ncols));
-        if let Some(level) = self.deflate {
-            builder = builder.shuffle().deflate(level);
-        }
-        let ds = builder.create(name).map_err(hdf5_err(path))?;
-        describe(&ds, path, units, description)?;
-        let inner = Arc::new(Mutex::new(Growable::new(ds, path, ncols, true, rows)));
+        let plan = self.plan(path, units, description)?;
+        let inner = Arc::new(Mutex::new(Growable::new(plan, path, ncols, true, rows)));
         self.growing.push(inner.clone());
         Ok(MatrixHandle { inner })
+    }
+
+    /// Where and how a growable dataset will be created; its name is taken from now on.
+    fn plan(&mut self, path: &str, units: &str, description: &str) -> Result<Box<Plan>> {
+        let (group, name) = self.parent_of(path)?;
+        // The strings are checked now, so a bad one is refused where the dataset is asked for.
+        unicode(path, units)?;
+        unicode(path, description)?;
+        let plan = Plan {
+            group,
+            name: name.to_owned(),
+            units: units.to_owned(),
+            description: description.to_owned(),
+            deflate: self.deflate,
+        };
+        self.reserved.insert(absolute(path));
+        Ok(Box::new(plan))
+    }
+
+    /// Writes out every buffered row of the growable datasets and closes them (those never
+    /// filled are created now, see the module documentation). Their handles refuse further
+    /// appends; fixed datasets and attributes can still be written.
+    pub fn close_growables(&mut self) -> Result<()> {
+        for g in &self.growing {
+            let mut g = lock(g);
+            g.flush_last()?;
+            g.close();
+        }
+        Ok(())
     }
 
     /// Writes out every buffered row, closes the file and renames it to its final path.
     /// Handles still held afterwards refuse further appends.
     pub fn finish(mut self) -> Result<PathBuf> {
-        for g in &self.growing {
-            let mut g = lock(g);
-            g.flush()?;
-            g.close();
-        }
+        self.close_growables()?;
         let file = self
             .file
             .take()
@@ -259,7 +296,7 @@ impl H5Writer {
             .split_last()
             .ok_or_else(|| invalid(path, "empty name"))?;
         let group = self.group_of(parents, path)?;
-        if group.link_exists(name) {
+        if group.link_exists(name) || self.reserved.contains(&absolute(path)) {
             return Err(invalid(path, "already exists"));
         }
         Ok((group, name))
@@ -306,6 +343,12 @@ impl<T: H5Type + Copy> SeriesHandle<T> {
         lock(&self.inner).push(values)
     }
 
+    /// Appends one value (as [`append`](Self::append), without the slice's loop: the
+    /// per-step path of a run).
+    pub fn push(&mut self, value: T) -> Result<()> {
+        lock(&self.inner).push_one(value)
+    }
+
     /// Number of values appended so far (written or buffered).
     pub fn len(&self) -> usize {
         lock(&self.inner).len_rows()
@@ -349,16 +392,38 @@ impl MatrixHandle {
 
 /// What the writer needs from every growable dataset at finish or drop.
 trait Pending: Send {
-    fn flush(&mut self) -> Result<()>;
+    /// Writes what is buffered, creating the dataset first if it is not in the file yet
+    /// (with a chunk of its own length when shorter than one chunk).
+    fn flush_last(&mut self) -> Result<()>;
     fn close(&mut self);
+}
+
+/// Where and how a growable dataset is created when its first chunk is written.
+struct Plan {
+    group: Group,
+    name: String,
+    units: String,
+    description: String,
+    deflate: Option<u8>,
+}
+
+/// A growable dataset's place in the file.
+enum Slot {
+    /// Not created yet.
+    Planned(Box<Plan>),
+    Open(Dataset),
+    /// Finished or dropped: appends are refused.
+    Closed,
 }
 
 /// Buffer of one chunk in front of a growable dataset.
 struct Growable<T> {
-    ds: Option<Dataset>,
+    slot: Slot,
     object: String,
     ncols: usize,
     matrix: bool,
+    /// Rows of a chunk.
+    chunk_rows: usize,
     /// Preallocated to one chunk (`chunk_rows × ncols`); never grows.
     buf: Vec<T>,
     /// Rows already in the dataset.
@@ -366,24 +431,25 @@ struct Growable<T> {
 }
 
 impl<T: H5Type + Copy> Growable<T> {
-    fn new(ds: Dataset, path: &str, ncols: usize, matrix: bool, chunk_rows: usize) -> Self {
+    fn new(plan: Box<Plan>, path: &str, ncols: usize, matrix: bool, chunk_rows: usize) -> Self {
         Self {
-            ds: Some(ds),
+            slot: Slot::Planned(plan),
             object: absolute(path),
             ncols,
             matrix,
+            chunk_rows,
             buf: Vec::with_capacity(chunk_rows * ncols),
             rows: 0,
         }
     }
 
     fn push(&mut self, mut values: &[T]) -> Result<()> {
-        if self.ds.is_none() {
+        if matches!(self.slot, Slot::Closed) {
             return Err(OutputError::Finished {
                 object: self.object.clone(),
             });
         }
-        let cap = self.buf.capacity();
+        let cap = self.chunk_rows * self.ncols;
         while !values.is_empty() {
             let take = (cap - self.buf.len()).min(values.len());
             let (head, rest) = values.split_at(take);
@@ -396,17 +462,60 @@ impl<T: H5Type + Copy> Growable<T> {
         Ok(())
     }
 
+    /// Appends one value of a series (`ncols` is 1).
+    fn push_one(&mut self, value: T) -> Result<()> {
+        if matches!(self.slot, Slot::Closed) {
+            return Err(OutputError::Finished {
+                object: self.object.clone(),
+            });
+        }
+        self.buf.push(value);
+        if self.buf.len() == self.chunk_rows {
+            self.flush()?;
+        }
+        Ok(())
+    }
+
     fn len_rows(&self) -> usize {
         self.rows + self.buf.len() / self.ncols
+    }
+
+    /// Creates the planned dataset with chunks of `chunk_rows` rows.
+    fn create(&mut self, chunk_rows: usize) -> Result<()> {
+        let Slot::Planned(plan) = &self.slot else {
+            return Ok(());
+        };
+        let builder = plan.group.new_dataset::<T>();
+        let mut builder = if self.matrix {
+            builder
+                .chunk((chunk_rows, self.ncols))
+                .shape((0.., self.ncols))
+        } else {
+            builder.chunk(chunk_rows).shape(0..)
+        };
+        if let Some(level) = plan.deflate {
+            builder = builder.shuffle().deflate(level);
+        }
+        let ds = builder
+            .create(plan.name.as_str())
+            .map_err(hdf5_err(&self.object))?;
+        describe(&ds, &self.object, &plan.units, &plan.description)?;
+        self.slot = Slot::Open(ds);
+        Ok(())
     }
 
     fn flush(&mut self) -> Result<()> {
         if self.buf.is_empty() {
             return Ok(());
         }
-        let ds = self.ds.as_ref().ok_or_else(|| OutputError::Finished {
-            object: self.object.clone(),
-        })?;
+        if matches!(self.slot, Slot::Planned(_)) {
+            self.create(self.chunk_rows)?;
+        }
+        let Slot::Open(ds) = &self.slot else {
+            return Err(OutputError::Finished {
+                object: self.object.clone(),
+            });
+        };
         let (start, end) = (self.rows, self.len_rows());
         let result = if self.matrix {
             let block = ArrayView2::from_shape((end - start, self.ncols), &self.buf)
@@ -425,12 +534,17 @@ impl<T: H5Type + Copy> Growable<T> {
 }
 
 impl<T: H5Type + Copy + Send> Pending for Growable<T> {
-    fn flush(&mut self) -> Result<()> {
+    fn flush_last(&mut self) -> Result<()> {
+        if matches!(self.slot, Slot::Planned(_)) {
+            // Never flushed: everything is in the buffer, fewer rows than a chunk.
+            let rows = self.len_rows();
+            self.create(if rows > 0 { rows } else { self.chunk_rows })?;
+        }
         Growable::flush(self)
     }
 
     fn close(&mut self) {
-        self.ds = None;
+        self.slot = Slot::Closed;
     }
 }
 
@@ -516,6 +630,8 @@ mod tests {
         w.set_root_attr_str("tool_version", "0.1.0").unwrap();
         w.set_root_attr_str("tool_version", "0.1.1").unwrap(); // replaced, not an error
         w.set_attr_f64("/", "duration_s", 600.0).unwrap();
+        w.set_attrs_f64("/", &[("a".into(), 1.0), ("duration_s".into(), 700.0)])
+            .unwrap(); // replaced, not an error
         w.group("summary").unwrap();
         w.set_attr_str("/summary", "warning", "débit élevé")
             .unwrap();
@@ -555,8 +671,9 @@ mod tests {
         assert_eq!(str_attr(&f, "tool_version"), "0.1.1");
         assert_eq!(
             f.attr("duration_s").unwrap().read_scalar::<f64>().unwrap(),
-            600.0
+            700.0
         );
+        assert_eq!(f.attr("a").unwrap().read_scalar::<f64>().unwrap(), 1.0);
         assert_eq!(
             str_attr(&f.group("summary").unwrap(), "warning"),
             "débit élevé"
@@ -619,6 +736,81 @@ mod tests {
                 ds.filters()
             );
         }
+    }
+
+    /// A series shorter than its chunk is created at the finish with a chunk of its own
+    /// length (HDF5 would otherwise compress the whole chunk, fill values included); one
+    /// that filled a chunk keeps it; an empty one has its asked chunk and no rows. Values,
+    /// attributes and filters are as asked either way, and a planned name is taken.
+    #[test]
+    fn short_series_get_a_chunk_of_their_own_length() {
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("c.h5");
+        let mut w = H5Writer::create(&path).unwrap();
+        w.set_deflate(Some(4));
+        let mut short = w.growable_series("g/short", "m", "short", 1024).unwrap();
+        let mut long = w.growable_series("g/long", "m", "long", 16).unwrap();
+        let _empty = w.growable_series("g/empty", "s", "empty", 64).unwrap();
+        let mut m = w.growable_matrix("g/m", 3, "m", "rows").unwrap();
+        assert_eq!(
+            w.growable_series("g/short", "m", "", 8)
+                .err()
+                .unwrap()
+                .to_string(),
+            "/g/short: already exists"
+        );
+        assert!(w.write_vector("g/long", &[1.0], "m", "").is_err());
+        let values: Vec<f64> = (0..40).map(|i| f64::from(i) * 0.25).collect();
+        short.append(&values).unwrap();
+        long.append(&values).unwrap();
+        m.append_row(&[1.0, 2.0, 3.0]).unwrap();
+        m.append_row(&[4.0, 5.0, 6.0]).unwrap();
+        w.finish().unwrap();
+        let f = File::open(&path).unwrap();
+        let chunk = |name: &str| f.dataset(name).unwrap().chunk();
+        assert_eq!(chunk("g/short"), Some(vec![40]));
+        assert_eq!(chunk("g/long"), Some(vec![16]));
+        assert_eq!(chunk("g/empty"), Some(vec![64]));
+        assert_eq!(chunk("g/m"), Some(vec![2, 3]));
+        for name in ["g/short", "g/long"] {
+            let ds = f.dataset(name).unwrap();
+            assert_eq!(ds.read_raw::<f64>().unwrap(), values);
+            assert!(ds.is_resizable());
+            assert_eq!(str_attr(&ds, "units"), "m");
+            if hdf5::filters::deflate_available() {
+                assert!(ds.filters().contains(&hdf5::filters::Filter::Deflate(4)));
+            }
+        }
+        let e = f.dataset("g/empty").unwrap();
+        assert_eq!(e.shape(), [0]);
+        assert_eq!(str_attr(&e, "description"), "empty");
+        assert_eq!(
+            f.dataset("g/m").unwrap().read_raw::<f64>().unwrap(),
+            [1.0, 2.0, 3.0, 4.0, 5.0, 6.0]
+        );
+    }
+
+    /// One value at a time across chunk boundaries gives the series `append` gives; a
+    /// finished writer's handle refuses a value too.
+    #[test]
+    fn push_writes_what_append_writes() {
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("p.h5");
+        let mut w = H5Writer::create(&path).unwrap();
+        let mut a = w.growable_series("a", "m", "", 7).unwrap();
+        let mut b = w.growable_series("b", "m", "", 7).unwrap();
+        let values: Vec<f64> = (0..30).map(|i| f64::from(i).sqrt()).collect();
+        a.append(&values).unwrap();
+        for &x in &values {
+            b.push(x).unwrap();
+        }
+        assert_eq!(b.len(), 30);
+        w.finish().unwrap();
+        assert!(matches!(b.push(1.0), Err(OutputError::Finished { .. })));
+        let f = File::open(&path).unwrap();
+        let read = |n: &str| f.dataset(n).unwrap().read_raw::<f64>().unwrap();
+        assert_eq!(read("a"), values);
+        assert_eq!(read("b"), values);
     }
 
     #[test]

@@ -10,8 +10,9 @@ use super::series::Recorder;
 use super::spec::Segment;
 use super::table::{figures, Row};
 use crate::case::{parse_case, LoadedCase};
-use crate::summary::{assessment, headline, Tracker};
+use crate::summary::{assessment_from, headline, Tracker};
 use boreflux_solver::assess::progress::ProgressBasis;
+use boreflux_solver::assess::Baseline;
 use boreflux_solver::{run as simulate, CycleView, Reporting, StepObserver, StepView};
 use serde_json::Value;
 use std::path::Path;
@@ -190,11 +191,13 @@ fn run_case(
         warnings: String::new(),
         series: Vec::new(),
     };
-    // The undamaged well's test, once: the basis of the progress series and of the
-    // assessment, as in `boreflux run`.
+    // The tests of the well as built, once: the undamaged well's (the basis of the progress
+    // series) and the figures before, as in `boreflux run` (here on this thread: the
+    // scenarios already run in parallel).
     let model = &case.model;
-    let clean = boreflux_solver::assess::undamaged_drawdown_m(model, &case.assessment);
-    let basis = clean
+    let baseline = Baseline::new(model, &case.assessment);
+    let basis = baseline
+        .undamaged_drawdown_m
         .as_ref()
         .ok()
         .map(|&c| ProgressBasis::new(model, case.assessment.design_rate_m3_s, c));
@@ -208,10 +211,7 @@ fn run_case(
     };
     match simulate(&case.model, &mut obs, reporting) {
         Ok(summary) => {
-            let a = match clean {
-                Ok(c) => assessment(case, Some(c), &summary),
-                Err(e) => Err(e),
-            };
+            let a = assessment_from(case, &baseline, &summary);
             let h = headline(case, &summary, &obs.tracker, &a);
             row.warnings = h.warnings.join("\n");
             obs.series.finish(summary.end_time_s, &summary.final_state);

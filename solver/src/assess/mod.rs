@@ -123,11 +123,25 @@ pub fn figures_with(
     plan: &TestPlan,
     undamaged_drawdown_m: f64,
 ) -> Result<WellFigures, SolverError> {
-    let snap = slow.snapshot_model(base);
+    figures_of(&slow.snapshot_model(base), plan, undamaged_drawdown_m, None)
+}
+
+/// Figures of the well `snap` as it stands (a snapshot model); `known_drawdown_m` is the
+/// drawdown of its constant-rate test when that test already ran on an equal model (a test
+/// is a pure function of its model, so the value is the one it would give again).
+fn figures_of(
+    snap: &Model,
+    plan: &TestPlan,
+    undamaged_drawdown_m: f64,
+    known_drawdown_m: Option<f64>,
+) -> Result<WellFigures, SolverError> {
     let q = plan.design_rate_m3_s;
-    let s = virtual_test::constant_rate(&snap, q, &[plan.constant_duration_s])?[0];
+    let s = match known_drawdown_m {
+        Some(s) => s,
+        None => virtual_test::constant_rate(snap, q, &[plan.constant_duration_s])?[0],
+    };
     let efficiency = undamaged_drawdown_m / s;
-    let step = step_coefficients(&snap, plan)?;
+    let step = step_coefficients(snap, plan)?;
     Ok(WellFigures {
         drawdown_m: s,
         undamaged_drawdown_m,
@@ -175,17 +189,100 @@ pub fn step_coefficients(
 /// Drawdown of the undamaged well of `base` at the end of the plan's constant-rate test, m.
 pub fn undamaged_drawdown_m(base: &Model, plan: &TestPlan) -> Result<f64, SolverError> {
     let clean = virtual_test::undamaged(&SlowState::new(base).snapshot_model(base));
-    Ok(virtual_test::constant_rate(&clean, plan.design_rate_m3_s, &[plan.constant_duration_s])?[0])
+    constant_rate_at_end(&clean, plan)
+}
+
+fn constant_rate_at_end(model: &Model, plan: &TestPlan) -> Result<f64, SolverError> {
+    Ok(virtual_test::constant_rate(model, plan.design_rate_m3_s, &[plan.constant_duration_s])?[0])
+}
+
+/// The half of an assessment that depends on the case alone: the undamaged well's test and
+/// the figures of the well as built (t = 0). It can be computed before the run, or beside
+/// it on another thread (`boreflux run` does), and [`Baseline::assess`] completes the
+/// assessment from the run's end state.
+///
+/// Tests that would run again on an equal model are not run again: a virtual test is a
+/// pure function of its model, rate and duration (same bits every time), so the undamaged
+/// well's drawdown is taken over when the well as built has no damage zones, and the
+/// figures of the end state are those of the start when its snapshot is the same model.
+/// The results are the same bits as [`undamaged_drawdown_m`] and [`figures_with`] give.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Baseline {
+    /// Drawdown of the undamaged well at the end of the constant-rate test, m.
+    pub undamaged_drawdown_m: Result<f64, SolverError>,
+    /// The figures of the well as built; the undamaged test's error when that failed.
+    pub before: Result<WellFigures, SolverError>,
+    /// [`test_key`] of the well as built.
+    built: String,
+    /// [`test_key`] of the undamaged well the efficiency is measured against.
+    clean: String,
+}
+
+/// What a virtual test reads of a model, written out with every number's shortest
+/// round-trip digits (`{:?}`), so two models with the same key give the same bits in every
+/// test (a derived `==` would call 0.0 and −0.0 equal). The drive, the duration and the
+/// numerics are left out: [`virtual_test::test_model`] replaces them.
+fn test_key(m: &Model) -> String {
+    let Model {
+        fluid,
+        well,
+        pack,
+        cake,
+        invaded,
+        formation,
+        drive: _,
+        duration_s: _,
+        numerics: _,
+    } = m;
+    format!("{fluid:?}|{well:?}|{pack:?}|{cake:?}|{invaded:?}|{formation:?}")
+}
+
+impl Baseline {
+    /// Runs the tests of the well `base` as built (its initial slow state).
+    pub fn new(base: &Model, plan: &TestPlan) -> Baseline {
+        let built = SlowState::new(base).snapshot_model(base);
+        let clean = virtual_test::undamaged(&built);
+        let (built_key, clean_key) = (test_key(&built), test_key(&clean));
+        let undamaged = constant_rate_at_end(&clean, plan);
+        let before = match &undamaged {
+            Ok(c) => figures_of(&built, plan, *c, (built_key == clean_key).then_some(*c)),
+            Err(e) => Err(e.clone()),
+        };
+        Baseline {
+            undamaged_drawdown_m: undamaged,
+            before,
+            built: built_key,
+            clean: clean_key,
+        }
+    }
+
+    /// The assessment of a run of `base` (the model the baseline was built from) that ended
+    /// in the state `end`: the undamaged test's error first, then the as-built figures',
+    /// then the end state's.
+    pub fn assess(
+        &self,
+        base: &Model,
+        end: &SlowState,
+        plan: &TestPlan,
+    ) -> Result<Assessment, SolverError> {
+        let clean = self.undamaged_drawdown_m.clone()?;
+        let before = self.before.clone()?;
+        let snap = end.snapshot_model(base);
+        let key = test_key(&snap);
+        let after = if key == self.built {
+            before
+        } else {
+            let known = (key == self.clean).then_some(clean);
+            figures_of(&snap, plan, clean, known)?
+        };
+        Ok(Assessment { before, after })
+    }
 }
 
 /// The assessment of a run of `base` that ended in the state `end`.
 pub fn assess(base: &Model, end: &SlowState, plan: &TestPlan) -> Result<Assessment, SolverError> {
     plan.validate()?;
-    let clean = undamaged_drawdown_m(base, plan)?;
-    Ok(Assessment {
-        before: figures_with(base, &SlowState::new(base), plan, clean)?,
-        after: figures_with(base, end, plan, clean)?,
-    })
+    Baseline::new(base, plan).assess(base, end, plan)
 }
 
 #[cfg(test)]
@@ -240,6 +337,78 @@ mod tests {
         let worse = well(Some(5e-5));
         let a = assess(&worse, &SlowState::new(&worse), &plan()).unwrap();
         assert!(a.before.efficiency < 1.0 && !a.before.negative_skin);
+    }
+
+    /// The tests one by one, as the assessment ran them before there was a baseline.
+    fn one_by_one(m: &Model, end: &SlowState, plan: &TestPlan) -> Assessment {
+        let clean = undamaged_drawdown_m(m, plan).unwrap();
+        Assessment {
+            before: figures_with(m, &SlowState::new(m), plan, clean).unwrap(),
+            after: figures_with(m, end, plan, clean).unwrap(),
+        }
+    }
+
+    /// The baseline (tests that would run twice on the same model run once) gives the same
+    /// bits as every test run one by one (`{:?}` prints each number's shortest round-trip
+    /// digits): a well with no damage (its undamaged test is its own, and the end state is
+    /// the start), a damaged one ending as built, and a cake half washed off, once with no
+    /// cake left at all (the end state is then the undamaged well). Source: the same
+    /// program's tests run one by one.
+    #[test]
+    fn the_baseline_gives_the_bits_of_the_tests_run_one_by_one() {
+        let p = plan();
+        let clean = well(None);
+        let ring = well(Some(5e-5));
+        let mut caked = well(None);
+        caked.cake = Some(fixtures::cake(2e-3, 1e-7, 1.0));
+        let half = SlowState::with_cake(
+            &caked,
+            Some(crate::cake::CakeState {
+                thickness_m: 1e-3,
+                coverage: 1.0,
+            }),
+        );
+        let gone = SlowState::with_cake(&caked, None);
+        for (m, end) in [
+            (&clean, SlowState::new(&clean)),
+            (&ring, SlowState::new(&ring)),
+            (&caked, half),
+            (&caked, gone),
+        ] {
+            let b = Baseline::new(m, &p);
+            let got = b.assess(m, &end, &p).unwrap();
+            let want = one_by_one(m, &end, &p);
+            assert_eq!(format!("{got:?}"), format!("{want:?}"));
+        }
+        // The half-washed cake's end figures are its own, not the start's.
+        let b = Baseline::new(&caked, &p);
+        let half = SlowState::with_cake(
+            &caked,
+            Some(crate::cake::CakeState {
+                thickness_m: 1e-3,
+                coverage: 1.0,
+            }),
+        );
+        let a = b.assess(&caked, &half, &p).unwrap();
+        assert!(a.after.efficiency > a.before.efficiency, "{a:?}");
+    }
+
+    /// Models equal under `==` but not bit for bit (0.0 and −0.0) get different test keys;
+    /// the drive, duration and numerics, which a test replaces, do not count.
+    #[test]
+    fn test_keys_tell_bits_apart_and_ignore_what_a_test_replaces() {
+        let m = well(Some(5e-5));
+        let mut other = m.clone();
+        other.drive = fixtures::sine_head(1.0, 0.5, 0.0);
+        other.duration_s = 99.0;
+        other.numerics.sync_times_s = vec![1.0];
+        assert_eq!(test_key(&m), test_key(&other));
+        let mut a = m.clone();
+        let mut b = m.clone();
+        a.pack.medium.forchheimer_beta_s2_m2 = 0.0;
+        b.pack.medium.forchheimer_beta_s2_m2 = -0.0;
+        assert!(a == b);
+        assert_ne!(test_key(&a), test_key(&b));
     }
 
     #[test]

@@ -114,14 +114,14 @@ pub struct ProgressPoint {
     pub efficiency: f64,
 }
 
-/// The undamaged well's test result a progress estimate is built on: computed once per
-/// run (one virtual constant-rate test and the undamaged near-well loss).
+/// The near-well half of a progress estimate, which needs no virtual test: the steady loss
+/// L(Q) of a state of the well and L₀(Q) of the undamaged well. `boreflux run` records L(Q)
+/// while the undamaged well's test s₀ runs beside it, and forms the points afterwards with
+/// [`LossGauge::point`] (the same arithmetic as [`ProgressBasis::point`], so the same bits).
 #[derive(Debug, Clone, PartialEq)]
-pub struct ProgressBasis {
+pub struct LossGauge {
     /// Design rate, m³/s.
     pub rate_m3_s: f64,
-    /// Drawdown of the undamaged well at the end of the constant-rate test, m.
-    pub undamaged_drawdown_m: f64,
     /// Steady loss of the undamaged well over r_s … r_d at the design rate, m.
     pub undamaged_loss_m: f64,
     /// Outer edge of the damage r_d of the base model, m.
@@ -131,9 +131,9 @@ pub struct ProgressBasis {
     light: Model,
 }
 
-impl ProgressBasis {
-    /// The basis for `base` with the undamaged drawdown `s0` of the test at `rate_m3_s`.
-    pub fn new(base: &Model, rate_m3_s: f64, undamaged_drawdown_m: f64) -> ProgressBasis {
+impl LossGauge {
+    /// The gauge for `base` at the design rate `rate_m3_s`.
+    pub fn new(base: &Model, rate_m3_s: f64) -> LossGauge {
         let r_d = base.invaded_outer_radius_m();
         let clean = super::virtual_test::undamaged(base);
         let mut light = base.clone();
@@ -141,26 +141,57 @@ impl ProgressBasis {
             pumping_rate_m3_s: rate_m3_s,
         };
         light.numerics = crate::model::Numerics::default();
-        ProgressBasis {
+        LossGauge {
             rate_m3_s,
-            undamaged_drawdown_m,
             undamaged_loss_m: near_well_loss_m(&clean, r_d, rate_m3_s),
             r_d_m: r_d,
             light,
         }
     }
 
-    /// The estimate for the well of the basis in state `slow` (a slow state of the model the
-    /// basis was built from). Allocates nothing without invaded-zone fines; with them the
-    /// snapshot copies the zone's ring profile (benches/assess.rs: about 0.15 µs without).
-    pub fn point(&self, slow: &SlowState) -> ProgressPoint {
+    /// The steady near-well loss L(Q) of the well of the gauge in state `slow`, m.
+    /// Allocates nothing without invaded-zone fines; with them the snapshot copies the
+    /// zone's ring profile (benches/assess.rs: about 0.15 µs without).
+    pub fn loss_m(&self, slow: &SlowState) -> f64 {
         let snap = slow.snapshot_model(&self.light);
-        let loss = near_well_loss_m(&snap, self.r_d_m, self.rate_m3_s);
-        let s = self.undamaged_drawdown_m + loss - self.undamaged_loss_m;
+        near_well_loss_m(&snap, self.r_d_m, self.rate_m3_s)
+    }
+
+    /// The estimate s = s₀ + L − L₀ from the undamaged well's drawdown s₀ and a state's
+    /// loss L from [`Self::loss_m`].
+    pub fn point(&self, undamaged_drawdown_m: f64, loss_m: f64) -> ProgressPoint {
+        let s = undamaged_drawdown_m + loss_m - self.undamaged_loss_m;
         ProgressPoint {
             drawdown_m: s,
             specific_capacity_m2_s: self.rate_m3_s / s,
-            efficiency: self.undamaged_drawdown_m / s,
+            efficiency: undamaged_drawdown_m / s,
         }
+    }
+}
+
+/// The undamaged well's test result a progress estimate is built on: computed once per
+/// run (one virtual constant-rate test and the undamaged near-well loss).
+#[derive(Debug, Clone, PartialEq)]
+pub struct ProgressBasis {
+    /// Drawdown of the undamaged well at the end of the constant-rate test, m.
+    pub undamaged_drawdown_m: f64,
+    /// The near-well losses.
+    pub gauge: LossGauge,
+}
+
+impl ProgressBasis {
+    /// The basis for `base` with the undamaged drawdown `s0` of the test at `rate_m3_s`.
+    pub fn new(base: &Model, rate_m3_s: f64, undamaged_drawdown_m: f64) -> ProgressBasis {
+        ProgressBasis {
+            undamaged_drawdown_m,
+            gauge: LossGauge::new(base, rate_m3_s),
+        }
+    }
+
+    /// The estimate for the well of the basis in state `slow` (a slow state of the model the
+    /// basis was built from); allocation as [`LossGauge::loss_m`].
+    pub fn point(&self, slow: &SlowState) -> ProgressPoint {
+        self.gauge
+            .point(self.undamaged_drawdown_m, self.gauge.loss_m(slow))
     }
 }
