@@ -240,9 +240,9 @@ fn linear_power_kernel(c: &[f64], a: &[f64], b: &[f64], extra: Option<f64>) -> f
     let (cr, ar, br) = (cw.remainder(), aw.remainder(), bw.remainder());
     for ((c, a), b) in cw.zip(aw).zip(bw) {
         for (g, acc) in acc.iter_mut().enumerate() {
-            for l in 0..LANES {
+            for (l, s) in acc.iter_mut().enumerate() {
                 let k = g * LANES + l;
-                acc[l] += c[k] * (a[k] - b[k]) * (a[k] - b[k]);
+                *s += c[k] * (a[k] - b[k]) * (a[k] - b[k]);
             }
         }
     }
