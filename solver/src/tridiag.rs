@@ -293,6 +293,18 @@ impl Factored {
         self.scale_kept = true;
     }
 
+    /// The row scale kept by [`Factored::keep_scale`] for these factors.
+    ///
+    /// # Panics
+    /// When no scale was kept since the last factorization.
+    pub fn kept_scale(&self) -> &[f64] {
+        assert!(
+            self.scale_kept,
+            "kept_scale: no scale kept for these factors"
+        );
+        &self.scale
+    }
+
     /// Solves for the right-hand side d_i = scale_i × `src[i]` for i ≥ `from` (the scale
     /// given to [`Factored::keep_scale`]) and d_i = `x[i]` below (rows set by the caller),
     /// building it within the forward sweep, both sweeps two rows at a time (paired
