@@ -46,7 +46,7 @@ pub enum Command {
         after_help = "The run size printed is an upper estimate: the steps from the step settings \
 (twice that under the adaptive scheme), the output from the storage choice. With \
 \"envelopes\" storage the events are not known before the run, so every kind of event the \
-drive can raise is counted with all its output.event_windows windows (docs/formats.md, \
+case can raise is counted with all its output.event_windows windows (docs/formats.md, \
 \"Run size\").\n\nExamples:\n  boreflux check cases/domestic-fine-sand-pvc.json\n  boreflux check cases/municipal-sand-gravel.json --annulus 60mm,80mm,100mm"
     )]
     Check(CheckArgs),

@@ -60,7 +60,7 @@ pub struct KeptCycles {
     pub detail_cycles: u64,
     /// Stage starts (stages after the first), each kept with one cycle each side.
     pub stage_starts: f64,
-    /// Event kinds the drive can raise ([`boreflux_solver::cost::possible_events`]).
+    /// Event kinds the run can raise ([`boreflux_solver::cost::possible_events`]).
     pub event_kinds: usize,
     /// `output.event_windows`.
     pub event_windows: u64,
@@ -174,7 +174,9 @@ pub fn run_cost(case: &LoadedCase, csv: bool, snapshot_every: u64) -> RunCost {
                 cycles,
                 detail_cycles,
                 stages - 1.0,
-                possible_events(drive).iter().count(),
+                possible_events(&case.model, &crate::summary::watch_limits(case))
+                    .iter()
+                    .count(),
                 event_windows,
                 whole,
             );
@@ -281,7 +283,7 @@ pub fn describe_kept(c: &RunCost) -> Option<String> {
         t += &format!(
             ", and for the events, whose number is not known before the run, an upper bound \
              of {:.0} cycles: 3 around each of the first {} cycles holding each of the {} \
-             kinds this drive can raise (output.event_windows), and one late window of 3 \
+             kinds this case can raise (output.event_windows), and one late window of 3 \
              before each kept stretch",
             k.event_cycles, k.event_windows, k.event_kinds
         );

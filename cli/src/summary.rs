@@ -204,6 +204,18 @@ pub fn collapse_ratings(s: &crate::case::SafetyInputs, temp_c: f64) -> CollapseR
     }
 }
 
+/// The limits the run's warnings (and its events, `output/events.rs`) compare with: the
+/// grain Reynolds number's soft limit and the case's collapse ratings and safety factor.
+pub fn watch_limits(case: &LoadedCase) -> boreflux_solver::assess::watch::Limits {
+    let ratings = collapse_ratings(&case.safety, pipe_temperature_c(case));
+    boreflux_solver::assess::watch::Limits {
+        grain_reynolds: REYNOLDS_SOFT_LIMIT,
+        screen_rating_pa: ratings.screen_pa,
+        casing_rating_pa: ratings.casing_pa,
+        safety_factor: case.safety.safety_factor,
+    }
+}
+
 /// Pipe temperature of a case for the collapse check, °C: the water temperature (grout
 /// heat of hydration can make the pipe warmer; give a lower rating then).
 pub fn pipe_temperature_c(case: &LoadedCase) -> f64 {

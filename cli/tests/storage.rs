@@ -593,11 +593,10 @@ fn the_summary_warnings_and_the_events_agree() {
         let f = hdf5::File::open(&h5).unwrap();
         let ev = events(&f);
         // The size estimate counts windows only for the kinds it deems possible for the
-        // drive (`possible_events`): every kind raised must be one of them.
-        let model = load_case(&cases.join(format!("{name}.json")))
-            .unwrap()
-            .model;
-        let possible: Vec<&str> = boreflux_solver::cost::possible_events(&model.drive)
+        // case (`possible_events`): every kind raised must be one of them.
+        let loaded = load_case(&cases.join(format!("{name}.json"))).unwrap();
+        let limits = boreflux::summary::watch_limits(&loaded);
+        let possible: Vec<&str> = boreflux_solver::cost::possible_events(&loaded.model, &limits)
             .iter()
             .map(|k| k.name())
             .collect();

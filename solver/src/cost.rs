@@ -13,6 +13,7 @@
 //! adaptive scheme (the default) that count is multiplied by an allowance
 //! (`ADAPTIVE_FACTOR`) for its restarts and refinements: measured, not a proof.
 
+use crate::assess::watch::Limits;
 use crate::diagnostics::{EventKind, EventSet};
 use crate::drive::Drive;
 use crate::model::{Model, Scheme, TimeSpec};
@@ -149,27 +150,39 @@ pub fn estimate(model: &Model) -> Cost {
     }
 }
 
-/// The kinds of event a run of `drive` can raise, stage starts left out (one per stage
-/// after the first, known before the run). How many of them a run raises, and when, is
-/// not known before it runs; this is the set an output-size bound must allow for: the
-/// numerical alarms (`oscillation`, `smallest_step`), the run checks (`slot_velocity`,
-/// `grain_reynolds`, `collapse_load`) and `cake_change` with any drive; `column_parting`
-/// and `vapour_suction` under a sealed tool (surge block, swab: the only devices with a
-/// vapour gap), `thrust_bound` under a surge block with a thrust bound, `pump_suction` with a pump-and-backwash
-/// stage (docs/formats.md "Events").
-pub fn possible_events(drive: &Drive) -> EventSet {
+/// The kinds of event a run of `model` watched against `limits` can raise, stage starts left
+/// out (one per stage after the first, known before the run). How many of them a run
+/// raises, and when, is not known before it runs; this is the set an output-size bound
+/// must allow for: the numerical alarms (`oscillation`, `smallest_step`) and
+/// `slot_velocity` always; `grain_reynolds` with a pack grain size (the number needs it);
+/// `collapse_load` with a collapse rating of the screen or the casing; `cake_change` with a
+/// cake that has a removal law (lift-off or erosion: without one the cake never changes);
+/// `column_parting` and `vapour_suction` under a sealed tool (surge block, swab: the only
+/// devices with a vapour gap), `thrust_bound` under a surge block with a thrust bound,
+/// `pump_suction` with a pump-and-backwash stage (docs/formats.md "Events").
+pub fn possible_events(model: &Model, limits: &Limits) -> EventSet {
     let mut set = EventSet::EMPTY;
     for k in [
         EventKind::Oscillation,
         EventKind::SmallestStep,
         EventKind::SlotVelocity,
-        EventKind::GrainReynolds,
-        EventKind::CollapseLoad,
-        EventKind::CakeChange,
     ] {
         set.insert(k);
     }
-    for d in drive.stage_drives() {
+    if model.pack.medium.grain_diameter_m.is_some() {
+        set.insert(EventKind::GrainReynolds);
+    }
+    if limits.screen_rating_pa.is_some() || limits.casing_rating_pa.is_some() {
+        set.insert(EventKind::CollapseLoad);
+    }
+    if model
+        .cake
+        .as_ref()
+        .is_some_and(|c| c.erosion.is_some() || c.lift_off.is_some())
+    {
+        set.insert(EventKind::CakeChange);
+    }
+    for d in model.drive.stage_drives() {
         let own: &[EventKind] = match d {
             // Without `drive.max_thrust` the block's push has no bound to reach.
             Drive::SurgeBlock(b) if b.max_head_m().is_finite() => &[
@@ -204,6 +217,36 @@ fn scheme_factor(model: &Model) -> f64 {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// Each conditional kind appears exactly when the watch that raises it can fire
+    /// (`assess/watch.rs`, `cli/src/output/events.rs`): grain Reynolds number with a pack
+    /// grain size, collapse load with a rating, cake change with a removal law.
+    #[test]
+    fn possible_events_follow_what_the_watches_need() {
+        let names = |m: &Model, l: &Limits| -> Vec<&'static str> {
+            possible_events(m, l).iter().map(EventKind::name).collect()
+        };
+        let none = Limits {
+            grain_reynolds: 1.0,
+            screen_rating_pa: None,
+            casing_rating_pa: None,
+            safety_factor: 2.0,
+        };
+        let mut m = crate::fixtures::demo_well();
+        let always = ["oscillation", "smallest_step", "slot_velocity"];
+        assert_eq!(names(&m, &none), always);
+        m.pack.medium.grain_diameter_m = Some(1.5e-3);
+        assert!(names(&m, &none).contains(&"grain_reynolds"));
+        let rated = Limits {
+            casing_rating_pa: Some(4e5),
+            ..none
+        };
+        assert!(names(&m, &rated).contains(&"collapse_load"));
+        m.cake = Some(crate::fixtures::cake(2e-3, 1e-7, 1.0));
+        assert!(!names(&m, &none).contains(&"cake_change"));
+        m.cake.as_mut().unwrap().erosion = Some(crate::fixtures::erosion(1e-6, 1.0));
+        assert!(names(&m, &none).contains(&"cake_change"));
+    }
 
     #[test]
     fn geometric_interval_counts_match_a_direct_walk() {

@@ -20,13 +20,9 @@ use crate::output::schema::{
     figure_values, GridData, Group, JumpSeries, ProgressSeries, RootAttr, SummaryText,
 };
 use crate::output::sink::ResultSink;
-use crate::summary::{
-    assessment_from, collapse_ratings, headline, pipe_temperature_c, table, Headline, Tracker,
-    REYNOLDS_SOFT_LIMIT,
-};
+use crate::summary::{assessment_from, headline, table, watch_limits, Headline, Tracker};
 use anyhow::{anyhow, Context};
 use boreflux_solver::assess::progress::{LossGauge, ProgressPoint};
-use boreflux_solver::assess::watch::Limits;
 use boreflux_solver::assess::Baseline;
 use boreflux_solver::drive::Drive;
 use boreflux_solver::grid::Grid;
@@ -487,7 +483,6 @@ fn envelope_plan(case: &LoadedCase) -> Option<EnvelopePlan> {
 /// `summary::headline` and the stage starts.
 fn event_plan(case: &LoadedCase) -> EventPlan {
     let model = &case.model;
-    let ratings = collapse_ratings(&case.safety, pipe_temperature_c(case));
     let stage_starts_s = match &model.drive {
         Drive::Schedule(stages) => stages
             .iter()
@@ -498,12 +493,7 @@ fn event_plan(case: &LoadedCase) -> EventPlan {
     };
     EventPlan {
         model: model.clone(),
-        limits: Limits {
-            grain_reynolds: REYNOLDS_SOFT_LIMIT,
-            screen_rating_pa: ratings.screen_pa,
-            casing_rating_pa: ratings.casing_pa,
-            safety_factor: case.safety.safety_factor,
-        },
+        limits: watch_limits(case),
         stage_starts_s,
     }
 }
