@@ -168,8 +168,6 @@ impl Factored {
         far[p] = c * inv;
         if SWEEP {
             rhs[p] = rhs[p] * inv - near[p] * z_top - far[p] * z_bottom;
-        } else {
-            self.pair_products();
         }
         Ok(())
     }
@@ -282,7 +280,8 @@ impl Factored {
     }
 
     /// Keeps the row scale of [`Factored::solve_scaled`]'s right-hand side, `scale[i]`, and
-    /// g_i = `scale[i]`/m_i; call it after each factorization (which forgets them).
+    /// g_i = `scale[i]`/m_i, and forms the pair products of the paired sweeps; call it after
+    /// each factorization (which forgets them).
     pub fn keep_scale(&mut self, scale: &[f64]) {
         let n = self.inv_pivot.len();
         let scale = &scale[..n];
@@ -290,6 +289,9 @@ impl Factored {
         for ((g, &s), &iv) in self.gain_pivot.iter_mut().zip(scale).zip(&self.inv_pivot) {
             *g = s * iv;
         }
+        // Only the paired sweeps need the pair products: formed here, not with every
+        // factorization (Newton's and the error filter's factors are swept one row at a time).
+        self.pair_products();
         self.scale_kept = true;
     }
 
