@@ -12,12 +12,14 @@ use super::table::{figures, Row};
 use crate::case::{parse_case, LoadedCase};
 use crate::summary::{assessment_from, headline, Tracker};
 use boreflux_solver::assess::progress::ProgressBasis;
-use boreflux_solver::assess::Baseline;
+use boreflux_solver::assess::{Baseline, TestPlan};
+use boreflux_solver::model::Model;
 use boreflux_solver::{run as simulate, CycleView, Reporting, StepObserver, StepView};
 use serde_json::Value;
+use std::collections::HashMap;
 use std::path::Path;
 use std::sync::atomic::{AtomicUsize, Ordering};
-use std::sync::Mutex;
+use std::sync::{Arc, Mutex};
 
 /// Case-check failures listed before the rest are counted.
 const LISTED_ERRORS: usize = 5;
@@ -131,11 +133,34 @@ fn panic_text(payload: &(dyn std::any::Any + Send)) -> String {
         .unwrap_or_else(|| "unknown cause".to_owned())
 }
 
+/// The tests of the well as built, by [`Baseline::key`]: scenarios whose wells and test
+/// plans are the same (a sweep of the drive alone) share one baseline, computed by the
+/// first that needs it (two may compute it at once; both give the same bits).
+#[derive(Default)]
+struct Baselines(Mutex<HashMap<String, Arc<Baseline>>>);
+
+impl Baselines {
+    fn get(&self, model: &Model, plan: &TestPlan) -> Arc<Baseline> {
+        let key = Baseline::key(model, plan);
+        let lock = || {
+            self.0
+                .lock()
+                .unwrap_or_else(std::sync::PoisonError::into_inner)
+        };
+        if let Some(b) = lock().get(&key) {
+            return Arc::clone(b);
+        }
+        let made = Arc::new(Baseline::new(model, plan));
+        Arc::clone(lock().entry(key).or_insert(made))
+    }
+}
+
 /// Runs one scenario to its row; a panic inside becomes the row's status.
 fn run_one(
     p: &Prepared,
     plan: &Plan,
     base_dir: &Path,
+    baselines: &Baselines,
     stop: &(dyn Fn() -> bool + Sync),
 ) -> Outcome {
     let failed = |status: String| {
@@ -159,7 +184,7 @@ fn run_one(
         Err(e) => return failed(format!("case not valid: {e}")),
     };
     std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| {
-        run_case(p, plan, &case, stop)
+        run_case(p, plan, &case, baselines, stop)
     }))
     .unwrap_or_else(|e| {
         failed(format!(
@@ -174,6 +199,7 @@ fn run_case(
     p: &Prepared,
     plan: &Plan,
     case: &LoadedCase,
+    baselines: &Baselines,
     stop: &(dyn Fn() -> bool + Sync),
 ) -> Outcome {
     let si = plan
@@ -193,9 +219,9 @@ fn run_case(
     };
     // The tests of the well as built, once: the undamaged well's (the basis of the progress
     // series) and the figures before, as in `boreflux run` (here on this thread: the
-    // scenarios already run in parallel).
+    // scenarios already run in parallel), shared by the scenarios with the same well.
     let model = &case.model;
-    let baseline = Baseline::new(model, &case.assessment);
+    let baseline = baselines.get(model, &case.assessment);
     let basis = baseline
         .undamaged_drawdown_m
         .as_ref()
@@ -237,6 +263,7 @@ pub fn run_all(
     done: &(dyn Fn(usize) + Sync),
 ) -> Option<Vec<Outcome>> {
     let next = AtomicUsize::new(0);
+    let baselines = Baselines::default();
     let slots: Mutex<Vec<Option<Outcome>>> = Mutex::new(vec![None; ready.len()]);
     std::thread::scope(|scope| {
         for _ in 0..jobs.clamp(1, ready.len().max(1)) {
@@ -245,7 +272,7 @@ pub fn run_all(
                 if k >= ready.len() || stop() {
                     break;
                 }
-                let outcome = run_one(&ready[k], plan, base_dir, stop);
+                let outcome = run_one(&ready[k], plan, base_dir, &baselines, stop);
                 done(ready[k].scenario);
                 slots
                     .lock()

@@ -238,6 +238,14 @@ fn test_key(m: &Model) -> String {
 }
 
 impl Baseline {
+    /// Everything [`Baseline::new`] reads of `base` and `plan`: two cases with the same key
+    /// get the same baseline, bit for bit (a sweep that varies the drive alone computes it
+    /// once).
+    pub fn key(base: &Model, plan: &TestPlan) -> String {
+        let built = SlowState::new(base).snapshot_model(base);
+        format!("{}|{plan:?}", test_key(&built))
+    }
+
     /// Runs the tests of the well `base` as built (its initial slow state).
     pub fn new(base: &Model, plan: &TestPlan) -> Baseline {
         let built = SlowState::new(base).snapshot_model(base);
@@ -391,6 +399,25 @@ mod tests {
         );
         let a = b.assess(&caked, &half, &p).unwrap();
         assert!(a.after.efficiency > a.before.efficiency, "{a:?}");
+    }
+
+    /// A baseline's key leaves out what the tests replace (the drive) and holds the well
+    /// and the plan.
+    #[test]
+    fn baseline_keys_hold_the_well_and_the_plan() {
+        let p = plan();
+        let m = well(Some(5e-5));
+        let mut driven = m.clone();
+        driven.drive = fixtures::sine_head(1.0, 0.25, 0.0);
+        assert_eq!(Baseline::key(&m, &p), Baseline::key(&driven, &p));
+        let mut other = m.clone();
+        other.pack.medium.conductivity_m_s *= 1.5;
+        assert_ne!(Baseline::key(&m, &p), Baseline::key(&other, &p));
+        let longer = TestPlan {
+            constant_duration_s: 2.0 * p.constant_duration_s,
+            ..p.clone()
+        };
+        assert_ne!(Baseline::key(&m, &p), Baseline::key(&m, &longer));
     }
 
     /// Models equal under `==` but not bit for bit (0.0 and −0.0) get different test keys;
