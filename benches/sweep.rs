@@ -35,8 +35,9 @@ fn bench_sweep(c: &mut Criterion) {
 }
 
 /// 1 000 small scenarios: the demo case shortened to 2 strokes, its stroke rate varied over
-/// 1 000 values from 6 to 30 per minute, on 2 threads (each scenario includes its
-/// before/after virtual well tests, most of its cost).
+/// 1 000 values from 6 to 30 per minute, on 2 threads (each scenario includes the virtual
+/// well tests of its end state, most of its cost; the tests of the well as built are the
+/// same for every scenario and run once).
 fn bench_sweep_1000(c: &mut Criterion) {
     let cases = Path::new(env!("CARGO_MANIFEST_DIR")).join("../cases");
     let text = std::fs::read_to_string(cases.join("municipal-sand-gravel.json")).unwrap();
