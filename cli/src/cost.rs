@@ -53,8 +53,7 @@ const JUMPS_FIXED_BYTES: f64 = 8e3;
 /// docs/formats.md "Storage choice" and "Events").
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct KeptCycles {
-    /// Cycles of the run: its duration over the drive's period, rounded up (0 when the
-    /// drive has no common period).
+    /// Cycles of the run: its duration over the drive's period, rounded up.
     pub cycles: f64,
     /// `output.detail_cycles`: kept at the start and at the end.
     pub detail_cycles: u64,
@@ -69,19 +68,9 @@ pub struct KeptCycles {
     /// Upper bound on the cycles kept step by step, all reasons together (at most
     /// `cycles`).
     pub kept: f64,
-    /// Why every step is counted, if it is.
-    pub whole: Option<Whole>,
-}
-
-/// Why an envelope run is counted as writing every step.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
-pub enum Whole {
-    /// The drive has no common period (a schedule whose stages differ in period, or have
-    /// none): the run has no cycle ends, so no envelope, and every step is written.
-    NoCycles,
-    /// A cycle may hold more values than the envelope writer buffers
-    /// (4 000 000 values, `output::envelope`): such a cycle is written through in full.
-    LongCycles,
+    /// A cycle may hold more values than the envelope writer buffers (4 000 000 values,
+    /// `output::envelope`): such a cycle is written through in full, so every step counts.
+    pub long_cycles: bool,
 }
 
 impl KeptCycles {
@@ -97,7 +86,7 @@ impl KeptCycles {
         stage_starts: f64,
         event_kinds: usize,
         event_windows: u64,
-        whole: Option<Whole>,
+        long_cycles: bool,
     ) -> Self {
         let windows = event_kinds as f64 * event_windows as f64;
         let late = if event_windows > 0 {
@@ -106,7 +95,7 @@ impl KeptCycles {
             0.0
         };
         let event_cycles = 3.0 * windows + late;
-        let kept = if whole.is_some() {
+        let kept = if long_cycles {
             cycles
         } else {
             (2.0 * detail_cycles as f64 + 3.0 * stage_starts + event_cycles).min(cycles)
@@ -119,7 +108,7 @@ impl KeptCycles {
             event_windows,
             event_cycles,
             kept,
-            whole,
+            long_cycles,
         }
     }
 }
@@ -152,21 +141,13 @@ pub fn run_cost(case: &LoadedCase, csv: bool, snapshot_every: u64) -> RunCost {
             None,
         ),
         Storage::Envelopes {
+            period_s,
             detail_cycles,
             event_windows,
         } => {
-            let drive = &case.model.drive;
-            // The run closes cycles of the drive's own period (a schedule has one only
-            // when all its stages share it); without one there are none.
-            let (cycles, whole) = match drive.period_s() {
-                Some(p) => {
-                    let cycles = (case.model.duration_s / p).ceil().max(1.0);
-                    let long = c.steps / cycles * series_per_row() >= MAX_BUFFERED_VALUES as f64;
-                    (cycles, long.then_some(Whole::LongCycles))
-                }
-                None => (0.0, Some(Whole::NoCycles)),
-            };
-            let stages = match drive {
+            let cycles = (case.model.duration_s / period_s).ceil().max(1.0);
+            let long_cycles = c.steps / cycles * series_per_row() >= MAX_BUFFERED_VALUES as f64;
+            let stages = match &case.model.drive {
                 boreflux_solver::drive::Drive::Schedule(s) => s.len() as f64,
                 _ => 1.0,
             };
@@ -178,12 +159,12 @@ pub fn run_cost(case: &LoadedCase, csv: bool, snapshot_every: u64) -> RunCost {
                     .iter()
                     .count(),
                 event_windows,
-                whole,
+                long_cycles,
             );
             // Min, max and RMS of every series but time, and the two cycle times.
             let per_cycle = (3.0 * (series_per_row() - 1.0) + 2.0) * 8.0;
             // The kept cycles at the mean steps of a cycle.
-            let rows = if whole.is_some() {
+            let rows = if long_cycles {
                 c.steps
             } else {
                 c.steps * k.kept / cycles
@@ -263,14 +244,6 @@ pub fn describe(c: &RunCost) -> String {
 /// (None for every-step storage).
 pub fn describe_kept(c: &RunCost) -> Option<String> {
     let k = c.kept?;
-    if k.whole == Some(Whole::NoCycles) {
-        return Some(
-            "the drive has no common period (a schedule whose stages differ in period or \
-             have none), so the run closes no cycle: no envelopes, and every step is written \
-             as with \"steps\""
-                .to_owned(),
-        );
-    }
     let mut t = format!(
         "the size counts the envelopes of {:.0} cycles and every step of at most {:.0} of \
          them: the first and last {} (output.detail_cycles)",
@@ -290,7 +263,7 @@ pub fn describe_kept(c: &RunCost) -> Option<String> {
     } else {
         t += " (output.event_windows 0: no event windows)";
     }
-    if k.whole == Some(Whole::LongCycles) {
+    if k.long_cycles {
         t += &format!(
             "; a cycle may hold more than {MAX_BUFFERED_VALUES} values, and such a cycle is \
              written in full: every cycle counted"

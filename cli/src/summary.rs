@@ -10,7 +10,6 @@ use boreflux_solver::assess::{self, Assessment, Baseline};
 use boreflux_solver::damage::sand;
 use boreflux_solver::grid::Zone;
 use boreflux_solver::safety::{self, CAUTION, ENTRANCE_VELOCITY_RULE_M_S};
-use boreflux_solver::slow::SlowState;
 use boreflux_solver::RunSummary;
 use boreflux_solver::SolverError;
 use serde::ser::{Serialize, SerializeMap, Serializer};
@@ -333,23 +332,10 @@ fn pump_warnings(
 }
 
 /// The virtual tests of a run (docs/physics.md §25): the well at t = 0 and as it stands at
-/// the end, against the undamaged well; `undamaged_drawdown_m` when already computed, else
-/// it is computed here. Every test runs; [`assessment_from`] gives the same figures with
-/// the tests that depend on the case alone done before or beside the run.
-pub fn assessment(
-    case: &LoadedCase,
-    undamaged_drawdown_m: Option<f64>,
-    s: &RunSummary,
-) -> Result<Assessment, SolverError> {
-    let (m, plan) = (&case.model, &case.assessment);
-    let clean = match undamaged_drawdown_m {
-        Some(c) => c,
-        None => assess::undamaged_drawdown_m(m, plan)?,
-    };
-    Ok(Assessment {
-        before: assess::figures_with(m, &SlowState::new(m), plan, clean)?,
-        after: assess::figures_with(m, &s.final_state, plan, clean)?,
-    })
+/// the end, against the undamaged well (`assess::assess`). [`assessment_from`] gives the
+/// same figures with the tests that depend on the case alone done before or beside the run.
+pub fn assessment(case: &LoadedCase, s: &RunSummary) -> Result<Assessment, SolverError> {
+    assess::assess(&case.model, &s.final_state, &case.assessment)
 }
 
 /// As [`assessment`], from the `baseline` of the case (`assess::Baseline`: the undamaged

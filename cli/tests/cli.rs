@@ -1149,7 +1149,7 @@ fn a_library_user_gets_the_figures_of_run_json() {
         },
     )
     .unwrap();
-    let a = boreflux::summary::assessment(&loaded, None, &s);
+    let a = boreflux::summary::assessment(&loaded, &s);
     let h = boreflux::summary::headline(&loaded, &s, &extremes, &a);
     let file = hdf5::File::open(&h5).unwrap();
     let summary = file.group("summary").unwrap();

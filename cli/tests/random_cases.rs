@@ -114,7 +114,7 @@ fn random_valid_cases_run_cleanly() {
                         k_fail += 1;
                         eprintln!("NON-FINITE {kind} #{i}: {b}\n  case: {text}");
                     }
-                    let a = assessment(&loaded, None, &summary);
+                    let a = assessment(&loaded, &summary);
                     if let Err(e) = &a {
                         failures += 1;
                         k_fail += 1;

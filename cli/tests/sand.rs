@@ -14,7 +14,7 @@ use serde_json::{json, Value};
 fn sand_warnings(case: &LoadedCase) -> Vec<String> {
     let mut t = Tracker::new(&case.model);
     let s = run(&case.model, &mut t, Reporting::default()).expect("run");
-    let a = assessment(case, None, &s);
+    let a = assessment(case, &s);
     headline(case, &s, &t, &a)
         .warnings
         .into_iter()

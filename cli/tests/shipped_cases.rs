@@ -57,7 +57,7 @@ fn every_shipped_case_runs_cleanly() {
         };
         let summary = run(&case.model, &mut obs, Reporting::default())
             .unwrap_or_else(|e| panic!("{name}: {e}"));
-        let a = assessment(&case, None, &summary);
+        let a = assessment(&case, &summary);
         assert!(a.is_ok(), "{name}: virtual tests failed: {a:?}");
         let h = headline(&case, &summary, &obs.tracker, &a);
         assert!(obs.finite, "{name}: non-finite values");
@@ -191,7 +191,7 @@ fn the_same_well_gives_the_same_before_figures_whatever_the_drive() {
             finite: true,
         };
         let summary = run(&case.model, &mut obs, Reporting::default()).unwrap();
-        let a = assessment(&case, None, &summary);
+        let a = assessment(&case, &summary);
         let h = headline(&case, &summary, &obs.tracker, &a);
         figures.push((
             label,

@@ -9,7 +9,7 @@ use std::path::{Path, PathBuf};
 use boreflux::case::load_case;
 use boreflux::report::read::read_run;
 use boreflux::report::write_report;
-use common::{boreflux, success};
+use common::{boreflux, shipped_case, success};
 
 /// A fresh scratch folder for one test, removed when the guard drops, also when the test
 /// fails (a panic unwinds through the guard).
@@ -277,9 +277,7 @@ fn ramped_surge_case(
     duration: &str,
     output: &str,
 ) -> PathBuf {
-    let shipped = Path::new(env!("CARGO_MANIFEST_DIR")).join("../cases/municipal-sand-gravel.json");
-    let mut case: serde_json::Value =
-        serde_json::from_str(&std::fs::read_to_string(shipped).unwrap()).unwrap();
+    let mut case = shipped_case("municipal-sand-gravel.json");
     case["title"] = "ramped surge block (invented test data)".into();
     case["drive"]["ramp_cycles"] = 16.into();
     case["formation"]["conductivity"] = formation_k.into();
@@ -546,9 +544,7 @@ fn the_size_estimate_bounds_an_envelope_run_with_events_every_cycle() {
 fn a_schedule_without_a_common_period_gets_no_envelopes() {
     let tmp = scratch("no-period");
     let dir = tmp.path();
-    let shipped = Path::new(env!("CARGO_MANIFEST_DIR")).join("../cases/staged-development.json");
-    let mut case: serde_json::Value =
-        serde_json::from_str(&std::fs::read_to_string(shipped).unwrap()).unwrap();
+    let mut case = shipped_case("staged-development.json");
     case["output"] = serde_json::json!({ "store": "envelopes", "detail_cycles": 1 });
     let p = dir.join("staged.json");
     std::fs::write(&p, case.to_string()).unwrap();

@@ -50,12 +50,15 @@ pub enum StoreChoice {
 }
 
 /// The storage choice of a loaded case.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[derive(Debug, Clone, Copy, PartialEq)]
 pub enum Storage {
     /// Every reported step in `/series`.
     Steps,
     /// `/envelopes` per complete cycle; `/series` holds the detail windows.
     Envelopes {
+        /// The drive's common period, s: the cycles the run closes (a drive without one
+        /// gets no envelopes).
+        period_s: f64,
         /// Cycles kept in full at the start and end.
         detail_cycles: u64,
         /// Cycles holding each kind of event kept in full (`output.event_windows`).
@@ -81,31 +84,31 @@ pub fn storage(raw: Option<&RawOutput>, model: &Model) -> Result<(Storage, Value
         .unwrap_or(DEFAULT_EVENT_WINDOWS);
     // Envelopes are per drive cycle, and the run closes cycles only on a common period: a
     // schedule whose stages have other periods (or none) closes none, so it gets none.
-    let periodic = model.drive.period_s().is_some();
+    let period = model.drive.period_s();
     let storage =
-        match choice {
-            StoreChoice::Steps => Storage::Steps,
-            StoreChoice::Envelopes if !periodic => return Err(CaseError::new(
+        match (choice, period) {
+            (StoreChoice::Steps, _) => Storage::Steps,
+            (StoreChoice::Envelopes, None) => return Err(CaseError::new(
                 "output.store",
                 "\"envelopes\" needs a periodic drive (a surge block, swab, pump-and-backwash, \
                  jetting, sine head or repeating table; a schedule only when every stage has \
                  the same period and lasts whole cycles of it); use \"steps\"",
             )),
-            StoreChoice::Envelopes => Storage::Envelopes {
+            (StoreChoice::Envelopes, Some(period_s)) => Storage::Envelopes {
+                period_s,
                 detail_cycles,
                 event_windows,
             },
-            StoreChoice::Auto => {
-                let steps = boreflux_solver::cost::estimate(model).steps;
-                if periodic && steps > AUTO_STEPS_LIMIT {
-                    Storage::Envelopes {
-                        detail_cycles,
-                        event_windows,
-                    }
-                } else {
-                    Storage::Steps
+            (StoreChoice::Auto, Some(period_s))
+                if boreflux_solver::cost::estimate(model).steps > AUTO_STEPS_LIMIT =>
+            {
+                Storage::Envelopes {
+                    period_s,
+                    detail_cycles,
+                    event_windows,
                 }
             }
+            (StoreChoice::Auto, _) => Storage::Steps,
         };
     let store = match storage {
         Storage::Steps => "steps",

@@ -464,17 +464,16 @@ fn drive_files(v: &Value, out: &mut Vec<String>) {
 /// the case keeps every step.
 fn envelope_plan(case: &LoadedCase) -> Option<EnvelopePlan> {
     let Storage::Envelopes {
+        period_s,
         detail_cycles,
         event_windows,
     } = case.storage
     else {
         return None;
     };
-    let model = &case.model;
-    let period = model.drive.period_s().unwrap_or(0.0);
     Some(EnvelopePlan {
         detail_cycles,
-        detail_from_s: model.duration_s - detail_cycles as f64 * period,
+        detail_from_s: case.model.duration_s - detail_cycles as f64 * period_s,
         event_windows,
     })
 }

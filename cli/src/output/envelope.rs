@@ -529,7 +529,7 @@ mod tests {
                 stage_starts,
                 kinds.len(),
                 windows,
-                None,
+                false,
             )
             .kept;
             assert!(

@@ -1465,7 +1465,7 @@ mod tests {
             },
         )
         .unwrap();
-        let a = crate::summary::assessment(&case, None, &summary);
+        let a = crate::summary::assessment(&case, &summary);
         crate::summary::headline(&case, &summary, &tracker, &a)
     }
 
