@@ -219,6 +219,11 @@ pub struct Stepper {
     /// Newton's history holds end-of-stage heads (TR-BDF2, whose stages leave no sawtooth)
     /// rather than θ-point heads (θ-scheme).
     predict_end: bool,
+    /// Stages taken so far (the stamp of `end_power_kept`).
+    stages: u64,
+    /// The end-of-step power of the pure runs of linear faces, formed by the θ-scheme's
+    /// stage in its pass over the θ-point power; see [`power::KeptEndPower`].
+    end_power_kept: Option<power::KeptEndPower>,
     /// Current time, s.
     pub time_s: f64,
     /// Balance of the last step.
@@ -292,6 +297,8 @@ impl Stepper {
             filter_for: None,
             end_slopes: None,
             predict_end: false,
+            stages: 0,
+            end_power_kept: None,
             time_s: 0.0,
             balance: StepBalance::default(),
             vapour: VapourState::default(),
@@ -348,6 +355,7 @@ impl Stepper {
     /// Drops what was built from the old face laws.
     fn faces_changed(&mut self) {
         self.end_slopes = None;
+        self.end_power_kept = None;
         self.faces_linear = self.disc.is_linear();
         self.factored_for = None;
         self.spare_for = None;
@@ -372,6 +380,7 @@ impl Stepper {
     /// jump of the forcing, across which the old trend predicts nothing.
     pub fn forget_history(&mut self) {
         self.end_slopes = None;
+        self.end_power_kept = None;
         self.predictor.forget();
         self.predictor_mid.forget();
     }
@@ -614,6 +623,7 @@ impl Stepper {
                 weight: dt,
                 t_new: self.time_s + dt,
                 t_theta: self.time_s + tdt,
+                ends_step: true,
             },
         )
     }
@@ -626,7 +636,9 @@ impl Stepper {
             weight: dt,
             t_new,
             t_theta,
+            ends_step,
         } = s;
+        self.stages += 1;
         // The forcing at the end of the stage is its value just before t_new: a stage that
         // ends on a jump (a schedule's next stage, a pump switched) belongs to what it ends.
         let t_end = left_limit(t_new);
@@ -688,9 +700,19 @@ impl Stepper {
             self.face_dh[0] = self.y[0] - self.y[1];
             self.face_q[0] = q_in;
         }
-        // The Newton iteration left the flows of the converged heads in face_q.
-        let faces = (!self.linear).then_some((&self.face_q[..], &self.face_dh[..]));
-        self.zone_power(&self.y, faces, &mut dissipated);
+        if self.linear && self.faces_linear && ends_step {
+            // The end-of-step power of the pure runs in the same pass (`end_power`).
+            let pure = self.linear_zone_powers(&self.y, &self.scratch, &mut dissipated);
+            self.end_power_kept = Some(power::KeptEndPower {
+                stage: self.stages,
+                well_head: self.scratch[0],
+                pure,
+            });
+        } else {
+            // The Newton iteration left the flows of the converged heads in face_q.
+            let faces = (!self.linear).then_some((&self.face_q[..], &self.face_dh[..]));
+            self.zone_power(&self.y, faces, &mut dissipated);
+        }
         self.y[0] = y0;
         let faces = &self.disc.faces;
         let last = n - 1;
@@ -934,6 +956,9 @@ struct Stage {
     weight: f64,
     t_new: f64,
     t_theta: f64,
+    /// The stage's end is the step's end, kept unless the step is redone (the θ-scheme's
+    /// stage; TR-BDF2's stages are followed by its error test, which may undo the step).
+    ends_step: bool,
 }
 
 #[derive(Debug, Clone, Copy)]

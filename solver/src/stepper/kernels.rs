@@ -164,52 +164,82 @@ fn extrapolate_kernel(
 /// heads `a` (inner) and `b` (outer), plus `extra` (a last face's power, added to the
 /// first lane before the lanes are summed), m⁴/s. All slices have one length.
 pub(super) fn linear_power(c: &[f64], a: &[f64], b: &[f64], extra: Option<f64>) -> f64 {
-    dispatch!(linear_power_kernel, linear_power_avx, c, a, b, extra)
+    linear_powers(c, [(a, b)], [extra])[0]
 }
 
-/// [`linear_power_kernel`] in AVX instructions: each group's lanes in one vector, lane by
+/// [`linear_power`] of `K` head profiles over the same faces in one pass (each face's
+/// conductance loaded once): entry k is `linear_power(c, heads[k].0, heads[k].1,
+/// extras[k])`, with the same operations in the same order, so the same bits.
+pub(super) fn linear_powers<const K: usize>(
+    c: &[f64],
+    heads: [(&[f64], &[f64]); K],
+    extras: [Option<f64>; K],
+) -> [f64; K] {
+    dispatch!(linear_powers_kernel, linear_powers_avx, c, heads, extras)
+}
+
+/// [`linear_powers_kernel`] in AVX instructions: each group's lanes in one vector, lane by
 /// lane the same operations in the same order.
 ///
 /// # Safety
 /// The processor must support AVX.
 #[cfg(target_arch = "x86_64")]
 #[target_feature(enable = "avx")]
-unsafe fn linear_power_avx(c: &[f64], a: &[f64], b: &[f64], extra: Option<f64>) -> f64 {
+unsafe fn linear_powers_avx<const K: usize>(
+    c: &[f64],
+    heads: [(&[f64], &[f64]); K],
+    extras: [Option<f64>; K],
+) -> [f64; K] {
     use std::arch::x86_64::*;
     const W: usize = GROUPS * LANES;
     let m = c.len();
-    assert!(a.len() == m && b.len() == m);
+    for (a, b) in heads {
+        assert!(a.len() == m && b.len() == m);
+    }
     let blocks = m / W * W;
     let whole = blocks + (m - blocks) / LANES * LANES;
     // SAFETY (every load below): o + LANES ≤ whole ≤ m, the length of every slice.
-    let term = |o: usize| unsafe {
+    let term = |ck: __m256d, (a, b): (&[f64], &[f64]), o: usize| unsafe {
         let d = _mm256_sub_pd(
             _mm256_loadu_pd(a.as_ptr().add(o)),
             _mm256_loadu_pd(b.as_ptr().add(o)),
         );
-        _mm256_mul_pd(_mm256_mul_pd(_mm256_loadu_pd(c.as_ptr().add(o)), d), d)
+        _mm256_mul_pd(_mm256_mul_pd(ck, d), d)
     };
-    let mut acc = [_mm256_setzero_pd(); GROUPS];
+    // SAFETY: as for `term`.
+    let load_c = |o: usize| unsafe { _mm256_loadu_pd(c.as_ptr().add(o)) };
+    let mut acc = [[_mm256_setzero_pd(); GROUPS]; K];
     for k in (0..blocks).step_by(W) {
-        for (g, acc) in acc.iter_mut().enumerate() {
-            *acc = _mm256_add_pd(*acc, term(k + g * LANES));
+        for g in 0..GROUPS {
+            let ck = load_c(k + g * LANES);
+            for (acc, &h) in acc.iter_mut().zip(&heads) {
+                acc[g] = _mm256_add_pd(acc[g], term(ck, h, k + g * LANES));
+            }
         }
     }
     for o in (blocks..whole).step_by(LANES) {
-        acc[0] = _mm256_add_pd(acc[0], term(o));
+        let ck = load_c(o);
+        for (acc, &h) in acc.iter_mut().zip(&heads) {
+            acc[0] = _mm256_add_pd(acc[0], term(ck, h, o));
+        }
     }
-    let mut sums = [[0.0f64; LANES]; GROUPS];
-    for (s, a) in sums.iter_mut().zip(acc) {
-        // SAFETY: a 4-lane store into a 4-element array.
-        unsafe { _mm256_storeu_pd(s.as_mut_ptr(), a) };
+    let mut out = [0.0; K];
+    for ((out, acc), ((a, b), extra)) in out.iter_mut().zip(acc).zip(heads.into_iter().zip(extras))
+    {
+        let mut sums = [[0.0f64; LANES]; GROUPS];
+        for (s, a) in sums.iter_mut().zip(acc) {
+            // SAFETY: a 4-lane store into a 4-element array.
+            unsafe { _mm256_storeu_pd(s.as_mut_ptr(), a) };
+        }
+        for ((&c, &a), &b) in c[whole..].iter().zip(&a[whole..]).zip(&b[whole..]) {
+            sums[0][0] += c * (a - b) * (a - b);
+        }
+        *out = combine_power(&sums, extra);
     }
-    for ((&c, &a), &b) in c[whole..].iter().zip(&a[whole..]).zip(&b[whole..]) {
-        sums[0][0] += c * (a - b) * (a - b);
-    }
-    combine_power(&sums, extra)
+    out
 }
 
-/// The lanes of [`linear_power_kernel`]'s groups combined: pairwise across the groups,
+/// The lanes of [`linear_powers_kernel`]'s groups combined: pairwise across the groups,
 /// `extra` to lane 0, then the lanes in order.
 #[inline(always)]
 fn combine_power(acc: &[[f64; LANES]; GROUPS], extra: Option<f64>) -> f64 {
@@ -223,44 +253,53 @@ fn combine_power(acc: &[[f64; LANES]; GROUPS], extra: Option<f64>) -> f64 {
     lanes.iter().sum::<f64>()
 }
 
-/// Independent sums of [`linear_power_kernel`]: [`LANES`] lanes in each of `GROUPS`
+/// Independent sums of [`linear_powers_kernel`]: [`LANES`] lanes in each of `GROUPS`
 /// groups, so consecutive faces add to different accumulators and no sum waits for the
 /// previous face's.
 const GROUPS: usize = 4;
 
 #[inline(always)]
-fn linear_power_kernel(c: &[f64], a: &[f64], b: &[f64], extra: Option<f64>) -> f64 {
+fn linear_powers_kernel<const K: usize>(
+    c: &[f64],
+    heads: [(&[f64], &[f64]); K],
+    extras: [Option<f64>; K],
+) -> [f64; K] {
     const W: usize = GROUPS * LANES;
     let m = c.len();
-    assert!(a.len() == m && b.len() == m);
-    let mut acc = [[0.0f64; LANES]; GROUPS];
-    // Faces by blocks of GROUPS × LANES, face k of a block to lane k % LANES of group
-    // k / LANES; then the whole lanes left to group 0; the last faces to lane 0 of group 0.
-    let (cw, aw, bw) = (c.chunks_exact(W), a.chunks_exact(W), b.chunks_exact(W));
-    let (cr, ar, br) = (cw.remainder(), aw.remainder(), bw.remainder());
-    for ((c, a), b) in cw.zip(aw).zip(bw) {
-        for (g, acc) in acc.iter_mut().enumerate() {
-            for (l, s) in acc.iter_mut().enumerate() {
-                let k = g * LANES + l;
-                *s += c[k] * (a[k] - b[k]) * (a[k] - b[k]);
+    let mut out = [0.0; K];
+    for ((out, (a, b)), extra) in out.iter_mut().zip(heads).zip(extras) {
+        assert!(a.len() == m && b.len() == m);
+        let mut acc = [[0.0f64; LANES]; GROUPS];
+        // Faces by blocks of GROUPS × LANES, face k of a block to lane k % LANES of group
+        // k / LANES; then the whole lanes left to group 0; the last faces to lane 0 of
+        // group 0.
+        let (cw, aw, bw) = (c.chunks_exact(W), a.chunks_exact(W), b.chunks_exact(W));
+        let (cr, ar, br) = (cw.remainder(), aw.remainder(), bw.remainder());
+        for ((c, a), b) in cw.zip(aw).zip(bw) {
+            for (g, acc) in acc.iter_mut().enumerate() {
+                for (l, s) in acc.iter_mut().enumerate() {
+                    let k = g * LANES + l;
+                    *s += c[k] * (a[k] - b[k]) * (a[k] - b[k]);
+                }
             }
         }
-    }
-    let (cl, al, bl) = (
-        cr.chunks_exact(LANES),
-        ar.chunks_exact(LANES),
-        br.chunks_exact(LANES),
-    );
-    let (c1, a1, b1) = (cl.remainder(), al.remainder(), bl.remainder());
-    for ((c, a), b) in cl.zip(al).zip(bl) {
-        for l in 0..LANES {
-            acc[0][l] += c[l] * (a[l] - b[l]) * (a[l] - b[l]);
+        let (cl, al, bl) = (
+            cr.chunks_exact(LANES),
+            ar.chunks_exact(LANES),
+            br.chunks_exact(LANES),
+        );
+        let (c1, a1, b1) = (cl.remainder(), al.remainder(), bl.remainder());
+        for ((c, a), b) in cl.zip(al).zip(bl) {
+            for l in 0..LANES {
+                acc[0][l] += c[l] * (a[l] - b[l]) * (a[l] - b[l]);
+            }
         }
+        for ((&c, &a), &b) in c1.iter().zip(a1).zip(b1) {
+            acc[0][0] += c * (a - b) * (a - b);
+        }
+        *out = combine_power(&acc, extra);
     }
-    for ((&c, &a), &b) in c1.iter().zip(a1).zip(b1) {
-        acc[0][0] += c * (a - b) * (a - b);
-    }
-    combine_power(&acc, extra)
+    out
 }
 
 /// Slopes dh/dt of cells with linear faces: for j ≥ 1, `out[j]` = (Q_{j−1} − Q_j)/S_j with
@@ -420,12 +459,23 @@ mod tests {
             let b = extrapolate_kernel(&mut o2, &y, &h, &s, 2.0, 1.0);
             assert_eq!(a.map(f64::to_bits), b.map(f64::to_bits), "m = {m}");
             assert_eq!(o1, o2);
+            let (u, w) = (values(&mut seed, m, 1.0), values(&mut seed, m, 1.0));
             for extra in [None, Some(3e-4)] {
                 let (p1, p2) = (
                     linear_power(&c, &y, &h, extra),
-                    linear_power_kernel(&c, &y, &h, extra),
+                    linear_powers_kernel(&c, [(&y, &h)], [extra])[0],
                 );
                 assert_eq!(p1.to_bits(), p2.to_bits());
+                // Two profiles in one pass: each the bits of its own pass.
+                let q = linear_power(&c, &u, &w, Some(1e-5));
+                let both = linear_powers(&c, [(&y, &h), (&u, &w)], [extra, Some(1e-5)]);
+                let portable = linear_powers_kernel(&c, [(&y, &h), (&u, &w)], [extra, Some(1e-5)]);
+                assert_eq!(
+                    both.map(f64::to_bits),
+                    [p1.to_bits(), q.to_bits()],
+                    "m = {m}"
+                );
+                assert_eq!(both.map(f64::to_bits), portable.map(f64::to_bits));
             }
             for open in [false, true] {
                 let (mut f1, mut f2) = (vec![0.0; m], vec![0.0; m]);

@@ -12,6 +12,19 @@
 use super::{Stepper, LANES};
 use crate::grid::ZONE_COUNT;
 
+/// The power per zone of the pure runs of linear faces at the end-of-step heads, formed by
+/// the θ-scheme's stage in the same pass as the θ-point power (each face's conductance
+/// loaded once), for [`Stepper::end_power`]. It stands for the heads of stage `stage` with
+/// the well head `well_head`; anything else that moves the heads or the faces drops it
+/// (`faces_changed`, `forget_history`), and `end_power` checks the stamp and the well
+/// head (which the device's law or the column may set after the stage).
+#[derive(Debug, Clone, Copy)]
+pub(super) struct KeptEndPower {
+    pub(super) stage: u64,
+    pub(super) well_head: f64,
+    pub(super) pure: [f64; ZONE_COUNT],
+}
+
 impl Stepper {
     /// Adds the power per zone of `heads` to `out`, m⁴/s. `faces` holds the flows and
     /// drops of every face at those heads (face n − 1 the outer one) when the face laws are
@@ -51,10 +64,47 @@ impl Stepper {
                 )
             };
         }
+        self.mixed_power(heads, out);
+    }
+
+    /// Adds the power of the faces across two zones (`Discretization::mixed_faces`).
+    fn mixed_power(&self, heads: &[f64], out: &mut [f64; ZONE_COUNT]) {
+        let (d, n) = (&self.disc, heads.len());
         for &f in &d.mixed_faces {
             let dh = heads[f] - if f + 1 < n { heads[f + 1] } else { 0.0 };
             d.faces[f].add_dissipation(dh, out);
         }
+    }
+
+    /// [`Self::zone_power`] of the θ-point heads `y` when every face is linear, and the
+    /// pure runs' power at the end-of-step heads `end` from the same pass (the bits of
+    /// `zone_power(end, None, ..)`'s pure runs), returned for [`KeptEndPower`].
+    pub(super) fn linear_zone_powers(
+        &self,
+        y: &[f64],
+        end: &[f64],
+        out: &mut [f64; ZONE_COUNT],
+    ) -> [f64; ZONE_COUNT] {
+        let d = &self.disc;
+        let n = y.len();
+        let mut pure = [0.0; ZONE_COUNT];
+        for (run, zone) in &d.pure_runs {
+            let last = run.end.min(n - 1);
+            let outer =
+                |h: &[f64]| (run.end == n).then(|| d.conductance[n - 1] * h[n - 1] * h[n - 1]);
+            let [p_theta, p_end] = super::kernels::linear_powers(
+                &d.conductance[run.start..last],
+                [
+                    (&y[run.start..last], &y[run.start + 1..=last]),
+                    (&end[run.start..last], &end[run.start + 1..=last]),
+                ],
+                [outer(y), outer(end)],
+            );
+            out[*zone as usize] += p_theta;
+            pure[*zone as usize] += p_end;
+        }
+        self.mixed_power(y, out);
+        pure
     }
 
     /// Power per zone at the end-of-step heads, m⁴/s (× ρg: W). Nonlinear faces are
@@ -87,9 +137,22 @@ impl Stepper {
                 0.0
             };
         }
-        let mut out = [0.0; ZONE_COUNT];
-        let faces = nonlinear.then_some((&self.end_q[..], &self.end_dh[..]));
-        self.zone_power(&self.h, faces, &mut out);
+        let kept = self.end_power_kept.filter(|k| {
+            !nonlinear && k.stage == self.stages && k.well_head.to_bits() == self.h[0].to_bits()
+        });
+        let out = match kept {
+            Some(k) => {
+                let mut out = k.pure;
+                self.mixed_power(&self.h, &mut out);
+                out
+            }
+            None => {
+                let mut out = [0.0; ZONE_COUNT];
+                let faces = nonlinear.then_some((&self.end_q[..], &self.end_dh[..]));
+                self.zone_power(&self.h, faces, &mut out);
+                out
+            }
+        };
         self.h[0] = h0;
         out
     }
@@ -145,6 +208,35 @@ mod tests {
                     want[z]
                 );
             }
+        }
+    }
+
+    #[test]
+    fn kept_end_power_is_the_bits_of_a_fresh_pass() {
+        // The linear well under the θ-scheme: the stage keeps the pure runs' end power; the
+        // same heads summed afresh (the kept value dropped) must give the same bits, with a
+        // cake (a face across two zones) and without.
+        for cake in [true, false] {
+            let mut m = model(false);
+            if !cake {
+                m.cake = None;
+            }
+            let mut st = Stepper::new(
+                &m,
+                m.cake.map(|c| crate::cake::CakeState {
+                    thickness_m: c.thickness_m,
+                    coverage: c.coverage,
+                }),
+            );
+            for _ in 0..23 {
+                st.step(&m, 0.01, 0.5).unwrap();
+            }
+            assert!(st.end_power_kept.is_some(), "cake {cake}: nothing kept");
+            let kept = st.end_power();
+            st.end_power_kept = None;
+            let fresh = st.end_power();
+            assert!(fresh.iter().sum::<f64>() > 0.0);
+            assert_eq!(kept.map(f64::to_bits), fresh.map(f64::to_bits), "cake {cake}");
         }
     }
 }

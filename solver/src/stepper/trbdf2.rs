@@ -180,6 +180,7 @@ impl Stepper {
                 weight: 2.0 * tdt,
                 t_new: t0 + 2.0 * tdt,
                 t_theta: t0 + tdt,
+                ends_step: false,
             },
         )?;
         let b1 = self.balance;
@@ -219,6 +220,7 @@ impl Stepper {
                 weight: tdt,
                 t_new: t0 + dt,
                 t_theta: left_limit(t0 + dt),
+                ends_step: false,
             },
         );
         if let Err(e) = second {
