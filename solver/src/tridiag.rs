@@ -243,22 +243,29 @@ impl Factored {
             &far[p + 1..][..m],
             &far_pair[p + 1..][..m],
         );
-        let mut k = 0;
-        while k + 1 < m {
-            let i = m - 1 - k;
-            let (z0, z1) = (top[i], top[i - 1]);
-            top[i] = z0 - ft[i] * x_up;
-            x_up = (z1 - ft[i - 1] * z0) + pt[i - 1] * x_up;
-            top[i - 1] = x_up;
-            let (w0, w1) = (xd[k], xd[k + 1]);
-            xd[k] = w0 - fd[k] * x_down;
-            x_down = (w1 - fd[k + 1] * w0) + pd[k + 1] * x_down;
-            xd[k + 1] = x_down;
-            k += 2;
+        // Pairs of rows by exact chunks (no index arithmetic or bounds checks in the
+        // loop): the top chain's pairs from row m − 1 down (chunk [i − 1, i]), the bottom
+        // chain's from row p + 1 up (chunk [k, k + 1]).
+        let top_pairs = top[..m]
+            .rchunks_exact_mut(2)
+            .zip(ft.rchunks_exact(2).zip(pt.rchunks_exact(2)));
+        let bottom_pairs = xd
+            .chunks_exact_mut(2)
+            .zip(fd.chunks_exact(2).zip(pd.chunks_exact(2)));
+        for ((t, (ft, pt)), (b, (fd, pd))) in top_pairs.zip(bottom_pairs) {
+            let (z0, z1) = (t[1], t[0]);
+            t[1] = z0 - ft[1] * x_up;
+            x_up = (z1 - ft[0] * z0) + pt[0] * x_up;
+            t[0] = x_up;
+            let (w0, w1) = (b[0], b[1]);
+            b[0] = w0 - fd[0] * x_down;
+            x_down = (w1 - fd[1] * w0) + pd[1] * x_down;
+            b[1] = x_down;
         }
-        if k < m {
+        if m % 2 == 1 {
             // The last row of each chain alone (m odd): top row 0, bottom row p + m.
             top[0] -= ft[0] * x_up;
+            let k = m - 1;
             x_down = xd[k] - fd[k] * x_down;
             xd[k] = x_down;
         }
@@ -408,21 +415,33 @@ impl Factored {
                 // chain has one multiply-add per two rows (the pairs' products are kept).
                 let pt = &self.near_pair[from..p][..m];
                 let pb = &self.near_pair[p + 1..][..split][..m];
-                let mut k = 0;
-                while k + 1 < m {
-                    let j = m - 1 - k;
-                    let (d0, d1) = (gt[k] * ct[k], gt[k + 1] * ct[k + 1]);
-                    top[k] = d0 - nt[k] * z_top;
-                    z_top = (d1 - nt[k + 1] * d0) + pt[k + 1] * z_top;
-                    top[k + 1] = z_top;
-                    let (e0, e1) = (gb[j] * cb[j], gb[j - 1] * cb[j - 1]);
-                    rb[j] = e0 - nb[j] * z_bottom;
-                    z_bottom = (e1 - nb[j - 1] * e0) + pb[j - 1] * z_bottom;
-                    rb[j - 1] = z_bottom;
-                    k += 2;
+                // Pairs of rows by exact chunks (no index arithmetic or bounds checks in
+                // the loop): the top chain's from row `from` down (chunk [k, k + 1]), the
+                // bottom chain's from row p + m up (chunk [j − 1, j]).
+                let top_pairs = top
+                    .chunks_exact_mut(2)
+                    .zip(nt.chunks_exact(2).zip(pt.chunks_exact(2)))
+                    .zip(gt.chunks_exact(2).zip(ct.chunks_exact(2)));
+                let bottom_pairs = rb
+                    .rchunks_exact_mut(2)
+                    .zip(nb.rchunks_exact(2).zip(pb.rchunks_exact(2)))
+                    .zip(gb.rchunks_exact(2).zip(cb.rchunks_exact(2)));
+                for (((t, (nt, pt)), (gt, ct)), ((b, (nb, pb)), (gb, cb))) in
+                    top_pairs.zip(bottom_pairs)
+                {
+                    let (d0, d1) = (gt[0] * ct[0], gt[1] * ct[1]);
+                    t[0] = d0 - nt[0] * z_top;
+                    z_top = (d1 - nt[1] * d0) + pt[1] * z_top;
+                    t[1] = z_top;
+                    let (e0, e1) = (gb[1] * cb[1], gb[0] * cb[0]);
+                    b[1] = e0 - nb[1] * z_bottom;
+                    z_bottom = (e1 - nb[0] * e0) + pb[0] * z_bottom;
+                    b[0] = z_bottom;
                 }
-                if k < m {
-                    // The last row of each chain alone (m odd): top row p − 1, bottom row p + 1.
+                if m % 2 == 1 {
+                    // The last row of each chain alone (m odd): top row p − 1, bottom row
+                    // p + 1.
+                    let k = m - 1;
                     z_top = gt[k] * ct[k] - nt[k] * z_top;
                     top[k] = z_top;
                     z_bottom = gb[0] * cb[0] - nb[0] * z_bottom;
