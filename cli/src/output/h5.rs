@@ -14,10 +14,13 @@
 //! ```
 //!
 //! A growable dataset is created in the file when its first chunk is written: when the
-//! first chunk fills, or at [`H5Writer::finish`], where a dataset shorter than one chunk gets
-//! a chunk of its own length. HDF5 compresses whole chunks, fill values included, so a short
-//! series with a long chunk would cost the compression of the whole chunk at the close; the
-//! values, names, attributes and compression are the same either way.
+//! first chunk fills (chunked, compressed as asked, resizable), or at
+//! [`H5Writer::finish`], where a dataset that never filled one chunk is written whole in one
+//! contiguous, uncompressed block (an empty one is created chunked, with no rows). A dataset
+//! smaller than one chunk saves at most a chunk's bytes by compression, and its compression
+//! would all fall in the run's closing time (on the 60 M cell-step case: the series written
+//! at the close 42 → 26 ms, the file 1.16 → 2.01 MB). Values, names and attributes are the
+//! same either way.
 //!
 //! HDF5 holds one global lock for every call: compute in parallel, write from one thread.
 //! Paths are `/`-separated (`"series/power/cake"`; a leading `/` is optional); missing
@@ -535,10 +538,27 @@ impl<T: H5Type + Copy> Growable<T> {
 
 impl<T: H5Type + Copy + Send> Pending for Growable<T> {
     fn flush_last(&mut self) -> Result<()> {
-        if matches!(self.slot, Slot::Planned(_)) {
-            // Never flushed: everything is in the buffer, fewer rows than a chunk.
+        if let Slot::Planned(plan) = &self.slot {
+            // Never flushed: everything is in the buffer, fewer rows than a chunk, written
+            // whole (contiguous, uncompressed; see the module documentation).
             let rows = self.len_rows();
-            self.create(if rows > 0 { rows } else { self.chunk_rows })?;
+            if rows > 0 {
+                let builder = plan.group.new_dataset_builder();
+                let ds = if self.matrix {
+                    let block = ArrayView2::from_shape((rows, self.ncols), &self.buf)
+                        .expect("buffer holds whole rows");
+                    builder.with_data(block).create(plan.name.as_str())
+                } else {
+                    builder.with_data(&self.buf[..]).create(plan.name.as_str())
+                }
+                .map_err(hdf5_err(&self.object))?;
+                describe(&ds, &self.object, &plan.units, &plan.description)?;
+                self.rows = rows;
+                self.buf.clear();
+                self.slot = Slot::Open(ds);
+                return Ok(());
+            }
+            self.create(self.chunk_rows)?;
         }
         Growable::flush(self)
     }
@@ -738,12 +758,12 @@ mod tests {
         }
     }
 
-    /// A series shorter than its chunk is created at the finish with a chunk of its own
-    /// length (HDF5 would otherwise compress the whole chunk, fill values included); one
-    /// that filled a chunk keeps it; an empty one has its asked chunk and no rows. Values,
-    /// attributes and filters are as asked either way, and a planned name is taken.
+    /// A series or matrix that never filled its chunk is written whole at the finish,
+    /// contiguous and uncompressed; one that filled a chunk keeps it and its compression;
+    /// an empty one has its asked chunk and no rows. Values and attributes are as asked
+    /// either way, and a planned name is taken.
     #[test]
-    fn short_series_get_a_chunk_of_their_own_length() {
+    fn short_series_are_written_whole_and_uncompressed() {
         let dir = tempfile::tempdir().unwrap();
         let path = dir.path().join("c.h5");
         let mut w = H5Writer::create(&path).unwrap();
@@ -768,19 +788,24 @@ mod tests {
         w.finish().unwrap();
         let f = File::open(&path).unwrap();
         let chunk = |name: &str| f.dataset(name).unwrap().chunk();
-        assert_eq!(chunk("g/short"), Some(vec![40]));
+        assert_eq!(chunk("g/short"), None);
         assert_eq!(chunk("g/long"), Some(vec![16]));
         assert_eq!(chunk("g/empty"), Some(vec![64]));
-        assert_eq!(chunk("g/m"), Some(vec![2, 3]));
+        assert_eq!(chunk("g/m"), None);
         for name in ["g/short", "g/long"] {
             let ds = f.dataset(name).unwrap();
             assert_eq!(ds.read_raw::<f64>().unwrap(), values);
-            assert!(ds.is_resizable());
             assert_eq!(str_attr(&ds, "units"), "m");
-            if hdf5::filters::deflate_available() {
-                assert!(ds.filters().contains(&hdf5::filters::Filter::Deflate(4)));
-            }
         }
+        let long = f.dataset("g/long").unwrap();
+        assert!(long.is_resizable());
+        if hdf5::filters::deflate_available() {
+            assert!(long.filters().contains(&hdf5::filters::Filter::Deflate(4)));
+        }
+        for name in ["g/short", "g/m"] {
+            assert!(f.dataset(name).unwrap().filters().is_empty(), "{name}");
+        }
+        assert_eq!(str_attr(&f.dataset("g/m").unwrap(), "units"), "m");
         let e = f.dataset("g/empty").unwrap();
         assert_eq!(e.shape(), [0]);
         assert_eq!(str_attr(&e, "description"), "empty");

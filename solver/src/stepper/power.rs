@@ -236,7 +236,11 @@ mod tests {
             st.end_power_kept = None;
             let fresh = st.end_power();
             assert!(fresh.iter().sum::<f64>() > 0.0);
-            assert_eq!(kept.map(f64::to_bits), fresh.map(f64::to_bits), "cake {cake}");
+            assert_eq!(
+                kept.map(f64::to_bits),
+                fresh.map(f64::to_bits),
+                "cake {cake}"
+            );
         }
     }
 }
