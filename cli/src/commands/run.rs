@@ -16,6 +16,7 @@ use crate::case::Storage;
 use crate::case::{load_case, LoadedCase};
 use crate::output::envelope::EnvelopePlan;
 use crate::output::events::EventPlan;
+use crate::output::relay::relay;
 use crate::output::schema::{
     figure_values, GridData, Group, JumpSeries, ProgressSeries, RootAttr, SummaryText,
 };
@@ -83,9 +84,11 @@ impl Progress {
     }
 }
 
-/// Everything the run observes, in one observer.
-struct Observers<'a> {
-    sink: &'a mut ResultSink,
+/// Everything the run observes, in one observer, on the solver's thread: Ctrl-C, the
+/// extremes, the progress points (they read the slow state) and the bar; the output goes
+/// to `out`, the sink itself or the relay to its thread.
+struct Observers<'a, O: ?Sized> {
+    out: &'a mut O,
     tracker: &'a mut Tracker,
     progress: &'a mut Progress,
     bar: &'a ProgressBar,
@@ -94,7 +97,7 @@ struct Observers<'a> {
     jumps: &'a mut Vec<JumpView>,
 }
 
-impl StepObserver for Observers<'_> {
+impl<O: StepObserver + ?Sized> StepObserver for Observers<'_, O> {
     fn on_step(&mut self, s: &StepView<'_>) -> bool {
         if interrupted() {
             return false;
@@ -105,19 +108,19 @@ impl StepObserver for Observers<'_> {
             self.bar
                 .set_position((1000.0 * s.time_s / self.duration_s) as u64);
         }
-        self.sink.on_step(s)
+        self.out.on_step(s)
     }
 
     fn on_cycle(&mut self, c: &CycleView) {
         if !self.bar.is_hidden() {
             self.bar.set_message(format!("cycle {}", c.index + 1));
         }
-        self.sink.on_cycle(c);
+        self.out.on_cycle(c);
     }
 
     fn on_jump(&mut self, j: &JumpView) {
         self.jumps.push(*j);
-        self.sink.on_jump(j);
+        self.out.on_jump(j);
     }
 }
 
@@ -231,8 +234,34 @@ fn write_jumps(
     Ok(())
 }
 
+/// How the run's output is fed.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum Feed {
+    /// On the solver's thread.
+    Direct,
+    /// On a thread of its own (`output/relay.rs`).
+    Relay,
+}
+
+impl Feed {
+    /// The relay when the machine has a second core; on one core it would only add the
+    /// copies and the switches between the threads.
+    fn for_machine() -> Feed {
+        if cores() >= 2 {
+            Feed::Relay
+        } else {
+            Feed::Direct
+        }
+    }
+}
+
 /// Runs the command.
 pub fn run(a: &RunArgs) -> Result<(), Failure> {
+    run_fed(a, Feed::for_machine())
+}
+
+/// Runs the command with the output fed as `feed` says.
+fn run_fed(a: &RunArgs, feed: Feed) -> Result<(), Failure> {
     let case =
         load_case(&a.case).map_err(|e| Failure::Input(anyhow!("{}: {e}", a.case.display())))?;
     let model = &case.model;
@@ -281,43 +310,53 @@ pub fn run(a: &RunArgs) -> Result<(), Failure> {
     let started = std::time::Instant::now();
     let mut jumps = Vec::new();
     let step = || {
-        let mut obs = Observers {
-            jumps: &mut jumps,
-            sink: &mut sink,
-            tracker: &mut tracker,
-            progress: &mut progress,
-            bar: &bar,
-            duration_s: model.duration_s,
-        };
-        let result = simulate(
-            model,
-            &mut obs,
-            Reporting {
-                // Envelopes see every step; `numerics.output_every` thins steps only.
-                every: match case.storage {
-                    Storage::Steps => case.output_every,
-                    Storage::Envelopes { .. } => 1,
+        let mut time_loop = |out: &mut dyn StepObserver| {
+            let mut obs = Observers {
+                out,
+                jumps: &mut jumps,
+                tracker: &mut tracker,
+                progress: &mut progress,
+                bar: &bar,
+                duration_s: model.duration_s,
+            };
+            simulate(
+                model,
+                &mut obs,
+                Reporting {
+                    // Envelopes see every step; `numerics.output_every` thins steps only.
+                    every: match case.storage {
+                        Storage::Steps => case.output_every,
+                        Storage::Envelopes { .. } => 1,
+                    },
                 },
-            },
-        );
-        // The series are written out while the tests below may still run.
-        if result.is_ok() && !interrupted() && sink.error.is_none() {
-            if let Err(e) = sink.write_series() {
-                sink.error = Some(e);
+            )
+        };
+        let (result, fed) = match feed {
+            Feed::Direct => {
+                let result = time_loop(&mut sink);
+                (result, Ok(sink))
             }
-        }
-        result
+            Feed::Relay => relay(sink, |r| time_loop(r)),
+        };
+        // The series are written out while the tests below may still run.
+        let fed = fed.map(|mut sink| {
+            if result.is_ok() && !interrupted() && sink.error.is_none() {
+                if let Err(e) = sink.write_series() {
+                    sink.error = Some(e);
+                }
+            }
+            sink
+        });
+        (result, fed)
     };
-    // The tests of the well as built (the undamaged well's, the basis of the progress
-    // series and of the efficiencies, and the figures before) depend on the case alone:
-    // they run beside the run and the writing of its series when a second core is there.
-    // A failure is reported with the figures, it does not stop the run.
-    let (result, baseline) = beside(step, || Baseline::new(model, &case.assessment));
+    let ((result, fed), baseline) = beside(step, || Baseline::new(model, &case.assessment));
     bar.finish_and_clear();
     if interrupted() {
         // Returning drops the unfinished sink, which deletes both temporary files.
         return Err(Failure::Runtime(anyhow!(INTERRUPTED_MESSAGE)));
     }
+    let mut sink =
+        fed.map_err(|e| Failure::Runtime(anyhow!("writing {}: {e}", a.output.display())))?;
     if let Some(e) = sink.error.take() {
         return Err(Failure::Runtime(anyhow!(
             "writing {}: {e}",
@@ -368,8 +407,7 @@ pub fn run(a: &RunArgs) -> Result<(), Failure> {
 /// Runs `main` and `side` at once, `side` on a scoped thread when the machine has a second
 /// core, else one after the other; both results come back.
 fn beside<A, B: Send>(main: impl FnOnce() -> A, side: impl FnOnce() -> B + Send) -> (A, B) {
-    let cores = std::thread::available_parallelism().map_or(1, std::num::NonZeroUsize::get);
-    if cores < 2 {
+    if cores() < 2 {
         let b = side();
         return (main(), b);
     }
@@ -381,6 +419,11 @@ fn beside<A, B: Send>(main: impl FnOnce() -> A, side: impl FnOnce() -> B + Send)
             .unwrap_or_else(|panic| std::panic::resume_unwind(panic));
         (a, b)
     })
+}
+
+/// The cores the process may use.
+fn cores() -> usize {
+    std::thread::available_parallelism().map_or(1, std::num::NonZeroUsize::get)
 }
 
 /// Refuses output names that are the case file or a file the case reads, before anything
