@@ -257,11 +257,11 @@ impl Feed {
 
 /// Runs the command.
 pub fn run(a: &RunArgs) -> Result<(), Failure> {
-    run_fed(a, Feed::for_machine())
+    print_out(&run_fed(a, Feed::for_machine())?)
 }
 
-/// Runs the command with the output fed as `feed` says.
-fn run_fed(a: &RunArgs, feed: Feed) -> Result<(), Failure> {
+/// Runs the command with the output fed as `feed` says; returns what it prints.
+fn run_fed(a: &RunArgs, feed: Feed) -> Result<String, Failure> {
     let case =
         load_case(&a.case).map_err(|e| Failure::Input(anyhow!("{}: {e}", a.case.display())))?;
     let model = &case.model;
@@ -385,7 +385,7 @@ fn run_fed(a: &RunArgs, feed: Feed) -> Result<(), Failure> {
     let elapsed = started.elapsed().as_secs_f64();
     if a.json {
         let text = serde_json::to_string_pretty(&h).map_err(|e| Failure::Runtime(e.into()))?;
-        print_out(&(text + "\n"))
+        Ok(text + "\n")
     } else {
         let head = format!(
             "{}\n  results: {}{} ({:.2} s wall time)\n\n",
@@ -400,7 +400,7 @@ fn run_fed(a: &RunArgs, feed: Feed) -> Result<(), Failure> {
                 .unwrap_or_default(),
             elapsed
         );
-        print_out(&(head + &table(&h) + "\nCaution: " + CAUTION + "\n"))
+        Ok(head + &table(&h) + "\nCaution: " + CAUTION + "\n")
     }
 }
 
@@ -537,5 +537,143 @@ fn event_plan(case: &LoadedCase) -> EventPlan {
         model: model.clone(),
         limits: watch_limits(case),
         stage_starts_s,
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::output::relay::BATCH_MESSAGES;
+    use hdf5::types::{TypeDescriptor, VarLenUnicode};
+    use std::path::PathBuf;
+
+    /// The shipped municipal case (invented demo data) made 20 min long with envelopes:
+    /// cycles, cycle jumps, events and detail windows in one run.
+    fn long_municipal(dir: &Path) -> PathBuf {
+        let root = Path::new(env!("CARGO_MANIFEST_DIR")).join("..");
+        let text = std::fs::read_to_string(root.join("cases/municipal-sand-gravel.json")).unwrap();
+        let mut case: Value = serde_json::from_str(&text).unwrap();
+        case["duration"] = Value::from("20 min");
+        case["output"] = serde_json::json!({ "store": "envelopes" });
+        let path = dir.join("municipal-20min.json");
+        std::fs::write(&path, case.to_string()).unwrap();
+        path
+    }
+
+    fn args(case: &Path, output: PathBuf) -> RunArgs {
+        RunArgs {
+            case: case.to_path_buf(),
+            output,
+            csv: true,
+            json: false,
+            quiet: true,
+            snapshot_every: 7,
+            force: false,
+            allow_large: false,
+        }
+    }
+
+    /// Every dataset of a result file by path: its shape and its values' bits (text as
+    /// bytes); the root attribute of the creation time left out.
+    fn datasets(path: &Path) -> BTreeMap<String, (Vec<usize>, Vec<u64>)> {
+        fn walk(g: &hdf5::Group, at: &str, out: &mut BTreeMap<String, (Vec<usize>, Vec<u64>)>) {
+            for name in g.member_names().unwrap() {
+                let path = format!("{at}/{name}");
+                if let Ok(ds) = g.dataset(&name) {
+                    let bits: Vec<u64> = match ds.dtype().unwrap().to_descriptor().unwrap() {
+                        TypeDescriptor::Float(_) => ds
+                            .read_raw::<f64>()
+                            .unwrap()
+                            .iter()
+                            .map(|x| x.to_bits())
+                            .collect(),
+                        TypeDescriptor::Unsigned(_) => ds.read_raw::<u64>().unwrap(),
+                        TypeDescriptor::VarLenUnicode => ds
+                            .read_raw::<VarLenUnicode>()
+                            .unwrap()
+                            .iter()
+                            .flat_map(|s| s.as_str().bytes().map(u64::from).chain([0]))
+                            .collect(),
+                        other => panic!("{path}: type {other:?} not compared"),
+                    };
+                    out.insert(path, (ds.shape(), bits));
+                } else {
+                    walk(&g.group(&name).unwrap(), &path, out);
+                }
+            }
+        }
+        let file = hdf5::File::open(path).unwrap();
+        let mut out = BTreeMap::new();
+        walk(&file, "", &mut out);
+        out
+    }
+
+    use std::collections::BTreeMap;
+
+    /// Checks: the output fed through the relay (its own thread) and fed directly (on the
+    /// solver's thread) are the same, dataset by dataset and bit for bit, and the CSV byte
+    /// for byte, on a run with cycles, cycle jumps, events, envelopes with detail windows
+    /// and a snapshot every 7 steps (thousands of heads rows, over 30 batches).
+    #[test]
+    fn the_relay_writes_what_direct_feeding_writes() {
+        let dir = tempfile::tempdir().unwrap();
+        let case = long_municipal(dir.path());
+        let (direct, relayed) = (dir.path().join("direct.h5"), dir.path().join("relay.h5"));
+        run_fed(&args(&case, direct.clone()), Feed::Direct).unwrap();
+        run_fed(&args(&case, relayed.clone()), Feed::Relay).unwrap();
+        let (a, b) = (datasets(&direct), datasets(&relayed));
+        for group in [
+            "/series/time",
+            "/cycles/index",
+            "/events/time",
+            "/jumps/from_time",
+        ] {
+            assert!(a[group].0[0] > 10, "{group}: {:?} values", a[group].0);
+        }
+        assert!(a["/snapshots/head"].0[0] > 30 * BATCH_MESSAGES / 7);
+        assert!(a.keys().any(|k| k.starts_with("/envelopes/")));
+        assert_eq!(a.keys().collect::<Vec<_>>(), b.keys().collect::<Vec<_>>());
+        for (path, value) in &a {
+            assert!(value == &b[path], "{path} differs");
+        }
+        let csv = |p: &Path| std::fs::read(p.with_extension("csv")).unwrap();
+        assert!(csv(&direct) == csv(&relayed), "the CSV files differ");
+    }
+
+    /// Checks: a sink that fails at the first step (a snapshot row one value short) stops
+    /// the run through the relay within a few batches of its 31 000 steps, comes back with
+    /// its error, and, dropped as `run` drops it, leaves no file behind.
+    #[test]
+    fn a_sink_error_stops_the_run_and_leaves_nothing() {
+        let dir = tempfile::tempdir().unwrap();
+        let case_dir = tempfile::tempdir().unwrap();
+        let case = load_case(&long_municipal(case_dir.path())).unwrap();
+        let model = &case.model;
+        let cells = Discretization::new(model, None).grid.cells();
+        let out = dir.path().join("out.h5");
+        let sink = ResultSink::create(
+            &out,
+            Some(&out.with_extension("csv")),
+            cells + 1,
+            1,
+            envelope_plan(&case),
+            event_plan(&case),
+        )
+        .unwrap();
+        assert_eq!(std::fs::read_dir(dir.path()).unwrap().count(), 2);
+        let (result, fed) = relay(sink, |r| simulate(model, r, Reporting { every: 1 }));
+        let summary = result.unwrap();
+        assert!(summary.stopped_early);
+        assert!(
+            summary.steps < 8 * BATCH_MESSAGES as u64,
+            "stopped at step {}",
+            summary.steps
+        );
+        let sink = fed.expect("no panic");
+        let e = sink.error.as_ref().expect("the sink's error");
+        assert!(e.to_string().contains("/snapshots/head"), "{e}");
+        drop(sink);
+        let left: Vec<_> = std::fs::read_dir(dir.path()).unwrap().collect();
+        assert!(left.is_empty(), "left behind: {left:?}");
     }
 }

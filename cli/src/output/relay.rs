@@ -269,3 +269,213 @@ impl StepObserver for Relay<'_> {
         self.push(Message::Jump(*j));
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use boreflux_solver::fixtures::demo_well;
+    use boreflux_solver::grid::ZONE_COUNT;
+    use boreflux_solver::slow::SlowState;
+    use boreflux_solver::system::Discretization;
+    use boreflux_solver::{EventKind, EventSet, JumpBound};
+
+    /// What a consumer was given, in order.
+    #[derive(Debug, Clone, PartialEq)]
+    enum Seen {
+        Step(StepValues, Vec<f64>),
+        Cycle(CycleView),
+        Jump(JumpView),
+    }
+
+    /// Records everything; fails at step `fail_at` or panics at step `panic_at`.
+    struct Recorder {
+        seen: Vec<Seen>,
+        snapshots: Snapshots,
+        fail_at: Option<u64>,
+        panic_at: Option<u64>,
+        failed: bool,
+    }
+
+    impl Recorder {
+        fn new(every: u64) -> Self {
+            Recorder {
+                seen: Vec::new(),
+                snapshots: Snapshots::every(every),
+                fail_at: None,
+                panic_at: None,
+                failed: false,
+            }
+        }
+    }
+
+    impl Consumer for Recorder {
+        fn step(&mut self, values: &StepValues, heads: &[f64]) {
+            assert!(Some(values.step) != self.panic_at, "recorder told to panic");
+            self.failed |= Some(values.step) == self.fail_at;
+            self.seen.push(Seen::Step(*values, heads.to_vec()));
+        }
+        fn cycle(&mut self, cycle: &CycleView) {
+            self.seen.push(Seen::Cycle(*cycle));
+        }
+        fn jump(&mut self, jump: &JumpView) {
+            self.seen.push(Seen::Jump(*jump));
+        }
+        fn failed(&self) -> bool {
+            self.failed
+        }
+        fn snapshots(&self) -> Snapshots {
+            self.snapshots
+        }
+    }
+
+    /// The recorder fed on the solver's thread, as the sink is on one core.
+    struct Direct<'a>(&'a mut Recorder);
+
+    impl StepObserver for Direct<'_> {
+        fn on_step(&mut self, s: &StepView<'_>) -> bool {
+            let heads = if self.0.snapshots.wants(s.step) {
+                s.heads
+            } else {
+                &[]
+            };
+            self.0.step(&s.values, heads);
+            !self.0.failed
+        }
+        fn on_cycle(&mut self, c: &CycleView) {
+            self.0.cycle(c);
+        }
+        fn on_jump(&mut self, j: &JumpView) {
+            self.0.jump(j);
+        }
+    }
+
+    /// A made-up run of `steps` steps (every value differs from step to step): a cycle
+    /// ends at every 13th step (reported before it, as `run` does), a jump follows every
+    /// 101st. Returns the steps the observer took before it asked to stop.
+    fn play(steps: u64, obs: &mut dyn StepObserver) -> u64 {
+        let model = demo_well();
+        let grid = Discretization::new(&model, None).grid;
+        let slow = SlowState::new(&model);
+        let mut heads = vec![0.0; grid.cells()];
+        for k in 1..=steps {
+            let x = k as f64;
+            for (i, h) in heads.iter_mut().enumerate() {
+                *h = x + i as f64 * 1e-3;
+            }
+            let mut events = EventSet::EMPTY;
+            if k % 17 == 0 {
+                events.insert(EventKind::Oscillation);
+            }
+            let values = StepValues {
+                step: k,
+                time_s: 0.5 * x,
+                dt_s: 0.5,
+                well_head_m: x.sin(),
+                screen_outer_head_m: x.cos(),
+                screen_flow_m3_s: 1e-3 * x,
+                face_flux_m_s: -1e-4 * x,
+                face_pore_velocity_m_s: 3e-4 * x,
+                face_gradient: 0.1 * x,
+                shear_proxy_pa: 2.0 * x,
+                cake_thickness_m: 1.0 / x,
+                cake_coverage: 1.0 / (1.0 + x),
+                skin: 5.0 - 1e-3 * x,
+                cake_pressure_pa: 7.0 * x,
+                fines_removed_kg: 1e-6 * x,
+                power_w: [x; ZONE_COUNT],
+                work_j: [2.0 * x; ZONE_COUNT],
+                screen_volume_m3: 1e-4 * x,
+                device_volume_m3: 2e-4 * x,
+                bypass_volume_m3: 3e-4 * x,
+                mass_residual: 1e-12 * x,
+                energy_residual: 2e-12 * x,
+                newton_iterations: (k % 5) as usize,
+                screen_inner_head_m: -x,
+                events,
+            };
+            if k % 13 == 0 {
+                obs.on_cycle(&CycleView {
+                    index: k / 13,
+                    start_s: x - 13.0,
+                    end_s: x,
+                    peak_outward_flux_m_s: x,
+                    peak_inward_flux_m_s: -x,
+                    rms_face_flux_m_s: 0.5 * x,
+                    peak_shear_pa: 3.0 * x,
+                    work_j: [x; ZONE_COUNT],
+                    cake_removed_m: 1e-3 * x,
+                });
+            }
+            let view = StepView {
+                values,
+                heads: &heads,
+                grid: &grid,
+                slow: &slow,
+            };
+            if !obs.on_step(&view) {
+                return k;
+            }
+            if k % 101 == 0 {
+                obs.on_jump(&JumpView {
+                    from_s: x,
+                    to_s: x + 10.0,
+                    first_cycle: k,
+                    cycles: 3,
+                    error_estimate: 0.25,
+                    bound: JumpBound::Move,
+                });
+            }
+        }
+        steps
+    }
+
+    /// Checks: through the relay, in batches of 7 messages (over 2 000 batches), the
+    /// consumer gets every step, cycle and jump in the order the run reported them, with
+    /// the heads of exactly the steps it keeps: the same record as fed directly.
+    #[test]
+    fn the_relay_keeps_every_message_in_order() {
+        let steps = 12_000;
+        let mut direct = Recorder::new(9);
+        assert_eq!(play(steps, &mut Direct(&mut direct)), steps);
+        let (taken, fed) = relay_in_batches(Recorder::new(9), 7, |r| play(steps, r));
+        assert_eq!(taken, steps);
+        let relayed = fed.expect("no panic");
+        let count = |f: fn(&Seen) -> bool| direct.seen.iter().filter(|s| f(s)).count();
+        assert_eq!(count(|s| matches!(s, Seen::Step(..))), steps as usize);
+        assert!(count(|s| matches!(s, Seen::Cycle(_))) > 900);
+        assert!(count(|s| matches!(s, Seen::Jump(_))) > 100);
+        assert!(count(|s| matches!(s, Seen::Step(_, h) if !h.is_empty())) > 1000);
+        assert_eq!(relayed.seen.len(), direct.seen.len());
+        for (i, (a, b)) in relayed.seen.iter().zip(&direct.seen).enumerate() {
+            assert_eq!(a, b, "message {i}");
+        }
+    }
+
+    /// Checks: a consumer that fails at step 1 000 stops the run within the batches in
+    /// flight ([`BATCHES`] + 1 of 64 messages), and comes back with its failure.
+    #[test]
+    fn a_failing_consumer_stops_the_run() {
+        let mut rec = Recorder::new(1_000_000);
+        rec.fail_at = Some(1_000);
+        let (taken, fed) = relay_in_batches(rec, 64, |r| play(1_000_000, r));
+        let rec = fed.expect("no panic");
+        assert!(rec.failed);
+        assert!(
+            taken <= 1_000 + (BATCHES as u64 + 1) * 64,
+            "the run went on to step {taken}"
+        );
+        assert!(matches!(rec.seen.last(), Some(Seen::Step(v, _)) if v.step == 1_000));
+    }
+
+    /// Checks: a panic on the worker thread stops the run and comes back as an error that
+    /// says why; it does not hang the run.
+    #[test]
+    fn a_panic_of_the_consumer_is_an_error_not_a_hang() {
+        let mut rec = Recorder::new(1);
+        rec.panic_at = Some(500);
+        let (taken, fed) = relay_in_batches(rec, 64, |r| play(1_000_000, r));
+        let e = fed.err().expect("the panic is an error");
+        assert!(e.to_string().contains("recorder told to panic"), "{e}");
+        assert!(taken <= 500 + (BATCHES as u64 + 1) * 64, "step {taken}");
+    }
+}
