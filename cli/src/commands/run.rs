@@ -16,7 +16,7 @@ use crate::case::Storage;
 use crate::case::{load_case, LoadedCase};
 use crate::output::envelope::EnvelopePlan;
 use crate::output::events::EventPlan;
-use crate::output::relay::relay;
+use crate::output::relay::{relay, Consumer, Fed};
 use crate::output::schema::{
     figure_values, GridData, Group, JumpSeries, ProgressSeries, RootAttr, SummaryText,
 };
@@ -331,38 +331,47 @@ fn run_fed(a: &RunArgs, feed: Feed) -> Result<String, Failure> {
                 },
             )
         };
-        let (result, fed) = match feed {
+        // The series are written out (`Consumer::end`: the last chunks, the datasets
+        // shorter than a chunk) while the tests below, and with the relay those of the well
+        // at the end, still run.
+        match feed {
             Feed::Direct => {
                 let result = time_loop(&mut sink);
-                (result, Ok(sink))
-            }
-            Feed::Relay => relay(sink, |r| time_loop(r)),
-        };
-        // The series are written out while the tests below may still run.
-        let fed = fed.map(|mut sink| {
-            if result.is_ok() && !interrupted() && sink.error.is_none() {
-                if let Err(e) = sink.write_series() {
-                    sink.error = Some(e);
+                if result.is_ok() && !interrupted() {
+                    sink.end();
                 }
+                (result, Fed::ready(sink))
             }
-            sink
-        });
-        (result, fed)
+            Feed::Relay => relay(sink, |r| {
+                let result = time_loop(r);
+                if result.is_ok() && !interrupted() {
+                    r.complete();
+                }
+                result
+            }),
+        }
     };
     let ((result, fed), baseline) = beside(step, || Baseline::new(model, &case.assessment));
     bar.finish_and_clear();
     if interrupted() {
-        // Returning drops the unfinished sink, which deletes both temporary files.
+        // Returning drops the unfinished sink (`Fed` waits for its thread), which deletes
+        // both temporary files.
         return Err(Failure::Runtime(anyhow!(INTERRUPTED_MESSAGE)));
     }
-    let mut sink =
-        fed.map_err(|e| Failure::Runtime(anyhow!("writing {}: {e}", a.output.display())))?;
-    if let Some(e) = sink.error.take() {
-        return Err(Failure::Runtime(anyhow!(
-            "writing {}: {e}",
-            a.output.display()
-        )));
-    }
+    let writing = |e: &dyn std::fmt::Display| {
+        Failure::Runtime(anyhow!("writing {}: {e}", a.output.display()))
+    };
+    // A failed write or a failed run is reported at once; else the sink is taken back only
+    // after the tests of the well at the end, which run while it writes.
+    let fed = if result.is_err() || fed.failed() {
+        let mut sink = fed.join().map_err(|e| writing(&e))?;
+        if let Some(e) = sink.error.take() {
+            return Err(writing(&e));
+        }
+        Fed::ready(sink)
+    } else {
+        fed
+    };
     let summary = result.map_err(|e| match e {
         SolverError::InvalidInput { .. } => Failure::Input(anyhow!("{}: {e}", a.case.display())),
         e => Failure::Runtime(anyhow!("simulation failed: {e}")),
@@ -372,6 +381,10 @@ fn run_fed(a: &RunArgs, feed: Feed) -> Result<String, Failure> {
     }
     progress.finish(baseline.undamaged_drawdown_m.as_ref().ok().copied());
     let assessed = assessment_from(&case, &baseline, &summary);
+    let mut sink = fed.join().map_err(|e| writing(&e))?;
+    if let Some(e) = sink.error.take() {
+        return Err(writing(&e));
+    }
     let h = headline(&case, &summary, &tracker, &assessed);
     write_summary(&mut sink, &h).map_err(|e| Failure::Runtime(e.into()))?;
     write_progress(&mut sink, &progress).map_err(|e| Failure::Runtime(e.into()))?;
@@ -669,7 +682,7 @@ mod tests {
             "stopped at step {}",
             summary.steps
         );
-        let sink = fed.expect("no panic");
+        let sink = fed.join().expect("no panic");
         let e = sink.error.as_ref().expect("the sink's error");
         assert!(e.to_string().contains("/snapshots/head"), "{e}");
         drop(sink);

@@ -9,17 +9,26 @@
 //! the same order; emptied batches come back over a second channel to be filled again, so
 //! after the first few batches the time loop allocates nothing.
 //!
+//! When the caller marks the run complete ([`Relay::complete`]), the worker also writes out
+//! what the consumer buffered ([`Consumer::end`]: the last chunks, the datasets shorter
+//! than a chunk) while the caller goes on (the virtual tests on the well at the end); the
+//! caller takes the consumer back with [`Fed::join`].
+//!
 //! An error of the consumer stops the run: the worker raises a flag that the relay reads at
 //! every step, and stops taking batches. The run then ends a batch or two later; the
 //! consumer comes back with its error, and the caller drops it unfinished (nothing partial
 //! is left on disk, `output/mod.rs`). A panic on the worker thread comes back as
 //! [`RelayError`], never as a hang: the worker's ends of both channels are dropped with it,
-//! so the relay's next send or wait fails and the run stops.
+//! so the relay's next send or wait fails and the run stops. [`Fed`] joins the worker when
+//! dropped, so a consumer dropped unfinished has deleted its files before the caller
+//! returns.
 
 use super::sink::Snapshots;
 use boreflux_solver::{CycleView, JumpView, StepObserver, StepValues, StepView};
 use std::sync::atomic::{AtomicBool, Ordering};
 use std::sync::mpsc::{channel, sync_channel, Receiver, Sender, SyncSender, TryRecvError};
+use std::sync::Arc;
+use std::thread::JoinHandle;
 
 /// Messages per batch: ~1 000 steps, ~0.3 MB of values, so a batch costs the solver's
 /// thread one channel send per ~1 000 steps. Assumption: large enough that the channel's
@@ -39,13 +48,15 @@ pub trait Consumer {
     fn cycle(&mut self, cycle: &CycleView);
     /// A jump over whole cycles.
     fn jump(&mut self, jump: &JumpView);
+    /// The run is complete (after its last message): write out what is buffered.
+    fn end(&mut self);
     /// Whether it failed (the run is then stopped).
     fn failed(&self) -> bool;
     /// The steps whose heads it keeps.
     fn snapshots(&self) -> Snapshots;
 }
 
-/// The worker thread panicked; the consumer and what it wrote are gone.
+/// The worker thread could not start or panicked; the consumer and what it wrote are gone.
 #[derive(Debug, thiserror::Error)]
 #[error("the output thread failed: {0}")]
 pub struct RelayError(String);
@@ -57,6 +68,8 @@ enum Message {
     Step(StepValues, usize),
     Cycle(CycleView),
     Jump(JumpView),
+    /// The run is complete.
+    End,
 }
 
 /// Messages and the heads of the snapshot steps among them, in order.
@@ -67,7 +80,7 @@ struct Batch {
 }
 
 /// The solver thread's end of the relay (a [`StepObserver`]).
-pub struct Relay<'a> {
+pub struct Relay {
     batch: Batch,
     capacity: usize,
     /// None once closed or once the worker is gone.
@@ -75,57 +88,73 @@ pub struct Relay<'a> {
     free: Receiver<Batch>,
     allocated: usize,
     snapshots: Snapshots,
-    failed: &'a AtomicBool,
+    failed: Arc<AtomicBool>,
 }
 
-/// Runs `body` with a [`Relay`] that feeds `consumer` on a scoped thread; returns what
-/// `body` returned and the consumer, fed with every message the relay took, in order (or
-/// the worker's panic).
-pub fn relay<C: Consumer + Send, R>(
+/// The consumer after the run: still being fed on the worker thread, or at hand.
+pub struct Fed<C> {
+    worker: Option<JoinHandle<C>>,
+    ready: Option<Result<C, RelayError>>,
+    failed: Arc<AtomicBool>,
+}
+
+/// Runs `body` with a [`Relay`] that feeds `consumer` on a thread of its own; returns what
+/// `body` returned and the consumer, fed with every message the relay took, in order.
+pub fn relay<C: Consumer + Send + 'static, R>(
     consumer: C,
-    body: impl FnOnce(&mut Relay<'_>) -> R,
-) -> (R, Result<C, RelayError>) {
+    body: impl FnOnce(&mut Relay) -> R,
+) -> (R, Fed<C>) {
     relay_in_batches(consumer, BATCH_MESSAGES, body)
 }
 
 /// [`relay`] with `capacity` messages per batch.
-fn relay_in_batches<C: Consumer + Send, R>(
+fn relay_in_batches<C: Consumer + Send + 'static, R>(
     consumer: C,
     capacity: usize,
-    body: impl FnOnce(&mut Relay<'_>) -> R,
-) -> (R, Result<C, RelayError>) {
-    let failed = AtomicBool::new(false);
+    body: impl FnOnce(&mut Relay) -> R,
+) -> (R, Fed<C>) {
+    let failed = Arc::new(AtomicBool::new(false));
     let snapshots = consumer.snapshots();
-    std::thread::scope(|scope| {
-        let (full_tx, full_rx) = sync_channel::<Batch>(BATCHES);
-        let (free_tx, free_rx) = channel::<Batch>();
-        let failed = &failed;
-        let worker = std::thread::Builder::new()
-            .name("boreflux-output".to_owned())
-            .spawn_scoped(scope, move || feed(consumer, &full_rx, &free_tx, failed));
-        let worker = match worker {
-            Ok(w) => w,
-            Err(e) => {
-                // No thread: the consumer went with the failed spawn; nothing ran.
-                let mut dead = Relay::new(capacity, None, free_rx, snapshots, failed);
-                let r = body(&mut dead);
-                return (r, Err(RelayError(format!("cannot start it: {e}"))));
-            }
-        };
-        let mut relay = Relay::new(capacity, Some(full_tx), free_rx, snapshots, failed);
-        let r = body(&mut relay);
-        relay.close();
-        drop(relay);
-        let fed = worker.join().map_err(|panic| {
-            let text = panic
-                .downcast_ref::<&str>()
-                .map(|s| (*s).to_owned())
-                .or_else(|| panic.downcast_ref::<String>().cloned())
-                .unwrap_or_else(|| "a panic".to_owned());
-            RelayError(text)
+    let (full_tx, full_rx) = sync_channel::<Batch>(BATCHES);
+    let (free_tx, free_rx) = channel::<Batch>();
+    let flag = Arc::clone(&failed);
+    let worker = std::thread::Builder::new()
+        .name("boreflux-output".to_owned())
+        .spawn(move || {
+            let _raise = RaiseOnPanic(&flag);
+            feed(consumer, &full_rx, &free_tx, &flag)
         });
-        (r, fed)
-    })
+    let (full, fed) = match worker {
+        Ok(handle) => (
+            Some(full_tx),
+            Fed {
+                worker: Some(handle),
+                ready: None,
+                failed: Arc::clone(&failed),
+            },
+        ),
+        // No thread: the consumer went with the failed spawn; the run stops at once.
+        Err(e) => (
+            None,
+            Fed {
+                worker: None,
+                ready: Some(Err(RelayError(format!("cannot start it: {e}")))),
+                failed: Arc::clone(&failed),
+            },
+        ),
+    };
+    let mut relay = Relay {
+        batch: Batch::with_capacity(capacity),
+        capacity,
+        full,
+        free: free_rx,
+        allocated: 1,
+        snapshots,
+        failed,
+    };
+    let r = body(&mut relay);
+    relay.close();
+    (r, fed)
 }
 
 /// The worker: feeds every message of every batch to `consumer`, in order, and returns
@@ -146,6 +175,7 @@ fn feed<C: Consumer>(
                 }
                 Message::Cycle(c) => consumer.cycle(c),
                 Message::Jump(j) => consumer.jump(j),
+                Message::End => consumer.end(),
             }
             if consumer.failed() {
                 failed.store(true, Ordering::Relaxed);
@@ -160,23 +190,66 @@ fn feed<C: Consumer>(
     consumer
 }
 
-impl<'a> Relay<'a> {
-    fn new(
-        capacity: usize,
-        full: Option<SyncSender<Batch>>,
-        free: Receiver<Batch>,
-        snapshots: Snapshots,
-        failed: &'a AtomicBool,
-    ) -> Self {
-        Relay {
-            batch: Batch::with_capacity(capacity),
-            capacity,
-            full,
-            free,
-            allocated: 1,
-            snapshots,
-            failed,
+/// Raises the failure flag when the worker unwinds from a panic.
+struct RaiseOnPanic<'a>(&'a AtomicBool);
+
+impl Drop for RaiseOnPanic<'_> {
+    fn drop(&mut self) {
+        if std::thread::panicking() {
+            self.0.store(true, Ordering::Relaxed);
         }
+    }
+}
+
+impl<C> Fed<C> {
+    /// The consumer fed directly, on the caller's thread.
+    pub fn ready(consumer: C) -> Self {
+        Fed {
+            worker: None,
+            ready: Some(Ok(consumer)),
+            failed: Arc::new(AtomicBool::new(false)),
+        }
+    }
+
+    /// Whether the worker has seen the consumer fail (or it could not start); a consumer
+    /// at hand is asked after [`Fed::join`].
+    pub fn failed(&self) -> bool {
+        self.failed.load(Ordering::Relaxed) || matches!(self.ready, Some(Err(_)))
+    }
+
+    /// Waits for the worker to feed the last message; the consumer, or the worker's panic.
+    pub fn join(mut self) -> Result<C, RelayError> {
+        if let Some(handle) = self.worker.take() {
+            return handle.join().map_err(|panic| {
+                let text = panic
+                    .downcast_ref::<&str>()
+                    .map(|s| (*s).to_owned())
+                    .or_else(|| panic.downcast_ref::<String>().cloned())
+                    .unwrap_or_else(|| "a panic".to_owned());
+                RelayError(text)
+            });
+        }
+        self.ready
+            .take()
+            .unwrap_or_else(|| Err(RelayError("already joined".to_owned())))
+    }
+}
+
+impl<C> Drop for Fed<C> {
+    /// Waits for the worker: a consumer dropped unfinished there deletes its temporary
+    /// files before the caller returns (and the process exits).
+    fn drop(&mut self) {
+        if let Some(handle) = self.worker.take() {
+            let _ = handle.join();
+        }
+    }
+}
+
+impl Relay {
+    /// Marks the run complete: after the messages so far, the worker calls
+    /// [`Consumer::end`].
+    pub fn complete(&mut self) {
+        self.push(Message::End);
     }
 
     /// Appends a message; sends the batch when full. False when the worker is gone.
@@ -245,7 +318,7 @@ impl Batch {
     }
 }
 
-impl StepObserver for Relay<'_> {
+impl StepObserver for Relay {
     fn on_step(&mut self, s: &StepView<'_>) -> bool {
         if self.failed.load(Ordering::Relaxed) {
             return false;
@@ -285,6 +358,7 @@ mod tests {
         Step(StepValues, Vec<f64>),
         Cycle(CycleView),
         Jump(JumpView),
+        End,
     }
 
     /// Records everything; fails at step `fail_at` or panics at step `panic_at`.
@@ -319,6 +393,9 @@ mod tests {
         }
         fn jump(&mut self, jump: &JumpView) {
             self.seen.push(Seen::Jump(*jump));
+        }
+        fn end(&mut self) {
+            self.seen.push(Seen::End);
         }
         fn failed(&self) -> bool {
             self.failed
@@ -431,15 +508,22 @@ mod tests {
 
     /// Checks: through the relay, in batches of 7 messages (over 2 000 batches), the
     /// consumer gets every step, cycle and jump in the order the run reported them, with
-    /// the heads of exactly the steps it keeps: the same record as fed directly.
+    /// the heads of exactly the steps it keeps, and the end of the run last: the same
+    /// record as fed directly.
     #[test]
     fn the_relay_keeps_every_message_in_order() {
         let steps = 12_000;
         let mut direct = Recorder::new(9);
         assert_eq!(play(steps, &mut Direct(&mut direct)), steps);
-        let (taken, fed) = relay_in_batches(Recorder::new(9), 7, |r| play(steps, r));
+        direct.end();
+        let (taken, fed) = relay_in_batches(Recorder::new(9), 7, |r| {
+            let taken = play(steps, r);
+            r.complete();
+            taken
+        });
         assert_eq!(taken, steps);
-        let relayed = fed.expect("no panic");
+        assert_eq!(direct.seen.last(), Some(&Seen::End));
+        let relayed = fed.join().expect("no panic");
         let count = |f: fn(&Seen) -> bool| direct.seen.iter().filter(|s| f(s)).count();
         assert_eq!(count(|s| matches!(s, Seen::Step(..))), steps as usize);
         assert!(count(|s| matches!(s, Seen::Cycle(_))) > 900);
@@ -458,7 +542,8 @@ mod tests {
         let mut rec = Recorder::new(1_000_000);
         rec.fail_at = Some(1_000);
         let (taken, fed) = relay_in_batches(rec, 64, |r| play(1_000_000, r));
-        let rec = fed.expect("no panic");
+        assert!(fed.failed());
+        let rec = fed.join().expect("no panic");
         assert!(rec.failed);
         assert!(
             taken <= 1_000 + (BATCHES as u64 + 1) * 64,
@@ -474,7 +559,8 @@ mod tests {
         let mut rec = Recorder::new(1);
         rec.panic_at = Some(500);
         let (taken, fed) = relay_in_batches(rec, 64, |r| play(1_000_000, r));
-        let e = fed.err().expect("the panic is an error");
+        assert!(fed.failed(), "the panic raised the flag");
+        let e = fed.join().err().expect("the panic is an error");
         assert!(e.to_string().contains("recorder told to panic"), "{e}");
         assert!(taken <= 500 + (BATCHES as u64 + 1) * 64, "step {taken}");
     }

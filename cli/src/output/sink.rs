@@ -245,6 +245,14 @@ impl Consumer for ResultSink {
         StepObserver::on_jump(self, jump);
     }
 
+    fn end(&mut self) {
+        if self.error.is_none() {
+            if let Err(e) = self.write_series() {
+                self.error = Some(e);
+            }
+        }
+    }
+
     fn failed(&self) -> bool {
         self.error.is_some()
     }
