@@ -655,7 +655,8 @@ mod tests {
 
     /// Checks: a sink that fails at the first step (a snapshot row one value short) stops
     /// the run through the relay within a few batches of its 31 000 steps, comes back with
-    /// its error, and, dropped as `run` drops it, leaves no file behind.
+    /// its error, and, dropped as `run` drops it, leaves no file behind; fed directly, it
+    /// stops the run at that step.
     #[test]
     fn a_sink_error_stops_the_run_and_leaves_nothing() {
         let dir = tempfile::tempdir().unwrap();
@@ -664,15 +665,18 @@ mod tests {
         let model = &case.model;
         let cells = Discretization::new(model, None).grid.cells();
         let out = dir.path().join("out.h5");
-        let sink = ResultSink::create(
-            &out,
-            Some(&out.with_extension("csv")),
-            cells + 1,
-            1,
-            envelope_plan(&case),
-            event_plan(&case),
-        )
-        .unwrap();
+        let bad_sink = || {
+            ResultSink::create(
+                &out,
+                Some(&out.with_extension("csv")),
+                cells + 1,
+                1,
+                envelope_plan(&case),
+                event_plan(&case),
+            )
+            .unwrap()
+        };
+        let sink = bad_sink();
         assert_eq!(std::fs::read_dir(dir.path()).unwrap().count(), 2);
         let (result, fed) = relay(sink, |r| simulate(model, r, Reporting { every: 1 }));
         let summary = result.unwrap();
@@ -682,10 +686,24 @@ mod tests {
             "stopped at step {}",
             summary.steps
         );
+        assert!(fed.failed());
         let sink = fed.join().expect("no panic");
         let e = sink.error.as_ref().expect("the sink's error");
         assert!(e.to_string().contains("/snapshots/head"), "{e}");
         drop(sink);
+        let left: Vec<_> = std::fs::read_dir(dir.path()).unwrap().collect();
+        assert!(left.is_empty(), "left behind: {left:?}");
+        // Fed directly (one core): the run stops at the failing step.
+        let mut sink = bad_sink();
+        let summary = simulate(model, &mut sink, Reporting { every: 1 }).unwrap();
+        assert!(
+            summary.stopped_early && summary.steps == 1,
+            "{}",
+            summary.steps
+        );
+        let fed = Fed::ready(sink);
+        assert!(fed.failed());
+        drop(fed);
         let left: Vec<_> = std::fs::read_dir(dir.path()).unwrap().collect();
         assert!(left.is_empty(), "left behind: {left:?}");
     }

@@ -211,12 +211,6 @@ impl<C> Fed<C> {
         }
     }
 
-    /// Whether the worker has seen the consumer fail (or it could not start); a consumer
-    /// at hand is asked after [`Fed::join`].
-    pub fn failed(&self) -> bool {
-        self.failed.load(Ordering::Relaxed) || matches!(self.ready, Some(Err(_)))
-    }
-
     /// Waits for the worker to feed the last message; the consumer, or the worker's panic.
     pub fn join(mut self) -> Result<C, RelayError> {
         if let Some(handle) = self.worker.take() {
@@ -232,6 +226,19 @@ impl<C> Fed<C> {
         self.ready
             .take()
             .unwrap_or_else(|| Err(RelayError("already joined".to_owned())))
+    }
+}
+
+impl<C: Consumer> Fed<C> {
+    /// Whether the consumer failed: seen by the worker (or the worker could not start or
+    /// panicked), or, at hand, its own word.
+    pub fn failed(&self) -> bool {
+        self.failed.load(Ordering::Relaxed)
+            || match &self.ready {
+                Some(Ok(c)) => c.failed(),
+                Some(Err(_)) => true,
+                None => false,
+            }
     }
 }
 
