@@ -17,7 +17,8 @@ use boreflux_solver::grid::Zone;
 use boreflux_solver::safety::CAUTION;
 use boreflux_solver::{Reporting, StepObserver, StepView};
 use common::{
-    bad_dir, boreflux, cases_dir, dir_entries, interrupt, shipped_cases, stderr_of, stdout_of,
+    bad_dir, boreflux, cases_dir, dir_entries, interrupt, repo_dir, shipped_cases, stderr_of,
+    stdout_of, write,
 };
 use hdf5::types::VarLenUnicode;
 use hdf5::Location;
@@ -1250,6 +1251,41 @@ fn interrupted_run_leaves_nothing() {
     assert_no_panic(&stderr, "interrupted run");
     assert!(!status.success(), "an interrupted run reported success");
     assert_nothing_left(dir.path(), &format!("after Ctrl-C (exit status {status})"));
+}
+
+/// Checks: a write that fails in the middle of a run (the CSV file over the size limit
+/// `ulimit -f` sets, with SIGXFSZ ignored so the write returns an error instead of
+/// killing the process) stops the run with exit 1 naming the file, and leaves neither
+/// output nor temporary file (output/mod.rs; the writing is on its own thread when there
+/// are two cores, output/relay.rs). The case, the shipped sine benchmark case cut to
+/// 300 s with every step kept (invented benchmark data), writes about 10 MB of CSV; the
+/// limit is 2 000 blocks (1 or 2 MB, by the shell's block size).
+#[cfg(unix)]
+#[test]
+fn a_write_error_mid_run_leaves_nothing() {
+    let dir = tempfile::tempdir().unwrap();
+    let case_dir = tempfile::tempdir().unwrap();
+    let text = std::fs::read_to_string(repo_dir().join("benches/cases/sine-60m.json")).unwrap();
+    let mut case: Value = serde_json::from_str(&text).unwrap();
+    case["duration"] = Value::from(300.0);
+    case["output"]["store"] = Value::from("steps");
+    let case_path = write(case_dir.path(), "sine.json", &case.to_string());
+    let o = std::process::Command::new("sh")
+        .current_dir(dir.path())
+        .arg("-c")
+        .arg(r#"trap '' XFSZ; ulimit -f 2000 && exec "$0" run "$1" -o out.h5 --csv -q"#)
+        .arg(env!("CARGO_BIN_EXE_boreflux"))
+        .arg(&case_path)
+        .output()
+        .unwrap();
+    assert_code(&o, 1, "run over the file size limit");
+    let stderr = stderr_of(&o);
+    assert_no_panic(&stderr, "write error");
+    assert!(
+        stderr.contains("out.csv"),
+        "the error names the file: {stderr}"
+    );
+    assert_nothing_left(dir.path(), "after a write error");
 }
 
 // ---------------------------------------------------------------------------------------

@@ -18,10 +18,12 @@ use crate::stepper::Stepper;
 use crate::water::GRAVITY_M_S2;
 use std::f64::consts::PI;
 
-/// What the observer sees after each reported step. Instantaneous values are at the end
-/// of the step; work and residuals accumulate the θ-point values that close the balances.
-#[derive(Debug, Clone, Copy)]
-pub struct StepView<'a> {
+/// The values of a reported step, owned: what an observer can copy and hand to another
+/// thread (the output of `boreflux run` is written on a thread of its own). Instantaneous
+/// values are at the end of the step; work and residuals accumulate the θ-point values
+/// that close the balances.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct StepValues {
     /// Step counter (1 = first step).
     pub step: u64,
     /// Time at the end of the step, s.
@@ -75,6 +77,19 @@ pub struct StepView<'a> {
     /// Events the solver saw in the steps since the previous report, this one included
     /// ([`EventKind::SOLVER`]).
     pub events: EventSet,
+}
+
+/// What the observer sees after each reported step: the step's [`StepValues`] and, borrowed
+/// from the time loop, the heads, the grid and the slow state.
+///
+/// `StepView` dereferences to its values, so `view.time_s` reads `view.values.time_s`: the
+/// view *is* its values plus the borrowed state, every observer reads the scalars the same
+/// way, and an observer that hands them on copies `view.values` (one `Copy` of plain data)
+/// without a field list of its own.
+#[derive(Debug, Clone, Copy)]
+pub struct StepView<'a> {
+    /// The step's own values.
+    pub values: StepValues,
     /// Cell heads, m (N values, inner to outer).
     pub heads: &'a [f64],
     /// The grid.
@@ -84,9 +99,17 @@ pub struct StepView<'a> {
     pub slow: &'a crate::slow::SlowState,
 }
 
+impl std::ops::Deref for StepView<'_> {
+    type Target = StepValues;
+
+    fn deref(&self) -> &StepValues {
+        &self.values
+    }
+}
+
 /// A moment of a run that a warning refers to or that the output keeps in detail
 /// (docs/formats.md, "Events"). The solver raises the kinds of [`EventKind::SOLVER`] in
-/// [`StepView::events`]; the limits of the run's checks (`assess::watch`) and the output
+/// [`StepValues::events`]; the limits of the run's checks (`assess::watch`) and the output
 /// (stage starts, jumps of the cake) raise the others.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord)]
 pub enum EventKind {
@@ -476,7 +499,7 @@ impl CycleAccumulator {
 
     /// Adds a step; returns the finished cycle when the step ends one. The stepper lands on
     /// every cycle boundary, so a step never straddles two cycles.
-    pub fn add(&mut self, v: &StepView<'_>) -> Option<CycleView> {
+    pub fn add(&mut self, v: &StepValues) -> Option<CycleView> {
         let q = v.face_flux_m_s;
         self.peak_out = self.peak_out.max(q);
         self.peak_in = self.peak_in.max(-q);

@@ -38,7 +38,7 @@ pub mod tridiag;
 pub mod water;
 
 pub use diagnostics::{
-    CycleView, EventKind, EventSet, JumpBound, JumpView, StepObserver, StepView,
+    CycleView, EventKind, EventSet, JumpBound, JumpView, StepObserver, StepValues, StepView,
 };
 pub use drive::Drive;
 pub use error::SolverError;

@@ -23,7 +23,8 @@ mod multiscale;
 mod watch;
 
 use crate::diagnostics::{
-    face_state, power_now, CycleAccumulator, Edge, EventKind, EventSet, StepObserver, StepView,
+    face_state, power_now, CycleAccumulator, Edge, EventKind, EventSet, StepObserver, StepValues,
+    StepView,
 };
 use crate::error::SolverError;
 use crate::grid::ZONE_COUNT;
@@ -571,7 +572,7 @@ pub fn run_from_state(
         if report {
             let power_w = power_now(model, &mut st);
             check_finite(&[("power", power_w.iter().sum())], st.time_s, summary.steps)?;
-            let view = StepView {
+            let values = StepValues {
                 step: summary.steps,
                 time_s: st.time_s,
                 dt_s: b.dt_s,
@@ -597,6 +598,9 @@ pub fn run_from_state(
                 newton_iterations: b.newton_iterations,
                 screen_inner_head_m: h_screen,
                 events,
+            };
+            let view = StepView {
+                values,
                 heads: &st.heads()[1..],
                 grid: &st.disc.grid,
                 slow: &slow,

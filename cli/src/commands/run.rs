@@ -16,6 +16,7 @@ use crate::case::Storage;
 use crate::case::{load_case, LoadedCase};
 use crate::output::envelope::EnvelopePlan;
 use crate::output::events::EventPlan;
+use crate::output::relay::{relay, Consumer, Fed};
 use crate::output::schema::{
     figure_values, GridData, Group, JumpSeries, ProgressSeries, RootAttr, SummaryText,
 };
@@ -83,9 +84,11 @@ impl Progress {
     }
 }
 
-/// Everything the run observes, in one observer.
-struct Observers<'a> {
-    sink: &'a mut ResultSink,
+/// Everything the run observes, in one observer, on the solver's thread: Ctrl-C, the
+/// extremes, the progress points (they read the slow state) and the bar; the output goes
+/// to `out`, the sink itself or the relay to its thread.
+struct Observers<'a, O: ?Sized> {
+    out: &'a mut O,
     tracker: &'a mut Tracker,
     progress: &'a mut Progress,
     bar: &'a ProgressBar,
@@ -94,7 +97,7 @@ struct Observers<'a> {
     jumps: &'a mut Vec<JumpView>,
 }
 
-impl StepObserver for Observers<'_> {
+impl<O: StepObserver + ?Sized> StepObserver for Observers<'_, O> {
     fn on_step(&mut self, s: &StepView<'_>) -> bool {
         if interrupted() {
             return false;
@@ -105,19 +108,19 @@ impl StepObserver for Observers<'_> {
             self.bar
                 .set_position((1000.0 * s.time_s / self.duration_s) as u64);
         }
-        self.sink.on_step(s)
+        self.out.on_step(s)
     }
 
     fn on_cycle(&mut self, c: &CycleView) {
         if !self.bar.is_hidden() {
             self.bar.set_message(format!("cycle {}", c.index + 1));
         }
-        self.sink.on_cycle(c);
+        self.out.on_cycle(c);
     }
 
     fn on_jump(&mut self, j: &JumpView) {
         self.jumps.push(*j);
-        self.sink.on_jump(j);
+        self.out.on_jump(j);
     }
 }
 
@@ -231,8 +234,34 @@ fn write_jumps(
     Ok(())
 }
 
+/// How the run's output is fed.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum Feed {
+    /// On the solver's thread.
+    Direct,
+    /// On a thread of its own (`output/relay.rs`).
+    Relay,
+}
+
+impl Feed {
+    /// The relay when the machine has a second core; on one core it would only add the
+    /// copies and the switches between the threads.
+    fn for_machine() -> Feed {
+        if cores() >= 2 {
+            Feed::Relay
+        } else {
+            Feed::Direct
+        }
+    }
+}
+
 /// Runs the command.
 pub fn run(a: &RunArgs) -> Result<(), Failure> {
+    print_out(&run_fed(a, Feed::for_machine())?)
+}
+
+/// Runs the command with the output fed as `feed` says; returns what it prints.
+fn run_fed(a: &RunArgs, feed: Feed) -> Result<String, Failure> {
     let case =
         load_case(&a.case).map_err(|e| Failure::Input(anyhow!("{}: {e}", a.case.display())))?;
     let model = &case.model;
@@ -281,49 +310,68 @@ pub fn run(a: &RunArgs) -> Result<(), Failure> {
     let started = std::time::Instant::now();
     let mut jumps = Vec::new();
     let step = || {
-        let mut obs = Observers {
-            jumps: &mut jumps,
-            sink: &mut sink,
-            tracker: &mut tracker,
-            progress: &mut progress,
-            bar: &bar,
-            duration_s: model.duration_s,
-        };
-        let result = simulate(
-            model,
-            &mut obs,
-            Reporting {
-                // Envelopes see every step; `numerics.output_every` thins steps only.
-                every: match case.storage {
-                    Storage::Steps => case.output_every,
-                    Storage::Envelopes { .. } => 1,
+        let mut time_loop = |out: &mut dyn StepObserver| {
+            let mut obs = Observers {
+                out,
+                jumps: &mut jumps,
+                tracker: &mut tracker,
+                progress: &mut progress,
+                bar: &bar,
+                duration_s: model.duration_s,
+            };
+            simulate(
+                model,
+                &mut obs,
+                Reporting {
+                    // Envelopes see every step; `numerics.output_every` thins steps only.
+                    every: match case.storage {
+                        Storage::Steps => case.output_every,
+                        Storage::Envelopes { .. } => 1,
+                    },
                 },
-            },
-        );
-        // The series are written out while the tests below may still run.
-        if result.is_ok() && !interrupted() && sink.error.is_none() {
-            if let Err(e) = sink.write_series() {
-                sink.error = Some(e);
+            )
+        };
+        // The series are written out (`Consumer::end`: the last chunks, the datasets
+        // shorter than a chunk) while the tests below, and with the relay those of the well
+        // at the end, still run.
+        match feed {
+            Feed::Direct => {
+                let result = time_loop(&mut sink);
+                if result.is_ok() && !interrupted() {
+                    sink.end();
+                }
+                (result, Fed::ready(sink))
             }
+            Feed::Relay => relay(sink, |r| {
+                let result = time_loop(r);
+                if result.is_ok() && !interrupted() {
+                    r.complete();
+                }
+                result
+            }),
         }
-        result
     };
-    // The tests of the well as built (the undamaged well's, the basis of the progress
-    // series and of the efficiencies, and the figures before) depend on the case alone:
-    // they run beside the run and the writing of its series when a second core is there.
-    // A failure is reported with the figures, it does not stop the run.
-    let (result, baseline) = beside(step, || Baseline::new(model, &case.assessment));
+    let ((result, fed), baseline) = beside(step, || Baseline::new(model, &case.assessment));
     bar.finish_and_clear();
     if interrupted() {
-        // Returning drops the unfinished sink, which deletes both temporary files.
+        // Returning drops the unfinished sink (`Fed` waits for its thread), which deletes
+        // both temporary files.
         return Err(Failure::Runtime(anyhow!(INTERRUPTED_MESSAGE)));
     }
-    if let Some(e) = sink.error.take() {
-        return Err(Failure::Runtime(anyhow!(
-            "writing {}: {e}",
-            a.output.display()
-        )));
-    }
+    let writing = |e: &dyn std::fmt::Display| {
+        Failure::Runtime(anyhow!("writing {}: {e}", a.output.display()))
+    };
+    // A failed write or a failed run is reported at once; else the sink is taken back only
+    // after the tests of the well at the end, which run while it writes.
+    let fed = if result.is_err() || fed.failed() {
+        let mut sink = fed.join().map_err(|e| writing(&e))?;
+        if let Some(e) = sink.error.take() {
+            return Err(writing(&e));
+        }
+        Fed::ready(sink)
+    } else {
+        fed
+    };
     let summary = result.map_err(|e| match e {
         SolverError::InvalidInput { .. } => Failure::Input(anyhow!("{}: {e}", a.case.display())),
         e => Failure::Runtime(anyhow!("simulation failed: {e}")),
@@ -333,6 +381,10 @@ pub fn run(a: &RunArgs) -> Result<(), Failure> {
     }
     progress.finish(baseline.undamaged_drawdown_m.as_ref().ok().copied());
     let assessed = assessment_from(&case, &baseline, &summary);
+    let mut sink = fed.join().map_err(|e| writing(&e))?;
+    if let Some(e) = sink.error.take() {
+        return Err(writing(&e));
+    }
     let h = headline(&case, &summary, &tracker, &assessed);
     write_summary(&mut sink, &h).map_err(|e| Failure::Runtime(e.into()))?;
     write_progress(&mut sink, &progress).map_err(|e| Failure::Runtime(e.into()))?;
@@ -346,7 +398,7 @@ pub fn run(a: &RunArgs) -> Result<(), Failure> {
     let elapsed = started.elapsed().as_secs_f64();
     if a.json {
         let text = serde_json::to_string_pretty(&h).map_err(|e| Failure::Runtime(e.into()))?;
-        print_out(&(text + "\n"))
+        Ok(text + "\n")
     } else {
         let head = format!(
             "{}\n  results: {}{} ({:.2} s wall time)\n\n",
@@ -361,15 +413,14 @@ pub fn run(a: &RunArgs) -> Result<(), Failure> {
                 .unwrap_or_default(),
             elapsed
         );
-        print_out(&(head + &table(&h) + "\nCaution: " + CAUTION + "\n"))
+        Ok(head + &table(&h) + "\nCaution: " + CAUTION + "\n")
     }
 }
 
 /// Runs `main` and `side` at once, `side` on a scoped thread when the machine has a second
 /// core, else one after the other; both results come back.
 fn beside<A, B: Send>(main: impl FnOnce() -> A, side: impl FnOnce() -> B + Send) -> (A, B) {
-    let cores = std::thread::available_parallelism().map_or(1, std::num::NonZeroUsize::get);
-    if cores < 2 {
+    if cores() < 2 {
         let b = side();
         return (main(), b);
     }
@@ -381,6 +432,11 @@ fn beside<A, B: Send>(main: impl FnOnce() -> A, side: impl FnOnce() -> B + Send)
             .unwrap_or_else(|panic| std::panic::resume_unwind(panic));
         (a, b)
     })
+}
+
+/// The cores the process may use.
+fn cores() -> usize {
+    std::thread::available_parallelism().map_or(1, std::num::NonZeroUsize::get)
 }
 
 /// Refuses output names that are the case file or a file the case reads, before anything
@@ -494,5 +550,161 @@ fn event_plan(case: &LoadedCase) -> EventPlan {
         model: model.clone(),
         limits: watch_limits(case),
         stage_starts_s,
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::output::relay::BATCH_MESSAGES;
+    use hdf5::types::{TypeDescriptor, VarLenUnicode};
+    use std::path::PathBuf;
+
+    /// The shipped municipal case (invented demo data) made 20 min long with envelopes:
+    /// cycles, cycle jumps, events and detail windows in one run.
+    fn long_municipal(dir: &Path) -> PathBuf {
+        let root = Path::new(env!("CARGO_MANIFEST_DIR")).join("..");
+        let text = std::fs::read_to_string(root.join("cases/municipal-sand-gravel.json")).unwrap();
+        let mut case: Value = serde_json::from_str(&text).unwrap();
+        case["duration"] = Value::from("20 min");
+        case["output"] = serde_json::json!({ "store": "envelopes" });
+        let path = dir.join("municipal-20min.json");
+        std::fs::write(&path, case.to_string()).unwrap();
+        path
+    }
+
+    fn args(case: &Path, output: PathBuf) -> RunArgs {
+        RunArgs {
+            case: case.to_path_buf(),
+            output,
+            csv: true,
+            json: false,
+            quiet: true,
+            snapshot_every: 7,
+            force: false,
+            allow_large: false,
+        }
+    }
+
+    /// Every dataset of a result file by path: its shape and its values' bits (text as
+    /// bytes); the root attribute of the creation time left out.
+    fn datasets(path: &Path) -> BTreeMap<String, (Vec<usize>, Vec<u64>)> {
+        fn walk(g: &hdf5::Group, at: &str, out: &mut BTreeMap<String, (Vec<usize>, Vec<u64>)>) {
+            for name in g.member_names().unwrap() {
+                let path = format!("{at}/{name}");
+                if let Ok(ds) = g.dataset(&name) {
+                    let bits: Vec<u64> = match ds.dtype().unwrap().to_descriptor().unwrap() {
+                        TypeDescriptor::Float(_) => ds
+                            .read_raw::<f64>()
+                            .unwrap()
+                            .iter()
+                            .map(|x| x.to_bits())
+                            .collect(),
+                        TypeDescriptor::Unsigned(_) => ds.read_raw::<u64>().unwrap(),
+                        TypeDescriptor::VarLenUnicode => ds
+                            .read_raw::<VarLenUnicode>()
+                            .unwrap()
+                            .iter()
+                            .flat_map(|s| s.as_str().bytes().map(u64::from).chain([0]))
+                            .collect(),
+                        other => panic!("{path}: type {other:?} not compared"),
+                    };
+                    out.insert(path, (ds.shape(), bits));
+                } else {
+                    walk(&g.group(&name).unwrap(), &path, out);
+                }
+            }
+        }
+        let file = hdf5::File::open(path).unwrap();
+        let mut out = BTreeMap::new();
+        walk(&file, "", &mut out);
+        out
+    }
+
+    use std::collections::BTreeMap;
+
+    /// Checks: the output fed through the relay (its own thread) and fed directly (on the
+    /// solver's thread) are the same, dataset by dataset and bit for bit, and the CSV byte
+    /// for byte, on a run with cycles, cycle jumps, events, envelopes with detail windows
+    /// and a snapshot every 7 steps (thousands of heads rows, over 30 batches).
+    #[test]
+    fn the_relay_writes_what_direct_feeding_writes() {
+        let dir = tempfile::tempdir().unwrap();
+        let case = long_municipal(dir.path());
+        let (direct, relayed) = (dir.path().join("direct.h5"), dir.path().join("relay.h5"));
+        run_fed(&args(&case, direct.clone()), Feed::Direct).unwrap();
+        run_fed(&args(&case, relayed.clone()), Feed::Relay).unwrap();
+        let (a, b) = (datasets(&direct), datasets(&relayed));
+        for group in [
+            "/series/time",
+            "/cycles/index",
+            "/events/time",
+            "/jumps/from_time",
+        ] {
+            assert!(a[group].0[0] > 10, "{group}: {:?} values", a[group].0);
+        }
+        assert!(a["/snapshots/head"].0[0] > 30 * BATCH_MESSAGES / 7);
+        assert!(a.keys().any(|k| k.starts_with("/envelopes/")));
+        assert_eq!(a.keys().collect::<Vec<_>>(), b.keys().collect::<Vec<_>>());
+        for (path, value) in &a {
+            assert!(value == &b[path], "{path} differs");
+        }
+        let csv = |p: &Path| std::fs::read(p.with_extension("csv")).unwrap();
+        assert!(csv(&direct) == csv(&relayed), "the CSV files differ");
+    }
+
+    /// Checks: a sink that fails at the first step (a snapshot row one value short) stops
+    /// the run through the relay within a few batches of its 31 000 steps, comes back with
+    /// its error, and, dropped as `run` drops it, leaves no file behind; fed directly, it
+    /// stops the run at that step.
+    #[test]
+    fn a_sink_error_stops_the_run_and_leaves_nothing() {
+        let dir = tempfile::tempdir().unwrap();
+        let case_dir = tempfile::tempdir().unwrap();
+        let case = load_case(&long_municipal(case_dir.path())).unwrap();
+        let model = &case.model;
+        let cells = Discretization::new(model, None).grid.cells();
+        let out = dir.path().join("out.h5");
+        let bad_sink = || {
+            ResultSink::create(
+                &out,
+                Some(&out.with_extension("csv")),
+                cells + 1,
+                1,
+                envelope_plan(&case),
+                event_plan(&case),
+            )
+            .unwrap()
+        };
+        let sink = bad_sink();
+        assert_eq!(std::fs::read_dir(dir.path()).unwrap().count(), 2);
+        let (result, fed) = relay(sink, |r| simulate(model, r, Reporting { every: 1 }));
+        let summary = result.unwrap();
+        assert!(summary.stopped_early);
+        assert!(
+            summary.steps < 8 * BATCH_MESSAGES as u64,
+            "stopped at step {}",
+            summary.steps
+        );
+        assert!(fed.failed());
+        let sink = fed.join().expect("no panic");
+        let e = sink.error.as_ref().expect("the sink's error");
+        assert!(e.to_string().contains("/snapshots/head"), "{e}");
+        drop(sink);
+        let left: Vec<_> = std::fs::read_dir(dir.path()).unwrap().collect();
+        assert!(left.is_empty(), "left behind: {left:?}");
+        // Fed directly (one core): the run stops at the failing step.
+        let mut sink = bad_sink();
+        let summary = simulate(model, &mut sink, Reporting { every: 1 }).unwrap();
+        assert!(
+            summary.stopped_early && summary.steps == 1,
+            "{}",
+            summary.steps
+        );
+        let fed = Fed::ready(sink);
+        assert!(fed.failed());
+        drop(fed);
+        let left: Vec<_> = std::fs::read_dir(dir.path()).unwrap().collect();
+        assert!(left.is_empty(), "left behind: {left:?}");
     }
 }

@@ -8,7 +8,7 @@ use super::h5::{H5Writer, SeriesHandle};
 use super::schema::EventSeries;
 use super::OutputError;
 use boreflux_solver::assess::watch::{LimitWatch, Limits};
-use boreflux_solver::{EventKind, EventSet, Model, StepView};
+use boreflux_solver::{EventKind, EventSet, Model, StepValues};
 use hdf5::types::VarLenUnicode;
 
 /// Events per chunk of the `/events` series (compressed like the series).
@@ -113,7 +113,7 @@ impl EventLog {
     }
 
     /// The events of a reported step, recorded.
-    pub fn on_step(&mut self, s: &StepView<'_>) -> Result<EventSet, OutputError> {
+    pub fn on_step(&mut self, s: &StepValues) -> Result<EventSet, OutputError> {
         let mut set = s.events.union(self.watch.check(s));
         let cake = [s.cake_coverage, s.cake_thickness_m];
         if self.cake_ref[0].is_nan() {

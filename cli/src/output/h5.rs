@@ -41,6 +41,10 @@ use super::{OutputError, TempTarget};
 /// Upper bound on the bytes buffered for one growable matrix (one chunk).
 const MATRIX_CHUNK_BYTES: usize = 256 * 1024;
 
+/// Hash slots of a growable dataset's chunk cache, which holds no bytes (see
+/// `Growable::create`); HDF5 wants at least one.
+const CHUNK_CACHE_SLOTS: usize = 1;
+
 type Result<T, E = OutputError> = std::result::Result<T, E>;
 
 /// An HDF5 file being written; appears at its final path only after [`H5Writer::finish`].
@@ -499,6 +503,10 @@ impl<T: H5Type + Copy> Growable<T> {
         if let Some(level) = plan.deflate {
             builder = builder.shuffle().deflate(level);
         }
+        // No chunk cache: the buffer in front of the dataset hands it whole chunks, so
+        // each is filtered and written when appended (on the output thread, during the
+        // run) rather than all at once when the dataset closes.
+        builder = builder.chunk_cache(CHUNK_CACHE_SLOTS, 0, 1.0);
         let ds = builder
             .create(plan.name.as_str())
             .map_err(hdf5_err(&self.object))?;

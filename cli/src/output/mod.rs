@@ -11,6 +11,7 @@ pub mod csv;
 pub mod envelope;
 pub mod events;
 pub mod h5;
+pub mod relay;
 pub mod schema;
 pub mod sink;
 

@@ -23,7 +23,7 @@ use crate::summary::Headline;
 use boreflux_solver::assess::figures::RunFigures;
 use boreflux_solver::assess::{StepCoefficients, WellFigures};
 use boreflux_solver::grid::{Zone, ZONE_COUNT};
-use boreflux_solver::{CycleView, EventKind, JumpView, StepView};
+use boreflux_solver::{CycleView, EventKind, JumpView, StepValues};
 
 /// SI unit of an output, as written in the `units` attribute and the docs.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -345,7 +345,7 @@ impl Step {
     }
 
     /// The value of this quantity in a step.
-    pub fn value(self, s: &StepView<'_>) -> f64 {
+    pub fn value(self, s: &StepValues) -> f64 {
         match self {
             Step::Time => s.time_s,
             Step::WellHead => s.well_head_m,

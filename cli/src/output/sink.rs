@@ -5,9 +5,10 @@ use super::csv::{Column, CsvWriter};
 use super::envelope::{EnvelopePlan, Envelopes};
 use super::events::{EventLog, EventPlan};
 use super::h5::{H5Writer, MatrixHandle, SeriesHandle};
+use super::relay::Consumer;
 use super::schema::{Cycle, Group, SnapshotData, Step, CYCLE_INDEX};
 use super::OutputError;
-use boreflux_solver::{CycleView, JumpView, StepObserver, StepView};
+use boreflux_solver::{CycleView, JumpView, StepObserver, StepValues, StepView};
 use std::path::Path;
 
 /// Values per chunk of the time series: 64 KiB of f64. The report and the other readers
@@ -38,7 +39,7 @@ pub struct ResultSink {
     cycles: Vec<(Cycle, SeriesHandle)>,
     snap_time: SeriesHandle,
     snap_head: MatrixHandle,
-    snapshot_every: u64,
+    snapshots: Snapshots,
     csv: Option<CsvWriter>,
     row: Vec<f64>,
     /// Per-cycle envelopes, when the case keeps them (`/series` then holds the detail).
@@ -136,7 +137,7 @@ impl ResultSink {
             cycles,
             snap_time,
             snap_head,
-            snapshot_every: snapshot_every.max(1),
+            snapshots: Snapshots::every(snapshot_every),
             csv,
             row: Vec::with_capacity(n_series),
             envelopes,
@@ -151,7 +152,8 @@ impl ResultSink {
         &mut self.writer
     }
 
-    fn write_step(&mut self, s: &StepView<'_>) -> Result<(), OutputError> {
+    /// Writes a step; `heads` are read only at the steps [`Self::snapshots`] wants.
+    fn write_step(&mut self, s: &StepValues, heads: &[f64]) -> Result<(), OutputError> {
         self.row.clear();
         for (step, _) in &self.series.handles {
             self.row.push(step.value(s));
@@ -164,9 +166,9 @@ impl ResultSink {
             None => write(&self.row)?,
         }
         self.closing = false;
-        if s.step % self.snapshot_every == 0 || s.step == 1 {
+        if self.snapshots.wants(s.step) {
             self.snap_time.append(&[s.time_s])?;
-            self.snap_head.append_row(s.heads)?;
+            self.snap_head.append_row(heads)?;
         }
         Ok(())
     }
@@ -204,16 +206,67 @@ impl ResultSink {
     }
 }
 
+/// The steps whose cell heads the sink keeps in `/snapshots`: the first and every
+/// `every`-th.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct Snapshots {
+    every: u64,
+}
+
+impl Snapshots {
+    /// Every `every`-th step (and the first).
+    pub fn every(every: u64) -> Self {
+        Snapshots {
+            every: every.max(1),
+        }
+    }
+
+    /// Whether the heads of step `step` are kept.
+    pub fn wants(self, step: u64) -> bool {
+        step % self.every == 0 || step == 1
+    }
+}
+
+/// Fed on the relay's worker thread (`output/relay.rs`), from the step's owned values.
+impl Consumer for ResultSink {
+    fn step(&mut self, values: &StepValues, heads: &[f64]) {
+        if self.error.is_none() {
+            if let Err(e) = self.write_step(values, heads) {
+                self.error = Some(e);
+            }
+        }
+    }
+
+    fn cycle(&mut self, cycle: &CycleView) {
+        StepObserver::on_cycle(self, cycle);
+    }
+
+    fn jump(&mut self, jump: &JumpView) {
+        StepObserver::on_jump(self, jump);
+    }
+
+    fn end(&mut self) {
+        if self.error.is_none() {
+            if let Err(e) = self.write_series() {
+                self.error = Some(e);
+            }
+        }
+    }
+
+    fn failed(&self) -> bool {
+        self.error.is_some()
+    }
+
+    fn snapshots(&self) -> Snapshots {
+        self.snapshots
+    }
+}
+
+/// Fed directly on the solver's thread.
 impl StepObserver for ResultSink {
     fn on_step(&mut self, s: &StepView<'_>) -> bool {
-        if self.error.is_some() {
-            return false;
-        }
-        if let Err(e) = self.write_step(s) {
-            self.error = Some(e);
-            return false;
-        }
-        true
+        Consumer::step(self, &s.values, s.heads);
+        self.error.is_none()
     }
 
     fn on_jump(&mut self, jump: &JumpView) {

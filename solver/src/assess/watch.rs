@@ -5,7 +5,7 @@
 //! of that kind.
 
 use super::checks::{grain_reynolds, slot_velocity_m_s};
-use crate::diagnostics::{Edge, EventKind, EventSet, StepView};
+use crate::diagnostics::{Edge, EventKind, EventSet, StepValues};
 use crate::model::Model;
 use crate::safety::ENTRANCE_VELOCITY_RULE_M_S;
 use crate::water::GRAVITY_M_S2;
@@ -47,7 +47,7 @@ impl LimitWatch {
     }
 
     /// The limits crossed upward at this step.
-    pub fn check(&mut self, v: &StepView<'_>) -> EventSet {
+    pub fn check(&mut self, v: &StepValues) -> EventSet {
         let m = &self.model;
         let l = &self.limits;
         let mut out = EventSet::EMPTY;
