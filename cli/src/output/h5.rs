@@ -400,7 +400,7 @@ impl MatrixHandle {
 /// What the writer needs from every growable dataset at finish or drop.
 trait Pending: Send {
     /// Writes what is buffered, creating the dataset first if it is not in the file yet
-    /// (with a chunk of its own length when shorter than one chunk).
+    /// (whole, contiguous and uncompressed when it never filled one chunk).
     fn flush_last(&mut self) -> Result<()>;
     fn close(&mut self);
 }
