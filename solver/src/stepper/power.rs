@@ -174,17 +174,20 @@ mod tests {
         m
     }
 
+    /// A stepper on `m` with its cake as given.
+    fn stepper(m: &Model) -> Stepper {
+        let cake = m.cake.map(|c| crate::cake::CakeState {
+            thickness_m: c.thickness_m,
+            coverage: c.coverage,
+        });
+        Stepper::new(m, cake)
+    }
+
     #[test]
     fn end_power_matches_the_face_by_face_sum() {
         for nonlinear in [false, true] {
             let m = model(nonlinear);
-            let mut st = Stepper::new(
-                &m,
-                m.cake.map(|c| crate::cake::CakeState {
-                    thickness_m: c.thickness_m,
-                    coverage: c.coverage,
-                }),
-            );
+            let mut st = stepper(&m);
             for _ in 0..37 {
                 st.step(&m, 0.01, 0.5).unwrap();
             }
@@ -221,13 +224,7 @@ mod tests {
             if !cake {
                 m.cake = None;
             }
-            let mut st = Stepper::new(
-                &m,
-                m.cake.map(|c| crate::cake::CakeState {
-                    thickness_m: c.thickness_m,
-                    coverage: c.coverage,
-                }),
-            );
+            let mut st = stepper(&m);
             for _ in 0..23 {
                 st.step(&m, 0.01, 0.5).unwrap();
             }
