@@ -28,10 +28,6 @@ const SECONDS_PER_CELL_STEP: f64 = 180e-9;
 fn series_per_row() -> f64 {
     crate::output::schema::Step::all().len() as f64
 }
-/// Bytes per reported step in the HDF5 file: one 8-byte float per series.
-fn h5_bytes_per_row() -> f64 {
-    series_per_row() * 8.0
-}
 /// Bytes per reported step in the CSV file: one column of up to 24 characters per series
 /// (`-1.2345678901234567e-300,`).
 fn csv_bytes_per_row() -> f64 {
@@ -42,6 +38,18 @@ fn csv_bytes_per_row() -> f64 {
 /// level 4, and 0.49 on the recorded surge run at level 1; the upper figure 0.55 allows
 /// for series that compress less.
 const COMPRESSED_FRACTION: f64 = 0.55;
+
+/// Bytes of `datasets` datasets of `values` 8-byte values each, in chunks of `chunk`
+/// values: compressed once a dataset fills its first chunk, written whole and uncompressed
+/// below that (`output/h5.rs`, docs/formats.md).
+fn stored_bytes(datasets: f64, values: f64, chunk: usize) -> f64 {
+    let fraction = if values < chunk as f64 {
+        1.0
+    } else {
+        COMPRESSED_FRACTION
+    };
+    fraction * 8.0 * datasets * values
+}
 /// Fixed part of an HDF5 file: grid, attributes, cycle tables, headers. Measured: the
 /// shipped cases' files are 1.2 to 2.8 MB, of which the series take all but about 0.5 MB.
 const H5_FIXED_BYTES: f64 = 1e6;
@@ -162,14 +170,18 @@ pub fn run_cost(case: &LoadedCase, csv: bool, snapshot_every: u64) -> RunCost {
                 long_cycles,
             );
             // Min, max and RMS of every series but time, and the two cycle times.
-            let per_cycle = (3.0 * (series_per_row() - 1.0) + 2.0) * 8.0;
+            let envelopes = 3.0 * (series_per_row() - 1.0) + 2.0;
             // The kept cycles at the mean steps of a cycle.
             let rows = if long_cycles {
                 c.steps
             } else {
                 c.steps * k.kept / cycles
             };
-            (rows, cycles * per_cycle, Some(k))
+            (
+                rows,
+                stored_bytes(envelopes, cycles, crate::output::envelope::CHUNK),
+                Some(k),
+            )
         }
     };
     let snapshots = if snapshot_every == 0 {
@@ -178,8 +190,13 @@ pub fn run_cost(case: &LoadedCase, csv: bool, snapshot_every: u64) -> RunCost {
         (c.steps / snapshot_every as f64).ceil()
     };
     let mut bytes = H5_FIXED_BYTES
-        + COMPRESSED_FRACTION
-            * (rows * h5_bytes_per_row() + envelope_bytes + snapshots * c.cells * 8.0);
+        + stored_bytes(series_per_row(), rows, crate::output::sink::CHUNK)
+        + envelope_bytes
+        + stored_bytes(
+            1.0,
+            snapshots * c.cells,
+            crate::output::h5::MATRIX_CHUNK_BYTES / 8,
+        );
     // The steps are those of full stepping, an upper bound when cycles are jumped over;
     // the `/jumps` group adds its headers and at most one jump per five cycles of five
     // 8-byte values.

@@ -34,6 +34,10 @@ pub(crate) const MAX_BUFFERED_VALUES: usize = 4_000_000;
 /// (11 kinds × 3 windows × 3 cycles at most, beside the fixed windows).
 pub const DEFAULT_EVENT_WINDOWS: u64 = 3;
 
+/// Values per chunk of an envelope series (one value a cycle): 8 KiB of f64. Assumption:
+/// a run of a thousand cycles or more fills it, and is compressed.
+pub(crate) const CHUNK: usize = 1024;
+
 /// Held-back cycles of late windows at most (one window: the cycle holding the event and
 /// one each side).
 const LATE_CYCLES: usize = 3;
@@ -118,7 +122,7 @@ impl Envelopes {
                     &format!("/{ENVELOPES}/{}/{}", stat.name(), e.name),
                     e.unit.symbol(),
                     &format!("{} ({})", stat.entry().description, e.description),
-                    1024,
+                    CHUNK,
                 )
             };
             handles.push([
@@ -131,13 +135,13 @@ impl Envelopes {
             &format!("/{ENVELOPES}/start_time"),
             "s",
             "start of the cycle",
-            1024,
+            CHUNK,
         )?;
         let end = w.growable_series(
             &format!("/{ENVELOPES}/end_time"),
             "s",
             "end of the cycle",
-            1024,
+            CHUNK,
         )?;
         let n = steps.len();
         Ok(Envelopes {

@@ -39,7 +39,7 @@ use ndarray::{s, ArrayView2};
 use super::{OutputError, TempTarget};
 
 /// Upper bound on the bytes buffered for one growable matrix (one chunk).
-const MATRIX_CHUNK_BYTES: usize = 256 * 1024;
+pub(crate) const MATRIX_CHUNK_BYTES: usize = 256 * 1024;
 
 /// Hash slots of a growable dataset's chunk cache, which holds no bytes (see
 /// `Growable::create`); HDF5 wants at least one.

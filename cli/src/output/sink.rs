@@ -17,7 +17,7 @@ use std::path::Path;
 /// (30-min municipal surge run, level 4: 12.75 MB at 4 096 values, 12.56 MB at 8 192,
 /// 12.38 MB at 32 768; 26.0 MB uncompressed) while ~30 series buffer about 2 MB at 8 192,
 /// and one chunk sits well inside HDF5's default 1 MiB chunk cache of a reader.
-const CHUNK: usize = 8192;
+pub(crate) const CHUNK: usize = 8192;
 
 /// Deflate level of the run's datasets, after the byte shuffle. Levels 1, 4 and 6 gave
 /// 12.73, 12.56 and 12.51 MB on the run above: the series are full-precision doubles whose
