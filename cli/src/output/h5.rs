@@ -488,7 +488,8 @@ impl<T: H5Type + Copy> Growable<T> {
     }
 
     /// Creates the planned dataset with chunks of `chunk_rows` rows.
-    fn create(&mut self, chunk_rows: usize) -> Result<()> {
+    fn create(&mut self) -> Result<()> {
+        let chunk_rows = self.chunk_rows;
         let Slot::Planned(plan) = &self.slot else {
             return Ok(());
         };
@@ -515,12 +516,35 @@ impl<T: H5Type + Copy> Growable<T> {
         Ok(())
     }
 
+    /// Creates the planned dataset holding the buffer's rows whole: contiguous,
+    /// uncompressed (see the module documentation).
+    fn write_whole(&mut self) -> Result<()> {
+        let Slot::Planned(plan) = &self.slot else {
+            return Ok(());
+        };
+        let rows = self.len_rows();
+        let builder = plan.group.new_dataset_builder();
+        let ds = if self.matrix {
+            let block = ArrayView2::from_shape((rows, self.ncols), &self.buf)
+                .expect("buffer holds whole rows");
+            builder.with_data(block).create(plan.name.as_str())
+        } else {
+            builder.with_data(&self.buf[..]).create(plan.name.as_str())
+        }
+        .map_err(hdf5_err(&self.object))?;
+        describe(&ds, &self.object, &plan.units, &plan.description)?;
+        self.rows = rows;
+        self.buf.clear();
+        self.slot = Slot::Open(ds);
+        Ok(())
+    }
+
     fn flush(&mut self) -> Result<()> {
         if self.buf.is_empty() {
             return Ok(());
         }
         if matches!(self.slot, Slot::Planned(_)) {
-            self.create(self.chunk_rows)?;
+            self.create()?;
         }
         let Slot::Open(ds) = &self.slot else {
             return Err(OutputError::Finished {
@@ -546,27 +570,13 @@ impl<T: H5Type + Copy> Growable<T> {
 
 impl<T: H5Type + Copy + Send> Pending for Growable<T> {
     fn flush_last(&mut self) -> Result<()> {
-        if let Slot::Planned(plan) = &self.slot {
-            // Never flushed: everything is in the buffer, fewer rows than a chunk, written
-            // whole (contiguous, uncompressed; see the module documentation).
-            let rows = self.len_rows();
-            if rows > 0 {
-                let builder = plan.group.new_dataset_builder();
-                let ds = if self.matrix {
-                    let block = ArrayView2::from_shape((rows, self.ncols), &self.buf)
-                        .expect("buffer holds whole rows");
-                    builder.with_data(block).create(plan.name.as_str())
-                } else {
-                    builder.with_data(&self.buf[..]).create(plan.name.as_str())
-                }
-                .map_err(hdf5_err(&self.object))?;
-                describe(&ds, &self.object, &plan.units, &plan.description)?;
-                self.rows = rows;
-                self.buf.clear();
-                self.slot = Slot::Open(ds);
-                return Ok(());
-            }
-            self.create(self.chunk_rows)?;
+        if matches!(self.slot, Slot::Planned(_)) {
+            // Never flushed: everything is in the buffer, fewer rows than a chunk.
+            return if self.buf.is_empty() {
+                self.create()
+            } else {
+                self.write_whole()
+            };
         }
         Growable::flush(self)
     }

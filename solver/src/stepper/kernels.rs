@@ -162,14 +162,10 @@ fn extrapolate_kernel(
 
 /// Σ_f c_f (a_f − b_f)², the power of a run of linear faces of conductances `c` between
 /// heads `a` (inner) and `b` (outer), plus `extra` (a last face's power, added to the
-/// first lane before the lanes are summed), m⁴/s. All slices have one length.
-pub(super) fn linear_power(c: &[f64], a: &[f64], b: &[f64], extra: Option<f64>) -> f64 {
-    linear_powers(c, [(a, b)], [extra])[0]
-}
-
-/// [`linear_power`] of `K` head profiles over the same faces in one pass (each face's
-/// conductance loaded once): entry k is `linear_power(c, heads[k].0, heads[k].1,
-/// extras[k])`, with the same operations in the same order, so the same bits.
+/// first lane before the lanes are summed), m⁴/s, for each of `K` head profiles
+/// `heads[k] = (a, b)` with `extras[k]`, in one pass over the faces (each conductance loaded
+/// once). Each profile's sum has the same operations in the same order as a pass of its
+/// own, so the same bits. All slices have one length.
 pub(super) fn linear_powers<const K: usize>(
     c: &[f64],
     heads: [(&[f64], &[f64]); K],
@@ -462,12 +458,12 @@ mod tests {
             let (u, w) = (values(&mut seed, m, 1.0), values(&mut seed, m, 1.0));
             for extra in [None, Some(3e-4)] {
                 let (p1, p2) = (
-                    linear_power(&c, &y, &h, extra),
+                    linear_powers(&c, [(&y, &h)], [extra])[0],
                     linear_powers_kernel(&c, [(&y, &h)], [extra])[0],
                 );
                 assert_eq!(p1.to_bits(), p2.to_bits());
                 // Two profiles in one pass: each the bits of its own pass.
-                let q = linear_power(&c, &u, &w, Some(1e-5));
+                let q = linear_powers(&c, [(&u, &w)], [Some(1e-5)])[0];
                 let both = linear_powers(&c, [(&y, &h), (&u, &w)], [extra, Some(1e-5)]);
                 let portable = linear_powers_kernel(&c, [(&y, &h), (&u, &w)], [extra, Some(1e-5)]);
                 assert_eq!(
@@ -553,8 +549,9 @@ mod tests {
             assert!((sums[k] - want[k]).abs() <= 1e-13 * size[k], "sum {k}");
         }
         let p: f64 = (0..m).map(|f| c[f] * (y[f] - h[f]).powi(2)).sum();
-        assert!((linear_power(&c, &y, &h, None) - p).abs() <= 1e-13 * p);
-        assert!((linear_power(&c, &y, &h, Some(0.5 * p)) - 1.5 * p).abs() <= 1e-13 * p);
+        let power = |extra| linear_powers(&c, [(&y, &h)], [extra])[0];
+        assert!((power(None) - p).abs() <= 1e-13 * p);
+        assert!((power(Some(0.5 * p)) - 1.5 * p).abs() <= 1e-13 * p);
         // Slopes: the storage balance of each cell, an open and a closed outer face.
         for open in [false, true] {
             let mut f = vec![7.0; m];

@@ -35,36 +35,53 @@ impl Stepper {
         faces: Option<(&[f64], &[f64])>,
         out: &mut [f64; ZONE_COUNT],
     ) {
-        let d = &self.disc;
-        let n = heads.len();
-        for (run, zone) in &d.pure_runs {
-            out[*zone as usize] += if let Some((flows, drops)) = faces {
-                let mut lanes = [0.0f64; LANES];
-                let (q, dh) = (&flows[run.clone()], &drops[run.clone()]);
-                let (qc, dc) = (q.chunks_exact(LANES), dh.chunks_exact(LANES));
-                for (&q, &dh) in qc.remainder().iter().zip(dc.remainder()) {
-                    lanes[0] += q * dh;
-                }
-                for (q, dh) in qc.zip(dc) {
-                    for l in 0..LANES {
-                        lanes[l] += q[l] * dh[l];
+        match faces {
+            Some((flows, drops)) => {
+                for (run, zone) in &self.disc.pure_runs {
+                    let mut lanes = [0.0f64; LANES];
+                    let (q, dh) = (&flows[run.clone()], &drops[run.clone()]);
+                    let (qc, dc) = (q.chunks_exact(LANES), dh.chunks_exact(LANES));
+                    for (&q, &dh) in qc.remainder().iter().zip(dc.remainder()) {
+                        lanes[0] += q * dh;
                     }
+                    for (q, dh) in qc.zip(dc) {
+                        for l in 0..LANES {
+                            lanes[l] += q[l] * dh[l];
+                        }
+                    }
+                    out[*zone as usize] += lanes.iter().sum::<f64>();
                 }
-                lanes.iter().sum::<f64>()
-            } else {
-                let end = run.end.min(n - 1);
-                // The outer face (to h = 0) when the run reaches it.
-                let outer =
-                    (run.end == n).then(|| d.conductance[n - 1] * heads[n - 1] * heads[n - 1]);
-                super::kernels::linear_power(
-                    &d.conductance[run.start..end],
-                    &heads[run.start..end],
-                    &heads[run.start + 1..=end],
-                    outer,
-                )
-            };
+            }
+            None => self.linear_run_powers([heads], [out]),
         }
         self.mixed_power(heads, out);
+    }
+
+    /// Adds the C Δh² power of the pure runs of linear faces of each head profile
+    /// `heads[k]` to `outs[k]`, all profiles in one pass over each run's faces
+    /// (`kernels::linear_powers`, each sum the bits of its own pass).
+    fn linear_run_powers<const K: usize>(
+        &self,
+        heads: [&[f64]; K],
+        mut outs: [&mut [f64; ZONE_COUNT]; K],
+    ) {
+        let d = &self.disc;
+        // Every profile has the n heads of the grid.
+        let n = heads.first().map_or(0, |h| h.len());
+        for (run, zone) in &d.pure_runs {
+            let last = run.end.min(n - 1);
+            // The outer face (to h = 0) when the run reaches it.
+            let outer =
+                |h: &[f64]| (run.end == n).then(|| d.conductance[n - 1] * h[n - 1] * h[n - 1]);
+            let powers = super::kernels::linear_powers(
+                &d.conductance[run.start..last],
+                heads.map(|h| (&h[run.start..last], &h[run.start + 1..=last])),
+                heads.map(outer),
+            );
+            for (out, p) in outs.iter_mut().zip(powers) {
+                out[*zone as usize] += p;
+            }
+        }
     }
 
     /// Adds the power of the faces across two zones (`Discretization::mixed_faces`).
@@ -85,24 +102,8 @@ impl Stepper {
         end: &[f64],
         out: &mut [f64; ZONE_COUNT],
     ) -> [f64; ZONE_COUNT] {
-        let d = &self.disc;
-        let n = y.len();
         let mut pure = [0.0; ZONE_COUNT];
-        for (run, zone) in &d.pure_runs {
-            let last = run.end.min(n - 1);
-            let outer =
-                |h: &[f64]| (run.end == n).then(|| d.conductance[n - 1] * h[n - 1] * h[n - 1]);
-            let [p_theta, p_end] = super::kernels::linear_powers(
-                &d.conductance[run.start..last],
-                [
-                    (&y[run.start..last], &y[run.start + 1..=last]),
-                    (&end[run.start..last], &end[run.start + 1..=last]),
-                ],
-                [outer(y), outer(end)],
-            );
-            out[*zone as usize] += p_theta;
-            pure[*zone as usize] += p_end;
-        }
+        self.linear_run_powers([y, end], [out, &mut pure]);
         self.mixed_power(y, out);
         pure
     }
