@@ -916,7 +916,7 @@ impl Stepper {
             for (g, &s) in self.gain.iter_mut().zip(&self.disc.storage) {
                 *g = s / tdt;
             }
-            self.factored.keep_scale(&self.gain);
+            self.factored.keep_scale(&self.gain, 2);
             self.factored_for = Some(key);
         }
         let d0 = match well {
@@ -934,7 +934,7 @@ impl Stepper {
             self.y[0] -= shift;
             self.y[1] += shift;
         }
-        self.factored.solve_scaled(&mut self.y, &self.h, 2);
+        self.factored.solve_scaled(&mut self.y, &self.h);
         Ok(())
     }
 }

@@ -15,8 +15,13 @@
 //! sweep is. [`Factored`] keeps the multipliers so a matrix that does not change between
 //! steps is eliminated once and each step costs one pass of each sweep over the
 //! right-hand side; [`Factored::factor_solve_symmetric`] eliminates and sweeps in the same pass.
+//! The linear path's repeated solve ([`Factored::solve_scaled`]) runs both chains in the two
+//! lanes of one vector, four rows per link (`tridiag/chains.rs`).
 
 use crate::error::SolverError;
+
+mod chains;
+use chains::Chains;
 
 /// A tridiagonal matrix after elimination from both ends, for repeated solves.
 #[derive(Debug, Clone, Default)]
@@ -30,14 +35,8 @@ pub struct Factored {
     /// Back-substitution multiplier: c'_i in the top half, a'_i in the bottom half, c_p/γ
     /// at the meeting row.
     far: Vec<f64>,
-    /// Products of consecutive `near` along each chain, for the paired forward sweep of
-    /// [`Factored::solve_scaled`]: near_i near_{i−1} in the top half (i ≥ 1), near_i near_{i+1}
-    /// in the bottom half (i ≤ n − 2), 0 elsewhere.
-    near_pair: Vec<f64>,
-    /// Products of consecutive `far` along each chain, for the paired substitution:
-    /// far_i far_{i+1} in the top half (i ≤ p − 2), far_i far_{i−1} in the bottom half
-    /// (i ≥ p + 2), 0 elsewhere.
-    far_pair: Vec<f64>,
+    /// The multipliers laid out for [`Factored::solve_scaled`]'s two-lane sweeps.
+    chains: Chains,
     /// Row scale of [`Factored::solve_scaled`]'s right-hand side ([`Factored::keep_scale`]).
     scale: Vec<f64>,
     /// scale_i/m_i (scale_p/γ at the meeting row).
@@ -67,8 +66,7 @@ impl Factored {
             inv_pivot: vec![0.0; n],
             near: vec![0.0; n],
             far: vec![0.0; n],
-            near_pair: vec![0.0; n],
-            far_pair: vec![0.0; n],
+            chains: Chains::with_size(n),
             scale: vec![0.0; n],
             gain_pivot: vec![0.0; n],
             scale_kept: false,
@@ -172,29 +170,6 @@ impl Factored {
         Ok(())
     }
 
-    /// The products of consecutive multipliers along each chain (`near_pair`, `far_pair`)
-    /// for the paired sweeps of [`Factored::solve_scaled`].
-    fn pair_products(&mut self) {
-        let n = self.near.len();
-        let p = meeting_row(n);
-        let (near, far) = (&self.near, &self.far);
-        let (np, fp) = (&mut self.near_pair, &mut self.far_pair);
-        np.fill(0.0);
-        fp.fill(0.0);
-        for i in 1..p {
-            np[i] = near[i] * near[i - 1];
-        }
-        for i in p + 1..n.saturating_sub(1) {
-            np[i] = near[i] * near[i + 1];
-        }
-        for i in 0..p.saturating_sub(1) {
-            fp[i] = far[i] * far[i + 1];
-        }
-        for i in p + 2..n {
-            fp[i] = far[i] * far[i - 1];
-        }
-    }
-
     /// Substitution outwards from the meeting row, whose x `rhs` already holds: the top
     /// rows p − 1…0 and the bottom rows p + 1…n − 1 as two chains in one loop (slices split
     /// at the meeting row, so the loop has no bounds checks).
@@ -223,58 +198,6 @@ impl Factored {
         }
     }
 
-    /// [`Factored::substitute`] two rows at a time: with x_{i+1} known, the top chain's next
-    /// two rows are x_i = z_i − c'_i x_{i+1} and x_{i−1} = (z_{i−1} − c'_{i−1} z_i) +
-    /// c'_{i−1} c'_i x_{i+1}, so the chain (the dependency from one x to the next) has one
-    /// multiply-add per two rows; the bottom chain likewise. Equal to the one-row
-    /// substitution up to round-off.
-    #[inline(always)]
-    fn substitute_paired(&self, rhs: &mut [f64]) {
-        let n = rhs.len();
-        let p = meeting_row(n);
-        let (far, far_pair) = (&self.far[..n], &self.far_pair[..n]);
-        let (top, rest) = rhs.split_at_mut(p);
-        let (mid, bottom) = rest.split_at_mut(1);
-        let (mut x_up, mut x_down) = (mid[0], mid[0]);
-        let m = top.len();
-        let (ft, pt) = (&far[..m], &far_pair[..m]);
-        let (xd, fd, pd) = (
-            &mut bottom[..m],
-            &far[p + 1..][..m],
-            &far_pair[p + 1..][..m],
-        );
-        // Pairs of rows by exact chunks (no index arithmetic or bounds checks in the
-        // loop): the top chain's pairs from row m − 1 down (chunk [i − 1, i]), the bottom
-        // chain's from row p + 1 up (chunk [k, k + 1]).
-        let top_pairs = top[..m]
-            .rchunks_exact_mut(2)
-            .zip(ft.rchunks_exact(2).zip(pt.rchunks_exact(2)));
-        let bottom_pairs = xd
-            .chunks_exact_mut(2)
-            .zip(fd.chunks_exact(2).zip(pd.chunks_exact(2)));
-        for ((t, (ft, pt)), (b, (fd, pd))) in top_pairs.zip(bottom_pairs) {
-            let (z0, z1) = (t[1], t[0]);
-            t[1] = z0 - ft[1] * x_up;
-            x_up = (z1 - ft[0] * z0) + pt[0] * x_up;
-            t[0] = x_up;
-            let (w0, w1) = (b[0], b[1]);
-            b[0] = w0 - fd[0] * x_down;
-            x_down = (w1 - fd[1] * w0) + pd[1] * x_down;
-            b[1] = x_down;
-        }
-        if m % 2 == 1 {
-            // The last row of each chain alone (m odd): top row 0, bottom row p + m.
-            top[0] -= ft[0] * x_up;
-            let k = m - 1;
-            x_down = xd[k] - fd[k] * x_down;
-            xd[k] = x_down;
-        }
-        // The bottom half has one row more when n is even.
-        if bottom.len() > p {
-            bottom[p] -= far[p + 1..][p] * x_down;
-        }
-    }
-
     /// Solves in place with the kept factors: on return `rhs` holds x.
     pub fn solve(&self, rhs: &mut [f64]) {
         let n = rhs.len();
@@ -282,23 +205,29 @@ impl Factored {
         if n == 0 {
             return;
         }
-        self.forward(rhs, None, 0);
+        self.forward(rhs);
         self.substitute(rhs);
     }
 
-    /// Keeps the row scale of [`Factored::solve_scaled`]'s right-hand side, `scale[i]`, and
-    /// g_i = `scale[i]`/m_i, and forms the pair products of the paired sweeps; call it after
-    /// each factorization (which forgets them).
-    pub fn keep_scale(&mut self, scale: &[f64]) {
+    /// Keeps the row scale of [`Factored::solve_scaled`]'s right-hand side, `scale[i]`, for
+    /// rows `from` on, and g_i = `scale[i]`/m_i, and lays the multipliers out for its two-lane
+    /// sweeps; call it after each factorization (which forgets them).
+    pub fn keep_scale(&mut self, scale: &[f64], from: usize) {
         let n = self.inv_pivot.len();
         let scale = &scale[..n];
         self.scale.copy_from_slice(scale);
         for ((g, &s), &iv) in self.gain_pivot.iter_mut().zip(scale).zip(&self.inv_pivot) {
             *g = s * iv;
         }
-        // Only the paired sweeps need the pair products: formed here, not with every
-        // factorization (Newton's and the error filter's factors are swept one row at a time).
-        self.pair_products();
+        // Only the two-lane sweeps need the layout: formed here, not with every factorization
+        // (Newton's and the error filter's factors are swept one row at a time).
+        if n > 0 && from <= meeting_row(n) {
+            let p = meeting_row(n);
+            self.chains
+                .lay_out(p, from, &self.near, &self.far, &self.gain_pivot);
+        } else {
+            self.chains.set_formed(from);
+        }
         self.scale_kept = true;
     }
 
@@ -314,15 +243,15 @@ impl Factored {
         &self.scale
     }
 
-    /// Solves for the right-hand side d_i = scale_i × `src[i]` for i ≥ `from` (the scale
-    /// given to [`Factored::keep_scale`]) and d_i = `x[i]` below (rows set by the caller),
-    /// building it within the forward sweep, both sweeps two rows at a time (paired
-    /// recurrences: equal to forming d and calling [`Factored::solve`] up to round-off).
-    /// On return `x` holds the solution.
+    /// Solves for the right-hand side d_i = scale_i × `src[i]` for i ≥ `from` (the scale and
+    /// the row given to [`Factored::keep_scale`]) and d_i = `x[i]` below (rows set by the
+    /// caller), building it within the forward sweep; both sweeps run the two chains in the
+    /// two lanes of a vector, four rows per link (`tridiag/chains.rs`: equal to forming d and
+    /// calling [`Factored::solve`] up to round-off). On return `x` holds the solution.
     ///
     /// # Panics
     /// When no scale was kept since the last factorization.
-    pub fn solve_scaled(&self, x: &mut [f64], src: &[f64], from: usize) {
+    pub fn solve_scaled(&self, x: &mut [f64], src: &[f64]) {
         let n = x.len();
         assert_eq!(n, self.inv_pivot.len());
         assert!(
@@ -333,7 +262,9 @@ impl Factored {
         if n == 0 {
             return;
         }
-        if from > meeting_row(n) {
+        let from = self.chains.from();
+        let p = meeting_row(n);
+        if from > p {
             // A system so small that the given rows reach the bottom half: formed first.
             for ((x, &a), &b) in x[from.min(n)..]
                 .iter_mut()
@@ -344,112 +275,67 @@ impl Factored {
             }
             return self.solve(x);
         }
-        self.forward(x, Some(src), from);
-        self.substitute_paired(x);
+        let (inv, near, far, gain) = (
+            &self.inv_pivot[..n],
+            &self.near[..n],
+            &self.far[..n],
+            &self.gain_pivot[..n],
+        );
+        // Top rows below `from`: the caller's values, on the top chain alone.
+        let mut z_top = 0.0;
+        for ((r, &iv), &nr) in x[..from].iter_mut().zip(&inv[..from]).zip(&near[..from]) {
+            z_top = *r * iv - nr * z_top;
+            *r = z_top;
+        }
+        // The bottom chain's rows the top one has no partner for (one more when n is even,
+        // and `from` more), alone first, from row n − 1 up.
+        let first_pair = p + 1 + (p - from);
+        let mut z_bottom = 0.0;
+        for i in (first_pair..n).rev() {
+            z_bottom = gain[i] * src[i] - near[i] * z_bottom;
+            x[i] = z_bottom;
+        }
+        let [z_top, z_bottom] = self.chains.forward(x, src, p, [z_top, z_bottom]);
+        x[p] = gain[p] * src[p] - near[p] * z_top - far[p] * z_bottom;
+        let x_down = self.chains.substitute(x, p);
+        // The bottom half has one row more when n is even.
+        if n - 1 - p > p {
+            x[2 * p + 1] -= far[2 * p + 1] * x_down;
+        }
     }
 
     /// Forward sweep from both ends (rows 0…p − 1 and n − 1…p + 1, two chains in one loop)
-    /// and the meeting row: on return `rhs` holds z, and x_p at the meeting row. Row i of
-    /// the right-hand side is `scale[i] src[i]` for i ≥ `from` when `scaled` is given
-    /// (`from` ≤ p), `rhs[i]` otherwise.
+    /// and the meeting row: on return `rhs` holds z, and x_p at the meeting row.
     #[inline(always)]
-    fn forward(&self, rhs: &mut [f64], scaled: Option<&[f64]>, from: usize) {
+    fn forward(&self, rhs: &mut [f64]) {
         let n = rhs.len();
         let p = meeting_row(n);
-        let from = if scaled.is_some() { from } else { 0 };
-        assert!(from <= p);
         let (inv, near, far) = (&self.inv_pivot[..n], &self.near[..n], &self.far[..n]);
         let (top, rest) = rhs.split_at_mut(p);
         let (mid, bottom) = rest.split_at_mut(1);
         let (mut z_top, mut z_bottom) = (0.0, 0.0);
-        // Top rows below `from`: the caller's values, on the top chain alone.
-        for ((r, &iv), &nr) in top[..from].iter_mut().zip(&inv[..from]).zip(&near[..from]) {
-            z_top = *r * iv - nr * z_top;
-            *r = z_top;
-        }
-        let (top, inv_t, near_t) = (&mut top[from..], &inv[from..p], &near[from..p]);
+        let (inv_t, near_t) = (&inv[..p], &near[..p]);
         let (inv_b, near_b) = (&inv[p + 1..], &near[p + 1..]);
-        // The bottom chain's rows the top one has no partner for (one more when n is even,
-        // and `from` more), alone first, from row n − 1 up.
+        // The bottom chain's row the top one has no partner for (n even), alone first.
         let extra = bottom.len() - top.len();
         let split = bottom.len() - extra;
         let (bottom, bottom_extra) = bottom.split_at_mut(split);
         let (inv_bx, near_bx) = (&inv_b[split..], &near_b[split..]);
-        let (inv_b, near_b) = (&inv_b[..split], &near_b[..split]);
-        match scaled {
-            None => {
-                for ((r, &iv), &nr) in bottom_extra.iter_mut().zip(inv_bx).zip(near_bx).rev() {
-                    z_bottom = *r * iv - nr * z_bottom;
-                    *r = z_bottom;
-                }
-                let m = top.len();
-                let (it, nt) = (&inv_t[..m], &near_t[..m]);
-                let (rb, ib, nb) = (&mut bottom[..m], &inv_b[..m], &near_b[..m]);
-                for k in 0..m {
-                    let j = m - 1 - k;
-                    z_top = top[k] * it[k] - nt[k] * z_top;
-                    top[k] = z_top;
-                    z_bottom = rb[j] * ib[j] - nb[j] * z_bottom;
-                    rb[j] = z_bottom;
-                }
-                mid[0] = mid[0] * inv[p] - near[p] * z_top - far[p] * z_bottom;
-            }
-            Some(src) => {
-                // d_i/m_i = g_i src_i with the kept g_i = scale_i/m_i.
-                let gain = &self.gain_pivot[..n];
-                let (g_b, sr_b) = (&gain[p + 1..], &src[p + 1..]);
-                let (g_bx, sr_bx) = (&g_b[split..], &sr_b[split..]);
-                let (g_b, sr_b) = (&g_b[..split], &sr_b[..split]);
-                let (g_t, sr_t) = (&gain[from..p], &src[from..p]);
-                let bx = bottom_extra.iter_mut().zip(near_bx);
-                for ((r, &nr), (&g, &c)) in bx.zip(g_bx.iter().zip(sr_bx)).rev() {
-                    z_bottom = g * c - nr * z_bottom;
-                    *r = z_bottom;
-                }
-                let m = top.len();
-                let (nt, gt, ct) = (&near_t[..m], &g_t[..m], &sr_t[..m]);
-                let (rb, nb) = (&mut bottom[..m], &near_b[..m]);
-                let (gb, cb) = (&g_b[..m], &sr_b[..m]);
-                // Two rows of each chain at a time: with d'_i = d_i/m_i,
-                // z_{i+1} = (d'_{i+1} − near_{i+1} d'_i) + near_{i+1} near_i z_{i−1}, so the
-                // chain has one multiply-add per two rows (the pairs' products are kept).
-                let pt = &self.near_pair[from..p][..m];
-                let pb = &self.near_pair[p + 1..][..split][..m];
-                // Pairs of rows by exact chunks (no index arithmetic or bounds checks in
-                // the loop): the top chain's from row `from` down (chunk [k, k + 1]), the
-                // bottom chain's from row p + m up (chunk [j − 1, j]).
-                let top_pairs = top
-                    .chunks_exact_mut(2)
-                    .zip(nt.chunks_exact(2).zip(pt.chunks_exact(2)))
-                    .zip(gt.chunks_exact(2).zip(ct.chunks_exact(2)));
-                let bottom_pairs = rb
-                    .rchunks_exact_mut(2)
-                    .zip(nb.rchunks_exact(2).zip(pb.rchunks_exact(2)))
-                    .zip(gb.rchunks_exact(2).zip(cb.rchunks_exact(2)));
-                for (((t, (nt, pt)), (gt, ct)), ((b, (nb, pb)), (gb, cb))) in
-                    top_pairs.zip(bottom_pairs)
-                {
-                    let (d0, d1) = (gt[0] * ct[0], gt[1] * ct[1]);
-                    t[0] = d0 - nt[0] * z_top;
-                    z_top = (d1 - nt[1] * d0) + pt[1] * z_top;
-                    t[1] = z_top;
-                    let (e0, e1) = (gb[1] * cb[1], gb[0] * cb[0]);
-                    b[1] = e0 - nb[1] * z_bottom;
-                    z_bottom = (e1 - nb[0] * e0) + pb[0] * z_bottom;
-                    b[0] = z_bottom;
-                }
-                if m % 2 == 1 {
-                    // The last row of each chain alone (m odd): top row p − 1, bottom row
-                    // p + 1.
-                    let k = m - 1;
-                    z_top = gt[k] * ct[k] - nt[k] * z_top;
-                    top[k] = z_top;
-                    z_bottom = gb[0] * cb[0] - nb[0] * z_bottom;
-                    rb[0] = z_bottom;
-                }
-                mid[0] = gain[p] * src[p] - near[p] * z_top - far[p] * z_bottom;
-            }
+        for ((r, &iv), &nr) in bottom_extra.iter_mut().zip(inv_bx).zip(near_bx).rev() {
+            z_bottom = *r * iv - nr * z_bottom;
+            *r = z_bottom;
         }
+        let m = top.len();
+        let (it, nt) = (&inv_t[..m], &near_t[..m]);
+        let (rb, ib, nb) = (&mut bottom[..m], &inv_b[..m], &near_b[..m]);
+        for k in 0..m {
+            let j = m - 1 - k;
+            z_top = top[k] * it[k] - nt[k] * z_top;
+            top[k] = z_top;
+            z_bottom = rb[j] * ib[j] - nb[j] * z_bottom;
+            rb[j] = z_bottom;
+        }
+        mid[0] = mid[0] * inv[p] - near[p] * z_top - far[p] * z_bottom;
     }
 }
 
@@ -572,9 +458,10 @@ mod tests {
 
     #[test]
     fn scaled_right_hand_side_matches_a_formed_one() {
-        // The fused build of d_i = scale_i src_i in the forward sweep, with the paired
-        // recurrences, against forming d first and the one-row sweeps: round-off apart (odd
-        // and even sizes and chain lengths, rows below `from` set by the caller).
+        // The fused build of d_i = scale_i src_i in the forward sweep, with the two-lane
+        // blocked recurrences, against forming d first and the one-row sweeps: round-off
+        // apart (odd and even sizes, chain lengths with 0–3 rows past the last whole block,
+        // rows below `from` set by the caller).
         let mut seed = 0x0bad_cafe_1234_5678_u64;
         let cases = [
             (1usize, 0usize),
@@ -599,7 +486,7 @@ mod tests {
             let head: Vec<f64> = (0..n).map(|_| rng(&mut seed)).collect();
             let mut f = Factored::with_size(n);
             f.factor_symmetric(&diag, &off).unwrap();
-            f.keep_scale(&scale);
+            f.keep_scale(&scale, from);
             let d: Vec<f64> = (0..n)
                 .map(|i| if i < from { head[i] } else { scale[i] * src[i] })
                 .collect();
@@ -608,8 +495,8 @@ mod tests {
             let mut got: Vec<f64> = (0..n)
                 .map(|i| if i < from { head[i] } else { f64::NAN })
                 .collect();
-            f.solve_scaled(&mut got, &src, from);
-            // The residual of the paired solution against the matrix, and its distance from
+            f.solve_scaled(&mut got, &src);
+            // The residual of the blocked solution against the matrix, and its distance from
             // the one-row solution: both a few ulps of the largest term (the matrix is
             // diagonally dominant, so both sweeps are backward stable).
             let big = d.iter().fold(0.0f64, |a, v| a.max(v.abs()));
@@ -632,6 +519,100 @@ mod tests {
                     want[i]
                 );
             }
+        }
+    }
+
+    /// One chain of [`Factored::solve_scaled`]'s sweeps in scalar arithmetic: rows `rows` in
+    /// the order visited, v_k = d_k − ℓ_k v_{k−1} from `v`, four rows per link as
+    /// `tridiag/chains.rs` states it (a_j off the chain, μ_j the block's multiplier), the
+    /// rows past the last whole block one at a time. Returns the last value.
+    fn blocked_chain(
+        x: &mut [f64],
+        rows: &[usize],
+        d: impl Fn(usize) -> f64,
+        l: &[f64],
+        mut v: f64,
+    ) -> f64 {
+        let full = rows.len() / 4 * 4;
+        for b in rows[..full].chunks(4) {
+            let mut a = [0.0; 4];
+            a[0] = d(b[0]);
+            let mut mu = [l[b[0]], 0.0, 0.0, 0.0];
+            for j in 1..4 {
+                a[j] = d(b[j]) - l[b[j]] * a[j - 1];
+                mu[j] = -l[b[j]] * mu[j - 1];
+            }
+            let before = v;
+            for j in 0..4 {
+                v = a[j] - mu[j] * before;
+                x[b[j]] = v;
+            }
+        }
+        for &r in &rows[full..] {
+            v = d(r) - l[r] * v;
+            x[r] = v;
+        }
+        v
+    }
+
+    #[test]
+    fn two_lane_sweeps_are_the_scalar_blocked_recurrence_bit_for_bit() {
+        // The vector lanes do the scalar recurrence's operations in the same order (no fused
+        // multiply-add, no lane mixing): the same bits as this scalar transcription, on every
+        // size's split into whole blocks and rows left over.
+        let mut seed = 0x5eed_0fb1_0c00_u64;
+        for &(n, from) in &[
+            (9usize, 1usize),
+            (10, 2),
+            (57, 2),
+            (58, 0),
+            (300, 2),
+            (301, 2),
+        ] {
+            let off: Vec<f64> = (0..n).map(|_| 0.1 + rng(&mut seed)).collect();
+            let diag: Vec<f64> = (0..n).map(|_| 2.5 + rng(&mut seed)).collect();
+            let scale: Vec<f64> = (0..n).map(|_| 1e3 * rng(&mut seed)).collect();
+            let src: Vec<f64> = (0..n).map(|_| rng(&mut seed) - 0.5).collect();
+            let head: Vec<f64> = (0..n).map(|_| rng(&mut seed)).collect();
+            let mut f = Factored::with_size(n);
+            f.factor_symmetric(&diag, &off).unwrap();
+            f.keep_scale(&scale, from);
+            let mut got: Vec<f64> = (0..n)
+                .map(|i| if i < from { head[i] } else { f64::NAN })
+                .collect();
+            f.solve_scaled(&mut got, &src);
+
+            let p = meeting_row(n);
+            let m = p - from;
+            let (inv, near, far, gain) = (&f.inv_pivot, &f.near, &f.far, &f.gain_pivot);
+            let mut want = got.clone();
+            let mut z_top = 0.0;
+            for i in 0..from {
+                z_top = head[i] * inv[i] - near[i] * z_top;
+                want[i] = z_top;
+            }
+            let mut z_bottom = 0.0;
+            for i in (p + 1 + m..n).rev() {
+                z_bottom = gain[i] * src[i] - near[i] * z_bottom;
+                want[i] = z_bottom;
+            }
+            let d = |i: usize| gain[i] * src[i];
+            let top: Vec<usize> = (from..p).collect();
+            let bottom: Vec<usize> = (p + 1..p + 1 + m).rev().collect();
+            let z_top = blocked_chain(&mut want, &top, d, near, z_top);
+            let z_bottom = blocked_chain(&mut want, &bottom, d, near, z_bottom);
+            want[p] = gain[p] * src[p] - near[p] * z_top - far[p] * z_bottom;
+            let z = want.clone();
+            let x_p = want[p];
+            let top: Vec<usize> = (0..p).rev().collect();
+            let bottom: Vec<usize> = (p + 1..2 * p + 1).collect();
+            blocked_chain(&mut want, &top, |i| z[i], far, x_p);
+            let x_down = blocked_chain(&mut want, &bottom, |i| z[i], far, x_p);
+            if n - 1 - p > p {
+                want[2 * p + 1] -= far[2 * p + 1] * x_down;
+            }
+            let bits = |v: &[f64]| v.iter().map(|x| x.to_bits()).collect::<Vec<_>>();
+            assert_eq!(bits(&got), bits(&want), "n={n} from={from}");
         }
     }
 
