@@ -39,7 +39,7 @@ use ndarray::{s, ArrayView2};
 use super::{OutputError, TempTarget};
 
 /// Upper bound on the bytes buffered for one growable matrix (one chunk).
-pub(crate) const MATRIX_CHUNK_BYTES: usize = 256 * 1024;
+pub(crate) const MATRIX_CHUNK_BYTES: usize = 64 * 1024;
 
 /// Hash slots of a growable dataset's chunk cache, which holds no bytes (see
 /// `Growable::create`); HDF5 wants at least one.
@@ -215,7 +215,7 @@ impl H5Writer {
     }
 
     /// Creates an empty `f64` dataset of shape (0, `ncols`), growable by rows (e.g. head
-    /// snapshots: time × cell). Chunks hold whole rows, about 256 KiB each.
+    /// snapshots: time × cell). Chunks hold whole rows, at most 64 KiB each (one row when a row is larger).
     pub fn growable_matrix(
         &mut self,
         path: &str,
