@@ -756,6 +756,23 @@ fn run_rejects_unwritable_output_paths() {
     assert!(errs[0].contains(&out.display().to_string()), "{}", errs[0]);
     assert_eq!(dir_entries(dir.path()), ["plain"]);
     assert_eq!(std::fs::read_to_string(&plain).unwrap(), "not a folder");
+
+    // A name the checks accept but whose temporary file the file system refuses (255 bytes
+    // at most in a name, common practice on Linux file systems; the temporary adds a dot
+    // and `.tmp-<pid>`): the output thread cannot open it, and the run stops with the
+    // error of opening it, as the checks above would say it.
+    let dir = tempfile::tempdir().unwrap();
+    let out = dir.path().join(format!("{}.h5", "a".repeat(248)));
+    let o = run_with_csv(dir.path(), &case, &out);
+    let stderr = refused(&o, "output whose temporary name is too long");
+    let errs = error_lines(&stderr);
+    assert_eq!(errs.len(), 1, "{stderr}");
+    assert!(
+        errs[0].contains(&format!("cannot write output {}", out.display())),
+        "{}",
+        errs[0]
+    );
+    assert_nothing_left(dir.path(), "output whose temporary name is too long");
 }
 
 /// Checks: `run` refuses (exit 2, one error line naming the path and the option to change,

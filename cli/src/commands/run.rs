@@ -16,11 +16,11 @@ use crate::case::Storage;
 use crate::case::{load_case, LoadedCase};
 use crate::output::envelope::EnvelopePlan;
 use crate::output::events::EventPlan;
-use crate::output::relay::{relay, Consumer, Fed};
+use crate::output::relay::{relay, Consumer, Fed, Made};
 use crate::output::schema::{
     figure_values, GridData, Group, JumpSeries, ProgressSeries, RootAttr, SummaryText,
 };
-use crate::output::sink::ResultSink;
+use crate::output::sink::{ResultSink, Snapshots};
 use crate::summary::{assessment_from, headline, table, watch_limits, Headline, Tracker};
 use anyhow::{anyhow, Context};
 use boreflux_solver::assess::progress::{LossGauge, ProgressPoint};
@@ -36,7 +36,7 @@ use boreflux_solver::{
 };
 use indicatif::{ProgressBar, ProgressDrawTarget, ProgressStyle};
 use serde_json::Value;
-use std::path::Path;
+use std::path::{Path, PathBuf};
 
 /// Steps between progress-bar updates.
 const PROGRESS_EVERY: u64 = 256;
@@ -138,36 +138,110 @@ fn progress_bar(quiet: bool) -> ProgressBar {
 }
 
 /// Writes the grid, the root attributes and the summary attributes.
-fn write_metadata(
-    sink: &mut ResultSink,
-    case: &LoadedCase,
-    args: &RunArgs,
-    grid: &Grid,
-) -> Result<(), crate::output::OutputError> {
-    let w = sink.writer();
-    for attr in RootAttr::ALL {
-        let value = match attr {
-            RootAttr::ToolVersion => env!("CARGO_PKG_VERSION").to_owned(),
-            RootAttr::CreatedUtc => {
-                humantime::format_rfc3339_seconds(std::time::SystemTime::now()).to_string()
+/// Everything the output file is opened with, owned, so that the output thread can open it
+/// while the run starts (`output/relay.rs`, [`Made`]): the sink's layout and the file's
+/// metadata (root attributes and grid).
+struct SinkPlan {
+    path: PathBuf,
+    csv: Option<PathBuf>,
+    cells: usize,
+    snapshot_every: u64,
+    envelopes: Option<EnvelopePlan>,
+    events: EventPlan,
+    root: Vec<(RootAttr, String)>,
+    grid: Vec<(GridData, Vec<f64>)>,
+}
+
+/// Why the output could not be opened.
+enum OpenError {
+    /// The file could not be created (a bad output path: an input error).
+    Create(crate::output::OutputError),
+    /// Its metadata could not be written.
+    Metadata(crate::output::OutputError),
+}
+
+impl SinkPlan {
+    fn new(
+        case: &LoadedCase,
+        args: &RunArgs,
+        grid: &Grid,
+        csv: Option<PathBuf>,
+        snapshot_every: u64,
+    ) -> SinkPlan {
+        let cells = grid.cells();
+        let root = RootAttr::ALL
+            .into_iter()
+            .map(|attr| {
+                let value = match attr {
+                    RootAttr::ToolVersion => env!("CARGO_PKG_VERSION").to_owned(),
+                    RootAttr::CreatedUtc => {
+                        humantime::format_rfc3339_seconds(std::time::SystemTime::now()).to_string()
+                    }
+                    RootAttr::Title => case.title.clone(),
+                    RootAttr::Description => case.description.clone(),
+                    RootAttr::CaseJson => case.resolved.to_string(),
+                    RootAttr::CaseFile => args.case.display().to_string(),
+                };
+                (attr, value)
+            })
+            .collect();
+        let grid_data = GridData::ALL
+            .into_iter()
+            .map(|data| {
+                let values: Vec<f64> = match data {
+                    GridData::RCenter => grid.r_center.clone(),
+                    GridData::RFace => grid.r_face.clone(),
+                    GridData::Zone => grid.zone.iter().map(|&z| z as u8 as f64).collect(),
+                };
+                (data, values)
+            })
+            .collect();
+        SinkPlan {
+            path: args.output.clone(),
+            csv,
+            cells,
+            snapshot_every,
+            envelopes: envelope_plan(case),
+            events: event_plan(case),
+            root,
+            grid: grid_data,
+        }
+    }
+
+    /// Creates the file and writes its metadata.
+    fn open(self) -> Result<ResultSink, OpenError> {
+        let mut sink = ResultSink::create(
+            &self.path,
+            self.csv.as_deref(),
+            self.cells,
+            self.snapshot_every,
+            self.envelopes,
+            self.events,
+        )
+        .map_err(OpenError::Create)?;
+        let w = sink.writer();
+        for (attr, value) in &self.root {
+            w.set_root_attr_str(attr.name(), value)
+                .map_err(OpenError::Metadata)?;
+        }
+        for (data, values) in &self.grid {
+            let e = data.entry();
+            w.write_vector(&data.path(), values, e.unit.symbol(), &e.description)
+                .map_err(OpenError::Metadata)?;
+        }
+        Ok(sink)
+    }
+}
+
+impl OpenError {
+    fn failure(self, output: &Path) -> Failure {
+        match self {
+            OpenError::Create(e) => {
+                Failure::Input(anyhow!("cannot write output {}: {e}", output.display()))
             }
-            RootAttr::Title => case.title.clone(),
-            RootAttr::Description => case.description.clone(),
-            RootAttr::CaseJson => case.resolved.to_string(),
-            RootAttr::CaseFile => args.case.display().to_string(),
-        };
-        w.set_root_attr_str(attr.name(), &value)?;
+            OpenError::Metadata(e) => Failure::Runtime(e.into()),
+        }
     }
-    for data in GridData::ALL {
-        let values: Vec<f64> = match data {
-            GridData::RCenter => grid.r_center.clone(),
-            GridData::RFace => grid.r_face.clone(),
-            GridData::Zone => grid.zone.iter().map(|&z| z as u8 as f64).collect(),
-        };
-        let e = data.entry();
-        w.write_vector(&data.path(), &values, e.unit.symbol(), &e.description)?;
-    }
-    Ok(())
 }
 
 fn write_summary(sink: &mut ResultSink, h: &Headline) -> Result<(), crate::output::OutputError> {
@@ -285,16 +359,13 @@ fn run_fed(a: &RunArgs, feed: Feed) -> Result<String, Failure> {
     let cost = crate::cost::run_cost(&case, a.csv, a.snapshot_every);
     crate::cost::refuse_large(&cost, a.allow_large).map_err(Failure::Input)?;
     catch_interrupts();
-    let mut sink = ResultSink::create(
-        &a.output,
-        csv_path.as_deref(),
-        grid.cells(),
-        snapshot_every,
-        envelope_plan(&case),
-        event_plan(&case),
-    )
-    .map_err(|e| Failure::Input(anyhow!("cannot write output {}: {e}", a.output.display())))?;
-    write_metadata(&mut sink, &case, a, &grid).map_err(|e| Failure::Runtime(e.into()))?;
+    let plan = SinkPlan::new(&case, a, &grid, csv_path.clone(), snapshot_every);
+    // With the relay the output thread opens the file while the run starts; fed directly,
+    // it is opened here.
+    let output = match feed {
+        Feed::Direct => Made::Ready(plan.open().map_err(|e| e.failure(&a.output))?),
+        Feed::Relay => Made::later(move || plan.open(), Snapshots::every(snapshot_every)),
+    };
     let mut tracker = Tracker::new(model);
     let bar = progress_bar(a.quiet);
     let points = PROGRESS_POINTS + 2;
@@ -334,15 +405,15 @@ fn run_fed(a: &RunArgs, feed: Feed) -> Result<String, Failure> {
         // The series are written out (`Consumer::end`: the last chunks, the datasets
         // shorter than a chunk) while the tests below, and with the relay those of the well
         // at the end, still run.
-        match feed {
-            Feed::Direct => {
+        match output {
+            Made::Ready(mut sink) => {
                 let result = time_loop(&mut sink);
                 if result.is_ok() && !interrupted() {
                     sink.end();
                 }
-                (result, Fed::ready(sink))
+                (result, Fed::ready(Made::Ready(sink)))
             }
-            Feed::Relay => relay(sink, |r| {
+            pending => relay(pending, |r| {
                 let result = time_loop(r);
                 if result.is_ok() && !interrupted() {
                     r.complete();
@@ -361,14 +432,22 @@ fn run_fed(a: &RunArgs, feed: Feed) -> Result<String, Failure> {
     let writing = |e: &dyn std::fmt::Display| {
         Failure::Runtime(anyhow!("writing {}: {e}", a.output.display()))
     };
+    // The sink back from the output thread, or why it failed: not opened, or a write.
+    let take_back = |fed: Fed<Made<ResultSink, OpenError>>| -> Result<ResultSink, Failure> {
+        let made = fed.join().map_err(|e| writing(&e))?;
+        let mut sink = made.into_result().map_err(|e| match e {
+            Some(e) => e.failure(&a.output),
+            None => writing(&"the output was never opened"),
+        })?;
+        match sink.error.take() {
+            Some(e) => Err(writing(&e)),
+            None => Ok(sink),
+        }
+    };
     // A failed write or a failed run is reported at once; else the sink is taken back only
     // after the tests of the well at the end, which run while it writes.
     let fed = if result.is_err() || fed.failed() {
-        let mut sink = fed.join().map_err(|e| writing(&e))?;
-        if let Some(e) = sink.error.take() {
-            return Err(writing(&e));
-        }
-        Fed::ready(sink)
+        Fed::ready(Made::Ready(take_back(fed)?))
     } else {
         fed
     };
@@ -381,10 +460,7 @@ fn run_fed(a: &RunArgs, feed: Feed) -> Result<String, Failure> {
     }
     progress.finish(baseline.undamaged_drawdown_m.as_ref().ok().copied());
     let assessed = assessment_from(&case, &baseline, &summary);
-    let mut sink = fed.join().map_err(|e| writing(&e))?;
-    if let Some(e) = sink.error.take() {
-        return Err(writing(&e));
-    }
+    let mut sink = take_back(fed)?;
     let h = headline(&case, &summary, &tracker, &assessed);
     write_summary(&mut sink, &h).map_err(|e| Failure::Runtime(e.into()))?;
     write_progress(&mut sink, &progress).map_err(|e| Failure::Runtime(e.into()))?;

@@ -9,13 +9,16 @@
 //! the same order; emptied batches come back over a second channel to be filled again, so
 //! after the first few batches the time loop allocates nothing.
 //!
+//! The consumer may be made on the worker thread itself ([`Made`]): the time loop then
+//! starts at once while the worker opens the output.
+//!
 //! When the caller marks the run complete ([`Relay::complete`]), the worker also writes out
 //! what the consumer buffered ([`Consumer::end`]: the last chunks, the datasets shorter
 //! than a chunk) while the caller goes on (the virtual tests on the well at the end); the
 //! caller takes the consumer back with [`Fed::join`].
 //!
 //! An error of the consumer stops the run: the worker raises a flag that the relay reads at
-//! every step, and stops taking batches. The run then ends a batch or two later; the
+//! every step, and stops taking batches. The run then ends within the batches in flight; the
 //! consumer comes back with its error, and the caller drops it unfinished (nothing partial
 //! is left on disk, `output/mod.rs`). A panic on the worker thread comes back as
 //! [`RelayError`], never as a hang: the worker's ends of both channels are dropped with it,
@@ -35,9 +38,14 @@ use std::thread::JoinHandle;
 /// cost vanishes, small enough that an error stops the run within milliseconds.
 pub const BATCH_MESSAGES: usize = 1024;
 
-/// Batches in flight at most (filled, queued, being written). Assumption: two let the two
-/// threads work at once; two more absorb the jitter of either thread.
-const BATCHES: usize = 4;
+/// Batches in flight at most (filled, queued, being written), allocated only when the worker
+/// lags: up to ~9 MB, some 30 ms of a fast time loop. The worker's work comes in bursts —
+/// opening the file at the start ([`Made`]), creating some eighty datasets when their first
+/// chunk fills (measured: 25–33 ms for one batch on the 60 M cell-step case, during which
+/// the time loop waited 16–30 ms for a free batch when there were 4) — and the queue lets
+/// the time loop run on through them. Assumption: enough for the bursts seen, small enough
+/// that a failing consumer still stops the run within a fraction of a second.
+const BATCHES: usize = 32;
 
 /// What the worker thread feeds: the run's output, from owned values only.
 pub trait Consumer {
@@ -54,6 +62,94 @@ pub trait Consumer {
     fn failed(&self) -> bool;
     /// The steps whose heads it keeps.
     fn snapshots(&self) -> Snapshots;
+    /// Called on the worker thread before the first message (see [`Made`]).
+    fn start(&mut self) {}
+}
+
+/// How a [`Made`] consumer is made.
+pub type Maker<C, E> = Box<dyn FnOnce() -> Result<C, E> + Send>;
+
+/// A consumer made on the worker thread, before the first message: the solver's thread
+/// starts stepping at once while the worker opens the output (creating an HDF5 file and its
+/// groups takes milliseconds), the batches of the first steps waiting in the channel. A
+/// consumer that cannot be made comes back as [`Made::Failed`] with its error, and stops
+/// the run as a failing consumer does.
+pub enum Made<C, E> {
+    /// Not made yet: how to make it (taken when it is made), and the steps whose heads it
+    /// will keep.
+    Pending(Option<Maker<C, E>>, Snapshots),
+    Ready(C),
+    Failed(E),
+}
+
+impl<C, E> Made<C, E> {
+    /// A consumer that `make` makes on the worker thread, keeping the heads of `snapshots`.
+    pub fn later(
+        make: impl FnOnce() -> Result<C, E> + Send + 'static,
+        snapshots: Snapshots,
+    ) -> Self {
+        Made::Pending(Some(Box::new(make)), snapshots)
+    }
+
+    /// The consumer, or the error that kept it from being made (None: never made, the
+    /// worker never having started).
+    pub fn into_result(self) -> Result<C, Option<E>> {
+        match self {
+            Made::Ready(c) => Ok(c),
+            Made::Failed(e) => Err(Some(e)),
+            Made::Pending(..) => Err(None),
+        }
+    }
+}
+
+impl<C: Consumer, E> Consumer for Made<C, E> {
+    fn step(&mut self, values: &StepValues, heads: &[f64]) {
+        if let Made::Ready(c) = self {
+            c.step(values, heads);
+        }
+    }
+    fn cycle(&mut self, cycle: &CycleView) {
+        if let Made::Ready(c) = self {
+            c.cycle(cycle);
+        }
+    }
+    fn jump(&mut self, jump: &JumpView) {
+        if let Made::Ready(c) = self {
+            c.jump(jump);
+        }
+    }
+    fn end(&mut self) {
+        if let Made::Ready(c) = self {
+            c.end();
+        }
+    }
+    fn failed(&self) -> bool {
+        match self {
+            Made::Ready(c) => c.failed(),
+            Made::Failed(_) => true,
+            Made::Pending(..) => false,
+        }
+    }
+    fn snapshots(&self) -> Snapshots {
+        match self {
+            Made::Ready(c) => c.snapshots(),
+            Made::Pending(_, s) => *s,
+            Made::Failed(_) => Snapshots::every(u64::MAX),
+        }
+    }
+    fn start(&mut self) {
+        if let Made::Pending(make, _) = self {
+            if let Some(make) = make.take() {
+                *self = match make() {
+                    Ok(mut c) => {
+                        c.start();
+                        Made::Ready(c)
+                    }
+                    Err(e) => Made::Failed(e),
+                };
+            }
+        }
+    }
 }
 
 /// The worker thread could not start or panicked; the consumer and what it wrote are gone.
@@ -165,6 +261,11 @@ fn feed<C: Consumer>(
     free: &Sender<Batch>,
     failed: &AtomicBool,
 ) -> C {
+    consumer.start();
+    if consumer.failed() {
+        failed.store(true, Ordering::Relaxed);
+        return consumer;
+    }
     while let Ok(mut batch) = full.recv() {
         let mut at = 0;
         for m in &batch.messages {
@@ -540,6 +641,50 @@ mod tests {
         for (i, (a, b)) in relayed.seen.iter().zip(&direct.seen).enumerate() {
             assert_eq!(a, b, "message {i}");
         }
+    }
+
+    /// Checks: a consumer made on the worker thread ([`Made`]) is given the same messages
+    /// as one made before, in order, although the run starts before it exists (the maker
+    /// sleeps long enough for the time loop to fill several batches).
+    #[test]
+    fn a_consumer_made_on_the_worker_misses_nothing() {
+        let steps = 5_000;
+        let mut direct = Recorder::new(9);
+        assert_eq!(play(steps, &mut Direct(&mut direct)), steps);
+        direct.end();
+        let made = Made::later(
+            || {
+                std::thread::sleep(std::time::Duration::from_millis(20));
+                Ok::<_, String>(Recorder::new(9))
+            },
+            Snapshots::every(9),
+        );
+        let (taken, fed) = relay_in_batches(made, 7, |r| {
+            let taken = play(steps, r);
+            r.complete();
+            taken
+        });
+        assert_eq!(taken, steps);
+        let relayed = fed.join().expect("no panic").into_result().expect("made");
+        assert_eq!(relayed.seen, direct.seen);
+    }
+
+    /// Checks: a consumer that cannot be made stops the run within the batches in flight
+    /// and comes back as its error.
+    #[test]
+    fn a_consumer_that_cannot_be_made_stops_the_run() {
+        let made = Made::<Recorder, String>::later(
+            || Err("no such directory".to_owned()),
+            Snapshots::every(1),
+        );
+        let (taken, fed) = relay_in_batches(made, 64, |r| play(1_000_000, r));
+        assert!(fed.failed());
+        assert!(
+            taken <= (BATCHES as u64 + 1) * 64,
+            "the run went on to step {taken}"
+        );
+        let made = fed.join().expect("no panic");
+        assert!(matches!(made.into_result(), Err(Some(e)) if e == "no such directory"));
     }
 
     /// Checks: a consumer that fails at step 1 000 stops the run within the batches in
