@@ -5,7 +5,7 @@
 //! come from the program itself by a second route (the library, the solver run in-process,
 //! the HDF5 file against the JSON summary), so the tests catch disagreements between the
 //! binary and the code it is built from, and breaks of the documented contracts: the HDF5
-//! layout (hdf5-layout.md, checked against `output/sink.rs` and `commands/run.rs`, which
+//! layout (docs/formats.md, checked against `output/sink.rs` and `commands/run.rs`, which
 //! are authoritative), the exit codes (0 success, 1 runtime failure, 2 bad input;
 //! `args.rs`), and "nothing partial is left behind" (`output/mod.rs`).
 
@@ -224,10 +224,10 @@ fn new_then_check_round_trips_every_scenario() {
 // ---------------------------------------------------------------------------------------
 
 /// Zone names in `/series/power/<zone>`, `/series/work/<zone>`, `/cycles/work_<zone>` and
-/// `/summary` `work_<zone>_j` (hdf5-layout.md).
+/// `/summary` `work_<zone>_j` (docs/formats.md).
 const ZONES: [&str; 5] = ["screen", "pack", "cake", "invaded", "formation"];
 
-/// Per-step series and their units, in CSV column order (hdf5-layout.md, checked against
+/// Per-step series and their units, in CSV column order (docs/formats.md, checked against
 /// `output/sink.rs`; dimensionless quantities are written with unit "1" there, shown as
 /// "-" in the note).
 const SERIES: [(&str, &str); 16] = [
@@ -249,7 +249,7 @@ const SERIES: [(&str, &str); 16] = [
     ("newton_iterations", "1"),
 ];
 
-/// Per-cycle datasets besides `index` and `work_<zone>` (hdf5-layout.md, sink.rs).
+/// Per-cycle datasets besides `index` and `work_<zone>` (docs/formats.md, sink.rs).
 const CYCLES: [(&str, &str); 7] = [
     ("start_time", "s"),
     ("end_time", "s"),
@@ -260,7 +260,7 @@ const CYCLES: [(&str, &str); 7] = [
     ("cake_removed", "m"),
 ];
 
-/// Root string attributes (hdf5-layout.md, run.rs `write_metadata`).
+/// Root string attributes (docs/formats.md, run.rs `SinkPlan`).
 const ROOT_ATTRS: [&str; 6] = [
     "tool_version",
     "created_utc",
@@ -270,7 +270,7 @@ const ROOT_ATTRS: [&str; 6] = [
     "case_file",
 ];
 
-/// `/summary` f64 attributes always present (hdf5-layout.md and run.rs `write_summary`,
+/// `/summary` f64 attributes always present (docs/formats.md and run.rs `write_summary`,
 /// besides `work_<zone>_j`). `peak_grain_reynolds` is present exactly when the pack's d50
 /// is known (summary.rs); `collapse_rating_pa`, `collapse_margin`, `time_to_half_cake_s`
 /// and `time_to_90pct_cake_s` may be absent.
@@ -411,7 +411,7 @@ fn check_layout(h5: &Path, case_path: &Path, case_arg: &str) -> usize {
             "{name}: node {i} outside its faces"
         );
     }
-    // Zone codes of cells: 1 pack, 3 invaded, 4 formation (hdf5-layout.md).
+    // Zone codes of cells: 1 pack, 3 invaded, 4 formation (docs/formats.md).
     for z in read_f64(&file, "grid/zone") {
         assert!([1.0, 3.0, 4.0].contains(&z), "{name}: zone code {z}");
     }

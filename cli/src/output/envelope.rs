@@ -39,8 +39,8 @@ pub const DEFAULT_EVENT_WINDOWS: u64 = 3;
 /// created and its full chunks compressed on the output thread while the run goes on; only
 /// the last chunk is left to the close (on the 60 M cell-step case's 1 000 cycles, 1024 → 256
 /// values took the close's growable writing from about 15 to 9 ms). Readers read whole
-/// series, so the chunk is only the unit of compression. Assumption: small chunks compress a
-/// little less well, and the envelopes are a small part of a file.
+/// series, so the chunk is only the unit of compression. Small chunks compress less well:
+/// the 8-hour municipal job's file (9 600 cycles) grew from 1.04 to 1.18 MB.
 pub(crate) const CHUNK: usize = 256;
 
 /// Held-back cycles of late windows at most (one window: the cycle holding the event and
