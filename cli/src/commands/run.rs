@@ -137,7 +137,6 @@ fn progress_bar(quiet: bool) -> ProgressBar {
     bar
 }
 
-/// Writes the grid, the root attributes and the summary attributes.
 /// Everything the output file is opened with, owned, so that the output thread can open it
 /// while the run starts (`output/relay.rs`, [`Made`]): the sink's layout and the file's
 /// metadata (root attributes and grid).

@@ -138,10 +138,14 @@ impl<C: Consumer, E> Consumer for Made<C, E> {
         }
     }
     fn start(&mut self) {
-        if let Made::Pending(make, _) = self {
+        if let Made::Pending(make, planned) = self {
+            let planned = *planned;
             if let Some(make) = make.take() {
                 *self = match make() {
                     Ok(mut c) => {
+                        // The relay copied the heads of the steps planned: a consumer that
+                        // keeps others would be given the wrong steps' heads.
+                        assert_eq!(c.snapshots(), planned, "snapshot steps as planned");
                         c.start();
                         Made::Ready(c)
                     }
