@@ -616,6 +616,84 @@ mod tests {
         }
     }
 
+    /// Checks: on a matrix of the kind the linear path solves — the Crank–Nicolson matrix of
+    /// `benches/reference/sine_60m_numpy.py`, built the same way (300 log-graded cells, a
+    /// 0.1–0.2 m pack of K 5e-3 m/s outside a 0.1 m screen, formation of K 2e-4 m/s to 60 m,
+    /// Ss 1e-5 1/m, 6 m screen, Δt 0.01 s, the well row a fixed head) — the forward
+    /// multipliers exceed 1 where the conductance drops at the pack's outer edge, and the
+    /// blocked two-lane solution still agrees with the one-row sweeps to round-off (the same
+    /// bounds as the random systems above). Invented right-hand side (a decaying ripple).
+    #[test]
+    fn blocked_sweeps_hold_where_the_multipliers_exceed_one() {
+        let (cells, n_pack) = (300usize, 16usize);
+        let (rs, rp, ro, b) = (0.1f64, 0.2f64, 60.0f64, 6.0f64);
+        let mut faces: Vec<f64> = (0..=n_pack)
+            .map(|i| rs * (rp / rs).powf(i as f64 / n_pack as f64))
+            .collect();
+        let rest = (cells - n_pack) as f64;
+        faces.extend((1..=cells - n_pack).map(|i| rp * (ro / rp).powf(i as f64 / rest)));
+        let k = |i: usize| if i < n_pack { 5e-3 } else { 2e-4 };
+        let rc: Vec<f64> = (0..cells)
+            .map(|i| (faces[i] * faces[i + 1]).sqrt())
+            .collect();
+        let two_pi_b = 2.0 * std::f64::consts::PI * b;
+        // Face conductances: 2πb over the sum of the half-cell resistances ln(r/r')/K.
+        let mut g = vec![two_pi_b * k(0) / (rc[0] / faces[0]).ln()];
+        g.extend((1..cells).map(|i| {
+            two_pi_b / ((faces[i] / rc[i - 1]).ln() / k(i - 1) + (rc[i] / faces[i]).ln() / k(i))
+        }));
+        g.push(two_pi_b * k(cells - 1) / (faces[cells] / rc[cells - 1]).ln());
+        let tdt = 0.5 * 0.01;
+        let n = cells + 1;
+        let storage =
+            |j: usize| 1e-5 * std::f64::consts::PI * (faces[j].powi(2) - faces[j - 1].powi(2)) * b;
+        let mut diag = vec![1.0; n];
+        let (mut lower, mut upper) = (vec![0.0; n], vec![0.0; n]);
+        for j in 1..n {
+            diag[j] = storage(j) / tdt + g[j - 1] + g[j];
+            lower[j] = -g[j - 1];
+            if j + 1 < n {
+                upper[j] = -g[j];
+            }
+        }
+        let scale: Vec<f64> = (0..n)
+            .map(|j| if j == 0 { 0.0 } else { storage(j) / tdt })
+            .collect();
+        let mut f = Factored::with_size(n);
+        f.factor(&lower, &diag, &upper).unwrap();
+        f.keep_scale(&scale, 2);
+        let largest = f.near.iter().fold(0.0f64, |a, v| a.max(v.abs()));
+        assert!(largest > 2.0, "the regime under test: max |ℓ| = {largest}");
+        let src: Vec<f64> = (0..n)
+            .map(|i| 1.5 * (-(i as f64) / 40.0).exp() * (0.3 * i as f64).cos())
+            .collect();
+        let d: Vec<f64> = (0..n)
+            .map(|i| if i == 0 { 1.2 } else { scale[i] * src[i] })
+            .collect();
+        let mut got = vec![f64::NAN; n];
+        got[..2].copy_from_slice(&d[..2]);
+        f.solve_scaled(&mut got, &src);
+        let mut want = d.clone();
+        f.solve(&mut want);
+        let big = d.iter().fold(0.0f64, |a, v| a.max(v.abs()));
+        for i in 0..n {
+            let mut r = diag[i] * got[i] - d[i];
+            if i > 0 {
+                r += lower[i] * got[i - 1];
+            }
+            if i + 1 < n {
+                r += upper[i] * got[i + 1];
+            }
+            assert!(r.abs() <= 1e-14 * 8.0 * big, "row {i}: residual {r}");
+            assert!(
+                (got[i] - want[i]).abs() <= 1e-14 * big,
+                "row {i}: {} vs {}",
+                got[i],
+                want[i]
+            );
+        }
+    }
+
     #[test]
     fn factor_names_the_zero_pivot() {
         // [[1, 1], [1, 1]] is singular; the bottom sweep eliminates row 1 and the meeting

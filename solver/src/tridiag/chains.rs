@@ -11,8 +11,10 @@
 //! ```
 //!
 //! so the chain waits for one multiply and one subtraction per four rows; the μ_j are formed
-//! once with the factors. |ℓ| < 1 for a diagonally dominant matrix, so |μ_j| < 1 and the
-//! blocked recurrence is as stable as the one-row one. The rows left over (fewer than four)
+//! once with the factors. It is the one-row recurrence regrouped, applying the same
+//! multipliers over at most four rows: an error in Z grows as in the one-row sweep, also where
+//! |ℓ| > 1 (at the pack's outer edge, where the conductance drops; tested in `tridiag.rs`).
+//! The rows left over (fewer than four)
 //! take the one-row recurrence. The same recurrence, with the substitution's multipliers,
 //! gives the substitution. Both lanes do the same correctly rounded operations (no fused
 //! multiply-add) in the same order as the portable build: the same bits on every processor.
