@@ -558,7 +558,7 @@ mod tests {
     #[test]
     fn two_lane_sweeps_are_the_scalar_blocked_recurrence_bit_for_bit() {
         // The vector lanes do the scalar recurrence's operations in the same order (no fused
-        // multiply-add, no lane mixing): the same bits as this scalar transcription, on every
+        // multiply-add, no lane mixing): the same bits as this scalar form, on every
         // size's split into whole blocks and rows left over.
         let mut seed = 0x5eed_0fb1_0c00_u64;
         for &(n, from) in &[
