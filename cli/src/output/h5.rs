@@ -215,7 +215,8 @@ impl H5Writer {
     }
 
     /// Creates an empty `f64` dataset of shape (0, `ncols`), growable by rows (e.g. head
-    /// snapshots: time × cell). Chunks hold whole rows, at most 64 KiB each (one row when a row is larger).
+    /// snapshots: time × cell). Chunks hold whole rows, at most 64 KiB each (one row when a
+    /// row is larger).
     pub fn growable_matrix(
         &mut self,
         path: &str,
