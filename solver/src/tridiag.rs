@@ -456,6 +456,74 @@ mod tests {
         }
     }
 
+    /// A random diagonally dominant symmetric system (−`off` couples rows i and i + 1) for
+    /// [`Factored::solve_scaled`] with rows below `from` set by the caller (`head`), and its
+    /// blocked two-lane solution `got`.
+    struct ScaledCase {
+        off: Vec<f64>,
+        diag: Vec<f64>,
+        scale: Vec<f64>,
+        src: Vec<f64>,
+        head: Vec<f64>,
+        f: Factored,
+        got: Vec<f64>,
+    }
+
+    fn scaled_case(n: usize, from: usize, seed: &mut u64) -> ScaledCase {
+        let off: Vec<f64> = (0..n).map(|_| 0.1 + rng(seed)).collect();
+        let diag: Vec<f64> = (0..n).map(|_| 2.5 + rng(seed)).collect();
+        let scale: Vec<f64> = (0..n).map(|_| 1e3 * rng(seed)).collect();
+        let src: Vec<f64> = (0..n).map(|_| rng(seed) - 0.5).collect();
+        let head: Vec<f64> = (0..n).map(|_| rng(seed)).collect();
+        let mut f = Factored::with_size(n);
+        f.factor_symmetric(&diag, &off).unwrap();
+        f.keep_scale(&scale, from);
+        let mut got: Vec<f64> = (0..n)
+            .map(|i| if i < from { head[i] } else { f64::NAN })
+            .collect();
+        f.solve_scaled(&mut got, &src);
+        ScaledCase {
+            off,
+            diag,
+            scale,
+            src,
+            head,
+            f,
+            got,
+        }
+    }
+
+    /// Asserts that `got` solves (`lower`, `diag`, `upper`) x = `d` with a residual within
+    /// 8e-14 and lies within 1e-14 of the one-row solution `want`, both relative to the
+    /// largest |d|: a few ulps of the largest term, the matrix being diagonally dominant so
+    /// that both sweeps are backward stable.
+    fn assert_round_off(
+        (lower, diag, upper): (&[f64], &[f64], &[f64]),
+        d: &[f64],
+        got: &[f64],
+        want: &[f64],
+        what: &str,
+    ) {
+        let n = d.len();
+        let big = d.iter().fold(0.0f64, |a, v| a.max(v.abs()));
+        for i in 0..n {
+            let mut r = diag[i] * got[i] - d[i];
+            if i > 0 {
+                r += lower[i] * got[i - 1];
+            }
+            if i + 1 < n {
+                r += upper[i] * got[i + 1];
+            }
+            assert!(r.abs() <= 1e-14 * 8.0 * big, "{what} row {i}: residual {r}");
+            assert!(
+                (got[i] - want[i]).abs() <= 1e-14 * big,
+                "{what} row {i}: {} vs {}",
+                got[i],
+                want[i]
+            );
+        }
+    }
+
     #[test]
     fn scaled_right_hand_side_matches_a_formed_one() {
         // The fused build of d_i = scale_i src_i in the forward sweep, with the two-lane
@@ -479,46 +547,29 @@ mod tests {
             (301, 2),
         ];
         for &(n, from) in &cases {
-            let off: Vec<f64> = (0..n).map(|_| 0.1 + rng(&mut seed)).collect();
-            let diag: Vec<f64> = (0..n).map(|_| 2.5 + rng(&mut seed)).collect();
-            let scale: Vec<f64> = (0..n).map(|_| 1e3 * rng(&mut seed)).collect();
-            let src: Vec<f64> = (0..n).map(|_| rng(&mut seed) - 0.5).collect();
-            let head: Vec<f64> = (0..n).map(|_| rng(&mut seed)).collect();
-            let mut f = Factored::with_size(n);
-            f.factor_symmetric(&diag, &off).unwrap();
-            f.keep_scale(&scale, from);
+            let c = scaled_case(n, from, &mut seed);
             let d: Vec<f64> = (0..n)
-                .map(|i| if i < from { head[i] } else { scale[i] * src[i] })
+                .map(|i| {
+                    if i < from {
+                        c.head[i]
+                    } else {
+                        c.scale[i] * c.src[i]
+                    }
+                })
                 .collect();
             let mut want = d.clone();
-            f.solve(&mut want);
-            let mut got: Vec<f64> = (0..n)
-                .map(|i| if i < from { head[i] } else { f64::NAN })
+            c.f.solve(&mut want);
+            let lower: Vec<f64> = (0..n)
+                .map(|i| if i > 0 { -c.off[i - 1] } else { 0.0 })
                 .collect();
-            f.solve_scaled(&mut got, &src);
-            // The residual of the blocked solution against the matrix, and its distance from
-            // the one-row solution: both a few ulps of the largest term (the matrix is
-            // diagonally dominant, so both sweeps are backward stable).
-            let big = d.iter().fold(0.0f64, |a, v| a.max(v.abs()));
-            for i in 0..n {
-                let mut r = diag[i] * got[i] - d[i];
-                if i > 0 {
-                    r -= off[i - 1] * got[i - 1];
-                }
-                if i + 1 < n {
-                    r -= off[i] * got[i + 1];
-                }
-                assert!(
-                    r.abs() <= 1e-14 * 8.0 * big,
-                    "n={n} from={from} row {i}: {r}"
-                );
-                assert!(
-                    (got[i] - want[i]).abs() <= 1e-14 * big,
-                    "n={n} from={from} row {i}: {} vs {}",
-                    got[i],
-                    want[i]
-                );
-            }
+            let upper: Vec<f64> = c.off.iter().map(|o| -o).collect();
+            assert_round_off(
+                (&lower, &c.diag, &upper),
+                &d,
+                &c.got,
+                &want,
+                &format!("n={n} from={from}"),
+            );
         }
     }
 
@@ -569,19 +620,9 @@ mod tests {
             (300, 2),
             (301, 2),
         ] {
-            let off: Vec<f64> = (0..n).map(|_| 0.1 + rng(&mut seed)).collect();
-            let diag: Vec<f64> = (0..n).map(|_| 2.5 + rng(&mut seed)).collect();
-            let scale: Vec<f64> = (0..n).map(|_| 1e3 * rng(&mut seed)).collect();
-            let src: Vec<f64> = (0..n).map(|_| rng(&mut seed) - 0.5).collect();
-            let head: Vec<f64> = (0..n).map(|_| rng(&mut seed)).collect();
-            let mut f = Factored::with_size(n);
-            f.factor_symmetric(&diag, &off).unwrap();
-            f.keep_scale(&scale, from);
-            let mut got: Vec<f64> = (0..n)
-                .map(|i| if i < from { head[i] } else { f64::NAN })
-                .collect();
-            f.solve_scaled(&mut got, &src);
-
+            let ScaledCase {
+                src, head, f, got, ..
+            } = scaled_case(n, from, &mut seed);
             let p = meeting_row(n);
             let m = p - from;
             let (inv, near, far, gain) = (&f.inv_pivot, &f.near, &f.far, &f.gain_pivot);
@@ -675,23 +716,7 @@ mod tests {
         f.solve_scaled(&mut got, &src);
         let mut want = d.clone();
         f.solve(&mut want);
-        let big = d.iter().fold(0.0f64, |a, v| a.max(v.abs()));
-        for i in 0..n {
-            let mut r = diag[i] * got[i] - d[i];
-            if i > 0 {
-                r += lower[i] * got[i - 1];
-            }
-            if i + 1 < n {
-                r += upper[i] * got[i + 1];
-            }
-            assert!(r.abs() <= 1e-14 * 8.0 * big, "row {i}: residual {r}");
-            assert!(
-                (got[i] - want[i]).abs() <= 1e-14 * big,
-                "row {i}: {} vs {}",
-                got[i],
-                want[i]
-            );
-        }
+        assert_round_off((&lower, &diag, &upper), &d, &got, &want, "reference matrix");
     }
 
     #[test]
