@@ -663,16 +663,21 @@ impl Stepper {
         let inv_theta = 1.0 / theta;
         let carry = (1.0 - theta) / theta;
         self.scratch[0] = self.y[0] * inv_theta - carry * self.h[0];
-        let [storage_change, mut energy_change, dh2, vol_scale] = kernels::extrapolate(
+        let (out, y, h, s) = (
             &mut self.scratch[1..n],
             &self.y[1..n],
             &self.h[1..n],
             &self.disc.storage[1..n],
-            inv_theta,
-            carry,
         );
+        // Crank–Nicolson's stages have no numerical dissipation: its sum is not formed.
+        let half = theta == 0.5;
+        let [storage_change, mut energy_change, dh2, vol_scale] = if half {
+            kernels::extrapolate::<true>(out, y, h, s, inv_theta, carry)
+        } else {
+            kernels::extrapolate::<false>(out, y, h, s, inv_theta, carry)
+        };
         energy_change *= 0.5;
-        let numerical = (theta - 0.5) * dh2;
+        let numerical = if half { 0.0 } else { (theta - 0.5) * dh2 };
         // The screen flow at the θ-point heads (through the column when it has inertia),
         // and the column's new flow and energy.
         let q_in = self.screen_path_flow(self.y[0] - self.y[1]).0;

@@ -35,10 +35,21 @@ macro_rules! avx_twin {
     };
 }
 
+/// The lanes of a sum added in order, ((l₀ + l₁) + l₂) + l₃, inlined (the AVX builds kept
+/// `iter().sum()` as a call).
+#[inline(always)]
+fn sum_lanes(l: [f64; LANES]) -> f64 {
+    ((l[0] + l[1]) + l[2]) + l[3]
+}
+
 /// The end of a θ-stage from its θ-point heads, h_new = y/θ − (1−θ)/θ h, written to `out`,
 /// with the sums of the stage's balance: [Σ S Δh, Σ S Δh (h_new + h), Σ S Δh², Σ |S Δh|]
 /// (Δh = h_new − h). All slices have one length.
-pub(super) fn extrapolate(
+///
+/// With `HALF` (θ = ½, `inv_theta` = 2 and `carry` = 1, which it ignores) h_new = (y + y) − h,
+/// the same bits as 2y − 1·h (doubling and the product by 1 are exact), and Σ S Δh² is
+/// not formed (returned as 0): the numerical dissipation it scales, (θ − ½) Σ S Δh², is 0.
+pub(super) fn extrapolate<const HALF: bool>(
     out: &mut [f64],
     y: &[f64],
     h: &[f64],
@@ -46,16 +57,12 @@ pub(super) fn extrapolate(
     inv_theta: f64,
     carry: f64,
 ) -> [f64; 4] {
-    dispatch!(
-        extrapolate_kernel,
-        extrapolate_avx,
-        out,
-        y,
-        h,
-        s,
-        inv_theta,
-        carry
-    )
+    #[cfg(target_arch = "x86_64")]
+    if std::arch::is_x86_feature_detected!("avx") {
+        // SAFETY: the processor has just been found to support AVX.
+        return unsafe { extrapolate_avx::<HALF>(out, y, h, s, inv_theta, carry) };
+    }
+    extrapolate_kernel::<HALF>(out, y, h, s, inv_theta, carry)
 }
 
 /// [`extrapolate_kernel`] in AVX instructions: each of the four lanes of a vector does
@@ -65,7 +72,7 @@ pub(super) fn extrapolate(
 /// The processor must support AVX.
 #[cfg(target_arch = "x86_64")]
 #[target_feature(enable = "avx")]
-unsafe fn extrapolate_avx(
+unsafe fn extrapolate_avx<const HALF: bool>(
     out: &mut [f64],
     y: &[f64],
     h: &[f64],
@@ -89,11 +96,17 @@ unsafe fn extrapolate_avx(
             let yk = _mm256_loadu_pd(y.as_ptr().add(k));
             let hk = _mm256_loadu_pd(h.as_ptr().add(k));
             let sk = _mm256_loadu_pd(s.as_ptr().add(k));
-            let hn = _mm256_sub_pd(_mm256_mul_pd(yk, inv), _mm256_mul_pd(car, hk));
+            let hn = if HALF {
+                _mm256_sub_pd(_mm256_add_pd(yk, yk), hk)
+            } else {
+                _mm256_sub_pd(_mm256_mul_pd(yk, inv), _mm256_mul_pd(car, hk))
+            };
             let sdh = _mm256_mul_pd(sk, _mm256_sub_pd(hn, hk));
             acc[0] = _mm256_add_pd(acc[0], sdh);
             acc[1] = _mm256_add_pd(acc[1], _mm256_mul_pd(sdh, _mm256_add_pd(hn, hk)));
-            acc[2] = _mm256_add_pd(acc[2], _mm256_mul_pd(sdh, _mm256_sub_pd(hn, hk)));
+            if !HALF {
+                acc[2] = _mm256_add_pd(acc[2], _mm256_mul_pd(sdh, _mm256_sub_pd(hn, hk)));
+            }
             acc[3] = _mm256_add_pd(acc[3], _mm256_andnot_pd(sign, sdh));
             _mm256_storeu_pd(out.as_mut_ptr().add(k), hn);
         }
@@ -109,19 +122,39 @@ unsafe fn extrapolate_avx(
         .zip(&h[full..])
         .zip(&s[full..])
     {
-        let h_new = y * inv_theta - carry * h;
-        let sdh = s * (h_new - h);
-        lanes[0][0] += sdh;
-        lanes[1][0] += sdh * (h_new + h);
-        lanes[2][0] += sdh * (h_new - h);
-        lanes[3][0] += sdh.abs();
-        *o = h_new;
+        *o = extrapolate_row::<HALF>(0, y, h, s, inv_theta, carry, &mut lanes);
     }
-    lanes.map(|a| a.iter().sum::<f64>())
+    lanes.map(sum_lanes)
+}
+
+/// One row of [`extrapolate_kernel`]: h_new, its terms added to lane `lane` of the sums.
+#[inline(always)]
+fn extrapolate_row<const HALF: bool>(
+    lane: usize,
+    y: f64,
+    h: f64,
+    s: f64,
+    inv_theta: f64,
+    carry: f64,
+    acc: &mut [[f64; LANES]; 4],
+) -> f64 {
+    let h_new = if HALF {
+        (y + y) - h
+    } else {
+        y * inv_theta - carry * h
+    };
+    let sdh = s * (h_new - h);
+    acc[0][lane] += sdh;
+    acc[1][lane] += sdh * (h_new + h);
+    if !HALF {
+        acc[2][lane] += sdh * (h_new - h);
+    }
+    acc[3][lane] += sdh.abs();
+    h_new
 }
 
 #[inline(always)]
-fn extrapolate_kernel(
+fn extrapolate_kernel<const HALF: bool>(
     out: &mut [f64],
     y: &[f64],
     h: &[f64],
@@ -132,15 +165,6 @@ fn extrapolate_kernel(
     let m = out.len();
     assert!(y.len() == m && h.len() == m && s.len() == m);
     let mut acc = [[0.0f64; LANES]; 4];
-    let body = |lane: usize, y: f64, h: f64, s: f64, acc: &mut [[f64; LANES]; 4]| {
-        let h_new = y * inv_theta - carry * h;
-        let sdh = s * (h_new - h);
-        acc[0][lane] += sdh;
-        acc[1][lane] += sdh * (h_new + h);
-        acc[2][lane] += sdh * (h_new - h);
-        acc[3][lane] += sdh.abs();
-        h_new
-    };
     let (out4, y4, h4, s4) = (
         out.chunks_exact_mut(LANES),
         y.chunks_exact(LANES),
@@ -151,13 +175,13 @@ fn extrapolate_kernel(
     let full = m - y1.len();
     for (((o, y), h), s) in out4.zip(y4).zip(h4).zip(s4) {
         for l in 0..LANES {
-            o[l] = body(l, y[l], h[l], s[l], &mut acc);
+            o[l] = extrapolate_row::<HALF>(l, y[l], h[l], s[l], inv_theta, carry, &mut acc);
         }
     }
     for (((o, &y), &h), &s) in out[full..].iter_mut().zip(y1).zip(h1).zip(s1) {
-        *o = body(0, y, h, s, &mut acc);
+        *o = extrapolate_row::<HALF>(0, y, h, s, inv_theta, carry, &mut acc);
     }
-    acc.map(|a| a.iter().sum::<f64>())
+    acc.map(sum_lanes)
 }
 
 /// Σ_f c_f (a_f − b_f)², the power of a run of linear faces of conductances `c` between
@@ -220,17 +244,30 @@ unsafe fn linear_powers_avx<const K: usize>(
         }
     }
     let mut out = [0.0; K];
-    for ((out, acc), ((a, b), extra)) in out.iter_mut().zip(acc).zip(heads.into_iter().zip(extras))
+    let tail = whole < m;
+    for ((out, mut acc), ((a, b), extra)) in
+        out.iter_mut().zip(acc).zip(heads.into_iter().zip(extras))
     {
-        let mut sums = [[0.0f64; LANES]; GROUPS];
-        for (s, a) in sums.iter_mut().zip(acc) {
+        if tail {
+            // The last faces go to lane 0 of group 0 before the groups are combined.
+            let mut first = [0.0f64; LANES];
             // SAFETY: a 4-lane store into a 4-element array.
-            unsafe { _mm256_storeu_pd(s.as_mut_ptr(), a) };
+            unsafe { _mm256_storeu_pd(first.as_mut_ptr(), acc[0]) };
+            for ((&c, &a), &b) in c[whole..].iter().zip(&a[whole..]).zip(&b[whole..]) {
+                first[0] += c * (a - b) * (a - b);
+            }
+            // SAFETY: a 4-lane load from a 4-element array.
+            acc[0] = unsafe { _mm256_loadu_pd(first.as_ptr()) };
         }
-        for ((&c, &a), &b) in c[whole..].iter().zip(&a[whole..]).zip(&b[whole..]) {
-            sums[0][0] += c * (a - b) * (a - b);
+        // The groups combined lane by lane as `combine_power` does, in vectors.
+        let groups = _mm256_add_pd(_mm256_add_pd(acc[0], acc[1]), _mm256_add_pd(acc[2], acc[3]));
+        let mut lanes = [0.0f64; LANES];
+        // SAFETY: a 4-lane store into a 4-element array.
+        unsafe { _mm256_storeu_pd(lanes.as_mut_ptr(), groups) };
+        if let Some(e) = extra {
+            lanes[0] += e;
         }
-        *out = combine_power(&sums, extra);
+        *out = sum_lanes(lanes);
     }
     out
 }
@@ -246,7 +283,7 @@ fn combine_power(acc: &[[f64; LANES]; GROUPS], extra: Option<f64>) -> f64 {
     if let Some(e) = extra {
         lanes[0] += e;
     }
-    lanes.iter().sum::<f64>()
+    sum_lanes(lanes)
 }
 
 /// Independent sums of [`linear_powers_kernel`]: [`LANES`] lanes in each of `GROUPS`
@@ -451,10 +488,22 @@ mod tests {
             s[m / 2] = 0.0;
             let c: Vec<f64> = values(&mut seed, m, 1e-2).iter().map(|x| x.abs()).collect();
             let (mut o1, mut o2) = (vec![0.0; m], vec![0.0; m]);
-            let a = extrapolate(&mut o1, &y, &h, &s, 2.0, 1.0);
-            let b = extrapolate_kernel(&mut o2, &y, &h, &s, 2.0, 1.0);
+            let a = extrapolate::<false>(&mut o1, &y, &h, &s, 2.0, 1.0);
+            let b = extrapolate_kernel::<false>(&mut o2, &y, &h, &s, 2.0, 1.0);
             assert_eq!(a.map(f64::to_bits), b.map(f64::to_bits), "m = {m}");
             assert_eq!(o1, o2);
+            // θ = ½'s form: the same bits, but for the sum it does not form.
+            let (mut o3, mut o4) = (vec![0.0; m], vec![0.0; m]);
+            let c3 = extrapolate::<true>(&mut o3, &y, &h, &s, 2.0, 1.0);
+            let c4 = extrapolate_kernel::<true>(&mut o4, &y, &h, &s, 2.0, 1.0);
+            let general = [a[0], a[1], 0.0, a[3]];
+            assert_eq!(c3.map(f64::to_bits), general.map(f64::to_bits), "m = {m}");
+            assert_eq!(c4.map(f64::to_bits), general.map(f64::to_bits), "m = {m}");
+            assert_eq!(
+                o3.iter().map(|v| v.to_bits()).collect::<Vec<_>>(),
+                o1.iter().map(|v| v.to_bits()).collect::<Vec<_>>()
+            );
+            assert_eq!(o4, o1);
             let (u, w) = (values(&mut seed, m, 1.0), values(&mut seed, m, 1.0));
             for extra in [None, Some(3e-4)] {
                 let (p1, p2) = (
@@ -530,7 +579,7 @@ mod tests {
         let mut s: Vec<f64> = values(&mut seed, m, 1e-3).iter().map(|x| x.abs()).collect();
         s[5] = 0.0;
         let (theta, mut out) = (0.5, vec![0.0; m]);
-        let sums = extrapolate(&mut out, &y, &h, &s, 1.0 / theta, (1.0 - theta) / theta);
+        let sums = extrapolate::<false>(&mut out, &y, &h, &s, 1.0 / theta, (1.0 - theta) / theta);
         let mut want = [0.0; 4];
         let mut size = [0.0; 4];
         for j in 0..m {
