@@ -41,14 +41,18 @@ const COMPRESSED_FRACTION: f64 = 0.55;
 
 /// Bytes of `datasets` datasets of `values` 8-byte values each, in chunks of `chunk`
 /// values: compressed once a dataset fills its first chunk, written whole and uncompressed
-/// below that (`output/h5.rs`, docs/formats.md).
+/// below that; a small chunk's last one is stored whole and uncompressed, counted here as
+/// one more chunk (`output/h5.rs`, docs/formats.md).
 fn stored_bytes(datasets: f64, values: f64, chunk: usize) -> f64 {
-    let fraction = if values < chunk as f64 {
-        1.0
+    if values < chunk as f64 {
+        return 8.0 * datasets * values;
+    }
+    let last = if 8 * chunk <= crate::output::h5::UNFILTERED_LAST_CHUNK_BYTES {
+        8.0 * chunk as f64
     } else {
-        COMPRESSED_FRACTION
+        0.0
     };
-    fraction * 8.0 * datasets * values
+    datasets * (COMPRESSED_FRACTION * 8.0 * values + last)
 }
 /// Fixed part of an HDF5 file: grid, attributes, cycle tables, headers. Measured
 /// (2026-12-04): the shipped cases cut to 1 s of simulated time write 99 to 199 kB; 0.5 MB

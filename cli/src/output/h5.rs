@@ -436,7 +436,20 @@ struct Growable<T> {
     buf: Vec<T>,
     /// Rows already in the dataset.
     rows: usize,
+    /// Whether the dataset was created with the shuffle and deflate filters.
+    filtered: bool,
 }
+
+/// The filter mask of a chunk stored without the shuffle and deflate filters (bits 0 and
+/// 1: the first two filters of the pipeline skipped).
+const BOTH_FILTERS_SKIPPED: u32 = 0b11;
+
+/// Largest chunk, in bytes, whose last, partly filled chunk is stored without its filters
+/// ([`Growable::write_last_unfiltered`]): the per-cycle datasets' chunks of 256 values
+/// (2 KiB). Larger chunks (a series' 64 KiB) are compressed as the others: their bytes would
+/// weigh in the file, where a small chunk's compression is mostly the fixed cost of setting
+/// up the deflate stream. Assumption: 4 KiB separates the two kinds.
+pub(crate) const UNFILTERED_LAST_CHUNK_BYTES: usize = 4 * 1024;
 
 impl<T: H5Type + Copy> Growable<T> {
     fn new(plan: Box<Plan>, path: &str, ncols: usize, matrix: bool, chunk_rows: usize) -> Self {
@@ -448,6 +461,7 @@ impl<T: H5Type + Copy> Growable<T> {
             chunk_rows,
             buf: Vec::with_capacity(chunk_rows * ncols),
             rows: 0,
+            filtered: false,
         }
     }
 
@@ -502,6 +516,7 @@ impl<T: H5Type + Copy> Growable<T> {
         } else {
             builder.chunk(chunk_rows).shape(0..)
         };
+        let filtered = plan.deflate.is_some();
         if let Some(level) = plan.deflate {
             builder = builder.shuffle().deflate(level);
         }
@@ -514,6 +529,58 @@ impl<T: H5Type + Copy> Growable<T> {
             .map_err(hdf5_err(&self.object))?;
         describe(&ds, &self.object, &plan.units, &plan.description)?;
         self.slot = Slot::Open(ds);
+        self.filtered = filtered;
+        Ok(())
+    }
+
+    /// Writes the buffer, fewer rows than a chunk, as the dataset's last chunk stored
+    /// without its filters (HDF5's direct chunk write, the chunk's filter mask saying both
+    /// were skipped; readers undo only the filters a chunk went through). The rows past the
+    /// dataset's extent repeat its first buffered value and are never read. Only for chunks
+    /// of at most [`UNFILTERED_LAST_CHUNK_BYTES`], whose compression at the finish would
+    /// cost more time than their bytes are worth (docs/formats.md).
+    fn write_last_unfiltered(&mut self) -> Result<()> {
+        let Slot::Open(ds) = &self.slot else {
+            return Err(OutputError::Finished {
+                object: self.object.clone(),
+            });
+        };
+        let (start, end) = (self.rows, self.len_rows());
+        assert!(start % self.chunk_rows == 0 && end - start < self.chunk_rows);
+        let resized = if self.matrix {
+            ds.resize((end, self.ncols))
+        } else {
+            ds.resize(end)
+        };
+        resized.map_err(hdf5_err(&self.object))?;
+        let first = self.buf[0];
+        self.buf.resize(self.chunk_rows * self.ncols, first);
+        let offset: [hdf5_sys::h5::hsize_t; 2] = [start as u64, 0];
+        let bytes = std::mem::size_of_val(&self.buf[..]);
+        let id = ds.id();
+        let (data, at) = (self.buf.as_ptr().cast(), offset.as_ptr());
+        // SAFETY: `id` is the open dataset's; `at` points to one offset per dimension of
+        // its rank (1 or 2), chunk-aligned; `data` points to `bytes` bytes, one whole chunk
+        // of the dataset's element type in its in-memory layout, which is the file's (the
+        // dataset was created with the native type of `T`). The library's lock is held.
+        let status = hdf5::sync::sync(|| unsafe {
+            hdf5_sys::h5d::H5Dwrite_chunk(
+                id,
+                hdf5_sys::h5p::H5P_DEFAULT,
+                BOTH_FILTERS_SKIPPED,
+                at,
+                bytes,
+                data,
+            )
+        });
+        self.buf.clear();
+        if status < 0 {
+            return Err(invalid(
+                &self.object,
+                "the library refused to write the last chunk",
+            ));
+        }
+        self.rows = end;
         Ok(())
     }
 
@@ -578,6 +645,16 @@ impl<T: H5Type + Copy + Send> Pending for Growable<T> {
             } else {
                 self.write_whole()
             };
+        }
+        // A chunk of which rows were written before (`H5Writer::flush`) goes through the
+        // filters again with the rows added.
+        let chunk_bytes = self.chunk_rows * self.ncols * std::mem::size_of::<T>();
+        if self.filtered
+            && chunk_bytes <= UNFILTERED_LAST_CHUNK_BYTES
+            && !self.buf.is_empty()
+            && self.rows % self.chunk_rows == 0
+        {
+            return self.write_last_unfiltered();
         }
         Growable::flush(self)
     }
@@ -775,6 +852,54 @@ mod tests {
                 ds.filters()
             );
         }
+    }
+
+    /// The last, partly filled chunk of a dataset with small chunks is stored without its
+    /// filters (its filter mask says both were skipped) and reads back as written; the full
+    /// chunks before it, a large-chunk dataset's last chunk and a chunk that was partly
+    /// written before (`flush`) go through the filters.
+    #[test]
+    fn small_last_chunks_are_stored_unfiltered() {
+        if !hdf5::filters::deflate_available() {
+            return;
+        }
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("u.h5");
+        let mut w = H5Writer::create(&path).unwrap();
+        w.set_deflate(Some(1));
+        let mut small = w.growable_series("small", "m", "", 256).unwrap();
+        let mut index = w.growable_series_of::<u64>("index", "1", "", 256).unwrap();
+        let mut large = w.growable_series("large", "m", "", 8192).unwrap();
+        let mut flushed = w.growable_series("flushed", "m", "", 256).unwrap();
+        let values: Vec<f64> = (0..1000).map(|i| (f64::from(i) * 0.37).sin()).collect();
+        let counts: Vec<u64> = (0..1000).collect();
+        small.append(&values).unwrap();
+        index.append(&counts).unwrap();
+        let long: Vec<f64> = (0..10_000).map(|i| f64::from(i) * 1e-3).collect();
+        large.append(&long).unwrap();
+        flushed.append(&values[..900]).unwrap();
+        flushed.flush().unwrap();
+        flushed.append(&values[900..]).unwrap();
+        w.finish().unwrap();
+        let f = File::open(&path).unwrap();
+        let masks = |name: &str| {
+            let ds = f.dataset(name).unwrap();
+            (0..ds.num_chunks().unwrap())
+                .map(|i| ds.chunk_info(i).unwrap().filter_mask)
+                .collect::<Vec<_>>()
+        };
+        assert_eq!(masks("small"), [0, 0, 0, BOTH_FILTERS_SKIPPED]);
+        assert_eq!(masks("index"), [0, 0, 0, BOTH_FILTERS_SKIPPED]);
+        assert_eq!(masks("large"), [0, 0]);
+        assert_eq!(masks("flushed"), [0, 0, 0, 0]);
+        let read = |name: &str| f.dataset(name).unwrap().read_raw::<f64>().unwrap();
+        let bits = |v: &[f64]| v.iter().map(|x| x.to_bits()).collect::<Vec<_>>();
+        assert_eq!(bits(&read("small")), bits(&values));
+        assert_eq!(bits(&read("flushed")), bits(&values));
+        assert_eq!(read("large"), long);
+        let ds = f.dataset("index").unwrap();
+        assert_eq!(ds.shape(), [1000]);
+        assert_eq!(ds.read_raw::<u64>().unwrap(), counts);
     }
 
     /// A series or matrix that never filled its chunk is written whole at the finish,
