@@ -245,6 +245,9 @@ pub fn default_first_step(model: &Model) -> f64 {
 struct Clock {
     syncs: Vec<f64>,
     next_sync: usize,
+    /// k = ⌊(t + ε)/P⌋ + 1 of the last call, the period that ends next: t never decreases,
+    /// so k changes only when (t + ε)/P reaches it (0: not formed yet).
+    period_count: f64,
 }
 
 impl Clock {
@@ -262,6 +265,7 @@ impl Clock {
         Clock {
             syncs,
             next_sync: 0,
+            period_count: 0.0,
         }
     }
 
@@ -291,8 +295,11 @@ impl Clock {
             }
         }
         if let Some(p) = model.drive.period_s() {
-            let k = ((t + eps) / p).floor() + 1.0;
-            let end = k * p;
+            let periods = (t + eps) / p;
+            if periods >= self.period_count {
+                self.period_count = periods.floor() + 1.0;
+            }
+            let end = self.period_count * p;
             if end < target.0 - eps {
                 target = (end, false);
             }
@@ -450,28 +457,26 @@ pub fn run_from_state(
         let b = st.balance;
         let face = face_state(model, &st);
         let h_well = st.heads()[0];
-        check_finite(
-            &[
-                ("well head", h_well),
-                ("screen flow", face.screen_flow_m3_s),
-                ("face flux", face.flux_m_s),
-                ("face gradient", face.gradient),
-                ("shear proxy", face.shear_pa),
-                ("screen outer head", face.screen_outer_head_m),
-                ("energy into the screen", b.energy_in),
-                ("storage energy change", b.storage_energy_change),
-                ("numerical dissipation", b.numerical_dissipation),
-                ("dissipated energy", b.dissipated.iter().sum()),
-                ("screen volume", b.volume_in_m3),
-                ("device volume", b.device_volume_m3),
-                ("bypass volume", b.bypass_volume_m3),
-                ("well storage change", b.well_storage_change_m3),
-                ("volume residual", b.mass_residual),
-                ("energy residual", b.energy_residual),
-                ("well volume residual", b.well_residual),
-            ],
+        check_finite!(
             st.time_s,
-            summary.steps,
+            summary.steps;
+            "well head" => h_well,
+            "screen flow" => face.screen_flow_m3_s,
+            "face flux" => face.flux_m_s,
+            "face gradient" => face.gradient,
+            "shear proxy" => face.shear_pa,
+            "screen outer head" => face.screen_outer_head_m,
+            "energy into the screen" => b.energy_in,
+            "storage energy change" => b.storage_energy_change,
+            "numerical dissipation" => b.numerical_dissipation,
+            "dissipated energy" => b.dissipated.iter().sum(),
+            "screen volume" => b.volume_in_m3,
+            "device volume" => b.device_volume_m3,
+            "bypass volume" => b.bypass_volume_m3,
+            "well storage change" => b.well_storage_change_m3,
+            "volume residual" => b.mass_residual,
+            "energy residual" => b.energy_residual,
+            "well volume residual" => b.well_residual,
         )?;
         for (k, w) in summary.work_j.iter_mut().enumerate() {
             *w += rho_g * b.dissipated[k];
@@ -571,7 +576,7 @@ pub fn run_from_state(
         let mut cycle_done = None;
         if report {
             let power_w = power_now(model, &mut st);
-            check_finite(&[("power", power_w.iter().sum())], st.time_s, summary.steps)?;
+            check_finite!(st.time_s, summary.steps; "power" => power_w.iter().sum())?;
             let values = StepValues {
                 step: summary.steps,
                 time_s: st.time_s,

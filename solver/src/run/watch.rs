@@ -63,14 +63,31 @@ impl Alternation {
     }
 }
 
-/// The first of `values` that is not finite, as an error at `time_s`, step `step`.
-pub fn check_finite(
-    values: &[(&'static str, f64)],
+/// `check_finite!(time_s, step; "name" => value, …)`: the first value that is not finite,
+/// as [`SolverError::NonFiniteResult`] naming it, at `time_s`, step `step`; `Ok(())` when
+/// all are. Each name stays beside its value; the values are checked as an array by
+/// [`first_non_finite`], without building the named list.
+macro_rules! check_finite {
+    ($time_s:expr, $step:expr; $($name:literal => $value:expr),+ $(,)?) => {
+        $crate::run::watch::first_non_finite(&[$($name),+], [$($value),+], $time_s, $step)
+    };
+}
+pub(crate) use check_finite;
+
+/// The first of `values` that is not finite, named by the same entry of `names`, as an
+/// error at `time_s`, step `step`. The usual case, all finite, is one test: 0 × x is ±0
+/// for a finite x and NaN otherwise, and a sum of zeros is 0.
+pub fn first_non_finite<const N: usize>(
+    names: &[&'static str; N],
+    values: [f64; N],
     time_s: f64,
     step: u64,
 ) -> Result<(), SolverError> {
-    match values.iter().find(|(_, v)| !v.is_finite()) {
-        Some(&(quantity, value)) => Err(SolverError::NonFiniteResult {
+    if values.iter().fold(0.0, |a, &x| a + 0.0 * x) == 0.0 {
+        return Ok(());
+    }
+    match names.iter().zip(values).find(|(_, v)| !v.is_finite()) {
+        Some((&quantity, value)) => Err(SolverError::NonFiniteResult {
             quantity,
             value,
             time_s,
@@ -102,7 +119,8 @@ mod tests {
 
     #[test]
     fn non_finite_values_are_named() {
-        let e = check_finite(&[("well head", 1.0), ("face flux", f64::NAN)], 2.0, 7);
+        let names = ["well head", "face flux", "screen flow"];
+        let e = first_non_finite(&names, [1.0, f64::NAN, f64::INFINITY], 2.0, 7);
         match e {
             Err(SolverError::NonFiniteResult { quantity, step, .. }) => {
                 assert_eq!(quantity, "face flux");
@@ -110,7 +128,9 @@ mod tests {
             }
             other => panic!("{other:?}"),
         }
-        assert!(check_finite(&[("x", f64::INFINITY)], 0.0, 1).is_err());
-        assert!(check_finite(&[("x", 1e308)], 0.0, 1).is_ok());
+        for bad in [f64::INFINITY, f64::NEG_INFINITY, f64::NAN] {
+            assert!(first_non_finite(&["x", "y"], [-0.0, bad], 0.0, 1).is_err());
+        }
+        assert!(first_non_finite(&["x", "y"], [1e308, -1e308], 0.0, 1).is_ok());
     }
 }
