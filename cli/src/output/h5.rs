@@ -871,6 +871,10 @@ mod tests {
         let mut index = w.growable_series_of::<u64>("index", "1", "", 256).unwrap();
         let mut large = w.growable_series("large", "m", "", 8192).unwrap();
         let mut flushed = w.growable_series("flushed", "m", "", 256).unwrap();
+        // One byte a value: a chunk of 4096 is 4 KiB, the largest stored unfiltered.
+        let mut kinds = w.growable_series_of::<u8>("kinds", "1", "", 4096).unwrap();
+        let bytes: Vec<u8> = (0..5000u32).map(|i| (i % 7) as u8).collect();
+        kinds.append(&bytes).unwrap();
         let values: Vec<f64> = (0..1000).map(|i| (f64::from(i) * 0.37).sin()).collect();
         let counts: Vec<u64> = (0..1000).collect();
         small.append(&values).unwrap();
@@ -892,6 +896,8 @@ mod tests {
         assert_eq!(masks("index"), [0, 0, 0, BOTH_FILTERS_SKIPPED]);
         assert_eq!(masks("large"), [0, 0]);
         assert_eq!(masks("flushed"), [0, 0, 0, 0]);
+        assert_eq!(masks("kinds"), [0, BOTH_FILTERS_SKIPPED]);
+        assert_eq!(f.dataset("kinds").unwrap().read_raw::<u8>().unwrap(), bytes);
         let read = |name: &str| f.dataset(name).unwrap().read_raw::<f64>().unwrap();
         let bits = |v: &[f64]| v.iter().map(|x| x.to_bits()).collect::<Vec<_>>();
         assert_eq!(bits(&read("small")), bits(&values));
