@@ -446,7 +446,7 @@ const BOTH_FILTERS_SKIPPED: u32 = 0b11;
 
 /// Largest chunk, in bytes, whose last, partly filled chunk is stored without its filters
 /// ([`Growable::write_last_unfiltered`]): the per-cycle datasets' chunks of 256 values
-/// (2 KiB). Larger chunks (a series' 64 KiB) are compressed as the others: their bytes would
+/// (2 KiB) and the event kinds' of 4096 bytes. Larger chunks (a series' 64 KiB) are compressed as the others: their bytes would
 /// weigh in the file, where a small chunk's compression is mostly the fixed cost of setting
 /// up the deflate stream. Assumption: 4 KiB separates the two kinds.
 pub(crate) const UNFILTERED_LAST_CHUNK_BYTES: usize = 4 * 1024;
