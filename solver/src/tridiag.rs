@@ -251,7 +251,7 @@ impl Factored {
     ///
     /// # Panics
     /// When no scale was kept since the last factorization.
-    pub fn solve_scaled(&self, x: &mut [f64], src: &[f64]) {
+    pub fn solve_scaled(&mut self, x: &mut [f64], src: &[f64]) {
         let n = x.len();
         assert_eq!(n, self.inv_pivot.len());
         assert!(
@@ -295,7 +295,7 @@ impl Factored {
             z_bottom = gain[i] * src[i] - near[i] * z_bottom;
             x[i] = z_bottom;
         }
-        let [z_top, z_bottom] = self.chains.forward(x, src, p, [z_top, z_bottom]);
+        let [z_top, z_bottom] = self.chains.forward(src, p, [z_top, z_bottom]);
         x[p] = gain[p] * src[p] - near[p] * z_top - far[p] * z_bottom;
         let x_down = self.chains.substitute(x, p);
         // The bottom half has one row more when n is even.
