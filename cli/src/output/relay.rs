@@ -618,6 +618,15 @@ mod tests {
         steps
     }
 
+    /// The record of `play(steps)` fed directly to a recorder keeping every 9th step's
+    /// heads, ended: what every relayed record is compared with.
+    fn fed_directly(steps: u64) -> Recorder {
+        let mut direct = Recorder::new(9);
+        assert_eq!(play(steps, &mut Direct(&mut direct)), steps);
+        direct.end();
+        direct
+    }
+
     /// Checks: through the relay, in batches of 7 messages (over 2 000 batches), the
     /// consumer gets every step, cycle and jump in the order the run reported them, with
     /// the heads of exactly the steps it keeps, and the end of the run last: the same
@@ -625,9 +634,7 @@ mod tests {
     #[test]
     fn the_relay_keeps_every_message_in_order() {
         let steps = 12_000;
-        let mut direct = Recorder::new(9);
-        assert_eq!(play(steps, &mut Direct(&mut direct)), steps);
-        direct.end();
+        let direct = fed_directly(steps);
         let (taken, fed) = relay_in_batches(Recorder::new(9), 7, |r| {
             let taken = play(steps, r);
             r.complete();
@@ -653,9 +660,7 @@ mod tests {
     #[test]
     fn a_consumer_made_on_the_worker_misses_nothing() {
         let steps = 5_000;
-        let mut direct = Recorder::new(9);
-        assert_eq!(play(steps, &mut Direct(&mut direct)), steps);
-        direct.end();
+        let direct = fed_directly(steps);
         let made = Made::later(
             || {
                 std::thread::sleep(std::time::Duration::from_millis(20));
