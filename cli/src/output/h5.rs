@@ -738,6 +738,19 @@ mod tests {
         v
     }
 
+    /// The build script linked HDF5's archive (`cli/build.rs`): the library then runs
+    /// from this binary, and no shared `libhdf5` is mapped once it has started. Fails if a
+    /// change of the linker's search order brought the shared library back.
+    #[cfg(all(hdf5_static, target_os = "linux"))]
+    #[test]
+    fn hdf5_runs_from_the_binary_when_its_archive_is_linked() {
+        let (major, minor, _) = hdf5::library_version();
+        assert!(major >= 1 && minor >= 8);
+        let maps = std::fs::read_to_string("/proc/self/maps").unwrap();
+        let shared: Vec<&str> = maps.lines().filter(|l| l.contains("libhdf5")).collect();
+        assert!(shared.is_empty(), "shared HDF5 mapped: {shared:?}");
+    }
+
     #[test]
     fn write_and_read_back_works() {
         let dir = tempfile::tempdir().unwrap();
