@@ -37,6 +37,16 @@ fn main() {
     else {
         return;
     };
+    // The shared libraries the archive calls (the distribution's `libhdf5-dev` depends on
+    // their development packages): without them, stay with the shared HDF5.
+    let system = system_dirs();
+    let deps = ["sz", "z"];
+    if !deps
+        .iter()
+        .all(|l| system.iter().any(|d| d.join(format!("lib{l}.so")).exists()))
+    {
+        return;
+    }
     let out = PathBuf::from(std::env::var_os("OUT_DIR").expect("cargo sets OUT_DIR"));
     let dir = out.join("hdf5-static");
     let link = dir.join("libhdf5.a");
@@ -48,7 +58,7 @@ fn main() {
     // As linker arguments, which reach every binary, test and bench of the package (a
     // `rustc-link-lib` reaches only those that use the library target) and come after the
     // archive on the command line.
-    for lib in ["sz", "z"] {
+    for lib in deps {
         println!("cargo::rustc-link-arg=-l{lib}");
     }
 }
@@ -70,13 +80,15 @@ fn library_dirs() -> Vec<PathBuf> {
             );
         }
     }
-    let arch = std::env::var("CARGO_CFG_TARGET_ARCH").unwrap_or_default();
-    let multiarch = format!("{arch}-linux-gnu");
-    for base in [
-        Path::new("/usr/lib").join(&multiarch),
-        PathBuf::from("/usr/lib"),
-    ] {
-        dirs.push(base.join("hdf5/serial"));
-    }
+    dirs.extend(system_dirs().into_iter().map(|d| d.join("hdf5/serial")));
     dirs
+}
+
+/// The system's library directories: the Debian/Ubuntu multiarch one, then `/usr/lib`.
+fn system_dirs() -> [PathBuf; 2] {
+    let arch = std::env::var("CARGO_CFG_TARGET_ARCH").unwrap_or_default();
+    [
+        Path::new("/usr/lib").join(format!("{arch}-linux-gnu")),
+        PathBuf::from("/usr/lib"),
+    ]
 }
