@@ -17,7 +17,9 @@ use serde::ser::{Serialize, SerializeMap, Serializer};
 /// Grain Reynolds number above which Darcy's law is doubtful (docs/physics.md §4.4, Bear 1972;
 /// from memory — verify).
 pub const REYNOLDS_SOFT_LIMIT: f64 = 1.0;
-/// Grain Reynolds number above which the warning is strong.
+/// Grain Reynolds number above which the warning is strong (the upper end of the 1–10 range
+/// where departures from Darcy's law begin, docs/physics.md §4.4, Bear 1972; from memory —
+/// verify).
 pub const REYNOLDS_HARD_LIMIT: f64 = 10.0;
 
 /// Definition of the efficiency reported (docs/physics.md §25).

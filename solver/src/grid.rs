@@ -53,6 +53,10 @@ impl Zone {
     }
 }
 
+// The resolution defaults below are numerical choices (assumption), held to account by the
+// verification groups run on the default grid (docs/verification.md, e.g. `theis` at 30
+// cells per decade within 5e-3 of Theis 1935).
+
 /// Minimum cells across the filter-pack annulus.
 pub const MIN_PACK_CELLS: usize = 16;
 /// Minimum cells across the invaded zone.
@@ -81,6 +85,12 @@ pub struct Grid {
     pub invaded_face: usize,
 }
 
+/// Multiple of √(D t) beyond the invaded zone at which the outer radius lies when a net
+/// volume is pumped or injected for a time t (the run's, or a virtual test's): there the
+/// Theis argument u = R²S/(4Tt) ≥ 8²/4 = 16 and W(16) ≈ 7e−9, so the far boundary takes no
+/// measurable part (docs/physics.md §8b, §25.1; W from `scipy.special.exp1(16)`).
+pub const REACH_FACTOR: f64 = 8.0;
+
 /// Automatic outer radius R, m.
 ///
 /// Rule: R is the larger of
@@ -99,7 +109,7 @@ pub fn auto_outer_radius(model: &Model) -> f64 {
         r = r.max(r_d + 20.0 * delta);
     }
     if !model.drive.is_zero_mean_periodic() {
-        r = r.max(r_d + 8.0 * (d * model.duration_s).sqrt());
+        r = r.max(r_d + REACH_FACTOR * (d * model.duration_s).sqrt());
     }
     r
 }

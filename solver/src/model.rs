@@ -39,7 +39,8 @@ pub struct Medium {
 }
 
 impl Medium {
-    /// A Darcy medium with the given K and Ss and porosity 0.3, no grain size.
+    /// A Darcy medium with the given K and Ss and porosity 0.3 (the case file's default
+    /// formation porosity; common practice, no source), no grain size.
     pub fn darcy(conductivity_m_s: f64, specific_storage_per_m: f64) -> Self {
         Medium {
             conductivity_m_s,

@@ -91,9 +91,11 @@ impl BlockPush {
     }
 }
 
-/// Default steps per period for periodic drives.
+/// Default steps per period for periodic drives (numerical choice, assumption: with the
+/// adaptive error control on top, docs/time-stepping.md).
 pub const DEFAULT_STEPS_PER_CYCLE: usize = 200;
-/// Default steps per decade of time for non-periodic drives.
+/// Default steps per decade of time for non-periodic drives (numerical choice, assumption, as
+/// above).
 pub const DEFAULT_STEPS_PER_DECADE: f64 = 40.0;
 
 /// Headline results of a run.
@@ -884,6 +886,9 @@ impl StepChooser {
                             )),
                         });
                     }
+                    // The usual controller of an order-2 error estimate: safety 0.9, the
+                    // factor clamped (Hairer & Wanner, Solving ODEs II, §IV.8; from memory
+                    // — verify; the clamps are numerical choices).
                     want = dt * (0.9 * err.value.powf(-1.0 / 3.0)).clamp(0.1, 0.9);
                 }
                 Ok(err) => {

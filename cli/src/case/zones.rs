@@ -21,7 +21,8 @@ use serde_json::{json, Value};
 /// Orifice discharge coefficient used when the case gives none: sharp-edged slots
 /// (docs/physics.md §3, typical value from memory — verify).
 pub const DEFAULT_DISCHARGE_COEFFICIENT: f64 = 0.6;
-/// Formation porosity when the case gives none (docs/formats.md default).
+/// Formation porosity when the case gives none (docs/formats.md default; common practice, no
+/// source: clean sands and gravels lie around 0.25–0.40).
 pub const DEFAULT_FORMATION_POROSITY: f64 = 0.3;
 /// Grain specific gravity of quartz sand when the case gives none (common practice, no
 /// source).
@@ -51,9 +52,11 @@ pub const DEFAULT_FINES_RATE: f64 = 30.0;
 /// and most clay minerals 2600–2800).
 pub const DEFAULT_FINES_GRAIN_DENSITY: f64 = 2650.0;
 
-/// Weight on the shear during inward flow when the case gives none.
+/// Weight on the shear during inward flow when the case gives none (docs/physics.md §13,
+/// erosion law; assumption: calibrate).
 pub const DEFAULT_INWARD_WEIGHT: f64 = 1.0;
-/// Weight on the shear during outward flow when the case gives none.
+/// Weight on the shear during outward flow when the case gives none (docs/physics.md §13,
+/// erosion law; assumption: calibrate — outward flow presses the cake onto the wall).
 pub const DEFAULT_OUTWARD_WEIGHT: f64 = 0.5;
 /// Coverage-law exponent when the case gives none: 0, the cake keeps covering the wall
 /// until it is gone. With m > 0 the first openings short-circuit a tight cake at once

@@ -34,14 +34,6 @@ pub struct TestPlan {
     pub step_duration_s: f64,
 }
 
-/// Default step rates as fractions of the design rate (common practice, no source: four or
-/// more steps up to and beyond the design rate; docs/practice.md §step tests).
-pub const DEFAULT_STEP_FRACTIONS: [f64; 4] = [0.5, 0.75, 1.0, 1.25];
-/// Default duration of a step, s (common practice, no source: 1 to 2 h per step).
-pub const DEFAULT_STEP_DURATION_S: f64 = 3600.0;
-/// Default duration of the constant-rate test, s (common practice, no source: 24 h).
-pub const DEFAULT_CONSTANT_DURATION_S: f64 = 86_400.0;
-
 impl TestPlan {
     /// Checks the plan; errors name the case-file path.
     pub fn validate(&self) -> Result<(), SolverError> {

@@ -30,14 +30,12 @@ pub const TEST_CELLS_PER_DECADE: f64 = 40.0;
 pub const TEST_RELATIVE_TOLERANCE: f64 = 1e-5;
 /// Absolute head tolerance of a test's adaptive steps, m (assumption, as above).
 pub const TEST_ABSOLUTE_TOLERANCE_M: f64 = 1e-6;
-/// Multiple of √(D t) beyond the invaded zone at which a test's outer radius lies.
-pub const REACH_FACTOR: f64 = 8.0;
 
 /// Outer radius of the domain of a test lasting `duration_s`, m (module documentation).
 pub fn test_outer_radius_m(model: &Model, duration_s: f64) -> f64 {
     let r_d = model.invaded_outer_radius_m();
     let d = model.formation.medium.diffusivity_m2_s();
-    (10.0 * r_d).max(r_d + REACH_FACTOR * (d * duration_s).sqrt())
+    (10.0 * r_d).max(r_d + crate::grid::REACH_FACTOR * (d * duration_s).sqrt())
 }
 
 /// The well of `model` set up for a test driven by `drive` over `duration_s`: its own outer

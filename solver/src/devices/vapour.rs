@@ -33,7 +33,9 @@
 
 use crate::water::{vapour_pressure_pa, GRAVITY_M_S2};
 
-/// Height above the vapour bound at which vapour starts to form in the model, m.
+/// Height above the vapour bound at which vapour starts to form in the model, m (δ of
+/// docs/devices.md §1; a numerical choice, assumption: small against any head of interest,
+/// large against round-off).
 pub const VAPOUR_MARGIN_M: f64 = 1e-3;
 
 /// Net head of the atmosphere over the vapour pressure, (p_atm − p_v)/(ρ g), m: how far the

@@ -18,9 +18,10 @@ const FD_STEP: f64 = 1e-6;
 const ETA_MAX: f64 = 0.1;
 /// γ of the forcing term.
 const ETA_GAMMA: f64 = 0.9;
-/// Sufficient decrease of the Armijo rule.
+/// Sufficient decrease of the Armijo rule (the customary 1e-4, Kelley 2003 §1.6; from memory
+/// — verify).
 const ARMIJO: f64 = 1e-4;
-/// Most halvings of a Newton step.
+/// Most halvings of a Newton step (numerical choice, assumption).
 const HALVINGS: usize = 8;
 
 /// Settings of the fixed-point solve.

@@ -10,6 +10,11 @@ use crate::drive::Control;
 use crate::error::SolverError;
 use crate::model::Model;
 
+// The thresholds below are numerical choices (assumption), each explained where it is
+// defined; the verification groups and the random-case harness (DEVELOPERS.md) hold them to
+// account. Armijo's condition itself: Kelley 2003, "Solving Nonlinear Equations with
+// Newton's Method", §1.6 (from memory — verify).
+
 /// A residual row within this many ulps of its face flows' round-off is converged.
 const ROUND_OFF_ULPS: f64 = 4.0;
 
