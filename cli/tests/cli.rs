@@ -1112,6 +1112,8 @@ fn run_json_prints_the_headline() {
     assert_eq!(zones, Zone::ALL.map(Zone::name));
     let work = j["work_j"].as_array().unwrap();
     assert_eq!(work.len(), zones.len());
+    // The standing cautions travel with the figures (a report built from the JSON keeps them).
+    assert_eq!(j["cautions"], CAUTION);
     let warnings: Vec<&str> = j["warnings"]
         .as_array()
         .unwrap()

@@ -94,6 +94,10 @@ fn check_json_prints_exactly_the_schema_keys() {
         ]),
     ];
     compare(check_json::ALL, &docs);
+    // The standing cautions, word for word.
+    for d in &docs {
+        assert_eq!(d["cautions"], boreflux_solver::safety::CAUTION);
+    }
 }
 
 #[test]

@@ -237,7 +237,12 @@ fn write_run(path: &Path, spec: &Spec) {
             ("peak_grain_reynolds", 0.8),
             ("peak_collapse_pressure_pa", 15e3),
             ("collapse_rating_pa", 810e3),
-            ("collapse_margin", 27.0),
+            ("screen_collapse_rating_pa", 405e3),
+            // Screen: 405 kPa / (2 × 15 kPa); casing: 810 kPa / (2 × 1.5 m × 9.80665 m/s² ×
+            // 1000 kg/m³) (hand arithmetic); the lower governs.
+            ("screen_collapse_margin", 13.5),
+            ("casing_collapse_margin", 27.53),
+            ("collapse_margin", 13.5),
             ("energy_closure", 1e-9),
             ("max_mass_residual", 1e-10),
             ("cells", CELLS as f64),
@@ -361,6 +366,22 @@ fn report_has_figures_cautions_units_and_escaped_text() {
     // Units: SI with US in brackets. The conversions are exact by definition (NIST SP 811,
     // 2008, Appendix B): 810 kPa / 6894.757 Pa/psi = 117.48 psi.
     assert!(html.contains("810 kPa (117 psi)"));
+    // Each element's collapse rating sits beside the margin computed from it, then the
+    // lower margin (the values of the file's `/summary`, above).
+    let cell = |label: &str| -> String {
+        let at = html.find(label).unwrap_or_else(|| panic!("no row {label}"));
+        let td = &html[at..];
+        let td = &td[td.find("<td").unwrap()..];
+        td[td.find('>').unwrap() + 1..td.find("</td>").unwrap()].to_owned()
+    };
+    assert_eq!(cell("Collapse rating of the screen<"), "405 kPa (58.7 psi)");
+    assert_eq!(cell("Screen collapse margin: "), "13.5");
+    assert_eq!(
+        cell("Collapse rating of the blank casing<"),
+        "810 kPa (117 psi)"
+    );
+    assert_eq!(cell("Casing collapse margin: "), "27.5");
+    assert_eq!(cell("Collapse margin, the lower of"), "13.5");
     // 1.5e-3 m/s × 86400 s/d × 0.3048² m²/ft² / 3.785411784e-3 m³/gal = 3180.7 gpd/ft².
     assert!(html.contains("1.50 mm/s (3181 gpd/ft²)"));
     assert!(html.contains("1.00 → 1.50 L/s/m (4.83 → 7.25 gpm/ft)"));

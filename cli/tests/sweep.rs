@@ -169,7 +169,13 @@ fn shards_merge_into_the_whole_sweep() {
         "{err}"
     );
     assert!(!dir.path().join("merged.csv").exists());
-    merge(&parts, &dir.path().join("merged")).success();
+    let merged = merge(&parts, &dir.path().join("merged")).success();
+    // The merged table's overview carries the standing cautions, as the sweep's does.
+    let out = String::from_utf8_lossy(&merged.get_output().stdout).to_string();
+    assert!(
+        out.contains(&format!("Caution: {}", boreflux_solver::safety::CAUTION)),
+        "{out}"
+    );
     let read = |n: &str| std::fs::read_to_string(dir.path().join(n)).unwrap();
     assert_eq!(read("merged.csv"), read("whole.csv"));
 }

@@ -227,7 +227,7 @@ pub fn check(a: &CheckArgs) -> Result<(), Failure> {
             (K::COST.key()): {(K::STEPS_AT_MOST.key()): cost.steps, (K::CELL_STEPS.key()): cost.cell_steps, (K::ESTIMATED_SECONDS.key()): cost.seconds,
                 (K::ESTIMATED_OUTPUT_BYTES.key()): cost.bytes, (K::OVER_LIMITS.key()): crate::cost::refuse_large(&cost, false).is_err()},
             (K::ANNULUS.key()): widths.iter().map(|(w, q, wc, wp)| json!({(K::WIDTH.key()): w, (K::ANNULUS_PEAK_FLUX.key()): q, (K::CAKE_WORK.key()): wc, (K::PACK_WORK.key()): wp})).collect::<Vec<_>>(),
-            (K::NOTES.key()): case.notes, (K::WARNINGS.key()): case.warnings,
+            (K::NOTES.key()): case.notes, (K::WARNINGS.key()): case.warnings, (K::CAUTIONS.key()): CAUTION,
             (K::DAMAGE_CONSTANTS.key()): boreflux_solver::damage::assumptions(m).iter().map(|p| json!({
                 (K::CONSTANT_PATH.key()): p.path, (K::CONSTANT_VALUE.key()): p.value, (K::CONSTANT_RANGE.key()): [p.range.0, p.range.1],
                 (K::CONSTANT_UNIT.key()): p.unit, (K::CONSTANT_DECADES.key()): p.decades(), (K::CONSTANT_PROVENANCE.key()): p.provenance})).collect::<Vec<_>>(),

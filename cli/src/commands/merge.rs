@@ -8,6 +8,7 @@ use super::{print_out, Failure};
 use crate::args::MergeArgs;
 use crate::sweep::table::Table;
 use anyhow::anyhow;
+use boreflux_solver::safety::CAUTION;
 use std::collections::BTreeMap;
 
 /// Scenario numbers listed when some are missing.
@@ -105,7 +106,7 @@ pub fn merge(a: &MergeArgs) -> Result<(), Failure> {
         .map_err(|e| Failure::Runtime(anyhow!("writing the table: {e:#}")))?;
     let failed = merged.rows.iter().filter(|r| r.status != "ok").count();
     print_out(&format!(
-        "merged {} tables: {} of {} scenarios{}\n  results: {}, {}\n\n{}",
+        "merged {} tables: {} of {} scenarios{}\n  results: {}, {}\n\n{}\nCaution: {CAUTION}\n",
         tables.len(),
         merged.rows.len(),
         merged.total,

@@ -885,6 +885,7 @@ pub fn run_json_keys() -> Vec<RunKey> {
     }
     v.extend([
         RunKey::Text(SummaryText::Warnings),
+        RunKey::Text(SummaryText::Cautions),
         RunKey::Text(SummaryText::Assumptions),
     ]);
     v

@@ -300,29 +300,62 @@ pub fn headline(runs: &[Run]) -> (CompareTable, BTreeSet<String>) {
         &[Figure::PeakBurstPressure],
         &one(Figure::PeakBurstPressure, PRESSURE),
     );
-    row(
-        &mut t,
-        "Collapse rating of screen or casing",
-        &[Figure::CollapseRating],
-        &|s: &Summary| {
-            s.get(Figure::CollapseRating).map_or_else(
-                || Cell::plain("not given — enter the manufacturer's rating".into()),
+    // Each element's rating beside the margin computed from it (screen: the peak collapse
+    // load; blank casing: the peak in-well drawdown pressure), then the lower margin, which
+    // governs the warning.
+    let rating = |f: Figure, missing: &'static str| {
+        move |s: &Summary| {
+            s.get(f).map_or_else(
+                || Cell::plain(missing.into()),
                 |v| Cell::plain(with_units(v, &PRESSURE)),
             )
-        },
-    );
-    row(
-        &mut t,
-        "Collapse margin: rating ÷ (safety factor × peak); below 1 is a warning",
-        &[Figure::CollapseMargin],
-        &|s: &Summary| match s.get(Figure::CollapseMargin) {
+        }
+    };
+    let margin = |f: Figure| {
+        move |s: &Summary| match s.get(f) {
             Some(m) if m < 1.0 => Cell {
                 text: Some(format!("{} — BELOW 1", sig(m))),
                 class: "alarm",
             },
             Some(m) => Cell::plain(sig(m)),
             None => Cell::plain("not computed (no rating)".into()),
-        },
+        }
+    };
+    row(
+        &mut t,
+        "Collapse rating of the screen",
+        &[Figure::ScreenCollapseRating],
+        &rating(
+            Figure::ScreenCollapseRating,
+            "not given — enter the manufacturer's rating",
+        ),
+    );
+    row(
+        &mut t,
+        "Screen collapse margin: screen rating ÷ (safety factor × peak collapse load)",
+        &[Figure::ScreenCollapseMargin],
+        &margin(Figure::ScreenCollapseMargin),
+    );
+    row(
+        &mut t,
+        "Collapse rating of the blank casing",
+        &[Figure::CollapseRating],
+        &rating(
+            Figure::CollapseRating,
+            "not given — enter the manufacturer's rating, or the material and dimension ratio",
+        ),
+    );
+    row(
+        &mut t,
+        "Casing collapse margin: casing rating ÷ (safety factor × peak in-well drawdown pressure)",
+        &[Figure::CasingCollapseMargin],
+        &margin(Figure::CasingCollapseMargin),
+    );
+    row(
+        &mut t,
+        "Collapse margin, the lower of screen and casing; below 1 is a warning",
+        &[Figure::CollapseMargin],
+        &margin(Figure::CollapseMargin),
     );
 
     section(&mut t, "Numerical quality");

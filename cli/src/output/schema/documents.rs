@@ -137,6 +137,7 @@ json_document! {
         PACK_WORK => "annulus[].pack_work_per_cycle_j", "J", Number, "work dissipated in the pack per cycle";
         NOTES => "notes", "", Array, "notes on the defaults used (texts)";
         WARNINGS => "warnings", "", Array, "warnings about the case (texts)";
+        CAUTIONS => "cautions", "", Text, "the standing cautions (collapse, stuck tools, formation damage; the maker's ratings and local codes govern)";
         DAMAGE_CONSTANTS => "damage_constants", "", Array, "the damage-removal constants used, widest documented range first";
         CONSTANT_PATH => "damage_constants[].path", "", Text, "case-file path of the constant";
         CONSTANT_VALUE => "damage_constants[].value", "", Number, "its value, in the unit given";
