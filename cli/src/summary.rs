@@ -53,6 +53,8 @@ pub struct Headline {
     pub figures: RunFigures,
     /// How the collapse ratings were found.
     pub collapse_rating_basis: String,
+    /// What the case lacks for a casing rating (None: the casing has one).
+    pub casing_rating_missing: Option<String>,
     /// Warnings.
     pub warnings: Vec<String>,
     /// The damage-removal constants used, with their documented ranges and provenance, widest
@@ -117,17 +119,38 @@ pub struct CollapseRatings {
     pub limits: Option<safety::CollapseLimits>,
     /// One line on how the ratings were found (for `check` and the report).
     pub how: String,
+    /// What the case lacks for a casing rating, naming the fields (None: it has one).
+    pub casing_missing: Option<String>,
+}
+
+/// What `s` lacks for a computed casing rating, naming the case-file fields to give.
+fn casing_rating_hint(s: &crate::case::SafetyInputs) -> String {
+    let builtin = s.material.as_deref().and_then(safety::builtin_material);
+    match (s.material.as_deref(), builtin, s.dimension_ratio) {
+        (None, _, None) => {
+            "give well.material and well.dimension_ratio, or well.collapse_rating".to_owned()
+        }
+        (None, _, Some(_)) => "give well.material, or well.collapse_rating".to_owned(),
+        (Some(m), Some(_), None) => {
+            format!("well.material is {m}: give well.dimension_ratio, or well.collapse_rating")
+        }
+        (Some(m), _, _) => format!(
+            "well.material \"{m}\" is not built in ({}): give well.youngs_modulus, \
+             well.poisson_ratio and well.yield_strength{}, or well.collapse_rating",
+            safety::MATERIAL_NAMES.join(", "),
+            if s.dimension_ratio.is_none() {
+                " with well.dimension_ratio"
+            } else {
+                ""
+            }
+        ),
+    }
 }
 
 /// Material constants for the collapse check: the built-in ones for pvc, steel and
 /// stainless, each replaced by the case's value where given.
 fn pipe_material(s: &crate::case::SafetyInputs) -> Option<safety::PipeMaterial> {
-    let base = match s.material.as_deref() {
-        Some("pvc") => Some(safety::PVC),
-        Some("steel") => Some(safety::STEEL),
-        Some("stainless") => Some(safety::STAINLESS),
-        _ => None,
-    };
+    let base = s.material.as_deref().and_then(safety::builtin_material);
     Some(safety::PipeMaterial {
         youngs_modulus_pa: s.youngs_modulus_pa.or(base.map(|b| b.youngs_modulus_pa))?,
         poisson: s.poisson_ratio.or(base.map(|b| b.poisson))?,
@@ -197,11 +220,16 @@ pub fn collapse_ratings(s: &crate::case::SafetyInputs, temp_c: f64) -> CollapseR
             None
         }
     };
+    let casing_missing = casing.is_none().then(|| casing_rating_hint(s));
+    if let Some(hint) = &casing_missing {
+        how.insert(0, format!("casing: no rating ({hint})"));
+    }
     CollapseRatings {
         casing_pa: casing,
         screen_pa: screen,
         limits,
         how: how.join("; "),
+        casing_missing,
     }
 }
 
@@ -523,6 +551,7 @@ pub fn headline(
         title: case.title.clone(),
         figures: r,
         collapse_rating_basis: ratings.how,
+        casing_rating_missing: ratings.casing_missing,
         notes: case.notes.clone(),
         warnings,
         assumptions: boreflux_solver::damage::assumptions(m)
@@ -806,7 +835,12 @@ pub fn table(h: &Headline) -> String {
         "collapse rating / margin, blank casing",
         match r.collapse.casing_rating_pa {
             Some(_) => rating(r.collapse.casing_rating_pa, r.collapse.casing_margin),
-            None => "— (give well.material and dimension_ratio, or collapse_rating)".into(),
+            None => format!(
+                "— ({})",
+                h.casing_rating_missing.as_deref().unwrap_or(
+                    "give well.material and well.dimension_ratio, or well.collapse_rating"
+                )
+            ),
         },
     );
     row(
@@ -835,4 +869,61 @@ pub fn table(h: &Headline) -> String {
         }
     }
     t
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::case::SafetyInputs;
+
+    fn inputs(material: Option<&str>, dr: Option<f64>) -> SafetyInputs {
+        SafetyInputs {
+            collapse_rating_pa: None,
+            material: material.map(str::to_owned),
+            dimension_ratio: dr,
+            screen_collapse_rating_pa: None,
+            slot_derating: None,
+            yield_strength_pa: None,
+            youngs_modulus_pa: None,
+            poisson_ratio: None,
+            safety_factor: 2.0,
+            formation_specific_gravity: 2.65,
+        }
+    }
+
+    #[test]
+    fn a_missing_casing_rating_names_what_the_case_lacks() {
+        // Each combination of what was given gets a hint naming only what is missing (the
+        // row of `run`'s table, `check`'s collapse line and `/summary`'s basis).
+        let hint = |m, dr| collapse_ratings(&inputs(m, dr), 20.0).casing_missing;
+        let none = hint(None, None).unwrap();
+        assert!(
+            none.contains("give well.material and well.dimension_ratio"),
+            "{none}"
+        );
+        let no_material = hint(None, Some(21.0)).unwrap();
+        assert!(
+            no_material.starts_with("give well.material,"),
+            "{no_material}"
+        );
+        let no_dr = hint(Some("pvc"), None).unwrap();
+        assert!(
+            no_dr.contains("well.material is pvc: give well.dimension_ratio"),
+            "{no_dr}"
+        );
+        let own = hint(Some("fibreglass"), Some(21.0)).unwrap();
+        assert!(
+            own.contains("\"fibreglass\" is not built in (pvc, steel, stainless)")
+                && own.contains("well.youngs_modulus")
+                && !own.contains("dimension_ratio"),
+            "{own}"
+        );
+        // A built-in material with its dimension ratio has a rating, and no hint.
+        let r = collapse_ratings(&inputs(Some("steel"), Some(20.0)), 20.0);
+        assert!(r.casing_pa.is_some() && r.casing_missing.is_none());
+        assert!(!r.how.contains("casing: no rating"));
+        assert!(collapse_ratings(&inputs(None, None), 20.0)
+            .how
+            .starts_with("casing: no rating (give well.material"));
+    }
 }

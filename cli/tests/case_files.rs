@@ -502,6 +502,7 @@ const BAD_CASES: &[(&str, &str, &[&str])] = &[
     ("nan_literal", "", &["line 3 column 24", "invalid JSON"]),
     ("unknown_key_hint", "pack.porosty", &["unknown key `porosty`", "did you mean `porosity`?"]),
     ("unknown_section", "formaton", &["unknown key `formaton`", "did you mean `formation`?"]),
+    ("material_misspelt", "well.material", &["unknown material \"pcv\"", "did you mean `pvc`?", "pvc, steel, stainless"]),
     ("unknown_drive_key", "drive.amplitud", &["`amplitud`", "did you mean `amplitude`?"]),
     ("missing_required_key", "well.screen_length", &["required key is missing"]),
     ("missing_drive", "drive", &["required key is missing"]),

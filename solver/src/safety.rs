@@ -133,6 +133,19 @@ pub const PVC: PipeMaterial = PipeMaterial {
     thermoplastic: true,
 };
 
+/// The names of the built-in pipe materials (`well.material`), in the order listed to users.
+pub const MATERIAL_NAMES: [&str; 3] = ["pvc", "steel", "stainless"];
+
+/// The built-in pipe material of a lower-case name of [`MATERIAL_NAMES`].
+pub fn builtin_material(name: &str) -> Option<PipeMaterial> {
+    match name {
+        "pvc" => Some(PVC),
+        "steel" => Some(STEEL),
+        "stainless" => Some(STAINLESS),
+        _ => None,
+    }
+}
+
 /// Temperatures \[°C\] (73, 80, 90, …, 140 °F) and factors of the usual PVC temperature
 /// derating table for pressure and strength (manufacturers' and plastics-pipe literature;
 /// from memory — verify). Below 23 °C the factor is 1.

@@ -1,9 +1,11 @@
 //! "Did you mean …?" hints for misspelt keys and names, by edit distance.
 
-/// Levenshtein distance between `a` and `b`, counted in characters, letter case ignored
-/// (the `strsim` crate's, which clap's suggestions use too).
+/// Edit distance between `a` and `b`, counted in characters, letter case ignored: the
+/// optimal-string-alignment distance (Levenshtein's insertions, deletions and substitutions,
+/// and a swap of two neighbouring letters as one edit, the commonest slip: `pcv` → `pvc`;
+/// the `strsim` crate's, which clap's suggestions use too).
 pub fn edit_distance(a: &str, b: &str) -> usize {
-    strsim::levenshtein(&a.to_lowercase(), &b.to_lowercase())
+    strsim::osa_distance(&a.to_lowercase(), &b.to_lowercase())
 }
 
 /// The candidate closest to `word`, if it is close enough to be a likely misspelling: at
@@ -50,6 +52,9 @@ mod tests {
         assert_eq!(edit_distance("porosty", "porosity"), 1);
         // Counted in characters, not bytes: one substitution of a two-byte letter.
         assert_eq!(edit_distance("bär", "bar"), 1);
+        // A swap of neighbouring letters is one edit (Levenshtein would count two).
+        assert_eq!(edit_distance("pcv", "pvc"), 1);
+        assert_eq!(edit_distance("porostiy", "porosity"), 1);
     }
 
     #[test]

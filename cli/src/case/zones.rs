@@ -10,12 +10,12 @@ use super::raw::{
 };
 use super::{Log, SafetyInputs};
 use crate::units::parse_quantity;
-use boreflux_solver::limits;
 use boreflux_solver::media::GrainShape;
 use boreflux_solver::model::{
     Cake, Erosion, Fines, Formation, Invaded, LiftOff, Medium, OuterBoundary, Pack, Well,
 };
 use boreflux_solver::water::Water;
+use boreflux_solver::{limits, safety};
 use serde_json::{json, Value};
 
 /// Orifice discharge coefficient used when the case gives none: sharp-edged slots
@@ -199,7 +199,7 @@ pub fn well(r: &RawWell, log: &mut Log) -> Result<(Well, SafetyInputs, Value), C
         );
     }
     if let Some(m) = safety.material.as_deref() {
-        if !["pvc", "steel", "stainless"].contains(&m) {
+        if safety::builtin_material(m).is_none() {
             log.warn(format!(
                 "well.material \"{m}\" has no built-in properties; give collapse_rating, or \
                  youngs_modulus, poisson_ratio and yield_strength, for the collapse check"
@@ -242,6 +242,26 @@ fn safety_inputs(r: &RawWell) -> Result<SafetyInputs, CaseError> {
     let material = r.material.as_ref().map(|m| m.trim().to_lowercase());
     if material.as_deref() == Some("") {
         return Err(CaseError::new("well.material", "must not be empty"));
+    }
+    // A name one or two letters from a built-in material is a misspelling, not a material
+    // of the user's own, unless the case gives what the collapse check needs without it:
+    // accepted, it would switch the check (and PVC's temperature derating) off.
+    if let Some(m) = material.as_deref() {
+        let own = r.collapse_rating.is_some()
+            || (r.youngs_modulus.is_some() && r.poisson_ratio.is_some());
+        if safety::builtin_material(m).is_none() && !own {
+            if let Some(near) = super::hints::closest(m, &safety::MATERIAL_NAMES) {
+                return Err(CaseError::new(
+                    "well.material",
+                    format!(
+                        "unknown material \"{m}\": did you mean `{near}`? (built in: {}; \
+                         another material needs collapse_rating, or youngs_modulus, \
+                         poisson_ratio and yield_strength)",
+                        safety::MATERIAL_NAMES.join(", ")
+                    ),
+                ));
+            }
+        }
     }
     if let Some(dr) = r.dimension_ratio {
         if dr <= 2.0 {

@@ -357,7 +357,7 @@ pub fn check(a: &CheckArgs) -> Result<(), Failure> {
     let ratings =
         crate::summary::collapse_ratings(&case.safety, crate::summary::pipe_temperature_c(&case));
     t += &match (ratings.casing_pa, ratings.screen_pa) {
-        (None, None) => "\nCollapse: no rating (give well.collapse_rating, or well.material and well.dimension_ratio; for the screen well.screen_collapse_rating); check the manufacturer's rating before surging.\n".to_string(),
+        (None, None) => format!("\nCollapse: no rating ({}; for the screen well.screen_collapse_rating); check the manufacturer's rating before surging.\n", ratings.casing_missing.as_deref().unwrap_or("give well.collapse_rating")),
         (c, sc) => format!(
             "\nCollapse: blank casing {}, screen {} ({}); with safety factor {sf} `run` compares them with the peak loads.\n",
             c.map_or("—".to_owned(), |r| format!("{} kPa (allowable {} kPa = {} m of water)", G(r / 1e3, 4), G(r / sf / 1e3, 4), G(r / sf / rho_g, 4))),
