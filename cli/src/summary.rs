@@ -654,6 +654,12 @@ pub fn table(h: &Headline) -> String {
                 "{} / {} ({} jumped over, not computed) / {}",
                 s.steps, s.cycles, s.skipped_cycles, s.cells
             )
+        } else if s.cycles == 0 {
+            format!(
+                "{} / 0 (no complete drive cycle: the drive has no single period, or the run is \
+                 shorter than one) / {}",
+                s.steps, s.cells
+            )
         } else {
             format!("{} / {} / {}", s.steps, s.cycles, s.cells)
         },

@@ -481,7 +481,7 @@ fn two_runs_give_two_columns_and_overlaid_lines() {
     let head_chart = head_chart.split("</svg>").next().unwrap();
     assert!(head_chart.contains("A: Slow surge") && head_chart.contains("B: Fast surge"));
     assert!(head_chart.contains(r#"stroke-dasharray="8 4""#));
-    // Run B has no cycles: the cycle log lists run A only.
+    // Run B has no cycles: the cycle log has run A's table and says why run B has none.
     let log = html.split("<h2>Cycle log</h2>").nth(1).unwrap();
     let log = log.split("<h2>").next().unwrap();
     // Cycle numbering: the file's /cycles/index starts at 0 (written above), the log's
@@ -491,7 +491,8 @@ fn two_runs_give_two_columns_and_overlaid_lines() {
         "first cycle is numbered 1"
     );
     assert!(log.contains("<code>/cycles/index</code> counts from 0 (cycle 1 is index 0)"));
-    assert!(log.contains("Run A: Slow surge") && !log.contains("Run B"));
+    assert!(log.contains("Run A: Slow surge") && !log.contains("Run B: Fast surge"));
+    assert!(log.contains("<p>Run B: no complete drive cycle, so no per-cycle figures."));
 }
 
 #[test]

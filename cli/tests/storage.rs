@@ -566,6 +566,27 @@ fn a_schedule_without_a_common_period_gets_no_envelopes() {
     );
 }
 
+/// A run that closes no drive cycle says why beside its count of 0 (the shipped staged
+/// development: its stages differ in period).
+#[test]
+fn a_run_without_cycles_says_why() {
+    let tmp = scratch("no-cycles");
+    let out = tmp.path().join("staged.h5");
+    let cases = Path::new(env!("CARGO_MANIFEST_DIR")).join("../cases");
+    let o = success(
+        boreflux()
+            .args(["run", "-q", "-o"])
+            .arg(&out)
+            .arg(cases.join("staged-development.json")),
+        "staged run",
+    );
+    let text = String::from_utf8_lossy(&o.stdout);
+    assert!(
+        text.contains(" / 0 (no complete drive cycle: the drive has no single period"),
+        "{text}"
+    );
+}
+
 /// Every warning of `/summary` that names a moment of the run has events of its kind, and
 /// every such kind raised has its warning, and is among the kinds the size estimate counts
 /// for the drive: the shipped swab (partings, vapour suction, slot
