@@ -509,6 +509,9 @@ const BAD_CASES: &[(&str, &str, &[&str])] = &[
     ("nan_as_string", "pack.porosity", &["\"NaN\""]),
     ("negative_formation_k", "formation.conductivity", &["must be positive", "-0.0002 m/s"]),
     ("negative_pack_k", "pack.conductivity", &["must be positive", "-0.008 m/s"]),
+    ("negative_screen_length", "well.screen_length", &["must be positive", "got -6 m"]),
+    // -20 degC is 253.15 K exactly (0 degC = 273.15 K by definition, SI Brochure 2019).
+    ("temperature_below_freezing", "fluid.temperature", &["got 253.15 K (-20.00 degC)"]),
     ("negative_cake_k", "cake.conductivity", &["must be a positive", "got -0.00000001"]),
     ("zero_frequency", "drive.frequency", &["must be positive", "got 0 Hz"]),
     ("frequency_and_period", "drive.period", &["either frequency or period"]),

@@ -297,6 +297,27 @@ fn a_sweep_table_gets_its_own_report() {
         .assert()
         .success();
     let html_path = dir.path().join("amp.html");
+    // The CSV twin of the table is refused, naming the HDF5 file to give instead; a missing
+    // file says so.
+    let csv = boreflux()
+        .args(["report", stem.with_extension("csv").to_str().unwrap(), "-o"])
+        .arg(&html_path)
+        .assert()
+        .code(2);
+    let err = String::from_utf8_lossy(&csv.get_output().stderr).to_string();
+    let h5 = stem.with_extension("h5");
+    assert!(
+        err.contains("not CSV tables") && err.contains(&format!("give {}", h5.display())),
+        "{err}"
+    );
+    let none = boreflux()
+        .args(["report", dir.path().join("nope.h5").to_str().unwrap(), "-o"])
+        .arg(&html_path)
+        .assert()
+        .code(2);
+    let err = String::from_utf8_lossy(&none.get_output().stderr).to_string();
+    assert!(err.contains("nope.h5: no such file"), "{err}");
+    assert!(!html_path.exists());
     boreflux()
         .args(["report", stem.with_extension("h5").to_str().unwrap(), "-o"])
         .arg(&html_path)

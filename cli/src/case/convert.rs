@@ -197,8 +197,10 @@ fn fluid(raw: &RawCase, log: &mut Log) -> Result<(Fluid, Water, Value), CaseErro
         return Err(CaseError::new(
             field,
             format!(
-                "must be liquid water, between 0 and 100 degC, got {t_k} K ({t_c:.2} degC); \
-                 a bare number is kelvin, write e.g. \"12 degC\""
+                "must be liquid water, between 0 and 100 degC, got {} K ({t_c:.2} degC); \
+                 a bare number is kelvin, write e.g. \"12 degC\"",
+                // To the micro-kelvin: the degC → K sum's round-off is not shown.
+                (t_k * 1e6).round() / 1e6
             ),
         ));
     }

@@ -81,9 +81,36 @@ impl CaseError {
                     suggestion(&variant, expected)
                 ),
             ),
-            StructError::Other(message) => CaseError::new(at, message),
+            StructError::Other(message) => CaseError::new(at, plain_types(&message)),
         }
     }
+}
+
+/// A type mismatch reported by serde, with Rust's type names put in words: "expected f64"
+/// becomes "expected a plain number (this key takes no unit)", "expected u32" "expected a
+/// whole number", and so on; other messages are kept as they are.
+fn plain_types(message: &str) -> String {
+    const WORDS: [(&str, &str); 9] = [
+        ("f64", "a plain number (this key takes no unit)"),
+        ("f32", "a plain number (this key takes no unit)"),
+        ("u8", "a whole number"),
+        ("u16", "a whole number"),
+        ("u32", "a whole number"),
+        ("u64", "a whole number"),
+        ("usize", "a whole number"),
+        ("i64", "a whole number"),
+        ("a boolean", "true or false"),
+    ];
+    let mut out = message.to_owned();
+    for (rust, words) in WORDS {
+        for end in ["", "."] {
+            let from = format!("expected {rust}{end}");
+            if out.ends_with(&from) {
+                out = format!("{}expected {words}{end}", &out[..out.len() - from.len()]);
+            }
+        }
+    }
+    out
 }
 
 /// Solver field names that differ from the case-file key the user wrote.
@@ -113,6 +140,25 @@ impl From<SolverError> for CaseError {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn type_names_are_put_in_words() {
+        // serde's messages for a quantity where a plain number is wanted, a fraction where
+        // a count is, and a string where a flag is.
+        assert_eq!(
+            plain_types("invalid type: string \"0.5 Hz\", expected f64"),
+            "invalid type: string \"0.5 Hz\", expected a plain number (this key takes no unit)"
+        );
+        assert_eq!(
+            plain_types("invalid type: floating point `10.5`, expected u32"),
+            "invalid type: floating point `10.5`, expected a whole number"
+        );
+        assert_eq!(
+            plain_types("invalid type: string \"yes\", expected a boolean"),
+            "invalid type: string \"yes\", expected true or false"
+        );
+        assert_eq!(plain_types("something else"), "something else");
+    }
 
     #[test]
     fn display_works() {

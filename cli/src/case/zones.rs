@@ -151,8 +151,18 @@ fn ranged(field: &str, v: f64, range: limits::Range) -> Result<f64, CaseError> {
 
 /// The well, the collapse-check inputs and the resolved keys.
 pub fn well(r: &RawWell, log: &mut Log) -> Result<(Well, SafetyInputs, Value), CaseError> {
-    let rs = r.screen_radius.si("well.screen_radius")?;
-    let length = r.screen_length.si("well.screen_length")?;
+    // Lengths checked here so that the message shows the unit (the model's own check,
+    // `Model::validate`, has only the number).
+    let rs = positive(
+        "well.screen_radius",
+        r.screen_radius.si("well.screen_radius")?,
+        "m",
+    )?;
+    let length = positive(
+        "well.screen_length",
+        r.screen_length.si("well.screen_length")?,
+        "m",
+    )?;
     let open_area = fraction("well.open_area", r.open_area.si("well.open_area")?)?;
     let rc = opt(&r.casing_radius, "well.casing_radius")?.unwrap_or(rs);
     let slot = opt(&r.slot_width, "well.slot_width")?
@@ -331,7 +341,11 @@ pub fn pack(
     formation: &Medium,
     log: &mut Log,
 ) -> Result<(Pack, Value), CaseError> {
-    let rb = r.outer_radius.si("pack.outer_radius")?;
+    let rb = positive(
+        "pack.outer_radius",
+        r.outer_radius.si("pack.outer_radius")?,
+        "m",
+    )?;
     let n = open_fraction("pack.porosity", r.porosity.si("pack.porosity")?)?;
     let grains = Grains {
         d10: opt(&r.d10, "pack.d10")?,
@@ -392,7 +406,7 @@ pub fn pack(
 
 /// The wall cake, if any.
 pub fn cake(r: &RawCake, log: &mut Log) -> Result<(Cake, Value), CaseError> {
-    let thickness = r.thickness.si("cake.thickness")?;
+    let thickness = positive("cake.thickness", r.thickness.si("cake.thickness")?, "m")?;
     let k = r.conductivity.si("cake.conductivity")?;
     let coverage = match &r.coverage {
         Some(q) => q.si("cake.coverage")?,

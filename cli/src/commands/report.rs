@@ -13,8 +13,30 @@ use anyhow::anyhow;
 pub fn report(a: &ReportArgs) -> Result<(), Failure> {
     if let Some(missing) = a.inputs.iter().find(|p| !p.is_file()) {
         return Err(Failure::Input(anyhow!(
-            "cannot read result file {}",
-            missing.display()
+            "cannot read result file {}: {}",
+            missing.display(),
+            if missing.exists() {
+                "not a regular file"
+            } else {
+                "no such file"
+            }
+        )));
+    }
+    // A sweep writes its table twice; the report reads the HDF5 one.
+    if let Some(csv) = a
+        .inputs
+        .iter()
+        .find(|p| p.extension().is_some_and(|e| e.eq_ignore_ascii_case("csv")))
+    {
+        let h5 = csv.with_extension("h5");
+        return Err(Failure::Input(anyhow!(
+            "{}: the report reads HDF5 result files, not CSV tables{}",
+            csv.display(),
+            if h5.is_file() {
+                format!("; give {} (the same table in HDF5)", h5.display())
+            } else {
+                String::new()
+            }
         )));
     }
     refuse_inputs(&[(&a.output, "-o/--output")], &a.inputs).map_err(Failure::Input)?;

@@ -78,7 +78,7 @@ pub(super) fn overview(t: &Table) -> String {
     }];
     for r in &t.rows {
         let mut f = vec![r.scenario.to_string()];
-        f.extend(r.labels.iter().cloned());
+        f.extend(r.labels.iter().map(|l| short_label(l)));
         f.extend(cols.iter().map(|&(i, _)| {
             let x = r.figures[i];
             if x.is_nan() {
@@ -96,6 +96,24 @@ pub(super) fn overview(t: &Table) -> String {
         lines.push(f.join(" | "));
     }
     lines.join("\n") + "\n"
+}
+
+/// A scenario's value as the overview shows it: a number drawn by a sampled sweep (all
+/// seventeen digits, as the table keeps it) to four significant digits, its unit kept; a
+/// value as written in the case or on the command line unchanged.
+fn short_label(label: &str) -> String {
+    let (number, unit) = label.split_once(' ').unwrap_or((label, ""));
+    match number.parse::<f64>() {
+        Ok(x) if x.is_finite() && number.trim_start_matches('-').len() > 8 => {
+            let short = crate::summary::G(x, 4).to_string();
+            if unit.is_empty() {
+                short
+            } else {
+                format!("{short} {unit}")
+            }
+        }
+        _ => label.to_owned(),
+    }
 }
 
 /// The plan: a grid of `--vary` values or a sample (`--sample`, `--sample-file`).
@@ -235,4 +253,22 @@ pub fn sweep(a: &SweepArgs) -> Result<(), Failure> {
         )));
     }
     Ok(())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::short_label;
+
+    #[test]
+    fn drawn_values_are_shortened_for_the_overview_only() {
+        // A drawn value (17 digits) to 4 significant digits with its unit; values as a user
+        // writes them unchanged.
+        assert_eq!(short_label("0.008495429147274403 m/s"), "0.008495 m/s");
+        assert_eq!(short_label("0.4622840763720729 m"), "0.4623 m");
+        assert_eq!(short_label("-12.345678901 m"), "-12.35 m");
+        assert_eq!(short_label("0.5 m"), "0.5 m");
+        assert_eq!(short_label("20"), "20");
+        assert_eq!(short_label("pvc"), "pvc");
+        assert_eq!(short_label("1e-8 m/s"), "1e-8 m/s");
+    }
 }
