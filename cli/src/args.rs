@@ -256,10 +256,15 @@ at the old rate):
 Columns: time_<s|min|h|d>, rate_<m3/s|L/s|m3/h|gpm|...>, drawdown_<m|cm|mm|in|ft>; a bare
 name is SI. Lines starting with # are comments. At least 3 steps are needed: 2 steps fix B
 and C exactly and leave nothing to estimate their uncertainty from.
+The fitted numbers are printed as the least-squares fit gives them; warnings (in the table,
+the JSON's `warnings` and the HTML page) flag what the fit cannot vouch for: C or B below
+zero, a step efficiency outside 0-100 %, repeated or falling rates, a --at time outside the
+readings, and options that have no effect on the file given (docs/step-test.md §4a).
 
 Examples:
   boreflux steptest cases/step-tests/demo-series.csv
   boreflux steptest cases/step-tests/demo-series.csv --json > steptest.json
+  boreflux steptest cases/step-tests/demo-series.csv --at \"30 min\" --skip 0.4
   boreflux steptest cases/step-tests/demo-steps.csv -o out/steptest.html --force";
 
 /// Arguments of `steptest`.
@@ -287,12 +292,17 @@ pub struct SteptestArgs {
     /// Confidence level of the intervals.
     #[arg(long, default_value_t = 0.95)]
     pub confidence: f64,
-    /// Time series: fraction of each step left out of the series fit at its start (0.25 is
-    /// an assumption; raise it when well-bore storage lasts longer).
-    #[arg(long, default_value_t = 0.25)]
-    pub skip: f64,
-    /// Time series: common pumping time the steps are corrected to, with a unit ("60 min");
-    /// default: the shortest step.
+    /// Time series (Hantush–Bierschenk): fraction of each step left out of the series fit at
+    /// its start; default 0.25 (an assumption; raise it when well-bore storage lasts
+    /// longer). No effect on a file of one row per step or with --method jacob (a warning
+    /// says so).
+    #[arg(long, value_name = "FRACTION")]
+    pub skip: Option<f64>,
+    /// Time series (Hantush–Bierschenk): common pumping time the steps are corrected to; the
+    /// unit is required ("60 min", "1.5 h", "900 s"). Default: the shortest step. A time
+    /// outside the readings fitted is warned about. Without --case, no effect on a file of
+    /// one row per step or with --method jacob (a warning says so); with --case it is the
+    /// model's step duration there.
     #[arg(long, value_name = "TIME")]
     pub at: Option<String>,
     /// Also fit the power law s = B Q + C Q^n (Rorabaugh) to the same steps (4 or more).

@@ -119,6 +119,19 @@ pub enum UnitError {
         /// The accepted units, comma separated.
         accepted: String,
     },
+    /// A plain number where the unit must be written (a command-line option whose bare
+    /// number would otherwise be read in SI, see [`parse_with_unit`]).
+    #[error("{got} has no unit; write {expected} with its unit, e.g. \"{example}\" (accepted: {accepted})")]
+    MissingUnit {
+        /// The value as written.
+        got: String,
+        /// What was expected, with its article.
+        expected: String,
+        /// An example with a unit.
+        example: &'static str,
+        /// The accepted units, comma separated.
+        accepted: String,
+    },
     /// A temperature below 0 K.
     #[error("temperature is below absolute zero: {got} (a bare number is kelvin)")]
     BelowAbsoluteZero {
@@ -393,6 +406,24 @@ impl Quantity {
 /// with or without the space, in plain or scientific notation (`"1e-4 m/s"`).
 pub fn parse_quantity(value: &Value, q: Quantity) -> Result<f64, UnitError> {
     parse_with_density(value, q, DEFAULT_WATER_DENSITY_KG_M3)
+}
+
+/// Reads a command-line value as `q` in SI units, like [`parse_quantity`] on the string,
+/// except that the unit is required: a plain number is refused with
+/// [`UnitError::MissingUnit`], which shows `example`. For options whose plain number a user
+/// could read in more than one unit (is `--at 30` seconds or minutes?).
+pub fn parse_with_unit(text: &str, q: Quantity, example: &'static str) -> Result<f64, UnitError> {
+    let s = text.trim();
+    let split = number_prefix_len(s);
+    if split > 0 && split == s.len() {
+        return Err(UnitError::MissingUnit {
+            got: shown(&Value::String(text.to_owned())),
+            expected: q.expected(),
+            example,
+            accepted: q.accepted_units().join(", "),
+        });
+    }
+    parse_quantity(&Value::String(text.to_owned()), q)
 }
 
 /// Reads a head (m): a length, or a pressure converted with the water density `rho_kg_m3`.
@@ -745,6 +776,33 @@ mod tests {
             parse_quantity(&json!(3), Quantity::Coefficient { si_unit: "s" }).unwrap(),
             3.0
         );
+    }
+
+    /// Conversion factors exact by definition (1 min = 60 s, 1 h = 3600 s; NIST SP 811).
+    #[test]
+    fn parse_with_unit_requires_the_unit() {
+        let t = Quantity::Time;
+        assert_eq!(parse_with_unit("30 min", t, "60 min").unwrap(), 1800.0);
+        assert_eq!(parse_with_unit(" 2h", t, "60 min").unwrap(), 7200.0);
+        assert_eq!(parse_with_unit("45 s", t, "60 min").unwrap(), 45.0);
+        for bare in ["30", " 30 ", "1e3", "0.5"] {
+            let e = parse_with_unit(bare, t, "60 min").unwrap_err();
+            assert!(matches!(e, UnitError::MissingUnit { .. }), "{bare}: {e:?}");
+            let m = e.to_string();
+            assert!(
+                m.contains("has no unit") && m.contains("\"60 min\"") && m.contains("min, h"),
+                "{m}"
+            );
+        }
+        // Other errors are those of parse_quantity.
+        assert!(matches!(
+            parse_with_unit("30 m", t, "60 min"),
+            Err(UnitError::WrongKind { .. })
+        ));
+        assert!(matches!(
+            parse_with_unit("min", t, "60 min"),
+            Err(UnitError::NotAQuantity { .. })
+        ));
     }
 
     #[test]

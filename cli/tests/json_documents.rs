@@ -109,6 +109,9 @@ fn steptest_json_prints_exactly_the_schema_keys() {
     let dir = tempfile::tempdir().unwrap();
     let three = dir.path().join("three.csv");
     std::fs::write(&three, "rate_L/s,drawdown_m\n5,0.98\n10,2.05\n15,3.21\n").unwrap();
+    // s/Q falling as Q rises: C < 0, so the warnings hold objects (invented numbers).
+    let negative = dir.path().join("negative.csv");
+    std::fs::write(&negative, "rate_L/s,drawdown_m\n5,0.98\n10,2.05\n15,2.6\n").unwrap();
     let docs = [
         json_of(&[
             "steptest",
@@ -120,6 +123,7 @@ fn steptest_json_prints_exactly_the_schema_keys() {
         ]),
         json_of(&["steptest", steps.to_str().unwrap(), "--json"]),
         json_of(&["steptest", three.to_str().unwrap(), "--json", "--power"]),
+        json_of(&["steptest", negative.to_str().unwrap(), "--json"]),
     ];
     compare(steptest_json::ALL, &docs);
 }

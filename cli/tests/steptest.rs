@@ -318,3 +318,192 @@ fn steptest_with_a_case_shows_the_model_beside_the_field() {
     );
     assert!(err.contains("no-such-case.json"), "{err}");
 }
+
+/// The warnings of a run, as (kind, message) pairs from `--json`.
+fn warnings_of(v: &Value) -> Vec<(String, String)> {
+    v["warnings"]
+        .as_array()
+        .expect("warnings is an array")
+        .iter()
+        .map(|w| {
+            (
+                w["kind"].as_str().unwrap().to_owned(),
+                w["message"].as_str().unwrap().to_owned(),
+            )
+        })
+        .collect()
+}
+
+/// s/Q falls as Q rises (invented steps: 5, 10, 15, 20 L/s; 0.98, 2.05, 2.6, 3.0 m), so
+/// the fitted C is negative: `numpy.linalg.lstsq` of s/Q on [1, Q] (numpy 2.4.6) gives
+/// B = 223.5 s/m², C = −3393.333 s²/m⁵, and E = B / (B + C Q) is above 1 at every step. The
+/// numbers are printed unchanged (1e-9 relative, the JSON carries 17 digits), with warnings
+/// in the table, the JSON and the HTML page; exit 0.
+#[test]
+fn steptest_negative_c_is_warned_everywhere_and_left_as_fitted() {
+    let dir = tempfile::tempdir().unwrap();
+    let f = write(
+        dir.path(),
+        "negc.csv",
+        "rate_L/s,drawdown_m\n5,0.98\n10,2.05\n15,2.6\n20,3.0\n",
+    );
+    let out = boreflux().arg("steptest").arg(&f).output().unwrap();
+    assert!(out.status.success());
+    let text = String::from_utf8_lossy(&out.stdout);
+    assert!(text.contains("WARNINGS (2):"), "{text}");
+    assert!(
+        text.contains("C = -3393 s²/m⁵ is below zero") && text.contains("Jacob's form"),
+        "{text}"
+    );
+    assert!(text.contains("still developing during the test"), "{text}");
+    assert!(
+        text.contains("outside 0 to 100 % at step 1 (") && text.contains("step 4 ("),
+        "{text}"
+    );
+
+    let v = json_of(&["steptest", f.to_str().unwrap(), "--json"]);
+    let c = v["C"]["value"].as_f64().unwrap();
+    assert!((c / -3_393.333_333_333 - 1.0).abs() < 1e-9, "C {c}");
+    assert!((v["B"]["value"].as_f64().unwrap() / 223.5 - 1.0).abs() < 1e-9);
+    let kinds: Vec<String> = warnings_of(&v).into_iter().map(|w| w.0).collect();
+    assert_eq!(kinds, ["negative_c", "efficiency_out_of_range"]);
+
+    let html = dir.path().join("negc.html");
+    boreflux()
+        .args(["steptest", f.to_str().unwrap(), "-o"])
+        .arg(&html)
+        .assert()
+        .success();
+    let page = std::fs::read_to_string(&html).unwrap();
+    assert!(
+        page.contains("<section class=\"warnings\">") && page.contains("Warnings (2)"),
+        "no warnings section"
+    );
+    assert!(page.contains("is below zero"));
+}
+
+/// Two steps at the same rate (5, 5, 15 L/s) and a rate below the step before (5, 10,
+/// 7.5 L/s); drawdowns invented. Each is named with its steps and rate.
+#[test]
+fn steptest_repeated_and_falling_rates_are_warned() {
+    let dir = tempfile::tempdir().unwrap();
+    let f = write(
+        dir.path(),
+        "same.csv",
+        "rate_L/s,drawdown_m\n5,0.98\n5,1.10\n15,3.21\n",
+    );
+    let v = json_of(&["steptest", f.to_str().unwrap(), "--json"]);
+    let w = warnings_of(&v);
+    assert_eq!(w[0].0, "repeated_rate", "{w:?}");
+    assert!(
+        w[0].1.contains("steps 1 and 2 share the rate 5.000 L/s"),
+        "{}",
+        w[0].1
+    );
+    let f = write(
+        dir.path(),
+        "down.csv",
+        "rate_L/s,drawdown_m\n5,0.98\n10,2.05\n7.5,1.5\n",
+    );
+    let out = boreflux().arg("steptest").arg(&f).output().unwrap();
+    assert!(out.status.success());
+    let text = String::from_utf8_lossy(&out.stdout);
+    assert!(
+        text.contains("step 3 is pumped at 7.500 L/s, below the 10.00 L/s of step 2"),
+        "{text}"
+    );
+    // The demo steps (increasing rates, C > 0) raise none.
+    let demo = cases_dir().join("step-tests/demo-steps.csv");
+    let v = json_of(&["steptest", demo.to_str().unwrap(), "--json"]);
+    assert_eq!(v["warnings"], serde_json::json!([]), "{}", v["warnings"]);
+}
+
+/// `--at` needs a unit: a plain number is refused (exit 2) with the option named and an
+/// example. A time before the readings fitted is warned about: the demo series has 60-min
+/// steps read every 5 min and a quarter of each step skipped, so the earliest reading
+/// fitted is 15 min into its step; 30 s lies before it. The time is used as given.
+#[test]
+fn steptest_at_needs_a_unit_and_a_time_within_the_readings() {
+    let demo = cases_dir().join("step-tests/demo-series.csv");
+    let d = demo.to_str().unwrap();
+    let e = stderr_of_failure(&["steptest", d, "--at", "30"], 2);
+    assert!(
+        e.contains("--at") && e.contains("has no unit") && e.contains("\"60 min\""),
+        "{e}"
+    );
+    let v = json_of(&["steptest", d, "--json", "--at", "30 s"]);
+    assert_eq!(v["series"]["reference_time_s"].as_f64(), Some(30.0));
+    let w = warnings_of(&v);
+    assert_eq!(w.len(), 1, "{w:?}");
+    assert_eq!(w[0].0, "reference_time_outside_data");
+    assert!(
+        w[0].1
+            .contains("--at 0.5000 min is earlier than any reading fitted")
+            && w[0].1.contains("15.00 min into its step"),
+        "{}",
+        w[0].1
+    );
+    // Later than the whole test (four 60-min steps).
+    let v = json_of(&["steptest", d, "--json", "--at", "5 h"]);
+    assert!(
+        warnings_of(&v)[0]
+            .1
+            .contains("later than the last reading (240.0 min"),
+        "{}",
+        v["warnings"]
+    );
+    // Inside the readings: nothing to say.
+    let v = json_of(&["steptest", d, "--json", "--at", "30 min"]);
+    assert_eq!(v["warnings"], serde_json::json!([]), "{}", v["warnings"]);
+}
+
+/// `--at` and `--skip` act on a time series only: on a file of one row per step (and with
+/// `--method jacob`) they are accepted with a warning that they have no effect, and the fit
+/// is that without them.
+#[test]
+fn steptest_options_without_effect_are_warned() {
+    let steps = cases_dir().join("step-tests/demo-steps.csv");
+    let s = steps.to_str().unwrap();
+    let plain = json_of(&["steptest", s, "--json"]);
+    let v = json_of(&["steptest", s, "--json", "--at", "30 min", "--skip", "0.9"]);
+    assert_eq!(v["B"], plain["B"]);
+    assert_eq!(v["C"], plain["C"]);
+    let w = warnings_of(&v);
+    assert_eq!(w.len(), 2, "{w:?}");
+    assert!(w.iter().all(|x| x.0 == "option_without_effect"));
+    assert!(
+        w[0].1
+            .starts_with("--skip 0.9 has no effect on a file of one row per step"),
+        "{}",
+        w[0].1
+    );
+    assert!(
+        w[1].1
+            .starts_with("--at 30.00 min has no effect on a file of one row per step"),
+        "{}",
+        w[1].1
+    );
+    let out = boreflux()
+        .args(["steptest", s, "--skip", "0.9"])
+        .output()
+        .unwrap();
+    assert!(out.status.success());
+    assert!(String::from_utf8_lossy(&out.stdout).contains("--skip 0.9 has no effect"));
+    let series = cases_dir().join("step-tests/demo-series.csv");
+    let v = json_of(&[
+        "steptest",
+        series.to_str().unwrap(),
+        "--json",
+        "--method",
+        "jacob",
+        "--skip",
+        "0.4",
+    ]);
+    assert!(
+        warnings_of(&v)[0]
+            .1
+            .contains("has no effect with --method jacob"),
+        "{}",
+        v["warnings"]
+    );
+}

@@ -6,7 +6,7 @@ use super::{print_out, Failure};
 use crate::args::{SteptestArgs, WeightsArg};
 use crate::output::TempTarget;
 use crate::steptest::{analyse, read, text, Options};
-use crate::units::{parse_quantity, Quantity};
+use crate::units::{parse_with_unit, Quantity};
 use anyhow::anyhow;
 use boreflux_solver::steptest::Weighting;
 
@@ -25,16 +25,18 @@ pub fn steptest(a: &SteptestArgs) -> Result<(), Failure> {
             a.confidence
         )));
     }
-    if !(0.0..1.0).contains(&a.skip) {
-        return Err(Failure::Input(anyhow!(
-            "--skip {} must be in [0, 1)",
-            a.skip
-        )));
+    if let Some(f) = a.skip {
+        if !(0.0..1.0).contains(&f) {
+            return Err(Failure::Input(anyhow!(
+                "--skip {f} must be a fraction of the step in [0, 1), e.g. 0.25"
+            )));
+        }
     }
     let reference_time_s = match &a.at {
         None => None,
         Some(t) => {
-            let v = parse_quantity(&serde_json::Value::String(t.clone()), Quantity::Time)
+            // The unit is required: a plain "30" would be read in seconds.
+            let v = parse_with_unit(t, Quantity::Time, "60 min")
                 .map_err(|e| Failure::Input(anyhow!("--at: {e}")))?;
             if v.is_nan() || v <= 0.0 {
                 return Err(Failure::Input(anyhow!(
@@ -57,6 +59,7 @@ pub fn steptest(a: &SteptestArgs) -> Result<(), Failure> {
         skip_fraction: a.skip,
         reference_time_s,
         power: a.power,
+        model_comparison: a.case.is_some(),
     };
     let outcome = analyse(&data, &opts).map_err(|e| input(&e))?;
     let model = match &a.case {

@@ -1,5 +1,5 @@
-//! The HTML page of a step-drawdown analysis: cautions, B and C with their intervals, the
-//! per-step table and an SVG plot of s/Q against Q with the fitted line and its pointwise
+//! The HTML page of a step-drawdown analysis: cautions, the warnings of the analysis, B and
+//! C with their intervals, the per-step table and an SVG plot of s/Q against Q with the fitted line and its pointwise
 //! confidence band, filled into templates/steptest.html.
 
 use askama::Template;
@@ -120,6 +120,8 @@ struct StepTestPage<'a> {
     efficiency_definition: &'static str,
     chart: Svg,
     rows: Vec<StepRow>,
+    /// The outcome's warnings, as printed.
+    warnings: Vec<String>,
 }
 
 /// One estimate of the well-loss table.
@@ -233,6 +235,7 @@ pub fn page(o: &Outcome, source: &str) -> String {
         efficiency_definition: EFFICIENCY_DEFINITION,
         chart: svg(chart(o)),
         rows,
+        warnings: o.warnings.iter().map(|w| w.message.clone()).collect(),
     })
 }
 

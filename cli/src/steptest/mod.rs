@@ -5,6 +5,7 @@ pub mod model;
 pub mod read;
 pub mod text;
 
+use boreflux_solver::steptest::checks::{self, Concern};
 use boreflux_solver::steptest::hantush::{self, HantushAnalysis, SeriesOptions};
 use boreflux_solver::steptest::jacob::{self, LineFit};
 use boreflux_solver::steptest::rorabaugh::{self, PowerFit};
@@ -32,12 +33,25 @@ pub struct Options {
     pub weighting: Weighting,
     /// Confidence level of the intervals.
     pub confidence: f64,
-    /// Early fraction of each step left out of the series fit.
-    pub skip_fraction: f64,
-    /// Common elapsed time, s, or the shortest step.
+    /// Early fraction of each step left out of the series fit (`--skip`); `None`: the
+    /// solver's default ([`SeriesOptions::default`]).
+    pub skip_fraction: Option<f64>,
+    /// Common elapsed time, s (`--at`); `None`: the shortest step.
     pub reference_time_s: Option<f64>,
     /// Also fit s = B Q + C Qⁿ (Rorabaugh).
     pub power: bool,
+    /// A model is pumped beside the field test (`--case`): `--at` then also sets its step
+    /// duration, so it has an effect on a file of one row per step too.
+    pub model_comparison: bool,
+}
+
+/// A warning shown beside the fit: in the table, the JSON and the HTML page.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Warning {
+    /// Short stable name (`negative_c`, `option_without_effect`, …).
+    pub kind: &'static str,
+    /// The text, with units.
+    pub message: String,
 }
 
 /// The result of either method, in the form the outputs need.
@@ -55,9 +69,19 @@ pub struct Outcome {
     pub series: Option<HantushAnalysis>,
     /// The power-law fit when asked for: the fit, or why it could not be made.
     pub power: Option<Result<PowerFit, StepTestError>>,
+    /// What the fit cannot vouch for and options without effect; empty for a sound test.
+    pub warnings: Vec<Warning>,
 }
 
 impl Outcome {
+    fn warn(mut self, concerns: &[Concern]) -> Self {
+        self.warnings.extend(concerns.iter().map(|c| Warning {
+            kind: c.kind(),
+            message: text::concern(c),
+        }));
+        self
+    }
+
     fn with_power(mut self, asked: bool) -> Self {
         if asked {
             let steps: Vec<Step> = self
@@ -68,7 +92,11 @@ impl Outcome {
                     drawdown_m: g.drawdown_m,
                 })
                 .collect();
-            self.power = Some(rorabaugh::fit_power(&steps, self.fit.confidence));
+            let power = rorabaugh::fit_power(&steps, self.fit.confidence);
+            if let Ok(p) = &power {
+                self = self.warn(&checks::power_concerns(p));
+            }
+            self.power = Some(power);
         }
         self
     }
@@ -93,9 +121,55 @@ pub enum AnalysisError {
     HantushNeedsSeries,
 }
 
+/// The options given that the analysis of `data` by `opts.method` does not use: `--skip`
+/// and `--at` act on the time series of Hantush–Bierschenk only, except that `--at` also
+/// sets the model's step duration with `--case`.
+fn unused_options(data: &StepData, opts: &Options) -> Vec<Warning> {
+    let why = match (data, opts.method) {
+        (StepData::Steps { .. }, _) => {
+            "on a file of one row per step (the drawdowns are used as read)"
+        }
+        (StepData::Series { .. }, Method::Jacob) => {
+            "with --method jacob (the last reading of each step is used as read)"
+        }
+        (StepData::Series { .. }, Method::Auto | Method::Hantush) => return Vec::new(),
+    };
+    let mut out = Vec::new();
+    if let Some(f) = opts.skip_fraction {
+        out.push(Warning {
+            kind: "option_without_effect",
+            message: format!(
+                "--skip {f} has no effect {why}: it leaves the early readings of each step out \
+                 of the Hantush–Bierschenk fit of a time series."
+            ),
+        });
+    }
+    if let (Some(t), false) = (opts.reference_time_s, opts.model_comparison) {
+        out.push(Warning {
+            kind: "option_without_effect",
+            message: format!(
+                "--at {} min has no effect {why}: it sets the common time of the \
+                 Hantush–Bierschenk correction of a time series (and, with --case, the model's \
+                 step duration).",
+                text::sig(t / 60.0)
+            ),
+        });
+    }
+    out
+}
+
 /// Runs the analysis. Errors are bad input (exit 2); they name the file line where a step
-/// or reading is at fault.
+/// or reading is at fault. The warnings of the outcome list the options given that have no
+/// effect, then the solver's concerns (`boreflux_solver::steptest::checks`).
 pub fn analyse(data: &StepData, opts: &Options) -> Result<Outcome, AnalysisError> {
+    let mut outcome = fit(data, opts)?;
+    let mut warnings = unused_options(data, opts);
+    warnings.append(&mut outcome.warnings);
+    outcome.warnings = warnings;
+    Ok(outcome)
+}
+
+fn fit(data: &StepData, opts: &Options) -> Result<Outcome, AnalysisError> {
     let locate = |e: StepTestError| -> AnalysisError {
         let row = match &e {
             StepTestError::BadStep { step, .. } if matches!(data, StepData::Steps { .. }) => {
@@ -119,7 +193,9 @@ pub fn analyse(data: &StepData, opts: &Options) -> Result<Outcome, AnalysisError
             figures: a.figures,
             series: None,
             power: None,
+            warnings: Vec::new(),
         }
+        .warn(&a.concerns)
         .with_power(opts.power))
     };
     match (data, opts.method) {
@@ -130,13 +206,15 @@ pub fn analyse(data: &StepData, opts: &Options) -> Result<Outcome, AnalysisError
             jacob_line(&series::end_of_step(samples, &spans))
         }
         (StepData::Series { samples, .. }, Method::Auto | Method::Hantush) => {
+            let defaults = SeriesOptions::default();
             let o = SeriesOptions {
                 weighting: opts.weighting,
                 confidence: opts.confidence,
-                skip_fraction: opts.skip_fraction,
+                skip_fraction: opts.skip_fraction.unwrap_or(defaults.skip_fraction),
                 reference_time_s: opts.reference_time_s,
             };
             let a = hantush::fit_series(samples, &o).map_err(locate)?;
+            let concerns = a.concerns.clone();
             Ok(Outcome {
                 method: "hantush-bierschenk",
                 measured_m: a.measured.iter().map(|s| s.drawdown_m).collect(),
@@ -144,7 +222,9 @@ pub fn analyse(data: &StepData, opts: &Options) -> Result<Outcome, AnalysisError
                 figures: a.corrected.figures.clone(),
                 series: Some(a),
                 power: None,
+                warnings: Vec::new(),
             }
+            .warn(&concerns)
             .with_power(opts.power))
         }
     }

@@ -2,6 +2,7 @@
 
 use super::Outcome;
 use crate::output::schema::{estimate as E, steptest_json as K, JsonKey};
+use boreflux_solver::steptest::checks::Concern;
 use boreflux_solver::steptest::{Estimate, Weighting};
 use serde_json::{json, Value};
 
@@ -21,6 +22,138 @@ order (delta method).";
 /// ([`crate::sigfig`]).
 pub fn sig(v: f64) -> String {
     crate::sigfig::text(v, 4)
+}
+
+/// The usual causes of a fit that the data do not support, shared by the warnings.
+const USUAL_CAUSES: &str = "the well still developing during the test (fines removed, \
+losses falling from step to step), too few steps or rates too close together for the \
+scatter of the readings, a step read before its drawdown settled or after a different \
+pumping time, or an error in a rate or a level";
+
+/// "1 and 2", "1, 3 and 5".
+fn step_list(steps: &[usize]) -> String {
+    let n: Vec<String> = steps.iter().map(ToString::to_string).collect();
+    match n.split_last() {
+        None => String::new(),
+        Some((last, [])) => last.clone(),
+        Some((last, rest)) => format!("{} and {last}", rest.join(", ")),
+    }
+}
+
+/// The text of a solver concern, with units (rates in L/s, times in min).
+pub fn concern(c: &Concern) -> String {
+    match c {
+        Concern::RepeatedRate {
+            rate_m3_s,
+            steps,
+            distinct_rates,
+        } => {
+            let mut m = format!(
+                "steps {} share the rate {} L/s: a step test needs a different rate at each \
+                 step, each higher than the last. A repeated rate adds nothing to the slope C, \
+                 which rests on the {distinct_rates} distinct rates",
+                step_list(steps),
+                sig(rate_m3_s * 1e3)
+            );
+            if *distinct_rates == 2 {
+                m += "; with two, the line passes through the mean s/Q at each rate, as in a \
+                      two-step test, and its intervals come only from the scatter between \
+                      the repeated steps";
+            }
+            m + "."
+        }
+        Concern::RateDecreases {
+            step,
+            rate_m3_s,
+            previous_m3_s,
+        } => format!(
+            "step {step} is pumped at {} L/s, below the {} L/s of step {}: the analysis \
+             assumes each step higher than the last. A lower step after a higher one starts \
+             while the well recovers from it, and the higher rate may have developed the well \
+             further, so its drawdown need not lie on the same line.",
+            sig(rate_m3_s * 1e3),
+            sig(previous_m3_s * 1e3),
+            step - 1
+        ),
+        Concern::NegativeC {
+            value,
+            upper,
+            confidence,
+        } => {
+            let pct = 100.0 * confidence;
+            let interval = if *upper >= 0.0 {
+                format!(
+                    "Its {pct:.0} % interval reaches {} s²/m⁵, so the data cannot tell C from \
+                     zero",
+                    sig(*upper)
+                )
+            } else {
+                format!("Its whole {pct:.0} % interval lies below zero")
+            };
+            format!(
+                "C = {} s²/m⁵ is below zero: s/Q falls as Q rises, so the fit finds no \
+                 non-linear well loss, and a negative one is not physical: the data do not \
+                 support Jacob's form s = B Q + C Q². The usual causes: \
+                 {USUAL_CAUSES}. {interval}. B, the losses and the efficiencies come from \
+                 this line and do not describe the well: check the readings, and repeat the \
+                 test once development is complete.",
+                sig(*value)
+            )
+        }
+        Concern::NegativeB { value } => format!(
+            "B = {} s/m² is below zero: a negative linear loss is not physical, so the line \
+             does not describe the well. The usual causes: {USUAL_CAUSES}.",
+            sig(*value)
+        ),
+        Concern::EfficiencyOutOfRange { steps } => {
+            let list: Vec<String> = steps
+                .iter()
+                .map(|(k, e)| format!("step {k} ({:.1} %)", 100.0 * e))
+                .collect();
+            format!(
+                "the step efficiency E = B Q / (B Q + C Q²) lies outside 0 to 100 % at {}: \
+                 E is the linear share of the fitted drawdown and stays within 0 to 100 % only \
+                 when B and C are not negative. These values follow from the negative \
+                 coefficient and are not efficiencies of the well.",
+                list.join(", ")
+            )
+        }
+        Concern::ReferenceTimeOutside {
+            reference_s,
+            first_s,
+            last_s,
+        } => {
+            if reference_s < first_s {
+                format!(
+                    "--at {} min is earlier than any reading fitted (the earliest is {} min \
+                     into its step; readings before it were left out by --skip or not taken): \
+                     B(Δt) = a + b log10 Δt then extends the Cooper–Jacob straight line back to \
+                     times where well-bore storage and early-time flow usually bend the \
+                     drawdown curve, so B and the efficiencies at that time are not supported \
+                     by the readings. C does not depend on --at. Choose a time within the \
+                     steps (the default is the shortest step).",
+                    sig(reference_s / 60.0),
+                    sig(first_s / 60.0)
+                )
+            } else {
+                format!(
+                    "--at {} min is later than the last reading ({} min after pumping began): \
+                     B(Δt) = a + b log10 Δt then extends the Cooper–Jacob straight line beyond \
+                     the test, and a boundary, leakage or delayed yield not reached during the \
+                     test would change it. C does not depend on --at.",
+                    sig(reference_s / 60.0),
+                    sig(last_s / 60.0)
+                )
+            }
+        }
+        Concern::NegativePowerC { value, n } => format!(
+            "power law: C = {} s^n/m^(3n-1) (n = {}) is below zero: no physical non-linear \
+             loss, so the law does not describe the well. The usual causes: {USUAL_CAUSES}.",
+            sig(*value),
+            sig(*n)
+        ),
+        other => other.kind().replace('_', " "),
+    }
 }
 
 fn weighting_name(w: Weighting) -> &'static str {
@@ -65,6 +198,13 @@ pub fn table(o: &Outcome) -> String {
     s += &estimate_line("B", &f.b, "s/m²", pct);
     s += &estimate_line("C", &f.c, "s²/m⁵", pct);
     s += &format!("      C = {} min²/m⁵\n\n", sig(f.c.value / 3600.0));
+    if !o.warnings.is_empty() {
+        s += &format!("WARNINGS ({}):\n", o.warnings.len());
+        for w in &o.warnings {
+            s += &format!("  - {}\n", w.message);
+        }
+        s += "\n";
+    }
     let corrected = o.series.is_some();
     s += &format!(
         "{:>4} {:>9} {:>9}{} {:>10} {:>11} {:>8} {:>8} {:>7} {:>7} {:>14}\n",
@@ -195,6 +335,9 @@ pub fn to_json(o: &Outcome) -> Value {
         (K::COV_BC.key()): f.cov_bc,
         (K::RESIDUAL_STD.key()): f.residual_std,
         (K::EFFICIENCY_DEFINITION.key()): EFFICIENCY_DEFINITION,
+        (K::WARNINGS.key()): o.warnings.iter().map(|w| json!({
+            (K::WARNING_KIND.key()): w.kind, (K::WARNING_MESSAGE.key()): w.message,
+        })).collect::<Vec<_>>(),
         (K::STEPS.key()): steps,
     });
     match &o.power {

@@ -35,6 +35,7 @@
 //! and summarizing well-field history", Trans. AGU 27(4), 526–534 (all from memory —
 //! verify).
 
+use super::checks::{self, Concern};
 use super::jacob::{self, JacobAnalysis};
 use super::series::{self, StepSpan};
 use super::{lsq, student, Estimate, Sample, Step, StepTestError, Weighting};
@@ -103,6 +104,13 @@ pub struct HantushAnalysis {
     pub b_series: Estimate,
     /// Jacob's line through the corrected drawdowns: the procedure's B(Δt) and C.
     pub corrected: JacobAnalysis,
+    /// Elapsed times the straight line was fitted over \[s\]: the earliest reading in the
+    /// series fit, from the start of its step, and the last reading of the test, from the
+    /// start of pumping.
+    pub fitted_times_s: (f64, f64),
+    /// What the analysis cannot vouch for: those of the corrected line
+    /// (`corrected.concerns`), then a common time Δt outside [`Self::fitted_times_s`].
+    pub concerns: Vec<Concern>,
 }
 
 /// Σ_{i≤n} ΔQ_i log10(t − t_i) for a time t in step n (index into `spans`).
@@ -135,12 +143,14 @@ pub fn fit_series(
     jacob::check_steps(&measured)?;
 
     let (mut x_q, mut x_log, mut x_q2, mut y) = (Vec::new(), Vec::new(), Vec::new(), Vec::new());
+    let mut first_elapsed = f64::INFINITY;
     for (n, sp) in spans.iter().enumerate() {
         let t0 = sp.start_s + opts.skip_fraction * sp.duration_s(samples);
         for s in &samples[sp.first..=sp.last] {
             if s.time_s < t0 {
                 continue;
             }
+            first_elapsed = first_elapsed.min(s.time_s - sp.start_s);
             x_q.push(sp.rate_m3_s);
             x_log.push(superposed_log(&spans, n, s.time_s));
             x_q2.push(sp.rate_m3_s * sp.rate_m3_s);
@@ -208,6 +218,11 @@ pub fn fit_series(
         })
         .collect();
     let corrected = jacob::fit_steps(&corrected_steps, opts.weighting, opts.confidence)?;
+    // `samples` is not empty: split_steps found at least three steps in it.
+    let last_s = samples[samples.len() - 1].time_s;
+    let fitted_times_s = (first_elapsed, last_s);
+    let mut concerns = corrected.concerns.clone();
+    concerns.extend(checks::reference_concern(dt_ref, first_elapsed, last_s));
     Ok(HantushAnalysis {
         spans,
         measured,
@@ -215,6 +230,8 @@ pub fn fit_series(
         series: series_fit,
         b_series,
         corrected,
+        fitted_times_s,
+        concerns,
     })
 }
 
@@ -417,6 +434,44 @@ mod tests {
         }
         assert!((179..=199).contains(&hit_b), "B(Δt) covered {hit_b}/200");
         assert!((179..=199).contains(&hit_c), "C covered {hit_c}/200");
+    }
+
+    /// The common time against the readings fitted. The synthetic test has 60-min steps
+    /// read every minute; a quarter of each step is skipped, so the earliest reading fitted
+    /// is 15 min into its step and the last reading is at 240 min. A Δt outside 15…240 min
+    /// is reported; inside, nothing is. Δt shifts every s*/Q by the same b log10 Δt, so C
+    /// must not move (1e-9 relative, round-off of the fit) while B does.
+    #[test]
+    fn steptest_hantush_reference_time_outside_the_readings_is_reported() {
+        let (x, ..) = synthetic(false);
+        let base = fit_series(&x, &SeriesOptions::default()).unwrap();
+        assert_eq!(base.fitted_times_s, (900.0, 14400.0));
+        assert!(base.concerns.is_empty(), "{:?}", base.concerns);
+        for (t, outside) in [
+            (30.0, true),
+            (900.0, false),
+            (1800.0, false),
+            (20000.0, true),
+        ] {
+            let o = SeriesOptions {
+                reference_time_s: Some(t),
+                ..SeriesOptions::default()
+            };
+            let r = fit_series(&x, &o).unwrap();
+            let want = outside.then_some(Concern::ReferenceTimeOutside {
+                reference_s: t,
+                first_s: 900.0,
+                last_s: 14400.0,
+            });
+            assert_eq!(r.concerns.first().cloned(), want, "Δt = {t} s");
+            let c = (r.corrected.fit.c.value, base.corrected.fit.c.value);
+            assert!((c.0 / c.1 - 1.0).abs() < 1e-9, "C {c:?} at Δt = {t} s");
+            // B(Δt) = a + b log10 Δt grows with Δt (b > 0); the default Δt is 3600 s.
+            assert_eq!(
+                r.corrected.fit.b.value < base.corrected.fit.b.value,
+                t < 3600.0
+            );
+        }
     }
 
     #[test]

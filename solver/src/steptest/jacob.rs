@@ -20,6 +20,7 @@
 //! Jacob, C.E., 1947, "Drawdown test to determine effective radius of artesian well",
 //! Trans. ASCE 112, 1047–1070 (pages from memory — verify).
 
+use super::checks::{self, Concern};
 use super::{student, Estimate, Step, StepFigures, StepTestError, Weighting};
 
 /// The fitted line s/Q = B + C Q.
@@ -53,6 +54,9 @@ pub struct JacobAnalysis {
     pub fit: LineFit,
     /// Per-step figures at the fitted B and C.
     pub figures: Vec<StepFigures>,
+    /// What the fit cannot vouch for (repeated or falling rates, C or B below zero,
+    /// efficiencies outside 0…1), in that order; empty for a sound test.
+    pub concerns: Vec<Concern>,
 }
 
 /// Checks the steps: at least three, finite positive rates and drawdowns, not all rates
@@ -147,7 +151,8 @@ pub fn fit_line(
     })
 }
 
-/// Fits the steps and derives the per-step figures (losses, efficiency, specific capacity).
+/// Fits the steps and derives the per-step figures (losses, efficiency, specific capacity)
+/// and the concerns of [`checks`].
 pub fn fit_steps(
     steps: &[Step],
     weighting: Weighting,
@@ -155,10 +160,13 @@ pub fn fit_steps(
 ) -> Result<JacobAnalysis, StepTestError> {
     let fit = fit_line(steps, weighting, confidence)?;
     let figures = super::step_figures(steps, &fit);
+    let mut concerns = checks::rate_concerns(steps);
+    concerns.extend(checks::fit_concerns(&fit, &figures));
     Ok(JacobAnalysis {
         steps: steps.to_vec(),
         fit,
         figures,
+        concerns,
     })
 }
 

@@ -21,10 +21,15 @@
 //! - [`rorabaugh::fit_power`]: the generalised law s = B Q + C Qⁿ (Rorabaugh 1953) on four
 //!   or more steps, with linearised intervals.
 //!
+//! [`checks`] lists what a fit cannot vouch for (C or B below zero, efficiencies outside
+//! 0…100 %, repeated or falling rates, a common time outside the readings); the analyses
+//! carry those findings beside their numbers and leave the numbers as fitted.
+//!
 //! Everything is in SI: rates in m³/s, drawdowns in m, times in s. Nothing here reads or
 //! writes files. The formulas, their sources and the meaning of the intervals are written
 //! out in `docs/step-test.md`.
 
+pub mod checks;
 pub mod hantush;
 pub mod jacob;
 pub(crate) mod lsq;

@@ -161,6 +161,9 @@ json_document! {
         COV_BC => "cov_BC_s3_m7", "s3/m7", Number, "covariance of B and C";
         RESIDUAL_STD => "residual_std", "s/m2", Number, "residual standard deviation of s/Q at unit weight";
         EFFICIENCY_DEFINITION => "efficiency_definition", "", Text, "how the step efficiency is defined";
+        WARNINGS => "warnings", "", Array, "what the fit cannot vouch for and options without effect (empty when none; docs/step-test.md §4a)";
+        WARNING_KIND => "warnings[].kind", "", Text, "negative_c, negative_b, efficiency_out_of_range, repeated_rate, rate_decreases, reference_time_outside_data, negative_power_c or option_without_effect";
+        WARNING_MESSAGE => "warnings[].message", "", Text, "the warning as printed, with units";
         STEPS => "steps", "", Array, "one object per step";
         RATE => "steps[].rate_m3_s", "m3/s", Number, "pumping rate";
         MEASURED_DRAWDOWN => "steps[].measured_drawdown_m", "m", Number, "drawdown read";
