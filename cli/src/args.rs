@@ -332,6 +332,16 @@ The case's drive is the development device used on `develop` rows. Free paramete
 case paths with bounds in the case's units; conductivities, storages, strengths,
 erodibilities and pressures are fitted on a log scale unless `:linear` is added.
 
+Each value is shown in the case's unit and labelled: constrained, weakly constrained (the
+interval spans more than a decade, or more than ±50 % on a linear scale), near bound (the
+interval crosses a bound), at bound (within 1 % of the range of a bound: widen it if it is
+not physical), not constrained (the log does not fix it) or not converged. Intervals that
+cross a bound are kept and say so. --write-case keeps the case's key order, writes six
+significant digits and records the calibration in the description.
+
+Exit codes: 0 the fit converged; 1 it did not converge (the outputs are still written and
+say so; raise --max-runs) or a model run failed; 2 bad input.
+
 Example:
   boreflux calibrate cases/calibration/pilot-well.json cases/calibration/pilot-log.csv \\
     --free 'formation.conductivity=1e-5 m/s..1e-2 m/s' \\

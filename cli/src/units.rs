@@ -570,7 +570,7 @@ pub fn format_si(value: f64, q: Quantity) -> String {
 
 /// `value` to `digits` significant digits, plain between 1e-3 and 1e5 (where the integer
 /// part is kept whole, so 12345 stays 12345), else scientific; no trailing zeros.
-fn format_significant(value: f64, digits: usize) -> String {
+pub fn format_significant(value: f64, digits: usize) -> String {
     if value == 0.0 || !value.is_finite() {
         return format!("{value}");
     }

@@ -161,9 +161,32 @@ fn a_parameter_that_does_not_act_on_drawdown_is_reported_unconstrained() {
     }
 }
 
+/// Top-level keys of the test case in the order written to its file: not alphabetical, so a
+/// writer that sorts keys shows.
+const KEY_ORDER: [&str; 7] = [
+    "title",
+    "well",
+    "pack",
+    "formation",
+    "drive",
+    "duration",
+    "numerics",
+];
+
+/// The case's text with its top-level keys in [`KEY_ORDER`].
+fn ordered_text(v: &Value) -> String {
+    let items: Vec<String> = KEY_ORDER
+        .iter()
+        .map(|k| format!("  \"{k}\": {}", v[*k]))
+        .collect();
+    format!("{{\n{}\n}}\n", items.join(",\n"))
+}
+
 fn write_inputs(dir: &std::path::Path) -> (PathBuf, PathBuf) {
     let case_path = dir.join("well.json");
-    std::fs::write(&case_path, case("3e-4 m/s", "1e-4 1/m").to_string()).unwrap();
+    let v = case("3e-4 m/s", "1e-4 1/m");
+    assert_eq!(v.as_object().unwrap().len(), KEY_ORDER.len());
+    std::fs::write(&case_path, ordered_text(&v)).unwrap();
     let clean = truth();
     let mut rng = Rng(99);
     let mut csv = String::from("# invented test log\ntime_min,activity,rate_L/s,drawdown_cm\n");
@@ -210,22 +233,54 @@ fn the_command_writes_json_page_and_calibrated_case_and_refuses_bad_input() {
     );
     let v: Value = serde_json::from_slice(&ok.stdout).unwrap();
     assert_eq!(v["converged"], true);
+    assert_eq!(v["parameters"][0]["unit"]["label"], "m/s");
+    assert_eq!(v["parameters"][1]["unit"]["label"], "1/m");
     let k = v["parameters"][0]["fitted_si"].as_f64().unwrap();
     let iv = &v["parameters"][0]["interval_si"];
     assert!(iv[0].as_f64().unwrap() <= k && k <= iv[1].as_f64().unwrap());
     let html = std::fs::read_to_string(&page).unwrap();
     assert!(html.contains("Residual against the fitted drawdown") && html.contains("<svg"));
-    // The calibrated case: the input with only the free values changed.
-    let written: Value =
-        serde_json::from_str(&std::fs::read_to_string(&out_case).unwrap()).unwrap();
+    // The calibrated case: the input with only the free values changed, the title marked
+    // and a description recording the calibration.
+    let written_text = std::fs::read_to_string(&out_case).unwrap();
+    let written: Value = serde_json::from_str(&written_text).unwrap();
     let mut expected = case("3e-4 m/s", "1e-4 1/m");
     expected["formation"]["conductivity"] = written["formation"]["conductivity"].clone();
     expected["formation"]["specific_storage"] = written["formation"]["specific_storage"].clone();
+    expected["title"] = json!("calibration test well (invented) (calibrated to log.csv)");
+    expected["description"] = written["description"].clone();
     assert_eq!(written, expected);
-    assert!(written["formation"]["conductivity"]
-        .as_str()
-        .unwrap()
-        .ends_with(" m/s"));
+    let d = written["description"].as_str().unwrap();
+    assert!(
+        d.contains("log.csv")
+            && d.contains("formation.conductivity (1e-6 .. 0.01 m/s)")
+            && d.contains("formation.specific_storage (1e-7 .. 0.01 1/m)")
+            && d.contains("the fit converged"),
+        "{d}"
+    );
+    // Keys in the file's order (the description after the title), not sorted.
+    let at = |k: &str| written_text.find(&format!("\"{k}\"")).unwrap();
+    assert!(at("title") < at("description") && at("description") < at("well"));
+    assert!(
+        KEY_ORDER.windows(2).all(|w| at(w[0]) < at(w[1])),
+        "{written_text}"
+    );
+    // Six significant digits at most, in the case's unit, and within 5e-6 of the fit
+    // (the rounding of six digits).
+    for (path, unit, j) in [("conductivity", " m/s", 0), ("specific_storage", " 1/m", 1)] {
+        let text = written["formation"][path].as_str().unwrap();
+        let number = text.strip_suffix(unit).expect(text);
+        let mantissa = number.split('e').next().unwrap().replace(['.', '-'], "");
+        assert!(mantissa.trim_start_matches('0').len() <= 6, "{text}");
+        let fitted = v["parameters"][j]["fitted_si"].as_f64().unwrap();
+        let back: f64 = number.parse().unwrap();
+        assert!((back / fitted - 1.0).abs() <= 5e-6, "{text} vs {fitted}");
+    }
+    // The written case loads.
+    success(
+        bin().arg("check").arg(&out_case),
+        "check of the calibrated case",
+    );
     // Bad input: exit 2, the message names what is wrong; nothing written.
     let bad_free = bin()
         .arg("calibrate")
@@ -334,4 +389,165 @@ fn profile_intervals_bracket_the_fit_and_match_the_jacobian_where_the_model_is_n
         let w = (jhi / jlo).ln();
         assert!((lo / jlo).ln().abs() < 0.25 * w && (hi / jhi).ln().abs() < 0.25 * w);
     }
+}
+
+/// The table and the page of the small case: each parameter with its unit.
+#[test]
+fn the_table_and_the_page_show_each_parameters_unit() {
+    let dir = tempfile::tempdir().unwrap();
+    let (case_path, log_path) = write_inputs(dir.path());
+    let page = dir.path().join("cal.html");
+    let ok = success(
+        boreflux()
+            .arg("calibrate")
+            .arg(&case_path)
+            .arg(&log_path)
+            .args([
+                "--free",
+                "formation.conductivity=1e-6 m/s..1e-2 m/s",
+                "--free",
+                "formation.specific_storage=1e-7 1/m..1e-2 1/m",
+                "--jobs",
+                "2",
+                "-o",
+            ])
+            .arg(&page),
+        "calibrate",
+    );
+    let out = String::from_utf8_lossy(&ok.stdout);
+    assert!(!out.contains("(SI)"), "{out}");
+    let row = |name: &str| {
+        out.lines()
+            .find(|l| l.starts_with(name))
+            .unwrap_or_else(|| panic!("{out}"))
+            .split_whitespace()
+            .map(str::to_owned)
+            .collect::<Vec<_>>()
+    };
+    // parameter, unit, start (the case's 3e-4 m/s and 1e-4 1/m), fitted, ...
+    let k = row("formation.conductivity");
+    assert_eq!((k[1].as_str(), k[2].as_str()), ("m/s", "3.000e-4"), "{out}");
+    let ss = row("formation.specific_storage");
+    assert_eq!(
+        (ss[1].as_str(), ss[2].as_str()),
+        ("1/m", "1.000e-4"),
+        "{out}"
+    );
+    let html = std::fs::read_to_string(&page).unwrap();
+    assert!(!html.contains("(SI)"));
+    assert!(html.contains("<code>formation.conductivity</code></th><td>m/s</td><td>3.000e-4</td>"));
+}
+
+/// A fit of the conductivity alone (from 3e-4 m/s, truth 1e-4 m/s) stopped by --max-runs:
+/// exit 1, every output says it did not converge, and no value is called constrained or given
+/// a valid interval.
+#[test]
+fn a_fit_that_did_not_converge_exits_1_and_says_so_everywhere() {
+    let dir = tempfile::tempdir().unwrap();
+    let (case_path, log_path) = write_inputs(dir.path());
+    let page = dir.path().join("cal.html");
+    let out_case = dir.path().join("calibrated.json");
+    let run = |extra: &[&str]| {
+        boreflux()
+            .arg("calibrate")
+            .arg(&case_path)
+            .arg(&log_path)
+            .args(["--free", K, "--max-runs", "1", "--jobs", "2"])
+            .args(extra)
+            .output()
+            .unwrap()
+    };
+    let j = run(&[
+        "--json",
+        "-o",
+        page.to_str().unwrap(),
+        "--write-case",
+        out_case.to_str().unwrap(),
+    ]);
+    assert_eq!(
+        j.status.code(),
+        Some(1),
+        "{}",
+        String::from_utf8_lossy(&j.stderr)
+    );
+    assert!(String::from_utf8_lossy(&j.stderr).contains("did not converge"));
+    let v: Value = serde_json::from_slice(&j.stdout).unwrap();
+    assert_eq!(v["converged"], false);
+    for p in v["parameters"].as_array().unwrap() {
+        assert_eq!(p["label"], "not converged", "{p}");
+        assert_eq!(p["constrained"], false, "{p}");
+        assert_eq!(p["interval_valid"], false, "{p}");
+        assert!(
+            p["status"].as_str().unwrap().starts_with("NOT CONVERGED"),
+            "{p}"
+        );
+    }
+    // One free parameter whose interval exists where the fit stopped: it is shown, marked.
+    assert!(v["parameters"][0]["interval_si"].is_array(), "{v}");
+    let html = std::fs::read_to_string(&page).unwrap();
+    assert!(html.contains("did not converge"));
+    assert!(html.contains("(not valid)"));
+    assert!(!html.contains("<td>constrained</td>"));
+    let written: Value =
+        serde_json::from_str(&std::fs::read_to_string(&out_case).unwrap()).unwrap();
+    assert!(written["description"]
+        .as_str()
+        .unwrap()
+        .contains("did NOT converge"));
+    assert!(written["title"]
+        .as_str()
+        .unwrap()
+        .ends_with("not converged)"));
+    // The table: the same words, no "constrained" label.
+    let t = run(&[]);
+    assert_eq!(t.status.code(), Some(1));
+    let out = String::from_utf8_lossy(&t.stdout);
+    assert!(
+        out.contains("NOT converged") && out.contains("(not valid)"),
+        "{out}"
+    );
+    for l in out.lines().filter(|l| l.starts_with("formation.")) {
+        assert!(
+            l.contains("NOT CONVERGED") && !l.ends_with("constrained"),
+            "{l}"
+        );
+    }
+}
+
+/// A lower bound above the true conductivity (1e-4 m/s): the fit ends on it, and the value is
+/// reported at the bound with an interval that is not valid, not as constrained.
+#[test]
+fn a_value_at_its_bound_is_flagged_and_its_interval_not_valid() {
+    let dir = tempfile::tempdir().unwrap();
+    let (case_path, log_path) = write_inputs(dir.path());
+    let o = success(
+        boreflux()
+            .arg("calibrate")
+            .arg(&case_path)
+            .arg(&log_path)
+            .args([
+                "--free",
+                "formation.conductivity=2e-4 m/s..1e-2 m/s",
+                "--free",
+                SS,
+                "--json",
+                "--jobs",
+                "2",
+            ]),
+        "calibrate",
+    );
+    let v: Value = serde_json::from_slice(&o.stdout).unwrap();
+    let k = &v["parameters"][0];
+    eprintln!("{k}");
+    assert_eq!(k["label"], "at bound", "{k}");
+    assert_eq!(k["at_bound"], "lower", "{k}");
+    assert_eq!(k["interval_valid"], false, "{k}");
+    assert_eq!(k["constrained"], false, "{k}");
+    assert!(
+        k["status"]
+            .as_str()
+            .unwrap()
+            .contains("AT THE LOWER BOUND (2.000e-4 m/s)"),
+        "{k}"
+    );
 }

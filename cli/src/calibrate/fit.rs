@@ -6,8 +6,8 @@ use super::record::DevelopmentLog;
 use super::schedule::{evaluate_all, scheduled_case, Modelled};
 use super::steps::FieldSteps;
 use boreflux_solver::calibrate::{
-    forward_jacobian, minimize, profile_interval, uncertainty, Identifiability, LmOptions, Side,
-    Termination, Uncertainty,
+    assess, forward_jacobian, minimize, profile_interval, uncertainty, Identifiability, LmOptions,
+    Side, Termination, Uncertainty, Verdict,
 };
 use boreflux_solver::calibrate::{Scale, Setup};
 use serde_json::Value;
@@ -60,8 +60,32 @@ pub struct Fitted {
     pub profile: Option<(Option<f64>, Option<f64>)>,
     /// What the records say about it.
     pub status: Identifiability,
-    /// Whether the fit stopped on a bound.
-    pub on_bound: bool,
+    /// What the value may be called: not converged, at or near a bound, weakly constrained,
+    /// constrained (`boreflux_solver::calibrate::verdict`).
+    pub verdict: Verdict,
+    /// Bounds, SI.
+    pub bounds: (f64, f64),
+    /// Scale of the fit.
+    pub scale: Scale,
+    /// Unit the values are shown in and its factor (display = SI × factor); "" for a pure
+    /// number.
+    pub shown: (String, f64),
+}
+
+impl Fitted {
+    /// A value of this parameter in its display unit.
+    pub fn display(&self, x_si: f64) -> f64 {
+        x_si * self.shown.1
+    }
+
+    /// The display unit with a leading space, "" for a pure number.
+    pub fn unit_suffix(&self) -> String {
+        if self.shown.0.is_empty() {
+            String::new()
+        } else {
+            format!(" {}", self.shown.0)
+        }
+    }
 }
 
 /// A field step test beside the model's, at the start values and at the fit.
@@ -104,8 +128,15 @@ pub struct Calibration {
     pub iterations: usize,
     /// Model runs in all.
     pub runs: usize,
-    /// The calibrated case (the input case with the fitted values; its own drive kept).
-    pub case: Value,
+    /// The fitted values, SI, in the order of the free parameters.
+    pub values_si: Vec<f64>,
+}
+
+impl Calibration {
+    /// Whether the fit converged.
+    pub fn converged(&self) -> bool {
+        self.termination.converged()
+    }
 }
 
 impl Problem {
@@ -196,8 +227,15 @@ impl Problem {
             .iter()
             .enumerate()
             .map(|(j, f)| {
-                let (lo, hi) = bounds[j];
-                let span = hi - lo;
+                let converged = out.termination.converged();
+                let verdict = assess(
+                    converged,
+                    stats.status[j],
+                    out.u[j],
+                    stats.half_width[j],
+                    bounds[j],
+                    f.param.scale,
+                );
                 Fitted {
                     name: f.param.name.clone(),
                     start: f.start,
@@ -211,8 +249,10 @@ impl Problem {
                     std_error_fit: stats.std_error[j],
                     profile: profiles[j],
                     status: stats.status[j],
-                    on_bound: (out.u[j] - lo).abs() <= 1e-9 * span
-                        || (hi - out.u[j]).abs() <= 1e-9 * span,
+                    verdict,
+                    bounds: (f.param.lower, f.param.upper),
+                    scale: f.param.scale,
+                    shown: f.shown.clone(),
                 }
             })
             .collect();
@@ -244,7 +284,12 @@ impl Problem {
                 fitted_m: fitted_all[n_log + n_before..].to_vec(),
             });
         }
-        let case = self.case_with(&self.raw_case, &out.u)?;
+        let values_si = self
+            .free
+            .iter()
+            .zip(&out.u)
+            .map(|(f, &u)| f.param.from_fit(u))
+            .collect();
         Ok(Calibration {
             params,
             stats,
@@ -257,7 +302,7 @@ impl Problem {
             termination: out.termination,
             iterations: out.iterations,
             runs: runs.load(Ordering::Relaxed),
-            case,
+            values_si,
         })
     }
 }

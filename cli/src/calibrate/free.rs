@@ -4,11 +4,13 @@
 //! LOW and HIGH are quantities as in the case file (`1e-5 m/s`, `2 mm`) or bare SI numbers.
 //! The start is the case's value. Default scale: log when the path names a conductivity,
 //! a storage, a strength, an erodibility, a pressure or a shear, or is the lift-off median
-//! (positive quantities spanning decades), linear otherwise. A fitted value is written back in the unit the case wrote
-//! it in.
+//! (positive quantities spanning decades), linear otherwise. A fitted value is written
+//! back in the unit the case wrote it in, to [`WRITTEN_DIGITS`] significant digits. Values
+//! are shown in the case's unit; for a bare number in the case, in the unit of the bounds,
+//! else in the SI display unit the case schema gives the path.
 
 use crate::sweep::spec::{set_path, Segment};
-use crate::units::{parse_quantity, Quantity};
+use crate::units::{format_significant, parse_quantity, Quantity};
 use boreflux_solver::calibrate::{FreeParameter, Scale};
 use serde_json::Value;
 
@@ -23,7 +25,16 @@ pub struct Free {
     pub unit: Option<(String, f64)>,
     /// The case's value, SI.
     pub start: f64,
+    /// Unit the values are shown in and how many of it make one SI unit (display value =
+    /// SI value × factor); "" for a pure number.
+    pub shown: (String, f64),
 }
+
+/// Significant digits of a fitted value written into the calibrated case: six digits round
+/// by at most 5e-6 of the value, which is below the model's own time-stepping noise in a
+/// calibration (about 1e-5 of the drawdown, docs/calibration.md §2) and far inside any
+/// interval the fit reports, so the written case reproduces the fit (assumption: calibrate).
+pub const WRITTEN_DIGITS: usize = 6;
 
 /// Quantities tried, in order, to read a unit; the first that accepts it gives its factor.
 const KINDS: [Quantity; 11] = [
@@ -68,13 +79,14 @@ fn factor(unit: &str) -> Option<f64> {
         .find_map(|&q| parse_quantity(&Value::String(format!("1 {unit}")), q).ok())
 }
 
-fn to_si(s: &str) -> Result<f64, String> {
+/// A bound in SI, with its unit and SI factor when it has one.
+fn to_si_with_unit(s: &str) -> Result<(f64, Option<(String, f64)>), String> {
     let (v, unit) = split_quantity(s)
         .ok_or_else(|| format!("\"{s}\" is not a number with an optional unit"))?;
     match unit {
-        None => Ok(v),
+        None => Ok((v, None)),
         Some(u) => factor(&u)
-            .map(|f| v * f)
+            .map(|f| (v * f, Some((u.clone(), f))))
             .ok_or_else(|| format!("unknown unit \"{u}\" in \"{s}\"")),
     }
 }
@@ -132,10 +144,12 @@ pub fn parse_free(arg: &str, raw_case: &Value) -> Result<Free, String> {
         .split_once("..")
         .ok_or_else(|| bad("the bounds are LOW..HIGH".into()))?;
     let segs = segments(path).map_err(bad)?;
+    let (lower, lower_unit) = to_si_with_unit(lo).map_err(bad)?;
+    let (upper, upper_unit) = to_si_with_unit(hi).map_err(bad)?;
     let param = FreeParameter {
         name: path.to_owned(),
-        lower: to_si(lo).map_err(bad)?,
-        upper: to_si(hi).map_err(bad)?,
+        lower,
+        upper,
         scale,
     };
     param.validate().map_err(bad)?;
@@ -166,22 +180,33 @@ pub fn parse_free(arg: &str, raw_case: &Value) -> Result<Free, String> {
             param.lower, param.upper
         )));
     }
+    let shown = match unit
+        .as_ref()
+        .or(lower_unit.as_ref())
+        .or(upper_unit.as_ref())
+    {
+        Some((u, f)) => (u.clone(), 1.0 / f),
+        None => crate::report::input_units::si_display_of_path(path)
+            .map_or_else(|| ("SI".to_owned(), 1.0), |(u, f)| (u.to_owned(), f)),
+    };
     Ok(Free {
         param,
         segments: segs,
         unit,
         start,
+        shown,
     })
 }
 
 impl Free {
-    /// The value as it goes into the case file: in the case's unit, or a bare SI number.
-    pub fn case_value(&self, x_si: f64) -> Value {
+    /// The value exactly, as the model runs take it: in the case's unit (shortest text
+    /// that reads back to the same double), or a bare SI number.
+    fn exact_value(&self, x_si: f64) -> Value {
         match &self.unit {
             None => serde_json::json!(x_si),
             Some((u, f)) => {
-                // Shortest text that reads back to the same double; scientific outside
-                // 1e-3 .. 1e6 so a conductivity does not come out as a row of zeros.
+                // Scientific outside 1e-3 .. 1e6 so a conductivity does not come out as a
+                // row of zeros.
                 let v = x_si / f;
                 let a = v.abs();
                 let text = if a == 0.0 || (1e-3..1e6).contains(&a) {
@@ -194,10 +219,30 @@ impl Free {
         }
     }
 
-    /// Writes the value into the case.
+    /// The value as it goes into the calibrated case file: [`WRITTEN_DIGITS`] significant
+    /// digits, in the case's unit or as a bare SI number.
+    pub fn case_value(&self, x_si: f64) -> Value {
+        match &self.unit {
+            None => {
+                let text = format_significant(x_si, WRITTEN_DIGITS);
+                serde_json::json!(text.parse::<f64>().unwrap_or(x_si))
+            }
+            Some((u, f)) => Value::String(format!(
+                "{} {u}",
+                format_significant(x_si / f, WRITTEN_DIGITS)
+            )),
+        }
+    }
+
+    /// Writes the value, exactly, into the case (for a model run).
     pub fn apply(&self, case: &mut Value, x_si: f64) -> Result<(), String> {
-        set_path(case, &self.segments, self.case_value(x_si))
+        set_path(case, &self.segments, self.exact_value(x_si))
             .map_err(|e| format!("{}: {e}", self.param.name))
+    }
+
+    /// The value in the unit it is shown in (`shown`).
+    pub fn display(&self, x_si: f64) -> f64 {
+        x_si * self.shown.1
     }
 }
 
@@ -213,15 +258,33 @@ mod tests {
         assert_eq!(f.param.scale, Scale::Log);
         assert!((f.param.upper - 100.0 / 86_400.0).abs() < 1e-15);
         assert!((f.start - 4e-4).abs() < 1e-18);
+        assert_eq!(f.shown.0, "m/s");
+        // Written to six significant digits in the case's unit (1.4819381451479676e-9 is a
+        // value of the kind the fit produces; its rounding by hand: 1.48194e-9).
+        assert_eq!(
+            f.case_value(1.4819381451479676e-9),
+            serde_json::json!("1.48194e-9 m/s")
+        );
         let mut c = case.clone();
         f.apply(&mut c, 2.5e-4).unwrap();
         assert_eq!(c["formation"]["conductivity"], "2.5e-4 m/s");
         let g = parse_free("cake.thickness=1 mm..10 mm", &case).unwrap();
         assert_eq!(g.param.scale, Scale::Linear);
-        let back = to_si(g.case_value(0.005).as_str().unwrap()).unwrap();
+        let back = to_si_with_unit(g.case_value(0.005).as_str().unwrap())
+            .unwrap()
+            .0;
         assert!((back - 0.005).abs() < 1e-17);
         let p = parse_free("formation.porosity=0.2..0.4:linear", &case).unwrap();
         assert_eq!(p.case_value(0.25), serde_json::json!(0.25));
+        // A bare number with bare bounds: rounded to six digits by hand, unit from the
+        // schema (a porosity is a pure number).
+        assert_eq!(p.case_value(0.2512345678), serde_json::json!(0.251235));
+        assert_eq!(p.shown, (String::new(), 1.0));
+        // Bounds with a unit show a bare (SI) case value in that unit.
+        let bare = serde_json::json!({"well": {"screen_length": 24}});
+        let t = parse_free("well.screen_length=100 cm..4000 cm", &bare).unwrap();
+        assert_eq!(t.shown.0, "cm");
+        assert!((t.display(24.0) - 2400.0).abs() < 1e-9);
         assert!(parse_free("formation.porosity=0.31..0.4", &case)
             .unwrap_err()
             .contains("outside the bounds"));

@@ -1,7 +1,9 @@
 //! The calibration as a table (stdout) and as JSON (SI units) for scripts.
 
-use super::fit::Calibration;
+use super::fit::{Calibration, Fitted};
 use crate::steptest::text::sig;
+use boreflux_solver::calibrate::verdict::{WIDE_DECADES, WIDE_SHARE};
+use boreflux_solver::calibrate::{Bound, Label, Scale};
 use serde_json::{json, Value};
 
 fn side(v: Option<f64>, open: &str) -> String {
@@ -20,12 +22,112 @@ pub fn profile_text(c: &Calibration, j: usize) -> String {
     }
 }
 
-fn interval_text(c: &Calibration, j: usize) -> String {
-    let p = &c.params[j];
+/// The interval in the display unit, marked "(not valid)" when it may not be read as an
+/// interval of the parameter (the fit did not converge, or the value is at or near a
+/// bound); "—" when there is none. `to` joins the ends (" .. ", " to ").
+pub fn interval_text(p: &Fitted, to: &str) -> String {
     match p.interval {
-        Some((lo, hi)) => format!("{} .. {}", sig(lo), sig(hi)),
+        Some((lo, hi)) => {
+            let mut s = format!("{}{to}{}", sig(p.display(lo)), sig(p.display(hi)));
+            if !p.verdict.interval_valid {
+                s.push_str(" (not valid)");
+            }
+            s
+        }
         None => "—".into(),
     }
+}
+
+fn bound_value(p: &Fitted, b: Bound) -> String {
+    let x = match b {
+        Bound::Lower => p.bounds.0,
+        Bound::Upper => p.bounds.1,
+    };
+    format!("{}{}", sig(p.display(x)), p.unit_suffix())
+}
+
+/// What may be said of a fitted value (docs/calibration.md §5a): its label with the reason,
+/// and whether it is at a bound or its interval crosses one when the label does not say so.
+pub fn verdict_text(p: &Fitted) -> String {
+    let v = &p.verdict;
+    let crossed: Vec<Bound> = [(v.crosses.0, Bound::Lower), (v.crosses.1, Bound::Upper)]
+        .into_iter()
+        .filter_map(|(c, b)| c.then_some(b))
+        .collect();
+    let mut s = match v.label {
+        Label::NotConverged => "NOT CONVERGED: the value is where the fit stopped, not a \
+                                fitted value; its interval is not valid"
+            .to_owned(),
+        Label::NotConstrained => p.status.describe().to_owned(),
+        Label::AtBound => {
+            let b = v.at_bound.unwrap_or(Bound::Lower);
+            let records = if p.status.constrained() {
+                String::new()
+            } else {
+                format!("; {}", p.status.describe())
+            };
+            format!(
+                "AT THE {} BOUND ({}): the optimum may lie beyond it and the bound may be too \
+                 tight; the interval is not reliable{records}",
+                b.word().to_uppercase(),
+                bound_value(p, b)
+            )
+        }
+        Label::NearBound => {
+            let b = crossed.first().copied().unwrap_or(Bound::Lower);
+            format!(
+                "NEAR THE {} BOUND: the interval crosses it ({}), so the records cannot tell \
+                 the value from the bound, which may be too tight; the interval is not \
+                 reliable",
+                b.word().to_uppercase(),
+                bound_value(p, b)
+            )
+        }
+        Label::Wide => match (v.width, p.scale) {
+            (Some(w), Scale::Log) => {
+                format!("weakly constrained: the interval spans {w:.1} decades")
+            }
+            (Some(w), Scale::Linear) => format!(
+                "weakly constrained: the interval is ± {:.0} % of the value",
+                100.0 * w
+            ),
+            (None, _) => "weakly constrained".to_owned(),
+        },
+        Label::Constrained => "constrained".to_owned(),
+    };
+    if v.label == Label::NearBound {
+        match (v.width, p.scale) {
+            (Some(w), Scale::Log) if w > WIDE_DECADES => {
+                s.push_str(&format!("; the interval spans {w:.1} decades"));
+            }
+            (Some(w), Scale::Linear) if w > WIDE_SHARE => {
+                s.push_str(&format!(
+                    "; the interval is ± {:.0} % of the value",
+                    100.0 * w
+                ));
+            }
+            _ => {}
+        }
+    }
+    if v.label != Label::AtBound {
+        if let Some(b) = v.at_bound {
+            s.push_str(&format!(
+                "; at the {} bound ({})",
+                b.word(),
+                bound_value(p, b)
+            ));
+        }
+    }
+    if !matches!(v.label, Label::AtBound | Label::NearBound) {
+        for b in crossed {
+            s.push_str(&format!(
+                "; the interval crosses the {} bound ({})",
+                b.word(),
+                bound_value(p, b)
+            ));
+        }
+    }
+    s
 }
 
 /// The table printed by `boreflux calibrate`.
@@ -60,28 +162,48 @@ pub fn table(c: &Calibration, confidence: f64) -> String {
         .max()
         .unwrap_or(9)
         .max(9);
+    let unit = |p: &Fitted| {
+        if p.shown.0.is_empty() {
+            "-".to_owned()
+        } else {
+            p.shown.0.clone()
+        }
+    };
+    let uw = c
+        .params
+        .iter()
+        .map(|p| unit(p).len())
+        .max()
+        .unwrap_or(4)
+        .max(4);
+    let intervals: Vec<String> = c.params.iter().map(|p| interval_text(p, " .. ")).collect();
+    let iw = intervals
+        .iter()
+        .map(|t| t.chars().count())
+        .max()
+        .unwrap_or(0)
+        .max(27);
     s.push_str(&format!(
-        "{:<w$}  {:>11}  {:>11}  {:<27}  {}\n",
+        "{:<w$}  {:<uw$}  {:>11}  {:>11}  {:<iw$}  {}\n",
         "parameter",
-        "start (SI)",
-        "fitted (SI)",
-        format!("{:.0} % interval (SI)", confidence * 100.0),
+        "unit",
+        "start",
+        "fitted",
+        format!("{:.0} % interval", confidence * 100.0),
         "records"
     ));
     for (j, p) in c.params.iter().enumerate() {
-        let mut status = p.status.describe().to_owned();
-        if p.on_bound {
-            status.push_str("; ON A BOUND: the optimum may lie outside the bounds");
-        }
+        let mut status = verdict_text(p);
         if p.profile.is_some() {
             status.push_str(&format!("; profile interval {}", profile_text(c, j)));
         }
         s.push_str(&format!(
-            "{:<w$}  {:>11}  {:>11}  {:<27}  {}\n",
+            "{:<w$}  {:<uw$}  {:>11}  {:>11}  {:<iw$}  {}\n",
             p.name,
-            sig(p.start),
-            sig(p.value),
-            interval_text(c, j),
+            unit(p),
+            sig(p.display(p.start)),
+            sig(p.display(p.value)),
+            intervals[j],
             status
         ));
     }
@@ -119,7 +241,32 @@ pub fn table(c: &Calibration, confidence: f64) -> String {
          the reading errors are independent with one spread. Check the residuals before \
          relying on them.\n",
     );
+    if !c.converged() {
+        s.push_str(&not_converged_advice(c));
+        s.push('\n');
+    }
     s
+}
+
+/// Why a fit that did not converge is not a calibration, and what to try.
+pub fn not_converged_advice(c: &Calibration) -> String {
+    format!(
+        "The fit did NOT converge ({}): the values are where it stopped and the intervals are \
+         not valid. Raise --max-runs, or start from other values or bounds.",
+        termination_text(c)
+    )
+}
+
+/// Why the iteration stopped, in words.
+pub fn termination_text(c: &Calibration) -> &'static str {
+    use boreflux_solver::calibrate::Termination;
+    match c.termination {
+        Termination::Cost => "the cost no longer falls",
+        Termination::Step => "the step became negligible",
+        Termination::Gradient => "the gradient became negligible",
+        Termination::Evaluations => "the allowed model runs (--max-runs) were used up",
+        Termination::Stalled => "no step lowered the misfit although the damping became huge",
+    }
 }
 
 fn rms(a: &[f64], b: &[f64]) -> f64 {
@@ -152,10 +299,20 @@ pub fn to_json(c: &Calibration, confidence: f64) -> Value {
             "fitted_si": num(p.value),
             "interval_si": p.interval.map(|(a, b)| json!([a, b])),
             "std_error_fit": p.std_error_fit,
+            "interval_valid": p.verdict.interval_valid,
+            "interval_crosses": {"lower": p.verdict.crosses.0, "upper": p.verdict.crosses.1},
+            "interval_decades": if p.scale == Scale::Log { p.verdict.width.map(num) } else { None },
+            "interval_relative_half_width":
+                if p.scale == Scale::Linear { p.verdict.width.map(num) } else { None },
+            "bounds_si": [num(p.bounds.0), num(p.bounds.1)],
+            "unit": {"label": p.shown.0, "per_si": num(p.shown.1)},
             "profile_interval_si": p.profile.map(|(lo, hi)| json!([lo.map(num), hi.map(num)])),
-            "constrained": p.status.constrained(),
-            "status": p.status.describe(),
-            "on_bound": p.on_bound,
+            "label": p.verdict.label.word(),
+            "constrained": matches!(p.verdict.label, Label::Constrained | Label::Wide),
+            "identifiability": p.status.describe(),
+            "status": verdict_text(p),
+            "at_bound": p.verdict.at_bound.map(Bound::word),
+            "on_bound": p.verdict.at_bound.is_some(),
         })).collect::<Vec<_>>(),
         "correlation": c.stats.correlation,
         "step_tests": c.steps.iter().map(|st| json!({

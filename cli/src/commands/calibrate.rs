@@ -1,12 +1,14 @@
 //! `boreflux calibrate`: read the case and the log, fit the free parameters, print a table
 //! or JSON, and optionally write the HTML page and the calibrated case (temporary files,
-//! renamed when complete).
+//! renamed when complete). A fit that did not converge writes its outputs, which say so,
+//! and exits 1.
 
 use super::outputs::{check_output, refuse_inputs};
 use super::{print_out, Failure};
 use crate::args::CalibrateArgs;
 use crate::calibrate::fit::{base_dir, Problem};
 use crate::calibrate::steps::{self, FieldSteps};
+use crate::calibrate::written::{calibrated_case, Provenance};
 use crate::calibrate::{free, record, text};
 use crate::case::{read_case_json, read_limited, MAX_CASE_BYTES};
 use crate::output::TempTarget;
@@ -99,25 +101,40 @@ pub fn calibrate(a: &CalibrateArgs) -> Result<(), Failure> {
     let cal = problem
         .solve()
         .map_err(|e| Failure::Runtime(anyhow!("calibration: {e}")))?;
+    let source = a.log.file_name().map_or_else(
+        || a.log.display().to_string(),
+        |n| n.to_string_lossy().into_owned(),
+    );
     if let Some(out) = &a.output {
-        let source = a.log.file_name().map_or_else(
-            || a.log.display().to_string(),
-            |n| n.to_string_lossy().into_owned(),
-        );
         let page = crate::report::calibration::page(&cal, &problem.log, &source, a.confidence);
         write_file(out, page.as_bytes())?;
         eprintln!("calibration page written to {}", out.display());
     }
     if let Some(out) = &a.write_case {
-        let s = serde_json::to_string_pretty(&cal.case).map_err(|e| Failure::Runtime(e.into()))?;
-        write_file(out, (s + "\n").as_bytes())?;
+        let provenance = Provenance {
+            log_name: &source,
+            converged: cal.converged(),
+            iterations: cal.iterations,
+        };
+        let s = calibrated_case(&case_text, &problem.free, &cal.values_si, &provenance)
+            .map_err(|e| Failure::Runtime(anyhow!("--write-case: {e}")))?;
+        write_file(out, s.as_bytes())?;
         eprintln!("calibrated case written to {}", out.display());
     }
     if a.json {
         let s = serde_json::to_string_pretty(&text::to_json(&cal, a.confidence))
             .map_err(|e| Failure::Runtime(e.into()))?;
-        print_out(&(s + "\n"))
+        print_out(&(s + "\n"))?;
     } else {
-        print_out(&text::table(&cal, a.confidence))
+        print_out(&text::table(&cal, a.confidence))?;
+    }
+    if cal.converged() {
+        Ok(())
+    } else {
+        Err(Failure::Runtime(anyhow!(
+            "calibration: the fit did not converge ({}); the outputs are written and say so, \
+             but they are not a calibration",
+            text::termination_text(&cal)
+        )))
     }
 }

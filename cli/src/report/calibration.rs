@@ -129,6 +129,8 @@ struct CalibrationPage<'a> {
     log_hours: String,
     readings: usize,
     converged: bool,
+    /// Why a fit that did not converge is not a calibration ("" when it converged).
+    not_converged: String,
     iterations: String,
     runs: String,
     sigma: String,
@@ -146,6 +148,8 @@ struct CalibrationPage<'a> {
 /// row of the correlation matrix (`None`: not defined).
 struct Param {
     name: String,
+    /// The unit of start, value and interval ("-" for a pure number).
+    unit: String,
     start: String,
     value: String,
     interval: String,
@@ -169,10 +173,7 @@ pub fn page(c: &Calibration, log: &DevelopmentLog, source: &str, confidence: f64
         .iter()
         .enumerate()
         .map(|(j, p)| {
-            let mut status = p.status.describe().to_owned();
-            if p.on_bound {
-                status.push_str("; on a bound: the optimum may lie outside the bounds");
-            }
+            let mut status = crate::calibrate::text::verdict_text(p);
             if p.profile.is_some() {
                 status.push_str(&format!(
                     "; profile interval {}",
@@ -181,11 +182,14 @@ pub fn page(c: &Calibration, log: &DevelopmentLog, source: &str, confidence: f64
             }
             Param {
                 name: p.name.clone(),
-                start: sig(p.start),
-                value: sig(p.value),
-                interval: p.interval.map_or("—".to_owned(), |(a, b)| {
-                    format!("{} to {}", sig(a), sig(b))
-                }),
+                unit: if p.shown.0.is_empty() {
+                    "-".to_owned()
+                } else {
+                    p.shown.0.clone()
+                },
+                start: sig(p.display(p.start)),
+                value: sig(p.display(p.value)),
+                interval: crate::calibrate::text::interval_text(p, " to "),
                 status,
                 correlation: c
                     .stats
@@ -223,7 +227,12 @@ pub fn page(c: &Calibration, log: &DevelopmentLog, source: &str, confidence: f64
         log_rows: log.rows.len(),
         log_hours: sig(log.duration_s() / 3600.0),
         readings: c.observed_m.len(),
-        converged: c.termination.converged(),
+        converged: c.converged(),
+        not_converged: if c.converged() {
+            String::new()
+        } else {
+            crate::calibrate::text::not_converged_advice(c)
+        },
         iterations: c.iterations.to_string(),
         runs: c.runs.to_string(),
         sigma: sig(c.stats.sigma),

@@ -153,3 +153,16 @@ fn table() -> &'static BTreeMap<String, InputUnit> {
 pub fn of_path(path: &str) -> Option<InputUnit> {
     table().get(path).copied()
 }
+
+/// The SI display unit of the input at `path` and how many of it make one SI base unit
+/// (`("kPa", 1e-3)` for a pressure, `("", 1.0)` for a pure number), from the case schema;
+/// `None` when the schema has no quantity there.
+pub(crate) fn si_display_of_path(path: &str) -> Option<(&'static str, f64)> {
+    Some(match of_path(path)? {
+        InputUnit::Fixed(s) => (s.si.label, s.si.per_si),
+        InputUnit::Length => ("m", 1.0),
+        InputUnit::Time => ("s", 1.0),
+        InputUnit::Temperature => ("K", 1.0),
+        InputUnit::Count => ("", 1.0),
+    })
+}

@@ -38,7 +38,7 @@ mod figures;
 mod format;
 mod headline;
 mod html;
-mod input_units;
+pub(crate) mod input_units;
 mod page;
 pub mod read;
 pub mod steptest;
