@@ -68,7 +68,7 @@ case can raise is counted with all its output.event_windows windows (docs/format
     Calibrate(CalibrateArgs),
     /// Print a starter case file.
     #[command(
-        after_help = "Examples:\n  boreflux new > my-case.json\n  boreflux new --scenario domestic-fine-sand-pvc > domestic.json\n  boreflux new --list"
+        after_help = "Examples:\n  boreflux new > my-case.json\n  boreflux new --scenario domestic-fine-sand-pvc > domestic.json\n  boreflux new --scenario irrigation-table -o wells/irrigation.json   # and the CSV it reads, beside it\n  boreflux new --list"
     )]
     New(NewArgs),
     /// Print the JSON Schema of the case file, or with --outputs the table of every output.
@@ -418,6 +418,13 @@ pub struct NewArgs {
     /// List the scenarios.
     #[arg(long)]
     pub list: bool,
+    /// Write the case to this file instead of printing it, with any file the scenario reads
+    /// (a table drive's CSV) beside it under its own name.
+    #[arg(short, long, value_name = "FILE")]
+    pub output: Option<std::path::PathBuf>,
+    /// Replace existing files.
+    #[arg(long)]
+    pub force: bool,
 }
 
 #[cfg(test)]

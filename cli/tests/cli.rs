@@ -120,6 +120,85 @@ const JSON_PARSE: f64 = 1e-15;
 /// case that, written to a fresh folder with its companion files copied from cases/,
 /// passes `check` (exit 0) with the zone table, the resistance shares (summing to 100 %)
 /// and the caution; without a needed companion `check` fails with exit 2 on `drive.file`.
+/// Checks: `new -o` writes the scenario and every file it reads beside it (the compiled-in
+/// texts, byte for byte), so the written case passes `check` as it stands; an existing file
+/// is kept without `--force` and nothing else is written; a missing folder writes nothing.
+#[test]
+fn new_writes_a_scenario_with_the_files_it_reads() {
+    for (name, json) in scenarios() {
+        let companions: Vec<(&str, &str)> = scenario_companions()
+            .iter()
+            .filter(|(s, ..)| s == name)
+            .map(|&(_, f, t)| (f, t))
+            .collect();
+        let dir = tempfile::tempdir().unwrap();
+        let case = dir.path().join("my-case.json");
+        let o = output(
+            boreflux()
+                .args(["new", "--scenario", name, "-o"])
+                .arg(&case),
+        );
+        assert_code(&o, 0, &format!("new --scenario {name} -o"));
+        assert_eq!(std::fs::read_to_string(&case).unwrap(), *json, "{name}");
+        let mut want = vec!["my-case.json".to_owned()];
+        for (file, text) in &companions {
+            assert_eq!(
+                std::fs::read_to_string(dir.path().join(file)).unwrap(),
+                *text,
+                "{name}: {file}"
+            );
+            want.push((*file).to_owned());
+        }
+        want.sort();
+        assert_eq!(
+            dir_entries(dir.path()),
+            want,
+            "{name}: nothing else written"
+        );
+        let o = output(boreflux().arg("check").arg(&case));
+        assert_code(&o, 0, &format!("check {name} as written by new -o"));
+        if let Some((file, _)) = companions.first() {
+            // The companion exists: refused without --force, the case file untouched.
+            std::fs::write(dir.path().join(file), "edited").unwrap();
+            std::fs::remove_file(&case).unwrap();
+            let o = output(
+                boreflux()
+                    .args(["new", "--scenario", name, "-o"])
+                    .arg(&case),
+            );
+            assert_code(
+                &o,
+                2,
+                &format!("new --scenario {name} -o over its companion"),
+            );
+            assert!(
+                stderr_of(&o).contains("already exists"),
+                "{}",
+                stderr_of(&o)
+            );
+            assert!(!case.exists(), "{name}: nothing written after a refusal");
+            let o = output(
+                boreflux()
+                    .args(["new", "--scenario", name, "--force", "-o"])
+                    .arg(&case),
+            );
+            assert_code(&o, 0, &format!("new --scenario {name} --force -o"));
+            assert_ne!(
+                std::fs::read_to_string(dir.path().join(file)).unwrap(),
+                "edited"
+            );
+        }
+    }
+    let dir = tempfile::tempdir().unwrap();
+    let o = output(
+        boreflux()
+            .args(["new", "-o"])
+            .arg(dir.path().join("no-such-folder/x.json")),
+    );
+    assert_code(&o, 2, "new -o into a missing folder");
+    assert!(dir_entries(dir.path()).is_empty());
+}
+
 #[test]
 fn new_then_check_round_trips_every_scenario() {
     let o = output(boreflux().args(["new", "--list"]));
