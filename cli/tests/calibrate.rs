@@ -309,6 +309,22 @@ fn the_command_writes_json_page_and_calibrated_case_and_refuses_bad_input() {
     assert_eq!(r.status.code(), Some(2));
     assert!(String::from_utf8_lossy(&r.stderr).contains("line 3: the last row ends the log"));
     assert!(!fresh.exists());
+    // --step-duration needs a unit (is "100" seconds or minutes?).
+    let r = bin()
+        .arg("calibrate")
+        .arg(&case_path)
+        .arg(&log_path)
+        .args(["--free", K, "--step-duration", "100", "-o"])
+        .arg(&fresh)
+        .output()
+        .unwrap();
+    assert_eq!(r.status.code(), Some(2));
+    let err = String::from_utf8_lossy(&r.stderr);
+    assert!(
+        err.contains("--step-duration") && err.contains("has no unit"),
+        "{err}"
+    );
+    assert!(!fresh.exists());
 }
 
 #[test]

@@ -12,7 +12,7 @@ use crate::calibrate::written::{calibrated_case, Provenance};
 use crate::calibrate::{free, record, text};
 use crate::case::{read_case_json, read_limited, MAX_CASE_BYTES};
 use crate::output::TempTarget;
-use crate::units::{parse_quantity, Quantity};
+use crate::units::Quantity;
 use anyhow::anyhow;
 use boreflux_solver::calibrate::LmOptions;
 use std::path::Path;
@@ -50,7 +50,8 @@ pub fn calibrate(a: &CalibrateArgs) -> Result<(), Failure> {
     let step_duration_s = match &a.step_duration {
         None => loaded.assessment.step_duration_s,
         Some(t) => {
-            let v = parse_quantity(&serde_json::Value::String(t.clone()), Quantity::Time)
+            // A unit is required, as for `steptest --at`: is "100" seconds or minutes?
+            let v = crate::units::parse_with_unit(t, Quantity::Time, "100 min")
                 .map_err(|e| Failure::Input(anyhow!("--step-duration: {e}")))?;
             if !(v > 0.0 && v.is_finite()) {
                 return Err(Failure::Input(anyhow!(
