@@ -1224,6 +1224,15 @@ fn run_json_prints_the_headline() {
         attr_str(&summary, "warnings", "/summary"),
         warnings.join("\n")
     );
+    // The notes end with how the collapse ratings were found, as the JSON states it.
+    let notes = attr_str(&summary, "notes", "/summary");
+    assert_eq!(
+        notes.lines().last().unwrap(),
+        format!(
+            "collapse ratings: {}",
+            j["collapse_rating_basis"].as_str().unwrap()
+        )
+    );
 }
 
 /// Checks: a library user who runs the demo case through the crate (solver run, the

@@ -252,6 +252,10 @@ fn write_run(path: &Path, spec: &Spec) {
             ("end_time_s", 1_000.0),
             ("mystery_volume_m3", 2.0),
             ("peak_in_well_drawdown_m", 1.5),
+            ("piping_ratio", 2.5),
+            ("cake_removal_time_s", 600.0),
+            ("skin_cake_start", 4.0),
+            ("skin_cake_end", 0.3),
         ] {
             set_f64(&s, name, v);
         }
@@ -382,6 +386,14 @@ fn report_has_figures_cautions_units_and_escaped_text() {
     );
     assert_eq!(cell("Casing collapse margin: "), "27.5");
     assert_eq!(cell("Collapse margin, the lower of"), "13.5");
+    // The gradient ratio is a figure, not a warning (docs/physics.md §9e): shown, not flagged.
+    assert_eq!(cell("Wall gradient ÷ Terzaghi"), "2.50");
+    assert!(!html.contains(r#"<td class="flag">2.50</td>"#));
+    // Removal by the cake's skin (lift-off opens the wall without thinning it) beside the
+    // thickness-based times.
+    assert_eq!(cell("Cake removal time: the cake"), "600 s (10.0 min)");
+    assert_eq!(cell("Skin of the cake, start"), "4.00 → 0.300");
+    assert!(html.contains("across the screen only"));
     // 1.5e-3 m/s × 86400 s/d × 0.3048² m²/ft² / 3.785411784e-3 m³/gal = 3180.7 gpd/ft².
     assert!(html.contains("1.50 mm/s (3181 gpd/ft²)"));
     assert!(html.contains("1.00 → 1.50 L/s/m (4.83 → 7.25 gpm/ft)"));

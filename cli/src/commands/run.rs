@@ -259,7 +259,18 @@ fn write_summary(sink: &mut ResultSink, h: &Headline) -> Result<(), crate::outpu
             SummaryText::Cautions => CAUTION.to_owned(),
             SummaryText::EfficiencyDefinition => crate::summary::EFFICIENCY_DEFINITION.to_owned(),
             SummaryText::Assumptions => h.assumptions.join("\n"),
-            SummaryText::Notes => h.notes.join("\n"),
+            // The case's notes, then how the collapse ratings were found (the line `check`
+            // prints), so that a report can trace the ratings it shows.
+            SummaryText::Notes => h
+                .notes
+                .iter()
+                .cloned()
+                .chain(std::iter::once(format!(
+                    "collapse ratings: {}",
+                    h.collapse_rating_basis
+                )))
+                .collect::<Vec<_>>()
+                .join("\n"),
         };
         w.set_attr_str(&summary, text.name(), &value)?;
     }

@@ -590,7 +590,7 @@ figures! {
     PeakBurstPressure => "peak_burst_pressure_pa", Pa, "largest outward differential across the screen", "ρ g (well head − pack-side head)", Place::Zone(Zone::Screen);
     CollapseRating => "collapse_rating_pa", Pa, "collapse rating of the blank casing (absent: not given)", "maker's rating, or lower of elastic and yield limits", Place::Well;
     ScreenCollapseRating => "screen_collapse_rating_pa", Pa, "collapse rating of the screen (absent: not given)", "maker's rating or explicit derating", Place::Zone(Zone::Screen);
-    CollapseMargin => "collapse_margin", One, "lower of the screen and casing margins; below 1 is a warning", "rating / (safety factor × peak load)", Place::Well;
+    CollapseMargin => "collapse_margin", One, "lower of the screen and casing margins, absent unless both are rated (an unrated screen may govern); below 1 is a warning", "rating / (safety factor × peak load)", Place::Well;
     ScreenCollapseMargin => "screen_collapse_margin", One, "screen collapse margin", "rating / (safety factor × peak load)", Place::Zone(Zone::Screen);
     CasingCollapseMargin => "casing_collapse_margin", One, "casing collapse margin", "rating / (safety factor × peak drawdown pressure)", Place::Well;
     ColumnPartings => "column_partings", One, "times the water column under a sealed tool parted at the vapour bound", "count", Place::Well;
@@ -785,7 +785,7 @@ impl SummaryText {
             SummaryText::Notes => {
                 "the case's notes, one per line: the defaults and approximations the model used \
                  (assumed efficiencies and depths, the 1-D jet approximation, …), as `check` \
-                 prints them"
+                 prints them, and a last line on how the collapse ratings were found"
             }
         }
     }

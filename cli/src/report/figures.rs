@@ -183,7 +183,9 @@ pub fn figures(runs: &[Run]) -> Vec<Figure> {
         Figure {
             title: "Wall cake and skin".into(),
             caption: "Cake thickness left on the borehole wall and the total skin referred to \
-                      the formation; both fall as development removes the cake."
+                      the formation. Erosion thins the cake; lift-off opens patches of the \
+                      wall without thinning the rest, so the skin can fall while the \
+                      thickness stays (docs/physics.md §13, §13a)."
                 .into(),
             svgs: vec![
                 time_chart("Cake thickness", "Thickness", SMALL_LENGTH, |s| {

@@ -128,7 +128,24 @@ pub fn headline(runs: &[Run]) -> (CompareTable, BTreeSet<String>) {
     );
     row(
         &mut t,
-        "Time to remove 50 % / 90 % of the cake",
+        "Cake removal time: the cake's skin down to a tenth of its start (lift-off and erosion, docs/physics.md §13a)",
+        &[Figure::CakeRemovalTime],
+        &|s: &Summary| {
+            Cell::plain(
+                s.get(Figure::CakeRemovalTime)
+                    .map_or_else(|| "not reached".to_owned(), duration),
+            )
+        },
+    );
+    row(
+        &mut t,
+        "Skin of the cake, start → end (it falls as lift-off opens the wall, even where the thickness stays)",
+        &[Figure::SkinCakeStart, Figure::SkinCakeEnd],
+        &pair(Figure::SkinCakeStart, Figure::SkinCakeEnd, NUMBER),
+    );
+    row(
+        &mut t,
+        "Time for the cake's thickness to fall by 50 % / 90 % (erosion thins it; lift-off opens it without thinning)",
         &[Figure::TimeToHalfCake, Figure::TimeTo90pctCake],
         &|s: &Summary| {
             let f = |k| s.get(k).map_or_else(|| "not reached".to_owned(), duration);
@@ -278,14 +295,11 @@ pub fn headline(runs: &[Run]) -> (CompareTable, BTreeSet<String>) {
     );
     row(
         &mut t,
-        "Wall gradient ÷ critical gradient (formation side)",
+        "Wall gradient ÷ Terzaghi's critical gradient (Gs − 1)(1 − n), formation side: a figure, not a warning (the pack holds the grains a gradient above 1 would lift; docs/physics.md §9b, §9e)",
         &[Figure::PipingRatio],
         &|s: &Summary| {
             s.get(Figure::PipingRatio)
-                .map_or_else(Cell::missing, |v| Cell {
-                    text: Some(sig(v)),
-                    class: if v > 1.0 { "flag" } else { "" },
-                })
+                .map_or_else(Cell::missing, |v| Cell::plain(sig(v)))
         },
     );
     row(
@@ -296,7 +310,7 @@ pub fn headline(runs: &[Run]) -> (CompareTable, BTreeSet<String>) {
     );
     row(
         &mut t,
-        "Peak outward (burst-direction) pressure difference",
+        "Peak outward (burst-direction) pressure difference across the screen only (in-well head above the pack side; not the in-well head against the formation)",
         &[Figure::PeakBurstPressure],
         &one(Figure::PeakBurstPressure, PRESSURE),
     );
@@ -355,7 +369,14 @@ pub fn headline(runs: &[Run]) -> (CompareTable, BTreeSet<String>) {
         &mut t,
         "Collapse margin, the lower of screen and casing; below 1 is a warning",
         &[Figure::CollapseMargin],
-        &margin(Figure::CollapseMargin),
+        &|s: &Summary| match s.get(Figure::CollapseMargin) {
+            Some(_) => margin(Figure::CollapseMargin)(s),
+            None => Cell::plain(
+                "not computed: both the screen and the blank casing need a rating (an unrated \
+                 screen may govern)"
+                    .into(),
+            ),
+        },
     );
 
     section(&mut t, "Numerical quality");

@@ -91,12 +91,11 @@ const KEY: [(Figure, &str, &str); 15] = [
 ];
 
 /// Whether a key figure's value is a warning in a single-run report too: a collapse margin
-/// below 1, a gradient above the critical one, a slot velocity above the rule of thumb, a
-/// grain Reynolds number above 1, a parted column.
+/// below 1, a slot velocity above the rule of thumb, a grain Reynolds number above 1, a
+/// parted column. The gradient ratio is a figure, not a warning (docs/physics.md §9e).
 fn flagged(figure: Figure, v: f64) -> bool {
     match figure {
         Figure::CollapseMargin => v < 1.0,
-        Figure::PipingRatio => v > 1.0,
         Figure::PeakSlotVelocity => v > boreflux_solver::safety::ENTRANCE_VELOCITY_RULE_M_S,
         Figure::PeakGrainReynolds => v > 1.0,
         Figure::ColumnPartings => v > 0.0,

@@ -93,8 +93,15 @@ impl Collapse {
         }
     }
 
-    /// The lower of the screen and casing margins; below 1 is a warning.
+    /// The lower of the screen and casing margins; below 1 is a warning. None unless both
+    /// are rated: an unrated screen (slotted or wire-wrap pipe is weaker than the blank
+    /// casing by an amount only its maker can state) may govern, so the casing's margin
+    /// alone is not the well's. A rated element without load (margin None: infinite) leaves
+    /// the other's.
     pub fn margin(&self) -> Option<f64> {
+        if self.casing_rating_pa.is_none() || self.screen_rating_pa.is_none() {
+            return None;
+        }
         match (self.casing_margin, self.screen_margin) {
             (Some(a), Some(b)) => Some(a.min(b)),
             (a, b) => a.or(b),
@@ -234,8 +241,14 @@ mod tests {
         assert_eq!(c.casing_margin, Some(4.0));
         assert_eq!(c.screen_margin, Some(2.0));
         assert_eq!(c.margin(), Some(2.0));
+        // An unrated screen may govern: no governing margin, though the casing's stands.
         let only_casing = Collapse::new(Some(400e3), None, 2.0, &checks(25e3, 50e3));
-        assert_eq!(only_casing.margin(), Some(4.0));
+        assert_eq!(only_casing.casing_margin, Some(4.0));
+        assert_eq!(only_casing.margin(), None);
+        // Both rated, the screen without load: the casing's margin governs.
+        let unloaded = Collapse::new(Some(400e3), Some(100e3), 2.0, &checks(0.0, 50e3));
+        assert_eq!(unloaded.screen_margin, None);
+        assert_eq!(unloaded.margin(), Some(4.0));
         let none = Collapse::new(None, None, 2.0, &checks(25e3, 50e3));
         assert_eq!(none.margin(), None);
     }
