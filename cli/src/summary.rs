@@ -820,9 +820,10 @@ pub fn table(h: &Headline) -> String {
         },
     );
     row(
-        "wall gradient / critical gradient",
-        c.piping_ratio
-            .map_or("—".into(), |r| format!("{}", G(r, 3))),
+        "wall gradient ÷ critical gradient (a ratio)",
+        c.piping_ratio.map_or("—".into(), |r| {
+            format!("{} (a figure, not a warning)", G(r, 3))
+        }),
     );
     row(
         "peak collapse load (screen or casing)",
