@@ -28,6 +28,8 @@ struct Spec<'a> {
     units_of: Option<(&'a str, &'a str)>,
     truncate: Option<&'a str>,
     warnings: &'a str,
+    /// The resolved case (`case_json`); `None` for the default below.
+    case_json: Option<&'a str>,
 }
 
 impl Default for Spec<'_> {
@@ -40,6 +42,7 @@ impl Default for Spec<'_> {
             units_of: None,
             truncate: None,
             warnings: "",
+            case_json: None,
         }
     }
 }
@@ -97,6 +100,9 @@ fn put<T: hdf5::H5Type>(file: &File, spec: &Spec, path: &str, data: &[T], units:
     set_str(&ds, "description", "invented test data");
 }
 
+/// The resolved case of the test runs (invented test data).
+const CASE_JSON: &str = r#"{"title":"t","well":{"screen_radius":0.1,"screen_length":6.0,"open_area":0.12,"material":"pvc <DR 21>"},"pack":{"outer_radius":0.2,"porosity":0.32,"d50":0.0016},"drive":{"kind":"sine_head","amplitude":1.5,"frequency":0.5},"duration":1000.0,"numerics":{"cells":"auto","scheme":"theta","theta":0.5}}"#;
+
 /// A small run file in the layout `boreflux run` writes.
 fn write_run(path: &Path, spec: &Spec) {
     let file = File::create(path).unwrap();
@@ -108,11 +114,7 @@ fn write_run(path: &Path, spec: &Spec) {
         "description",
         "Invented <script>alert(1)</script> test data.",
     );
-    set_str(
-        &file,
-        "case_json",
-        r#"{"title":"t","well":{"screen_radius":0.1,"screen_length":6.0,"open_area":0.12,"material":"pvc <DR 21>"},"pack":{"outer_radius":0.2,"porosity":0.32,"d50":0.0016},"drive":{"kind":"sine_head","amplitude":1.5,"frequency":0.5},"duration":1000.0,"numerics":{"cells":"auto","scheme":"theta","theta":0.5}}"#,
-    );
+    set_str(&file, "case_json", spec.case_json.unwrap_or(CASE_JSON));
     set_str(&file, "case_file", "cases/test.json");
 
     // Grid: faces from 0.1 m to 10 m, geometric; 3 pack, 2 invaded, 7 formation cells.
@@ -256,6 +258,9 @@ fn write_run(path: &Path, spec: &Spec) {
             ("cake_removal_time_s", 600.0),
             ("skin_cake_start", 4.0),
             ("skin_cake_end", 0.3),
+            ("grain_critical_velocity_m_s", 0.0133),
+            ("peak_wall_interstitial_velocity_m_s", 8.23e-3),
+            ("column_partings", 16.0),
         ] {
             set_f64(&s, name, v);
         }
@@ -413,6 +418,18 @@ fn report_has_figures_cautions_units_and_escaped_text() {
     // A schema figure the headline table does not show is listed with its schema unit:
     // 1.5 m / 0.3048 m/ft = 4.92 ft (NIST SP 811, 2008, Appendix B).
     assert!(html.contains("<code>peak_in_well_drawdown_m</code></th><td>1.50 m (4.92 ft)</td>"));
+    // Velocities (interstitial, settling) in ft/min, not in the loading rate gpd/ft² of a
+    // Darcy flux: 0.0133 m/s × 60 s/min / 0.3048 m/ft = 2.618 ft/min, 8.23e-3 m/s → 1.620
+    // ft/min (NIST SP 811, 2008, Appendix B: 1 ft = 0.3048 m exactly).
+    assert!(html
+        .contains("<code>grain_critical_velocity_m_s</code></th><td>13.3 mm/s (2.62 ft/min)</td>"));
+    assert!(html.contains(
+        "<code>peak_wall_interstitial_velocity_m_s</code></th><td>8.23 mm/s (1.62 ft/min)</td>"
+    ));
+    // A count is a whole number.
+    assert!(html.contains("<code>column_partings</code></th><td>16</td>"));
+    // One run: no notice of runs on different bases.
+    assert!(!html.contains("Runs on different bases"));
     // Inputs from case_json, escaped, with units.
     assert!(html.contains("pvc &lt;DR 21&gt;"));
     assert!(html.contains("1.60 mm (0.0630 in)"));
@@ -505,6 +522,81 @@ fn two_runs_give_two_columns_and_overlaid_lines() {
     assert!(log.contains("<code>/cycles/index</code> counts from 0 (cycle 1 is index 0)"));
     assert!(log.contains("Run A: Slow surge") && !log.contains("Run B: Fast surge"));
     assert!(log.contains("<p>Run B: no complete drive cycle, so no per-cycle figures."));
+}
+
+/// The text of the notice on runs compared on different bases, if the page has one.
+fn bases_notice(html: &str) -> Option<String> {
+    let at = html.find(r#"<section class="notice">"#)?;
+    let rest = &html[at..];
+    Some(rest[..rest.find("</section>").unwrap()].to_owned())
+}
+
+/// Runs whose resolved cases differ get a notice near the top naming the differing inputs
+/// (at most ten, then how many more); runs of the same case get none.
+#[test]
+fn runs_on_different_bases_are_noticed() {
+    let dir = tempfile::tempdir().unwrap();
+    let a = dir.path().join("a.h5");
+    let b = dir.path().join("b.h5");
+    let c = dir.path().join("c.h5");
+    write_run(&a, &Spec::default());
+    // Run B: a shorter duration and a design rate of its own, as a case giving "1 min" and
+    // "60 L/s" resolves them (SI); the title differs too, which is no input.
+    let shorter = CASE_JSON
+        .replace(r#""title":"t""#, r#""title":"other""#)
+        .replace(r#""duration":1000.0"#, r#""duration":60.0"#)
+        .replace(
+            r#""numerics":"#,
+            r#""assessment":{"design_rate":0.06},"numerics":"#,
+        );
+    write_run(
+        &b,
+        &Spec {
+            case_json: Some(&shorter),
+            ..Spec::default()
+        },
+    );
+    // Run C: the same case as A, numbers written differently (1000 and 1000.0 are equal).
+    let same = CASE_JSON.replace(r#""duration":1000.0"#, r#""duration":1000"#);
+    write_run(
+        &c,
+        &Spec {
+            case_json: Some(&same),
+            ..Spec::default()
+        },
+    );
+    let html = report_of(dir.path(), &[a.clone(), b.clone()]);
+    let notice = bases_notice(&html).expect("a notice");
+    assert!(
+        notice.contains("<code>duration</code>, <code>assessment.design_rate</code> (values"),
+        "{notice}"
+    );
+    assert!(notice.contains("work in each zone"), "{notice}");
+    assert!(
+        !notice.contains("title") && !notice.contains("more"),
+        "{notice}"
+    );
+    // Above the headline table and the cautions.
+    assert!(html.find("Runs on different bases") < html.find("<h2>Cautions</h2>"));
+    assert!(bases_notice(&report_of(dir.path(), &[a.clone(), c])).is_none());
+
+    // Twelve differing inputs: ten named, then "and 2 more".
+    let many = (1..=12).fold(CASE_JSON.to_owned(), |j, k| {
+        j.replace(
+            r#""numerics":{"#,
+            &format!(r#""numerics":{{"extra_{k:02}":{k},"#),
+        )
+    });
+    write_run(
+        &b,
+        &Spec {
+            case_json: Some(&many),
+            ..Spec::default()
+        },
+    );
+    let notice = bases_notice(&report_of(dir.path(), &[a, b])).expect("a notice");
+    assert_eq!(notice.matches("<code>").count(), 10, "{notice}");
+    assert!(notice.contains(" and 2 more (values"), "{notice}");
 }
 
 #[test]

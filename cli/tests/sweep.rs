@@ -342,3 +342,53 @@ fn a_sweep_table_gets_its_own_report() {
         "{shown} not in the table"
     );
 }
+
+/// The sweep page shows a varied value given as a bare number with the SI unit the case
+/// reads it in (`drive.frequency` `0.25` is 0.25 Hz; `0.5 m` stays as written), names the
+/// x axis's unit, numbers its figures 1, 2, 3, … among those shown (this case has no
+/// collapse rating, so the collapse-margin figure is left out), and says "no change" of a
+/// figure every scenario shares.
+#[test]
+fn sweep_page_values_have_units_and_figures_are_numbered_in_order() {
+    let dir = tempfile::tempdir().unwrap();
+    let case = write_case(dir.path());
+    let stem = dir.path().join("amp");
+    sweep(&case, &stem)
+        .args([
+            "--vary",
+            "drive.amplitude=0.5 m,1 m,2 m",
+            "--vary",
+            "drive.frequency=0.25,0.5",
+        ])
+        .assert()
+        .success();
+    let html_path = dir.path().join("amp.html");
+    boreflux()
+        .args(["report", stem.with_extension("h5").to_str().unwrap(), "-o"])
+        .arg(&html_path)
+        .assert()
+        .success();
+    let html = std::fs::read_to_string(&html_path).unwrap();
+    // The list of varied values, the table and the legends.
+    assert!(
+        html.contains("<li><code>drive.frequency</code>: 0.25 Hz, 0.5 Hz</li>"),
+        "varied list"
+    );
+    assert!(html.contains("<li><code>drive.amplitude</code>: 0.5 m, 1 m, 2 m</li>"));
+    assert!(html.contains("<td>0.5 m</td><td>0.25 Hz</td>"), "table row");
+    assert!(html.contains(">drive.frequency = 0.25 Hz<"), "legend");
+    assert!(html.contains(">drive.amplitude [m]</text>"), "x axis");
+    // Figures numbered without gaps, and fewer than the 15 key figures (one left out).
+    let numbers: Vec<usize> = html
+        .split("<h3>Figure ")
+        .skip(1)
+        .map(|s| s.split('.').next().unwrap().parse().unwrap())
+        .collect();
+    assert!(numbers.len() < 15, "{numbers:?}");
+    assert_eq!(numbers, (1..=numbers.len()).collect::<Vec<_>>());
+    // The skin has no cake or invaded zone to lose: the same in every scenario.
+    assert!(
+        html.contains("No change: every scenario reads"),
+        "no-change caption"
+    );
+}

@@ -22,6 +22,7 @@ mod numerics;
 mod output;
 pub use output::Storage;
 mod quantity;
+pub(crate) use quantity::KINDS as QUANTITY_KINDS;
 mod raw;
 mod scenarios;
 mod schema;

@@ -38,6 +38,10 @@ macro_rules! kinds {
                 const NAME: &'static str = stringify!($name);
             }
         )*
+
+        /// Every kind as (name in the JSON Schema definitions, quantity), so that a reader of
+        /// the schema (the report's input units) learns each input's SI unit from it.
+        pub const KINDS: &[(&str, Quantity)] = &[$((stringify!($name), $q)),*];
     };
 }
 

@@ -32,8 +32,11 @@ pub enum Unit {
     M,
     /// Second.
     S,
-    /// Metre per second.
+    /// Metre per second: a velocity (pore, interstitial, slot, settling velocity).
     MPerS,
+    /// A volume flux (Darcy flux, discharge per unit area), m³/(m²·s): written `m/s` like a
+    /// velocity, but a different quantity (the report shows it in a loading-rate unit).
+    VolumeFlux,
     /// Square metre per second (specific capacity).
     M2PerS,
     /// Cubic metre per second.
@@ -50,8 +53,10 @@ pub enum Unit {
     SPerM2,
     /// Second squared per metre to the fifth (step-test C).
     S2PerM5,
-    /// Dimensionless ratio or count.
+    /// Dimensionless ratio.
     One,
+    /// A count (steps, cycles, cells, iterations, partings): a whole number, written `1`.
+    Count,
     /// The unit of the series it summarises (the envelopes).
     OfSeries,
 }
@@ -62,7 +67,7 @@ impl Unit {
         match self {
             Unit::M => "m",
             Unit::S => "s",
-            Unit::MPerS => "m/s",
+            Unit::MPerS | Unit::VolumeFlux => "m/s",
             Unit::M2PerS => "m2/s",
             Unit::M3PerS => "m3/s",
             Unit::Pa => "Pa",
@@ -71,7 +76,7 @@ impl Unit {
             Unit::Kg => "kg",
             Unit::SPerM2 => "s/m2",
             Unit::S2PerM5 => "s2/m5",
-            Unit::One => "1",
+            Unit::One | Unit::Count => "1",
             Unit::OfSeries => "of the series",
         }
     }
@@ -240,7 +245,7 @@ impl Step {
             ),
             Step::FaceFlux => s(
                 "face_flux",
-                Unit::MPerS,
+                Unit::VolumeFlux,
                 "Darcy flux at the borehole wall r_b, positive outward",
                 "q_b = Q_b / (2π r_b b), docs/physics.md §6",
                 Wall,
@@ -317,7 +322,7 @@ impl Step {
             ),
             Step::NewtonIterations => s(
                 "newton_iterations",
-                Unit::One,
+                Unit::Count,
                 "Newton iterations of the step",
                 "count",
                 Model,
@@ -430,21 +435,21 @@ impl Cycle {
             ),
             Cycle::PeakOutwardFlux => s(
                 "peak_outward_flux",
-                Unit::MPerS,
+                Unit::VolumeFlux,
                 "largest outward face flux in the cycle",
                 "maximum over the cycle's steps",
                 Place::Wall,
             ),
             Cycle::PeakInwardFlux => s(
                 "peak_inward_flux",
-                Unit::MPerS,
+                Unit::VolumeFlux,
                 "largest inward face flux in the cycle (magnitude)",
                 "maximum over the cycle's steps",
                 Place::Wall,
             ),
             Cycle::RmsFaceFlux => s(
                 "rms_face_flux",
-                Unit::MPerS,
+                Unit::VolumeFlux,
                 "root-mean-square face flux over the cycle",
                 "sqrt(Σ q² Δt / cycle length)",
                 Place::Wall,
@@ -530,17 +535,17 @@ macro_rules! figures {
 }
 
 figures! {
-    Steps => "steps", One, "accepted time steps", "count", Place::Model;
-    Cycles => "cycles", One, "complete drive cycles", "count", Place::Model;
-    SkippedCycles => "skipped_cycles", One, "drive cycles jumped over, not computed (numerics.multiscale; /jumps lists them)", "count", Place::Model;
-    Cells => "cells", One, "grid cells", "count", Place::Model;
+    Steps => "steps", Count, "accepted time steps", "count", Place::Model;
+    Cycles => "cycles", Count, "complete drive cycles", "count", Place::Model;
+    SkippedCycles => "skipped_cycles", Count, "drive cycles jumped over, not computed (numerics.multiscale; /jumps lists them)", "count", Place::Model;
+    Cells => "cells", Count, "grid cells", "count", Place::Model;
     OuterRadius => "outer_radius_m", M, "outer radius of the model", "grid", Place::Model;
     EndTime => "end_time_s", S, "simulated time", "last step end", Place::Model;
-    PeakOutwardFlux => "peak_outward_flux_m_s", MPerS, "largest outward Darcy flux at the wall", "maximum over the steps", Place::Wall;
-    PeakInwardFlux => "peak_inward_flux_m_s", MPerS, "largest inward Darcy flux at the wall (magnitude)", "maximum over the steps", Place::Wall;
+    PeakOutwardFlux => "peak_outward_flux_m_s", VolumeFlux, "largest outward Darcy flux at the wall", "maximum over the steps", Place::Wall;
+    PeakInwardFlux => "peak_inward_flux_m_s", VolumeFlux, "largest inward Darcy flux at the wall (magnitude)", "maximum over the steps", Place::Wall;
     PeakOutwardPoreVelocity => "peak_outward_pore_velocity_m_s", MPerS, "largest outward pore velocity at the wall", "peak flux / pack porosity", Place::Wall;
     PeakInwardPoreVelocity => "peak_inward_pore_velocity_m_s", MPerS, "largest inward pore velocity at the wall (magnitude)", "peak flux / pack porosity", Place::Wall;
-    RmsFaceFlux => "rms_face_flux_m_s", MPerS, "root-mean-square face flux over the run", "sqrt(Σ q² Δt / run time)", Place::Wall;
+    RmsFaceFlux => "rms_face_flux_m_s", VolumeFlux, "root-mean-square face flux over the run", "sqrt(Σ q² Δt / run time)", Place::Wall;
     PeakScreenFlow => "peak_screen_flow_m3_s", M3PerS, "largest flow through the screen (magnitude)", "maximum over the steps", Place::Zone(Zone::Screen);
     PeakShear => "peak_shear_pa", Pa, "largest shear proxy at the wall", "maximum over the steps", Place::Wall;
     CakeThicknessStart => "cake_thickness_start_m", M, "cake thickness at the start", "case", Place::Zone(Zone::Cake);
@@ -593,11 +598,11 @@ figures! {
     CollapseMargin => "collapse_margin", One, "lower of the screen and casing margins, absent unless both are rated (an unrated screen may govern); below 1 is a warning", "rating / (safety factor × peak load)", Place::Well;
     ScreenCollapseMargin => "screen_collapse_margin", One, "screen collapse margin", "rating / (safety factor × peak load)", Place::Zone(Zone::Screen);
     CasingCollapseMargin => "casing_collapse_margin", One, "casing collapse margin", "rating / (safety factor × peak drawdown pressure)", Place::Well;
-    ColumnPartings => "column_partings", One, "times the water column under a sealed tool parted at the vapour bound", "count", Place::Well;
+    ColumnPartings => "column_partings", Count, "times the water column under a sealed tool parted at the vapour bound", "count", Place::Well;
     PartedTime => "parted_time_s", S, "time the column spent parted", "sum over the steps", Place::Well;
     MaxMassResidual => "max_mass_residual", One, "largest per-step volume residual", "maximum over the steps", Place::Model;
     EnergyClosure => "energy_closure", One, "energy identity over the run, relative", "docs/numerics.md, balances", Place::Model;
-    MaxNewtonIterations => "max_newton_iterations", One, "most Newton iterations in one step", "maximum over the steps", Place::Model;
+    MaxNewtonIterations => "max_newton_iterations", Count, "most Newton iterations in one step", "maximum over the steps", Place::Model;
 }
 
 impl Figure {
@@ -1037,14 +1042,14 @@ impl SweepSeries {
             ),
             SweepSeries::PeakOutwardFlux => s(
                 "peak_outward_flux",
-                Unit::MPerS,
+                Unit::VolumeFlux,
                 "largest outward Darcy flux at the wall of the cycles ending in the interval before each grid point; NaN at k = 0 and where no cycle ended",
                 "max of /cycles/peak_outward_flux",
                 Place::Wall,
             ),
             SweepSeries::PeakInwardFlux => s(
                 "peak_inward_flux",
-                Unit::MPerS,
+                Unit::VolumeFlux,
                 "largest inward Darcy flux at the wall of the cycles ending in the interval before each grid point; NaN at k = 0 and where no cycle ended",
                 "max of /cycles/peak_inward_flux",
                 Place::Wall,
@@ -1165,13 +1170,13 @@ impl JumpSeries {
             ),
             JumpSeries::FirstCycle => s(
                 "first_cycle",
-                Unit::One,
+                Unit::Count,
                 "number of the first cycle skipped, from 0 (no /cycles record for it)",
                 "count",
             ),
             JumpSeries::Cycles => s(
                 "cycles",
-                Unit::One,
+                Unit::Count,
                 "cycles skipped",
                 "largest K within the error and move bounds, docs/time-stepping.md",
             ),
@@ -1245,7 +1250,7 @@ impl EventSeries {
             ),
             EventSeries::Cycle => s(
                 "cycle",
-                Unit::One,
+                Unit::Count,
                 "number of the drive cycle holding the event, from 0 (0 for a drive without \
                  cycles; the step that ends a cycle belongs to it)",
                 "count",
@@ -1299,7 +1304,7 @@ pub fn markdown() -> String {
     );
     let mut cycles = vec![entry(
         CYCLE_INDEX.to_owned(),
-        Unit::One,
+        Unit::Count,
         "cycle number, from 0".to_owned(),
         "count",
         Place::Model,
@@ -1437,6 +1442,42 @@ mod tests {
                 .chain([CYCLE_INDEX.to_owned()])
         ));
         assert!(unique(Figure::all().into_iter().map(Figure::name)));
+    }
+
+    /// A figure's schema unit says it is a count exactly when its value is one (the report
+    /// prints counts as whole numbers from the unit), and every entry computed as a "count"
+    /// has that unit.
+    #[test]
+    fn counts_have_the_count_unit() {
+        let h = demo_headline();
+        for f in Figure::all() {
+            if let Some(v) = f.value(&h.figures) {
+                assert_eq!(
+                    matches!(v, Num::Count(_)),
+                    f.entry().unit == Unit::Count,
+                    "{}",
+                    f.name()
+                );
+            }
+        }
+        let entries = Step::all()
+            .into_iter()
+            .map(Step::entry)
+            .chain(Cycle::all().into_iter().map(Cycle::entry))
+            .chain(Figure::all().into_iter().map(Figure::entry))
+            .chain(JumpSeries::ALL.into_iter().map(JumpSeries::entry))
+            .chain(EventSeries::ALL.into_iter().map(EventSeries::entry));
+        for e in entries {
+            if e.computed == "count" {
+                assert_eq!(e.unit, Unit::Count, "{}", e.name);
+            }
+        }
+        // Darcy fluxes and velocities share the symbol m/s but not the unit.
+        assert_eq!(Step::FaceFlux.entry().unit, Unit::VolumeFlux);
+        assert_eq!(Step::FacePoreVelocity.entry().unit, Unit::MPerS);
+        assert_eq!(Figure::GrainCriticalVelocity.entry().unit, Unit::MPerS);
+        assert_eq!(Unit::VolumeFlux.symbol(), Unit::MPerS.symbol());
+        assert_eq!(Unit::Count.symbol(), Unit::One.symbol());
     }
 
     #[test]

@@ -30,6 +30,8 @@ pub struct Shown {
     pub si: Unit,
     /// The unit in brackets, when practitioners use one.
     pub us: Option<Unit>,
+    /// A count: a whole value is printed without decimals (`16`, not `16.0`).
+    pub whole: bool,
 }
 
 const fn unit(label: &'static str, per_si: f64) -> Unit {
@@ -37,7 +39,11 @@ const fn unit(label: &'static str, per_si: f64) -> Unit {
 }
 
 const fn shown(si: Unit, us: Option<Unit>) -> Shown {
-    Shown { si, us }
+    Shown {
+        si,
+        us,
+        whole: false,
+    }
 }
 
 /// Head and lengths of metres: m (ft).
@@ -51,7 +57,8 @@ pub const FLUX: Shown = shown(
     unit("mm/s", 1e3),
     Some(unit("gpd/ft²", DAY_S * FT_M * FT_M / US_GAL_M3)),
 );
-/// Pore velocity: mm/s (ft/min).
+/// A velocity through the pores (pore, interstitial or settling velocity): mm/s (ft/min).
+/// Not a loading rate: gpd/ft² is for a Darcy flux (a volume per area and time) only.
 pub const PORE_VELOCITY: Shown = shown(unit("mm/s", 1e3), Some(unit("ft/min", 60.0 / FT_M)));
 /// Screen slot (entrance) velocity: m/s (ft/s).
 pub const SLOT_VELOCITY: Shown = shown(unit("m/s", 1.0), Some(unit("ft/s", 1.0 / FT_M)));
@@ -82,6 +89,11 @@ pub const ERODIBILITY: Shown = shown(unit("m/(s·Pa)", 1.0), None);
 pub const FORCHHEIMER_BETA: Shown = shown(unit("s²/m²", 1.0), None);
 /// A dimensionless number.
 pub const NUMBER: Shown = shown(unit("", 1.0), None);
+/// A count: a dimensionless whole number.
+pub const COUNT: Shown = Shown {
+    whole: true,
+    ..NUMBER
+};
 /// Density: kg/m³ (lb/ft³); 1 lb/ft³ = 0.453 592 37 kg / 0.3048³ m³ (exact definitions of lb and ft).
 pub const DENSITY: Shown = shown(unit("kg/m³", 1.0), Some(unit("lb/ft³", 1.0 / 16.018_463)));
 /// Per metre (a filtration coefficient).
@@ -106,10 +118,20 @@ pub fn count(value: f64) -> String {
     }
 }
 
+/// `value` (SI) as a number in the SI display unit of `s`, without the unit: three
+/// significant digits, or a whole number for a count.
+pub fn number_in(value: f64, s: &Shown) -> String {
+    if s.whole {
+        count(value * s.si.per_si)
+    } else {
+        sig(value * s.si.per_si)
+    }
+}
+
 /// `value` (SI) in the SI display unit with the US unit in brackets:
-/// `1.20 mm/s (2540 gpd/ft²)`.
+/// `1.20 mm/s (2540 gpd/ft²)`; a count as a whole number (`16`).
 pub fn with_units(value: f64, s: &Shown) -> String {
-    let mut out = join(sig(value * s.si.per_si), s.si.label);
+    let mut out = join(number_in(value, s), s.si.label);
     if let Some(us) = s.us {
         out.push_str(&format!(" ({})", join(sig(value * us.per_si), us.label)));
     }
@@ -149,13 +171,16 @@ pub fn temperature(kelvin: f64) -> String {
 }
 
 /// How the report shows a quantity of the given SI unit (from the output schema), unless a
-/// figure chooses a finer display (mm for the cake, m/s for slot velocities).
+/// figure chooses a finer display (mm for the cake, m/s for slot velocities). The schema
+/// tells a Darcy flux (shown with gpd/ft², a loading rate) from a velocity (ft/min), and a
+/// count (a whole number) from a ratio, though each pair is written with one symbol.
 pub fn shown_for(si: crate::output::schema::Unit) -> Shown {
     use crate::output::schema::Unit;
     match si {
         Unit::M => HEAD,
         Unit::S => TIME,
-        Unit::MPerS => FLUX,
+        Unit::VolumeFlux => FLUX,
+        Unit::MPerS => PORE_VELOCITY,
         Unit::M2PerS => SPECIFIC_CAPACITY,
         Unit::M3PerS => FLOW,
         Unit::Pa => PRESSURE,
@@ -164,6 +189,7 @@ pub fn shown_for(si: crate::output::schema::Unit) -> Shown {
         Unit::Kg => shown(unit("kg", 1.0), Some(unit("lb", 1.0 / crate::units::LB_KG))),
         Unit::SPerM2 => shown(unit("s/m²", 1.0), None),
         Unit::S2PerM5 => shown(unit("s²/m⁵", 1.0), None),
+        Unit::Count => COUNT,
         Unit::One | Unit::OfSeries => NUMBER,
     }
 }
@@ -224,5 +250,27 @@ mod tests {
         assert_eq!(of(Figure::Work(boreflux_solver::grid::Zone::Cake)), ENERGY);
         assert_eq!(of(Figure::OuterRadius), HEAD);
         assert_eq!(of(Figure::SkinEnd), NUMBER);
+        // A velocity is not a loading rate: ft/min, never gpd/ft².
+        assert_eq!(of(Figure::GrainCriticalVelocity), PORE_VELOCITY);
+        assert_eq!(of(Figure::PeakWallInterstitialVelocity), PORE_VELOCITY);
+        assert_eq!(of(Figure::PeakOutwardPoreVelocity), PORE_VELOCITY);
+        assert_eq!(of(Figure::RmsFaceFlux), FLUX);
+        assert_eq!(of(Figure::ColumnPartings), COUNT);
+        assert_eq!(of(Figure::MaxNewtonIterations), COUNT);
+    }
+
+    #[test]
+    fn counts_are_whole_and_velocities_in_feet_per_minute() {
+        assert_eq!(with_units(16.0, &COUNT), "16");
+        assert_eq!(with_units(16.0, &NUMBER), "16.0");
+        assert_eq!(number_in(12.0, &COUNT), "12");
+        // A count that is not whole (a mean) keeps its digits.
+        assert_eq!(number_in(2.5, &COUNT), "2.50");
+        // 0.0133 m/s × 60 s/min / 0.3048 m/ft = 2.618 ft/min (NIST SP 811, 2008,
+        // Appendix B: 1 ft = 0.3048 m exactly).
+        assert_eq!(
+            with_units(0.0133, &PORE_VELOCITY),
+            "13.3 mm/s (2.62 ft/min)"
+        );
     }
 }

@@ -21,6 +21,7 @@ struct RunPage {
     version: &'static str,
     full_head: bool,
     caution: &'static str,
+    bases: Option<Bases>,
     recorded_cautions: Vec<(String, String)>,
     warning_total: usize,
     runs: Vec<RunView>,
@@ -32,6 +33,31 @@ struct RunPage {
     figures: Vec<Figure>,
     inputs: CompareTable,
     other_values: Option<CompareTable>,
+}
+
+/// Case inputs listed by name in the notice on runs compared on different bases; the rest
+/// are counted ("and 4 more") and all are in the Inputs table.
+const BASES_LISTED: usize = 10;
+
+/// The notice above a comparison whose runs differ in case inputs.
+struct Bases {
+    /// The first [`BASES_LISTED`] differing input paths.
+    listed: Vec<String>,
+    /// How many more differ.
+    more: usize,
+}
+
+impl Bases {
+    /// The notice for `runs`, or `None` for one run or runs with the same inputs.
+    fn of(runs: &[Run]) -> Option<Self> {
+        let mut listed = tables::differing_inputs(runs);
+        if runs.len() < 2 || listed.is_empty() {
+            return None;
+        }
+        let more = listed.len().saturating_sub(BASES_LISTED);
+        listed.truncate(BASES_LISTED);
+        Some(Bases { listed, more })
+    }
 }
 
 /// What the page shows of one run.
@@ -120,6 +146,7 @@ pub fn page(runs: &[Run], title: Option<&str>) -> String {
         version: env!("CARGO_PKG_VERSION"),
         full_head: true,
         caution: CAUTION,
+        bases: Bases::of(runs),
         recorded_cautions,
         warning_total: runs.iter().map(|r| r.summary.warnings.len()).sum(),
         any_notes: runs.iter().any(|r| !r.summary.notes.is_empty()),

@@ -5,12 +5,22 @@
 use std::collections::BTreeMap;
 use std::sync::OnceLock;
 
+use crate::units::Quantity;
+
 use serde_json::{Map, Value};
 
 use super::format::{
     Shown, AREA, CONDUCTIVITY, DENSITY, ERODIBILITY, FLOW, FORCE, FORCHHEIMER_BETA, FREQUENCY,
     NUMBER, PER_METRE, PRESSURE, SLOT_VELOCITY, SPECIFIC_STORAGE, VOLUME,
 };
+
+/// What the case schema says of one input: how it is shown and, for a quantity, the
+/// quantity kind (whose SI unit a bare number in the case is read in).
+#[derive(Debug, Clone, Copy, PartialEq)]
+struct Known {
+    unit: InputUnit,
+    quantity: Option<Quantity>,
+}
 
 /// How an input is shown.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -62,7 +72,7 @@ fn walk(
     node: &Value,
     prefix: &str,
     depth: usize,
-    out: &mut BTreeMap<String, InputUnit>,
+    out: &mut BTreeMap<String, Known>,
 ) {
     if depth > MAX_DEPTH {
         return;
@@ -87,6 +97,11 @@ fn walk(
             walk(defs, v, prefix, depth + 1, out);
         }
     }
+    // The elements of a list (schedule stages) under the list's own path: a path into a
+    // list names the element by its index, which [`of_path`] drops.
+    if let Some(items) = node.get("items").filter(|i| i.is_object()) {
+        property(defs, items, prefix, depth + 1, out);
+    }
 }
 
 fn property(
@@ -94,7 +109,7 @@ fn property(
     v: &Value,
     path: &str,
     depth: usize,
-    out: &mut BTreeMap<String, InputUnit>,
+    out: &mut BTreeMap<String, Known>,
 ) {
     let alternatives = std::iter::once(v).chain(
         v.get("anyOf")
@@ -109,8 +124,18 @@ fn property(
             .and_then(|r| r.strip_prefix("#/$defs/"))
         {
             match quantity(name) {
-                Some(u) => {
-                    out.entry(path.to_owned()).or_insert(u);
+                Some(unit) => {
+                    let quantity = crate::case::QUANTITY_KINDS
+                        .iter()
+                        .find(|(n, _)| *n == name)
+                        .map(|(_, q)| *q)
+                        .or(match name {
+                            // `duration`: a time (or a number of cycles, written with the word).
+                            "DurationValue" => Some(Quantity::Time),
+                            _ => None,
+                        });
+                    out.entry(path.to_owned())
+                        .or_insert(Known { unit, quantity });
                 }
                 None => {
                     if let Some(d) = defs.get(name) {
@@ -126,19 +151,24 @@ fn property(
             Some(Value::Array(ts)) => ts.iter().any(|t| t == ty),
             _ => false,
         };
+        let plain = |unit| Known {
+            unit,
+            quantity: None,
+        };
         if is("integer") {
-            out.entry(path.to_owned()).or_insert(InputUnit::Count);
+            out.entry(path.to_owned())
+                .or_insert(plain(InputUnit::Count));
         } else if is("number") {
             out.entry(path.to_owned())
-                .or_insert(InputUnit::Fixed(NUMBER));
+                .or_insert(plain(InputUnit::Fixed(NUMBER)));
         }
     }
     walk(defs, v, path, depth, out);
 }
 
 /// The unit of every input path of the case schema (`assessment.design_rate` → flow rate).
-fn table() -> &'static BTreeMap<String, InputUnit> {
-    static TABLE: OnceLock<BTreeMap<String, InputUnit>> = OnceLock::new();
+fn table() -> &'static BTreeMap<String, Known> {
+    static TABLE: OnceLock<BTreeMap<String, Known>> = OnceLock::new();
     TABLE.get_or_init(|| {
         let schema = crate::case::schema();
         let mut out = BTreeMap::new();
@@ -149,9 +179,36 @@ fn table() -> &'static BTreeMap<String, InputUnit> {
     })
 }
 
+/// What the schema says of the input at `path`; an index into a list (`drive.stages.1.…`)
+/// is dropped, as the list's elements are listed under the list's path.
+fn known(path: &str) -> Option<Known> {
+    let key: Vec<&str> = path
+        .split('.')
+        .filter(|seg| seg.is_empty() || !seg.bytes().all(|b| b.is_ascii_digit()))
+        .collect();
+    table().get(&key.join(".")).copied()
+}
+
 /// The unit of the input at `path` (dotted, as in the Inputs table), from the case schema.
 pub fn of_path(path: &str) -> Option<InputUnit> {
-    table().get(path).copied()
+    known(path).map(|k| k.unit)
+}
+
+/// The SI unit in which the case reads a bare number at `path` (`"m/s"` for
+/// `drive.lift_rate`, written for display: `m³/s`, `kg/m³`), or `None` where the input is
+/// a pure number or no quantity (`drive.strokes_per_minute`, `drive.kind`).
+pub fn si_unit_of_path(path: &str) -> Option<String> {
+    let u = known(path)?.quantity?.si_unit();
+    (!u.is_empty()).then(|| pretty_unit(u))
+}
+
+/// A unit as the case files write it (`m3/s`, `s2/m2`, `m/s/Pa`) as the report shows it
+/// (`m³/s`, `s²/m²`, `m/(s·Pa)`).
+fn pretty_unit(u: &str) -> String {
+    if u == "m/s/Pa" {
+        return "m/(s·Pa)".to_owned();
+    }
+    u.replace('2', "²").replace('3', "³")
 }
 
 /// The SI display unit of the input at `path` and how many of it make one SI base unit
@@ -165,4 +222,32 @@ pub(crate) fn si_display_of_path(path: &str) -> Option<(&'static str, f64)> {
         InputUnit::Temperature => ("K", 1.0),
         InputUnit::Count => ("", 1.0),
     })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// The SI unit of a bare number comes from the case schema's quantity type, also inside
+    /// a schedule's stages; pure numbers and words have none.
+    #[test]
+    fn si_units_of_paths() {
+        assert_eq!(si_unit_of_path("drive.lift_rate").as_deref(), Some("m/s"));
+        assert_eq!(si_unit_of_path("drive.stroke").as_deref(), Some("m"));
+        assert_eq!(si_unit_of_path("duration").as_deref(), Some("s"));
+        assert_eq!(
+            si_unit_of_path("assessment.design_rate").as_deref(),
+            Some("m³/s")
+        );
+        assert_eq!(
+            si_unit_of_path("drive.stages.1.drive.stroke").as_deref(),
+            Some("m")
+        );
+        assert_eq!(si_unit_of_path("drive.strokes_per_minute"), None);
+        assert_eq!(si_unit_of_path("pack.porosity"), None);
+        assert_eq!(si_unit_of_path("drive.kind"), None);
+        assert_eq!(si_unit_of_path("no.such.path"), None);
+        assert_eq!(pretty_unit("kg/m3"), "kg/m³");
+        assert_eq!(pretty_unit("s2/m2"), "s²/m²");
+    }
 }

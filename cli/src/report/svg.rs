@@ -126,6 +126,10 @@ pub struct Chart<'a> {
     /// Smallest y drawn (display units); points below are left out. Bounds the range of
     /// a log axis whose data start near zero.
     pub y_min: Option<f64>,
+    /// Smallest span of a linear y axis, as a fraction of the largest magnitude drawn (0:
+    /// the data's own range): a range narrower than that is widened about its middle, so
+    /// that round-off between nearly equal values is not drawn across the whole plot.
+    pub y_min_span: f64,
     /// Optional right-hand axis.
     pub y2: Option<SecondAxis>,
     /// The lines.
@@ -149,6 +153,7 @@ impl<'a> Chart<'a> {
             x_factor: 1.0,
             y_factor: 1.0,
             y_min: None,
+            y_min_span: 0.0,
             y2: None,
             series: Vec::new(),
             bands: Vec::new(),
@@ -532,6 +537,11 @@ fn data_ranges(chart: &Chart<'_>) -> Option<((f64, f64), (f64, f64))> {
             xr = (xr.0.min(m.x), xr.1.max(m.x));
         }
     }
+    let need = chart.y_min_span * yr.0.abs().max(yr.1.abs());
+    if chart.y_scale == Scale::Linear && yr.0 <= yr.1 && yr.1 - yr.0 < need {
+        let mid = 0.5 * (yr.0 + yr.1);
+        yr = (mid - 0.5 * need, mid + 0.5 * need);
+    }
     Some((xr, yr))
 }
 
@@ -593,5 +603,29 @@ mod tests {
             style: STYLE,
         });
         assert!(render(&c).contains("no data to plot"));
+    }
+
+    /// A minimum span widens a y range narrower than it about its middle, and leaves a
+    /// wider one alone.
+    #[test]
+    fn a_minimum_span_widens_a_narrow_y_range() {
+        let x = [1.0, 2.0, 3.0];
+        let y = [2.999, 2.9995, 3.0];
+        let mut c = Chart::new("s", "Span", "x", "y");
+        c.series.push(Series {
+            label: String::new(),
+            x: &x,
+            y: &y,
+            style: STYLE,
+        });
+        let (_, yr) = data_ranges(&c).unwrap();
+        assert_eq!(yr, (2.999, 3.0));
+        c.y_min_span = 0.05;
+        let (_, (lo, hi)) = data_ranges(&c).unwrap();
+        // 5 % of 3.0 = 0.15 about the middle 2.9995 (hand arithmetic).
+        assert!((hi - lo - 0.15).abs() < 1e-12 && (0.5 * (lo + hi) - 2.9995).abs() < 1e-12);
+        let wide = [1.0, 2.0, 3.0];
+        c.series[0].y = &wide;
+        assert_eq!(data_ranges(&c).unwrap().1, (1.0, 3.0));
     }
 }

@@ -4,13 +4,14 @@
 //! shared with the comparison page in templates/partials/sweep.html). Everything is read
 //! from the table file.
 
-use std::collections::BTreeMap;
+use std::collections::{BTreeMap, BTreeSet};
 
 use askama::Template;
 use boreflux_solver::safety::CAUTION;
 
 use super::figures::{quantity_chart, run_style};
-use super::format::{shown_for, sig, Shown};
+use super::format::{number_in, shown_for, Shown};
+use super::input_units::si_unit_of_path;
 use super::page::{render as render_page, svg, Figure as PageFigure};
 use super::svg::{render, Series};
 use super::ticks::Scale;
@@ -101,6 +102,37 @@ fn flagged(figure: Figure, v: f64) -> bool {
         Figure::ColumnPartings => v > 0.0,
         _ => false,
     }
+}
+
+/// Smallest span of a sweep chart's y axis, as a fraction of the largest magnitude drawn:
+/// 5 % (±2.5 % about the middle). Assumption, a display choice: the scenario table shows 3
+/// significant digits, which resolve 0.1–1 % of a value, so a spread below the table's last
+/// digit (solver round-off between scenarios, e.g. 2.9990 … 3.0000 mm) takes less than a
+/// fifth of the axis height instead of all of it, and a real change of a few per cent still
+/// fills most of it. A figure whose values all read the same at 3 significant digits also
+/// says so in its caption.
+const SWEEP_MIN_SPAN: f64 = 0.05;
+
+/// A varied value as the sweep pages show it: a bare number where the case reads it in an
+/// SI unit gets that unit (`drive.lift_rate` `0.25` → `0.25 m/s`, from the case schema);
+/// a value written with its unit (`2 m`), a pure number (`drive.strokes_per_minute`) or a
+/// word is shown as written.
+pub(super) fn value_label(path: &str, label: &str) -> String {
+    match si_unit_of_path(path) {
+        Some(unit) if label.trim().parse::<f64>().is_ok_and(f64::is_finite) => {
+            format!("{} {unit}", label.trim())
+        }
+        _ => label.to_owned(),
+    }
+}
+
+/// The labels of a row's varied values, each with its unit where given as a bare number.
+fn row_labels(paths: &[String], labels: &[String]) -> Vec<String> {
+    paths
+        .iter()
+        .zip(labels)
+        .map(|(p, l)| value_label(p, l))
+        .collect()
 }
 
 /// How a figure is shown: in the display unit of its schema unit, with finer units for the
@@ -215,7 +247,7 @@ pub(super) fn table_view(t: &Table, heading: &str) -> TableView {
         .filter(|r| r.status != "ok")
         .map(|r| Warning {
             scenario: r.scenario,
-            labels: r.labels.join(", "),
+            labels: row_labels(&t.paths, &r.labels).join(", "),
             failed: Some(r.status.clone()),
             lines: Vec::new(),
         })
@@ -226,7 +258,7 @@ pub(super) fn table_view(t: &Table, heading: &str) -> TableView {
             .filter(|r| !r.warnings.is_empty())
             .map(|r| Warning {
                 scenario: r.scenario,
-                labels: r.labels.join(", "),
+                labels: row_labels(&t.paths, &r.labels).join(", "),
                 failed: None,
                 lines: r.warnings.lines().map(str::to_owned).collect(),
             }),
@@ -251,16 +283,14 @@ fn varied(t: &Table) -> Vec<(String, String)> {
         .into_iter()
         .flatten()
         .map(|v| {
+            let path = v["path"].as_str().unwrap_or("");
             let values: Vec<String> = v["values"]
                 .as_array()
                 .into_iter()
                 .flatten()
-                .map(crate::sweep::spec::label)
+                .map(|value| value_label(path, &crate::sweep::spec::label(value)))
                 .collect();
-            (
-                v["path"].as_str().unwrap_or("").to_owned(),
-                values.join(", "),
-            )
+            (path.to_owned(), values.join(", "))
         })
         .collect()
 }
@@ -342,7 +372,7 @@ pub(super) fn charts(tables: &[(Option<String>, &Table)]) -> Charts {
             let others = t.paths[1..]
                 .iter()
                 .zip(&key)
-                .map(|(p, v)| format!("{p} = {v}"))
+                .map(|(p, v)| format!("{p} = {}", value_label(p, v)))
                 .collect::<Vec<_>>()
                 .join(", ");
             let label = match name {
@@ -377,6 +407,11 @@ pub(super) fn charts(tables: &[(Option<String>, &Table)]) -> Charts {
     } else {
         PerLine::One
     };
+    // The x values are SI numbers: the axis names the SI unit where the path has one.
+    let x_label = match si_unit_of_path(x_path) {
+        Some(unit) => format!("{x_path} [{unit}]"),
+        None => x_path.clone(),
+    };
     let mut figures = Vec::new();
     for (n, (figure, title, _)) in KEY.iter().enumerate() {
         let name = figure.name();
@@ -397,8 +432,35 @@ pub(super) fn charts(tables: &[(Option<String>, &Table)]) -> Charts {
             continue;
         }
         let s = shown(*figure);
-        let mut c = quantity_chart(&format!("sweep{n}"), title, x_path, title, s);
+        let mut c = quantity_chart(&format!("sweep{n}"), title, &x_label, title, s);
         c.x_scale = x_scale;
+        c.y_min_span = SWEEP_MIN_SPAN;
+        // Every value the same at the table's precision: say so.
+        let finite: Vec<f64> = ys
+            .iter()
+            .flatten()
+            .copied()
+            .filter(|y| y.is_finite())
+            .collect();
+        let read: BTreeSet<String> = finite.iter().map(|&y| number_in(y, &s)).collect();
+        let caption = match read.iter().next() {
+            Some(v) if read.len() == 1 => {
+                let unit = if s.si.label.is_empty() {
+                    String::new()
+                } else {
+                    format!(" {}", s.si.label)
+                };
+                Some(if finite.iter().all(|&y| y == finite[0]) {
+                    format!("No change: every scenario reads {v}{unit}.")
+                } else {
+                    format!(
+                        "No change at 3 significant digits: every scenario reads {v}{unit}; the axis spans at least {} % of the value, so what differences remain are round-off, not a trend.",
+                        SWEEP_MIN_SPAN * 100.0
+                    )
+                })
+            }
+            _ => None,
+        };
         for (i, (line, (x, y))) in lines.iter().zip(xs.iter().zip(&ys)).enumerate() {
             c.series.push(Series {
                 label: line.label.clone(),
@@ -407,10 +469,11 @@ pub(super) fn charts(tables: &[(Option<String>, &Table)]) -> Charts {
                 style: run_style(i),
             });
         }
+        // Numbered among the figures shown: a figure left out leaves no gap.
         figures.push(PageFigure {
-            number: n + 1,
+            number: figures.len() + 1,
             title: (*title).to_owned(),
-            caption: None,
+            caption,
             svgs: vec![svg(render(&c))],
         });
     }
@@ -451,12 +514,12 @@ fn scenarios(t: &Table, heading: &str) -> Scenarios {
             let warnings = r.warnings.lines().count();
             ScenarioRow {
                 scenario: r.scenario,
-                labels: r.labels.clone(),
+                labels: row_labels(&t.paths, &r.labels),
                 values: cols
                     .iter()
                     .map(|(i, figure, _, s)| {
                         let v = r.figures[*i];
-                        (sig(v * s.si.per_si), flagged(*figure, v))
+                        (number_in(v, s), flagged(*figure, v))
                     })
                     .collect(),
                 status: match (r.status.as_str(), warnings) {
@@ -473,5 +536,113 @@ fn scenarios(t: &Table, heading: &str) -> Scenarios {
         paths: t.paths.clone(),
         columns,
         rows,
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::sweep::table::Row;
+
+    /// Numbers of the y-axis tick labels of a chart (SVG), in display units.
+    fn y_ticks(svg: &str) -> Vec<f64> {
+        svg.split(r#"text-anchor="end">"#)
+            .skip(1)
+            .filter_map(|s| s.split('<').next()?.replace('−', "-").parse().ok())
+            .collect()
+    }
+
+    /// A grid sweep of `drive.lift_rate` (bare numbers) over three scenarios: the cake
+    /// thickness differs only in the fifth digit (round-off), the partings are counts and
+    /// the collapse margin was not computed (no rating). Invented test data.
+    fn table() -> Table {
+        let row = |k: usize, v: f64, cake_m: f64, partings: f64| Row {
+            scenario: k,
+            labels: vec![crate::sweep::spec::label(&serde_json::json!(v))],
+            si: vec![v],
+            status: "ok".to_owned(),
+            figures: vec![cake_m, partings, f64::NAN],
+            warnings: String::new(),
+            series: Vec::new(),
+        };
+        Table {
+            case_file: "swab.json".to_owned(),
+            base_case_json: "{}".to_owned(),
+            vary_json: r#"[{"path":"drive.lift_rate","values":[0.25,0.5,1]}]"#.to_owned(),
+            sampling_json: None,
+            total: 3,
+            shard: "1/1".to_owned(),
+            paths: vec!["drive.lift_rate".to_owned()],
+            figures: ["cake_thickness_end_m", "column_partings", "collapse_margin"]
+                .map(str::to_owned)
+                .to_vec(),
+            rows: vec![
+                row(0, 0.25, 2.9990e-3, 12.0),
+                row(1, 0.5, 2.9995e-3, 0.0),
+                row(2, 1.0, 3.0000e-3, 3.0),
+            ],
+        }
+    }
+
+    #[test]
+    fn bare_values_get_the_unit_the_case_reads_them_in() {
+        assert_eq!(value_label("drive.lift_rate", "0.25"), "0.25 m/s");
+        assert_eq!(value_label("drive.stroke", "2 m"), "2 m");
+        assert_eq!(value_label("drive.strokes_per_minute", "10"), "10");
+        assert_eq!(value_label("drive.kind", "swab"), "swab");
+        let t = table();
+        assert_eq!(
+            varied(&t),
+            [(
+                "drive.lift_rate".to_owned(),
+                "0.25 m/s, 0.5 m/s, 1 m/s".to_owned()
+            )]
+        );
+        let s = scenarios(&t, "Scenarios");
+        assert_eq!(s.rows[0].labels, ["0.25 m/s"]);
+    }
+
+    #[test]
+    fn counts_are_whole_in_the_scenario_table() {
+        let s = scenarios(&table(), "Scenarios");
+        let partings = s
+            .columns
+            .iter()
+            .position(|c| c == "Partings")
+            .expect("a partings column");
+        let shown: Vec<&str> = s
+            .rows
+            .iter()
+            .map(|r| r.values[partings].0.as_str())
+            .collect();
+        assert_eq!(shown, ["12", "0", "3"]);
+    }
+
+    #[test]
+    fn figures_are_numbered_among_those_shown_and_round_off_is_not_magnified() {
+        let t = table();
+        let Charts::Figures { figures, .. } = charts(&[(None, &t)]) else {
+            panic!("charts expected");
+        };
+        // Cake thickness and partings; the collapse margin (all NaN) is left out.
+        let numbers: Vec<usize> = figures.iter().map(|f| f.number).collect();
+        assert_eq!(numbers, [1, 2]);
+        let cake = &figures[0];
+        assert_eq!(cake.title, "Cake thickness at the end");
+        let caption = cake.caption.as_deref().unwrap_or_default();
+        assert!(
+            caption.starts_with("No change at 3 significant digits: every scenario reads 3.00 mm"),
+            "{caption}"
+        );
+        // The y axis spans at least 5 % of 3 mm, not the 0.001 mm of round-off.
+        let ticks = y_ticks(&cake.svgs[0].0);
+        let (lo, hi) = ticks
+            .iter()
+            .fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), &y| {
+                (a.min(y), b.max(y))
+            });
+        assert!(hi - lo >= 0.05 * 3.0 - 1e-12, "{ticks:?}");
+        // Counts that differ: no caption.
+        assert_eq!(figures[1].caption, None);
     }
 }

@@ -98,8 +98,21 @@ pub fn cycle_log(run: &Run) -> Option<CycleLog> {
     Some(CycleLog { rows })
 }
 
-/// Inputs of every run from `case_json`, one column per run, grouped by section.
-pub fn inputs(runs: &[Run]) -> CompareTable {
+/// The resolved case of every run (`case_json`), `None` where absent or not readable.
+fn cases(runs: &[Run]) -> Vec<Option<Value>> {
+    runs.iter()
+        .map(|r| {
+            r.meta
+                .case_json
+                .as_deref()
+                .and_then(|j| serde_json::from_str(j).ok())
+        })
+        .collect()
+}
+
+/// The sections of the cases in the Inputs table's order: the usual ones first, then any
+/// other in first-seen order (the title and description are shown elsewhere).
+fn sections(cases: &[Option<Value>]) -> Vec<String> {
     const ORDER: [&str; 9] = [
         "fluid",
         "well",
@@ -111,15 +124,6 @@ pub fn inputs(runs: &[Run]) -> CompareTable {
         "duration",
         "numerics",
     ];
-    let cases: Vec<Option<Value>> = runs
-        .iter()
-        .map(|r| {
-            r.meta
-                .case_json
-                .as_deref()
-                .and_then(|j| serde_json::from_str(j).ok())
-        })
-        .collect();
     let mut sections: Vec<String> = ORDER.iter().map(|s| (*s).to_owned()).collect();
     for case in cases.iter().flatten() {
         if let Some(map) = case.as_object() {
@@ -130,25 +134,70 @@ pub fn inputs(runs: &[Run]) -> CompareTable {
             }
         }
     }
-    let mut t = compare_table(runs, "compare", "Input (resolved, SI; US in brackets)");
-    for section in &sections {
-        // Union of the flattened keys of this section over all runs, in first-seen order.
-        let mut keys: Vec<String> = Vec::new();
-        let flat: Vec<Vec<(String, Value)>> = cases
-            .iter()
-            .map(|c| {
-                let mut out = Vec::new();
-                if let Some(v) = c.as_ref().and_then(|c| c.get(section)) {
-                    flatten(section, v, &mut out);
-                }
-                out
-            })
-            .collect();
-        for (k, _) in flat.iter().flatten() {
-            if !keys.contains(k) {
-                keys.push(k.clone());
+    sections
+}
+
+/// One section of every case, flattened to dotted keys, and the union of those keys over
+/// the cases in first-seen order.
+fn flat_section(
+    cases: &[Option<Value>],
+    section: &str,
+) -> (Vec<Vec<(String, Value)>>, Vec<String>) {
+    let flat: Vec<Vec<(String, Value)>> = cases
+        .iter()
+        .map(|c| {
+            let mut out = Vec::new();
+            if let Some(v) = c.as_ref().and_then(|c| c.get(section)) {
+                flatten(section, v, &mut out);
+            }
+            out
+        })
+        .collect();
+    let mut keys: Vec<String> = Vec::new();
+    for (k, _) in flat.iter().flatten() {
+        if !keys.contains(k) {
+            keys.push(k.clone());
+        }
+    }
+    (flat, keys)
+}
+
+/// The case inputs (dotted paths, in the Inputs table's order) whose resolved values differ
+/// between the runs, or are given in some and not in others; empty for a single run or
+/// when fewer than two runs have a readable case. Numbers are compared as the files hold
+/// them (resolved SI), so `"1 min"` and `60` are the same duration.
+pub fn differing_inputs(runs: &[Run]) -> Vec<String> {
+    let cases: Vec<Option<Value>> = cases(runs).into_iter().filter(Option::is_some).collect();
+    if cases.len() < 2 {
+        return Vec::new();
+    }
+    let mut out = Vec::new();
+    for section in sections(&cases) {
+        let (flat, keys) = flat_section(&cases, &section);
+        for key in keys {
+            let values: Vec<Option<&Value>> = flat
+                .iter()
+                .map(|f| f.iter().find(|(k, _)| *k == key).map(|(_, v)| v))
+                .collect();
+            let same = values.windows(2).all(|w| match (w[0], w[1]) {
+                (Some(Value::Number(a)), Some(Value::Number(b))) => a.as_f64() == b.as_f64(),
+                (a, b) => a == b,
+            });
+            if !same {
+                out.push(key);
             }
         }
+    }
+    out
+}
+
+/// Inputs of every run from `case_json`, one column per run, grouped by section.
+pub fn inputs(runs: &[Run]) -> CompareTable {
+    let cases = cases(runs);
+    let mut t = compare_table(runs, "compare", "Input (resolved, SI; US in brackets)");
+    for section in &sections(&cases) {
+        // Union of the flattened keys of this section over all runs, in first-seen order.
+        let (flat, keys) = flat_section(&cases, section);
         if keys.is_empty() {
             continue;
         }
