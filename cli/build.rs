@@ -52,7 +52,9 @@ fn main() {
     let link = dir.join("libhdf5.a");
     std::fs::create_dir_all(&dir).expect("cannot create the HDF5 link directory");
     let _ = std::fs::remove_file(&link);
-    std::os::unix::fs::symlink(&archive, &link).expect("cannot link the HDF5 archive");
+    if !link_to(&archive, &link) {
+        return;
+    }
     println!("cargo::rustc-link-search=native={}", dir.display());
     println!("cargo::rustc-cfg=hdf5_static");
     // As linker arguments, which reach every binary, test and bench of the package (a
@@ -61,6 +63,19 @@ fn main() {
     for lib in deps {
         println!("cargo::rustc-link-arg=-l{lib}");
     }
+}
+
+/// Makes `link` a symbolic link to `archive`; false where the host has none (the build then
+/// keeps the shared library).
+#[cfg(unix)]
+fn link_to(archive: &Path, link: &Path) -> bool {
+    std::os::unix::fs::symlink(archive, link).expect("cannot link the HDF5 archive");
+    true
+}
+
+#[cfg(not(unix))]
+fn link_to(_: &Path, _: &Path) -> bool {
+    false
 }
 
 /// Where the HDF5 libraries may be: pkg-config's `-L` directories for `hdf5`, then the
