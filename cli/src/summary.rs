@@ -126,25 +126,41 @@ pub struct CollapseRatings {
 /// What `s` lacks for a computed casing rating, naming the case-file fields to give.
 fn casing_rating_hint(s: &crate::case::SafetyInputs) -> String {
     let builtin = s.material.as_deref().and_then(safety::builtin_material);
-    match (s.material.as_deref(), builtin, s.dimension_ratio) {
-        (None, _, None) => {
-            "give well.material and well.dimension_ratio, or well.collapse_rating".to_owned()
-        }
-        (None, _, Some(_)) => "give well.material, or well.collapse_rating".to_owned(),
-        (Some(m), Some(_), None) => {
-            format!("well.material is {m}: give well.dimension_ratio, or well.collapse_rating")
-        }
-        (Some(m), _, _) => format!(
-            "well.material \"{m}\" is not built in ({}): give well.youngs_modulus, \
-             well.poisson_ratio and well.yield_strength{}, or well.collapse_rating",
-            safety::MATERIAL_NAMES.join(", "),
-            if s.dimension_ratio.is_none() {
-                " with well.dimension_ratio"
-            } else {
-                ""
+    // What is missing of the material's constants and the dimension ratio; a built-in
+    // material has its constants.
+    let mut missing: Vec<&str> = Vec::new();
+    if builtin.is_none() {
+        for (given, name) in [
+            (s.youngs_modulus_pa.is_some(), "well.youngs_modulus"),
+            (s.poisson_ratio.is_some(), "well.poisson_ratio"),
+            (s.yield_strength_pa.is_some(), "well.yield_strength"),
+        ] {
+            if !given {
+                missing.push(name);
             }
-        ),
+        }
     }
+    if s.dimension_ratio.is_none() {
+        missing.push("well.dimension_ratio");
+    }
+    let what = match (s.material.as_deref(), builtin) {
+        (None, _) if missing.len() == 4 => {
+            return "give well.material and well.dimension_ratio, or well.collapse_rating"
+                .to_owned();
+        }
+        (None, _) => "no well.material".to_owned(),
+        (Some(m), Some(_)) => format!("well.material is {m}"),
+        (Some(m), None) => format!(
+            "well.material \"{m}\" is not built in ({})",
+            safety::MATERIAL_NAMES.join(", ")
+        ),
+    };
+    let list = match missing.as_slice() {
+        [] => String::new(),
+        [one] => (*one).to_owned(),
+        [init @ .., last] => format!("{} and {last}", init.join(", ")),
+    };
+    format!("{what}: give {list}, or well.collapse_rating")
 }
 
 /// Material constants for the collapse check: the built-in ones for pvc, steel and
@@ -902,28 +918,37 @@ mod tests {
     fn a_missing_casing_rating_names_what_the_case_lacks() {
         // Each combination of what was given gets a hint naming only what is missing (the
         // row of `run`'s table, `check`'s collapse line and `/summary`'s basis).
-        let hint = |m, dr| collapse_ratings(&inputs(m, dr), 20.0).casing_missing;
-        let none = hint(None, None).unwrap();
-        assert!(
-            none.contains("give well.material and well.dimension_ratio"),
-            "{none}"
+        let hint = |m, dr| {
+            collapse_ratings(&inputs(m, dr), 20.0)
+                .casing_missing
+                .unwrap()
+        };
+        assert_eq!(
+            hint(None, None),
+            "give well.material and well.dimension_ratio, or well.collapse_rating"
         );
-        let no_material = hint(None, Some(21.0)).unwrap();
-        assert!(
-            no_material.starts_with("give well.material,"),
-            "{no_material}"
+        assert_eq!(
+            hint(None, Some(21.0)),
+            "no well.material: give well.youngs_modulus, well.poisson_ratio and \
+             well.yield_strength, or well.collapse_rating"
         );
-        let no_dr = hint(Some("pvc"), None).unwrap();
-        assert!(
-            no_dr.contains("well.material is pvc: give well.dimension_ratio"),
-            "{no_dr}"
+        assert_eq!(
+            hint(Some("pvc"), None),
+            "well.material is pvc: give well.dimension_ratio, or well.collapse_rating"
         );
-        let own = hint(Some("fibreglass"), Some(21.0)).unwrap();
-        assert!(
-            own.contains("\"fibreglass\" is not built in (pvc, steel, stainless)")
-                && own.contains("well.youngs_modulus")
-                && !own.contains("dimension_ratio"),
-            "{own}"
+        assert_eq!(
+            hint(Some("fibreglass"), Some(21.0)),
+            "well.material \"fibreglass\" is not built in (pvc, steel, stainless): give \
+             well.youngs_modulus, well.poisson_ratio and well.yield_strength, or \
+             well.collapse_rating"
+        );
+        let mut given = inputs(Some("fibreglass"), None);
+        given.youngs_modulus_pa = Some(20e9);
+        given.poisson_ratio = Some(0.3);
+        assert_eq!(
+            collapse_ratings(&given, 20.0).casing_missing.unwrap(),
+            "well.material \"fibreglass\" is not built in (pvc, steel, stainless): give \
+             well.yield_strength and well.dimension_ratio, or well.collapse_rating"
         );
         // A built-in material with its dimension ratio has a rating, and no hint.
         let r = collapse_ratings(&inputs(Some("steel"), Some(20.0)), 20.0);
