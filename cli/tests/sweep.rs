@@ -279,14 +279,11 @@ fn an_interrupted_sweep_writes_nothing() {
     );
 }
 
-/// `report` on a sweep table writes the sweep page: cautions, one chart per key figure
-/// against the first varied value, and every scenario's row (comparisons and refusals:
-/// cli/tests/sweep_compare.rs).
-#[test]
-fn a_sweep_table_gets_its_own_report() {
-    let dir = tempfile::tempdir().unwrap();
-    let case = write_case(dir.path());
-    let stem = dir.path().join("amp");
+/// Sweeps the linear case over three amplitudes (with units) and two frequencies (bare
+/// numbers) into `dir/amp.csv` and `dir/amp.h5`; returns the stem `dir/amp`.
+fn amplitude_frequency_sweep(dir: &Path) -> std::path::PathBuf {
+    let case = write_case(dir);
+    let stem = dir.join("amp");
     sweep(&case, &stem)
         .args([
             "--vary",
@@ -296,6 +293,16 @@ fn a_sweep_table_gets_its_own_report() {
         ])
         .assert()
         .success();
+    stem
+}
+
+/// `report` on a sweep table writes the sweep page: cautions, one chart per key figure
+/// against the first varied value, and every scenario's row (comparisons and refusals:
+/// cli/tests/sweep_compare.rs).
+#[test]
+fn a_sweep_table_gets_its_own_report() {
+    let dir = tempfile::tempdir().unwrap();
+    let stem = amplitude_frequency_sweep(dir.path());
     let html_path = dir.path().join("amp.html");
     // The CSV twin of the table is refused, naming the HDF5 file to give instead; a missing
     // file says so.
@@ -351,17 +358,7 @@ fn a_sweep_table_gets_its_own_report() {
 #[test]
 fn sweep_page_values_have_units_and_figures_are_numbered_in_order() {
     let dir = tempfile::tempdir().unwrap();
-    let case = write_case(dir.path());
-    let stem = dir.path().join("amp");
-    sweep(&case, &stem)
-        .args([
-            "--vary",
-            "drive.amplitude=0.5 m,1 m,2 m",
-            "--vary",
-            "drive.frequency=0.25,0.5",
-        ])
-        .assert()
-        .success();
+    let stem = amplitude_frequency_sweep(dir.path());
     let html_path = dir.path().join("amp.html");
     boreflux()
         .args(["report", stem.with_extension("h5").to_str().unwrap(), "-o"])

@@ -325,16 +325,17 @@ pub fn headline(runs: &[Run]) -> (CompareTable, BTreeSet<String>) {
             )
         }
     };
-    let margin = |f: Figure| {
+    let margin = |f: Figure, missing: &'static str| {
         move |s: &Summary| match s.get(f) {
             Some(m) if m < 1.0 => Cell {
                 text: Some(format!("{} — BELOW 1", sig(m))),
                 class: "alarm",
             },
             Some(m) => Cell::plain(sig(m)),
-            None => Cell::plain("not computed (no rating)".into()),
+            None => Cell::plain(missing.into()),
         }
     };
+    const NO_RATING: &str = "not computed (no rating)";
     row(
         &mut t,
         "Collapse rating of the screen",
@@ -348,7 +349,7 @@ pub fn headline(runs: &[Run]) -> (CompareTable, BTreeSet<String>) {
         &mut t,
         "Screen collapse margin: screen rating ÷ (safety factor × peak collapse load)",
         &[Figure::ScreenCollapseMargin],
-        &margin(Figure::ScreenCollapseMargin),
+        &margin(Figure::ScreenCollapseMargin, NO_RATING),
     );
     row(
         &mut t,
@@ -363,20 +364,17 @@ pub fn headline(runs: &[Run]) -> (CompareTable, BTreeSet<String>) {
         &mut t,
         "Casing collapse margin: casing rating ÷ (safety factor × peak in-well drawdown pressure)",
         &[Figure::CasingCollapseMargin],
-        &margin(Figure::CasingCollapseMargin),
+        &margin(Figure::CasingCollapseMargin, NO_RATING),
     );
     row(
         &mut t,
         "Collapse margin, the lower of screen and casing; below 1 is a warning",
         &[Figure::CollapseMargin],
-        &|s: &Summary| match s.get(Figure::CollapseMargin) {
-            Some(_) => margin(Figure::CollapseMargin)(s),
-            None => Cell::plain(
-                "not computed: both the screen and the blank casing need a rating (an unrated \
-                 screen may govern)"
-                    .into(),
-            ),
-        },
+        &margin(
+            Figure::CollapseMargin,
+            "not computed: both the screen and the blank casing need a rating (an unrated \
+             screen may govern)",
+        ),
     );
 
     section(&mut t, "Numerical quality");
